@@ -1,0 +1,37 @@
+// Route patterns: trips sharing route_id, direction_id and the ordered list of stop_ids, with the
+// distance of each stop along the pattern's path and the scheduled run time of each gap.
+
+export type DistanceSource = 'shape_dist_traveled' | 'shape_projection' | 'great_circle';
+
+export interface Pattern {
+  id: string; // stable and readable: `${route_id}:${direction_id}:${n}`, n = 1.. by trips per day, descending
+  routeId: string;
+  directionId: number; // -1 when blank in the feed
+  headsign: string; // most common trip_headsign
+  shapeId: string; // representative shape (most common among its trips), '' when none
+  tripIds: string[]; // trips of the pattern running on the analysis date
+  tripsPerDay: number; // on the analysis date, frequencies expanded
+  nominalFrequencyTrips: number; // of tripsPerDay, how many come from exact_times=0 (nominal) frequencies
+  stopIdx: number[]; // indices into Feed.stops, in order
+  distAlongM: number[]; // metres from the first stop, non-decreasing, distAlongM[0] = 0
+  offsetFromShapeM: (number | null)[]; // distance of each stop from its projected point; null without a shape
+  distanceSource: DistanceSource;
+  lengthM: number; // distAlongM[last]
+  passengerStop: boolean[]; // false where pickup_type=1 and drop_off_type=1 on the representative trip
+  timepoint: boolean[];
+  /** Scheduled run time per gap (length stopIdx.length - 1), median over the pattern's trips, seconds. */
+  gapRunTimeS: number[];
+  gapTimeInterpolated: boolean[]; // true where a blank time was interpolated by distance
+  runTimeS: number; // first departure to last arrival, median over trips
+  /** Dwell scheduled at each stop (departure - arrival), median over trips, seconds. */
+  scheduledDwellS: number[];
+  /** Projected shape path (lon, lat pairs) for maps, simplified; empty without a shape. */
+  path: [number, number][];
+}
+
+export interface PatternSet {
+  date: string; // YYYY-MM-DD analysis date
+  patterns: Pattern[];
+  /** How many patterns each stop index belongs to (on the analysis date). */
+  routesAtStop: Map<number, Set<string>>;
+}
