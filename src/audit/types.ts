@@ -1,0 +1,163 @@
+// The audit's result: everything the reports (HTML, CSV, GeoJSON, JSON) draw on. Metres, seconds and
+// passengers per day internally; conversion to imperial happens only when rendering.
+//
+// Sign convention (DESIGN.md section 4): a "net passenger-minutes per day" figure is the CHANGE in riders'
+// total time that an action causes: walk added - ride time saved + neighbours' extra stopping.
+// Negative means riders as a whole save time; positive means they lose time.
+
+import type { FeedWarning } from '../common/warnings.js';
+import type { DistanceSource } from '../network/types.js';
+
+export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
+export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'keep';
+export type DemandSource = 'observed' | 'assumed'; // observed = from a ridership file
+export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive
+export type SourceLabel = 'C' | 'S' | 'M' | 'D' | 'user' | 'estimated' | 'observed';
+
+export interface ParamValue {
+  value: number | string | null;
+  source: SourceLabel;
+  note: string; // where the default comes from, in a few words
+}
+
+/** Parameters used, by the names of DESIGN.md section 4 (walk_speed_mps, walk_weight, ...). */
+export type ParamsReport = Record<string, ParamValue>;
+
+export interface StopResult {
+  patternId: string;
+  routeId: string;
+  directionId: number;
+  stopIndex: number; // position in the pattern, 0-based
+  stopId: string;
+  stopName: string;
+  stopLat: number;
+  stopLon: number;
+  distAlongM: number;
+  gapBeforeM: number | null; // null at the first stop
+  gapAfterM: number | null; // null at the last stop
+  tripsPerDay: number;
+  boardingsPerDay: number;
+  alightingsPerDay: number;
+  loadDepartingPerDay: number; // riders on board leaving this stop, per day
+  stopProbability: number; // chance a bus serves the stop on a trip (stopping model)
+  localOptimalSpacingM: number | null; // s*(x) for uneven demand; null where undefined (no demand)
+  verdict: Verdict;
+  fixedReason: FixedReason;
+  keptByOptimiser: boolean;
+  removalNetPaxMinPerDay: number | null; // null for fixed stops
+  removalRunTimeSavedS: number | null; // per trip
+  demandSource: DemandSource;
+  timepoint: boolean;
+  offsetFromShapeM: number | null;
+}
+
+export interface GapResult {
+  patternId: string;
+  fromStopIndex: number; // gap between fromStopIndex and fromStopIndex + 1
+  fromStopId: string;
+  toStopId: string;
+  gapM: number;
+  wide: boolean; // above the band's upper edge
+  overMaxGap: boolean; // above the max_gap_m walking policy
+  addNetPaxMinPerDay: number | null; // change in total riders' time if a stop is added mid-gap (wide gaps only)
+  addMidLat: number | null;
+  addMidLon: number | null;
+}
+
+export interface CostCurvePoint {
+  spacingM: number;
+  costPerRiderS: number; // walk (weighted) + ride delay per rider, seconds, uniform-demand model
+}
+
+export interface PatternResult {
+  patternId: string;
+  routeId: string;
+  routeShortName: string;
+  routeType: number;
+  directionId: number;
+  headsign: string;
+  shapeId: string;
+  distanceSource: DistanceSource;
+  stopCount: number;
+  lengthM: number;
+  tripsPerDay: number;
+  medianGapM: number;
+  meanGapM: number;
+  optimalSpacingM: number; // square-root law with this pattern's parameters
+  bandLowM: number;
+  bandHighM: number;
+  closeStops: number;
+  wideGaps: number;
+  optimalStopCount: number; // from the dynamic programme
+  paxMinLostPerDay: number; // today's cost minus the optimiser's cost, >= 0
+  demandSource: DemandSource;
+  lostTimeSource: LostTimeSource;
+  lostTimePerStopS: number;
+  cruiseSpeedMps: number;
+  cruiseSpeedSource: SourceLabel;
+  meanTripLengthM: number;
+  ridersPerDay: number; // boardings per day on the pattern
+  runTimeS: number;
+  costCurve: CostCurvePoint[];
+  currentCostPerRiderS: number; // at today's mean gap on the curve
+  optimalCostPerRiderS: number;
+  path: [number, number][]; // lon, lat
+}
+
+export interface SensitivityCase {
+  label: string; // e.g. 'walk_weight=1.5', 'band_tolerance=0.10'
+  walkWeight: number;
+  bandTolerance: number;
+  meanOptimalSpacingM: number;
+  closeStops: number;
+  wideGaps: number;
+  paxMinLostPerDay: number;
+  candidatesKept: number; // how many of the base case's top candidates are still candidates here
+}
+
+export interface Candidate {
+  rank: number;
+  action: 'remove' | 'add';
+  stopId: string; // '' for an addition
+  stopName: string; // for an addition: 'between A and B'
+  lat: number;
+  lon: number;
+  routeIds: string[];
+  patternIds: string[];
+  netPaxMinPerDay: number; // change in riders' total time; negative = saving (ranked most negative first)
+  ridersAffectedPerDay: number; // riders whose stop changes
+  walkAddedPaxMinPerDay: number;
+  rideSavedPaxMinPerDay: number;
+  runTimeSavedPerTripS: number; // weighted over patterns by trips
+  vehicleHoursPerDay: number; // saved (positive) or added (negative)
+  robust: boolean; // still a saving under every sensitivity case
+}
+
+export interface Headline {
+  patterns: number;
+  stops: number; // distinct stops served
+  trips: number;
+  medianGapM: number;
+  meanOptimalSpacingM: number;
+  closeStops: number;
+  wideGaps: number;
+  paxMinLostPerDay: number;
+}
+
+export interface AuditResult {
+  tool: { name: 'stopspan'; version: string };
+  feed: { source: string; contentHash: string; version: string; publisher: string };
+  date: string; // YYYY-MM-DD
+  generatedAt: string; // ISO time
+  demandSource: DemandSource;
+  lostTimeSource: LostTimeSource;
+  params: ParamsReport;
+  headline: Headline;
+  patterns: PatternResult[];
+  stops: StopResult[];
+  gaps: GapResult[];
+  candidates: Candidate[];
+  sensitivity: SensitivityCase[];
+  warnings: FeedWarning[];
+  assumptions: string[]; // plain sentences shown in every report
+}
