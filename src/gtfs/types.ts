@@ -84,6 +84,8 @@ export interface FeedInfo {
 
 export interface Feed {
   source: string; // the path or URL as given
+  /** Analysis date (YYYY-MM-DD) whose trips were kept, or null when every trip was kept. */
+  date: string | null;
   contentHash: string; // sha256 of the archive bytes (or of the folder's table files), hex
   agencies: Agency[];
   routes: Map<string, Route>;

@@ -1,0 +1,53 @@
+// What every command shares: the exit-code contract, the one error handler at the boundary, and the
+// progress drawer (stderr, only when a person is watching).
+
+import { isStopspanError } from '../common/errors.js';
+import type { OnProgress, ProgressEvent } from '../common/progress.js';
+
+export const EXIT = { clean: 0, found: 1, badInput: 2, internal: 3 } as const;
+
+/** Runs a command action; known failures become one line on stderr and exit 2, anything else exit 3. */
+export async function runAction(verbose: boolean, action: () => Promise<number>): Promise<void> {
+  let code: number;
+  try {
+    code = await action();
+  } catch (e) {
+    if (isStopspanError(e)) {
+      process.stderr.write(`error: ${e.oneLine()}\n`);
+      code = EXIT.badInput;
+    } else {
+      const err = e as Error;
+      process.stderr.write(`internal error (this is a bug): ${err?.message ?? String(e)}\n`);
+      if (verbose && err?.stack) process.stderr.write(err.stack + '\n');
+      code = EXIT.internal;
+    }
+  }
+  process.exitCode = code;
+}
+
+/** A progress callback that draws one updating line on a TTY and nothing otherwise (or when quiet). */
+export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefined; done: () => void } {
+  const tty = process.stderr.isTTY === true;
+  if (quiet || !tty) return { onProgress: undefined, done: () => {} };
+  let last = 0;
+  let lastStage = '';
+  const draw = (ev: ProgressEvent) => {
+    const now = Date.now();
+    if (ev.stage === lastStage && now - last < 100) return;
+    last = now;
+    lastStage = ev.stage;
+    let text = ev.stage;
+    if (ev.done !== undefined) {
+      const d = ev.unit === 'bytes' ? `${(ev.done / 1e6).toFixed(1)} MB` : ev.done.toLocaleString('en');
+      const t = ev.total ? (ev.unit === 'bytes' ? ` / ${(ev.total / 1e6).toFixed(1)} MB` : ` / ${ev.total.toLocaleString('en')}`) : '';
+      text += `: ${d}${t}${ev.unit && ev.unit !== 'bytes' ? ' ' + ev.unit : ''}`;
+    }
+    process.stderr.write(`\r\x1b[2K${text.slice(0, (process.stderr.columns ?? 80) - 1)}`);
+  };
+  return { onProgress: draw, done: () => process.stderr.write('\r\x1b[2K') };
+}
+
+/** Parses a comma-separated list option. */
+export function listOption(value: string, previous: string[] = []): string[] {
+  return previous.concat(value.split(',').map((s) => s.trim()).filter(Boolean));
+}
