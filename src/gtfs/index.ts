@@ -1,0 +1,2 @@
+// The feed reader's public API: re-exports only.
+export * from './csv.js';
