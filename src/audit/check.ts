@@ -1,0 +1,441 @@
+// Feed-quality check: runs every finding of the table in findings.ts over a read feed and its patterns
+// and returns counts and a few examples per finding, for people and for nightly jobs' exit codes.
+
+import type { Feed, Stop } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import { StopspanError } from '../common/errors.js';
+import {
+  FINDINGS,
+  FINDING_CODES,
+  SEVERITY_RANK,
+  normaliseThresholds,
+  speedFamily,
+  type CheckThresholds,
+  type FindingCode,
+  type Severity,
+  type ThresholdOptions,
+} from './findings.js';
+
+export interface FindingExample {
+  file: string; // the GTFS table the example lives in, e.g. 'stops.txt'
+  line?: number; // when the reader told us
+  ids: Record<string, string>; // e.g. { stop_id: '123' } or { trip_id: 'T1', stop_sequence: '4' }
+  detail: string; // one line for people
+}
+
+export interface Finding {
+  code: FindingCode;
+  title: string;
+  severity: Severity;
+  explanation: string;
+  count: number;
+  examples: FindingExample[];
+}
+
+export interface CheckReport {
+  feed: { source: string; contentHash: string; version: string; publisher: string };
+  today: string; // YYYY-MM-DD the run was judged against
+  /** Last day with service (YYYY-MM-DD), or null when the calendar has none. */
+  serviceEnd: string | null;
+  thresholds: CheckThresholds;
+  /** Only the findings with count > 0, most severe first, then in table order. */
+  findings: Finding[];
+  /** Every code, zero included: what a history row stores. */
+  counts: Record<FindingCode, number>;
+  bySeverity: Record<Severity, number>; // how many findings (kinds, not occurrences) at each severity
+}
+
+export interface CheckOptions {
+  today?: string; // YYYY-MM-DD; defaults to the current UTC date
+  thresholds?: ThresholdOptions;
+  maxExamples?: number; // per finding, default 5
+  severities?: Partial<Record<FindingCode, Severity>>; // overrides of the table's defaults
+}
+
+// Reader warning codes that mean a row pointing nowhere was dropped or kept without its target.
+const DANGLING_WARNING = /unknown|dangling|orphan|missing-ref|bad-ref|nowhere/i;
+
+/** Runs every check. Pure: the same feed, patterns and options give the same report. */
+export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOptions = {}): CheckReport {
+  const { today = new Date().toISOString().slice(0, 10), thresholds: thresholdOptions, maxExamples = 5, severities = {} } = options;
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(today) || Number.isNaN(Date.parse(today + 'T00:00:00Z'))) {
+    throw new StopspanError('bad-option', `invalid option today: expected YYYY-MM-DD, got ${today}`, { value: today });
+  }
+  if (!Number.isInteger(maxExamples) || maxExamples < 0) {
+    throw new StopspanError('bad-option', `invalid option maxExamples: expected an integer >= 0, got ${maxExamples}`, {
+      value: String(maxExamples),
+    });
+  }
+  for (const [code, sev] of Object.entries(severities)) {
+    if (!(code in FINDINGS) || !(sev in SEVERITY_RANK)) {
+      throw new StopspanError('bad-option', `invalid option severities: expected finding code and error|warning|info, got ${code}=${sev}`, {
+        value: `${code}=${sev}`,
+      });
+    }
+  }
+  const t = normaliseThresholds(thresholdOptions);
+
+  const tally = new Map<FindingCode, { count: number; examples: FindingExample[] }>();
+  for (const code of FINDING_CODES) tally.set(code, { count: 0, examples: [] });
+  const add = (code: FindingCode, example: FindingExample, n = 1): void => {
+    const e = tally.get(code)!;
+    e.count += n;
+    if (e.examples.length < maxExamples) e.examples.push(example);
+  };
+
+  checkPatternGeometry(feed, patterns, t, add);
+  checkTrips(feed, add);
+  checkSpeeds(feed, patterns, t, add);
+  checkCoordinates(feed, t, add);
+  const serviceEnd = lastServiceDate(feed);
+  checkServiceEnd(serviceEnd, today, t, add);
+  checkReferences(feed, add);
+
+  const findings: Finding[] = [];
+  const counts = {} as Record<FindingCode, number>;
+  const bySeverity: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
+  for (const code of FINDING_CODES) {
+    const { count, examples } = tally.get(code)!;
+    counts[code] = count;
+    if (count === 0) continue;
+    const kind = FINDINGS[code];
+    const severity = severities[code] ?? kind.severity;
+    bySeverity[severity]++;
+    findings.push({ code, title: kind.title, severity, explanation: kind.explanation, count, examples });
+  }
+  findings.sort((a, b) => SEVERITY_RANK[b.severity] - SEVERITY_RANK[a.severity] || FINDING_CODES.indexOf(a.code) - FINDING_CODES.indexOf(b.code));
+
+  return {
+    feed: {
+      source: feed.source,
+      contentHash: feed.contentHash,
+      version: feed.feedInfo?.version ?? '',
+      publisher: feed.feedInfo?.publisherName ?? '',
+    },
+    today,
+    serviceEnd: serviceEnd ? `${serviceEnd.slice(0, 4)}-${serviceEnd.slice(4, 6)}-${serviceEnd.slice(6, 8)}` : null,
+    thresholds: t,
+    findings,
+    counts,
+    bySeverity,
+  };
+}
+
+type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
+
+const R_EARTH_M = 6_371_008.8; // mean Earth radius, IUGG [M]
+
+/** Great-circle distance on a sphere of mean Earth radius, metres. */
+export function haversineM(lat1: number, lon1: number, lat2: number, lon2: number): number {
+  const rad = Math.PI / 180;
+  const dLat = (lat2 - lat1) * rad;
+  const dLon = (lon2 - lon1) * rad;
+  const a = Math.sin(dLat / 2) ** 2 + Math.cos(lat1 * rad) * Math.cos(lat2 * rad) * Math.sin(dLon / 2) ** 2;
+  return 2 * R_EARTH_M * Math.asin(Math.min(1, Math.sqrt(a)));
+}
+
+const fmt = (x: number, digits = 1): string => (Number.isFinite(x) ? x.toFixed(digits) : String(x));
+
+/** twin-stops and stop-off-path, once per stop pair or per (shape, stop). */
+function checkPatternGeometry(feed: Feed, patterns: PatternSet, t: CheckThresholds, add: Add): void {
+  const seenPairs = new Set<string>();
+  const seenOff = new Set<string>();
+  for (const p of patterns.patterns) {
+    for (let i = 0; i + 1 < p.stopIdx.length; i++) {
+      const a = feed.stops[p.stopIdx[i]];
+      const b = feed.stops[p.stopIdx[i + 1]];
+      if (!a || !b) continue;
+      const d = haversineM(a.lat, a.lon, b.lat, b.lon);
+      if (!(d < t.twinStopM)) continue;
+      const key = a.id < b.id ? `${a.id}\u0000${b.id}` : `${b.id}\u0000${a.id}`;
+      if (seenPairs.has(key)) continue;
+      seenPairs.add(key);
+      add('twin-stops', {
+        file: 'stops.txt',
+        ids: { stop_id: a.id, next_stop_id: b.id, pattern: p.id },
+        detail: `${a.id} and ${b.id} are ${fmt(d)} m apart on pattern ${p.id}`,
+      });
+    }
+    for (let i = 0; i < p.stopIdx.length; i++) {
+      const off = p.offsetFromShapeM[i];
+      if (off === null || off === undefined || !(off > t.offPathM)) continue;
+      const stop = feed.stops[p.stopIdx[i]];
+      const key = `${p.shapeId}\u0000${p.stopIdx[i]}`;
+      if (seenOff.has(key)) continue;
+      seenOff.add(key);
+      add('stop-off-path', {
+        file: 'stops.txt',
+        ids: { stop_id: stop?.id ?? String(p.stopIdx[i]), shape_id: p.shapeId },
+        detail: `stop ${stop?.id} is ${fmt(off, 0)} m from shape ${p.shapeId} (pattern ${p.id})`,
+      });
+    }
+  }
+}
+
+/** pathless-trip, distance-backtrack (trips and shapes) and time-backtrack, once per trip or shape. */
+function checkTrips(feed: Feed, add: Add): void {
+  for (const [tripId, st] of feed.stopTimes) {
+    const trip = feed.trips.get(tripId);
+    if (trip && trip.shapeId === '') {
+      add('pathless-trip', { file: 'trips.txt', ids: { trip_id: tripId }, detail: `trip ${tripId} has no shape_id` });
+    }
+    let prevDist = NaN;
+    for (let i = 0; i < st.shapeDist.length; i++) {
+      const d = st.shapeDist[i];
+      if (Number.isNaN(d)) continue;
+      if (d < prevDist - 1e-9) {
+        add('distance-backtrack', {
+          file: 'stop_times.txt',
+          ids: { trip_id: tripId, stop_sequence: String(st.seq[i]) },
+          detail: `trip ${tripId}: shape_dist_traveled falls from ${prevDist} to ${d} at stop_sequence ${st.seq[i]}`,
+        });
+        break;
+      }
+      prevDist = d;
+    }
+    let prevS = -1;
+    for (let i = 0; i < st.arrS.length; i++) {
+      const a = st.arrS[i];
+      const dep = st.depS[i];
+      const first = a >= 0 ? a : dep;
+      let bad = '';
+      if (a >= 0 && dep >= 0 && dep < a) bad = `departure ${clock(dep)} before arrival ${clock(a)}`;
+      else if (first >= 0 && prevS >= 0 && first < prevS) bad = `${clock(first)} after ${clock(prevS)} at the previous stop`;
+      if (bad) {
+        add('time-backtrack', {
+          file: 'stop_times.txt',
+          ids: { trip_id: tripId, stop_sequence: String(st.seq[i]) },
+          detail: `trip ${tripId} at stop_sequence ${st.seq[i]}: ${bad}`,
+        });
+        break;
+      }
+      const last = dep >= 0 ? dep : a;
+      if (last >= 0) prevS = last;
+    }
+  }
+  for (const shape of feed.shapes.values()) {
+    let prev = NaN;
+    for (let i = 0; i < shape.dist.length; i++) {
+      const d = shape.dist[i];
+      if (Number.isNaN(d)) continue;
+      if (d < prev - 1e-9) {
+        add('distance-backtrack', {
+          file: 'shapes.txt',
+          ids: { shape_id: shape.id, point: String(i + 1) },
+          detail: `shape ${shape.id}: shape_dist_traveled falls from ${prev} to ${d} at point ${i + 1}`,
+        });
+        break;
+      }
+      prev = d;
+    }
+  }
+}
+
+function clock(s: number): string {
+  const h = Math.floor(s / 3600);
+  const m = Math.floor((s % 3600) / 60);
+  const sec = s % 60;
+  return `${String(h).padStart(2, '0')}:${String(m).padStart(2, '0')}:${String(sec).padStart(2, '0')}`;
+}
+
+/**
+ * implausible-speed, per pattern, between consecutive timed stops (timepoints whose time was not
+ * interpolated). Gaps with zero scheduled time (minute-rounded schedules) are merged with the next one
+ * until time passes, so rounding alone never makes a speed infinite.
+ */
+function checkSpeeds(feed: Feed, patterns: PatternSet, t: CheckThresholds, add: Add): void {
+  for (const p of patterns.patterns) {
+    const route = feed.routes.get(p.routeId);
+    if (!route) continue;
+    const fam = speedFamily(route.type);
+    const { minKmh, maxKmh } = t.speedKmh[fam];
+    const n = p.stopIdx.length;
+    if (p.gapRunTimeS.length !== n - 1) continue;
+    let from = -1; // index of the timed stop the current span starts at
+    let spanS = 0;
+    let spanM = 0;
+    let flagged = false;
+    for (let i = 0; i < n && !flagged; i++) {
+      const timed = p.timepoint[i] === true;
+      if (from >= 0) {
+        spanS += p.gapRunTimeS[i - 1];
+        spanM += p.distAlongM[i] - p.distAlongM[i - 1];
+        if (p.gapTimeInterpolated[i - 1]) {
+          // an interpolated time inside the span: the span is not measured; restart at the next timed stop
+          from = -1;
+        }
+      }
+      if (!timed) continue;
+      if (from >= 0 && spanS > 0 && spanM > 0) {
+        const kmh = (spanM / spanS) * 3.6;
+        if (kmh > maxKmh || kmh < minKmh) {
+          const a = feed.stops[p.stopIdx[from]];
+          const b = feed.stops[p.stopIdx[i]];
+          add('implausible-speed', {
+            file: 'stop_times.txt',
+            ids: { pattern: p.id, trip_id: p.tripIds[0] ?? '', from_stop_id: a?.id ?? '', to_stop_id: b?.id ?? '' },
+            detail: `pattern ${p.id} (${fam}): ${fmt(kmh)} km/h from ${a?.id} to ${b?.id} (${fmt(spanM, 0)} m in ${spanS} s; allowed ${minKmh}-${maxKmh})`,
+          });
+          flagged = true; // one per pattern: the count is of patterns
+        }
+      }
+      if (from < 0 || spanS > 0) {
+        from = i;
+        spanS = 0;
+        spanM = 0;
+      }
+    }
+  }
+}
+
+/** coordinate-fault: zero, out of range or far from the feed's median stop position. */
+function checkCoordinates(feed: Feed, t: CheckThresholds, add: Add): void {
+  const located = (s: Stop) => !((s.locationType === 3 || s.locationType === 4) && Number.isNaN(s.lat) && Number.isNaN(s.lon));
+  const valid: Stop[] = [];
+  for (const s of feed.stops) {
+    if (!located(s)) continue;
+    let fault = '';
+    if (!Number.isFinite(s.lat) || !Number.isFinite(s.lon)) fault = 'missing or not a number';
+    else if (Math.abs(s.lat) > 90 || Math.abs(s.lon) > 180) fault = 'out of range';
+    else if (s.lat === 0 || s.lon === 0) fault = 'zero';
+    if (fault) {
+      add('coordinate-fault', { file: 'stops.txt', ids: { stop_id: s.id }, detail: `stop ${s.id} at (${s.lat}, ${s.lon}): ${fault}` });
+    } else {
+      valid.push(s);
+    }
+  }
+  if (valid.length < 3) return;
+  const mLat = median(valid.map((s) => s.lat));
+  const mLon = median(valid.map((s) => s.lon));
+  const dists = valid.map((s) => haversineM(mLat, mLon, s.lat, s.lon));
+  const limitM = Math.max(t.outlierMinKm * 1000, t.outlierFactor * median(dists));
+  valid.forEach((s, i) => {
+    if (dists[i] > limitM) {
+      add('coordinate-fault', {
+        file: 'stops.txt',
+        ids: { stop_id: s.id },
+        detail: `stop ${s.id} at (${s.lat}, ${s.lon}) is ${fmt(dists[i] / 1000, 0)} km from the feed's median position (limit ${fmt(limitM / 1000, 0)} km)`,
+      });
+    }
+  });
+}
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** The last YYYYMMDD on which any service runs (calendar weekdays minus removals, plus additions). */
+export function lastServiceDate(feed: Feed): string | null {
+  const removed = new Set<string>();
+  let last = '';
+  for (const cd of feed.calendarDates) {
+    if (cd.exceptionType === 2) removed.add(`${cd.serviceId}\u0000${cd.date}`);
+    else if (cd.date > last) last = cd.date;
+  }
+  for (const row of feed.calendar) {
+    if (!row.days.some(Boolean) || row.end <= last) continue;
+    // walk back from the end date to the last day this row really runs (at most a few weeks)
+    let d = ymdToDate(row.end);
+    const start = ymdToDate(row.start);
+    for (let k = 0; k < 400 && d >= start; k++) {
+      const ymd = dateToYmd(d);
+      const weekday = (d.getUTCDay() + 6) % 7; // monday = 0
+      if (row.days[weekday] && !removed.has(`${row.serviceId}\u0000${ymd}`)) {
+        if (ymd > last) last = ymd;
+        break;
+      }
+      d = new Date(d.getTime() - 86_400_000);
+    }
+  }
+  return last || null;
+}
+
+function ymdToDate(ymd: string): Date {
+  return new Date(Date.UTC(Number(ymd.slice(0, 4)), Number(ymd.slice(4, 6)) - 1, Number(ymd.slice(6, 8))));
+}
+function dateToYmd(d: Date): string {
+  return d.toISOString().slice(0, 10).replace(/-/g, '');
+}
+
+/** service-ending-soon: fewer than serviceMinDays days of service left after today (the GTFS best practice asks for 7). */
+function checkServiceEnd(serviceEnd: string | null, today: string, t: CheckThresholds, add: Add): void {
+  if (serviceEnd === null) {
+    add('service-ending-soon', { file: 'calendar.txt', ids: {}, detail: 'the calendar has no day with service at all' });
+    return;
+  }
+  const daysLeft = Math.round((ymdToDate(serviceEnd).getTime() - Date.parse(today + 'T00:00:00Z')) / 86_400_000);
+  if (daysLeft < t.serviceMinDays) {
+    const endIso = `${serviceEnd.slice(0, 4)}-${serviceEnd.slice(4, 6)}-${serviceEnd.slice(6, 8)}`;
+    const what = daysLeft < 0 ? `ended ${-daysLeft} day(s) before ${today}` : `ends ${daysLeft} day(s) after ${today}`;
+    add('service-ending-soon', {
+      file: 'calendar.txt',
+      ids: { last_service_date: serviceEnd },
+      detail: `service ${what} (last day ${endIso}; at least ${t.serviceMinDays} wanted)`,
+    });
+  }
+}
+
+/** dangling-reference: ids that point nowhere, plus the rows the reader dropped for that reason. */
+function checkReferences(feed: Feed, add: Add): void {
+  for (const s of feed.stops) {
+    if (s.parentStation && !feed.stopIndex.has(s.parentStation)) {
+      add('dangling-reference', {
+        file: 'stops.txt',
+        ids: { stop_id: s.id, parent_station: s.parentStation },
+        detail: `stop ${s.id}: parent_station ${s.parentStation} is not a stop`,
+      });
+    }
+  }
+  const services = new Set<string>();
+  for (const c of feed.calendar) services.add(c.serviceId);
+  for (const c of feed.calendarDates) services.add(c.serviceId);
+  for (const trip of feed.trips.values()) {
+    if (trip.shapeId && !feed.shapes.has(trip.shapeId)) {
+      add('dangling-reference', {
+        file: 'trips.txt',
+        ids: { trip_id: trip.id, shape_id: trip.shapeId },
+        detail: `trip ${trip.id}: shape_id ${trip.shapeId} is not in shapes.txt`,
+      });
+    }
+    if (!services.has(trip.serviceId)) {
+      add('dangling-reference', {
+        file: 'trips.txt',
+        ids: { trip_id: trip.id, service_id: trip.serviceId },
+        detail: `trip ${trip.id}: service_id ${trip.serviceId} is in neither calendar.txt nor calendar_dates.txt`,
+      });
+    }
+  }
+  const agencyIds = new Set(feed.agencies.map((a) => a.id).filter(Boolean));
+  if (agencyIds.size > 0) {
+    for (const r of feed.routes.values()) {
+      if (r.agencyId && !agencyIds.has(r.agencyId)) {
+        add('dangling-reference', {
+          file: 'routes.txt',
+          ids: { route_id: r.id, agency_id: r.agencyId },
+          detail: `route ${r.id}: agency_id ${r.agencyId} is not in agency.txt`,
+        });
+      }
+    }
+  }
+  for (const f of feed.frequencies) {
+    if (!feed.trips.has(f.tripId)) {
+      add('dangling-reference', {
+        file: 'frequencies.txt',
+        ids: { trip_id: f.tripId },
+        detail: `frequencies.txt: trip_id ${f.tripId} is not in trips.txt`,
+      });
+    }
+  }
+  for (const w of feed.warnings) {
+    if (!DANGLING_WARNING.test(w.code)) continue;
+    const where = w.examples[0] ?? '';
+    const m = /^([^:\s]+\.txt)(?::(\d+))?/.exec(where);
+    add(
+      'dangling-reference',
+      { file: m?.[1] ?? '', line: m?.[2] ? Number(m[2]) : undefined, ids: { warning: w.code }, detail: `${w.message} (${w.count}x${where ? ', e.g. ' + where : ''})` },
+      w.count,
+    );
+  }
+}
