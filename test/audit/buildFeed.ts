@@ -1,0 +1,156 @@
+// Test helper: builds a Feed and a PatternSet by hand, so the checks can be tested without the reader.
+// Patterns here are one per trip, with straight-line distances unless a shape offset is given.
+
+import type { Feed, Stop, Trip, TripStopTimes, Shape, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
+import type { Pattern, PatternSet } from '../../src/network/types.js';
+import type { FeedWarning } from '../../src/common/warnings.js';
+import { haversineM } from '../../src/audit/check.js';
+
+export interface StopSpec {
+  id: string;
+  lat: number;
+  lon: number;
+  name?: string;
+  parentStation?: string;
+  locationType?: number;
+}
+export interface TripSpec {
+  id: string;
+  routeId?: string;
+  serviceId?: string;
+  shapeId?: string;
+  directionId?: number;
+  /** [stop_id, arrival s, departure s, shape_dist_traveled?] */
+  times: [string, number, number, number?][];
+  timepoint?: boolean; // default true
+}
+export interface FeedSpec {
+  stops: StopSpec[];
+  trips: TripSpec[];
+  routes?: Partial<Route>[];
+  shapes?: { id: string; pts: [number, number][]; dist?: number[] }[];
+  calendar?: CalendarRow[];
+  calendarDates?: CalendarDate[];
+  warnings?: FeedWarning[];
+  offsets?: Record<string, number>; // stop_id -> offset from shape, metres
+  version?: string;
+}
+
+/** A straight east-west street in Vellmoor: stop k at 400 m * k east of the origin. */
+export function street(n: number, spacingM = 400, prefix = 'S'): StopSpec[] {
+  const lat = 52.37;
+  const mPerDegLon = haversineM(lat, 0, lat, 1);
+  return Array.from({ length: n }, (_, k) => ({ id: `${prefix}${k + 1}`, lat, lon: 4.9 + (k * spacingM) / mPerDegLon, name: `Vellmoor ${prefix}${k + 1}` }));
+}
+
+export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } {
+  const stops: Stop[] = spec.stops.map((s) => ({
+    id: s.id,
+    code: '',
+    name: s.name ?? s.id,
+    lat: s.lat,
+    lon: s.lon,
+    locationType: s.locationType ?? 0,
+    parentStation: s.parentStation ?? '',
+  }));
+  const stopIndex = new Map(stops.map((s, i) => [s.id, i]));
+  const routes = new Map<string, Route>();
+  for (const r of spec.routes ?? [{ id: 'R1' }]) {
+    routes.set(r.id!, { id: r.id!, agencyId: r.agencyId ?? '', shortName: r.shortName ?? r.id!, longName: r.longName ?? '', type: r.type ?? 3 });
+  }
+  const trips = new Map<string, Trip>();
+  const stopTimes = new Map<string, TripStopTimes>();
+  for (const t of spec.trips) {
+    trips.set(t.id, {
+      id: t.id,
+      routeId: t.routeId ?? 'R1',
+      serviceId: t.serviceId ?? 'WK',
+      directionId: t.directionId ?? 0,
+      headsign: 'Vellmoor Centraal',
+      shapeId: t.shapeId ?? '',
+    });
+    const n = t.times.length;
+    stopTimes.set(t.id, {
+      stopIdx: Int32Array.from(t.times.map((x) => stopIndex.get(x[0]) ?? -1)),
+      seq: Int32Array.from(t.times.map((_, i) => i + 1)),
+      arrS: Int32Array.from(t.times.map((x) => x[1])),
+      depS: Int32Array.from(t.times.map((x) => x[2])),
+      shapeDist: Float64Array.from(t.times.map((x) => (x[3] === undefined ? NaN : x[3]))),
+      timepoint: new Uint8Array(n).fill(t.timepoint === false ? 0 : 1),
+      noService: new Uint8Array(n),
+    });
+  }
+  const shapes = new Map<string, Shape>();
+  for (const s of spec.shapes ?? []) {
+    shapes.set(s.id, {
+      id: s.id,
+      lat: Float64Array.from(s.pts.map((p) => p[0])),
+      lon: Float64Array.from(s.pts.map((p) => p[1])),
+      dist: Float64Array.from(s.dist ?? s.pts.map(() => NaN)),
+    });
+  }
+  const feed: Feed = {
+    source: 'vellmoor-test',
+    date: null,
+    contentHash: 'h' + spec.stops.length,
+    agencies: [{ id: 'VT', name: 'Vellmoor Transit', timezone: 'Europe/Amsterdam' }],
+    routes,
+    stops,
+    stopIndex,
+    trips,
+    stopTimes,
+    shapes,
+    calendar: spec.calendar ?? [{ serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' }],
+    calendarDates: spec.calendarDates ?? [],
+    frequencies: [],
+    feedInfo: { publisherName: 'Vellmoor Transit', version: spec.version ?? 'v1', startDate: '', endDate: '' },
+    warnings: spec.warnings ?? [],
+    rowCounts: {},
+  };
+  const patterns: Pattern[] = spec.trips.map((t, k) => {
+    const idx = t.times.map((x) => stopIndex.get(x[0]) ?? -1);
+    const dist = [0];
+    for (let i = 1; i < idx.length; i++) {
+      const a = stops[idx[i - 1]];
+      const b = stops[idx[i]];
+      dist.push(dist[i - 1] + haversineM(a.lat, a.lon, b.lat, b.lon));
+    }
+    const gapRunTimeS = t.times.slice(1).map((x, i) => x[1] - t.times[i][2]);
+    return {
+      id: `${t.routeId ?? 'R1'}:${t.directionId ?? 0}:${k + 1}`,
+      routeId: t.routeId ?? 'R1',
+      directionId: t.directionId ?? 0,
+      headsign: 'Vellmoor Centraal',
+      shapeId: t.shapeId ?? '',
+      tripIds: [t.id],
+      tripsPerDay: 1,
+      nominalFrequencyTrips: 0,
+      stopIdx: idx,
+      distAlongM: dist,
+      offsetFromShapeM: t.times.map((x) => (t.shapeId ? spec.offsets?.[x[0]] ?? 0 : null)),
+      distanceSource: t.shapeId ? 'shape_projection' : 'great_circle',
+      lengthM: dist[dist.length - 1],
+      passengerStop: idx.map(() => true),
+      timepoint: idx.map(() => t.timepoint !== false),
+      gapRunTimeS,
+      gapTimeInterpolated: gapRunTimeS.map(() => false),
+      runTimeS: t.times[t.times.length - 1][1] - t.times[0][2],
+      scheduledDwellS: t.times.map((x) => x[2] - x[1]),
+      path: [],
+    };
+  });
+  const routesAtStop = new Map<number, Set<string>>();
+  for (const p of patterns) for (const i of p.stopIdx) (routesAtStop.get(i) ?? routesAtStop.set(i, new Set()).get(i)!).add(p.routeId);
+  return { feed, patterns: { date: '2026-10-14', patterns, routesAtStop } };
+}
+
+/** A clean one-route feed on the Vellmoor street: 5 stops 400 m apart, 60 s per gap (24 km/h), a shape. */
+export function cleanSpec(): FeedSpec {
+  const stops = street(5);
+  const times: [string, number, number, number?][] = stops.map((s, k) => [s.id, 28800 + 60 * k, 28800 + 60 * k, 400 * k]);
+  return {
+    stops,
+    trips: [{ id: 'T1', shapeId: 'SH1', times }],
+    shapes: [{ id: 'SH1', pts: stops.map((s) => [s.lat, s.lon] as [number, number]), dist: stops.map((_, k) => 400 * k) }],
+  };
+}
