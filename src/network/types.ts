@@ -1,6 +1,8 @@
 // Route patterns: trips sharing route_id, direction_id and the ordered list of stop_ids, with the
 // distance of each stop along the pattern's path and the scheduled run time of each gap.
 
+import type { ShapeDistUnitFit } from './shapeDistUnit.js';
+
 export type DistanceSource = 'shape_dist_traveled' | 'shape_projection' | 'great_circle';
 
 export interface Pattern {
@@ -25,13 +27,24 @@ export interface Pattern {
   runTimeS: number; // first departure to last arrival, median over trips
   /** Dwell scheduled at each stop (departure - arrival), median over trips, seconds. */
   scheduledDwellS: number[];
-  /** Projected shape path (lon, lat pairs) for maps, simplified; empty without a shape. */
+  /** Shape path (lon, lat pairs) for maps, simplified (Douglas-Peucker, about 5 m); the stops' coordinates without a shape. */
   path: [number, number][];
 }
 
 export interface PatternSet {
   date: string; // YYYY-MM-DD analysis date
   patterns: Pattern[];
-  /** How many patterns each stop index belongs to (on the analysis date). */
+  /** For each stop index, the route_ids of the patterns serving it on the analysis date (transfer detection). */
   routesAtStop: Map<number, Set<string>>;
+  /** The inferred unit of shape_dist_traveled; null when the shapes in use carry none. */
+  shapeDistUnit?: ShapeDistUnitFit | null;
+  /** Trips whose shape_dist_traveled decreases (the check stage reports 'distance-backtrack'). */
+  distanceBacktracks?: DistanceBacktrack[];
+}
+
+/** A trip whose shape_dist_traveled decreases at stop index stopIndex; its pattern fell back to projection. */
+export interface DistanceBacktrack {
+  patternId: string;
+  tripId: string;
+  stopIndex: number;
 }

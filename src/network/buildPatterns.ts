@@ -1,0 +1,347 @@
+// Route patterns of a feed on the analysis date: trips with the same route_id, direction_id and ordered
+// stop_id list, with trips per day, the distance of each stop along the pattern's path, and the scheduled
+// run time of each gap. Distances prefer shape_dist_traveled (unit inferred), then forward projection onto
+// the shape, then great-circle between consecutive stops; the choice is recorded per pattern.
+
+import type { Feed, TripStopTimes } from '../gtfs/types.js';
+import type { OnProgress } from '../common/progress.js';
+import { WarningSink } from '../common/warnings.js';
+import { StopspanError } from '../common/errors.js';
+import type { DistanceSource, Pattern, PatternSet, DistanceBacktrack } from './types.js';
+import { haversineM } from './geodesy.js';
+import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
+import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
+import { simplifyPath } from './simplifyPath.js';
+import { tripsOnDate, type TripInstances } from './tripsOnDate.js';
+
+export interface BuildPatternsOptions {
+  /** Analysis date YYYY-MM-DD; defaults to feed.date. */
+  date?: string;
+  /** Only these route_ids. */
+  routes?: string[];
+  onProgress?: OnProgress;
+  warnings?: WarningSink;
+  /** Tolerance of the simplified map path, metres. */
+  pathToleranceM?: number;
+}
+
+interface Group {
+  routeId: string;
+  directionId: number;
+  stopIdx: Int32Array;
+  tripIds: string[];
+}
+
+/**
+ * Groups the trips running on the analysis date into patterns and measures them.
+ * @example const set = buildPatterns(feed, { date: '2026-10-14' }); set.patterns[0].distAlongM
+ */
+export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): PatternSet {
+  const { date = feed.date ?? undefined, routes, onProgress, warnings = new WarningSink(), pathToleranceM = 5 } = options;
+  if (date === undefined) {
+    throw new StopspanError('bad-option', 'invalid option date: expected YYYY-MM-DD (the feed was read without a date), got nothing');
+  }
+  if (feed.date !== null && feed.date !== date) {
+    throw new StopspanError('bad-option', `invalid option date: expected the date the feed was read for (${feed.date}), got ${date}`, { value: date });
+  }
+  let routeSet: Set<string> | null = null;
+  if (routes !== undefined) {
+    routeSet = new Set(routes);
+    for (const r of routeSet) {
+      if (!feed.routes.has(r)) throw new StopspanError('bad-option', `invalid option routes: expected route_ids of the feed, got ${r}`, { value: r });
+    }
+  }
+  if (!(pathToleranceM >= 0)) throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);
+
+  const instances = tripsOnDate(feed, date);
+
+  // 1. Group trips by (route, direction, ordered stop list).
+  const groups = new Map<string, Group>();
+  for (const [tripId, st] of feed.stopTimes) {
+    if (!instances.has(tripId)) continue;
+    const trip = feed.trips.get(tripId);
+    if (!trip) continue;
+    if (routeSet && !routeSet.has(trip.routeId)) continue;
+    if (st.stopIdx.length < 2) {
+      warnings.add('trip-too-short', 'trip with fewer than two stop_times left out of the patterns', tripId);
+      continue;
+    }
+    const key = `${trip.routeId}\u0000${trip.directionId}\u0000${st.stopIdx.join(',')}`;
+    let g = groups.get(key);
+    if (!g) {
+      g = { routeId: trip.routeId, directionId: trip.directionId, stopIdx: st.stopIdx, tripIds: [] };
+      groups.set(key, g);
+    }
+    g.tripIds.push(tripId);
+  }
+  if (groups.size === 0) {
+    throw new StopspanError('empty-feed', `no trips with stop_times run on ${date}${routeSet ? ' on the routes asked for' : ''}`, { value: date });
+  }
+
+  // 2. Trips per day and stable ids: n by trips per day descending, ties by first trip id.
+  const drafts = [...groups.values()].map((g) => {
+    g.tripIds.sort(cmp);
+    let tripsPerDay = 0;
+    let nominal = 0;
+    for (const t of g.tripIds) {
+      const inst = instances.get(t) as TripInstances;
+      tripsPerDay += inst.count;
+      nominal += inst.nominal;
+    }
+    return { g, tripsPerDay, nominal, id: '' };
+  });
+  const byRouteDir = new Map<string, typeof drafts>();
+  for (const d of drafts) {
+    const k = `${d.g.routeId}\u0000${d.g.directionId}`;
+    const list = byRouteDir.get(k) ?? [];
+    list.push(d);
+    byRouteDir.set(k, list);
+  }
+  for (const list of byRouteDir.values()) {
+    list.sort((a, b) => b.tripsPerDay - a.tripsPerDay || cmp(a.g.tripIds[0], b.g.tripIds[0]));
+    list.forEach((d, i) => {
+      d.id = `${d.g.routeId}:${d.g.directionId < 0 ? '' : d.g.directionId}:${i + 1}`;
+    });
+  }
+  drafts.sort((a, b) => cmp(a.g.routeId, b.g.routeId) || a.g.directionId - b.g.directionId || cmp(a.id, b.id));
+
+  // 3. Representative shapes, and the unit of shape_dist_traveled over the shapes in use.
+  const shapeOf = new Map<(typeof drafts)[number], string>();
+  const prepared = new Map<string, PreparedShape>();
+  for (const d of drafts) {
+    const counts = new Map<string, number>();
+    for (const t of d.g.tripIds) {
+      const sid = feed.trips.get(t)!.shapeId;
+      if (sid === '') continue;
+      if (!feed.shapes.has(sid)) {
+        warnings.add('unknown-shape', 'trip names a shape_id that shapes.txt lacks; straight lines used', `${t} shape_id ${sid}`);
+        continue;
+      }
+      counts.set(sid, (counts.get(sid) ?? 0) + (instances.get(t) as TripInstances).count);
+    }
+    const shapeId = mostCommon(counts);
+    shapeOf.set(d, shapeId);
+    if (shapeId !== '' && !prepared.has(shapeId)) {
+      const s = feed.shapes.get(shapeId)!;
+      if (s.lat.length >= 2) prepared.set(shapeId, prepareShape(s));
+    }
+  }
+  const unitSamples: { distRange: number; lengthM: number }[] = [];
+  const shapeRatio = new Map<string, number>();
+  for (const [sid, ps] of prepared) {
+    const dist = feed.shapes.get(sid)!.dist;
+    const [i0, i1] = finiteEnds(dist);
+    if (i0 < 0 || i1 <= i0) continue;
+    const sample = { distRange: dist[i1] - dist[i0], lengthM: ps.cumM[i1] - ps.cumM[i0] };
+    if (sample.distRange > 0 && sample.lengthM > 0) {
+      unitSamples.push(sample);
+      shapeRatio.set(sid, sample.lengthM / sample.distRange);
+    }
+  }
+  const unitFit = inferShapeDistUnit(unitSamples);
+  if (unitFit) {
+    if (unitFit.unit === 'scale') {
+      warnings.add('shape-dist-unit-unknown', `shape_dist_traveled matches no known unit; read as ${unitFit.metresPerUnit.toPrecision(4)} m per unit`);
+    } else if (unitFit.poorFit) {
+      warnings.add('shape-dist-unit-poor-fit', `shape_dist_traveled read as ${unitFit.unit}, but shapes are ${(unitFit.misfit * 100).toFixed(1)} % off that on the median`);
+    }
+    for (const [sid, r] of shapeRatio) {
+      if (Math.abs(Math.log(r / unitFit.metresPerUnit)) > Math.log(1.1)) {
+        warnings.add('shape-dist-mismatch', 'shape whose shape_dist_traveled range is more than 10 % off its geometric length', sid);
+      }
+    }
+  }
+
+  // 4. Measure each pattern.
+  const patterns: Pattern[] = [];
+  const backtracks: DistanceBacktrack[] = [];
+  const routesAtStop = new Map<number, Set<string>>();
+  let projectionFallbacks = 0;
+  let done = 0;
+  for (const d of drafts) {
+    const { g } = d;
+    const shapeId = shapeOf.get(d)!;
+    const n = g.stopIdx.length;
+    const repTripId = g.tripIds.find((t) => feed.trips.get(t)!.shapeId === shapeId) ?? g.tripIds[0];
+    const rep = feed.stopTimes.get(repTripId)!;
+    const stops = Array.from(g.stopIdx, (i) => feed.stops[i]);
+
+    let distanceSource: DistanceSource;
+    let distAlongM: number[];
+    let offsetFromShapeM: (number | null)[];
+    let path: [number, number][];
+    const ps = shapeId !== '' ? prepared.get(shapeId) : undefined;
+    if (ps) {
+      const proj = projectAlongShape(ps, stops);
+      projectionFallbacks += proj.fallbacks;
+      offsetFromShapeM = proj.offsetM;
+      distAlongM = proj.distAlongM.map((v) => v - proj.distAlongM[0]);
+      distanceSource = 'shape_projection';
+      if (unitFit) {
+        let usable = true;
+        for (const t of g.tripIds) {
+          const bt = firstBacktrack(feed.stopTimes.get(t)!.shapeDist);
+          if (bt >= 0) {
+            usable = false;
+            backtracks.push({ patternId: d.id, tripId: t, stopIndex: bt });
+            warnings.add('distance-backtrack', 'shape_dist_traveled decreases along a trip; the pattern is measured by projection instead', `${t} stop ${bt}`);
+          }
+        }
+        const metres = usable ? shapeDistToMetres(rep.shapeDist, unitFit.metresPerUnit) : null;
+        if (metres) {
+          distAlongM = metres;
+          distanceSource = 'shape_dist_traveled';
+        } else if (usable && Number.isFinite(distRange(rep.shapeDist))) {
+          warnings.add('partial-shape-dist', 'trip with shape_dist_traveled on some stops only; the pattern is measured by projection', repTripId);
+        }
+      }
+      path = simplifyPath(ps.lat, ps.lon, { toleranceM: pathToleranceM });
+    } else {
+      distanceSource = 'great_circle';
+      warnings.add('pattern-without-shape', 'pattern without a usable shape; distances are straight lines between stops', d.id);
+      distAlongM = [0];
+      for (let i = 1; i < n; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
+      offsetFromShapeM = new Array(n).fill(null);
+      path = stops.map((s) => [s.lon, s.lat] as [number, number]);
+    }
+
+    const times = scheduledTimes(g.tripIds.map((t) => feed.stopTimes.get(t)!), distAlongM, warnings, g.tripIds);
+
+    const headCounts = new Map<string, number>();
+    for (const t of g.tripIds) {
+      const h = feed.trips.get(t)!.headsign;
+      headCounts.set(h, (headCounts.get(h) ?? 0) + 1);
+    }
+    for (let i = 0; i < n; i++) {
+      let set = routesAtStop.get(g.stopIdx[i]);
+      if (!set) routesAtStop.set(g.stopIdx[i], (set = new Set()));
+      set.add(g.routeId);
+    }
+    patterns.push({
+      id: d.id,
+      routeId: g.routeId,
+      directionId: g.directionId,
+      headsign: mostCommon(headCounts),
+      shapeId: ps ? shapeId : '',
+      tripIds: g.tripIds,
+      tripsPerDay: d.tripsPerDay,
+      nominalFrequencyTrips: d.nominal,
+      stopIdx: Array.from(g.stopIdx),
+      distAlongM,
+      offsetFromShapeM,
+      distanceSource,
+      lengthM: distAlongM[n - 1],
+      passengerStop: Array.from(rep.noService, (v) => v !== 1),
+      timepoint: Array.from(rep.timepoint, (v) => v === 1),
+      gapRunTimeS: times.gapRunTimeS,
+      gapTimeInterpolated: times.gapTimeInterpolated,
+      runTimeS: times.runTimeS,
+      scheduledDwellS: times.scheduledDwellS,
+      path,
+    });
+    done++;
+    if (onProgress && (done % 50 === 0 || done === drafts.length)) onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
+  }
+  if (projectionFallbacks > 0) {
+    warnings.add('projection-fallback', 'stops with no close match on their shape near the previous stop; the rest of the shape was searched', undefined, projectionFallbacks);
+  }
+  return { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
+}
+
+/** Scheduled run time per gap, dwell per stop and whole run time: medians over the pattern's trips. */
+function scheduledTimes(
+  trips: TripStopTimes[],
+  distAlongM: number[],
+  warnings: WarningSink,
+  tripIds: string[],
+): { gapRunTimeS: number[]; gapTimeInterpolated: boolean[]; runTimeS: number; scheduledDwellS: number[] } {
+  const n = distAlongM.length;
+  const gapSamples: number[][] = Array.from({ length: n - 1 }, () => []);
+  const dwellSamples: number[][] = Array.from({ length: n }, () => []);
+  const runSamples: number[] = [];
+  const interpolated = new Array<boolean>(n - 1).fill(false);
+  const arr = new Float64Array(n);
+  const dep = new Float64Array(n);
+  const filled = new Uint8Array(n);
+  trips.forEach((st, k) => {
+    for (let i = 0; i < n; i++) {
+      const a = st.arrS[i];
+      const dd = st.depS[i];
+      arr[i] = a >= 0 ? a : dd;
+      dep[i] = dd >= 0 ? dd : a;
+      filled[i] = 0;
+    }
+    // Interpolate blank stops by distance between the surrounding timed stops.
+    let prev = -1;
+    for (let i = 0; i < n; i++) {
+      if (arr[i] < 0) continue;
+      if (prev >= 0 && i > prev + 1) {
+        const t0 = dep[prev];
+        const t1 = arr[i];
+        const span = distAlongM[i] - distAlongM[prev];
+        for (let j = prev + 1; j < i; j++) {
+          const f = span > 0 ? (distAlongM[j] - distAlongM[prev]) / span : (j - prev) / (i - prev);
+          arr[j] = dep[j] = t0 + f * (t1 - t0);
+          filled[j] = 1;
+        }
+      }
+      prev = i;
+    }
+    let untimed = false;
+    for (let i = 0; i < n; i++) {
+      if (arr[i] < 0) untimed = true;
+    }
+    if (untimed) {
+      warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds[k]);
+      return;
+    }
+    for (let i = 0; i < n - 1; i++) {
+      gapSamples[i].push(arr[i + 1] - dep[i]);
+      if (filled[i] || filled[i + 1]) interpolated[i] = true;
+    }
+    for (let i = 0; i < n; i++) dwellSamples[i].push(dep[i] - arr[i]);
+    runSamples.push(arr[n - 1] - dep[0]);
+  });
+  return {
+    gapRunTimeS: gapSamples.map(median),
+    gapTimeInterpolated: interpolated,
+    runTimeS: median(runSamples),
+    scheduledDwellS: dwellSamples.map(median),
+  };
+}
+
+function median(xs: number[]): number {
+  if (xs.length === 0) return NaN;
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** Most frequent key; ties go to the smallest key so the choice is stable. '' for an empty map. */
+function mostCommon(counts: Map<string, number>): string {
+  let best = '';
+  let bestN = -1;
+  for (const [k, c] of counts) {
+    if (c > bestN || (c === bestN && cmp(k, best) < 0)) {
+      best = k;
+      bestN = c;
+    }
+  }
+  return best;
+}
+
+function finiteEnds(dist: ArrayLike<number>): [number, number] {
+  let i0 = -1;
+  let i1 = -1;
+  for (let i = 0; i < dist.length; i++) {
+    if (Number.isFinite(dist[i])) {
+      if (i0 < 0) i0 = i;
+      i1 = i;
+    }
+  }
+  return [i0, i1];
+}
+
+function cmp(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}

@@ -1,0 +1,8 @@
+// The network stage: route patterns and distances along the path.
+export * from './types.js';
+export * from './geodesy.js';
+export * from './alongShape.js';
+export * from './shapeDistUnit.js';
+export * from './simplifyPath.js';
+export * from './tripsOnDate.js';
+export * from './buildPatterns.js';
