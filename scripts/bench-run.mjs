@@ -1,0 +1,125 @@
+#!/usr/bin/env node
+// One benchmark measurement, run in its own process so that its peak memory is that of the measured
+// work alone. scripts/bench.mjs starts this once per measurement and reads the figures it leaves behind.
+//
+//   node scripts/bench-run.mjs inflate FEED.zip          floor (a): inflate stop_times.txt, count its lines
+//   node scripts/bench-run.mjs csv FEED.zip              floor (b): the project's CSV reader over stop_times.txt
+//   node scripts/bench-run.mjs audit FEED.zip OUT_DIR    the full `stopspan audit FEED --out OUT_DIR --force`
+//
+// On exit the process writes one JSON object to the file named by $BENCH_RESULT (or to stdout when unset):
+// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, exitCode, error }. wallMs counts from the start of
+// the process (performance.timeOrigin), so node's own start-up is included in every measurement alike.
+
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { performance } from 'node:perf_hooks';
+import yauzl from 'yauzl';
+
+const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const [mode, feed, outDir] = process.argv.slice(2);
+
+let rows = null;
+let error = null;
+
+process.on('exit', (code) => {
+  const ru = process.resourceUsage(); // user/system CPU in microseconds, maxRSS in kilobytes
+  const result = {
+    mode,
+    rows,
+    wallMs: performance.now(),
+    userMs: ru.userCPUTime / 1000,
+    sysMs: ru.systemCPUTime / 1000,
+    cpuMs: (ru.userCPUTime + ru.systemCPUTime) / 1000,
+    maxRssMB: ru.maxRSS / 1024,
+    exitCode: code,
+    error,
+  };
+  const text = JSON.stringify(result) + '\n';
+  if (process.env.BENCH_RESULT) fs.writeFileSync(process.env.BENCH_RESULT, text);
+  else process.stdout.write(text);
+});
+
+/** Opens stop_times.txt of a zip (or of a folder) as a stream of inflated bytes. */
+function openStopTimes(feedPath) {
+  if (fs.statSync(feedPath).isDirectory()) {
+    return Promise.resolve(fs.createReadStream(path.join(feedPath, 'stop_times.txt')));
+  }
+  return new Promise((resolve, reject) => {
+    yauzl.open(feedPath, { lazyEntries: true, autoClose: true }, (err, zip) => {
+      if (err) return reject(err);
+      let found = false;
+      zip.on('entry', (entry) => {
+        if (path.posix.basename(entry.fileName) !== 'stop_times.txt') return zip.readEntry();
+        found = true;
+        zip.openReadStream(entry, (e, stream) => (e ? reject(e) : resolve(stream)));
+      });
+      zip.on('end', () => {
+        if (!found) reject(new Error(`${feedPath}: no stop_times.txt`));
+      });
+      zip.on('error', reject);
+      zip.readEntry();
+    });
+  });
+}
+
+/** Floor (a): inflate stop_times.txt and count its lines; rows = lines less the header. */
+async function inflateAndCount(feedPath) {
+  const stream = await openStopTimes(feedPath);
+  let lines = 0;
+  let last = 10;
+  for await (const chunk of stream) {
+    let i = chunk.indexOf(10);
+    while (i !== -1) {
+      lines++;
+      i = chunk.indexOf(10, i + 1);
+    }
+    if (chunk.length) last = chunk[chunk.length - 1];
+  }
+  if (last !== 10) lines++; // a final line without its newline
+  return lines - 1;
+}
+
+/**
+ * Floor (b): the project's CSV reader alone over stop_times.txt, counting the rows it yields. The reader
+ * (dist/gtfs/csv.js) is used through whichever of its documented entry points is present.
+ */
+async function csvReaderCount(feedPath) {
+  const csvPath = path.join(repoDir, 'dist/gtfs/csv.js');
+  if (!fs.existsSync(csvPath)) throw new Error('dist/gtfs/csv.js is not built yet');
+  const csv = await import(pathToFileURL(csvPath).href);
+  const stream = await openStopTimes(feedPath);
+  return countWithReader(csv, stream);
+}
+
+async function countWithReader(csv, stream) {
+  const fn = csv.readCsv ?? csv.csvRows ?? csv.parseCsv ?? csv.readCsvRows;
+  if (typeof fn !== 'function') {
+    throw new Error(`dist/gtfs/csv.js exports none of the entry points the benchmark knows: ${Object.keys(csv).join(', ')}`);
+  }
+  let n = 0;
+  for await (const _row of fn(stream, { file: 'stop_times.txt' })) n++;
+  return n;
+}
+
+/** The full audit, exactly as a user runs it, in this process. */
+async function audit(feedPath, out) {
+  const mainPath = path.join(repoDir, 'dist/cli/main.js');
+  if (!fs.existsSync(mainPath)) throw new Error('dist/cli/main.js is not built');
+  process.argv = [process.argv[0], mainPath, 'audit', feedPath, '--out', out, '--force'];
+  await import(pathToFileURL(mainPath).href);
+  // main.js runs the command when imported; the figures are taken when the process exits.
+}
+
+try {
+  if (!feed) throw new Error('usage: bench-run.mjs inflate|csv|audit FEED [OUT_DIR]');
+  if (mode === 'inflate') rows = await inflateAndCount(feed);
+  else if (mode === 'csv') rows = await csvReaderCount(feed);
+  else if (mode === 'audit') {
+    if (!outDir) throw new Error('audit needs an output folder');
+    await audit(feed, outDir);
+  } else throw new Error(`unknown mode ${JSON.stringify(mode)}`);
+} catch (e) {
+  error = String(e?.message ?? e);
+  process.exitCode = 3;
+}

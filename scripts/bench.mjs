@@ -1,0 +1,345 @@
+#!/usr/bin/env node
+// The benchmark (`npm run bench`): wall time, CPU time and peak memory of a full `stopspan audit` on the
+// real feeds and on a scaling series of the demo city, against two floors measured in the same run:
+// (a) inflating stop_times.txt and counting its lines, (b) the project's CSV reader alone over it. Each
+// measurement runs in its own process (scripts/bench-run.mjs), several times; medians are reported, with
+// the targets as PASS/FAIL. Not a test: nothing here is asserted, figures are printed and saved.
+//
+//   node scripts/bench.mjs [--runs 3] [--feeds DIR] [--only real|scaled|NAME,...] [--no-build]
+//   node scripts/bench.mjs --profile FEED [--top 20]     CPU profile of one audit, hottest functions first
+//
+// Figures are also written to bench-out/bench-results.json and bench-out/bench-results.md.
+
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { spawn, spawnSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+
+const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const benchOut = path.join(repoDir, 'bench-out');
+const runner = path.join(repoDir, 'scripts/bench-run.mjs');
+const mainJs = path.join(repoDir, 'dist/cli/main.js');
+
+/** The targets of the benchmark (issue 8). */
+const TARGETS = {
+  bigFeed: 'nyct-bus-manhattan', // the feed the time and memory targets apply to
+  maxRatioToInflate: 3, // full audit wall time within 3x floor (a)
+  maxPeakMB: 400, // peak memory (max RSS) of the full audit
+  maxPerRowRatio16x: 1.2, // time per stop_times row at 16x over that at 1x
+  // Memory must not grow with stop_times rows. Keeping them at all, even in the contract's compact
+  // per-trip typed arrays (4+4+4+4+8+1+1 = 26 bytes a row), costs more than this per added row.
+  maxBytesPerAddedRow: 16,
+};
+
+/** The files `stopspan audit` must write (the output contract). */
+const OUTPUTS = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
+
+function parseArgs(argv) {
+  const opts = { runs: 3, feeds: null, only: null, build: true, profile: null, top: 20 };
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    const v = argv[i + 1];
+    if (a === '--runs') (opts.runs = Number(v)), i++;
+    else if (a === '--feeds') (opts.feeds = v), i++;
+    else if (a === '--only') (opts.only = v.split(',')), i++;
+    else if (a === '--no-build') opts.build = false;
+    else if (a === '--profile') (opts.profile = v), i++;
+    else if (a === '--top') (opts.top = Number(v)), i++;
+    else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --profile or --top`);
+  }
+  if (!Number.isInteger(opts.runs) || opts.runs < 1) throw new Error(`invalid option --runs: expected a whole number >= 1, got ${opts.runs}`);
+  return opts;
+}
+
+function log(s = '') {
+  process.stdout.write(s + '\n');
+}
+
+function note(s) {
+  process.stderr.write(s + '\n');
+}
+
+/** The folder of the real feeds: $STOPSPAN_FEEDS, else ../shared/feeds beside the repository. */
+function feedsDir(opt) {
+  return path.resolve(opt ?? process.env.STOPSPAN_FEEDS ?? path.join(repoDir, '../shared/feeds'));
+}
+
+function build() {
+  const tsc = path.join(repoDir, 'node_modules/typescript/bin/tsc');
+  const r = spawnSync(process.execPath, [tsc, '-p', 'tsconfig.json'], { cwd: repoDir, encoding: 'utf8' });
+  if (r.status !== 0) note(`bench: tsc reported errors (dist/ may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
+}
+
+/** Runs one measurement in a child process; resolves to its figures plus the wall time seen from here. */
+function measure(mode, feed, outDir) {
+  const resultFile = path.join(os.tmpdir(), `stopspan-bench-${process.pid}-${Date.now()}-${Math.random().toString(36).slice(2)}.json`);
+  const args = [runner, mode, feed, ...(outDir ? [outDir] : [])];
+  return new Promise((resolve) => {
+    const t0 = process.hrtime.bigint();
+    const child = spawn(process.execPath, args, {
+      cwd: repoDir,
+      env: { ...process.env, BENCH_RESULT: resultFile },
+      stdio: ['ignore', 'ignore', 'pipe'],
+    });
+    let stderr = '';
+    child.stderr.on('data', (c) => {
+      stderr = (stderr + c).slice(-4000);
+    });
+    child.on('close', (status) => {
+      const wallMs = Number(process.hrtime.bigint() - t0) / 1e6;
+      let r = { mode, error: `no figures (exit ${status})` };
+      try {
+        r = JSON.parse(fs.readFileSync(resultFile, 'utf8'));
+        fs.rmSync(resultFile, { force: true });
+      } catch {
+        /* the child died before writing its figures */
+      }
+      if (!r.error && r.exitCode !== 0) r.error = `exit ${r.exitCode}: ${stderr.trim().split('\n').slice(-3).join(' | ')}`;
+      resolve({ ...r, wallMs, innerWallMs: r.wallMs, stderr });
+    });
+  });
+}
+
+function median(xs) {
+  const s = xs.filter((x) => typeof x === 'number' && Number.isFinite(x)).sort((a, b) => a - b);
+  if (!s.length) return NaN;
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** Median figures of one measure over its runs; an error in any run makes the whole measure an error. */
+function summarise(runs) {
+  const failed = runs.find((r) => r.error);
+  if (failed) return { error: failed.error, runs: runs.length };
+  return {
+    runs: runs.length,
+    rows: runs[0].rows,
+    wallMs: median(runs.map((r) => r.wallMs)),
+    cpuMs: median(runs.map((r) => r.cpuMs)),
+    maxRssMB: median(runs.map((r) => r.maxRssMB)),
+    wallMsAll: runs.map((r) => Math.round(r.wallMs)),
+  };
+}
+
+/** Inputs: the real feeds, then the scaling series (generated fresh, deterministic). */
+function collectInputs(opts) {
+  const inputs = [];
+  const want = (kind, name) => !opts.only || opts.only.includes(kind) || opts.only.includes(name);
+  const dir = feedsDir(opts.feeds);
+  if (fs.existsSync(dir)) {
+    const order = ['lirr-rail', 'nyct-subway', 'nyct-bus-manhattan'];
+    const zips = fs
+      .readdirSync(dir)
+      .filter((f) => f.endsWith('.zip'))
+      .map((f) => f.replace(/\.zip$/, ''))
+      .sort((a, b) => (order.indexOf(a) + 1 || 99) - (order.indexOf(b) + 1 || 99) || a.localeCompare(b));
+    for (const name of zips) if (want('real', name)) inputs.push({ name, kind: 'real', file: path.join(dir, `${name}.zip`) });
+  } else note(`bench: no real feeds at ${dir} (set STOPSPAN_FEEDS); measuring the scaling series only`);
+
+  const demo = path.join(repoDir, 'fixtures/demo/demo-feed.zip');
+  if (!fs.existsSync(demo)) note(`bench: no demo feed at ${demo} (npm run demo:generate); no scaling series`);
+  else if (['demo-x1', 'demo-x4', 'demo-x16'].some((n) => want('scaled', n))) {
+    const r = spawnSync(process.execPath, [path.join(repoDir, 'scripts/make-scaled.mjs'), '--in', demo, '--out', path.join(benchOut, 'scaled'), '--scales', '1,4,16'], { cwd: repoDir, encoding: 'utf8' });
+    if (r.status !== 0) note(`bench: make-scaled failed: ${r.stderr.trim()}`);
+    else {
+      for (const l of r.stdout.trim().split('\n')) {
+        const { scale, file } = JSON.parse(l);
+        const name = `demo-x${scale}`;
+        if (want('scaled', name)) inputs.push({ name, kind: 'scaled', scale, file });
+      }
+    }
+  }
+  return inputs;
+}
+
+/** Measures floors (a), (b) and the audit on one input, interleaving the runs so drift hits all alike. */
+async function benchInput(input, runs) {
+  const raw = { inflate: [], csv: [], audit: [] };
+  let outputsMissing = [];
+  for (let i = 0; i < runs; i++) {
+    raw.inflate.push(await measure('inflate', input.file));
+    raw.csv.push(await measure('csv', input.file));
+    const outDir = fs.mkdtempSync(path.join(os.tmpdir(), `stopspan-bench-${input.name}-`));
+    const a = await measure('audit', input.file, outDir);
+    if (!a.error) {
+      outputsMissing = OUTPUTS.filter((f) => !fs.existsSync(path.join(outDir, f)));
+      if (outputsMissing.length) a.error = `outputs missing: ${outputsMissing.join(', ')}`;
+    }
+    raw.audit.push(a);
+    fs.rmSync(outDir, { recursive: true, force: true });
+    note(`bench: ${input.name} run ${i + 1}/${runs}: inflate ${fmtS(raw.inflate[i].wallMs)} s, csv ${raw.csv[i].error ? 'n/a' : fmtS(raw.csv[i].wallMs) + ' s'}, audit ${a.error ? 'n/a' : fmtS(a.wallMs) + ' s'}`);
+  }
+  const inflate = summarise(raw.inflate);
+  const csv = summarise(raw.csv);
+  const audit = summarise(raw.audit);
+  const rows = inflate.rows ?? null;
+  return { ...input, rows, inflate, csv, audit };
+}
+
+const fmtS = (ms) => (Number.isFinite(ms) ? (ms / 1000).toFixed(2) : 'n/a');
+const fmtMB = (mb) => (Number.isFinite(mb) ? mb.toFixed(0) : 'n/a');
+const fmtInt = (n) => (Number.isFinite(n) ? n.toLocaleString('en-US').replace(/,/g, ' ') : 'n/a');
+const fmtX = (x) => (Number.isFinite(x) ? x.toFixed(2) + 'x' : 'n/a');
+const usPerRow = (m, rows) => (m && !m.error && rows ? (m.wallMs * 1000) / rows : NaN);
+
+function pad(cells, widths, right) {
+  return cells.map((c, i) => (right[i] ? String(c).padStart(widths[i]) : String(c).padEnd(widths[i]))).join('  ').trimEnd();
+}
+
+function printTable(header, rows, right) {
+  const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => String(r[i]).length)));
+  log(pad(header, widths, right));
+  log(widths.map((w) => '-'.repeat(w)).join('  ').trimEnd());
+  for (const r of rows) log(pad(r, widths, right));
+}
+
+function report(results, opts) {
+  const machine = `${os.cpus().length} cores, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${os.platform()} ${os.arch()}`;
+  const date = new Date().toISOString().slice(0, 10);
+  log('');
+  log(`stopspan benchmark, ${date}, ${machine}; median of ${opts.runs} run(s), each in its own process`);
+  log('floor (a): inflate stop_times.txt and count its lines; floor (b): the project CSV reader over stop_times.txt');
+  log('');
+  const rows = [];
+  for (const r of results) {
+    for (const [label, m] of [['floor (a) inflate', r.inflate], ['floor (b) csv', r.csv], ['audit', r.audit]]) {
+      if (m.error) rows.push([r.name, fmtInt(r.rows), label, 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
+      else rows.push([r.name, fmtInt(r.rows), label, fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), label === 'floor (a) inflate' ? '' : fmtX(m.wallMs / r.inflate.wallMs), '']);
+    }
+  }
+  printTable(['input', 'stop_times rows', 'measure', 'wall s', 'CPU s', 'peak MB', 'µs/row', 'x floor a', 'note'], rows, [false, true, false, true, true, true, true, true, false]);
+
+  // Targets.
+  log('');
+  log('targets');
+  const verdicts = [];
+  const pf = (ok) => (ok === null ? 'n/a ' : ok ? 'PASS' : 'FAIL');
+  const big = results.find((r) => r.name === TARGETS.bigFeed);
+  if (big) {
+    const ratio = big.audit.error ? NaN : big.audit.wallMs / big.inflate.wallMs;
+    const okRatio = Number.isFinite(ratio) ? ratio <= TARGETS.maxRatioToInflate : null;
+    const okMem = big.audit.error ? null : big.audit.maxRssMB < TARGETS.maxPeakMB;
+    verdicts.push({ target: 'audit-within-3x-inflate', ok: okRatio, value: ratio });
+    verdicts.push({ target: 'audit-peak-under-400MB', ok: okMem, value: big.audit.maxRssMB });
+    log(`${pf(okRatio)}  ${big.name}: audit wall ${fmtS(big.audit.wallMs)} s = ${fmtX(ratio)} floor (a) ${fmtS(big.inflate.wallMs)} s (target <= ${TARGETS.maxRatioToInflate}x)`);
+    log(`${pf(okMem)}  ${big.name}: audit peak memory ${fmtMB(big.audit.maxRssMB)} MB (target < ${TARGETS.maxPeakMB} MB)`);
+  } else log(`n/a   ${TARGETS.bigFeed}: not measured`);
+
+  const s1 = results.find((r) => r.name === 'demo-x1');
+  const s4 = results.find((r) => r.name === 'demo-x4');
+  const s16 = results.find((r) => r.name === 'demo-x16');
+  if (s1 && s16) {
+    const per1 = usPerRow(s1.audit, s1.rows);
+    const per16 = usPerRow(s16.audit, s16.rows);
+    const ratio = per16 / per1;
+    const okScale = Number.isFinite(ratio) ? ratio <= TARGETS.maxPerRowRatio16x : null;
+    verdicts.push({ target: 'time-per-row-16x-within-1.2x', ok: okScale, value: ratio });
+    log(`${pf(okScale)}  scaling: audit time per stop_times row ${per1.toFixed(2)} µs at 1x, ${s4 ? usPerRow(s4.audit, s4.rows).toFixed(2) + ' µs at 4x, ' : ''}${per16.toFixed(2)} µs at 16x: 16x/1x = ${fmtX(ratio)} (target <= ${TARGETS.maxPerRowRatio16x}x)`);
+    if (s4 && !s4.audit.error && !s16.audit.error && !s1.audit.error) {
+      // The marginal cost per added row shows growth faster than linear, which fixed start-up costs hide.
+      const m14 = ((s4.audit.wallMs - s1.audit.wallMs) * 1000) / (s4.rows - s1.rows);
+      const m416 = ((s16.audit.wallMs - s4.audit.wallMs) * 1000) / (s16.rows - s4.rows);
+      log(`      marginal time per added row: ${m14.toFixed(2)} µs (1x->4x), ${m416.toFixed(2)} µs (4x->16x): ${fmtX(m416 / m14)}; inflate floor marginal ${(((s16.inflate.wallMs - s4.inflate.wallMs) * 1000) / (s16.rows - s4.rows)).toFixed(2)} µs`);
+    }
+    const grewMB = s16.audit.maxRssMB - s1.audit.maxRssMB;
+    const perRowB = (grewMB * 2 ** 20) / (s16.rows - s1.rows);
+    const okMem = Number.isFinite(perRowB) ? perRowB <= TARGETS.maxBytesPerAddedRow : null;
+    verdicts.push({ target: 'memory-not-growing-with-rows', ok: okMem, value: perRowB });
+    log(`${pf(okMem)}  scaling: audit peak memory ${fmtMB(s1.audit.maxRssMB)} MB at 1x, ${s4 ? fmtMB(s4.audit.maxRssMB) + ' MB at 4x, ' : ''}${fmtMB(s16.audit.maxRssMB)} MB at 16x: +${Number.isFinite(grewMB) ? grewMB.toFixed(0) : 'n/a'} MB, ${Number.isFinite(perRowB) ? perRowB.toFixed(1) : 'n/a'} bytes per added stop_times row (target <= ${TARGETS.maxBytesPerAddedRow}: rows not retained)`);
+  } else log('n/a   scaling series: not measured');
+
+  // The README table.
+  const md = [
+    `Measured ${date} on ${machine}; median of ${opts.runs} runs, each in its own process. Floor (a) = inflating stop_times.txt and counting its lines.`,
+    '',
+    '| input | stop_times rows | audit wall | audit CPU | audit peak memory | floor (a) wall | CSV reader wall | audit / floor (a) |',
+    '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |',
+    ...results.map((r) =>
+      r.audit.error
+        ? `| ${r.name} | ${fmtInt(r.rows)} | n/a | n/a | n/a | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | n/a |`
+        : `| ${r.name} | ${fmtInt(r.rows)} | ${fmtS(r.audit.wallMs)} s | ${fmtS(r.audit.cpuMs)} s | ${fmtMB(r.audit.maxRssMB)} MB | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | ${fmtX(r.audit.wallMs / r.inflate.wallMs)} |`,
+    ),
+  ].join('\n');
+  log('');
+  log('README table');
+  log(md);
+  fs.mkdirSync(benchOut, { recursive: true });
+  fs.writeFileSync(path.join(benchOut, 'bench-results.md'), md + '\n');
+  fs.writeFileSync(path.join(benchOut, 'bench-results.json'), JSON.stringify({ date, machine, runs: opts.runs, targets: TARGETS, verdicts, results }, null, 2) + '\n');
+}
+
+/** Self time per function of a .cpuprofile, hottest first, and per file. */
+export function summariseProfile(profile) {
+  const byId = new Map(profile.nodes.map((n) => [n.id, n]));
+  const selfUs = new Map();
+  let totalUs = 0;
+  for (let i = 0; i < profile.samples.length; i++) {
+    const dt = profile.timeDeltas[i + 1] ?? 0; // the time until the next sample belongs to this one
+    selfUs.set(profile.samples[i], (selfUs.get(profile.samples[i]) ?? 0) + dt);
+    totalUs += dt;
+  }
+  const fns = new Map();
+  const files = new Map();
+  for (const [id, us] of selfUs) {
+    const cf = byId.get(id).callFrame;
+    const file = cf.url ? cf.url.replace(/^file:\/\//, '').replace(repoDir + '/', '') : '';
+    const key = `${cf.functionName || '(anonymous)'}\t${file}:${cf.lineNumber + 1}`;
+    fns.set(key, (fns.get(key) ?? 0) + us);
+    const fkey = file || cf.functionName;
+    files.set(fkey, (files.get(fkey) ?? 0) + us);
+  }
+  const rank = (m) => [...m.entries()].sort((a, b) => b[1] - a[1]).map(([k, us]) => ({ key: k, ms: us / 1000, pct: (100 * us) / totalUs }));
+  return { totalMs: totalUs / 1000, functions: rank(fns), files: rank(files) };
+}
+
+async function profileAudit(opts) {
+  const feedArg = opts.profile;
+  const dir = feedsDir(opts.feeds);
+  const candidates = [feedArg, path.join(dir, `${feedArg}.zip`), path.join(benchOut, 'scaled', `${feedArg}.zip`)];
+  const feed = candidates.find((f) => fs.existsSync(f));
+  if (!feed) throw new Error(`invalid option --profile: no feed at ${candidates.join(' or ')}`);
+  const profDir = path.join(benchOut, 'prof');
+  fs.mkdirSync(profDir, { recursive: true });
+  const before = new Set(fs.readdirSync(profDir));
+  const outDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stopspan-prof-'));
+  const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${profDir}`, mainJs, 'audit', feed, '--out', outDir, '--force'], { cwd: repoDir, encoding: 'utf8' });
+  fs.rmSync(outDir, { recursive: true, force: true });
+  if (r.status !== 0) note(`bench: audit exited ${r.status}: ${r.stderr.trim().split('\n').slice(-3).join(' | ')}`);
+  const made = fs.readdirSync(profDir).filter((f) => f.endsWith('.cpuprofile') && !before.has(f));
+  if (!made.length) throw new Error('no profile was written');
+  const file = path.join(profDir, made[0]);
+  const s = summariseProfile(JSON.parse(fs.readFileSync(file, 'utf8')));
+  log(`profile of stopspan audit ${path.basename(feed)}: ${(s.totalMs / 1000).toFixed(2)} s sampled; ${path.relative(repoDir, file)}`);
+  log('');
+  printTable(
+    ['self %', 'self ms', 'function', 'where'],
+    s.functions.slice(0, opts.top).map((f) => [f.pct.toFixed(1), f.ms.toFixed(0), ...f.key.split('\t')]),
+    [true, true, false, false],
+  );
+  log('');
+  printTable(
+    ['self %', 'self ms', 'file'],
+    s.files.slice(0, opts.top).map((f) => [f.pct.toFixed(1), f.ms.toFixed(0), f.key]),
+    [true, true, false],
+  );
+}
+
+async function main() {
+  const opts = parseArgs(process.argv.slice(2));
+  if (opts.build) build();
+  if (opts.profile) return profileAudit(opts);
+  const inputs = collectInputs(opts);
+  if (!inputs.length) throw new Error('nothing to measure');
+  if (!fs.existsSync(mainJs)) note('bench: dist/cli/main.js is missing; the audit column will be n/a');
+  const results = [];
+  for (const input of inputs) results.push(await benchInput(input, opts.runs));
+  report(results, opts);
+}
+
+if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+  main().catch((e) => {
+    process.stderr.write(`bench: ${e?.message ?? e}\n`);
+    process.exitCode = 2;
+  });
+}
