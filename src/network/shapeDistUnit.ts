@@ -81,14 +81,15 @@ export function inferShapeDistUnit(
 export function distRange(dist: ArrayLike<number>): number {
   let first = NaN;
   let last = NaN;
+  let n = 0;
   for (let i = 0; i < dist.length; i++) {
     const v = dist[i];
     if (Number.isFinite(v)) {
-      if (Number.isNaN(first)) first = v;
+      if (n++ === 0) first = v;
       last = v;
     }
   }
-  return last - first;
+  return n >= 2 ? last - first : NaN;
 }
 
 /** Index of the first value smaller than the finite value before it, or -1 when the values never decrease. */
