@@ -1,0 +1,95 @@
+// Opens (and on first use creates) the SQLite history of nightly runs: a versioned schema applied by an
+// ordered list of migrations, WAL journal and a busy timeout so two jobs can write at once.
+
+import Database from 'better-sqlite3';
+import { StopspanError } from '../common/errors.js';
+
+export type HistoryDb = Database.Database;
+
+/** Migration k (0-based) brings the schema from version k to k + 1. Never edit one that has shipped; append. */
+export const MIGRATIONS: string[] = [
+  `CREATE TABLE runs (
+     id INTEGER PRIMARY KEY AUTOINCREMENT,
+     recorded_at TEXT NOT NULL,
+     run_date TEXT NOT NULL,
+     command TEXT NOT NULL,
+     feed_source TEXT NOT NULL,
+     feed_version TEXT NOT NULL,
+     content_hash TEXT NOT NULL,
+     publisher TEXT NOT NULL,
+     analysis_date TEXT,
+     patterns INTEGER,
+     stops INTEGER,
+     trips INTEGER,
+     median_gap_m REAL,
+     mean_optimal_spacing_m REAL,
+     close_stops INTEGER,
+     wide_gaps INTEGER,
+     pax_min_lost_per_day REAL,
+     errors INTEGER NOT NULL DEFAULT 0,
+     warnings INTEGER NOT NULL DEFAULT 0,
+     infos INTEGER NOT NULL DEFAULT 0
+   );
+   CREATE INDEX runs_by_date ON runs (run_date, id);
+   CREATE TABLE run_findings (
+     run_id INTEGER NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+     code TEXT NOT NULL,
+     count INTEGER NOT NULL,
+     PRIMARY KEY (run_id, code)
+   );`,
+];
+
+export const SCHEMA_VERSION = MIGRATIONS.length;
+
+export interface OpenHistoryOptions {
+  busyTimeoutMs?: number; // how long a writer waits for another's lock, default 10 000 ms
+}
+
+/** Opens the database at path, creating the file and the schema when needed. Throws history-db on failure. */
+export function openHistory(path: string, options: OpenHistoryOptions = {}): HistoryDb {
+  const { busyTimeoutMs = 10_000 } = options;
+  if (typeof path !== 'string' || path === '') {
+    throw new StopspanError('bad-option', `invalid option history: expected a file path, got ${JSON.stringify(path)}`, { value: String(path) });
+  }
+  if (!Number.isInteger(busyTimeoutMs) || busyTimeoutMs < 0) {
+    throw new StopspanError('bad-option', `invalid option busyTimeoutMs: expected an integer >= 0, got ${busyTimeoutMs}`, {
+      value: String(busyTimeoutMs),
+    });
+  }
+  let db: HistoryDb;
+  try {
+    db = new Database(path);
+  } catch (e) {
+    throw new StopspanError('history-db', `cannot open the history database: ${(e as Error).message}`, { file: path });
+  }
+  try {
+    db.pragma(`busy_timeout = ${busyTimeoutMs}`);
+    db.pragma('journal_mode = WAL');
+    db.pragma('foreign_keys = ON');
+    migrate(db, path);
+  } catch (e) {
+    db.close();
+    if (e instanceof StopspanError) throw e;
+    throw new StopspanError('history-db', `cannot prepare the history database: ${(e as Error).message}`, { file: path });
+  }
+  return db;
+}
+
+function migrate(db: HistoryDb, path: string): void {
+  // IMMEDIATE: two processes creating the same new file take turns instead of both migrating
+  db.transaction(() => {
+    db.exec('CREATE TABLE IF NOT EXISTS schema_version (version INTEGER NOT NULL)');
+    const row = db.prepare('SELECT version FROM schema_version').get() as { version: number } | undefined;
+    const current = row?.version ?? 0;
+    if (current > SCHEMA_VERSION) {
+      throw new StopspanError(
+        'history-db',
+        `the history database has schema version ${current}, newer than this stopspan knows (${SCHEMA_VERSION}); upgrade stopspan`,
+        { file: path, value: String(current) },
+      );
+    }
+    for (let v = current; v < SCHEMA_VERSION; v++) db.exec(MIGRATIONS[v]);
+    if (!row) db.prepare('INSERT INTO schema_version (version) VALUES (?)').run(SCHEMA_VERSION);
+    else if (current !== SCHEMA_VERSION) db.prepare('UPDATE schema_version SET version = ?').run(SCHEMA_VERSION);
+  }).immediate();
+}
