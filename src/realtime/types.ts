@@ -11,6 +11,16 @@ export interface ObservedPattern {
   stopShare: (number | null)[];
   /** Observed median run time per gap, seconds (index = gap position), null where too few data. */
   gapRunTimeS: (number | null)[];
+  /** Optional detail (filled by observeArchive): median dwell per stop where the bus stopped, null where too few data. */
+  stopDwellS?: (number | null)[];
+  /** Optional: trips with a stopped/passed verdict per stop (the denominators of stopShare). */
+  stopsObserved?: number[];
+  /** Optional: the fixed part of dwell (a low quantile of observed dwells, standing for door time), seconds. */
+  dwellFixedS?: number | null;
+  /** Optional: braking + accelerating + re-entry loss per served stop fitted from run times, seconds. */
+  stopLossS?: number | null;
+  /** Optional: how many (trip, gap) run times the cruise-speed fit used. */
+  gapsFitted?: number;
 }
 
 export interface ObservedData {
@@ -21,4 +31,7 @@ export interface ObservedData {
   tripsUnmatched: number;
   byPattern: Map<string, ObservedPattern>;
   warnings: import('../common/warnings.js').FeedWarning[];
+  /** Optional: first and last header timestamps used, POSIX seconds (null when none). */
+  firstTimestampS?: number | null;
+  lastTimestampS?: number | null;
 }
