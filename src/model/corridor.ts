@@ -1,0 +1,174 @@
+// A pattern seen as a line of demand: each existing stop's boardings and alightings per day are spread
+// evenly over its catchment (from the midpoint with the stop before to the midpoint with the stop after),
+// so the walk and ride cost of ANY set of served stops (existing ones removed, new ones added) can be
+// computed from prefix integrals. The optimiser, the verdicts and the what-if engine share it, so a
+// stop's removal figure is exactly the change in the optimiser's objective.
+
+import { stopProbability } from './stopping.js';
+import type { StoppingModel } from './params.js';
+
+export interface CorridorInput {
+  posM: number[]; // distance along the pattern of each (passenger) stop, non-decreasing
+  boardPerDay: number[];
+  alightPerDay: number[];
+  tripsPerDay: number;
+}
+
+export interface CostSettings {
+  walkSpeedMps: number;
+  walkWeight: number;
+  lostTimePerStopS: number; // p
+  stoppingModel: StoppingModel;
+  /** Observed share of trips stopping at each existing stop (index = stop), null where unknown. */
+  observedShare?: (number | null)[];
+  /** Extra cost, in rider-seconds, per second of bus time (operating cost / value of time); 0 for none. */
+  operatingPaxSPerBusS?: number;
+}
+
+export interface ServedStop {
+  endsPerDay: number; // boardings + alightings assigned to the stop
+  throughPerDay: number; // riders on board who pass the stop without using it
+  lambdaPerTrip: number;
+  probability: number;
+  costS: number; // rider-seconds per day lost to the bus serving it (plus operating cost when set)
+  busTimePerTripS: number; // expected seconds per trip the bus spends on it (p * P)
+}
+
+export class Corridor {
+  readonly n: number;
+  readonly posM: Float64Array;
+  readonly tripsPerDay: number;
+  readonly boardPerDay: Float64Array;
+  readonly alightPerDay: Float64Array;
+  private readonly lo: Float64Array;
+  private readonly hi: Float64Array;
+  private readonly cumB: Float64Array; // prefix over tiles (length n + 1)
+  private readonly cumA: Float64Array;
+  private readonly cumM: Float64Array; // prefix of trip ends times their mean position
+
+  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay }: CorridorInput) {
+    const n = posM.length;
+    if (n < 2) throw new RangeError(`Corridor: expected at least 2 stops, got ${n}`);
+    if (boardPerDay.length !== n || alightPerDay.length !== n) throw new RangeError('Corridor: demand arrays must match the stops');
+    for (let j = 1; j < n; j++) if (!(posM[j] >= posM[j - 1])) throw new RangeError(`Corridor: positions must be non-decreasing (stop ${j})`);
+    this.n = n;
+    this.posM = Float64Array.from(posM);
+    this.tripsPerDay = tripsPerDay;
+    this.boardPerDay = Float64Array.from(boardPerDay);
+    this.alightPerDay = Float64Array.from(alightPerDay);
+    this.lo = new Float64Array(n);
+    this.hi = new Float64Array(n);
+    this.cumB = new Float64Array(n + 1);
+    this.cumA = new Float64Array(n + 1);
+    this.cumM = new Float64Array(n + 1);
+    for (let j = 0; j < n; j++) {
+      this.lo[j] = j === 0 ? posM[0] : (posM[j - 1] + posM[j]) / 2;
+      this.hi[j] = j === n - 1 ? posM[n - 1] : (posM[j] + posM[j + 1]) / 2;
+      const e = boardPerDay[j] + alightPerDay[j];
+      this.cumB[j + 1] = this.cumB[j] + boardPerDay[j];
+      this.cumA[j + 1] = this.cumA[j] + alightPerDay[j];
+      this.cumM[j + 1] = this.cumM[j] + (e * (this.lo[j] + this.hi[j])) / 2;
+    }
+  }
+
+  get startM(): number {
+    return this.posM[0];
+  }
+  get endM(): number {
+    return this.posM[this.n - 1];
+  }
+
+  /** Integrals from the start to y: boardings, alightings, and trip ends times position. */
+  private cumulative(y: number): { b: number; a: number; m: number } {
+    if (y < this.lo[0]) return { b: 0, a: 0, m: 0 };
+    // last tile whose lower edge is <= y
+    let l = 0;
+    let h = this.n - 1;
+    while (l < h) {
+      const mid = (l + h + 1) >> 1;
+      if (this.lo[mid] <= y) l = mid;
+      else h = mid - 1;
+    }
+    const t = l;
+    const width = this.hi[t] - this.lo[t];
+    const frac = width > 1e-9 ? Math.min(1, Math.max(0, (y - this.lo[t]) / width)) : 1;
+    const bt = this.boardPerDay[t] * frac;
+    const at = this.alightPerDay[t] * frac;
+    const upto = this.lo[t] + frac * width;
+    return {
+      b: this.cumB[t] + bt,
+      a: this.cumA[t] + at,
+      m: this.cumM[t] + ((bt + at) * (this.lo[t] + upto)) / 2,
+    };
+  }
+
+  /** Trip ends per day between u and v (u <= v). */
+  endsBetween(u: number, v: number): number {
+    const cu = this.cumulative(u);
+    const cv = this.cumulative(v);
+    return cv.b + cv.a - cu.b - cu.a;
+  }
+
+  /** Riders on board at point y (boardings minus alightings before it), per day. */
+  loadAt(y: number): number {
+    const c = this.cumulative(y);
+    return Math.max(0, c.b - c.a);
+  }
+
+  /** Metres walked per day by the trip ends between two served stops at xi <= xk, each going to the nearer. */
+  walkBetweenM(xi: number, xk: number): number {
+    const mid = (xi + xk) / 2;
+    const ci = this.cumulative(xi);
+    const cm = this.cumulative(mid);
+    const ck = this.cumulative(xk);
+    const left = cm.m - ci.m - xi * (cm.b + cm.a - ci.b - ci.a);
+    const right = xk * (ck.b + ck.a - cm.b - cm.a) - (ck.m - cm.m);
+    return Math.max(0, left) + Math.max(0, right);
+  }
+
+  /** The riders of a stop served at `pos` whose neighbours served are at prev and next (null at the ends). */
+  catchment(prevM: number | null, pos: number, nextM: number | null): { endsPerDay: number; throughPerDay: number } {
+    const l = prevM === null ? this.startM : (prevM + pos) / 2;
+    const r = nextM === null ? this.endM : (pos + nextM) / 2;
+    const cl = this.cumulative(l);
+    const cr = this.cumulative(r);
+    const ends = cr.b + cr.a - cl.b - cl.a;
+    const alightIn = cr.a - cl.a;
+    return { endsPerDay: ends, throughPerDay: Math.max(0, cl.b - cl.a - alightIn) };
+  }
+}
+
+/** Weighted walk cost, rider-seconds per day, of the stretch between two served stops. */
+export function walkCostS(corridor: Corridor, xi: number, xk: number, { walkSpeedMps, walkWeight }: CostSettings): number {
+  return (walkWeight / walkSpeedMps) * corridor.walkBetweenM(xi, xk);
+}
+
+/**
+ * Cost of the bus serving an intermediate stop at `pos` between served neighbours (rider-seconds per day):
+ * p * P(lambda) * riders passing through. `existingIndex` is the stop's index in the corridor, or -1 for a new stop.
+ */
+export function servedStopCost(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): ServedStop {
+  const { endsPerDay, throughPerDay } = corridor.catchment(prevM, pos, nextM);
+  const trips = corridor.tripsPerDay > 0 ? corridor.tripsPerDay : 1;
+  const lambda = endsPerDay / trips;
+  let observedShare: number | null = null;
+  let baseLambda: number | null = null;
+  if (existingIndex >= 0 && settings.observedShare) {
+    observedShare = settings.observedShare[existingIndex] ?? null;
+    baseLambda = (corridor.boardPerDay[existingIndex] + corridor.alightPerDay[existingIndex]) / trips;
+  }
+  const probability = stopProbability(lambda, { model: settings.stoppingModel, observedShare, baseLambda });
+  const busTimePerTripS = settings.lostTimePerStopS * probability;
+  const costS = busTimePerTripS * throughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
+  return { endsPerDay, throughPerDay, lambdaPerTrip: lambda, probability, costS, busTimePerTripS };
+}
+
+/** Total cost (rider-seconds per day, walk + ride delay) of serving the given sorted existing stops. */
+export function servedSetCostS(corridor: Corridor, kept: number[], settings: CostSettings): number {
+  let total = 0;
+  for (let t = 0; t + 1 < kept.length; t++) total += walkCostS(corridor, corridor.posM[kept[t]], corridor.posM[kept[t + 1]], settings);
+  for (let t = 1; t + 1 < kept.length; t++) {
+    total += servedStopCost(corridor, corridor.posM[kept[t - 1]], corridor.posM[kept[t]], corridor.posM[kept[t + 1]], kept[t], settings).costS;
+  }
+  return total;
+}

@@ -1,0 +1,119 @@
+// Each pattern's demand: boardings and alightings per day at its (passenger) stops, the load on board
+// departing each stop, and the mean in-vehicle trip length. From a ridership file, or assumed: origins
+// and destinations uniform along the pattern with origin before destination, so boardings per metre fall
+// linearly from the start, alightings rise linearly, the load is R*y*(D-y)*2/D^2 and the mean trip is D/3.
+
+import type { WarningSink } from '../common/warnings.js';
+import type { DemandSource } from '../audit/types.js';
+import type { Pattern } from '../network/types.js';
+import type { Ridership } from './ridership.js';
+
+export interface PatternDemand {
+  patternId: string;
+  boardPerDay: number[]; // per model stop
+  alightPerDay: number[];
+  loadDepartingPerDay: number[];
+  meanTripLengthM: number;
+  ridersPerDay: number;
+  demandSource: DemandSource;
+}
+
+/** Assumed uniform demand on a pattern whose model stops sit at `posM` (first at 0 or above). */
+export function assumedDemand(patternId: string, posM: number[], tripsPerDay: number, { boardingsPerTripKm }: { boardingsPerTripKm: number }): PatternDemand {
+  const n = posM.length;
+  const start = posM[0];
+  const D = posM[n - 1] - start;
+  const riders = boardingsPerTripKm * (D / 1000) * tripsPerDay;
+  const boardPerDay: number[] = new Array(n).fill(0);
+  const alightPerDay: number[] = new Array(n).fill(0);
+  if (D > 0) {
+    const Fb = (y: number) => (2 * D * y - y * y) / (D * D); // share of boardings before y
+    const Fa = (y: number) => (y * y) / (D * D); // share of alightings before y
+    for (let j = 0; j < n; j++) {
+      const lo = j === 0 ? 0 : (posM[j - 1] + posM[j]) / 2 - start;
+      const hi = j === n - 1 ? D : (posM[j] + posM[j + 1]) / 2 - start;
+      boardPerDay[j] = riders * (Fb(hi) - Fb(lo));
+      alightPerDay[j] = riders * (Fa(hi) - Fa(lo));
+    }
+  }
+  return finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', D / 3);
+}
+
+/**
+ * Demand from a ridership file. A row with a route (and direction) applies to that route's patterns at
+ * the stop, one without to every pattern at the stop; a stop's counts are split between the patterns that
+ * serve it by trips per day. Alightings are scaled to match boardings per pattern (warned above 1 %).
+ */
+export function ridershipDemand(
+  ridership: Ridership,
+  patterns: { pattern: Pattern; modelStops: number[]; posM: number[] }[],
+  { warnings }: { warnings: WarningSink },
+): Map<string, PatternDemand> {
+  // occurrences of each feed stop among the patterns' model stops
+  const at = new Map<number, { p: number; j: number }[]>();
+  patterns.forEach(({ pattern, modelStops }, p) => {
+    modelStops.forEach((j, m) => {
+      const s = pattern.stopIdx[j];
+      let list = at.get(s);
+      if (!list) at.set(s, (list = []));
+      list.push({ p, j: m });
+    });
+  });
+  const board = patterns.map(({ posM }) => new Array(posM.length).fill(0));
+  const alight = patterns.map(({ posM }) => new Array(posM.length).fill(0));
+  const used = new Set<number>();
+  for (const row of ridership.rows) {
+    const occ = (at.get(row.stopIdx) ?? []).filter(({ p }) => {
+      const pat = patterns[p].pattern;
+      return (row.routeId === null || pat.routeId === row.routeId) && (row.directionId === null || pat.directionId === row.directionId);
+    });
+    if (occ.length === 0) {
+      warnings.add('ridership-unserved-stop', 'ridership rows for a stop no pattern (of the named route) serves on the analysis date were not used', `${ridership.file}:${row.line} ${row.stopId}`);
+      continue;
+    }
+    used.add(row.stopIdx);
+    const tripsTotal = occ.reduce((s, { p }) => s + Math.max(patterns[p].pattern.tripsPerDay, 0), 0);
+    for (const { p, j } of occ) {
+      const share = tripsTotal > 0 ? patterns[p].pattern.tripsPerDay / tripsTotal : 1 / occ.length;
+      board[p][j] += row.boardingsPerDay * share;
+      alight[p][j] += row.alightingsPerDay * share;
+    }
+  }
+  let missing = 0;
+  for (const s of at.keys()) if (!used.has(s)) missing++;
+  if (missing > 0) warnings.add('ridership-stop-missing', 'stops served by a pattern but absent from the ridership file were given zero boardings and alightings', undefined, missing);
+  const out = new Map<string, PatternDemand>();
+  patterns.forEach(({ pattern, posM }, p) => {
+    const b = board[p];
+    const a = alight[p];
+    const sumB = b.reduce((s, x) => s + x, 0);
+    const sumA = a.reduce((s, x) => s + x, 0);
+    if (sumB > 0 && sumA > 0) {
+      const scale = sumB / sumA;
+      if (Math.abs(scale - 1) > 0.01) warnings.add('ridership-unbalanced', 'patterns whose boardings and alightings differ by more than 1 %: alightings were scaled to match boardings', `${pattern.id} x${scale.toFixed(3)}`);
+      for (let j = 0; j < a.length; j++) a[j] *= scale;
+    } else if (sumB > 0 || sumA > 0) {
+      warnings.add('ridership-one-sided', 'patterns with boardings but no alightings (or the reverse) in the ridership file: the load profile cannot be built, demand set to zero', pattern.id);
+      b.fill(0);
+      a.fill(0);
+    }
+    const D = posM[posM.length - 1] - posM[0];
+    out.set(pattern.id, finish(pattern.id, posM, b, a, 'observed', D / 3));
+  });
+  return out;
+}
+
+function finish(patternId: string, posM: number[], boardPerDay: number[], alightPerDay: number[], demandSource: DemandSource, fallbackTripM: number): PatternDemand {
+  const n = posM.length;
+  const loadDepartingPerDay: number[] = new Array(n).fill(0);
+  let load = 0;
+  let paxM = 0;
+  for (let j = 0; j < n; j++) {
+    load = Math.max(0, load + boardPerDay[j] - alightPerDay[j]);
+    loadDepartingPerDay[j] = j === n - 1 ? 0 : load;
+    if (j + 1 < n) paxM += load * (posM[j + 1] - posM[j]);
+  }
+  const ridersPerDay = boardPerDay.reduce((s, x) => s + x, 0);
+  const meanTripLengthM = ridersPerDay > 0 ? paxM / ridersPerDay : fallbackTripM;
+  return { patternId, boardPerDay, alightPerDay, loadDepartingPerDay, meanTripLengthM, ridersPerDay, demandSource };
+}

@@ -1,0 +1,163 @@
+// The model's parameters in one normalised structure, by the names of the design notes, each default with
+// its source label and a short note, so reports can say where every number came from. Options from the
+// CLI and from a --params file both pass through normalizeParams; unknown keys and bad values are refused.
+
+import { readFileSync } from 'node:fs';
+import { StopspanError } from '../common/errors.js';
+import type { ParamsReport, SourceLabel } from '../audit/types.js';
+
+export type StoppingModel = 'always' | 'poisson' | 'observed';
+
+export interface ModelParams {
+  walk_speed_mps: number;
+  walk_weight: number;
+  door_time_s: number;
+  accel_mps2: number;
+  decel_mps2: number;
+  reentry_delay_s: number;
+  cruise_speed_mps: number | null; // null: estimated per pattern from the schedule
+  mean_trip_length_m: number | null; // null: from ridership, else a third of the pattern length
+  band_tolerance: number;
+  max_gap_m: number;
+  stopping_model: StoppingModel;
+  assumed_boardings_per_trip_km: number;
+  operating_cost_per_vehicle_hour: number | null;
+  value_of_time_per_hour: number | null;
+}
+
+export type ParamName = keyof ModelParams;
+
+/** Normalised parameters plus the names the user set (reported with source "user"). */
+export interface NormalizedParams {
+  values: ModelParams;
+  given: ParamName[];
+}
+
+interface ParamSpec {
+  default: number | string | null;
+  source: SourceLabel;
+  note: string;
+  kind: 'positive' | 'nonnegative' | 'fraction' | 'stopping' | 'positive-or-null' | 'nonnegative-or-null';
+}
+
+/** Every parameter with its default, source label and note. The one table docs and reports draw on. */
+export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
+  walk_speed_mps: { default: 1.2, source: 'M', kind: 'positive', note: 'common practice: pedestrian design speed of about 1.2 m/s (4 ft/s); value from memory' },
+  walk_weight: { default: 2, source: 'M', kind: 'positive', note: 'common practice: riders weigh walking about twice in-vehicle time; value from memory' },
+  door_time_s: { default: 3, source: 'M', kind: 'nonnegative', note: 'door opening and closing, TCQSM range 2-5 s (from memory)' },
+  accel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
+  decel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
+  reentry_delay_s: { default: 2, source: 'M', kind: 'nonnegative', note: 'assumption: wait to re-enter traffic, chosen within 0-3 s' },
+  cruise_speed_mps: { default: null, source: 'estimated', kind: 'positive-or-null', note: 'estimated per pattern so that the scheduled run time is explained' },
+  mean_trip_length_m: { default: null, source: 'D', kind: 'positive-or-null', note: 'from the ridership load profile, else a third of the pattern length (uniform origins and destinations)' },
+  band_tolerance: { default: 0.05, source: 'D', kind: 'fraction', note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal' },
+  max_gap_m: { default: 800, source: 'M', kind: 'positive', note: 'common practice walking policy (about half a mile between stops); from memory' },
+  stopping_model: { default: 'poisson', source: 'M', kind: 'stopping', note: 'P = 1 - exp(-lambda), standard in the stop-spacing literature (from memory); overestimates stopping (Tirachini 2014)' },
+  assumed_boardings_per_trip_km: { default: 3, source: 'M', kind: 'positive', note: 'assumption used only without a ridership file: boardings per trip per km of pattern' },
+  operating_cost_per_vehicle_hour: { default: null, source: 'D', kind: 'nonnegative-or-null', note: 'not set: operating cost left out of the optimiser' },
+  value_of_time_per_hour: { default: null, source: 'D', kind: 'positive-or-null', note: 'not set: needed with operating_cost_per_vehicle_hour to weigh it against riders\' time' },
+};
+
+export const PARAM_NAMES = Object.keys(PARAM_SPECS) as ParamName[];
+
+/** The defaults, as a fresh object. */
+export function defaultParams(): ModelParams {
+  const out: Record<string, unknown> = {};
+  for (const name of PARAM_NAMES) out[name] = PARAM_SPECS[name].default;
+  return out as unknown as ModelParams;
+}
+
+function bad(name: string, expected: string, got: unknown, file?: string): StopspanError {
+  const shown = typeof got === 'string' ? JSON.stringify(got) : String(JSON.stringify(got) ?? got);
+  return new StopspanError('bad-option', `invalid parameter ${name}: expected ${expected}, got ${shown}`, {
+    file,
+    column: name,
+    value: shown,
+  });
+}
+
+function check(name: ParamName, raw: unknown, file?: string): number | string | null {
+  const spec = PARAM_SPECS[name];
+  // numbers may come from the command line as strings
+  const num = typeof raw === 'string' && raw.trim() !== '' && /^[-+0-9.eE]+$/.test(raw.trim()) ? Number(raw) : raw;
+  switch (spec.kind) {
+    case 'stopping':
+      if (raw === 'always' || raw === 'poisson' || raw === 'observed') return raw;
+      throw bad(name, '"always", "poisson" or "observed"', raw, file);
+    case 'positive':
+      if (typeof num === 'number' && Number.isFinite(num) && num > 0) return num;
+      throw bad(name, 'a number above 0', raw, file);
+    case 'nonnegative':
+      if (typeof num === 'number' && Number.isFinite(num) && num >= 0) return num;
+      throw bad(name, 'a number of 0 or more', raw, file);
+    case 'fraction':
+      if (typeof num === 'number' && Number.isFinite(num) && num > 0 && num < 1) return num;
+      throw bad(name, 'a number between 0 and 1 (0.05 means 5 %)', raw, file);
+    case 'positive-or-null':
+      if (raw === null) return null;
+      if (typeof num === 'number' && Number.isFinite(num) && num > 0) return num;
+      throw bad(name, 'a number above 0 or null', raw, file);
+    case 'nonnegative-or-null':
+      if (raw === null) return null;
+      if (typeof num === 'number' && Number.isFinite(num) && num >= 0) return num;
+      throw bad(name, 'a number of 0 or more, or null', raw, file);
+  }
+}
+
+/**
+ * Checks and completes a parameter object (from a --params file, CLI options, or code). Every key is
+ * optional; unknown keys and bad values throw StopspanError 'bad-option' naming the parameter.
+ */
+export function normalizeParams(input: unknown, { file }: { file?: string } = {}): NormalizedParams {
+  if (input === undefined || input === null) return { values: defaultParams(), given: [] };
+  if (typeof input !== 'object' || Array.isArray(input)) {
+    throw new StopspanError('bad-option', `invalid parameters: expected an object of named values, got ${Array.isArray(input) ? 'an array' : typeof input}`, { file });
+  }
+  const values = defaultParams() as unknown as Record<string, unknown>;
+  const given: ParamName[] = [];
+  for (const [key, raw] of Object.entries(input as Record<string, unknown>)) {
+    if (!(key in PARAM_SPECS)) {
+      throw new StopspanError('bad-option', `invalid parameter ${key}: expected one of ${PARAM_NAMES.join(', ')}, got an unknown name`, { file, column: key, value: key });
+    }
+    if (raw === undefined) continue;
+    values[key] = check(key as ParamName, raw, file);
+    given.push(key as ParamName);
+  }
+  const v = values as unknown as ModelParams;
+  if (v.operating_cost_per_vehicle_hour !== null && v.value_of_time_per_hour === null) {
+    throw bad('value_of_time_per_hour', 'a number above 0 when operating_cost_per_vehicle_hour is set', null, file);
+  }
+  return { values: v, given };
+}
+
+/** Reads a JSON parameters file and normalises it; a file that is not JSON is a 'bad-option' error. */
+export function loadParamsFile(path: string): NormalizedParams {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (e) {
+    throw new StopspanError('bad-option', `cannot read parameters file: ${(e as Error).message}`, { file: path });
+  }
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(text.replace(/^\uFEFF/, ''));
+  } catch (e) {
+    throw new StopspanError('bad-option', `parameters file is not valid JSON: ${(e as Error).message}`, { file: path });
+  }
+  return normalizeParams(parsed, { file: path });
+}
+
+/** The parameters used, each with its value, source label (user when set) and note, for summary.json. */
+export function paramsReport(params: NormalizedParams, overrides: Partial<Record<ParamName, { value: number | string | null; source: SourceLabel; note: string }>> = {}): ParamsReport {
+  const out: ParamsReport = {};
+  for (const name of PARAM_NAMES) {
+    const spec = PARAM_SPECS[name];
+    const userSet = params.given.includes(name);
+    out[name] = overrides[name] ?? {
+      value: params.values[name],
+      source: userSet ? 'user' : spec.source,
+      note: userSet ? `set by the user (default ${JSON.stringify(spec.default)}: ${spec.note})` : spec.note,
+    };
+  }
+  return out;
+}

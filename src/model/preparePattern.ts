@@ -1,0 +1,161 @@
+// Everything the model needs about one pattern before any verdict: its passenger stops, their demand laid
+// on a corridor, the lost time per stop and the cruise speed behind it (given, observed, or estimated so
+// the schedule is explained), the stops that must stay, and the effective square-root optimum.
+
+import type { WarningSink } from '../common/warnings.js';
+import type { Feed } from '../gtfs/types.js';
+import type { Pattern, PatternSet } from '../network/types.js';
+import type { FixedReason, LostTimeSource, SourceLabel } from '../audit/types.js';
+import type { ObservedPattern } from '../realtime/types.js';
+import { Corridor, type CostSettings } from './corridor.js';
+import type { PatternDemand } from './demand.js';
+import { estimateCruiseSpeed, cruiseSpeedRangeMps } from './cruiseSpeed.js';
+import { lostTimePerStopS } from './lostTime.js';
+import type { ModelParams } from './params.js';
+import { stopProbability } from './stopping.js';
+
+export interface PreparedPattern {
+  pattern: Pattern;
+  routeShortName: string;
+  routeType: number;
+  modelStops: number[]; // positions in the pattern of its passenger stops
+  posM: number[]; // distance along of each model stop
+  demand: PatternDemand;
+  corridor: Corridor;
+  lostTimePerStopS: number;
+  lostTimeSource: LostTimeSource;
+  cruiseSpeedMps: number;
+  cruiseSpeedSource: SourceLabel;
+  meanTripLengthM: number;
+  observedShare: (number | null)[] | undefined; // per model stop
+  stoppingModel: ModelParams['stopping_model'];
+  fixedReason: FixedReason[]; // per model stop
+}
+
+/** Is a stop served by another route too? `routesAtStop` may hold route ids or pattern ids. */
+function servedByOtherRoute(routes: Set<string> | undefined, routeId: string): boolean {
+  if (!routes) return false;
+  for (const r of routes) if (r !== routeId && !r.startsWith(`${routeId}:`)) return true;
+  return false;
+}
+
+export function preparePattern(
+  feed: Feed,
+  patternSet: PatternSet,
+  pattern: Pattern,
+  demandOf: (modelStops: number[], posM: number[]) => PatternDemand,
+  params: ModelParams,
+  { keep = new Set<string>(), observed, warnings, forceTransfers = true }: { keep?: Set<string>; observed?: ObservedPattern; warnings: WarningSink; forceTransfers?: boolean },
+): PreparedPattern | null {
+  const modelStops: number[] = [];
+  for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
+  if (modelStops.length < 2) {
+    warnings.add('pattern-too-short', 'patterns with fewer than two passenger stops were left out of the model', pattern.id);
+    return null;
+  }
+  const posM = modelStops.map((j) => pattern.distAlongM[j]);
+  const route = feed.routes.get(pattern.routeId);
+  const routeType = route?.type ?? 3;
+  const demand = demandOf(modelStops, posM);
+  const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
+  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips });
+
+  let stoppingModel = params.stopping_model;
+  let observedShare: (number | null)[] | undefined;
+  if (observed && observed.stopShare.some((x) => x !== null)) {
+    observedShare = modelStops.map((j) => observed.stopShare[j] ?? null);
+    stoppingModel = 'observed';
+  } else if (stoppingModel === 'observed') {
+    warnings.add('no-observed-stopping', 'stopping_model=observed but no observed stop shares for the pattern: Poisson used', pattern.id);
+    stoppingModel = 'poisson';
+  }
+  // expected intermediate stops served today, for the cruise speed estimate
+  let expectedStops = 0;
+  for (let m = 1; m + 1 < modelStops.length; m++) {
+    const lambda = (demand.boardPerDay[m] + demand.alightPerDay[m]) / trips;
+    expectedStops += stopProbability(lambda, { model: stoppingModel, observedShare: observedShare?.[m] ?? null, baseLambda: lambda });
+  }
+  const kin = { doorTimeS: params.door_time_s, accelMps2: params.accel_mps2, decelMps2: params.decel_mps2, reentryDelayS: params.reentry_delay_s };
+  let cruiseSpeedMps: number;
+  let cruiseSpeedSource: SourceLabel;
+  if (observed?.cruiseSpeedMps != null && observed.cruiseSpeedMps > 0) {
+    cruiseSpeedMps = observed.cruiseSpeedMps;
+    cruiseSpeedSource = 'observed';
+  } else if (params.cruise_speed_mps !== null) {
+    cruiseSpeedMps = params.cruise_speed_mps;
+    cruiseSpeedSource = 'user';
+  } else {
+    const est = estimateCruiseSpeed({
+      runTimeS: pattern.runTimeS,
+      lengthM: posM[posM.length - 1] - posM[0],
+      expectedStopsServed: expectedStops,
+      boardingsPerTrip: demand.ridersPerDay / trips,
+      ...kin,
+      routeType,
+    });
+    cruiseSpeedMps = est.cruiseSpeedMps;
+    cruiseSpeedSource = 'estimated';
+    if (est.clamped) {
+      const r = cruiseSpeedRangeMps(routeType);
+      warnings.add(
+        'cruise-speed-clamped',
+        `patterns whose schedule implies an implausible cruise speed for the route type: clamped to the range (bus ${cruiseSpeedRangeMps(3).minMps}-${cruiseSpeedRangeMps(3).maxMps} m/s)`,
+        `${pattern.id} solved ${Number.isFinite(est.solvedMps) ? est.solvedMps.toFixed(1) : 'none'} m/s, used ${est.cruiseSpeedMps} (range ${r.minMps}-${r.maxMps})`,
+      );
+    }
+  }
+  let lostTime = lostTimePerStopS(cruiseSpeedMps, kin);
+  let lostTimeSource: LostTimeSource = 'default';
+  if (observed?.lostTimePerStopS != null && observed.lostTimePerStopS > 0) {
+    lostTime = observed.lostTimePerStopS;
+    lostTimeSource = 'observed';
+  }
+  const meanTripLengthM = params.mean_trip_length_m ?? demand.meanTripLengthM;
+
+  // stops that must stay
+  const fixedReason: FixedReason[] = modelStops.map(() => '');
+  const n = modelStops.length;
+  let timepoints = 0;
+  for (let m = 1; m + 1 < n; m++) if (pattern.timepoint[modelStops[m]]) timepoints++;
+  const timepointsInformative = timepoints <= 0.5 * Math.max(1, n - 2);
+  if (!timepointsInformative) warnings.add('timepoints-not-forced', 'patterns marking most stops as timepoints (or with no timepoint column): timepoints were not treated as fixed', pattern.id);
+  for (let m = 0; m < n; m++) {
+    const j = modelStops[m];
+    const stopIdx = pattern.stopIdx[j];
+    const stopId = feed.stops[stopIdx]?.id ?? '';
+    if (m === 0 || m === n - 1) fixedReason[m] = 'terminal';
+    else if (keep.has(stopId)) fixedReason[m] = 'keep';
+    else if (timepointsInformative && pattern.timepoint[j]) fixedReason[m] = 'timepoint';
+    else if (forceTransfers && servedByOtherRoute(patternSet.routesAtStop.get(stopIdx), pattern.routeId)) fixedReason[m] = 'transfer';
+  }
+  return {
+    pattern,
+    routeShortName: route?.shortName ?? '',
+    routeType,
+    modelStops,
+    posM,
+    demand,
+    corridor,
+    lostTimePerStopS: lostTime,
+    lostTimeSource,
+    cruiseSpeedMps,
+    cruiseSpeedSource,
+    meanTripLengthM,
+    observedShare,
+    stoppingModel,
+    fixedReason,
+  };
+}
+
+/** The cost settings of a prepared pattern at a walk weight (operating cost off unless asked). */
+export function costSettings(prep: PreparedPattern, params: ModelParams, { walkWeight = params.walk_weight, withOperatingCost = false }: { walkWeight?: number; withOperatingCost?: boolean } = {}): CostSettings {
+  const op = withOperatingCost && params.operating_cost_per_vehicle_hour !== null && params.value_of_time_per_hour !== null ? params.operating_cost_per_vehicle_hour / params.value_of_time_per_hour : 0;
+  return {
+    walkSpeedMps: params.walk_speed_mps,
+    walkWeight,
+    lostTimePerStopS: prep.lostTimePerStopS,
+    stoppingModel: prep.stoppingModel,
+    observedShare: prep.observedShare,
+    operatingPaxSPerBusS: op,
+  };
+}
