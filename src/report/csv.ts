@@ -1,0 +1,155 @@
+// CSV renderers for patterns.csv, stops.csv and candidates.csv (column names per DESIGN.md section 5).
+// RFC 4180: a header row, fields quoted when they hold a comma, quote, CR or LF, quotes doubled, records
+// ended by CRLF (the RFC's line break; every spreadsheet and csv-parse read it), UTF-8 without a BOM so
+// the first column name stays exactly "pattern_id". Text cells beginning with =, +, -, @, tab or CR are
+// prefixed with a single quote so a spreadsheet shows them instead of running them as formulas; numeric
+// cells are never guarded, so a negative number stays a number.
+
+import type { AuditResult, Candidate, PatternResult, StopResult } from '../audit/types.js';
+import { checkUnits, metresToFeet, type Units } from './units.js';
+
+export interface CsvOptions {
+  units?: Units; // 'imperial' appends *_ft columns after the contract columns; metres are always present
+}
+
+type Cell = string | number | boolean | null;
+
+interface Column<T> {
+  name: string;
+  kind: 'text' | 'number';
+  digits?: number; // decimals for numbers; integers print as they are
+  get: (row: T) => Cell;
+}
+
+export const CSV_EOL = '\r\n';
+
+const GUARDED_START = /^[=+\-@\t\r]/;
+
+/** Guards a text cell against spreadsheet formula injection. */
+export function guardText(s: string): string {
+  return GUARDED_START.test(s) ? `'${s}` : s;
+}
+
+/** Quotes a field when RFC 4180 requires it. */
+export function quoteField(s: string): string {
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+function formatNumber(v: number, digits: number | undefined): string {
+  if (!Number.isFinite(v)) return '';
+  if (digits === undefined) return String(v);
+  const r = Number(v.toFixed(digits)); // drops trailing zeros and turns -0 into 0 below
+  return String(Object.is(r, -0) ? 0 : r);
+}
+
+function renderCell<T>(col: Column<T>, row: T): string {
+  const v = col.get(row);
+  if (v === null || v === undefined) return '';
+  if (col.kind === 'number') {
+    if (typeof v === 'boolean') return v ? '1' : '0';
+    if (typeof v !== 'number') throw new TypeError(`column ${col.name}: expected a number, got ${typeof v}`);
+    return formatNumber(v, col.digits);
+  }
+  return quoteField(guardText(String(v)));
+}
+
+/** Renders rows with the given columns as an RFC 4180 document. */
+export function renderCsv<T>(columns: Column<T>[], rows: readonly T[]): string {
+  const out: string[] = [columns.map((c) => quoteField(c.name)).join(',')];
+  for (const row of rows) out.push(columns.map((c) => renderCell(c, row)).join(','));
+  return out.join(CSV_EOL) + CSV_EOL;
+}
+
+const text = <T>(name: string, get: (r: T) => Cell): Column<T> => ({ name, kind: 'text', get });
+const num = <T>(name: string, get: (r: T) => Cell, digits?: number): Column<T> => ({ name, kind: 'number', get, digits });
+const feet = (m: number | null): number | null => (m === null ? null : metresToFeet(m));
+
+/** Appends an *_ft column after the contract columns for each *_m column, when imperial. */
+function withImperial<T>(columns: Column<T>[], units: Units): Column<T>[] {
+  if (units === 'metric') return columns;
+  const extra = columns
+    .filter((c) => c.kind === 'number' && c.name.endsWith('_m'))
+    .map((c) => num<T>(c.name.slice(0, -2) + '_ft', (r) => feet(c.get(r) as number | null), 0));
+  return [...columns, ...extra];
+}
+
+export const PATTERN_COLUMNS: Column<PatternResult>[] = [
+  text('pattern_id', (p) => p.patternId),
+  text('route_id', (p) => p.routeId),
+  text('route_short_name', (p) => p.routeShortName),
+  num('direction_id', (p) => p.directionId),
+  text('headsign', (p) => p.headsign),
+  text('shape_id', (p) => p.shapeId),
+  text('distance_source', (p) => p.distanceSource),
+  num('stop_count', (p) => p.stopCount),
+  num('length_m', (p) => p.lengthM, 1),
+  num('trips_per_day', (p) => p.tripsPerDay, 1),
+  num('median_gap_m', (p) => p.medianGapM, 1),
+  num('mean_gap_m', (p) => p.meanGapM, 1),
+  num('optimal_spacing_m', (p) => p.optimalSpacingM, 1),
+  num('band_low_m', (p) => p.bandLowM, 1),
+  num('band_high_m', (p) => p.bandHighM, 1),
+  num('close_stops', (p) => p.closeStops),
+  num('wide_gaps', (p) => p.wideGaps),
+  num('optimal_stop_count', (p) => p.optimalStopCount),
+  num('pax_min_lost_per_day', (p) => p.paxMinLostPerDay, 1),
+  text('demand_source', (p) => p.demandSource),
+];
+
+export const STOP_COLUMNS: Column<StopResult>[] = [
+  text('pattern_id', (s) => s.patternId),
+  text('route_id', (s) => s.routeId),
+  num('direction_id', (s) => s.directionId),
+  num('stop_index', (s) => s.stopIndex),
+  text('stop_id', (s) => s.stopId),
+  text('stop_name', (s) => s.stopName),
+  num('stop_lat', (s) => s.stopLat, 6),
+  num('stop_lon', (s) => s.stopLon, 6),
+  num('dist_along_m', (s) => s.distAlongM, 1),
+  num('gap_before_m', (s) => s.gapBeforeM, 1),
+  num('gap_after_m', (s) => s.gapAfterM, 1),
+  num('trips_per_day', (s) => s.tripsPerDay, 1),
+  num('boardings_per_day', (s) => s.boardingsPerDay, 1),
+  num('alightings_per_day', (s) => s.alightingsPerDay, 1),
+  text('verdict', (s) => s.verdict),
+  num('removal_net_pax_min_per_day', (s) => s.removalNetPaxMinPerDay, 1),
+  text('demand_source', (s) => s.demandSource),
+];
+
+/** candidates.csv: the ranked network-level list; demand_source is the run's (candidates sum over patterns). */
+export function candidateColumns(demandSource: string): Column<Candidate>[] {
+  return [
+    num('rank', (c) => c.rank),
+    text('action', (c) => c.action),
+    text('stop_id', (c) => c.stopId),
+    text('stop_name', (c) => c.stopName),
+    num('stop_lat', (c) => c.lat, 6),
+    num('stop_lon', (c) => c.lon, 6),
+    text('route_ids', (c) => c.routeIds.join(';')),
+    text('pattern_ids', (c) => c.patternIds.join(';')),
+    num('net_pax_min_per_day', (c) => c.netPaxMinPerDay, 1),
+    num('riders_affected_per_day', (c) => c.ridersAffectedPerDay, 1),
+    num('walk_added_pax_min_per_day', (c) => c.walkAddedPaxMinPerDay, 1),
+    num('ride_saved_pax_min_per_day', (c) => c.rideSavedPaxMinPerDay, 1),
+    num('run_time_saved_per_trip_s', (c) => c.runTimeSavedPerTripS, 1),
+    num('vehicle_hours_per_day', (c) => c.vehicleHoursPerDay, 3),
+    text('robust', (c) => (c.robust ? 'yes' : 'no')),
+    text('demand_source', () => demandSource),
+  ];
+}
+
+export function patternsCsv(result: AuditResult, options: CsvOptions = {}): string {
+  const { units = 'metric' } = options;
+  return renderCsv(withImperial(PATTERN_COLUMNS, checkUnits(units)), result.patterns);
+}
+
+export function stopsCsv(result: AuditResult, options: CsvOptions = {}): string {
+  const { units = 'metric' } = options;
+  return renderCsv(withImperial(STOP_COLUMNS, checkUnits(units)), result.stops);
+}
+
+export function candidatesCsv(result: AuditResult, options: CsvOptions = {}): string {
+  const { units = 'metric' } = options;
+  checkUnits(units); // candidates carry no distances; the option is accepted for symmetry
+  return renderCsv(candidateColumns(result.demandSource), result.candidates);
+}

@@ -1,0 +1,137 @@
+// GeoJSON renderers (RFC 7946) for GIS users: patterns as LineStrings drawn from their path, stops as
+// Points carrying the verdict and figures of stops.csv. Positions are [longitude, latitude] (section 3.1.1),
+// rounded to 6 decimals (about 0.1 m), WGS84 implied, so no "crs" member (section 4).
+
+import type { AuditResult, PatternResult, StopResult } from '../audit/types.js';
+
+export type Position = [number, number];
+
+export interface Feature<G> {
+  type: 'Feature';
+  geometry: G;
+  properties: Record<string, string | number | boolean | null>;
+}
+
+export interface FeatureCollection<G> {
+  type: 'FeatureCollection';
+  features: Feature<G>[];
+}
+
+export interface LineString {
+  type: 'LineString';
+  coordinates: Position[];
+}
+
+export interface Point {
+  type: 'Point';
+  coordinates: Position;
+}
+
+const round6 = (v: number): number => {
+  const r = Math.round(v * 1e6) / 1e6;
+  return Object.is(r, -0) ? 0 : r;
+};
+const round1 = (v: number | null): number | null => (v === null || !Number.isFinite(v) ? null : Math.round(v * 10) / 10);
+
+function validPosition(lon: number, lat: number): boolean {
+  return Number.isFinite(lon) && Number.isFinite(lat) && lon >= -180 && lon <= 180 && lat >= -90 && lat <= 90;
+}
+
+/** Rounds positions, drops invalid ones and repeats of the previous position. */
+function cleanLine(points: readonly Position[]): Position[] {
+  const out: Position[] = [];
+  for (const [lon, lat] of points) {
+    if (!validPosition(lon, lat)) continue;
+    const p: Position = [round6(lon), round6(lat)];
+    const last = out[out.length - 1];
+    if (last && last[0] === p[0] && last[1] === p[1]) continue;
+    out.push(p);
+  }
+  return out;
+}
+
+function patternProperties(p: PatternResult): Feature<LineString>['properties'] {
+  return {
+    pattern_id: p.patternId,
+    route_id: p.routeId,
+    route_short_name: p.routeShortName,
+    direction_id: p.directionId,
+    headsign: p.headsign,
+    shape_id: p.shapeId,
+    distance_source: p.distanceSource,
+    stop_count: p.stopCount,
+    length_m: round1(p.lengthM),
+    trips_per_day: round1(p.tripsPerDay),
+    median_gap_m: round1(p.medianGapM),
+    mean_gap_m: round1(p.meanGapM),
+    optimal_spacing_m: round1(p.optimalSpacingM),
+    band_low_m: round1(p.bandLowM),
+    band_high_m: round1(p.bandHighM),
+    close_stops: p.closeStops,
+    wide_gaps: p.wideGaps,
+    optimal_stop_count: p.optimalStopCount,
+    pax_min_lost_per_day: round1(p.paxMinLostPerDay),
+    demand_source: p.demandSource,
+  };
+}
+
+function stopProperties(s: StopResult): Feature<Point>['properties'] {
+  return {
+    pattern_id: s.patternId,
+    route_id: s.routeId,
+    direction_id: s.directionId,
+    stop_index: s.stopIndex,
+    stop_id: s.stopId,
+    stop_name: s.stopName,
+    dist_along_m: round1(s.distAlongM),
+    gap_before_m: round1(s.gapBeforeM),
+    gap_after_m: round1(s.gapAfterM),
+    trips_per_day: round1(s.tripsPerDay),
+    boardings_per_day: round1(s.boardingsPerDay),
+    alightings_per_day: round1(s.alightingsPerDay),
+    verdict: s.verdict,
+    fixed_reason: s.fixedReason,
+    timepoint: s.timepoint,
+    removal_net_pax_min_per_day: round1(s.removalNetPaxMinPerDay),
+    demand_source: s.demandSource,
+  };
+}
+
+/**
+ * patterns.geojson: one LineString per pattern. The path is the pattern's shape; without one (fewer
+ * than two positions) the line joins its stops in order. A pattern with fewer than two distinct
+ * positions cannot be a LineString (RFC 7946 section 3.1.4) and is left out.
+ */
+export function patternsGeoJson(result: AuditResult): FeatureCollection<LineString> {
+  const stopsByPattern = new Map<string, StopResult[]>();
+  for (const s of result.stops) {
+    let list = stopsByPattern.get(s.patternId);
+    if (!list) stopsByPattern.set(s.patternId, (list = []));
+    list.push(s);
+  }
+  const features: Feature<LineString>[] = [];
+  for (const p of result.patterns) {
+    let line = cleanLine(p.path);
+    if (line.length < 2) {
+      const stops = (stopsByPattern.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex);
+      line = cleanLine(stops.map((s) => [s.stopLon, s.stopLat] as Position));
+    }
+    if (line.length < 2) continue;
+    features.push({ type: 'Feature', geometry: { type: 'LineString', coordinates: line }, properties: patternProperties(p) });
+  }
+  return { type: 'FeatureCollection', features };
+}
+
+/** stops.geojson: one Point per stop of each pattern (the rows of stops.csv); invalid coordinates are left out. */
+export function stopsGeoJson(result: AuditResult): FeatureCollection<Point> {
+  const features: Feature<Point>[] = [];
+  for (const s of result.stops) {
+    if (!validPosition(s.stopLon, s.stopLat)) continue;
+    features.push({
+      type: 'Feature',
+      geometry: { type: 'Point', coordinates: [round6(s.stopLon), round6(s.stopLat)] },
+      properties: stopProperties(s),
+    });
+  }
+  return { type: 'FeatureCollection', features };
+}

@@ -1,0 +1,295 @@
+// index.html: the one page a planner opens first. Self-contained (inline CSS, script and SVG; no network,
+// fonts or tiles). Static parts (headline, cautions, histogram, parameters, warnings) are rendered here
+// with every piece of feed text escaped; the interactive parts are drawn by the inline script from one
+// embedded JSON block, per-pattern sections only when opened, so large feeds stay a few MB.
+
+import type { AuditResult, PatternResult, StopResult } from '../../audit/types.js';
+import { StopspanError } from '../../common/errors.js';
+import { CAUTIONS } from '../cautions.js';
+import { checkUnits, formatShortDistance, type Units } from '../units.js';
+import { escapeHtml as h, jsonForScript } from './escape.js';
+import { histogramSvg } from './histogramSvg.js';
+import { PAGE_SCRIPT } from './pageScript.js';
+import { PAGE_STYLE } from './pageStyle.js';
+
+export interface HtmlOptions {
+  units?: Units;
+  maxPathPoints?: number; // per pattern map; longer paths are thinned (the map is schematic)
+}
+
+const VERDICT_LETTER: Record<StopResult['verdict'], string> = { close: 'C', wide: 'W', ok: 'O', fixed: 'F' };
+const SOURCE_TEXT: Record<string, string> = {
+  C: 'confirmed in a named publication',
+  S: 'secondary source',
+  M: 'from memory / common practice',
+  D: 'derived or assumed here',
+  user: 'set by the user',
+  estimated: 'estimated from the schedule',
+  observed: 'observed (realtime data)',
+};
+
+const r1 = (v: number | null): number | null => (v === null || !Number.isFinite(v) ? null : Math.round(v * 10) / 10);
+const r5 = (v: number): number => Math.round(v * 1e5) / 1e5;
+
+function thin(path: [number, number][], max: number): [number, number][] {
+  if (path.length <= max) return path.map(([x, y]) => [r5(x), r5(y)]);
+  const step = (path.length - 1) / (max - 1);
+  const out: [number, number][] = [];
+  for (let i = 0; i < max; i++) {
+    const [x, y] = path[Math.round(i * step)];
+    out.push([r5(x), r5(y)]);
+  }
+  return out;
+}
+
+/** The data block the page's script draws from: compact arrays, numbers rounded. */
+export function pageData(result: AuditResult, units: Units, maxPathPoints: number): Record<string, unknown> {
+  const stopsBy = new Map<string, StopResult[]>();
+  for (const s of result.stops) {
+    let l = stopsBy.get(s.patternId);
+    if (!l) stopsBy.set(s.patternId, (l = []));
+    l.push(s);
+  }
+  const wideBy = new Map<string, [number, number, number][]>();
+  for (const g of result.gaps) {
+    let l = wideBy.get(g.patternId);
+    if (!l) wideBy.set(g.patternId, (l = []));
+    if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, 1]);
+  }
+  const routeName = new Map<string, string>();
+  for (const p of result.patterns) if (!routeName.has(p.routeId)) routeName.set(p.routeId, p.routeShortName || p.routeId);
+  const patterns = result.patterns.map((p: PatternResult) => {
+    const stops = (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex);
+    return {
+      id: p.patternId,
+      route: p.routeId,
+      routeName: p.routeShortName || p.routeId,
+      dir: p.directionId,
+      headsign: p.headsign,
+      len: r1(p.lengthM),
+      trips: r1(p.tripsPerDay),
+      median: r1(p.medianGapM),
+      mean: r1(p.meanGapM),
+      opt: r1(p.optimalSpacingM),
+      lo: r1(p.bandLowM),
+      hi: r1(p.bandHighM),
+      close: p.closeStops,
+      wide: p.wideGaps,
+      optCount: p.optimalStopCount,
+      lost: r1(p.paxMinLostPerDay),
+      demand: p.demandSource,
+      lostTime: r1(p.lostTimePerStopS),
+      distSource: p.distanceSource,
+      curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
+      curCost: r1(p.currentCostPerRiderS),
+      optCost: r1(p.optimalCostPerRiderS),
+      path: thin(p.path, maxPathPoints),
+      // [index, stop_id, name, lat, lon, dist, verdict letter, fixed reason, timepoint, removal net, boardings, alightings]
+      stops: stops.map((s, i) => [
+        i,
+        s.stopId,
+        s.stopName,
+        r5(s.stopLat),
+        r5(s.stopLon),
+        r1(s.distAlongM),
+        VERDICT_LETTER[s.verdict],
+        s.fixedReason,
+        s.timepoint ? 1 : 0,
+        r1(s.removalNetPaxMinPerDay),
+        r1(s.boardingsPerDay),
+        r1(s.alightingsPerDay),
+      ]),
+      gaps: wideBy.get(p.patternId) ?? [],
+    };
+  });
+  const candidates = result.candidates.map((c) => ({
+    rank: c.rank,
+    action: c.action,
+    id: c.stopId,
+    name: c.stopName,
+    routes: c.routeIds,
+    routeNames: c.routeIds.map((r) => routeName.get(r) ?? r),
+    net: r1(c.netPaxMinPerDay),
+    riders: r1(c.ridersAffectedPerDay),
+    rt: r1(c.runTimeSavedPerTripS),
+    vh: Math.round(c.vehicleHoursPerDay * 1000) / 1000,
+    robust: c.robust,
+  }));
+  return { units, assumed: result.demandSource === 'assumed', patterns, candidates };
+}
+
+function median(values: number[]): number {
+  const v = values.filter(Number.isFinite).sort((a, b) => a - b);
+  if (v.length === 0) return 0;
+  const m = v.length >> 1;
+  return v.length % 2 ? v[m] : (v[m - 1] + v[m]) / 2;
+}
+
+function fmt(v: number, digits = 0): string {
+  return Number.isFinite(v) ? v.toLocaleString('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits }) : '–';
+}
+
+function th(key: string, label: string, numeric = false): string {
+  return `<th data-key="${h(key)}"${numeric ? ' class="num"' : ''} scope="col"><button type="button">${h(label)}</button></th>`;
+}
+
+export function indexHtml(result: AuditResult, options: HtmlOptions = {}): string {
+  const { units = 'metric', maxPathPoints = 400 } = options;
+  checkUnits(units);
+  if (!Number.isInteger(maxPathPoints) || maxPathPoints < 2) {
+    throw new StopspanError('bad-option', `invalid option maxPathPoints: expected an integer >= 2, got ${maxPathPoints}`, { value: String(maxPathPoints) });
+  }
+  const d = (m: number | null): string => formatShortDistance(m, units);
+  const hl = result.headline;
+  const assumed = result.demandSource === 'assumed';
+  const demandBadge = assumed
+    ? '<span class="badge assumed">assumed demand</span>'
+    : '<span class="badge observed">observed demand</span>';
+  const assumedNote = assumed ? ' <span class="badge assumed">assumed</span>' : '';
+  const bandLow = median(result.patterns.map((p) => p.bandLowM));
+  const bandHigh = median(result.patterns.map((p) => p.bandHighM));
+  const hist = histogramSvg(
+    { gapsM: result.gaps.map((g) => g.gapM), bandLowM: bandLow, bandHighM: bandHigh, optimalM: hl.meanOptimalSpacingM, medianGapM: hl.medianGapM },
+    units,
+  );
+  const belowBand = result.gaps.filter((g) => g.gapM < bandLow).length;
+  const aboveBand = result.gaps.filter((g) => g.gapM > bandHigh).length;
+  const top = result.candidates.slice(0, 5);
+  const topList = top.length
+    ? `<ol class="top-cands">${top
+        .map(
+          (c) =>
+            `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}</li>`,
+        )
+        .join('')}</ol>`
+    : '<p class="note">No stop change saves riders time under these parameters.</p>';
+  const params = Object.entries(result.params)
+    .map(
+      ([name, p]) =>
+        `<tr><td><code>${h(name)}</code></td><td class="num">${h(p.value === null ? '—' : String(p.value))}</td><td title="${h(SOURCE_TEXT[p.source] ?? p.source)}">${h(p.source)}: ${h(SOURCE_TEXT[p.source] ?? '')}</td><td>${h(p.note)}</td></tr>`,
+    )
+    .join('');
+  const warnings = result.warnings.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">warning</th><th scope="col" class="num">count</th><th scope="col">what it means</th><th scope="col">examples</th></tr></thead><tbody>${result.warnings
+        .map(
+          (w) =>
+            `<tr><td><code>${h(w.code)}</code></td><td class="num">${h(fmt(w.count))}</td><td>${h(w.message)}</td><td>${w.examples.map((e) => `<code>${h(e)}</code>`).join(' ')}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">The feed was read without warnings.</p>';
+  const sensitivity = result.sensitivity.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th></tr></thead><tbody>${result.sensitivity
+        .map(
+          (s) =>
+            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">No sensitivity cases were run.</p>';
+  const feedName = result.feed.publisher || result.feed.source;
+  const title = `Stop spacing audit: ${feedName}, ${result.date}`;
+  const paxHeader = `passenger-min/day${assumed ? ' (assumed)' : ''}`;
+
+  return `<!doctype html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; script-src 'unsafe-inline'; img-src data:">
+<title>${h(title)}</title>
+<style>${PAGE_STYLE}</style>
+</head>
+<body>
+<header class="top">
+<h1>Stop spacing audit: ${h(feedName)}</h1>
+<p>Analysis date ${h(result.date)} · feed <code>${h(result.feed.source)}</code>${result.feed.version ? ` · version ${h(result.feed.version)}` : ''} · generated ${h(result.generatedAt)} by ${h(result.tool.name)} ${h(result.tool.version)}</p>
+</header>
+<main>
+<section id="headline" aria-labelledby="headline-h">
+<h2 id="headline-h">At a glance</h2>
+<div class="cards">
+<div class="card"><div class="k">Feed</div><div class="v">${h(feedName)}</div><div class="s">${h(result.feed.source)}${result.feed.contentHash ? ` · ${h(result.feed.contentHash)}` : ''}</div></div>
+<div class="card"><div class="k">Analysis date</div><div class="v">${h(result.date)}</div><div class="s">${h(fmt(hl.trips))} trips that day</div></div>
+<div class="card"><div class="k">Patterns</div><div class="v">${h(fmt(hl.patterns))}</div><div class="s">route, direction and stop sequence</div></div>
+<div class="card"><div class="k">Stops served</div><div class="v">${h(fmt(hl.stops))}</div><div class="s">${h(fmt(hl.closeStops))} close stops, ${h(fmt(hl.wideGaps))} wide gaps</div></div>
+<div class="card"><div class="k">Median gap</div><div class="v">${h(d(hl.medianGapM))}</div><div class="s">modelled optimum ${h(d(hl.meanOptimalSpacingM))} (mean over patterns); near-optimal band about ${h(d(bandLow))} to ${h(d(bandHigh))}</div></div>
+<div class="card"><div class="k">Passenger-minutes lost per day</div><div class="v">${h(fmt(hl.paxMinLostPerDay))}</div><div class="s">today against the optimised stop pattern${assumedNote}</div></div>
+<div class="card"><div class="k">Demand</div><div class="v">${assumed ? 'assumed' : 'observed'}</div><div class="s">${demandBadge} ${assumed ? 'spread evenly along each pattern; figures are estimates' : 'from a stop-level ridership file'}</div></div>
+<div class="card"><div class="k">Lost time per stop</div><div class="v">${result.lostTimeSource === 'observed' ? 'observed' : 'defaults'}</div><div class="s">${result.lostTimeSource === 'observed' ? 'dwell and stopping from realtime data' : 'door, braking and re-entry defaults (see parameters)'}</div></div>
+</div>
+<h3>Top candidates</h3>
+${topList}
+</section>
+
+<section class="cautions" id="cautions" aria-labelledby="cautions-h">
+<h2 id="cautions-h">Before acting on this report</h2>
+<ul>${CAUTIONS.map((c) => `<li>${h(c)}</li>`).join('')}</ul>
+${assumed ? '<p><strong>Demand in this report is assumed, not counted:</strong> every passenger-minute figure is marked <span class="badge assumed">assumed</span>.</p>' : ''}
+</section>
+
+<section id="gaps" aria-labelledby="gaps-h">
+<h2 id="gaps-h">How far apart the stops are</h2>
+<p class="note">Every gap between consecutive stops of every pattern. The shaded band is where riders' total time stays within the tolerance of the optimum; ${h(fmt(belowBand))} gaps lie below it (rust bars, stops closer than worthwhile) and ${h(fmt(aboveBand))} above it (blue bars, long walks). The band shown is the median over patterns; each pattern has its own.</p>
+${hist}
+</section>
+
+<section id="curve" aria-labelledby="curve-h">
+<h2 id="curve-h">Riders' time against stop spacing</h2>
+<p class="note">Closer stops mean shorter walks but more stopping; the curve adds both for one rider. Its bottom is flat, so only spacing well outside the band costs much.</p>
+<div class="controls"><label for="curve-pattern">Pattern<select id="curve-pattern"></select></label></div>
+<div id="curve-host"></div>
+</section>
+
+<section id="candidates" aria-labelledby="cand-h">
+<h2 id="cand-h">Candidates</h2>
+<p class="note">Stops whose removal, or gaps where an added stop, would lower riders' total time, summed over every pattern serving the stop. Negative passenger-minutes are a saving. Click a column heading to sort.</p>
+<div class="controls">
+<label for="cand-route">Route<select id="cand-route"><option value="">all routes</option></select></label>
+<label for="cand-action">Action<select id="cand-action"><option value="">remove and add</option><option value="remove">remove a stop</option><option value="add">add a stop</option></select></label>
+<label for="cand-search">Stop name or id<input id="cand-search" type="search" placeholder="search"></label>
+<label for="cand-robust" style="flex-direction:row;align-items:center;gap:6px"><input id="cand-robust" type="checkbox"> robust to the sensitivity cases only</label>
+</div>
+<p class="note" id="cand-count" aria-live="polite"></p>
+<div class="table-wrap"><table id="cand-table"><thead><tr>${th('rank', 'rank', true)}${th('action', 'action')}${th('stop', 'stop')}${th('routes', 'routes')}${th('net', `net ${paxHeader}`, true)}${th('riders', 'riders affected/day', true)}${th('rt', 'run time saved/trip (s)', true)}${th('vh', 'vehicle-hours saved/day', true)}${th('robust', 'robust')}</tr></thead><tbody></tbody></table></div>
+</section>
+
+<section id="patterns" aria-labelledby="pat-h">
+<h2 id="pat-h">Patterns</h2>
+<div class="controls">
+<label for="pat-route">Route<select id="pat-route"><option value="">all routes</option></select></label>
+<label for="pat-verdict">Verdict<select id="pat-verdict"><option value="">all patterns</option><option value="close">with close stops</option><option value="wide">with wide gaps</option><option value="ok">all gaps within the band</option></select></label>
+</div>
+<p class="note" id="pat-count" aria-live="polite"></p>
+<div class="table-wrap"><table id="pat-table"><thead><tr>${th('pattern', 'pattern')}${th('route', 'route')}${th('headsign', 'headsign')}${th('stops', 'stops', true)}${th('length', 'length', true)}${th('median', 'median gap', true)}${th('opt', 'optimum', true)}${th('close', 'close stops', true)}${th('wide', 'wide gaps', true)}${th('lost', `${paxHeader} lost`, true)}</tr></thead><tbody></tbody></table></div>
+</section>
+
+<section id="pattern-detail" aria-labelledby="detail-h">
+<h2 id="detail-h">Each pattern: map and stops along the route</h2>
+<p class="note">Open a pattern to draw its schematic map and strip diagram (ordered by passenger-minutes lost). Triangles are close stops, diamonds sit beside wide gaps, squares are fixed stops (terminals, timepoints), open circles are within the band; T marks a timepoint.</p>
+<div id="pattern-sections"></div>
+</section>
+
+<section id="sensitivity" aria-labelledby="sens-h">
+<h2 id="sens-h">How much the conclusions depend on the parameters</h2>
+${sensitivity}
+</section>
+
+<section id="parameters" aria-labelledby="params-h">
+<h2 id="params-h">Parameters and their sources</h2>
+<div class="table-wrap"><table><thead><tr><th scope="col">parameter</th><th scope="col" class="num">value</th><th scope="col">source</th><th scope="col">note</th></tr></thead><tbody>${params}</tbody></table></div>
+<h3>Assumptions</h3>
+<ul>${result.assumptions.map((a) => `<li>${h(a)}</li>`).join('')}</ul>
+</section>
+
+<section id="warnings" aria-labelledby="warn-h">
+<h2 id="warn-h">Warnings from reading the feed</h2>
+${warnings}
+</section>
+
+<footer>Distances are along each pattern's path in ${units === 'imperial' ? 'feet and miles (computed in metres)' : 'metres'}. The CSV, GeoJSON and summary.json files beside this page hold the same figures.</footer>
+</main>
+<script type="application/json" id="report-data">${jsonForScript(pageData(result, units, maxPathPoints))}</script>
+<script>${PAGE_SCRIPT}</script>
+</body>
+</html>
+`;
+}

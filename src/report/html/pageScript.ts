@@ -1,0 +1,382 @@
+// The page's inline script: reads the embedded JSON data block and draws the interactive parts (cost
+// curve with a pattern chooser, sortable and filterable tables, per-pattern strip diagrams and
+// schematic maps rendered only when their <details> is opened). Feed text is only ever set through
+// textContent or setAttribute, never parsed as markup. Plain ES2020, no template literals, no network.
+
+export const PAGE_SCRIPT = String.raw`
+(function () {
+  'use strict';
+  var D = JSON.parse(document.getElementById('report-data').textContent);
+  var SVGNS = 'http://www.w3.org/2000/svg';
+  var IMP = D.units === 'imperial';
+  var VERDICT_TEXT = { C: 'close', W: 'wide', O: 'ok', F: 'fixed' };
+
+  function el(tag, attrs, text) {
+    var e = document.createElement(tag);
+    if (attrs) for (var k in attrs) e.setAttribute(k, attrs[k]);
+    if (text !== undefined && text !== null) e.textContent = String(text);
+    return e;
+  }
+  function sv(tag, attrs, text) {
+    var e = document.createElementNS(SVGNS, tag);
+    if (attrs) for (var k in attrs) e.setAttribute(k, String(attrs[k]));
+    if (text !== undefined && text !== null) e.textContent = String(text);
+    return e;
+  }
+  function num(v, d) {
+    if (v === null || v === undefined || !isFinite(v)) return '–';
+    return Number(v).toLocaleString('en-US', { minimumFractionDigits: d || 0, maximumFractionDigits: d || 0 });
+  }
+  function len(m) {
+    if (m === null || m === undefined || !isFinite(m)) return '–';
+    return IMP ? num(m / 0.3048) + ' ft' : num(m) + ' m';
+  }
+  function longLen(m) {
+    return IMP ? num(m / 1609.344, 1) + ' mi' : num(m / 1000, 1) + ' km';
+  }
+  function lenUnit() { return IMP ? 'ft' : 'm'; }
+  function toUnit(m) { return IMP ? m / 0.3048 : m; }
+  function signed(v, d) {
+    if (v === null || v === undefined || !isFinite(v)) return '–';
+    return (v > 0 ? '+' : '') + num(v, d);
+  }
+  function assumedTag(src) { return src === 'assumed' ? ' (assumed demand)' : ''; }
+  function patternLabel(p) {
+    return 'Route ' + p.routeName + ' to ' + p.headsign + ' (' + p.id + ')';
+  }
+
+  // ---- verdict markers: shape and colour together, so colour is never the only cue ----
+  function marker(v, x, y, r) {
+    if (v === 'C') return sv('path', { 'class': 'shape mk-close', d: 'M' + (x - r) + ' ' + (y - r * 0.8) + 'L' + (x + r) + ' ' + (y - r * 0.8) + 'L' + x + ' ' + (y + r) + 'Z' });
+    if (v === 'W') return sv('path', { 'class': 'shape mk-wide', d: 'M' + x + ' ' + (y - r * 1.1) + 'L' + (x + r * 1.1) + ' ' + y + 'L' + x + ' ' + (y + r * 1.1) + 'L' + (x - r * 1.1) + ' ' + y + 'Z' });
+    if (v === 'F') return sv('rect', { 'class': 'shape mk-fixed', x: x - r * 0.85, y: y - r * 0.85, width: r * 1.7, height: r * 1.7 });
+    return sv('circle', { 'class': 'shape mk-ok', cx: x, cy: y, r: r * 0.8 });
+  }
+  function legend() {
+    var box = el('div', { 'class': 'legend' });
+    [['C', 'close stop (below the band): triangle'], ['W', 'next to a wide gap: diamond'], ['O', 'within the band: open circle'], ['F', 'fixed (terminal, timepoint, transfer or kept): square']].forEach(function (it) {
+      var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
+      s.appendChild(marker(it[0], 8, 8, 6));
+      var span = el('span');
+      span.appendChild(s);
+      span.appendChild(document.createTextNode(' ' + it[1]));
+      box.appendChild(span);
+    });
+    var s2 = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
+    s2.appendChild(sv('line', { 'class': 'gap-wide', x1: 1, x2: 25, y1: 6, y2: 6 }));
+    var sp2 = el('span');
+    sp2.appendChild(s2);
+    sp2.appendChild(document.createTextNode(' wide gap (above the band), labelled W'));
+    box.appendChild(sp2);
+    return box;
+  }
+  function stopTitle(p, s) {
+    var parts = [s[2] + ' (stop ' + s[1] + ')', 'stop ' + (s[0] + 1) + ' of ' + p.stops.length + ', ' + len(s[5]) + ' along',
+      'verdict: ' + VERDICT_TEXT[s[6]] + (s[7] ? ' (' + s[7] + ')' : '')];
+    var prev = p.stops[s[0] - 1], next = p.stops[s[0] + 1];
+    if (prev) parts.push('gap before ' + len(s[5] - prev[5]));
+    if (next) parts.push('gap after ' + len(next[5] - s[5]));
+    parts.push('boardings ' + num(s[10]) + '/day, alightings ' + num(s[11]) + '/day' + assumedTag(p.demand));
+    if (s[9] !== null) parts.push('removing it: ' + signed(s[9], 1) + ' passenger-min/day' + assumedTag(p.demand));
+    if (s[8]) parts.push('timepoint');
+    return parts.join('; ');
+  }
+  function stopGroup(p, s, shape, info) {
+    var g = sv('g', { 'class': 'stop', tabindex: '0', role: 'img', 'aria-label': stopTitle(p, s) });
+    g.appendChild(sv('title', null, stopTitle(p, s)));
+    g.appendChild(shape);
+    var show = function () { info.textContent = stopTitle(p, s); };
+    g.addEventListener('mouseenter', show);
+    g.addEventListener('focus', show);
+    return g;
+  }
+
+  // ---- strip diagram: stops by distance along the route ----
+  function strip(p, info) {
+    var n = p.stops.length, W = Math.max(880, n * 18), H = 118, L = 24, R = 24, y = 62;
+    var total = p.len > 0 ? p.len : 1;
+    function x(d) { return L + (d / total) * (W - L - R); }
+    var s = sv('svg', { 'class': 'chart strip', viewBox: '0 0 ' + W + ' ' + H, width: W, height: H, role: 'group', 'aria-label': 'Strip diagram of ' + patternLabel(p) });
+    s.style.maxWidth = 'none';
+    s.appendChild(sv('line', { 'class': 'strip-line', x1: x(0), x2: x(total), y1: y, y2: y }));
+    p.gaps.forEach(function (g) {
+      if (!g[2]) return;
+      var a = p.stops[g[0]][5], b = a + g[1];
+      s.appendChild(sv('line', { 'class': 'gap-wide', x1: x(a), x2: x(b), y1: y, y2: y }));
+      var t = sv('text', { x: (x(a) + x(b)) / 2, y: y - 16, 'text-anchor': 'middle', 'class': 'marker-label' }, 'W ' + len(g[1]));
+      s.appendChild(t);
+    });
+    p.stops.forEach(function (st) {
+      var cx = x(st[5]);
+      if (st[8]) {
+        s.appendChild(sv('line', { 'class': 'mk-tp', x1: cx, x2: cx, y1: y + 10, y2: y + 20 }));
+        s.appendChild(sv('text', { x: cx, y: y + 31, 'text-anchor': 'middle', 'class': 'tick' }, st[7] === 'terminal' ? 'end' : 'T'));
+      }
+      if (st[6] === 'C') s.appendChild(sv('text', { x: cx, y: y - 12, 'text-anchor': 'middle', 'class': 'marker-label' }, 'C'));
+      s.appendChild(stopGroup(p, st, marker(st[6], cx, y, st[6] === 'F' && st[7] === 'terminal' ? 7.5 : 6), info));
+    });
+    // distance ticks every kilometre or mile
+    var stepM = IMP ? 1609.344 : 1000;
+    for (var d = 0; d <= total + 1; d += stepM) {
+      s.appendChild(sv('line', { 'class': 'axis', x1: x(d), x2: x(d), y1: H - 22, y2: H - 16 }));
+      s.appendChild(sv('text', { x: x(d), y: H - 4, 'text-anchor': 'middle', 'class': 'tick' }, Math.round(d / stepM) + (IMP ? ' mi' : ' km')));
+    }
+    s.appendChild(sv('text', { x: L, y: 14, 'class': 'tick' }, 'first stop'));
+    s.appendChild(sv('text', { x: W - R, y: 14, 'text-anchor': 'end', 'class': 'tick' }, 'last stop, ' + longLen(total)));
+    return s;
+  }
+
+  // ---- schematic map: local equirectangular projection of the path, no tiles ----
+  function map(p, info) {
+    var pts = p.path.length >= 2 ? p.path : p.stops.map(function (s) { return [s[4], s[3]]; });
+    var all = pts.concat(p.stops.map(function (s) { return [s[4], s[3]]; }));
+    var minLon = Infinity, maxLon = -Infinity, minLat = Infinity, maxLat = -Infinity;
+    all.forEach(function (q) { if (q[0] < minLon) minLon = q[0]; if (q[0] > maxLon) maxLon = q[0]; if (q[1] < minLat) minLat = q[1]; if (q[1] > maxLat) maxLat = q[1]; });
+    var k = Math.cos(((minLat + maxLat) / 2) * Math.PI / 180);
+    var W = 420, H = 320, pad = 22;
+    var spanX = Math.max((maxLon - minLon) * k, 1e-6), spanY = Math.max(maxLat - minLat, 1e-6);
+    var sc = Math.min((W - 2 * pad) / spanX, (H - 2 * pad - 20) / spanY);
+    var ox = (W - spanX * sc) / 2, oy = (H - 20 - spanY * sc) / 2;
+    function px(q) { return [ox + (q[0] - minLon) * k * sc, oy + (maxLat - q[1]) * sc]; }
+    var s = sv('svg', { 'class': 'chart map', viewBox: '0 0 ' + W + ' ' + H, role: 'group', 'aria-label': 'Schematic map of ' + patternLabel(p) });
+    var dpath = pts.map(function (q, i) { var c = px(q); return (i ? 'L' : 'M') + c[0].toFixed(1) + ' ' + c[1].toFixed(1); }).join('');
+    s.appendChild(sv('path', { 'class': 'route-line', d: dpath }));
+    p.stops.forEach(function (st) {
+      var c = px([st[4], st[3]]);
+      s.appendChild(stopGroup(p, st, marker(st[6], c[0], c[1], 4.5), info));
+    });
+    var first = px([p.stops[0][4], p.stops[0][3]]);
+    s.appendChild(sv('text', { x: first[0] + 8, y: first[1] - 6, 'class': 'marker-label' }, 'start'));
+    // scale bar: a round length near a quarter of the width
+    var mPerPx = 111320 / sc;
+    var want = mPerPx * W / 4, unitM = IMP ? 0.3048 : 1, nice = [100, 200, 250, 500, 1000, 2000, 2500, 5000, 10000, 20000, 50000];
+    var barU = nice[0];
+    nice.forEach(function (v) { if (v * unitM <= want) barU = v; });
+    var barPx = barU * unitM / mPerPx;
+    s.appendChild(sv('line', { 'class': 'axis', x1: 12, x2: 12 + barPx, y1: H - 12, y2: H - 12, 'stroke-width': 3 }));
+    s.appendChild(sv('text', { x: 16 + barPx, y: H - 8, 'class': 'tick' }, IMP ? (barU >= 5280 ? num(barU / 5280, 1) + ' mi' : barU + ' ft') : (barU >= 1000 ? barU / 1000 + ' km' : barU + ' m')));
+    s.appendChild(sv('text', { x: W - 12, y: 16, 'text-anchor': 'end', 'class': 'tick' }, 'N ↑'));
+    return s;
+  }
+
+  function patternBody(p, body) {
+    var info = el('p', { 'class': 'info', 'aria-live': 'polite' }, 'Point at or tab to a stop to read its numbers.');
+    var facts = el('dl', { 'class': 'kv' });
+    [['stops', num(p.stops.length)], ['length', longLen(p.len)], ['trips per day', num(p.trips, 1)],
+      ['median gap', len(p.median)], ['mean gap', len(p.mean)], ['modelled optimum', len(p.opt)],
+      ['near-optimal band', len(p.lo) + ' to ' + len(p.hi)], ['close stops', num(p.close)], ['wide gaps', num(p.wide)],
+      ['stops the optimiser keeps', num(p.optCount)], ['passenger-min lost per day', num(p.lost) + assumedTag(p.demand)],
+      ['lost time per stop', num(p.lostTime, 1) + ' s'], ['distances from', p.distSource]].forEach(function (kv) {
+      facts.appendChild(el('dt', null, kv[0]));
+      facts.appendChild(el('dd', null, kv[1]));
+    });
+    var grid = el('div', { 'class': 'pat-grid' });
+    var left = el('div');
+    left.appendChild(map(p, info));
+    grid.appendChild(left);
+    grid.appendChild(facts);
+    body.appendChild(grid);
+    body.appendChild(el('h3', null, 'Stops along the route'));
+    var wrap = el('div', { 'class': 'strip-wrap' });
+    wrap.appendChild(strip(p, info));
+    body.appendChild(wrap);
+    body.appendChild(info);
+    body.appendChild(legend());
+  }
+
+  function buildPatternSections() {
+    var host = document.getElementById('pattern-sections');
+    var order = D.patterns.slice().sort(function (a, b) { return b.lost - a.lost; });
+    order.forEach(function (p) {
+      var d = el('details', { 'class': 'pattern', id: 'p-' + p.id });
+      var sum = el('summary');
+      sum.appendChild(document.createTextNode(patternLabel(p) + ' '));
+      sum.appendChild(el('span', { 'class': 's' }, '· ' + p.stops.length + ' stops · ' + p.close + ' close · ' + p.wide + ' wide · ' + num(p.lost) + ' passenger-min lost/day' + assumedTag(p.demand)));
+      d.appendChild(sum);
+      var body = el('div', { 'class': 'body' });
+      d.appendChild(body);
+      d.addEventListener('toggle', function () {
+        if (d.open && !body.firstChild) patternBody(p, body);
+      });
+      host.appendChild(d);
+    });
+  }
+
+  // ---- cost curve for a chosen pattern ----
+  function drawCurve(p) {
+    var host = document.getElementById('curve-host');
+    host.textContent = '';
+    var W = 760, H = 290, L = 58, R = 18, T = 22, B = 46;
+    var pts = p.curve;
+    if (!pts.length) { host.appendChild(el('p', { 'class': 'note' }, 'No cost curve for this pattern.')); return; }
+    var xs = pts.map(function (q) { return q[0]; }), ys = pts.map(function (q) { return q[1] / 60; });
+    var x0 = Math.min.apply(null, xs), x1 = Math.max.apply(null, xs);
+    var y0 = Math.min.apply(null, ys), y1 = Math.max.apply(null, ys);
+    y0 = Math.max(0, y0 - (y1 - y0) * 0.15);
+    function X(m) { return L + (Math.min(Math.max(m, x0), x1) - x0) / (x1 - x0 || 1) * (W - L - R); }
+    function Y(min) { return T + (1 - (min - y0) / (y1 - y0 || 1)) * (H - T - B); }
+    var s = sv('svg', { 'class': 'chart', viewBox: '0 0 ' + W + ' ' + H, role: 'img', 'aria-label': 'Riders\u2019 total time per rider against stop spacing for ' + patternLabel(p) });
+    s.appendChild(sv('rect', { 'class': 'band', x: X(p.lo), y: T, width: Math.max(0, X(p.hi) - X(p.lo)), height: H - T - B }));
+    s.appendChild(sv('text', { 'class': 'band-label', x: (X(p.lo) + X(p.hi)) / 2, y: T - 6, 'text-anchor': 'middle' }, 'near-optimal band'));
+    s.appendChild(sv('path', { 'class': 'curve', d: pts.map(function (q, i) { return (i ? 'L' : 'M') + X(q[0]).toFixed(1) + ' ' + Y(q[1] / 60).toFixed(1); }).join('') }));
+    s.appendChild(sv('line', { 'class': 'opt-line', x1: X(p.opt), x2: X(p.opt), y1: T, y2: H - B }));
+    s.appendChild(sv('circle', { cx: X(p.opt), cy: Y(p.optCost / 60), r: 5, fill: '#4a6b3f' }));
+    s.appendChild(sv('text', { 'class': 'marker-label', x: X(p.opt) + 7, y: Y(p.optCost / 60) + 16 }, 'optimum ' + len(p.opt) + ', ' + num(p.optCost / 60, 2) + ' min'));
+    s.appendChild(sv('line', { 'class': 'median-line', x1: X(p.mean), x2: X(p.mean), y1: T, y2: H - B }));
+    s.appendChild(sv('rect', { x: X(p.mean) - 5, y: Y(p.curCost / 60) - 5, width: 10, height: 10, fill: '#1e2a31' }));
+    s.appendChild(sv('text', { 'class': 'marker-label', x: X(p.mean) + 8, y: Y(p.curCost / 60) - 8 }, 'today (mean gap) ' + len(p.mean) + ', ' + num(p.curCost / 60, 2) + ' min'));
+    s.appendChild(sv('line', { 'class': 'axis', x1: L, x2: W - R, y1: H - B, y2: H - B }));
+    s.appendChild(sv('line', { 'class': 'axis', x1: L, x2: L, y1: T, y2: H - B }));
+    var stepM = IMP ? 500 * 0.3048 : 100;
+    var lab = 0;
+    for (var m = Math.ceil(x0 / stepM) * stepM; m <= x1 + 1e-6; m += stepM) {
+      if (lab++ % 2 === 0) s.appendChild(sv('text', { 'class': 'tick', x: X(m), y: H - B + 16, 'text-anchor': 'middle' }, num(toUnit(m))));
+      s.appendChild(sv('line', { 'class': 'axis', x1: X(m), x2: X(m), y1: H - B, y2: H - B + 4 }));
+    }
+    for (var i = 0; i <= 4; i++) {
+      var v = y0 + (y1 - y0) * i / 4;
+      s.appendChild(sv('text', { 'class': 'tick', x: L - 6, y: Y(v) + 4, 'text-anchor': 'end' }, num(v, 1)));
+    }
+    s.appendChild(sv('text', { 'class': 'axis-label', x: (L + W - R) / 2, y: H - 8, 'text-anchor': 'middle' }, 'stop spacing (' + lenUnit() + ')'));
+    s.appendChild(sv('text', { 'class': 'axis-label', transform: 'translate(14 ' + ((T + H - B) / 2) + ') rotate(-90)', 'text-anchor': 'middle' }, 'minutes per rider (walk weighted + stops)'));
+    host.appendChild(s);
+    var pct = p.curCost > 0 ? (1 - p.optCost / p.curCost) * 100 : 0;
+    host.appendChild(el('p', { 'class': 'note' }, 'At today\u2019s mean gap of ' + len(p.mean) + ' a rider on ' + patternLabel(p) + ' spends ' + num(p.curCost / 60, 2) + ' min walking (weighted) and waiting through stops; at the optimum of ' + len(p.opt) + ' it would be ' + num(p.optCost / 60, 2) + ' min (' + num(pct, 1) + ' % less). Anywhere in the shaded band the cost is within the tolerance of the optimum: the bottom of the curve is flat.' + assumedTag(p.demand)));
+  }
+  function buildCurveChooser() {
+    var sel = document.getElementById('curve-pattern');
+    var order = D.patterns.slice().sort(function (a, b) { return b.lost - a.lost; });
+    order.forEach(function (p) { sel.appendChild(el('option', { value: p.id }, patternLabel(p))); });
+    var byId = {};
+    D.patterns.forEach(function (p) { byId[p.id] = p; });
+    sel.addEventListener('change', function () { drawCurve(byId[sel.value]); });
+    if (order.length) drawCurve(order[0]);
+  }
+
+  // ---- sortable, filterable tables ----
+  function makeTable(cfg) {
+    var table = document.getElementById(cfg.tableId);
+    var tbody = table.querySelector('tbody');
+    var count = document.getElementById(cfg.countId);
+    var state = { key: cfg.defaultKey, dir: cfg.defaultDir };
+    var ths = table.querySelectorAll('thead th');
+    function render() {
+      var rows = cfg.rows.filter(cfg.filter);
+      var col = cfg.columns.filter(function (c) { return c.key === state.key; })[0];
+      rows.sort(function (a, b) {
+        var va = col.value(a), vb = col.value(b), r;
+        if (typeof va === 'number' && typeof vb === 'number') r = va - vb;
+        else r = String(va).localeCompare(String(vb), 'en', { numeric: true });
+        return state.dir === 'asc' ? r : -r;
+      });
+      tbody.textContent = '';
+      var shown = rows.slice(0, cfg.limit);
+      shown.forEach(function (r) {
+        var tr = el('tr');
+        cfg.columns.forEach(function (c) {
+          var td = el('td', c.num ? { 'class': 'num' } : null);
+          var out = c.cell ? c.cell(r, td) : c.value(r);
+          if (out !== undefined) td.textContent = String(out);
+          tr.appendChild(td);
+        });
+        tbody.appendChild(tr);
+      });
+      count.textContent = 'Showing ' + shown.length + ' of ' + rows.length + ' matching (' + cfg.rows.length + ' in all).';
+      for (var i = 0; i < ths.length; i++) {
+        var k = ths[i].getAttribute('data-key');
+        if (k === state.key) ths[i].setAttribute('aria-sort', state.dir === 'asc' ? 'ascending' : 'descending');
+        else ths[i].removeAttribute('aria-sort');
+      }
+    }
+    for (var i = 0; i < ths.length; i++) (function (th) {
+      var b = th.querySelector('button');
+      b.addEventListener('click', function () {
+        var k = th.getAttribute('data-key');
+        if (state.key === k) state.dir = state.dir === 'asc' ? 'desc' : 'asc';
+        else { state.key = k; state.dir = th.classList.contains('num') ? 'desc' : 'asc'; }
+        render();
+      });
+    })(ths[i]);
+    cfg.inputs.forEach(function (id) {
+      var inp = document.getElementById(id);
+      inp.addEventListener(inp.tagName === 'INPUT' && inp.type !== 'checkbox' ? 'input' : 'change', render);
+    });
+    render();
+  }
+  function fillRouteSelect(id, routes) {
+    var sel = document.getElementById(id);
+    routes.forEach(function (r) { sel.appendChild(el('option', { value: r[0] }, r[1])); });
+  }
+  function routeList() {
+    var seen = {}, out = [];
+    D.patterns.forEach(function (p) { if (!seen[p.route]) { seen[p.route] = 1; out.push([p.route, p.routeName === p.route ? p.route : p.routeName + ' (' + p.route + ')']); } });
+    return out.sort(function (a, b) { return a[1].localeCompare(b[1], 'en', { numeric: true }); });
+  }
+
+  function buildCandidates() {
+    fillRouteSelect('cand-route', routeList());
+    var routeSel = document.getElementById('cand-route'), actSel = document.getElementById('cand-action');
+    var robust = document.getElementById('cand-robust'), q = document.getElementById('cand-search');
+    makeTable({
+      tableId: 'cand-table', countId: 'cand-count', rows: D.candidates, limit: 400, defaultKey: 'net', defaultDir: 'asc',
+      inputs: ['cand-route', 'cand-action', 'cand-robust', 'cand-search'],
+      filter: function (c) {
+        if (routeSel.value && c.routes.indexOf(routeSel.value) < 0) return false;
+        if (actSel.value && c.action !== actSel.value) return false;
+        if (robust.checked && !c.robust) return false;
+        var t = q.value.trim().toLowerCase();
+        if (t && (c.name + ' ' + c.id).toLowerCase().indexOf(t) < 0) return false;
+        return true;
+      },
+      columns: [
+        { key: 'rank', num: true, value: function (c) { return c.rank; } },
+        { key: 'action', value: function (c) { return c.action; } },
+        { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); } },
+        { key: 'routes', value: function (c) { return c.routeNames.join(', '); } },
+        { key: 'net', num: true, value: function (c) { return c.net; }, cell: function (c, td) { td.className = 'num ' + (c.net < 0 ? 'neg' : 'pos'); return signed(c.net, 1); } },
+        { key: 'riders', num: true, value: function (c) { return c.riders; }, cell: function (c) { return num(c.riders); } },
+        { key: 'rt', num: true, value: function (c) { return c.rt; }, cell: function (c) { return signed(c.rt, 1); } },
+        { key: 'vh', num: true, value: function (c) { return c.vh; }, cell: function (c) { return signed(c.vh, 2); } },
+        { key: 'robust', value: function (c) { return c.robust ? 'yes' : 'no'; } },
+      ],
+    });
+  }
+  function buildPatterns() {
+    fillRouteSelect('pat-route', routeList());
+    var routeSel = document.getElementById('pat-route'), vSel = document.getElementById('pat-verdict');
+    makeTable({
+      tableId: 'pat-table', countId: 'pat-count', rows: D.patterns, limit: 1000, defaultKey: 'lost', defaultDir: 'desc',
+      inputs: ['pat-route', 'pat-verdict'],
+      filter: function (p) {
+        if (routeSel.value && p.route !== routeSel.value) return false;
+        var v = vSel.value;
+        if (v === 'close' && p.close === 0) return false;
+        if (v === 'wide' && p.wide === 0) return false;
+        if (v === 'ok' && (p.close > 0 || p.wide > 0)) return false;
+        return true;
+      },
+      columns: [
+        { key: 'pattern', value: function (p) { return p.id; }, cell: function (p, td) {
+          var a = el('a', { href: '#p-' + p.id }, p.id);
+          a.addEventListener('click', function () { var d = document.getElementById('p-' + p.id); if (d) d.open = true; });
+          td.appendChild(a); return undefined; } },
+        { key: 'route', value: function (p) { return p.routeName; } },
+        { key: 'headsign', value: function (p) { return p.headsign; } },
+        { key: 'stops', num: true, value: function (p) { return p.stops.length; } },
+        { key: 'length', num: true, value: function (p) { return p.len; }, cell: function (p) { return longLen(p.len); } },
+        { key: 'median', num: true, value: function (p) { return p.median; }, cell: function (p) { return len(p.median); } },
+        { key: 'opt', num: true, value: function (p) { return p.opt; }, cell: function (p) { return len(p.opt); } },
+        { key: 'close', num: true, value: function (p) { return p.close; } },
+        { key: 'wide', num: true, value: function (p) { return p.wide; } },
+        { key: 'lost', num: true, value: function (p) { return p.lost; }, cell: function (p) { return num(p.lost); } },
+      ],
+    });
+  }
+
+  buildCurveChooser();
+  buildCandidates();
+  buildPatterns();
+  buildPatternSections();
+  document.documentElement.setAttribute('data-ready', '1');
+})();
+`;

@@ -1,0 +1,9 @@
+// The reports: CSV, GeoJSON, summary.json and the HTML page as strings, and the atomic folder writer.
+export * from './cautions.js';
+export * from './csv.js';
+export * from './geojson.js';
+export * from './summaryJson.js';
+export * from './units.js';
+export { indexHtml, pageData, type HtmlOptions } from './html/indexHtml.js';
+export { escapeHtml, jsonForScript } from './html/escape.js';
+export * from './writeReport.js';

@@ -1,0 +1,82 @@
+// summary.json: the run in one small machine-readable document (feed, date, counts, headline figures,
+// parameters with their sources, warnings, sensitivity, assumptions, cautions), snake_case keys,
+// documented by schema/summary.schema.json. Built as an object and written with JSON.stringify.
+
+import type { AuditResult } from '../audit/types.js';
+import { CAUTIONS } from './cautions.js';
+
+export const SUMMARY_SCHEMA_VERSION = 1;
+export const TOP_CANDIDATES_IN_SUMMARY = 10;
+
+const r1 = (v: number): number => (Number.isFinite(v) ? Math.round(v * 10) / 10 : 0);
+const r3 = (v: number): number => (Number.isFinite(v) ? Math.round(v * 1000) / 1000 : 0);
+
+export function summaryObject(result: AuditResult): Record<string, unknown> {
+  const stopRows = result.stops.length;
+  const h = result.headline;
+  const assumed = result.demandSource === 'assumed';
+  const parameters: Record<string, { value: number | string | null; source: string; note: string }> = {};
+  for (const [name, p] of Object.entries(result.params)) parameters[name] = { value: p.value, source: p.source, note: p.note };
+  return {
+    schema_version: SUMMARY_SCHEMA_VERSION,
+    tool: { name: result.tool.name, version: result.tool.version },
+    feed: {
+      source: result.feed.source,
+      content_hash: result.feed.contentHash,
+      version: result.feed.version,
+      publisher: result.feed.publisher,
+    },
+    date: result.date,
+    generated_at: result.generatedAt,
+    demand_source: result.demandSource,
+    lost_time_source: result.lostTimeSource,
+    counts: {
+      patterns: h.patterns,
+      stops: h.stops,
+      trips: h.trips,
+      stop_rows: stopRows,
+      gaps: result.gaps.length,
+      candidates: result.candidates.length,
+      warnings: result.warnings.length,
+    },
+    headline: {
+      median_gap_m: r1(h.medianGapM),
+      mean_optimal_spacing_m: r1(h.meanOptimalSpacingM),
+      close_stops: h.closeStops,
+      wide_gaps: h.wideGaps,
+      pax_min_lost_per_day: r1(h.paxMinLostPerDay),
+      pax_min_from_assumed_demand: assumed,
+    },
+    top_candidates: result.candidates.slice(0, TOP_CANDIDATES_IN_SUMMARY).map((c) => ({
+      rank: c.rank,
+      action: c.action,
+      stop_id: c.stopId,
+      stop_name: c.stopName,
+      route_ids: [...c.routeIds],
+      net_pax_min_per_day: r1(c.netPaxMinPerDay),
+      riders_affected_per_day: r1(c.ridersAffectedPerDay),
+      run_time_saved_per_trip_s: r1(c.runTimeSavedPerTripS),
+      vehicle_hours_per_day: r3(c.vehicleHoursPerDay),
+      robust: c.robust,
+    })),
+    parameters,
+    sensitivity: result.sensitivity.map((s) => ({
+      label: s.label,
+      walk_weight: s.walkWeight,
+      band_tolerance: s.bandTolerance,
+      mean_optimal_spacing_m: r1(s.meanOptimalSpacingM),
+      close_stops: s.closeStops,
+      wide_gaps: s.wideGaps,
+      pax_min_lost_per_day: r1(s.paxMinLostPerDay),
+      candidates_kept: s.candidatesKept,
+    })),
+    warnings: result.warnings.map((w) => ({ code: w.code, message: w.message, count: w.count, examples: [...w.examples] })),
+    assumptions: [...result.assumptions],
+    cautions: [...CAUTIONS],
+  };
+}
+
+/** The text of summary.json (two-space indentation, final newline). */
+export function summaryJson(result: AuditResult): string {
+  return JSON.stringify(summaryObject(result), null, 2) + '\n';
+}
