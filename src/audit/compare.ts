@@ -1,0 +1,324 @@
+// Comparison of two versions of a feed: stops added, removed, moved and renamed; route patterns added,
+// removed and changed (stops inserted or dropped); and the spacing picture before and after, with the
+// audit's figures and candidates when both audits are given.
+
+import type { Feed, Stop } from '../gtfs/types.js';
+import type { Pattern, PatternSet } from '../network/types.js';
+import type { AuditResult, Candidate } from './types.js';
+import { StopspanError } from '../common/errors.js';
+import { haversineM } from './check.js';
+
+export interface StopBrief {
+  stopId: string;
+  name: string;
+  lat: number;
+  lon: number;
+}
+export interface StopMove {
+  stopId: string;
+  name: string;
+  fromLat: number;
+  fromLon: number;
+  toLat: number;
+  toLon: number;
+  movedM: number;
+}
+export interface StopRename {
+  stopId: string;
+  oldName: string;
+  newName: string;
+}
+export interface PatternBrief {
+  patternId: string;
+  routeId: string;
+  directionId: number;
+  headsign: string;
+  stopCount: number;
+  tripsPerDay: number;
+  firstStopId: string;
+  lastStopId: string;
+}
+export interface PatternChange {
+  routeId: string;
+  directionId: number;
+  oldPatternId: string;
+  newPatternId: string;
+  headsign: string; // the new one
+  inserted: string[]; // stop_ids in the new pattern and not matched in the old, in order
+  dropped: string[]; // stop_ids in the old pattern and not matched in the new, in order
+  /** true when the old pattern became identical to a pattern that already existed (or a new one split off one that stays). */
+  merged: boolean;
+}
+export interface SpacingPicture {
+  patterns: number;
+  stopsServed: number;
+  tripsPerDay: number;
+  medianGapM: number | null; // over every gap between consecutive passenger stops of every pattern
+  closeStops: number | null; // from the audit, when given
+  wideGaps: number | null;
+  paxMinLostPerDay: number | null;
+}
+export interface CandidateBrief {
+  action: 'remove' | 'add';
+  stopId: string;
+  stopName: string;
+  routeIds: string[];
+  netPaxMinPerDay: number;
+}
+export interface FeedIdentity {
+  source: string;
+  contentHash: string;
+  version: string;
+}
+export interface Comparison {
+  old: FeedIdentity;
+  new: FeedIdentity;
+  moveThresholdM: number;
+  stops: { added: StopBrief[]; removed: StopBrief[]; moved: StopMove[]; renamed: StopRename[] };
+  patterns: { added: PatternBrief[]; removed: PatternBrief[]; changed: PatternChange[]; unchanged: number };
+  spacing: { before: SpacingPicture; after: SpacingPicture };
+  /** Candidates that appeared or disappeared; null when the audits were not given. */
+  candidates: { appeared: CandidateBrief[]; disappeared: CandidateBrief[] } | null;
+}
+
+export interface CompareOptions {
+  /** A stop whose position changed by more than this counts as moved. Default 10 m (common practice: below GPS survey noise of a few metres). */
+  moveThresholdM?: number;
+  /** The audits of both versions, for close stops, wide gaps, passenger-minutes and candidates. */
+  audits?: { old: AuditResult; new: AuditResult };
+  /** Two patterns of the same route and direction are the same pattern changed when they share at least this share of the shorter one's stops. Default 0.5. */
+  minSharedShare?: number;
+}
+
+export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, options: CompareOptions = {}): Comparison {
+  const { moveThresholdM = 10, audits, minSharedShare = 0.5 } = options;
+  if (!(typeof moveThresholdM === 'number' && moveThresholdM >= 0 && Number.isFinite(moveThresholdM))) {
+    throw new StopspanError('bad-option', `invalid option moveThresholdM: expected a number >= 0, got ${moveThresholdM}`, {
+      value: String(moveThresholdM),
+    });
+  }
+  if (!(minSharedShare > 0 && minSharedShare <= 1)) {
+    throw new StopspanError('bad-option', `invalid option minSharedShare: expected a number in (0, 1], got ${minSharedShare}`, {
+      value: String(minSharedShare),
+    });
+  }
+  return {
+    old: identity(oldFeed),
+    new: identity(newFeed),
+    moveThresholdM,
+    stops: compareStops(oldFeed, newFeed, moveThresholdM),
+    patterns: comparePatterns(oldFeed, newFeed, oldPatterns, newPatterns, minSharedShare),
+    spacing: { before: spacingPicture(oldPatterns, audits?.old), after: spacingPicture(newPatterns, audits?.new) },
+    candidates: audits ? compareCandidates(audits.old.candidates, audits.new.candidates) : null,
+  };
+}
+
+function identity(feed: Feed): FeedIdentity {
+  return { source: feed.source, contentHash: feed.contentHash, version: feed.feedInfo?.version ?? '' };
+}
+
+const brief = (s: Stop): StopBrief => ({ stopId: s.id, name: s.name, lat: s.lat, lon: s.lon });
+
+function compareStops(oldFeed: Feed, newFeed: Feed, moveThresholdM: number): Comparison['stops'] {
+  const added: StopBrief[] = [];
+  const removed: StopBrief[] = [];
+  const moved: StopMove[] = [];
+  const renamed: StopRename[] = [];
+  for (const s of oldFeed.stops) {
+    const j = newFeed.stopIndex.get(s.id);
+    if (j === undefined) {
+      removed.push(brief(s));
+      continue;
+    }
+    const t = newFeed.stops[j];
+    const movedM = Number.isFinite(s.lat + s.lon + t.lat + t.lon) ? haversineM(s.lat, s.lon, t.lat, t.lon) : 0;
+    if (movedM > moveThresholdM) moved.push({ stopId: s.id, name: t.name, fromLat: s.lat, fromLon: s.lon, toLat: t.lat, toLon: t.lon, movedM });
+    if (s.name !== t.name) renamed.push({ stopId: s.id, oldName: s.name, newName: t.name });
+  }
+  for (const t of newFeed.stops) if (!oldFeed.stopIndex.has(t.id)) added.push(brief(t));
+  const byId = (a: { stopId: string }, b: { stopId: string }) => (a.stopId < b.stopId ? -1 : a.stopId > b.stopId ? 1 : 0);
+  moved.sort((a, b) => b.movedM - a.movedM || byId(a, b));
+  return { added: added.sort(byId), removed: removed.sort(byId), moved, renamed: renamed.sort(byId) };
+}
+
+interface Keyed {
+  p: Pattern;
+  ids: string[];
+  seq: string; // the stop_ids joined
+}
+
+function keyed(feed: Feed, set: PatternSet): Map<string, Keyed[]> {
+  const byRouteDir = new Map<string, Keyed[]>();
+  for (const p of set.patterns) {
+    const ids = p.stopIdx.map((i) => feed.stops[i]?.id ?? `#${i}`);
+    const k = `${p.routeId}\u0000${p.directionId}`;
+    const list = byRouteDir.get(k) ?? [];
+    list.push({ p, ids, seq: ids.join('\u0000') });
+    byRouteDir.set(k, list);
+  }
+  return byRouteDir;
+}
+
+function patternBrief(k: Keyed): PatternBrief {
+  return {
+    patternId: k.p.id,
+    routeId: k.p.routeId,
+    directionId: k.p.directionId,
+    headsign: k.p.headsign,
+    stopCount: k.ids.length,
+    tripsPerDay: k.p.tripsPerDay,
+    firstStopId: k.ids[0] ?? '',
+    lastStopId: k.ids[k.ids.length - 1] ?? '',
+  };
+}
+
+/** Longest common subsequence of two id lists: which positions of a and b are matched. */
+export function lcsMatch(a: string[], b: string[]): { inA: boolean[]; inB: boolean[]; length: number } {
+  const n = a.length;
+  const m = b.length;
+  const w = m + 1;
+  const L = new Int32Array((n + 1) * w);
+  for (let i = n - 1; i >= 0; i--) {
+    for (let j = m - 1; j >= 0; j--) {
+      L[i * w + j] = a[i] === b[j] ? L[(i + 1) * w + j + 1] + 1 : Math.max(L[(i + 1) * w + j], L[i * w + j + 1]);
+    }
+  }
+  const inA = new Array<boolean>(n).fill(false);
+  const inB = new Array<boolean>(m).fill(false);
+  let i = 0;
+  let j = 0;
+  while (i < n && j < m) {
+    if (a[i] === b[j]) {
+      inA[i++] = true;
+      inB[j++] = true;
+    } else if (L[(i + 1) * w + j] >= L[i * w + j + 1]) i++;
+    else j++;
+  }
+  return { inA, inB, length: L[0] };
+}
+
+function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSet: PatternSet, minShare: number): Comparison['patterns'] {
+  const oldBy = keyed(oldFeed, oldSet);
+  const newBy = keyed(newFeed, newSet);
+  const added: PatternBrief[] = [];
+  const removed: PatternBrief[] = [];
+  const changed: PatternChange[] = [];
+  let unchanged = 0;
+  for (const k of new Set([...oldBy.keys(), ...newBy.keys()])) {
+    const olds = oldBy.get(k) ?? [];
+    const news = newBy.get(k) ?? [];
+    const newSeqs = new Set(news.map((x) => x.seq));
+    const oldSeqs = new Set(olds.map((x) => x.seq));
+    const oldLeft = olds.filter((x) => !newSeqs.has(x.seq));
+    const newLeft = news.filter((x) => !oldSeqs.has(x.seq));
+    unchanged += olds.length - oldLeft.length;
+    // pair the leftovers, most shared stops first
+    type Pair = { o: Keyed; n: Keyed; shared: number; share: number };
+    const pairs: Pair[] = [];
+    for (const o of oldLeft) {
+      for (const nw of newLeft) {
+        const shared = lcsMatch(o.ids, nw.ids).length;
+        const share = shared / Math.max(1, Math.min(o.ids.length, nw.ids.length));
+        if (share >= minShare) pairs.push({ o, n: nw, shared, share });
+      }
+    }
+    pairs.sort((x, y) => y.share - x.share || y.shared - x.shared || y.n.p.tripsPerDay - x.n.p.tripsPerDay);
+    const usedO = new Set<Keyed>();
+    const usedN = new Set<Keyed>();
+    const change = (o: Keyed, nw: Keyed, merged: boolean): PatternChange => {
+      const m = lcsMatch(o.ids, nw.ids);
+      return {
+        routeId: nw.p.routeId,
+        directionId: nw.p.directionId,
+        oldPatternId: o.p.id,
+        newPatternId: nw.p.id,
+        headsign: nw.p.headsign,
+        inserted: nw.ids.filter((_, i) => !m.inB[i]),
+        dropped: o.ids.filter((_, i) => !m.inA[i]),
+        merged,
+      };
+    };
+    for (const pr of pairs) {
+      if (usedO.has(pr.o) || usedN.has(pr.n)) continue;
+      usedO.add(pr.o);
+      usedN.add(pr.n);
+      changed.push(change(pr.o, pr.n, false));
+    }
+    // an old pattern that now equals one that already existed has merged into it; a new one may split off
+    // a pattern that stays. Pair each with its closest counterpart among all patterns of the route.
+    const closest = (x: Keyed, among: Keyed[]): Keyed | null => {
+      let best: Keyed | null = null;
+      let bestShare = -1;
+      for (const y of among) {
+        const share = lcsMatch(x.ids, y.ids).length / Math.max(1, Math.min(x.ids.length, y.ids.length));
+        if (share >= minShare && share > bestShare) {
+          best = y;
+          bestShare = share;
+        }
+      }
+      return best;
+    };
+    for (const o of oldLeft) {
+      if (usedO.has(o)) continue;
+      const nw = closest(o, news);
+      if (nw) changed.push(change(o, nw, true));
+      else removed.push(patternBrief(o));
+    }
+    for (const nw of newLeft) {
+      if (usedN.has(nw)) continue;
+      const o = closest(nw, olds);
+      if (o) changed.push(change(o, nw, true));
+      else added.push(patternBrief(nw));
+    }
+  }
+  const byRoute = <T extends { routeId: string; directionId: number }>(a: T, b: T) =>
+    a.routeId < b.routeId ? -1 : a.routeId > b.routeId ? 1 : a.directionId - b.directionId;
+  return { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged };
+}
+
+/** Median of the gaps between consecutive passenger stops over every pattern, metres. */
+export function medianGapM(set: PatternSet): number | null {
+  const gaps: number[] = [];
+  for (const p of set.patterns) {
+    let prev = -1;
+    for (let i = 0; i < p.stopIdx.length; i++) {
+      if (p.passengerStop[i] === false) continue;
+      if (prev >= 0) gaps.push(p.distAlongM[i] - p.distAlongM[prev]);
+      prev = i;
+    }
+  }
+  if (gaps.length === 0) return null;
+  gaps.sort((a, b) => a - b);
+  const m = gaps.length >> 1;
+  return gaps.length % 2 ? gaps[m] : (gaps[m - 1] + gaps[m]) / 2;
+}
+
+function spacingPicture(set: PatternSet, audit: AuditResult | undefined): SpacingPicture {
+  const served = new Set<number>();
+  let trips = 0;
+  for (const p of set.patterns) {
+    for (const i of p.stopIdx) served.add(i);
+    trips += p.tripsPerDay;
+  }
+  return {
+    patterns: set.patterns.length,
+    stopsServed: served.size,
+    tripsPerDay: trips,
+    medianGapM: medianGapM(set),
+    closeStops: audit ? audit.headline.closeStops : null,
+    wideGaps: audit ? audit.headline.wideGaps : null,
+    paxMinLostPerDay: audit ? audit.headline.paxMinLostPerDay : null,
+  };
+}
+
+function compareCandidates(before: Candidate[], after: Candidate[]): { appeared: CandidateBrief[]; disappeared: CandidateBrief[] } {
+  // a removal is known by its stop; an addition by the gap it fills (its name names both ends) and routes
+  const key = (c: Candidate) => (c.action === 'remove' ? `remove\u0000${c.stopId}` : `add\u0000${c.stopName}\u0000${[...c.routeIds].sort().join(',')}`);
+  const b = new Map(before.map((c) => [key(c), c]));
+  const a = new Map(after.map((c) => [key(c), c]));
+  const cb = (c: Candidate): CandidateBrief => ({ action: c.action, stopId: c.stopId, stopName: c.stopName, routeIds: c.routeIds, netPaxMinPerDay: c.netPaxMinPerDay });
+  return {
+    appeared: [...a].filter(([k]) => !b.has(k)).map(([, c]) => cb(c)),
+    disappeared: [...b].filter(([k]) => !a.has(k)).map(([, c]) => cb(c)),
+  };
+}

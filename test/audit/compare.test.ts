@@ -1,0 +1,97 @@
+// compareFeeds on hand-built Vellmoor feeds: stop and pattern changes, spacing before and after.
+import { describe, expect, it } from 'vitest';
+import { compareFeeds, lcsMatch, medianGapM } from '../../src/audit/compare.js';
+import { buildFeed, cleanSpec, street, type FeedSpec } from './buildFeed.js';
+
+function twoRoutes(): FeedSpec {
+  const spec = cleanSpec();
+  const b = street(4, 300, 'B');
+  spec.stops.push(...b);
+  spec.routes = [{ id: 'R1' }, { id: 'R2' }];
+  spec.trips.push({ id: 'T2', routeId: 'R2', times: b.map((s, k) => [s.id, 30000 + 60 * k, 30000 + 60 * k] as [string, number, number]) });
+  return spec;
+}
+
+describe('compareFeeds', () => {
+  it('reports nothing between a feed and itself', () => {
+    const a = buildFeed(twoRoutes());
+    const c = compareFeeds(a.feed, a.feed, a.patterns, a.patterns);
+    expect(c.stops).toEqual({ added: [], removed: [], moved: [], renamed: [] });
+    expect(c.patterns).toMatchObject({ added: [], removed: [], changed: [], unchanged: 2 });
+    expect(c.spacing.before).toEqual(c.spacing.after);
+    expect(c.candidates).toBeNull();
+  });
+
+  it('finds a removed, an added, a moved and a renamed stop, and the patterns they change', () => {
+    const a = buildFeed(twoRoutes());
+    const spec = twoRoutes();
+    spec.stops = spec.stops.filter((s) => s.id !== 'S3');
+    spec.trips[0].times = spec.trips[0].times.filter((t) => t[0] !== 'S3');
+    spec.stops.push({ id: 'B5', lat: spec.stops[spec.stops.length - 1].lat, lon: spec.stops[spec.stops.length - 1].lon + 0.004, name: 'Vellmoor Haven' });
+    spec.trips[1].times.push(['B5', 30300, 30300]);
+    const b1 = spec.stops.find((s) => s.id === 'B1')!;
+    b1.lat += 30 / 111_250; // 30 m north
+    spec.stops.find((s) => s.id === 'S1')!.name = 'Vellmoor Station Square';
+    const b = buildFeed(spec);
+    const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);
+    expect(c.stops.removed.map((s) => s.stopId)).toEqual(['S3']);
+    expect(c.stops.added.map((s) => s.stopId)).toEqual(['B5']);
+    expect(c.stops.moved.map((s) => s.stopId)).toEqual(['B1']);
+    expect(c.stops.moved[0].movedM).toBeCloseTo(30, 0);
+    expect(c.stops.renamed).toEqual([{ stopId: 'S1', oldName: 'Vellmoor S1', newName: 'Vellmoor Station Square' }]);
+    expect(c.patterns.changed.map((p) => [p.routeId, p.dropped, p.inserted, p.merged])).toEqual([
+      ['R1', ['S3'], [], false],
+      ['R2', [], ['B5'], false],
+    ]);
+    expect(c.patterns.added).toEqual([]);
+    expect(c.patterns.removed).toEqual([]);
+    // R1's 400 m gaps become 400, 800, 400; R2 gains a far gap [D]
+    expect(c.spacing.before.stopsServed).toBe(9);
+    expect(c.spacing.after.stopsServed).toBe(9);
+    // a 30 m move is not a move with a 50 m threshold
+    expect(compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM: 50 }).stops.moved).toEqual([]);
+  });
+
+  it('tells a new route from a changed one', () => {
+    const a = buildFeed(cleanSpec());
+    const b = buildFeed(twoRoutes());
+    const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);
+    expect(c.patterns.added.map((p) => p.routeId)).toEqual(['R2']);
+    expect(c.patterns.changed).toEqual([]);
+    const back = compareFeeds(b.feed, a.feed, b.patterns, a.patterns);
+    expect(back.patterns.removed.map((p) => [p.routeId, p.stopCount, p.firstStopId, p.lastStopId])).toEqual([['R2', 4, 'B1', 'B4']]);
+  });
+
+  it('reports a pattern that now equals an existing one as merged', () => {
+    const spec = cleanSpec();
+    spec.trips.push({ id: 'T2', times: spec.trips[0].times.filter((t) => t[0] !== 'S3'), shapeId: 'SH1' });
+    const a = buildFeed(spec); // R1 has [S1..S5] and [S1,S2,S4,S5]
+    const spec2 = cleanSpec();
+    spec2.trips[0].times = spec2.trips[0].times.filter((t) => t[0] !== 'S3');
+    const b = buildFeed(spec2); // only [S1,S2,S4,S5]
+    const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);
+    expect(c.patterns.unchanged).toBe(1);
+    expect(c.patterns.changed).toMatchObject([{ dropped: ['S3'], inserted: [], merged: true }]);
+    expect(c.patterns.removed).toEqual([]);
+  });
+
+  it('lcsMatch matches the longest common subsequence', () => {
+    // the classic textbook pair ABCBDAB / BDCABA has an LCS of length 4 (Cormen et al., Introduction to Algorithms, section 15.4) [C]
+    expect(lcsMatch([...'ABCBDAB'], [...'BDCABA']).length).toBe(4);
+  });
+
+  it('medianGapM skips non-passenger stops', () => {
+    const { patterns } = buildFeed(cleanSpec());
+    expect(medianGapM(patterns)).toBeCloseTo(400, 1);
+    patterns.patterns[0].passengerStop[1] = false;
+    // gaps 800, 400, 400 [D]
+    expect(medianGapM(patterns)).toBeCloseTo(400, 1);
+    patterns.patterns[0].passengerStop[3] = false;
+    expect(medianGapM(patterns)).toBeCloseTo(800, 1); // 800, 800
+  });
+
+  it('rejects a negative move threshold', () => {
+    const a = buildFeed(cleanSpec());
+    expect(() => compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { moveThresholdM: -5 })).toThrow(/moveThresholdM/);
+  });
+});
