@@ -1,25 +1,60 @@
 // The one CSV reader for every table: an RFC 4180 state machine over decoded text, fed in chunks, so a
-// whole table never sits in memory and the reader keeps up with inflating. Strict where the data would
-// otherwise be wrong (unterminated quote, NUL, over-long record, duplicate header), lenient and counted
-// where it can safely go on (padded values, invalid UTF-8, rows with too few or too many fields).
+// whole table never sits in memory and the reader keeps up with inflating. A record is handed over as
+// field offsets into the current text (CsvRow); strings are cut only for the fields a caller asks for,
+// and numbers and times can be read straight from the characters. Strict where the data would otherwise
+// be wrong (unterminated quote, NUL, over-long record, duplicate header), lenient and counted where it
+// can safely go on (padded values trimmed, invalid UTF-8 replaced, rows with too few or too many fields).
 
 import { isUtf8 } from 'node:buffer';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 
-/** Longest record accepted, in characters (UTF-16 code units; equal to bytes for ASCII text). */
+/** Longest record accepted, in characters (UTF-16 code units; equal to bytes for ASCII text): 1 MiB. */
 export const DEFAULT_MAX_RECORD_CHARS = 1024 * 1024;
 
 export interface CsvStats {
   records: number; // data records, header excluded
-  paddedValues: number;
-  shortRows: number; // rows with fewer fields than the header (filled with '')
+  paddedValues: number; // values with spaces or tabs around them (trimmed)
+  shortRows: number; // rows with fewer fields than the header (missing ones read as '')
   longRows: number; // rows with more fields than the header (extra fields ignored)
-  invalidUtf8: number; // replacement characters inserted for invalid byte sequences
+  invalidUtf8: number; // byte sequences replaced with U+FFFD
   bytes: number; // bytes read (streaming only)
 }
 
-type RecordSink = (fields: string[], count: number, line: number) => void;
+/**
+ * One record, reused from row to row: valid only during the callback. Field i spans text[start(i), end(i));
+ * a quoted field is held unescaped instead and has start(i) = -1.
+ */
+export class CsvRow {
+  text = '';
+  count = 0;
+  line = 0;
+  /** @internal */ starts: number[] = [];
+  /** @internal */ ends: number[] = [];
+  /** @internal */ quoted: (string | undefined)[] = [];
+
+  /** The field's value ('' for a missing field). */
+  get(i: number): string {
+    if (i >= this.count || i < 0) return '';
+    const s = this.starts[i];
+    if (s < 0) return this.quoted[i] as string;
+    const e = this.ends[i];
+    return s === e ? '' : this.text.slice(s, e);
+  }
+
+  isBlank(i: number): boolean {
+    if (i >= this.count || i < 0) return true;
+    const s = this.starts[i];
+    return s < 0 ? (this.quoted[i] as string).length === 0 : s === this.ends[i];
+  }
+
+  /** All fields as a new array. */
+  toArray(): string[] {
+    const out = new Array<string>(this.count);
+    for (let i = 0; i < this.count; i++) out[i] = this.get(i);
+    return out;
+  }
+}
 
 const COMMA = 44;
 const LF = 10;
@@ -28,23 +63,20 @@ const QUOTE = 34;
 const SPACE = 32;
 const TAB = 9;
 
-/**
- * Incremental parser core: push decoded text, get records with the physical line where each starts.
- * The field array passed to the sink is reused between records.
- */
+/** Incremental parser core: push decoded text, get each record with the physical line where it starts. */
 export class CsvCore {
   private rest = '';
   private line = 1; // physical line number of the first character of `rest`
   private started = false;
-  private readonly fields: string[] = [];
-  private nf = 0;
-  private recLines = 0; // line breaks consumed by the record being parsed
+  private readonly row = new CsvRow();
+  private recLines = 0; // line breaks consumed by the record just parsed
+  private soloQuoted = false; // the record just parsed is one quoted field
   paddedValues = 0;
   readonly paddedExamples: Array<{ line: number; field: number }> = [];
 
   constructor(
     private readonly file: string,
-    private readonly sink: RecordSink,
+    private readonly sink: (row: CsvRow) => void,
     private readonly maxRecordChars = DEFAULT_MAX_RECORD_CHARS,
   ) {}
 
@@ -71,19 +103,18 @@ export class CsvCore {
     let line = this.line;
     for (let p = this.rest.indexOf('\n'); p >= 0; p = this.rest.indexOf('\n', p + 1)) line++;
     for (let p = text.indexOf('\n'); p >= 0 && p < at; p = text.indexOf('\n', p + 1)) line++;
-    throw new StopspanError('csv-syntax', 'NUL byte in CSV text: not a text table', { file: this.file, line, value: '\\0' });
+    throw new StopspanError('csv-syntax', 'NUL byte in the CSV text: not a text table', { file: this.file, line, value: '\0' });
   }
 
   private failTooLong(line: number): never {
-    throw new StopspanError('csv-syntax', `record longer than the cap of ${this.maxRecordChars} characters`, {
-      file: this.file,
-      line,
-    });
+    throw new StopspanError('csv-syntax', `record longer than the cap of ${this.maxRecordChars} characters`, { file: this.file, line });
   }
 
   /** Parses every complete record in buf; returns the index of the first character not consumed. */
   private scan(buf: string, final: boolean): number {
     const n = buf.length;
+    const row = this.row;
+    row.text = buf;
     let i = 0;
     while (i < n) {
       const c = buf.charCodeAt(i);
@@ -93,59 +124,117 @@ export class CsvCore {
         continue;
       }
       if (c === CR) {
-        if (i + 1 < n) {
-          i += buf.charCodeAt(i + 1) === LF ? 2 : 1;
-        } else if (final) {
-          i++;
-        } else {
-          return i;
-        }
+        if (i + 1 < n) i += buf.charCodeAt(i + 1) === LF ? 2 : 1;
+        else if (final) i++;
+        else return i;
         this.line++;
         continue;
       }
-      const end = this.record(buf, i, final);
+      let end = this.plain(buf, i, final);
+      if (end === -2) end = this.record(buf, i, final);
       if (end < 0) return i;
       if (end - i > this.maxRecordChars) this.failTooLong(this.line);
-      const line = this.line;
+      row.line = this.line;
       this.line += this.recLines;
       i = end;
-      // a record of one blank (whitespace-only) field is a blank line
-      if (this.nf === 1 && this.fields[0] === '' && !this.lastQuoted) continue;
-      this.sink(this.fields, this.nf, line);
+      // a record of one blank unquoted field is a blank (or whitespace-only) line
+      if (row.count === 1 && !this.soloQuoted && row.starts[0] === row.ends[0]) continue;
+      this.sink(row);
     }
     return i;
   }
 
-  private lastQuoted = false;
+  /**
+   * Fast path for a record without quotes: one pass over the characters. Returns the index after its line
+   * break, -1 if more text is needed, or -2 when the record holds a quote (the general path takes it).
+   */
+  private plain(buf: string, start: number, final: boolean): number {
+    const n = buf.length;
+    const row = this.row;
+    const starts = row.starts;
+    const ends = row.ends;
+    let nf = 0;
+    let fs = start;
+    let k = start;
+    let c = 0;
+    for (;;) {
+      while (k < n) {
+        c = buf.charCodeAt(k);
+        if (c === COMMA || c === LF || c === CR || c === QUOTE) break;
+        k++;
+      }
+      if (k >= n) {
+        if (!final) return -1;
+        c = -1;
+      } else if (c === QUOTE) {
+        return -2;
+      }
+      // field [fs, k): trim spaces and tabs
+      let a = fs;
+      let e = k;
+      if (a < e) {
+        let d = buf.charCodeAt(a);
+        if (d === SPACE || d === TAB) {
+          while (a < e && ((d = buf.charCodeAt(a)) === SPACE || d === TAB)) a++;
+        }
+        d = e > a ? buf.charCodeAt(e - 1) : 0;
+        if (d === SPACE || d === TAB) {
+          while (e > a && ((d = buf.charCodeAt(e - 1)) === SPACE || d === TAB)) e--;
+        }
+        if (a > fs || e < k) {
+          this.paddedValues++;
+          if (this.paddedExamples.length < 5) this.paddedExamples.push({ line: this.line, field: nf });
+        }
+      }
+      starts[nf] = a;
+      ends[nf] = e;
+      nf++;
+      if (c === COMMA) {
+        fs = ++k;
+        continue;
+      }
+      break;
+    }
+    if (c === CR) {
+      if (k + 1 < n) k += buf.charCodeAt(k + 1) === LF ? 2 : 1;
+      else if (!final) return -1;
+      else k++;
+    } else if (c === LF) {
+      k++;
+    }
+    row.count = nf;
+    this.recLines = c === -1 ? 0 : 1;
+    this.soloQuoted = false;
+    return k;
+  }
 
   /** Parses one record starting at i; returns the index after its line break, or -1 if more text is needed. */
   private record(buf: string, start: number, final: boolean): number {
     const n = buf.length;
-    const fields = this.fields;
+    const row = this.row;
+    const starts = row.starts;
+    const ends = row.ends;
     let i = start;
     let nf = 0;
     let lines = 0;
-    let quotedOnly = false;
+    let soloQuoted = false;
     for (;;) {
       let j = i;
       let c = j < n ? buf.charCodeAt(j) : -1;
-      while (c === SPACE || c === TAB) c = ++j < n ? buf.charCodeAt(j) : -1;
-      let value: string;
-      let padded = false;
+      if (c === SPACE || c === TAB) {
+        while (c === SPACE || c === TAB) c = ++j < n ? buf.charCodeAt(j) : -1;
+      }
+      let padded = j > i;
       if (c === QUOTE) {
-        if (j > i) padded = true;
         let k = j + 1;
         let seg = k;
         let acc = '';
+        let value: string;
         for (;;) {
           const q = buf.indexOf('"', k);
           if (q < 0) {
             if (!final) return -1;
-            throw new StopspanError('csv-syntax', 'unterminated quoted field', {
-              file: this.file,
-              line: this.line,
-              column: String(nf + 1),
-            });
+            throw new StopspanError('csv-syntax', 'unterminated quoted field', { file: this.file, line: this.line, column: String(nf + 1) });
           }
           if (q + 1 >= n && !final) return -1;
           if (q + 1 < n && buf.charCodeAt(q + 1) === QUOTE) {
@@ -173,7 +262,10 @@ export class CsvCore {
             value: buf.slice(i, i + 10),
           });
         }
-        quotedOnly = nf === 0;
+        starts[nf] = -1;
+        ends[nf] = -1;
+        row.quoted[nf] = value;
+        soloQuoted = nf === 0;
       } else {
         let k = j;
         while (k < n) {
@@ -183,22 +275,22 @@ export class CsvCore {
         }
         if (k >= n && !final) return -1;
         let e = k;
-        while (e > j) {
-          const d = buf.charCodeAt(e - 1);
-          if (d !== SPACE && d !== TAB) break;
-          e--;
+        c = e > j ? buf.charCodeAt(e - 1) : 0;
+        if (c === SPACE || c === TAB) {
+          while (e > j && ((c = buf.charCodeAt(e - 1)) === SPACE || c === TAB)) e--;
+          padded = true;
         }
-        if (j > i || e < k) padded = true;
-        value = j === e ? '' : buf.slice(j, e);
+        starts[nf] = j;
+        ends[nf] = e;
         i = k;
-        if (nf === 0) quotedOnly = false;
+        if (nf === 0) soloQuoted = false;
       }
       if (padded) {
         this.paddedValues++;
         if (this.paddedExamples.length < 5) this.paddedExamples.push({ line: this.line + lines, field: nf });
       }
-      fields[nf++] = value;
-      if (i >= n) break; // final: end of text ends the record
+      nf++;
+      if (i >= n) break; // only when final: the end of the text ends the record
       c = buf.charCodeAt(i);
       if (c === COMMA) {
         i++;
@@ -214,9 +306,9 @@ export class CsvCore {
       lines++;
       break;
     }
-    this.nf = nf;
+    row.count = nf;
     this.recLines = lines;
-    this.lastQuoted = quotedOnly;
+    this.soloQuoted = soloQuoted;
     return i;
   }
 }
@@ -224,23 +316,18 @@ export class CsvCore {
 function checkHeader(header: string[], file: string): void {
   const seen = new Set<string>();
   for (const h of header) {
-    if (seen.has(h)) {
-      throw new StopspanError('csv-syntax', 'duplicate column name in header', { file, line: 1, column: h, value: h });
-    }
+    if (seen.has(h)) throw new StopspanError('csv-syntax', 'duplicate column name in the header', { file, line: 1, column: h, value: h });
     seen.add(h);
   }
 }
 
 export interface ParsedCsv {
   header: string[];
-  rows: string[][];
-  lines: number[]; // physical line where each row starts (1-based; the header is usually line 1)
+  rows: string[][]; // each exactly header.length long
+  lines: number[]; // physical line where each row starts (1-based)
 }
 
-/**
- * Parses a whole CSV text at once (small files such as ridership tables), by the same rules as readCsv.
- * Rows are padded with '' or cut to the header's length.
- */
+/** Parses a whole CSV text at once (small files such as ridership tables), by the same code as readCsv. */
 export function parseCsv(
   text: string,
   { file, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS }: { file: string; warnings?: WarningSink; maxRecordChars?: number },
@@ -251,20 +338,22 @@ export function parseCsv(
   const stats = emptyStats();
   const core = new CsvCore(
     file,
-    (fields, count, line) => {
+    (row) => {
       if (header === null) {
-        header = fields.slice(0, count);
+        header = row.toArray();
         checkHeader(header, file);
         return;
       }
-      rows.push(fitRow(fields, count, header.length, stats).slice(0, header.length));
-      lines.push(line);
+      countWidth(row, header.length, stats);
+      const out = new Array<string>(header.length);
+      for (let k = 0; k < header.length; k++) out[k] = row.get(k);
+      rows.push(out);
+      lines.push(row.line);
     },
     maxRecordChars,
   );
   core.push(text);
   core.end();
-  stats.paddedValues = core.paddedValues;
   stats.records = rows.length;
   if (warnings) reportStats(warnings, file, header ?? [], core, stats);
   return { header: header ?? [], rows, lines };
@@ -274,42 +363,37 @@ function emptyStats(): CsvStats {
   return { records: 0, paddedValues: 0, shortRows: 0, longRows: 0, invalidUtf8: 0, bytes: 0 };
 }
 
-function fitRow(fields: string[], count: number, width: number, stats: CsvStats): string[] {
-  if (count < width) {
-    stats.shortRows++;
-    for (let k = count; k < width; k++) fields[k] = '';
-  } else if (count > width) {
-    stats.longRows++;
-  }
-  fields.length = Math.max(width, count);
-  return fields;
+function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
+  if (row.count < width) stats.shortRows++;
+  else if (row.count > width) stats.longRows++;
 }
 
 function reportStats(warnings: WarningSink, file: string, header: string[], core: CsvCore, stats: CsvStats): void {
+  stats.paddedValues = core.paddedValues;
   if (core.paddedValues > 0) {
+    const msg = 'values padded with spaces were trimmed';
     const ex = core.paddedExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
-    warnings.add('padded-values', 'values padded with spaces were trimmed', ex[0], core.paddedValues);
-    // the sink keeps only the first example per add; add the rest without counting them again
-    for (const e of ex.slice(1)) warnings.add('padded-values', 'values padded with spaces were trimmed', e, 0);
+    warnings.add('padded-values', msg, ex[0], core.paddedValues);
+    for (const e of ex.slice(1)) warnings.add('padded-values', msg, e, 0); // keep examples, count once
   }
   if (stats.shortRows > 0) warnings.add('short-rows', 'rows with fewer fields than the header (missing fields read as blank)', file, stats.shortRows);
   if (stats.longRows > 0) warnings.add('long-rows', 'rows with more fields than the header (extra fields ignored)', file, stats.longRows);
-  if (stats.invalidUtf8 > 0) warnings.add('invalid-utf8', 'invalid UTF-8 byte sequences replaced with U+FFFD', file, stats.invalidUtf8);
+  if (stats.invalidUtf8 > 0) warnings.add('invalid-utf8', 'invalid UTF-8 byte sequences were replaced with U+FFFD', file, stats.invalidUtf8);
 }
 
 export interface ReadCsvOptions {
   file: string;
-  /** Called once with the header (trimmed, BOM removed); throw from here to reject missing columns. */
+  /** Called once with the header (trimmed, BOM removed; [] for an empty table). Throw here to reject missing columns. */
   onHeader: (header: string[]) => void;
-  /** Called per data record; `fields` is reused and has at least header.length entries. */
-  onRow: (fields: string[], line: number) => void;
+  /** Called per data record; the row is reused and valid only during the call; row.line is its first physical line. */
+  onRow: (row: CsvRow) => void;
   warnings?: WarningSink;
   maxRecordChars?: number;
-  /** Called now and then with the bytes read so far. */
+  /** Called every few MiB with the bytes read so far, and once at the end. */
   onBytes?: (bytes: number) => void;
 }
 
-/** Streams a CSV table from bytes (a Readable or any async iterable of Buffers). */
+/** Streams a CSV table from bytes (a Readable or any async iterable of Buffers or strings). */
 export async function readCsv(
   stream: AsyncIterable<Buffer | Uint8Array | string>,
   { file, onHeader, onRow, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onBytes }: ReadCsvOptions,
@@ -319,18 +403,17 @@ export async function readCsv(
   const stats = emptyStats();
   const core = new CsvCore(
     file,
-    (fields, count, line) => {
+    (row) => {
       if (header === null) {
-        header = fields.slice(0, count);
+        header = row.toArray();
         checkHeader(header, file);
         width = header.length;
         onHeader(header);
         return;
       }
       stats.records++;
-      if (count !== width) fitRow(fields, count, width, stats);
-      else if (fields.length !== count) fields.length = count;
-      onRow(fields, line);
+      if (row.count !== width) countWidth(row, width, stats);
+      onRow(row);
     },
     maxRecordChars,
   );
@@ -363,27 +446,22 @@ export async function readCsv(
   core.end();
   if (onBytes) onBytes(stats.bytes);
   if (header === null) onHeader([]);
-  stats.paddedValues = core.paddedValues;
   if (warnings) reportStats(warnings, file, header ?? [], core, stats);
+  else stats.paddedValues = core.paddedValues;
   return stats;
 }
 
 function decode(bytes: Buffer, stats: CsvStats): string {
   const text = bytes.toString('utf8');
   if (!isUtf8(bytes)) {
-    // count the replacement characters the decoder inserted beyond those encoded in the input
+    // count the replacement characters the decoder inserted, beyond any encoded in the input itself
     let inText = 0;
     for (let p = text.indexOf('\ufffd'); p >= 0; p = text.indexOf('\ufffd', p + 1)) inText++;
-    const encoded = countEncodedReplacement(bytes);
+    let encoded = 0;
+    for (let p = bytes.indexOf('\ufffd', 0, 'utf8'); p >= 0; p = bytes.indexOf('\ufffd', p + 3, 'utf8')) encoded++;
     stats.invalidUtf8 += Math.max(1, inText - encoded);
   }
   return text;
-}
-
-function countEncodedReplacement(bytes: Buffer): number {
-  let c = 0;
-  for (let p = bytes.indexOf('\ufffd', 0, 'utf8'); p >= 0; p = bytes.indexOf('\ufffd', p + 3, 'utf8')) c++;
-  return c;
 }
 
 /** Length of the longest prefix that does not end inside a multi-byte UTF-8 sequence. */
@@ -391,7 +469,7 @@ function completeUtf8Length(b: Buffer): number {
   const n = b.length;
   for (let back = 1; back <= 3 && back <= n; back++) {
     const x = b[n - back];
-    if ((x & 0xc0) === 0x80) continue; // continuation byte: keep looking for the lead
+    if ((x & 0xc0) === 0x80) continue; // continuation byte: look further back for the lead byte
     if ((x & 0x80) === 0) return n; // ASCII
     const need = (x & 0xe0) === 0xc0 ? 2 : (x & 0xf0) === 0xe0 ? 3 : (x & 0xf8) === 0xf0 ? 4 : 1;
     return back < need ? n - back : n;

@@ -1,2 +1,5 @@
 // The feed reader's public API: re-exports only.
 export * from './csv.js';
+export * from './values.js';
+export * from './archive.js';
+export * from './download.js';

@@ -1,0 +1,252 @@
+// Opens a feed as a set of named tables, from a .zip (read lazily with yauzl), a folder of .txt files, or
+// an http(s) URL (downloaded to a temporary file first). Every entry is bounded: absurd declared sizes or
+// compression ratios are refused up front, and inflated bytes are counted while streaming because a
+// declared size can lie. Archive paths are never written to disk; unsafe ones are skipped and counted.
+
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
+import { readdir, stat } from 'node:fs/promises';
+import { join } from 'node:path';
+import { Transform, type Readable, type TransformCallback } from 'node:stream';
+import yauzl from 'yauzl';
+import { StopspanError } from '../common/errors.js';
+import type { OnProgress } from '../common/progress.js';
+import type { WarningSink } from '../common/warnings.js';
+import { downloadFeed, isUrl, type DownloadLimits } from './download.js';
+
+export interface ArchiveLimits {
+  /** Largest declared or actual uncompressed size of one entry, in bytes. Default 4 GiB. */
+  maxEntryBytes?: number;
+  /** Largest declared uncompressed/compressed ratio of one entry (entries over 1 MiB only). Default 1000. */
+  maxRatio?: number;
+  /** Largest total of inflated bytes over all entries read from one archive. Default 16 GiB. */
+  maxTotalBytes?: number;
+}
+
+export const DEFAULT_ARCHIVE_LIMITS: Required<ArchiveLimits> = {
+  maxEntryBytes: 4 * 1024 ** 3,
+  maxRatio: 1000,
+  maxTotalBytes: 16 * 1024 ** 3,
+};
+
+export interface FeedArchive {
+  kind: 'zip' | 'folder';
+  /** Table file names available, e.g. 'stops.txt' (without any subfolder prefix). */
+  names(): string[];
+  has(name: string): boolean;
+  /** Uncompressed size in bytes when known. */
+  size(name: string): number | undefined;
+  /** Streams one table's bytes, bounded by the limits. */
+  open(name: string): Promise<Readable>;
+  /** sha256 hex of the archive file, or of the folder's .txt files in name order (name, NUL, bytes each). */
+  contentHash(): Promise<string>;
+  /** Releases the zip file handle and removes a downloaded temporary file. */
+  close(): Promise<void>;
+}
+
+export interface OpenFeedOptions {
+  limits?: ArchiveLimits;
+  download?: DownloadLimits;
+  warnings?: WarningSink;
+  onProgress?: OnProgress;
+}
+
+/** Opens a .zip path, a folder or an http(s) URL. Throws 'feed-unreadable', 'feed-too-large' or 'download-failed'. */
+export async function openFeed(source: string, { limits = {}, download, warnings, onProgress }: OpenFeedOptions = {}): Promise<FeedArchive> {
+  const lim = { ...DEFAULT_ARCHIVE_LIMITS, ...limits };
+  for (const [k, v] of Object.entries(lim)) {
+    if (!(typeof v === 'number' && v > 0)) throw new StopspanError('bad-option', `invalid option limits.${k}: expected a positive number`, { value: String(v) });
+  }
+  if (typeof source !== 'string' || source === '') throw new StopspanError('bad-option', 'invalid option source: expected a path or URL', { value: String(source) });
+  if (isUrl(source)) {
+    const dl = await downloadFeed(source, { limits: download, onProgress });
+    try {
+      const zip = await openZip(dl.path, source, lim, warnings);
+      const close = zip.close;
+      zip.close = async () => {
+        await close();
+        await dl.cleanup();
+      };
+      return zip;
+    } catch (e) {
+      await dl.cleanup();
+      throw e;
+    }
+  }
+  let st;
+  try {
+    st = await stat(source);
+  } catch {
+    throw unreadable(source, 'no such file or folder');
+  }
+  if (st.isDirectory()) return openFolder(source, lim);
+  if (st.size === 0) throw unreadable(source, 'the file is empty');
+  return openZip(source, source, lim, warnings);
+}
+
+function unreadable(file: string, why: string): StopspanError {
+  return new StopspanError('feed-unreadable', `cannot read the feed: ${why}`, { file });
+}
+
+async function openFolder(dir: string, lim: Required<ArchiveLimits>): Promise<FeedArchive> {
+  let files: string[];
+  try {
+    files = (await readdir(dir, { withFileTypes: true })).filter((d) => d.isFile() && d.name.endsWith('.txt')).map((d) => d.name).sort();
+  } catch (e) {
+    throw unreadable(dir, (e as Error).message.split('\n')[0]);
+  }
+  const sizes = new Map<string, number>();
+  for (const f of files) sizes.set(f, (await stat(join(dir, f))).size);
+  let total = 0;
+  const counter = (name: string) => new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes);
+  return {
+    kind: 'folder',
+    names: () => [...files],
+    has: (n) => sizes.has(n),
+    size: (n) => sizes.get(n),
+    async open(name) {
+      if (!sizes.has(name)) throw unreadable(join(dir, name), 'no such table');
+      const sz = sizes.get(name)!;
+      if (sz > lim.maxEntryBytes) throw tooLarge(name, `${sz} bytes exceeds the per-table cap of ${lim.maxEntryBytes}`);
+      return createReadStream(join(dir, name), { highWaterMark: 1 << 20 }).pipe(counter(name));
+    },
+    async contentHash() {
+      const h = createHash('sha256');
+      for (const f of files) {
+        h.update(f);
+        h.update('\0');
+        for await (const chunk of createReadStream(join(dir, f))) h.update(chunk as Buffer);
+      }
+      return h.digest('hex');
+    },
+    async close() {},
+  };
+}
+
+function tooLarge(name: string, why: string): StopspanError {
+  return new StopspanError('feed-too-large', `zip entry too large: ${why}`, { file: name });
+}
+
+/** Counts bytes through a stream and fails once an entry or the archive total passes its cap. */
+class ByteCap extends Transform {
+  private seen = 0;
+  constructor(
+    private readonly name: string,
+    private readonly maxEntry: number,
+    private readonly total: () => number,
+    private readonly addTotal: (n: number) => void,
+    private readonly maxTotal: number,
+  ) {
+    super();
+  }
+  override _transform(chunk: Buffer, _enc: BufferEncoding, cb: TransformCallback): void {
+    this.seen += chunk.length;
+    this.addTotal(chunk.length);
+    if (this.seen > this.maxEntry) return cb(tooLarge(this.name, `inflated past the per-entry cap of ${this.maxEntry} bytes`));
+    if (this.total() > this.maxTotal) return cb(tooLarge(this.name, `archive inflated past the total cap of ${this.maxTotal} bytes`));
+    cb(null, chunk);
+  }
+}
+
+interface ZipTable {
+  entry: yauzl.Entry;
+  path: string;
+}
+
+function openZipFile(path: string): Promise<yauzl.ZipFile> {
+  return new Promise((resolve, reject) => {
+    yauzl.open(path, { lazyEntries: true, autoClose: false, decodeStrings: false, validateEntrySizes: true }, (err, zf) => {
+      if (err || !zf) reject(err ?? new Error('no zip'));
+      else resolve(zf);
+    });
+  });
+}
+
+function listEntries(zf: yauzl.ZipFile): Promise<yauzl.Entry[]> {
+  return new Promise((resolve, reject) => {
+    const out: yauzl.Entry[] = [];
+    zf.on('entry', (e: yauzl.Entry) => {
+      out.push(e);
+      zf.readEntry();
+    });
+    zf.on('end', () => resolve(out));
+    zf.on('error', reject);
+    zf.readEntry();
+  });
+}
+
+async function openZip(path: string, label: string, lim: Required<ArchiveLimits>, warnings?: WarningSink): Promise<FeedArchive> {
+  let zf: yauzl.ZipFile;
+  let entries: yauzl.Entry[];
+  try {
+    zf = await openZipFile(path);
+    entries = await listEntries(zf);
+  } catch (e) {
+    throw unreadable(label, `not a readable zip archive (${oneLineOf(e)})`);
+  }
+  // decode names ourselves so an unsafe name skips that entry instead of failing the whole archive
+  const named: ZipTable[] = [];
+  for (const entry of entries) {
+    const raw = entry.fileName as unknown as Buffer;
+    const name = yauzl.getFileNameLowLevel(entry.generalPurposeBitFlag, raw, entry.extraFields, false);
+    if (name.endsWith('/')) continue;
+    if (yauzl.validateFileName(name) !== null) {
+      warnings?.add('unsafe-zip-path', 'zip entries with an absolute or ../ path were ignored', name);
+      continue;
+    }
+    named.push({ entry, path: name });
+  }
+  // tables at the root, or else all in one subfolder (the one holding stops.txt or trips.txt)
+  const root = named.filter((t) => !t.path.includes('/') && t.path.endsWith('.txt'));
+  let chosen = root;
+  if (!root.some((t) => t.path === 'stops.txt' || t.path === 'trips.txt')) {
+    const anchor = named.find((t) => /^[^/]+\/(stops|trips)\.txt$/.test(t.path));
+    if (anchor) {
+      const prefix = anchor.path.slice(0, anchor.path.indexOf('/') + 1);
+      chosen = named.filter((t) => t.path.startsWith(prefix) && !t.path.slice(prefix.length).includes('/') && t.path.endsWith('.txt'));
+    }
+  }
+  const tables = new Map<string, yauzl.Entry>();
+  for (const t of chosen) tables.set(t.path.slice(t.path.lastIndexOf('/') + 1), t.entry);
+  let total = 0;
+  let closed = false;
+  return {
+    kind: 'zip',
+    names: () => [...tables.keys()].sort(),
+    has: (n) => tables.has(n),
+    size: (n) => tables.get(n)?.uncompressedSize,
+    async open(name) {
+      const entry = tables.get(name);
+      if (!entry) throw unreadable(`${label}:${name}`, 'no such table in the archive');
+      const u = entry.uncompressedSize;
+      const c = entry.compressedSize;
+      if (u > lim.maxEntryBytes) throw tooLarge(name, `declared size ${u} bytes exceeds the per-entry cap of ${lim.maxEntryBytes}`);
+      if (u > 1024 * 1024 && c > 0 && u / c > lim.maxRatio) throw tooLarge(name, `compression ratio ${Math.round(u / c)} exceeds the cap of ${lim.maxRatio}`);
+      if (u > 1024 * 1024 && c === 0) throw tooLarge(name, `declares ${u} bytes from an empty compressed body`);
+      const stream = await new Promise<Readable>((resolve, reject) => {
+        zf.openReadStream(entry, (err, rs) => {
+          if (err || !rs) reject(unreadable(`${label}:${name}`, `corrupt zip entry (${oneLineOf(err)})`));
+          else resolve(rs);
+        });
+      });
+      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes);
+      stream.on('error', (err) => cap.destroy(err instanceof StopspanError ? err : unreadable(`${label}:${name}`, `corrupt or truncated zip entry (${oneLineOf(err)})`)));
+      return stream.pipe(cap);
+    },
+    async contentHash() {
+      const h = createHash('sha256');
+      for await (const chunk of createReadStream(path)) h.update(chunk as Buffer);
+      return h.digest('hex');
+    },
+    async close() {
+      if (closed) return;
+      closed = true;
+      zf.close();
+    },
+  };
+}
+
+function oneLineOf(e: unknown): string {
+  const m = e instanceof Error ? e.message : String(e);
+  return m.split('\n')[0];
+}

@@ -1,0 +1,74 @@
+// Typed values read straight from a CSV row's characters (GTFS times, integers) or from its field strings
+// (decimals, dates), so the big tables need no string per numeric field. Each returns a sentinel for
+// "blank" and for "malformed"; the table readers turn malformed values into 'bad-value' errors.
+
+import type { CsvRow } from './csv.js';
+
+export const BLANK = -1;
+export const MALFORMED = -2;
+
+/**
+ * GTFS time "H:MM:SS" or "HH:MM:SS" (hours unbounded, may pass 24) in seconds after midnight of the service
+ * day; BLANK when empty, MALFORMED when not a time (minutes and seconds must be 00-59).
+ */
+export function fieldTimeS(row: CsvRow, i: number): number {
+  if (row.isBlank(i)) return BLANK;
+  const s = row.starts[i];
+  if (s < 0) return timeOfString(row.quoted[i] as string, 0, (row.quoted[i] as string).length);
+  return timeOfString(row.text, s, row.ends[i]);
+}
+
+export function timeOfString(t: string, a: number, e: number): number {
+  let h = 0;
+  let k = a;
+  let digits = 0;
+  while (k < e) {
+    const c = t.charCodeAt(k);
+    if (c === 58) break; // ':'
+    if (c < 48 || c > 57) return MALFORMED;
+    h = h * 10 + (c - 48);
+    if (++digits > 6) return MALFORMED;
+    k++;
+  }
+  if (digits === 0 || e - k !== 6 || t.charCodeAt(k + 3) !== 58) return MALFORMED;
+  const m1 = t.charCodeAt(k + 1) - 48;
+  const m2 = t.charCodeAt(k + 2) - 48;
+  const s1 = t.charCodeAt(k + 4) - 48;
+  const s2 = t.charCodeAt(k + 5) - 48;
+  if (m1 < 0 || m1 > 5 || m2 < 0 || m2 > 9 || s1 < 0 || s1 > 5 || s2 < 0 || s2 > 9) return MALFORMED;
+  return h * 3600 + (m1 * 10 + m2) * 60 + s1 * 10 + s2;
+}
+
+/** A non-negative decimal integer of at most 9 digits; BLANK when empty, MALFORMED otherwise. */
+export function fieldUint(row: CsvRow, i: number): number {
+  if (row.isBlank(i)) return BLANK;
+  const s = row.starts[i];
+  const t = s < 0 ? (row.quoted[i] as string) : row.text;
+  const a = s < 0 ? 0 : s;
+  const e = s < 0 ? t.length : row.ends[i];
+  if (e - a > 9) return MALFORMED;
+  let v = 0;
+  for (let k = a; k < e; k++) {
+    const c = t.charCodeAt(k);
+    if (c < 48 || c > 57) return MALFORMED;
+    v = v * 10 + (c - 48);
+  }
+  return v;
+}
+
+/** A finite decimal number; NaN when blank, MALFORMED-as-null when not a number. */
+export function fieldNumber(row: CsvRow, i: number): number | null {
+  if (row.isBlank(i)) return Number.NaN;
+  const v = Number(row.get(i));
+  return Number.isFinite(v) ? v : null;
+}
+
+/** A GTFS date YYYYMMDD that exists on the calendar, as given; null when malformed. */
+export function checkDate(s: string): string | null {
+  if (!/^\d{8}$/.test(s)) return null;
+  const y = Number(s.slice(0, 4));
+  const m = Number(s.slice(4, 6));
+  const d = Number(s.slice(6, 8));
+  const dt = new Date(Date.UTC(y, m - 1, d));
+  return dt.getUTCFullYear() === y && dt.getUTCMonth() === m - 1 && dt.getUTCDate() === d ? s : null;
+}
