@@ -439,3 +439,49 @@ function checkReferences(feed: Feed, add: Add): void {
     );
   }
 }
+
+/**
+ * The Monday-to-Friday date inside the feed's service range with the most trips (YYYY-MM-DD), the default
+ * analysis date; null when no weekday has service. Scans at most maxDays days from the first service day.
+ */
+export function busiestWeekday(feed: Pick<Feed, 'calendar' | 'calendarDates' | 'trips'>, maxDays = 400): string | null {
+  const tripsByService = new Map<string, number>();
+  for (const t of feed.trips.values()) tripsByService.set(t.serviceId, (tripsByService.get(t.serviceId) ?? 0) + 1);
+  let first = '';
+  let last = '';
+  const span = (a: string, b: string) => {
+    if (!first || a < first) first = a;
+    if (!last || b > last) last = b;
+  };
+  for (const c of feed.calendar) span(c.start, c.end);
+  for (const c of feed.calendarDates) if (c.exceptionType === 1) span(c.date, c.date);
+  if (!first) return null;
+  const byDate = new Map<string, Map<string, 1 | 2>>();
+  for (const c of feed.calendarDates) {
+    const m = byDate.get(c.date) ?? new Map<string, 1 | 2>();
+    m.set(c.serviceId, c.exceptionType);
+    byDate.set(c.date, m);
+  }
+  let best: string | null = null;
+  let bestTrips = 0;
+  let d = ymdToDate(first);
+  for (let k = 0; k < maxDays; k++, d = new Date(d.getTime() + 86_400_000)) {
+    const ymd = dateToYmd(d);
+    if (ymd > last) break;
+    const weekday = (d.getUTCDay() + 6) % 7;
+    if (weekday > 4) continue;
+    const on = new Set<string>();
+    for (const c of feed.calendar) if (c.days[weekday] && c.start <= ymd && ymd <= c.end) on.add(c.serviceId);
+    for (const [sid, ex] of byDate.get(ymd) ?? []) {
+      if (ex === 1) on.add(sid);
+      else on.delete(sid);
+    }
+    let n = 0;
+    for (const sid of on) n += tripsByService.get(sid) ?? 0;
+    if (n > bestTrips) {
+      bestTrips = n;
+      best = `${ymd.slice(0, 4)}-${ymd.slice(4, 6)}-${ymd.slice(6, 8)}`;
+    }
+  }
+  return best;
+}

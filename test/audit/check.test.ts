@@ -2,7 +2,7 @@
 // silent on the clean feed.
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { checkFeed, haversineM, lastServiceDate } from '../../src/audit/check.js';
+import { busiestWeekday, checkFeed, haversineM, lastServiceDate } from '../../src/audit/check.js';
 import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
 import { buildFeed, cleanSpec, street } from './buildFeed.js';
 import { StopspanError } from '../../src/common/errors.js';
@@ -215,5 +215,21 @@ describe('checkFeed', () => {
   it('builds street stops 400 m apart', () => {
     const s = street(2);
     expect(haversineM(s[0].lat, s[0].lon, s[1].lat, s[1].lon)).toBeCloseTo(400, 1);
+  });
+});
+
+describe('busiestWeekday', () => {
+  it('picks the weekday with the most trips, skipping weekends', () => {
+    const spec = cleanSpec();
+    spec.calendar = [
+      { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20261012', end: '20261018' },
+      { serviceId: 'WE', days: [false, false, false, false, false, true, true], start: '20261012', end: '20261018' },
+    ];
+    // 2026-10-14 is a Wednesday (ISO 8601 calendar) [C]; extra service added that day only
+    spec.calendarDates = [{ serviceId: 'X', date: '20261014', exceptionType: 1 }];
+    spec.trips.push({ id: 'T2', serviceId: 'X', times: spec.trips[0].times });
+    spec.trips.push({ id: 'T3', serviceId: 'WE', times: spec.trips[0].times }, { id: 'T4', serviceId: 'WE', times: spec.trips[0].times });
+    const { feed } = buildFeed(spec);
+    expect(busiestWeekday(feed)).toBe('2026-10-14');
   });
 });

@@ -1,0 +1,29 @@
+// The check report as plain text for people: one block per finding, most severe first, then a summary line.
+
+import type { CheckReport } from './check.js';
+
+export function checkText(report: CheckReport): string {
+  const lines: string[] = [];
+  const f = report.feed;
+  lines.push(`feed ${f.source}${f.version ? ` (version ${f.version})` : ''}, sha256 ${f.contentHash.slice(0, 12)}`);
+  lines.push(`checked against ${report.today}; service runs until ${report.serviceEnd ?? 'never'}`);
+  lines.push('');
+  if (report.findings.length === 0) {
+    lines.push('no findings');
+  }
+  for (const x of report.findings) {
+    lines.push(`${x.severity.toUpperCase().padEnd(7)} ${x.code} (${x.count}): ${x.explanation}`);
+    for (const e of x.examples) lines.push(`        ${e.file}${e.line !== undefined ? ':' + e.line : ''}  ${oneLine(e.detail)}`);
+    if (x.count > x.examples.length) lines.push(`        ... and ${x.count - x.examples.length} more`);
+  }
+  const s = report.bySeverity;
+  lines.push('');
+  lines.push(`${s.error} error, ${s.warning} warning, ${s.info} info finding(s)`);
+  return lines.join('\n') + '\n';
+}
+
+/** Feed text is shown on one line with control characters escaped, so a feed cannot redraw the terminal. */
+function oneLine(s: string): string {
+  // eslint-disable-next-line no-control-regex
+  return s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+}

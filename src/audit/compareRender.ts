@@ -1,0 +1,114 @@
+// The comparison of two feeds rendered for people: a plain-text summary for the terminal and a
+// self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped).
+
+import type { Comparison, SpacingPicture } from './compare.js';
+
+const esc = (s: string): string =>
+  s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+// eslint-disable-next-line no-control-regex
+const term = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));
+const n0 = (v: number | null): string => (v === null ? '-' : Math.round(v).toString());
+
+const SPACING_ROWS: [string, keyof SpacingPicture, (v: number | null) => string][] = [
+  ['patterns', 'patterns', n0],
+  ['stops served', 'stopsServed', n0],
+  ['trips per day', 'tripsPerDay', n0],
+  ['median gap m', 'medianGapM', n1],
+  ['close stops', 'closeStops', n0],
+  ['wide gaps', 'wideGaps', n0],
+  ['pax-min lost per day', 'paxMinLostPerDay', n0],
+];
+
+export function comparisonText(c: Comparison, options: { maxRows?: number } = {}): string {
+  const { maxRows = 20 } = options;
+  const out: string[] = [];
+  out.push(`old ${term(c.old.source)} (${term(c.old.version) || 'no version'}, ${c.old.contentHash.slice(0, 8)})`);
+  out.push(`new ${term(c.new.source)} (${term(c.new.version) || 'no version'}, ${c.new.contentHash.slice(0, 8)})`);
+  out.push('');
+  const s = c.stops;
+  out.push(`stops: ${s.added.length} added, ${s.removed.length} removed, ${s.moved.length} moved more than ${c.moveThresholdM} m, ${s.renamed.length} renamed`);
+  const list = <T>(items: T[], fmt: (x: T) => string) => {
+    for (const x of items.slice(0, maxRows)) out.push('  ' + term(fmt(x)));
+    if (items.length > maxRows) out.push(`  ... and ${items.length - maxRows} more`);
+  };
+  list(s.added, (x) => `+ ${x.stopId}  ${x.name}`);
+  list(s.removed, (x) => `- ${x.stopId}  ${x.name}`);
+  list(s.moved, (x) => `~ ${x.stopId}  ${x.name}  moved ${x.movedM.toFixed(1)} m`);
+  list(s.renamed, (x) => `" ${x.stopId}  ${x.oldName} -> ${x.newName}`);
+  const p = c.patterns;
+  out.push(`patterns: ${p.added.length} added, ${p.removed.length} removed, ${p.changed.length} changed, ${p.unchanged} unchanged`);
+  list(p.added, (x) => `+ ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
+  list(p.removed, (x) => `- ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
+  list(p.changed, (x) =>
+    `~ ${x.oldPatternId} -> ${x.newPatternId}${x.merged ? ' (merged)' : ''}` +
+    (x.inserted.length ? `  inserted ${x.inserted.join(' ')}` : '') +
+    (x.dropped.length ? `  dropped ${x.dropped.join(' ')}` : ''),
+  );
+  out.push('');
+  out.push(`${'spacing'.padEnd(22)}${'before'.padStart(12)}${'after'.padStart(12)}`);
+  for (const [label, key, f] of SPACING_ROWS) {
+    out.push(`${label.padEnd(22)}${f(c.spacing.before[key]).padStart(12)}${f(c.spacing.after[key]).padStart(12)}`);
+  }
+  if (c.candidates) {
+    out.push(`candidates: ${c.candidates.appeared.length} appeared, ${c.candidates.disappeared.length} disappeared`);
+    list(c.candidates.appeared, (x) => `+ ${x.action} ${x.stopId || x.stopName}  ${x.netPaxMinPerDay.toFixed(0)} pax-min/day`);
+    list(c.candidates.disappeared, (x) => `- ${x.action} ${x.stopId || x.stopName}`);
+  } else {
+    out.push('candidates: not compared (no audit of either version)');
+  }
+  return out.join('\n') + '\n';
+}
+
+export function comparisonHtml(c: Comparison): string {
+  const table = (head: string[], rows: string[][]): string =>
+    rows.length === 0
+      ? '<p class="none">none</p>'
+      : `<table><thead><tr>${head.map((h) => `<th>${esc(h)}</th>`).join('')}</tr></thead><tbody>${rows
+          .map((r) => `<tr>${r.map((x) => `<td>${esc(x)}</td>`).join('')}</tr>`)
+          .join('\n')}</tbody></table>`;
+  const s = c.stops;
+  const p = c.patterns;
+  const sections = [
+    `<h2>Stops added (${s.added.length})</h2>`,
+    table(['stop_id', 'name', 'lat', 'lon'], s.added.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)])),
+    `<h2>Stops removed (${s.removed.length})</h2>`,
+    table(['stop_id', 'name', 'lat', 'lon'], s.removed.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)])),
+    `<h2>Stops moved more than ${esc(String(c.moveThresholdM))} m (${s.moved.length})</h2>`,
+    table(['stop_id', 'name', 'moved m'], s.moved.map((x) => [x.stopId, x.name, x.movedM.toFixed(1)])),
+    `<h2>Stops renamed (${s.renamed.length})</h2>`,
+    table(['stop_id', 'old name', 'new name'], s.renamed.map((x) => [x.stopId, x.oldName, x.newName])),
+    `<h2>Patterns added (${p.added.length})</h2>`,
+    table(['pattern', 'headsign', 'stops', 'trips per day'], p.added.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)])),
+    `<h2>Patterns removed (${p.removed.length})</h2>`,
+    table(['pattern', 'headsign', 'stops', 'trips per day'], p.removed.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)])),
+    `<h2>Patterns changed (${p.changed.length}; ${p.unchanged} unchanged)</h2>`,
+    table(['old pattern', 'new pattern', 'inserted', 'dropped', 'merged'], p.changed.map((x) => [x.oldPatternId, x.newPatternId, x.inserted.join(' '), x.dropped.join(' '), x.merged ? 'yes' : ''])),
+    '<h2>Spacing before and after</h2>',
+    table(['', 'before', 'after'], SPACING_ROWS.map(([label, key, f]) => [label, f(c.spacing.before[key]), f(c.spacing.after[key])])),
+    '<h2>Candidates</h2>',
+    c.candidates
+      ? table(
+          ['', 'action', 'stop', 'net pax-min per day'],
+          [
+            ...c.candidates.appeared.map((x) => ['appeared', x.action, x.stopId || x.stopName, x.netPaxMinPerDay.toFixed(0)]),
+            ...c.candidates.disappeared.map((x) => ['disappeared', x.action, x.stopId || x.stopName, x.netPaxMinPerDay.toFixed(0)]),
+          ],
+        )
+      : '<p class="none">not compared (no audit of either version)</p>',
+  ];
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<title>stopspan: what changed between two feeds</title>
+<style>
+body{font:14px/1.4 system-ui,sans-serif;margin:2em;color:#222;max-width:70em}
+table{border-collapse:collapse;margin-bottom:1em}td,th{border-bottom:1px solid #ddd;padding:3px 8px;text-align:left}
+.none{color:#777}code{font-size:12px}
+</style></head><body>
+<h1>What changed between two feeds</h1>
+<p>Old: ${esc(c.old.source)} (version ${esc(c.old.version || 'none')}, <code>${esc(c.old.contentHash.slice(0, 12))}</code>)<br>
+New: ${esc(c.new.source)} (version ${esc(c.new.version || 'none')}, <code>${esc(c.new.contentHash.slice(0, 12))}</code>)</p>
+${sections.join('\n')}
+</body></html>
+`;
+}
