@@ -1,0 +1,305 @@
+// Writes the broken-feed corpus into fixtures/broken/: a minimal valid feed (folder and zip) and, derived
+// from it, one small zip per kind of damage, plus cases.json saying what a careful tool should do with
+// each (exit code, and the words its one-line error must contain: the file, and the field where there is
+// one). The two large cases (a 10 MB line and a multi-gigabyte zip bomb) are generated only on request,
+// into a temporary folder, so the committed corpus stays small. Deterministic: fixed zip timestamps.
+//
+// Usage: node scripts/make-broken.mjs [--out DIR]           the committed corpus (default fixtures/broken)
+//        node scripts/make-broken.mjs --large --out DIR     only the large cases, plus DIR/cases-large.json
+
+process.env.TZ = 'UTC'; // yazl writes DOS timestamps in local time; pin it so the bytes never vary
+
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import zlib from 'node:zlib';
+import yazl from 'yazl';
+
+const ZIP_MTIME = new Date(Date.UTC(2026, 10, 1, 0, 0, 0));
+
+// ---------------------------------------------------------------------------------------------------
+// The minimal valid feed: two routes in Vellmoor, one weekday service, shapes for both
+
+function minimalFeed() {
+  const s1 = [0, 1, 2, 3, 4, 5].map((k) => [`S${k + 1}`, `Mill Ln / Stop ${k + 1}`, (45.02).toFixed(6), (10.03 + k * 0.0032).toFixed(6)]);
+  const s2 = [0, 1, 2, 3].map((k) => [`T${k + 1}`, `Ferry St / Stop ${k + 1}`, (45.021 + k * 0.0025).toFixed(6), (10.029).toFixed(6)]);
+  const hm = (minutes) => `${String(Math.floor(minutes / 60)).padStart(2, '0')}:${String(minutes % 60).padStart(2, '0')}:00`;
+  const st = [];
+  const addTrip = (tripId, stops, startMin) => stops.forEach((s, i) => st.push(`${tripId},${hm(startMin + i)},${hm(startMin + i)},${s[0]},${i + 1}`));
+  addTrip('M1-1', s1, 7 * 60);
+  addTrip('M1-2', s1, 8 * 60);
+  addTrip('M2-1', s2, 7 * 60 + 10);
+  addTrip('M2-2', s2, 8 * 60 + 10);
+  const shape = (id, stops) => stops.map((s, i) => `${id},${s[2]},${s[3]},${i + 1}`);
+  return {
+    'agency.txt': 'agency_id,agency_name,agency_url,agency_timezone\nVTA,Vellmoor Transit Authority,https://transit.vellmoor.example/,Etc/GMT-1\n',
+    'routes.txt': 'route_id,agency_id,route_short_name,route_long_name,route_type\nM1,VTA,M1,Mill Lane,3\nM2,VTA,M2,Ferry Street,3\n',
+    'stops.txt': 'stop_id,stop_name,stop_lat,stop_lon\n' + [...s1, ...s2].map((r) => r.join(',')).join('\n') + '\n',
+    'calendar.txt': 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWKDY,1,1,1,1,1,0,0,20261102,20270331\n',
+    'trips.txt': 'route_id,service_id,trip_id,direction_id,shape_id\nM1,WKDY,M1-1,0,SH1\nM1,WKDY,M1-2,0,SH1\nM2,WKDY,M2-1,0,SH2\nM2,WKDY,M2-2,0,SH2\n',
+    'stop_times.txt': 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n' + st.join('\n') + '\n',
+    'shapes.txt': 'shape_id,shape_pt_lat,shape_pt_lon,shape_pt_sequence\n' + [...shape('SH1', s1), ...shape('SH2', s2)].join('\n') + '\n',
+  };
+}
+
+// ---------------------------------------------------------------------------------------------------
+// Writers
+
+/** A zip of the given entries (name -> string or Buffer), in the given order, with fixed timestamps. */
+function zipBuffer(entries) {
+  return new Promise((res, rej) => {
+    const zip = new yazl.ZipFile();
+    for (const [name, body] of Object.entries(entries)) {
+      const buf = Buffer.isBuffer(body) ? body : Buffer.from(body, 'utf8');
+      zip.addBuffer(buf, name, { mtime: ZIP_MTIME, mode: 0o100644, compress: true, compressionLevel: 9 });
+    }
+    zip.end();
+    const chunks = [];
+    zip.outputStream.on('data', (c) => chunks.push(c));
+    zip.outputStream.on('end', () => res(Buffer.concat(chunks)));
+    zip.outputStream.on('error', rej);
+  });
+}
+
+/** Replaces a name in a zip's local and central headers (same length): for names yazl rightly refuses. */
+function renameInZip(buf, from, to) {
+  if (Buffer.byteLength(from) !== Buffer.byteLength(to)) throw new Error('renameInZip: names must have the same length');
+  const out = Buffer.from(buf);
+  const needle = Buffer.from(from);
+  let n = 0;
+  for (let i = out.indexOf(needle); i >= 0; i = out.indexOf(needle, i + 1)) {
+    Buffer.from(to).copy(out, i);
+    n++;
+  }
+  if (n !== 2) throw new Error(`renameInZip: expected 2 occurrences of ${from}, found ${n}`);
+  return out;
+}
+
+/** Sets the declared uncompressed size of one entry in its local and central headers. */
+function declareSize(buf, name, size) {
+  const out = Buffer.from(buf);
+  const nameBuf = Buffer.from(name);
+  for (let i = 0; i < out.length - 4; i++) {
+    const sig = out.readUInt32LE(i);
+    if (sig === 0x04034b50 && out.subarray(i + 30, i + 30 + nameBuf.length).equals(nameBuf)) out.writeUInt32LE(size, i + 22);
+    if (sig === 0x02014b50 && out.subarray(i + 46, i + 46 + nameBuf.length).equals(nameBuf)) out.writeUInt32LE(size, i + 24);
+  }
+  return out;
+}
+
+/**
+ * A zip whose stop_times.txt really inflates to `chunks` x 16 MiB of zeros. Deflate cannot beat about
+ * 1000:1, so the compressed stream is built by repeating one fully flushed (self-contained, byte-aligned)
+ * block of 16 MiB of zeros, then an empty final block: seconds to write, a few MB on disk. Written by hand
+ * because the point is an entry no archiver would make; the other entries are the minimal feed's.
+ */
+function zipBombBuffer(chunks) {
+  const zeros = Buffer.alloc(16 * 1024 * 1024);
+  const block = zlib.deflateRawSync(zeros, { level: 9, finishFlush: zlib.constants.Z_FULL_FLUSH });
+  const final = zlib.deflateRawSync(Buffer.alloc(0));
+  let crc = 0;
+  for (let k = 0; k < chunks; k++) crc = zlib.crc32(zeros, crc);
+  const bomb = { name: 'stop_times.txt', crc, size: zeros.length * chunks, data: Buffer.concat([...Array(chunks).fill(block), final]) };
+  const feed = minimalFeed();
+  delete feed['stop_times.txt'];
+  const entries = Object.entries(feed).map(([name, text]) => {
+    const raw = Buffer.from(text, 'utf8');
+    return { name, crc: zlib.crc32(raw), size: raw.length, data: zlib.deflateRawSync(raw) };
+  });
+  entries.push(bomb);
+  const parts = [];
+  const central = [];
+  let offset = 0;
+  for (const e of entries) {
+    const name = Buffer.from(e.name);
+    const lh = Buffer.alloc(30);
+    lh.writeUInt32LE(0x04034b50, 0);
+    lh.writeUInt16LE(20, 4); // version needed
+    lh.writeUInt16LE(0, 6); // flags
+    lh.writeUInt16LE(8, 8); // deflate
+    lh.writeUInt16LE(0, 10); // time 00:00
+    lh.writeUInt16LE(((2026 - 1980) << 9) | (11 << 5) | 1, 12); // 2026-11-01
+    lh.writeUInt32LE(e.crc >>> 0, 14);
+    lh.writeUInt32LE(e.data.length, 18);
+    lh.writeUInt32LE(e.size, 22);
+    lh.writeUInt16LE(name.length, 26);
+    lh.writeUInt16LE(0, 28);
+    const cd = Buffer.alloc(46);
+    cd.writeUInt32LE(0x02014b50, 0);
+    cd.writeUInt16LE(20, 4);
+    lh.copy(cd, 6, 4, 30); // version needed .. name length, then extra length 0
+    cd.writeUInt32LE(offset, 42);
+    central.push(cd, name);
+    parts.push(lh, name, e.data);
+    offset += lh.length + name.length + e.data.length;
+  }
+  const cdBuf = Buffer.concat(central);
+  const eocd = Buffer.alloc(22);
+  eocd.writeUInt32LE(0x06054b50, 0);
+  eocd.writeUInt16LE(entries.length, 8);
+  eocd.writeUInt16LE(entries.length, 10);
+  eocd.writeUInt32LE(cdBuf.length, 12);
+  eocd.writeUInt32LE(offset, 16);
+  return Buffer.concat([...parts, cdBuf, eocd]);
+}
+
+// ---------------------------------------------------------------------------------------------------
+// Edits of the minimal feed's tables
+
+/** Replaces one line (1-based, header is line 1) of a table. */
+function setLine(text, lineNo, line) {
+  const lines = text.split('\n');
+  lines[lineNo - 1] = line;
+  return lines.join('\n');
+}
+
+function withTable(name, fn) {
+  const feed = minimalFeed();
+  feed[name] = fn(feed[name], feed);
+  return feed;
+}
+
+// ---------------------------------------------------------------------------------------------------
+// The cases. exit: 2 unusable input (one-line error naming `words`), 0 usable (warning: a counted warning
+// is expected in summary.json).
+
+async function committedCases() {
+  const base = minimalFeed();
+  const baseZip = await zipBuffer(base);
+  const cases = [];
+  const add = (c) => cases.push(c);
+
+  add({ name: 'minimal-folder', path: 'minimal', exit: 0, words: [], why: 'the valid minimal feed, as a folder' });
+  add({ name: 'minimal-zip', path: 'minimal.zip', exit: 0, words: [], why: 'the valid minimal feed, as a zip' });
+
+  // archive-level damage
+  add({ name: 'truncated-zip', path: 'truncated.zip', bytes: baseZip.subarray(0, Math.floor(baseZip.length * 0.6)), exit: 2, words: ['truncated.zip'], why: 'the archive stops part way: no central directory' });
+  {
+    const bad = Buffer.from(baseZip);
+    const cd = bad.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]));
+    bad.writeUInt32LE(0x0badf00d, cd);
+    add({ name: 'bad-central-directory', path: 'bad-central-directory.zip', bytes: bad, exit: 2, words: ['bad-central-directory.zip'], why: 'the first central directory header has a wrong signature' });
+  }
+  add({ name: 'zip-bomb-declared', path: 'zip-bomb-declared.zip', bytes: declareSize(baseZip, 'stop_times.txt', 4_000_000_000), exit: 2, words: ['stop_times.txt'], why: 'stop_times.txt declares 4 GB uncompressed: refuse before inflating' });
+  {
+    const feed = minimalFeed();
+    const zip = await zipBuffer(without(feed, 'stops.txt', { 'xx/stops.txt': feed['stops.txt'] }));
+    add({ name: 'parent-path-entry', path: 'parent-path-entry.zip', bytes: renameInZip(zip, 'xx/stops.txt', '../stops.txt'), exit: 2, words: ['stops.txt'], why: 'stops.txt is stored as ../stops.txt: refuse the entry (never write it anywhere); without it the feed lacks stops' });
+    const zip2 = await zipBuffer(without(feed, 'trips.txt', { _trips_txt: feed['trips.txt'] }));
+    add({ name: 'absolute-path-entry', path: 'absolute-path-entry.zip', bytes: renameInZip(zip2, '_trips_txt', '/trips.txt'), exit: 2, words: ['trips.txt'], why: 'trips.txt is stored as /trips.txt: refuse the absolute path; without it the feed lacks trips' });
+  }
+  {
+    const nested = Object.fromEntries(Object.entries(base).map(([k, v]) => [`vellmoor-gtfs/${k}`, v]));
+    add({ name: 'nested-folder', path: 'nested-folder.zip', bytes: await zipBuffer(nested), exit: 0, words: [], why: 'every table inside one top-level folder, as many publishers zip them: valid' });
+  }
+
+  // table-level damage
+  const table = async (name, file, text, exit, words, why, extra = {}) => {
+    const feed = withTable(file, () => text);
+    add({ name, path: `${name}.zip`, bytes: await zipBuffer(feed), exit, words, why, ...extra });
+  };
+  const t = minimalFeed();
+  await table('empty-table', 'stops.txt', '', 2, ['stops.txt'], 'stops.txt has zero bytes: no header, no stops');
+  await table('empty-optional-table', 'shapes.txt', '', 0, [], 'shapes.txt (optional) has zero bytes: fall back to straight lines and say so', { warning: true });
+  await table('header-only', 'stop_times.txt', 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n', 2, ['stop_times.txt'], 'stop_times.txt has a header and no rows: no trip has stops');
+  await table('duplicate-header', 'stops.txt', t['stops.txt'].replace('stop_id,stop_name,stop_lat,stop_lon', 'stop_id,stop_name,stop_lat,stop_lon,stop_name').split('\n').map((l, i) => (i === 0 || l === '' ? l : l + ',Again')).join('\n'), 2, ['stops.txt', 'stop_name'], 'stops.txt names the column stop_name twice: which one is meant is unknowable');
+  {
+    const feed = minimalFeed();
+    const text = Buffer.concat([Buffer.from(feed['stops.txt'].split('\n').slice(0, 2).join('\n') + '\n'), Buffer.from('S2,Caf'), Buffer.from([0xe9]), Buffer.from(' Corner,45.020000,10.033200\n'), Buffer.from(feed['stops.txt'].split('\n').slice(3).join('\n'))]);
+    feed['stops.txt'] = text;
+    add({ name: 'non-utf8', path: 'non-utf8.zip', bytes: await zipBuffer(feed), exit: 2, words: ['stops.txt', 'stop_name'], why: 'a Latin-1 byte (0xE9) in a stop name: GTFS text is UTF-8' });
+  }
+  await table('unterminated-quote', 'trips.txt', 'route_id,service_id,trip_id,direction_id,shape_id,trip_headsign\nM1,WKDY,M1-1,0,SH1,"Mill Lane\nM1,WKDY,M1-2,0,SH1,Mill Lane\nM2,WKDY,M2-1,0,SH2,Ferry Street\nM2,WKDY,M2-2,0,SH2,Ferry Street\n', 2, ['trips.txt', 'trip_headsign'], 'a quote opened in trip_headsign on line 2 never closes');
+  {
+    const feed = minimalFeed();
+    feed['routes.txt'] = Buffer.from(feed['routes.txt'].replace('Mill Lane', 'Mill\u0000Lane'), 'utf8');
+    add({ name: 'nul-bytes', path: 'nul-bytes.zip', bytes: await zipBuffer(feed), exit: 2, words: ['routes.txt', 'route_long_name'], why: 'a NUL byte inside route_long_name' });
+  }
+  await table('time-bad-minutes', 'stop_times.txt', setLine(t['stop_times.txt'], 3, 'M1-1,25:99:00,25:99:00,S2,2'), 2, ['stop_times.txt', 'arrival_time'], 'arrival_time 25:99:00: hours may pass 24, minutes may not pass 59');
+  await table('time-negative', 'stop_times.txt', setLine(t['stop_times.txt'], 3, 'M1-1,07:01:00,-1:00:00,S2,2'), 2, ['stop_times.txt', 'departure_time'], 'departure_time -1:00:00');
+  await table('lat-out-of-range', 'stops.txt', setLine(t['stops.txt'], 3, 'S2,Mill Ln / Stop 2,95.020000,10.033200'), 2, ['stops.txt', 'stop_lat'], 'stop_lat 95: latitude lies in [-90, 90]');
+  await table('lon-nan', 'stops.txt', setLine(t['stops.txt'], 4, 'S3,Mill Ln / Stop 3,45.020000,NaN'), 2, ['stops.txt', 'stop_lon'], 'stop_lon NaN');
+  await table('sequence-not-numeric', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S3,third'), 2, ['stop_times.txt', 'stop_sequence'], 'stop_sequence "third"');
+  await table('sequence-repeated', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S3,2'), 2, ['stop_times.txt', 'stop_sequence'], 'trip M1-1 gives stop_sequence 2 twice: the order of its stops is unknowable');
+  await table('trips-missing-route', 'trips.txt', t['trips.txt'].replace(/^M2,/gm, 'M9,'), 0, [], 'the M2 trips name route M9, which does not exist: skip them, count it, audit M1', { warning: true });
+  await table('all-trips-missing-route', 'trips.txt', t['trips.txt'].replace(/^M[12],/gm, 'MX,'), 2, ['trips.txt', 'route_id'], 'every trip names route MX, which does not exist: nothing is left');
+  {
+    const feed = minimalFeed();
+    feed['shapes.txt'] = feed['shapes.txt'].split('\n').filter((l) => !/^SH2,/.test(l) || /,1$/.test(l)).join('\n');
+    add({ name: 'shape-one-point', path: 'shape-one-point.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'shape SH2 has a single point: no path; use straight lines for M2 and say so' });
+  }
+  {
+    const feed = minimalFeed();
+    feed['shapes.txt'] = feed['shapes.txt'].split('\n').map((l) => (/^SH2,/.test(l) ? l.replace(/^SH2,[^,]+,[^,]+,/, 'SH2,45.021000,10.029000,') : l)).join('\n');
+    add({ name: 'shape-zero-length', path: 'shape-zero-length.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'shape SH2 has four points all at one place: zero length; use straight lines for M2 and say so' });
+  }
+  {
+    const feed = minimalFeed();
+    feed['trips.txt'] += 'M2,WKDY,M2-3,0,SH2\n';
+    feed['stop_times.txt'] += 'M2-3,09:10:00,09:10:00,T1,1\n';
+    add({ name: 'one-stop-pattern', path: 'one-stop-pattern.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'trip M2-3 serves a single stop: a pattern with no gap; skip it, count it' });
+  }
+  await table('calendar-never-runs', 'calendar.txt', 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWKDY,0,0,0,0,0,0,0,20261102,20270331\n', 2, ['calendar.txt'], 'the only service runs on no day of the week and calendar_dates adds none: no trip ever runs');
+  {
+    const feed = minimalFeed();
+    feed['calendar.txt'] += 'NEVER,1,1,1,1,1,0,0,20270331,20261102\n';
+    feed['trips.txt'] = feed['trips.txt'].replace('M2,WKDY,M2-2', 'M2,NEVER,M2-2');
+    add({ name: 'one-service-never-runs', path: 'one-service-never-runs.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'service NEVER ends before it starts: trip M2-2 never runs; the rest is usable' });
+  }
+  return { base, baseZip, cases };
+}
+
+function without(feed, name, extra) {
+  const out = {};
+  for (const [k, v] of Object.entries(feed)) if (k !== name) out[k] = v;
+  return { ...out, ...extra };
+}
+
+/** The large cases, written only on request (tests write them into a temporary folder). */
+export async function makeLargeCases(outDir) {
+  mkdirSync(outDir, { recursive: true });
+  const cases = [];
+  {
+    const feed = minimalFeed();
+    const lines = feed['stops.txt'].split('\n');
+    lines[2] = `S2,${'A'.repeat(10 * 1024 * 1024)},45.020000,10.033200`;
+    feed['stops.txt'] = lines.join('\n');
+    writeFileSync(join(outDir, 'long-line.zip'), await zipBuffer(feed));
+    cases.push({ name: 'long-line', path: 'long-line.zip', exit: 2, words: ['stops.txt'], why: 'line 3 of stops.txt is 10 MB long: refuse past the line-length cap instead of buffering it', large: true });
+  }
+  {
+    writeFileSync(join(outDir, 'zip-bomb.zip'), zipBombBuffer(238));
+    cases.push({ name: 'zip-bomb', path: 'zip-bomb.zip', exit: 2, words: ['stop_times.txt'], why: 'stop_times.txt inflates to 4.0 GB of zeros (238 x 16 MiB) from about 4 MB: refuse by size or ratio', large: true });
+  }
+  writeFileSync(join(outDir, 'cases-large.json'), JSON.stringify(cases, null, 2) + '\n');
+  return cases;
+}
+
+/** Writes the committed corpus into outDir (replacing it). */
+export async function makeBroken(outDir) {
+  rmSync(outDir, { recursive: true, force: true });
+  mkdirSync(join(outDir, 'minimal'), { recursive: true });
+  const { base, baseZip, cases } = await committedCases();
+  for (const [name, text] of Object.entries(base)) writeFileSync(join(outDir, 'minimal', name), text);
+  writeFileSync(join(outDir, 'minimal.zip'), baseZip);
+  const listed = [];
+  for (const c of cases) {
+    if (c.bytes) writeFileSync(join(outDir, c.path), c.bytes);
+    const { bytes, ...rest } = c;
+    listed.push(rest);
+  }
+  listed.push(
+    { name: 'long-line', path: 'long-line.zip', exit: 2, words: ['stops.txt'], why: 'line 3 of stops.txt is 10 MB long (generated at test time: node scripts/make-broken.mjs --large --out DIR)', large: true },
+    { name: 'zip-bomb', path: 'zip-bomb.zip', exit: 2, words: ['stop_times.txt'], why: 'stop_times.txt inflates to 4.0 GB of zeros from about 4 MB (generated at test time)', large: true },
+  );
+  writeFileSync(join(outDir, 'cases.json'), JSON.stringify(listed, null, 2) + '\n');
+  return listed;
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(resolve(process.argv[1])).href) {
+  const i = process.argv.indexOf('--out');
+  const here = dirname(fileURLToPath(import.meta.url));
+  const outDir = i >= 0 ? resolve(process.argv[i + 1]) : join(here, '..', 'fixtures', 'broken');
+  if (process.argv.includes('--large')) await makeLargeCases(outDir);
+  else await makeBroken(outDir);
+}
