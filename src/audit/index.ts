@@ -1,0 +1,11 @@
+// The audit stage: re-exports only.
+export type * from './types.js';
+export * from './verdicts.js';
+export * from './candidates.js';
+export * from './sensitivity.js';
+export * from './runAudit.js';
+export * from './findings.js';
+export * from './check.js';
+export * from './checkText.js';
+export * from './compare.js';
+export * from './compareRender.js';

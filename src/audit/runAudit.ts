@@ -1,0 +1,166 @@
+// The whole audit of a feed's patterns: parameters, demand, per-pattern model and verdicts, network
+// candidates, sensitivity, and the AuditResult every report draws on (headline, parameters with their
+// sources, plain-language assumptions, warnings).
+
+import { StopspanError } from '../common/errors.js';
+import type { OnProgress } from '../common/progress.js';
+import { WarningSink } from '../common/warnings.js';
+import type { Feed } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import type { ObservedData } from '../realtime/types.js';
+import { version } from '../version.js';
+import type { AuditResult, Headline } from './types.js';
+import { assumedDemand, ridershipDemand, type PatternDemand } from '../model/demand.js';
+import { normalizeParams, paramsReport, type NormalizedParams } from '../model/params.js';
+import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
+import { loadRidership } from '../model/ridership.js';
+import { analysePattern } from './verdicts.js';
+import { buildCandidates, candidateKey } from './candidates.js';
+import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
+
+export interface RunAuditOptions {
+  /** Raw parameters (validated here) or parameters already normalised by normalizeParams. */
+  params?: unknown;
+  ridership?: string; // path of a ridership CSV
+  keep?: string[]; // stop_ids that must stay
+  observed?: ObservedData;
+  onProgress?: OnProgress;
+  /** Treat stops served by other routes as fixed (default true). */
+  forceTransfers?: boolean;
+  /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
+  generatedAt?: string;
+}
+
+function isNormalized(x: unknown): x is NormalizedParams {
+  return typeof x === 'object' && x !== null && 'values' in x && 'given' in x && Array.isArray((x as NormalizedParams).given);
+}
+
+function median(values: number[]): number {
+  if (values.length === 0) return 0;
+  const s = Float64Array.from(values).sort();
+  const mid = s.length >> 1;
+  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
+}
+
+export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString() } = options;
+  const np = isNormalized(rawParams) ? rawParams : normalizeParams(rawParams);
+  const params = np.values;
+  if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string')) throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
+  for (const id of keep) {
+    if (!feed.stopIndex.has(id)) throw new StopspanError('bad-option', `invalid option keep: unknown stop_id ${id}`, { column: 'keep', value: id });
+  }
+  if (patterns.patterns.length === 0) throw new StopspanError('empty-feed', `no patterns to analyse on ${patterns.date}`, { file: feed.source });
+  const warnings = new WarningSink();
+
+  // demand per pattern
+  onProgress?.({ stage: 'demand' });
+  const layouts = patterns.patterns.map((pattern) => {
+    const modelStops: number[] = [];
+    for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
+    return { pattern, modelStops, posM: modelStops.map((j) => pattern.distAlongM[j]) };
+  });
+  let observedDemand: Map<string, PatternDemand> | null = null;
+  if (ridership !== undefined) {
+    const rows = loadRidership(ridership, feed, { warnings });
+    observedDemand = ridershipDemand(rows, layouts.filter((l) => l.modelStops.length >= 2), { warnings });
+  }
+
+  // prepare each pattern
+  const keepSet = new Set(keep);
+  const preps: PreparedPattern[] = [];
+  patterns.patterns.forEach((pattern, i) => {
+    onProgress?.({ stage: 'model', done: i, total: patterns.patterns.length, unit: 'patterns' });
+    const prep = preparePattern(
+      feed,
+      patterns,
+      pattern,
+      (modelStops, posM) => observedDemand?.get(pattern.id) ?? assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km }),
+      params,
+      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
+    );
+    if (prep) preps.push(prep);
+  });
+  if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
+
+  onProgress?.({ stage: 'verdicts' });
+  const analyses = preps.map((p) => analysePattern(feed, p, params));
+  const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+  onProgress?.({ stage: 'sensitivity' });
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates);
+  for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+
+  // headline
+  const allGaps: number[] = [];
+  const served = new Set<number>();
+  for (const a of analyses) {
+    for (let m = 0; m + 1 < a.modelPosM.length; m++) allGaps.push(a.modelPosM[m + 1] - a.modelPosM[m]);
+    for (const s of a.result.patternId ? a.feedStopsByModelPos : []) served.add(s);
+  }
+  const headline: Headline = {
+    patterns: analyses.length,
+    stops: served.size,
+    trips: analyses.reduce((n, a) => n + a.result.tripsPerDay, 0),
+    medianGapM: median(allGaps),
+    meanOptimalSpacingM: meanOptimalSpacingM(analyses),
+    closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
+    wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
+    paxMinLostPerDay: analyses.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+  };
+
+  // parameters with what was actually used where a value is per pattern
+  const speeds = preps.map((p) => p.cruiseSpeedMps);
+  const trips = preps.map((p) => p.meanTripLengthM);
+  const anyObservedLost = preps.some((p) => p.lostTimeSource === 'observed');
+  const overrides: Parameters<typeof paramsReport>[1] = {};
+  if (params.cruise_speed_mps === null) {
+    const sources = new Set(preps.map((p) => p.cruiseSpeedSource));
+    overrides.cruise_speed_mps = {
+      value: null,
+      source: sources.has('observed') ? 'observed' : 'estimated',
+      note: `${sources.has('observed') ? 'observed where realtime data covers a pattern, else ' : ''}estimated per pattern from the schedule: median ${median(speeds).toFixed(1)} m/s (range ${Math.min(...speeds).toFixed(1)}-${Math.max(...speeds).toFixed(1)})`,
+    };
+  }
+  if (params.mean_trip_length_m === null) {
+    overrides.mean_trip_length_m = {
+      value: null,
+      source: ridership !== undefined ? 'observed' : 'D',
+      note: `${ridership !== undefined ? 'from the ridership load profile' : 'a third of each pattern length (uniform origins and destinations)'}: median ${Math.round(median(trips))} m`,
+    };
+  }
+
+  const demandSource = ridership !== undefined ? 'observed' : 'assumed';
+  const assumptions: string[] = [
+    demandSource === 'assumed'
+      ? `No ridership file: demand is assumed uniform along each pattern at ${params.assumed_boardings_per_trip_km} boardings per trip per km, with a mean trip of a third of the pattern length; every figure from it is marked demand_source=assumed.`
+      : `Demand comes from the ridership file ${ridership}; a stop's counts are split between the patterns serving it by trips per day.`,
+    params.cruise_speed_mps === null
+      ? 'Cruise speed is estimated per pattern so that the scheduled run time is explained by driving, stops served and boarding (2.75 s per boarding, Levinson 1983); traffic delay is folded into the cruise speed.'
+      : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
+    `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
+    params.stopping_model === 'always' ? 'The bus is assumed to stop at every stop.' : 'A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat); observed stop shares replace it where realtime data exists.',
+    'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
+    `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
+    'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
+    'This is a screening tool. Before any stop is removed or moved: field review of the walk (crossings, sidewalks, grades, lighting), accessibility review under local law (for example the ADA in the US), attention to older and disabled riders, an equity review where one is required (for example Title VI service-equity analysis in the US), and public engagement. Local policy and licensed professional judgement decide.',
+  ];
+
+  return {
+    tool: { name: 'stopspan', version },
+    feed: { source: feed.source, contentHash: feed.contentHash, version: feed.feedInfo?.version ?? '', publisher: feed.feedInfo?.publisherName || feed.agencies[0]?.name || '' },
+    date: patterns.date,
+    generatedAt,
+    demandSource,
+    lostTimeSource: anyObservedLost ? 'observed' : 'default',
+    params: paramsReport(np, overrides),
+    headline,
+    patterns: analyses.map((a) => a.result),
+    stops: analyses.flatMap((a) => a.stops),
+    gaps: analyses.flatMap((a) => a.gaps),
+    candidates,
+    sensitivity: cases,
+    warnings: [...feed.warnings, ...(observed?.warnings ?? []), ...warnings.list()],
+    assumptions,
+  };
+}

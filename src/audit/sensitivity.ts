@@ -1,0 +1,62 @@
+// How robust the headline figures and the candidates are: the same audit at walk weights 1.5 and 2.5 and at
+// band tolerances 0.05 and 0.10, everything else unchanged.
+
+import type { Feed } from '../gtfs/types.js';
+import type { Candidate, SensitivityCase } from './types.js';
+import type { ModelParams } from '../model/params.js';
+import type { PreparedPattern } from '../model/preparePattern.js';
+import { analysePattern, type PatternAnalysis } from './verdicts.js';
+import { buildCandidates, candidateKey } from './candidates.js';
+
+export interface SensitivitySetting {
+  label: string;
+  walkWeight: number;
+  bandTolerance: number;
+}
+
+/** The four settings of the design: walk weight 1.5 and 2.5, band tolerance 0.05 and 0.10. */
+export function sensitivitySettings(params: ModelParams): SensitivitySetting[] {
+  return [
+    { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: params.band_tolerance },
+    { label: 'walk_weight=2.5', walkWeight: 2.5, bandTolerance: params.band_tolerance },
+    { label: 'band_tolerance=0.05', walkWeight: params.walk_weight, bandTolerance: 0.05 },
+    { label: 'band_tolerance=0.10', walkWeight: params.walk_weight, bandTolerance: 0.1 },
+  ];
+}
+
+/** How many of the base case's leading candidates are compared in candidatesKept. */
+export const SENSITIVITY_TOP_CANDIDATES = 10;
+
+export function meanOptimalSpacingM(analyses: PatternAnalysis[]): number {
+  const xs = analyses.map((a) => a.result.optimalSpacingM).filter((s) => s > 0);
+  return xs.length ? xs.reduce((s, x) => s + x, 0) / xs.length : 0;
+}
+
+export function runSensitivity(
+  feed: Feed,
+  preps: PreparedPattern[],
+  params: ModelParams,
+  baseCandidates: Candidate[],
+  { settings = sensitivitySettings(params) }: { settings?: SensitivitySetting[] } = {},
+): { cases: SensitivityCase[]; robustKeys: Set<string> } {
+  const top = baseCandidates.slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
+  let robustKeys = new Set(baseCandidates.map(candidateKey));
+  const cases: SensitivityCase[] = [];
+  for (const s of settings) {
+    const analyses = preps.map((p) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance }));
+    const cands = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+    const keys = new Set(cands.map(candidateKey));
+    robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));
+    cases.push({
+      label: s.label,
+      walkWeight: s.walkWeight,
+      bandTolerance: s.bandTolerance,
+      meanOptimalSpacingM: meanOptimalSpacingM(analyses),
+      closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
+      wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
+      paxMinLostPerDay: analyses.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+      candidatesKept: top.filter((k) => keys.has(k)).length,
+    });
+  }
+  return { cases, robustKeys };
+}

@@ -1,0 +1,308 @@
+// One pattern's verdicts: the optimum spacing and its band, the optimiser's stop count and the riders'
+// minutes lost to today's spacing, and for every stop close / wide / ok / fixed with the numbers behind it
+// (gaps, net passenger-minutes per day if it were removed); for every gap above the band, the change if a
+// stop were added in its middle. All figures come from the corridor cost the optimiser minimises, so a
+// removal figure is exactly the change in that objective.
+
+import type { Feed } from '../gtfs/types.js';
+import type { CostCurvePoint, GapResult, PatternResult, StopResult, Verdict } from './types.js';
+import { bandM } from '../model/band.js';
+import { type CostSettings, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
+import { effectiveOptimum } from '../model/effectiveOptimum.js';
+import { localOptimalSpacingM } from '../model/localOptimum.js';
+import { optimiseStops } from '../model/optimiser.js';
+import { costPerRiderS } from '../model/sqrtLaw.js';
+import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
+import type { ModelParams } from '../model/params.js';
+
+/** The effect of one change on one pattern, in rider-seconds per day and bus seconds per trip. */
+export interface ChangeEffect {
+  netPaxMinPerDay: number;
+  walkAddedPaxMinPerDay: number; // negative for an addition (walk saved)
+  rideSavedPaxMinPerDay: number; // ride time saved, net of the neighbours' changed stopping
+  runTimeSavedPerTripS: number;
+  ridersAffectedPerDay: number;
+}
+
+export interface RemovalEffect extends ChangeEffect {
+  patternId: string;
+  routeId: string;
+  tripsPerDay: number;
+  stopIdx: number; // feed stop index
+  modelPos: number; // position among the pattern's model stops
+  gapAfterRemovalM: number;
+}
+
+export interface AdditionEffect extends ChangeEffect {
+  patternId: string;
+  routeId: string;
+  tripsPerDay: number;
+  fromStopIdx: number;
+  toStopIdx: number;
+  lat: number;
+  lon: number;
+  gapM: number;
+}
+
+export interface PatternAnalysis {
+  result: PatternResult;
+  stops: StopResult[];
+  gaps: GapResult[];
+  removals: RemovalEffect[];
+  additions: AdditionEffect[];
+  fixedStopIdx: number[]; // feed stops that must stay on this pattern
+  feedStopsByModelPos: number[];
+  modelPosM: number[]; // distance along of each model stop
+}
+
+const S_TO_MIN = 1 / 60;
+
+/** Change in cost from removing model stop m (0 < m < n-1) with both neighbours kept. */
+export function removalEffect(prep: PreparedPattern, m: number, settings: CostSettings): ChangeEffect {
+  const c = prep.corridor;
+  const x = c.posM;
+  const n = c.n;
+  if (!(m > 0 && m < n - 1)) throw new RangeError(`removalEffect: not an intermediate stop: ${m}`);
+  const walkAdded = walkCostS(c, x[m - 1], x[m + 1], settings) - walkCostS(c, x[m - 1], x[m], settings) - walkCostS(c, x[m], x[m + 1], settings);
+  const own = servedStopCost(c, x[m - 1], x[m], x[m + 1], m, settings);
+  let neighbourCostS = 0;
+  let neighbourBusS = 0;
+  if (m - 1 > 0) {
+    const after = servedStopCost(c, x[m - 2], x[m - 1], x[m + 1], m - 1, settings);
+    const before = servedStopCost(c, x[m - 2], x[m - 1], x[m], m - 1, settings);
+    neighbourCostS += after.costS - before.costS;
+    neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
+  }
+  if (m + 1 < n - 1) {
+    const after = servedStopCost(c, x[m - 1], x[m + 1], x[m + 2], m + 1, settings);
+    const before = servedStopCost(c, x[m], x[m + 1], x[m + 2], m + 1, settings);
+    neighbourCostS += after.costS - before.costS;
+    neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
+  }
+  const rideSavedS = own.costS - neighbourCostS;
+  return {
+    netPaxMinPerDay: (walkAdded - rideSavedS) * S_TO_MIN,
+    walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
+    rideSavedPaxMinPerDay: rideSavedS * S_TO_MIN,
+    runTimeSavedPerTripS: own.busTimePerTripS - neighbourBusS,
+    ridersAffectedPerDay: c.boardPerDay[m] + c.alightPerDay[m],
+  };
+}
+
+/** Change in cost from adding a stop at position q between model stops m and m+1. */
+export function additionEffect(prep: PreparedPattern, m: number, q: number, settings: CostSettings): ChangeEffect {
+  const c = prep.corridor;
+  const x = c.posM;
+  const n = c.n;
+  if (!(m >= 0 && m < n - 1) || !(q >= x[m] && q <= x[m + 1])) throw new RangeError(`additionEffect: position ${q} not in gap ${m}`);
+  const walkAdded = walkCostS(c, x[m], q, settings) + walkCostS(c, q, x[m + 1], settings) - walkCostS(c, x[m], x[m + 1], settings);
+  const own = servedStopCost(c, x[m], q, x[m + 1], -1, settings);
+  let neighbourCostS = 0;
+  let neighbourBusS = 0;
+  if (m > 0) {
+    const after = servedStopCost(c, x[m - 1], x[m], q, m, settings);
+    const before = servedStopCost(c, x[m - 1], x[m], x[m + 1], m, settings);
+    neighbourCostS += after.costS - before.costS;
+    neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
+  }
+  if (m + 1 < n - 1) {
+    const after = servedStopCost(c, q, x[m + 1], x[m + 2], m + 1, settings);
+    const before = servedStopCost(c, x[m], x[m + 1], x[m + 2], m + 1, settings);
+    neighbourCostS += after.costS - before.costS;
+    neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
+  }
+  const rideSavedS = -(own.costS + neighbourCostS);
+  return {
+    netPaxMinPerDay: (walkAdded - rideSavedS) * S_TO_MIN,
+    walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
+    rideSavedPaxMinPerDay: rideSavedS * S_TO_MIN,
+    runTimeSavedPerTripS: -(own.busTimePerTripS + neighbourBusS),
+    ridersAffectedPerDay: own.endsPerDay,
+  };
+}
+
+function median(values: number[]): number {
+  if (values.length === 0) return 0;
+  const s = [...values].sort((a, b) => a - b);
+  const mid = s.length >> 1;
+  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
+}
+
+export function analysePattern(
+  feed: Feed,
+  prep: PreparedPattern,
+  params: ModelParams,
+  { walkWeight = params.walk_weight, bandTolerance = params.band_tolerance }: { walkWeight?: number; bandTolerance?: number } = {},
+): PatternAnalysis {
+  const { pattern, corridor, modelStops, posM, demand } = prep;
+  const settings = costSettings(prep, params, { walkWeight });
+  const n = modelStops.length;
+  const gapsM: number[] = [];
+  for (let m = 0; m + 1 < n; m++) gapsM.push(posM[m + 1] - posM[m]);
+  const lengthM = posM[n - 1] - posM[0];
+  const trips = corridor.tripsPerDay;
+  const endsPerTrip = (demand.ridersPerDay + demand.alightPerDay.reduce((s, a) => s + a, 0)) / trips;
+  const shares = prep.observedShare?.filter((x): x is number => x !== null) ?? [];
+  const opt = effectiveOptimum(settings, {
+    meanTripLengthM: prep.meanTripLengthM,
+    tripEndsPerTripPerM: lengthM > 0 ? endsPerTrip / lengthM : 0,
+    meanObservedShare: shares.length ? shares.reduce((s, x) => s + x, 0) / shares.length : null,
+  });
+  const hasOptimum = opt.spacingM > 0 && Number.isFinite(opt.spacingM);
+  const band = hasOptimum ? bandM(opt.spacingM, bandTolerance) : { lowM: 0, highM: Infinity };
+  const lawInput = { walkSpeedMps: params.walk_speed_mps, walkWeight, lostTimePerStopS: opt.effectiveLostTimeS, meanTripLengthM: prep.meanTripLengthM };
+  const costCurve: CostCurvePoint[] = [];
+  if (hasOptimum) {
+    for (let k = 0; k <= 30; k++) {
+      const spacingM = opt.spacingM * (0.25 + (k * 2.75) / 30);
+      costCurve.push({ spacingM, costPerRiderS: costPerRiderS(spacingM, lawInput) });
+    }
+  }
+  const meanGapM = gapsM.length ? lengthM / gapsM.length : 0;
+
+  // the optimiser, with operating cost when set, and today's cost by the same objective
+  const optSettings = costSettings(prep, params, { walkWeight, withOperatingCost: true });
+  const forced = prep.fixedReason.map((r) => r !== '');
+  const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
+  const todayCostS = servedSetCostS(corridor, [...Array(n).keys()], optSettings);
+  const paxMinLostPerDay = Math.max(0, (todayCostS - best.costS) * S_TO_MIN);
+  const keptSet = new Set(best.kept);
+
+  // stops
+  const stops: StopResult[] = [];
+  const removals: RemovalEffect[] = [];
+  const feedStopsByModelPos = modelStops.map((j) => pattern.stopIdx[j]);
+  const modelPosOf = new Map(modelStops.map((j, m) => [j, m]));
+  const fixedStopIdx: number[] = [];
+  let closeStops = 0;
+  for (let j = 0; j < pattern.stopIdx.length; j++) {
+    const stopIdx = pattern.stopIdx[j];
+    const stop = feed.stops[stopIdx];
+    const m = modelPosOf.get(j);
+    const base = {
+      patternId: pattern.id,
+      routeId: pattern.routeId,
+      directionId: pattern.directionId,
+      stopIndex: j,
+      stopId: stop?.id ?? '',
+      stopName: stop?.name ?? '',
+      stopLat: stop?.lat ?? NaN,
+      stopLon: stop?.lon ?? NaN,
+      distAlongM: pattern.distAlongM[j],
+      tripsPerDay: pattern.tripsPerDay,
+      demandSource: demand.demandSource,
+      timepoint: pattern.timepoint[j] === true,
+      offsetFromShapeM: pattern.offsetFromShapeM[j] ?? null,
+    };
+    if (m === undefined) {
+      // not a passenger stop: kept for geometry only
+      fixedStopIdx.push(stopIdx);
+      stops.push({ ...base, gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null });
+      continue;
+    }
+    const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
+    const gapAfterM = m + 1 < n ? gapsM[m] : null;
+    const ends = corridor.boardPerDay[m] + corridor.alightPerDay[m];
+    const prob = m > 0 && m < n - 1 ? servedStopCost(corridor, posM[m - 1], posM[m], posM[m + 1], m, settings).probability : 1;
+    const catchmentM = ((gapBeforeM ?? 0) + (gapAfterM ?? 0)) / 2;
+    const local = catchmentM > 0 ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, { walkSpeedMps: params.walk_speed_mps, lostTimePerStopS: prep.lostTimePerStopS * prob, walkWeight }) : null;
+    const reason = prep.fixedReason[m];
+    let verdict: Verdict = 'ok';
+    let removal: ChangeEffect | null = null;
+    if (reason !== '') {
+      verdict = 'fixed';
+      fixedStopIdx.push(stopIdx);
+    } else {
+      removal = removalEffect(prep, m, settings);
+      const spacing = (gapBeforeM! + gapAfterM!) / 2;
+      if (hasOptimum && spacing < band.lowM) verdict = 'close';
+      else if (hasOptimum && spacing > band.highM) verdict = 'wide';
+      removals.push({ ...removal, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
+    }
+    if (verdict === 'close') closeStops++;
+    stops.push({
+      ...base,
+      gapBeforeM,
+      gapAfterM,
+      boardingsPerDay: corridor.boardPerDay[m],
+      alightingsPerDay: corridor.alightPerDay[m],
+      loadDepartingPerDay: demand.loadDepartingPerDay[m],
+      stopProbability: prob,
+      localOptimalSpacingM: local,
+      verdict,
+      fixedReason: reason,
+      keptByOptimiser: keptSet.has(m),
+      removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
+      removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,
+    });
+  }
+
+  // gaps
+  const gaps: GapResult[] = [];
+  const additions: AdditionEffect[] = [];
+  let wideGaps = 0;
+  for (let m = 0; m + 1 < n; m++) {
+    const gapM = gapsM[m];
+    const wide = hasOptimum && gapM > band.highM;
+    const from = feed.stops[feedStopsByModelPos[m]];
+    const to = feed.stops[feedStopsByModelPos[m + 1]];
+    let add: ChangeEffect | null = null;
+    let lat: number | null = null;
+    let lon: number | null = null;
+    if (wide) {
+      wideGaps++;
+      add = additionEffect(prep, m, (posM[m] + posM[m + 1]) / 2, settings);
+      lat = from && to ? (from.lat + to.lat) / 2 : null;
+      lon = from && to ? (from.lon + to.lon) / 2 : null;
+      additions.push({ ...add, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
+    }
+    gaps.push({
+      patternId: pattern.id,
+      fromStopIndex: modelStops[m],
+      fromStopId: from?.id ?? '',
+      toStopId: to?.id ?? '',
+      gapM,
+      wide,
+      overMaxGap: gapM > params.max_gap_m,
+      addNetPaxMinPerDay: add ? add.netPaxMinPerDay : null,
+      addMidLat: lat,
+      addMidLon: lon,
+    });
+  }
+
+  const result: PatternResult = {
+    patternId: pattern.id,
+    routeId: pattern.routeId,
+    routeShortName: prep.routeShortName,
+    routeType: prep.routeType,
+    directionId: pattern.directionId,
+    headsign: pattern.headsign,
+    shapeId: pattern.shapeId,
+    distanceSource: pattern.distanceSource,
+    stopCount: pattern.stopIdx.length,
+    lengthM: pattern.lengthM,
+    tripsPerDay: pattern.tripsPerDay,
+    medianGapM: median(gapsM),
+    meanGapM,
+    optimalSpacingM: hasOptimum ? opt.spacingM : 0,
+    bandLowM: hasOptimum ? band.lowM : 0,
+    bandHighM: hasOptimum ? band.highM : 0,
+    closeStops,
+    wideGaps,
+    optimalStopCount: best.optimalStopCount + (pattern.stopIdx.length - n),
+    paxMinLostPerDay,
+    demandSource: demand.demandSource,
+    lostTimeSource: prep.lostTimeSource,
+    lostTimePerStopS: prep.lostTimePerStopS,
+    cruiseSpeedMps: prep.cruiseSpeedMps,
+    cruiseSpeedSource: prep.cruiseSpeedSource,
+    meanTripLengthM: prep.meanTripLengthM,
+    ridersPerDay: demand.ridersPerDay,
+    runTimeS: pattern.runTimeS,
+    costCurve,
+    currentCostPerRiderS: hasOptimum && meanGapM > 0 ? costPerRiderS(meanGapM, lawInput) : 0,
+    optimalCostPerRiderS: hasOptimum ? costPerRiderS(opt.spacingM, lawInput) : 0,
+    path: pattern.path,
+  };
+  return { result, stops, gaps, removals, additions, fixedStopIdx, feedStopsByModelPos, modelPosM: posM };
+}
