@@ -268,7 +268,7 @@ function checkSpeeds(feed: Feed, patterns: PatternSet, t: CheckThresholds, add: 
       if (!timed) continue;
       if (from >= 0 && spanS > 0 && spanM > 0) {
         const kmh = (spanM / spanS) * 3.6;
-        if (kmh > maxKmh || kmh < minKmh) {
+        if (kmh > maxKmh || (kmh < minKmh && spanM >= t.slowMinSpanM)) {
           const a = feed.stops[p.stopIdx[from]];
           const b = feed.stops[p.stopIdx[i]];
           add('implausible-speed', {

@@ -97,6 +97,8 @@ export interface CheckThresholds {
   /** A stop is an outlier when farther from the median stop position than max(outlierMinKm, outlierFactor x the median such distance). */
   outlierMinKm: number;
   outlierFactor: number;
+  /** Too slow is judged only over spans of at least this length, so a short hop with a long dwell is not flagged. Default 200 m. */
+  slowMinSpanM: number;
   /** service-ending-soon when the last day of service is fewer than this many days after the run date. Default 7. */
   serviceMinDays: number;
 }
@@ -118,6 +120,7 @@ export const DEFAULT_THRESHOLDS: CheckThresholds = {
   },
   outlierMinKm: 100,
   outlierFactor: 10,
+  slowMinSpanM: 200,
   serviceMinDays: 7,
 };
 
@@ -158,6 +161,7 @@ export interface ThresholdOptions {
   speedKmh?: Partial<Record<SpeedFamily, Partial<SpeedLimitKmh>>>;
   outlierMinKm?: number;
   outlierFactor?: number;
+  slowMinSpanM?: number;
   serviceMinDays?: number;
 }
 
@@ -180,6 +184,7 @@ export function normaliseThresholds(options: ThresholdOptions = {}): CheckThresh
   out.offPathM = num('offPathM', options.offPathM, 0) ?? out.offPathM;
   out.outlierMinKm = num('outlierMinKm', options.outlierMinKm, 0) ?? out.outlierMinKm;
   out.outlierFactor = num('outlierFactor', options.outlierFactor, 1) ?? out.outlierFactor;
+  out.slowMinSpanM = num('slowMinSpanM', options.slowMinSpanM, 0) ?? out.slowMinSpanM;
   out.serviceMinDays = num('serviceMinDays', options.serviceMinDays, 0) ?? out.serviceMinDays;
   for (const [fam, lim] of Object.entries(options.speedKmh ?? {})) {
     if (!(fam in out.speedKmh)) {

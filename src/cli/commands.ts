@@ -1,7 +1,14 @@
 // The list of commands, each a module under src/cli that exports a register(program) function.
 
 import type { Command } from 'commander';
+import { registerCheck } from './check.js';
+import { registerCompare } from './compare.js';
+import { registerHistory } from './history.js';
 
 export type RegisterCommand = (program: Command) => void;
 
-export const commands: RegisterCommand[] = [];
+export const commands: RegisterCommand[] = [
+  registerCheck,
+  registerCompare,
+  registerHistory,
+];

@@ -1,0 +1,108 @@
+// `stopspan check FEED`: feed-quality findings for nightly jobs, as text or JSON, with an exit code
+// chosen by --fail-on, and optionally one row in a history database.
+
+import type { Command } from 'commander';
+import { checkFeed, type CheckReport } from '../audit/check.js';
+import { checkText } from '../audit/checkText.js';
+import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
+import { StopspanError } from '../common/errors.js';
+import { checkRunRow, openHistory, recordRun } from '../history/index.js';
+import { version } from '../version.js';
+import { EXIT, listOption, makeProgress, runAction } from './shared.js';
+import { loadFeed, numberOption } from './feedInput.js';
+
+export type FailOn = Severity | 'never';
+const FAIL_ON: FailOn[] = ['error', 'warning', 'info', 'never'];
+
+/** The exit code of a check: 1 when a finding at or above failOn exists, else 0. */
+export function checkExitCode(report: Pick<CheckReport, 'findings'>, failOn: FailOn): number {
+  if (failOn === 'never') return EXIT.clean;
+  return report.findings.some((f) => f.count > 0 && SEVERITY_RANK[f.severity] >= SEVERITY_RANK[failOn]) ? EXIT.found : EXIT.clean;
+}
+
+interface CheckCliOptions {
+  json?: boolean;
+  failOn: string;
+  date?: string;
+  today?: string;
+  history?: string;
+  maxExamples: string;
+  twinStopM?: string;
+  offPathM?: string;
+  outlierKm?: string;
+  serviceMinDays?: string;
+  speed: string[];
+  quiet?: boolean;
+  verbose?: boolean;
+}
+
+/** Turns the command-line threshold flags into threshold options (validated again by the library). */
+export function thresholdsFromCli(o: Pick<CheckCliOptions, 'twinStopM' | 'offPathM' | 'outlierKm' | 'serviceMinDays' | 'speed'>): ThresholdOptions {
+  const t: ThresholdOptions = {
+    twinStopM: numberOption('--twin-stop-m', o.twinStopM),
+    offPathM: numberOption('--off-path-m', o.offPathM),
+    outlierMinKm: numberOption('--outlier-km', o.outlierKm),
+    serviceMinDays: numberOption('--service-min-days', o.serviceMinDays),
+  };
+  for (const spec of o.speed ?? []) {
+    const m = /^([a-z]+)=(\d+(?:\.\d+)?):(\d+(?:\.\d+)?)$/.exec(spec);
+    if (!m) throw new StopspanError('bad-option', `invalid option --speed: expected FAMILY=MIN:MAX in km/h (e.g. bus=3:100), got ${spec}`, { value: spec });
+    t.speedKmh = { ...t.speedKmh, [m[1] as SpeedFamily]: { minKmh: Number(m[2]), maxKmh: Number(m[3]) } };
+  }
+  for (const k of Object.keys(t) as (keyof ThresholdOptions)[]) if (t[k] === undefined) delete t[k];
+  return t;
+}
+
+export function registerCheck(program: Command): void {
+  const codes = FINDING_CODES.map((c) => `  ${c.padEnd(20)} ${FINDINGS[c].severity.padEnd(8)} ${FINDINGS[c].explanation}`).join('\n');
+  program
+    .command('check')
+    .description('Feed-quality findings for nightly jobs; exit 1 when a finding at or above --fail-on exists.')
+    .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
+    .option('--json', 'print the report as JSON on stdout')
+    .option('--fail-on <severity>', 'exit 1 when a finding at or above this severity exists: error, warning, info or never', 'error')
+    .option('--date <YYYY-MM-DD>', 'analysis date for the pattern checks (default: the busiest weekday)')
+    .option('--today <YYYY-MM-DD>', 'the run date that service-ending-soon counts from (default: today, UTC)')
+    .option('--history <file.sqlite>', 'record this run in a history database (created on first use)')
+    .option('--max-examples <n>', 'examples kept per finding', '5')
+    .option('--twin-stop-m <m>', 'consecutive stops closer than this are twins (default 5)')
+    .option('--off-path-m <m>', 'a stop farther than this from its shape is off the path (default 100)')
+    .option('--outlier-km <km>', 'stops farther than this (at least) from the median stop are outliers (default 100)')
+    .option('--service-min-days <days>', 'service must run at least this many days after --today (default 7)')
+    .option('--speed <family=min:max>', 'scheduled speed bounds in km/h per family (bus, tram, metro, rail, ferry, cable, other); repeatable', listOption, [])
+    .option('-q, --quiet', 'no progress on stderr')
+    .option('--verbose', 'stack traces for internal errors')
+    .addHelpText('after', `\nFindings (code, default severity, meaning):\n${codes}\n\nExit codes: 0 clean, 1 a finding at or above --fail-on, 2 unreadable input or bad usage, 3 internal error.`)
+    .action((source: string, o: CheckCliOptions) =>
+      runAction(o.verbose === true, async () => {
+        if (!FAIL_ON.includes(o.failOn as FailOn)) {
+          throw new StopspanError('bad-option', `invalid option --fail-on: expected one of ${FAIL_ON.join(', ')}, got ${o.failOn}`, { value: o.failOn });
+        }
+        const maxExamples = numberOption('--max-examples', o.maxExamples, 0)!;
+        const thresholds = thresholdsFromCli(o);
+        const progress = makeProgress(o.quiet === true || o.json === true);
+        let loaded;
+        try {
+          loaded = await loadFeed(source, { date: o.date, onProgress: progress.onProgress });
+        } finally {
+          progress.done();
+        }
+        const report = checkFeed(loaded.feed, loaded.patterns, { today: o.today, thresholds, maxExamples: Math.floor(maxExamples) });
+        if (o.history) {
+          const db = openHistory(o.history);
+          try {
+            recordRun(db, checkRunRow(report));
+          } finally {
+            db.close();
+          }
+        }
+        const code = checkExitCode(report, o.failOn as FailOn);
+        if (o.json) {
+          process.stdout.write(JSON.stringify({ tool: { name: 'stopspan', version }, analysisDate: loaded.date, ...report, failOn: o.failOn, exitCode: code }, null, 2) + '\n');
+        } else {
+          process.stdout.write(checkText(report));
+        }
+        return code;
+      }),
+    );
+}

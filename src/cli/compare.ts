@@ -1,0 +1,53 @@
+// `stopspan compare OLD NEW`: what changed between two versions of a feed, as a terminal summary, JSON,
+// or an HTML page in --out.
+
+import type { Command } from 'commander';
+import { compareFeeds } from '../audit/compare.js';
+import { comparisonHtml, comparisonText } from '../audit/compareRender.js';
+import { version } from '../version.js';
+import { EXIT, makeProgress, runAction } from './shared.js';
+import { loadFeed, numberOption, writeFiles } from './feedInput.js';
+
+interface CompareCliOptions {
+  json?: boolean;
+  out?: string;
+  moveThreshold?: string;
+  date?: string;
+  quiet?: boolean;
+  verbose?: boolean;
+}
+
+export function registerCompare(program: Command): void {
+  program
+    .command('compare')
+    .description('What changed between two versions of a feed: stops, patterns and spacing before and after.')
+    .argument('<old>', 'the older feed: zip, folder or http(s) URL')
+    .argument('<new>', 'the newer feed')
+    .option('--json', 'print the comparison as JSON on stdout')
+    .option('--out <dir>', 'also write compare.html and compare.json into this folder')
+    .option('--move-threshold <m>', 'a stop that moved more than this many metres counts as moved', '10')
+    .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
+    .option('-q, --quiet', 'no progress on stderr')
+    .option('--verbose', 'stack traces for internal errors')
+    .action((oldSource: string, newSource: string, o: CompareCliOptions) =>
+      runAction(o.verbose === true, async () => {
+        const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
+        const progress = makeProgress(o.quiet === true || o.json === true);
+        let a, b;
+        try {
+          a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
+          b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
+        } finally {
+          progress.done();
+        }
+        const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM });
+        const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };
+        if (o.out) {
+          const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n' });
+          if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
+        }
+        process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));
+        return EXIT.clean;
+      }),
+    );
+}

@@ -1,0 +1,42 @@
+// checkFeed on the fixture feeds in fixtures/check/: each folder is the clean Vellmoor feed with one fault,
+// read by the real reader and pattern builder. The clean folder triggers nothing; each other folder
+// triggers its own finding.
+import { describe, expect, it } from 'vitest';
+import { readdirSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { buildPatterns } from '../../src/network/index.js';
+import * as gtfs from '../../src/gtfs/index.js';
+import { checkFeed } from '../../src/audit/check.js';
+import { FINDING_CODES, type FindingCode } from '../../src/audit/findings.js';
+import type { Feed } from '../../src/gtfs/types.js';
+
+const FIX = resolve(__dirname, '../../fixtures/check');
+const readFeed = (gtfs as Record<string, unknown>).readFeed as ((s: string, o: { date: string }) => Promise<Feed>) | undefined;
+const TODAY = '2026-10-14'; // a Wednesday
+
+async function check(name: string) {
+  const feed = await readFeed!(join(FIX, name), { date: 'all' });
+  const patterns = buildPatterns(feed, { date: TODAY });
+  return checkFeed(feed, patterns, { today: TODAY });
+}
+
+describe.skipIf(!readFeed)('fixture feeds', () => {
+  it('has one folder per finding code, plus clean', () => {
+    expect(readdirSync(FIX).sort()).toEqual(['clean', ...FINDING_CODES].sort());
+  });
+
+  it('clean triggers nothing', async () => {
+    const r = await check('clean');
+    expect(r.findings).toEqual([]);
+  });
+
+  for (const code of FINDING_CODES) {
+    it(`${code} triggers ${code}`, async () => {
+      const r = await check(code);
+      expect(r.counts[code as FindingCode]).toBeGreaterThan(0);
+      // and only what it was built for, apart from what a fault implies by its nature
+      const also = r.findings.map((f) => f.code).filter((c) => c !== code);
+      expect(also).toEqual([]);
+    });
+  }
+});
