@@ -11,7 +11,7 @@ import type { Pattern, PatternSet } from '../network/types.js';
 import { longToNumber, readArchive, type ArchiveStats } from './archive.js';
 import { RunTimeFit } from './fitRunTimes.js';
 import { gapRunTime, observeTripUpdate, observeVehiclePosition, stopVerdict, TripInstanceState } from './observe.js';
-import { resolveStopTimeUpdates, type TripSchedule } from './resolveStopTimeUpdates.js';
+import { hasField, resolveStopTimeUpdates, type TripSchedule } from './resolveStopTimeUpdates.js';
 import { addDays, localDate, parseGtfsTime, serviceDayOriginS, serviceRunsOn } from './serviceDay.js';
 import type { ObservedData, ObservedPattern } from './types.js';
 
@@ -29,6 +29,8 @@ export interface ObserveArchiveOptions {
   passMaxGapS?: number;
   /** Quantile of observed dwells taken as the fixed (door) part of dwell in the lost time per stop. */
   dwellFixedQuantile?: number;
+  /** Use TripUpdate times only once they were in the past when reported (default true); false also accepts the last prediction. */
+  measuredOnly?: boolean;
   /** Largest plausible speed over a gap, m/s; faster run times are counted and dropped. */
   maxGapSpeedMps?: number;
 }
@@ -100,6 +102,7 @@ export async function observeArchive(
     passMaxGapS = 10,
     dwellFixedQuantile = 0.1,
     maxGapSpeedMps = 40,
+    measuredOnly = true,
   } = options;
   if (!(Number.isInteger(minTrips) && minTrips >= 1)) {
     throw new StopspanError('bad-option', 'invalid option minTrips: expected an integer of at least 1', { value: String(minTrips) });
@@ -286,7 +289,7 @@ export async function observeArchive(
         if (atS === inst.state.lastVehicleS) continue;
         let pos = -1;
         const n = inst.sched.seq.length;
-        if (vp.currentStopSequence !== null && vp.currentStopSequence !== undefined) {
+        if (hasField(vp, 'currentStopSequence')) {
           for (let i = 0; i < n; i++) if (inst.sched.seq[i] === vp.currentStopSequence) pos = i;
         } else if (vp.stopId) {
           for (let i = Math.max(inst.state.prevPos, 0); i < n && pos < 0; i++) if (inst.sched.stopIds[i] === vp.stopId) pos = i;
@@ -314,7 +317,7 @@ export async function observeArchive(
     fit: RunTimeFit;
   }
   const aggs = new Map<string, Agg>();
-  const vopts = { minDwellS, passMaxGapS };
+  const vopts = { minDwellS, passMaxGapS, measuredOnly };
   let implausible = 0;
   for (const inst of instances.values()) {
     const p = inst.info.pattern;
@@ -344,7 +347,7 @@ export async function observeArchive(
       if (!terminal && v.stopped && v.dwellS !== null && v.dwellS >= 0) agg.dwells[i].push(v.dwellS);
     }
     for (let g = 0; g < n - 1; g++) {
-      const t = gapRunTime(inst.state, g);
+      const t = gapRunTime(inst.state, g, measuredOnly);
       if (t === null) continue;
       const gapM = p.distAlongM[g + 1] - p.distAlongM[g];
       if (!(t > 0) || gapM / t > maxGapSpeedMps) {

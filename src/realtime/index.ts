@@ -3,6 +3,7 @@ export * from './types.js';
 export { readArchive, scanHeader, maybeGunzip, type Snapshot, type ArchiveStats, type ReadArchiveOptions } from './archive.js';
 export {
   resolveStopTimeUpdates,
+  hasField,
   EVENT_UNKNOWN,
   EVENT_EXPLICIT,
   EVENT_PROPAGATED,

@@ -109,6 +109,16 @@ export interface VerdictOptions {
   minDwellS: number;
   /** A VehiclePosition pass counts as "did not stop" only when the observations around it are at most this far apart. */
   passMaxGapS: number;
+  /** Use TripUpdate times only when they were already past when reported (measured, not predicted). */
+  measuredOnly: boolean;
+}
+
+function tuArr(state: TripInstanceState, i: number, measuredOnly: boolean): number {
+  return measuredOnly && !state.arrMeasured[i] ? NaN : state.arrS[i];
+}
+
+function tuDep(state: TripInstanceState, i: number, measuredOnly: boolean): number {
+  return measuredOnly && !state.depMeasured[i] ? NaN : state.depS[i];
 }
 
 /**
@@ -118,8 +128,8 @@ export interface VerdictOptions {
  * polling interval T and k observations is [(k-1)T, (k+1)T], midpoint kT.
  */
 export function stopVerdict(state: TripInstanceState, i: number, opts: VerdictOptions): StopVerdict {
-  const a = state.arrS[i];
-  const d = state.depS[i];
+  const a = tuArr(state, i, opts.measuredOnly);
+  const d = tuDep(state, i, opts.measuredOnly);
   const tuDwell = Number.isFinite(a) && Number.isFinite(d) ? d - a : NaN;
   if (tuDwell >= opts.minDwellS) return { stopped: true, dwellS: tuDwell, dwellFrom: 'trip-update' };
   const first = state.stoppedFirstS[i];
@@ -143,9 +153,9 @@ export function stopVerdict(state: TripInstanceState, i: number, opts: VerdictOp
  * from VehiclePositions when the vehicle was seen stopped at both ends (midpoints of the leaving and
  * arriving brackets); null when neither is known.
  */
-export function gapRunTime(state: TripInstanceState, i: number): number | null {
-  const d = state.depS[i];
-  const a = state.arrS[i + 1];
+export function gapRunTime(state: TripInstanceState, i: number, measuredOnly = true): number | null {
+  const d = tuDep(state, i, measuredOnly);
+  const a = tuArr(state, i + 1, measuredOnly);
   if (Number.isFinite(d) && Number.isFinite(a)) return a - d;
   const leftLast = state.stoppedLastS[i];
   const leftAfter = state.afterS[i];

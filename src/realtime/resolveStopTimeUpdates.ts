@@ -30,11 +30,18 @@ export interface StopEvents {
   unplaced: number; // StopTimeUpdates that matched no stop of the trip
 }
 
+/** True when a decoded protobuf message carries the field itself (decoded messages show defaults through the prototype). */
+export function hasField(msg: object | null | undefined, field: string): boolean {
+  if (!msg) return false;
+  const v = (msg as Record<string, unknown>)[field];
+  return Object.prototype.hasOwnProperty.call(msg, field) && v !== null && v !== undefined;
+}
+
 function eventTime(ev: IStopTimeEvent | null | undefined, schedS: number, originS: number): { t: number; delay: number } | null {
   if (!ev) return null;
   const time = longToNumber(ev.time as never);
-  const hasTime = ev.time !== null && ev.time !== undefined && time !== 0;
-  const hasDelay = ev.delay !== null && ev.delay !== undefined;
+  const hasTime = hasField(ev, 'time') && time !== 0;
+  const hasDelay = hasField(ev, 'delay');
   if (hasTime) return { t: time, delay: schedS >= 0 ? time - (originS + schedS) : NaN };
   if (hasDelay && schedS >= 0) return { t: originS + schedS + (ev.delay as number), delay: ev.delay as number };
   if (hasDelay) return { t: NaN, delay: ev.delay as number };
@@ -63,7 +70,7 @@ export function resolveStopTimeUpdates(updates: IStopTimeUpdate[], sched: TripSc
   let cursor = 0;
   for (const u of updates) {
     let pos = -1;
-    if (u.stopSequence !== null && u.stopSequence !== undefined) {
+    if (hasField(u, 'stopSequence')) {
       for (let i = 0; i < n; i++) {
         if (sched.seq[i] === u.stopSequence) {
           pos = i;
