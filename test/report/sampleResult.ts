@@ -52,7 +52,7 @@ interface PatternSpec {
 
 const V = 1.3; // walk speed, m/s (common practice)
 const W = 2; // walk weight (common practice)
-const P = 22; // lost time per stop, s
+const P = 30; // lost time per stop, s
 
 function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; stops: StopResult[]; gaps: GapResult[] } {
   const patternId = `${spec.routeId}:${spec.directionId}:${n}`;
@@ -97,14 +97,14 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     } else if (before !== null && after !== null && (before + after) / 2 < bandLowM) verdict = 'close';
     else if ((before ?? 0) > bandHighM || (after ?? 0) > bandHighM) verdict = 'wide';
     if (verdict === 'close') closeStops++;
-    const boardings = Math.round(spec.tripsPerDay * (1.5 + ((i * 37) % 11) / 4));
-    const alightings = Math.round(spec.tripsPerDay * (1.2 + ((i * 53) % 13) / 5));
+    const boardings = Math.round(spec.tripsPerDay * (0.3 + ((i * 37) % 11) / 12));
+    const alightings = Math.round(spec.tripsPerDay * (0.3 + ((i * 53) % 13) / 14));
     ridersPerDay += boardings;
     const [lon, lat] = at(dist[i]);
     const removal =
       verdict === 'fixed' || before === null || after === null
         ? null
-        : Math.round(((W / V) * ((boardings + alightings) * ((before * after) / (before + after))) / 60 - spec.tripsPerDay * 12 * (P / 60)) * 10) / 10;
+        : Math.round(((W / V) * ((boardings + alightings) * ((before * after) / (before + after))) / 60 - spec.tripsPerDay * 8 * (P / 60)) * 10) / 10;
     stops.push({
       patternId,
       routeId: spec.routeId,
@@ -143,7 +143,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
         toStopId: '',
         gapM: after,
         wide,
-        overMaxGap: after > 800,
+        overMaxGap: after > 700,
         addNetPaxMinPerDay: wide ? -Math.round(after / 9) : null,
         addMidLat: wide ? lat2 : null,
         addMidLon: wide ? lon2 : null,
@@ -182,7 +182,10 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     closeStops,
     wideGaps,
     optimalStopCount: Math.max(2, Math.round(lengthM / optimal) + 1),
-    paxMinLostPerDay: Math.max(0, ((currentCost - optimalCost) * ridersPerDay) / 60),
+    // what the optimiser would win: the savings of removing close stops and filling wide gaps
+    paxMinLostPerDay:
+      stops.reduce((a, s) => a + (s.verdict === 'close' && s.removalNetPaxMinPerDay !== null ? Math.max(0, -s.removalNetPaxMinPerDay) : 0), 0) +
+      gaps.reduce((a, g) => a + (g.addNetPaxMinPerDay !== null ? -g.addNetPaxMinPerDay : 0), 0),
     demandSource: 'assumed',
     lostTimeSource: 'default',
     lostTimePerStopS: P,
@@ -200,11 +203,11 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
 }
 
 function gapsFor(k: number, count: number): number[] {
-  // close clusters (120-180 m), ordinary gaps (300-450 m) and a few wide ones (900+ m)
+  // close clusters (90-150 m), ordinary gaps (200-310 m) and a few wide ones (640+ m)
   const out: number[] = [];
   for (let i = 0; i < count; i++) {
     const r = (i * 7 + k * 13) % 10;
-    out.push(r < 4 ? 120 + ((i * 17 + k) % 60) : r < 9 ? 300 + ((i * 29 + k * 3) % 150) : 920 + ((i * 11 + k) % 200));
+    out.push(r < 5 ? 90 + ((i * 17 + k) % 60) : r < 9 ? 200 + ((i * 29 + k * 3) % 110) : 640 + ((i * 11 + k) % 180));
   }
   return out;
 }
@@ -220,7 +223,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
   const specs: PatternSpec[] = [
     {
       routeId: 'R1', routeShortName: '1', directionId: 0, headsign: 'Harbour Gate', gapsM: gapsFor(0, stopsPerPattern - 1),
-      tripsPerDay: 96, originLon: 11.2, originLat: 48.5, bearingRad: 0.3, names: [...PLAIN_NAMES.slice(0, 4), ...hostile, ...PLAIN_NAMES.slice(4)],
+      tripsPerDay: 96, originLon: 11.2, originLat: 48.5, bearingRad: 0.3, names: [PLAIN_NAMES[0], HOSTILE_NAMES.img, ...PLAIN_NAMES.slice(1, 4), ...hostile.filter((n) => n !== HOSTILE_NAMES.img), ...PLAIN_NAMES.slice(4)],
     },
     {
       routeId: 'R1', routeShortName: '1', directionId: 1, headsign: 'Vellmoor Central', gapsM: gapsFor(1, stopsPerPattern - 2),
@@ -248,6 +251,12 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       for (const g of b.gaps) g.patternId = id;
     }
   });
+  // give the markup-laden name to route 1's best removal, so it reaches the headline's top candidates
+  const best = built[0].stops
+    .filter((s) => s.verdict === 'close' && (s.removalNetPaxMinPerDay ?? 0) < 0)
+    .sort((a, b) => (a.removalNetPaxMinPerDay as number) - (b.removalNetPaxMinPerDay as number))[0];
+  const holder = built[0].stops.find((s) => s.stopName === HOSTILE_NAMES.img);
+  if (best && holder) [best.stopName, holder.stopName] = [holder.stopName, best.stopName];
   const patterns = built.map((b) => b.pattern);
   const stops = built.flatMap((b) => b.stops);
   const gaps = built.flatMap((b) => b.gaps);

@@ -110,7 +110,7 @@ export const PAGE_SCRIPT = String.raw`
       var cx = x(st[5]);
       if (st[8]) {
         s.appendChild(sv('line', { 'class': 'mk-tp', x1: cx, x2: cx, y1: y + 10, y2: y + 20 }));
-        s.appendChild(sv('text', { x: cx, y: y + 31, 'text-anchor': 'middle', 'class': 'tick' }, st[7] === 'terminal' ? 'end' : 'T'));
+        s.appendChild(sv('text', { x: cx, y: y + 31, 'text-anchor': 'middle', 'class': 'tick' }, st[7] === 'terminal' ? 'terminal' : 'T'));
       }
       if (st[6] === 'C') s.appendChild(sv('text', { x: cx, y: y - 12, 'text-anchor': 'middle', 'class': 'marker-label' }, 'C'));
       s.appendChild(stopGroup(p, st, marker(st[6], cx, y, st[6] === 'F' && st[7] === 'terminal' ? 7.5 : 6), info));
@@ -146,7 +146,8 @@ export const PAGE_SCRIPT = String.raw`
       s.appendChild(stopGroup(p, st, marker(st[6], c[0], c[1], 4.5), info));
     });
     var first = px([p.stops[0][4], p.stops[0][3]]);
-    s.appendChild(sv('text', { x: first[0] + 8, y: first[1] - 6, 'class': 'marker-label' }, 'start'));
+    var rightSide = first[0] > W * 0.7;
+    s.appendChild(sv('text', { x: rightSide ? first[0] - 8 : first[0] + 8, y: first[1] - 8, 'text-anchor': rightSide ? 'end' : 'start', 'class': 'marker-label' }, 'first stop'));
     // scale bar: a round length near a quarter of the width
     var mPerPx = 111320 / sc;
     var want = mPerPx * W / 4, unitM = IMP ? 0.3048 : 1, nice = [100, 200, 250, 500, 1000, 2000, 2500, 5000, 10000, 20000, 50000];
@@ -207,7 +208,10 @@ export const PAGE_SCRIPT = String.raw`
     var host = document.getElementById('curve-host');
     host.textContent = '';
     var W = 760, H = 290, L = 58, R = 18, T = 22, B = 46;
-    var pts = p.curve;
+    // show the curve up to a little beyond the optimum, today's spacing and the band, so the flat bottom is not squeezed
+    var reach = Math.max(p.opt * 3, p.mean * 1.6, p.hi * 1.8);
+    var pts = p.curve.filter(function (q) { return q[0] <= reach; });
+    if (pts.length < 2) pts = p.curve;
     if (!pts.length) { host.appendChild(el('p', { 'class': 'note' }, 'No cost curve for this pattern.')); return; }
     var xs = pts.map(function (q) { return q[0]; }), ys = pts.map(function (q) { return q[1] / 60; });
     var x0 = Math.min.apply(null, xs), x1 = Math.max.apply(null, xs);

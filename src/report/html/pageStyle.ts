@@ -8,6 +8,7 @@ body { margin:0; background:var(--paper); color:var(--ink); font:15px/1.5 system
 header.top { background:#24343c; color:#f4f1ea; padding:18px 28px 14px; }
 header.top h1 { margin:0; font-size:22px; font-weight:600; letter-spacing:.01em; }
 header.top p { margin:4px 0 0; color:#cfd6d3; font-size:14px; }
+header.top code { background:rgba(255,255,255,.12); color:#f4f1ea; }
 main { max-width:1180px; margin:0 auto; padding:18px 24px 60px; }
 section { margin:26px 0; }
 h2 { font-size:18px; margin:0 0 8px; padding-bottom:4px; border-bottom:1px solid var(--rule); }
