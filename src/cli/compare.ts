@@ -3,6 +3,8 @@
 
 import type { Command } from 'commander';
 import { compareFeeds } from '../audit/compare.js';
+import { runAudit } from '../audit/runAudit.js';
+import type { AuditResult } from '../audit/types.js';
 import { comparisonHtml, comparisonText } from '../audit/compareRender.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
@@ -13,6 +15,7 @@ interface CompareCliOptions {
   out?: string;
   moveThreshold?: string;
   date?: string;
+  audit: boolean;
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -27,6 +30,7 @@ export function registerCompare(program: Command): void {
     .option('--out <dir>', 'also write compare.html and compare.json into this folder')
     .option('--move-threshold <m>', 'a stop that moved more than this many metres counts as moved', '10')
     .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
+    .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
     .action((oldSource: string, newSource: string, o: CompareCliOptions) =>
@@ -40,7 +44,12 @@ export function registerCompare(program: Command): void {
         } finally {
           progress.done();
         }
-        const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM });
+        let audits: { old: AuditResult; new: AuditResult } | undefined;
+        if (o.audit && a.patterns.patterns.length > 0 && b.patterns.patterns.length > 0) {
+          // assumed demand and default parameters on both sides, so the figures differ only by the feeds
+          audits = { old: runAudit(a.feed, a.patterns), new: runAudit(b.feed, b.patterns) };
+        }
+        const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };
         if (o.out) {
           const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n' });
