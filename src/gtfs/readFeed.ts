@@ -1,0 +1,507 @@
+// Reads a GTFS Schedule feed into the compact Feed of types.ts. The small tables come first so the
+// analysis date (and with it the trips to keep) is known before the big ones stream: stop_times.txt is
+// collected into growable typed columns for the kept trips only, then grouped per trip and sorted by
+// stop_sequence; shapes.txt keeps only the shapes those trips use. Bad input throws StopspanError with
+// file, line, column and value; recoverable oddities are counted in the WarningSink and Feed.warnings.
+
+import { StopspanError } from '../common/errors.js';
+import type { OnProgress } from '../common/progress.js';
+import { WarningSink } from '../common/warnings.js';
+import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
+import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
+import { readCsv, type CsvRow } from './csv.js';
+import type { DownloadLimits } from './download.js';
+import { tripRunsPerDay } from './frequencies.js';
+import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
+import { BLANK, checkDate, fieldNumber, fieldTimeS, fieldUint, MALFORMED } from './values.js';
+
+export interface ReadFeedOptions {
+  /** 'auto' (default): the Monday-Friday date with the most trips; 'YYYY-MM-DD'; 'all': every trip. */
+  date?: string;
+  /** Keep only these routes (route_id or route_short_name). */
+  routes?: string[];
+  onProgress?: OnProgress;
+  limits?: ArchiveLimits & { maxRecordChars?: number };
+  download?: DownloadLimits;
+  /** Where warnings are counted (a fresh sink by default); Feed.warnings lists them either way. */
+  warnings?: WarningSink;
+}
+
+const REQUIRED_TABLES = ['agency.txt', 'routes.txt', 'trips.txt', 'stop_times.txt', 'stops.txt'];
+
+/** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
+export async function readFeed(source: string, { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {}): Promise<Feed> {
+  if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
+    throw new StopspanError('bad-option', `invalid option date: expected 'auto', 'all' or YYYY-MM-DD, got ${String(date)}`, { value: String(date) });
+  }
+  if (date !== 'auto' && date !== 'all') isoToGtfsDate(date);
+  if (routes !== undefined && (!Array.isArray(routes) || routes.some((r) => typeof r !== 'string'))) {
+    throw new StopspanError('bad-option', 'invalid option routes: expected a list of route ids', { value: String(routes) });
+  }
+  const { maxRecordChars, ...archiveLimits } = limits;
+  const archive = await openFeed(source, { limits: archiveLimits, download, warnings, onProgress });
+  try {
+    return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings });
+  } finally {
+    await archive.close();
+  }
+}
+
+interface Ctx {
+  archive: FeedArchive;
+  warnings: WarningSink;
+  onProgress?: OnProgress;
+  maxRecordChars?: number;
+  rowCounts: Record<string, number>;
+}
+
+type Columns<R extends string, O extends string> = Record<R, number> & Record<O, number>;
+
+/** Streams one table, mapping column names to indices once; -1 for an absent optional column. */
+async function table<R extends string, O extends string>(
+  ctx: Ctx,
+  file: string,
+  required: readonly R[],
+  optional: readonly O[],
+  onRow: (row: CsvRow, col: Columns<R, O>) => void,
+): Promise<void> {
+  let col = {} as Columns<R, O>;
+  const total = ctx.archive.size(file);
+  const stage = `read ${file}`;
+  ctx.onProgress?.({ stage, done: 0, total, unit: 'bytes' });
+  const stream = await ctx.archive.open(file);
+  const stats = await readCsv(stream, {
+    file,
+    warnings: ctx.warnings,
+    maxRecordChars: ctx.maxRecordChars,
+    onBytes: (done) => ctx.onProgress?.({ stage, done, total, unit: 'bytes' }),
+    onHeader(header) {
+      const at = new Map(header.map((h, i) => [h, i]));
+      const c: Record<string, number> = {};
+      for (const r of required) {
+        const i = at.get(r);
+        if (i === undefined) throw new StopspanError('missing-column', `required column ${r} is missing`, { file, line: 1, column: r });
+        c[r] = i;
+      }
+      for (const o of optional) c[o] = at.get(o) ?? -1;
+      col = c as Columns<R, O>;
+    },
+    onRow: (row) => onRow(row, col),
+  });
+  ctx.rowCounts[file] = stats.records;
+}
+
+function bad(file: string, row: CsvRow, i: number, column: string, what: string): never {
+  throw new StopspanError('bad-value', `${column} is not ${what}`, { file, line: row.line, column, value: row.get(i) });
+}
+
+function need(file: string, row: CsvRow, i: number, column: string): string {
+  const v = row.get(i);
+  if (v === '') throw new StopspanError('bad-value', `${column} is required but blank`, { file, line: row.line, column, value: '' });
+  return v;
+}
+
+function intIn(file: string, row: CsvRow, i: number, column: string, lo: number, hi: number, blank: number): number {
+  if (i < 0) return blank;
+  const v = fieldUint(row, i);
+  if (v === BLANK) return blank;
+  if (v === MALFORMED || v < lo || v > hi) bad(file, row, i, column, `an integer from ${lo} to ${hi}`);
+  return v;
+}
+
+function coord(file: string, row: CsvRow, i: number, column: string, limit: number): number {
+  const v = fieldNumber(row, i);
+  if (v === null || Math.abs(v) > limit) bad(file, row, i, column, `a coordinate within ±${limit}`);
+  return v;
+}
+
+/** Growable typed column. */
+class IntColumn {
+  data: Int32Array;
+  length = 0;
+  constructor(capacity = 1024) {
+    this.data = new Int32Array(capacity);
+  }
+  push(v: number): void {
+    if (this.length === this.data.length) {
+      const next = new Int32Array(this.data.length * 2);
+      next.set(this.data);
+      this.data = next;
+    }
+    this.data[this.length++] = v;
+  }
+}
+
+class FloatColumn {
+  data: Float64Array;
+  length = 0;
+  constructor(capacity = 1024) {
+    this.data = new Float64Array(capacity);
+  }
+  push(v: number): void {
+    if (this.length === this.data.length) {
+      const next = new Float64Array(this.data.length * 2);
+      next.set(this.data);
+      this.data = next;
+    }
+    this.data[this.length++] = v;
+  }
+}
+
+/**
+ * Row indices grouped by owner (0..owners-1) and sorted within each group by seq, stably; returns the
+ * permutation and the start of each group (offsets has owners+1 entries).
+ */
+function groupAndSort(owner: Int32Array, seq: Int32Array, n: number, owners: number): { order: Int32Array; offsets: Int32Array } {
+  const offsets = new Int32Array(owners + 1);
+  for (let r = 0; r < n; r++) offsets[owner[r] + 1]++;
+  for (let g = 0; g < owners; g++) offsets[g + 1] += offsets[g];
+  const fill = offsets.slice(0, owners);
+  const order = new Int32Array(n);
+  for (let r = 0; r < n; r++) order[fill[owner[r]]++] = r;
+  for (let g = 0; g < owners; g++) {
+    const a = offsets[g];
+    const b = offsets[g + 1];
+    let sorted = true;
+    for (let k = a + 1; k < b; k++) if (seq[order[k]] < seq[order[k - 1]]) sorted = false;
+    if (!sorted) {
+      const part = Array.from(order.subarray(a, b));
+      part.sort((x, y) => seq[x] - seq[y] || x - y);
+      order.set(part, a);
+    }
+  }
+  return { order, offsets };
+}
+
+async function readArchive(
+  archive: FeedArchive,
+  source: string,
+  { date, routes: routeFilter, onProgress, maxRecordChars, warnings }: { date: string; routes?: string[]; onProgress?: OnProgress; maxRecordChars?: number; warnings: WarningSink },
+): Promise<Feed> {
+  for (const t of REQUIRED_TABLES) {
+    if (!archive.has(t)) throw new StopspanError('missing-table', `required table ${t} is missing from the feed`, { file: t });
+  }
+  if (!archive.has('calendar.txt') && !archive.has('calendar_dates.txt')) {
+    throw new StopspanError('missing-table', 'the feed has neither calendar.txt nor calendar_dates.txt', { file: 'calendar.txt' });
+  }
+  const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {} };
+
+  // agency.txt [GTFS Schedule reference: agency_name and agency_timezone required; agency_id optional for one agency]
+  const agencies: Agency[] = [];
+  await table(ctx, 'agency.txt', ['agency_name', 'agency_timezone'], ['agency_id'], (row, c) => {
+    agencies.push({ id: row.get(c.agency_id), name: row.get(c.agency_name), timezone: row.get(c.agency_timezone) });
+  });
+
+  // routes.txt
+  const routes = new Map<string, Route>();
+  await table(ctx, 'routes.txt', ['route_id', 'route_type'], ['agency_id', 'route_short_name', 'route_long_name'], (row, c) => {
+    const id = need('routes.txt', row, c.route_id, 'route_id');
+    const type = intIn('routes.txt', row, c.route_type, 'route_type', 0, 1702, -1);
+    if (type < 0) bad('routes.txt', row, c.route_type, 'route_type', 'a route type');
+    if (routes.has(id)) return warnings.add('duplicate-route-id', 'repeated route_id rows ignored (first kept)', `routes.txt:${row.line}`);
+    routes.set(id, { id, agencyId: row.get(c.agency_id), shortName: row.get(c.route_short_name), longName: row.get(c.route_long_name), type });
+  });
+
+  // stops.txt
+  const stops: Stop[] = [];
+  const stopIndex = new Map<string, number>();
+  await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c) => {
+    const id = need('stops.txt', row, c.stop_id, 'stop_id');
+    const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
+    const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
+    const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
+    // [GTFS Schedule reference: stop_lat/stop_lon required for location_type 0, 1 and 2]
+    if (locationType <= 2 && (Number.isNaN(lat) || Number.isNaN(lon))) {
+      const i = Number.isNaN(lat) ? c.stop_lat : c.stop_lon;
+      throw new StopspanError('bad-value', `${Number.isNaN(lat) ? 'stop_lat' : 'stop_lon'} is required for a stop, station or entrance`, {
+        file: 'stops.txt',
+        line: row.line,
+        column: Number.isNaN(lat) ? 'stop_lat' : 'stop_lon',
+        value: row.get(i),
+      });
+    }
+    if (stopIndex.has(id)) return warnings.add('duplicate-stop-id', 'repeated stop_id rows ignored (first kept)', `stops.txt:${row.line}`);
+    stopIndex.set(id, stops.length);
+    stops.push({ id, code: row.get(c.stop_code), name: row.get(c.stop_name), lat, lon, locationType, parentStation: row.get(c.parent_station) });
+  });
+
+  // calendar.txt [GTFS Schedule reference: weekday flags 0/1, start_date and end_date YYYYMMDD, end inclusive]
+  const calendar: CalendarRow[] = [];
+  const DAYS = ['monday', 'tuesday', 'wednesday', 'thursday', 'friday', 'saturday', 'sunday'] as const;
+  if (archive.has('calendar.txt')) {
+    await table(ctx, 'calendar.txt', ['service_id', ...DAYS, 'start_date', 'end_date'], [], (row, c) => {
+      const days = DAYS.map((d) => intIn('calendar.txt', row, c[d], d, 0, 1, -1) === 1) as CalendarRow['days'];
+      DAYS.forEach((d) => {
+        if (row.isBlank(c[d])) bad('calendar.txt', row, c[d], d, '0 or 1');
+      });
+      const start = checkDate(row.get(c.start_date)) ?? bad('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
+      const end = checkDate(row.get(c.end_date)) ?? bad('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
+      calendar.push({ serviceId: need('calendar.txt', row, c.service_id, 'service_id'), days, start, end });
+    });
+  }
+  const calendarDates: CalendarDate[] = [];
+  if (archive.has('calendar_dates.txt')) {
+    await table(ctx, 'calendar_dates.txt', ['service_id', 'date', 'exception_type'], [], (row, c) => {
+      const d = checkDate(row.get(c.date)) ?? bad('calendar_dates.txt', row, c.date, 'date', 'a date YYYYMMDD');
+      const e = intIn('calendar_dates.txt', row, c.exception_type, 'exception_type', 1, 2, -1);
+      if (e < 0) bad('calendar_dates.txt', row, c.exception_type, 'exception_type', '1 or 2');
+      calendarDates.push({ serviceId: need('calendar_dates.txt', row, c.service_id, 'service_id'), date: d, exceptionType: e as 1 | 2 });
+    });
+  }
+
+  // trips.txt
+  const allTrips = new Map<string, Trip>();
+  let unknownRoute = 0;
+  await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
+    const id = need('trips.txt', row, c.trip_id, 'trip_id');
+    const routeId = row.get(c.route_id);
+    if (!routes.has(routeId)) {
+      unknownRoute++;
+      return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
+    }
+    if (allTrips.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
+    const directionId = intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1);
+    allTrips.set(id, { id, routeId, serviceId: row.get(c.service_id), directionId, headsign: row.get(c.trip_headsign), shapeId: row.get(c.shape_id) });
+  });
+  void unknownRoute;
+
+  // frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based]
+  const frequencies: Frequency[] = [];
+  if (archive.has('frequencies.txt')) {
+    await table(ctx, 'frequencies.txt', ['trip_id', 'start_time', 'end_time', 'headway_secs'], ['exact_times'], (row, c) => {
+      const startS = fieldTimeS(row, c.start_time);
+      if (startS < 0) bad('frequencies.txt', row, c.start_time, 'start_time', 'a time H:MM:SS');
+      const endS = fieldTimeS(row, c.end_time);
+      if (endS < 0) bad('frequencies.txt', row, c.end_time, 'end_time', 'a time H:MM:SS');
+      const headwayS = intIn('frequencies.txt', row, c.headway_secs, 'headway_secs', 1, 1e9, -1);
+      if (headwayS < 0) bad('frequencies.txt', row, c.headway_secs, 'headway_secs', 'a positive integer');
+      const exactTimes = intIn('frequencies.txt', row, c.exact_times, 'exact_times', 0, 1, 0) as 0 | 1;
+      if (endS <= startS) warnings.add('frequency-empty-window', 'frequencies rows whose end_time is not after start_time run no trips', `frequencies.txt:${row.line}`);
+      frequencies.push({ tripId: row.get(c.trip_id), startS, endS, headwayS, exactTimes });
+    });
+  }
+
+  let feedInfo: FeedInfo | null = null;
+  if (archive.has('feed_info.txt')) {
+    await table(ctx, 'feed_info.txt', [], ['feed_publisher_name', 'feed_version', 'feed_start_date', 'feed_end_date'], (row, c) => {
+      feedInfo ??= { publisherName: row.get(c.feed_publisher_name), version: row.get(c.feed_version), startDate: row.get(c.feed_start_date), endDate: row.get(c.feed_end_date) };
+    });
+  }
+
+  // routes filter: route_id or route_short_name
+  let routeKeep: Set<string> | null = null;
+  if (routeFilter && routeFilter.length > 0) {
+    routeKeep = new Set();
+    for (const want of routeFilter) {
+      const hits = [...routes.values()].filter((r) => r.id === want || r.shortName === want);
+      if (hits.length === 0) throw new StopspanError('bad-option', `invalid option routes: no route has id or short name ${want}`, { value: want });
+      for (const r of hits) routeKeep.add(r.id);
+    }
+  }
+  const candidates = [...allTrips.values()].filter((t) => !routeKeep || routeKeep.has(t.routeId));
+
+  // the analysis date and the trips kept
+  let analysisDate: string | null = null;
+  let kept: Trip[];
+  if (date === 'all') {
+    kept = candidates;
+  } else {
+    if (date === 'auto') {
+      const freq = tripRunsPerDay(frequencies);
+      const runsPerService = new Map<string, number>();
+      for (const t of candidates) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (freq.get(t.id)?.count ?? 1));
+      analysisDate = defaultAnalysisDate({ calendar, calendarDates }, runsPerService);
+      if (!analysisDate) throw new StopspanError('empty-feed', 'no Monday-Friday date in the service range has any trip', { file: 'calendar.txt' });
+    } else {
+      analysisDate = date;
+    }
+    const on = servicesOn({ calendar, calendarDates }, analysisDate);
+    kept = candidates.filter((t) => on.has(t.serviceId));
+    if (kept.length === 0) throw new StopspanError('empty-feed', `no trip runs on ${analysisDate}`, { value: analysisDate });
+  }
+  if (kept.length === 0) throw new StopspanError('empty-feed', 'the feed has no trips', { file: 'trips.txt' });
+  const tripIdx = new Map<string, number>();
+  kept.forEach((t, k) => tripIdx.set(t.id, k));
+  const noShape = kept.filter((t) => t.shapeId === '').length;
+  if (noShape > 0) warnings.add('trip-without-shape', 'trips without a shape_id (distances fall back to stop positions)', kept.find((t) => t.shapeId === '')!.id, noShape);
+
+  // stop_times.txt, kept trips only, into typed columns
+  const stOwner = new IntColumn(1 << 16);
+  const stStop = new IntColumn(1 << 16);
+  const stSeq = new IntColumn(1 << 16);
+  const stArr = new IntColumn(1 << 16);
+  const stDep = new IntColumn(1 << 16);
+  const stDist = new FloatColumn(1 << 16);
+  const stFlags = new IntColumn(1 << 16); // bit 0 timepoint, bit 1 no passenger service
+  let atStation = 0;
+  const F = 'stop_times.txt';
+  await table(ctx, F, ['trip_id', 'stop_id', 'stop_sequence'], ['arrival_time', 'departure_time', 'shape_dist_traveled', 'timepoint', 'pickup_type', 'drop_off_type'], (row, c) => {
+    const t = tripIdx.get(row.get(c.trip_id));
+    if (t === undefined) return;
+    const stopId = row.get(c.stop_id);
+    const s = stopIndex.get(stopId);
+    if (s === undefined) throw new StopspanError('bad-reference', 'stop_id is not in stops.txt', { file: F, line: row.line, column: 'stop_id', value: stopId });
+    const seq = fieldUint(row, c.stop_sequence);
+    if (seq < 0) bad(F, row, c.stop_sequence, 'stop_sequence', 'a non-negative integer');
+    let arr = c.arrival_time < 0 ? BLANK : fieldTimeS(row, c.arrival_time);
+    if (arr === MALFORMED) bad(F, row, c.arrival_time, 'arrival_time', 'a time H:MM:SS');
+    let dep = c.departure_time < 0 ? BLANK : fieldTimeS(row, c.departure_time);
+    if (dep === MALFORMED) bad(F, row, c.departure_time, 'departure_time', 'a time H:MM:SS');
+    // [GTFS Schedule reference: when only one of arrival_time and departure_time is given, they are the same]
+    if (arr < 0 && dep >= 0) arr = dep;
+    else if (dep < 0 && arr >= 0) dep = arr;
+    let dist = NaN;
+    if (c.shape_dist_traveled >= 0 && !row.isBlank(c.shape_dist_traveled)) {
+      const d = fieldNumber(row, c.shape_dist_traveled);
+      if (d === null || d < 0) bad(F, row, c.shape_dist_traveled, 'shape_dist_traveled', 'a non-negative number');
+      dist = d;
+    }
+    const tp = intIn(F, row, c.timepoint, 'timepoint', 0, 1, -1);
+    const pickup = intIn(F, row, c.pickup_type, 'pickup_type', 0, 3, 0);
+    const dropOff = intIn(F, row, c.drop_off_type, 'drop_off_type', 0, 3, 0);
+    // [GTFS Schedule reference: timepoint empty means exact times when times are given]
+    const exact = tp === 1 || (tp === -1 && arr >= 0);
+    if (stops[s].locationType === 1) atStation++;
+    stOwner.push(t);
+    stStop.push(s);
+    stSeq.push(seq);
+    stArr.push(arr);
+    stDep.push(dep);
+    stDist.push(dist);
+    stFlags.push((exact ? 1 : 0) | (pickup === 1 && dropOff === 1 ? 2 : 0));
+  });
+  if (atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, atStation);
+
+  const stopTimes = new Map<string, TripStopTimes>();
+  {
+    const n = stOwner.length;
+    const { order, offsets } = groupAndSort(stOwner.data, stSeq.data, n, kept.length);
+    let repeated = 0;
+    let noTimes = 0;
+    let noRows = 0;
+    for (let k = 0; k < kept.length; k++) {
+      const a = offsets[k];
+      const b = offsets[k + 1];
+      if (a === b) {
+        noRows++;
+        continue;
+      }
+      // drop rows repeating the previous stop_sequence [GTFS Schedule reference: stop_sequence unique per trip]
+      const pick: number[] = [];
+      for (let p = a; p < b; p++) {
+        const r = order[p];
+        if (pick.length > 0 && stSeq.data[pick[pick.length - 1]] === stSeq.data[r]) {
+          repeated++;
+          continue;
+        }
+        pick.push(r);
+      }
+      const m = pick.length;
+      const rec: TripStopTimes = {
+        stopIdx: new Int32Array(m),
+        seq: new Int32Array(m),
+        arrS: new Int32Array(m),
+        depS: new Int32Array(m),
+        shapeDist: new Float64Array(m),
+        timepoint: new Uint8Array(m),
+        noService: new Uint8Array(m),
+      };
+      for (let q = 0; q < m; q++) {
+        const r = pick[q];
+        rec.stopIdx[q] = stStop.data[r];
+        rec.seq[q] = stSeq.data[r];
+        rec.arrS[q] = stArr.data[r];
+        rec.depS[q] = stDep.data[r];
+        rec.shapeDist[q] = stDist.data[r];
+        rec.timepoint[q] = stFlags.data[r] & 1;
+        rec.noService[q] = (stFlags.data[r] >> 1) & 1;
+      }
+      // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
+      if (rec.arrS[0] < 0 || rec.depS[m - 1] < 0) noTimes++;
+      stopTimes.set(kept[k].id, rec);
+    }
+    if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
+    if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);
+    if (noRows > 0) warnings.add('trip-without-stop-times', 'kept trips with no stop_times rows were dropped', F, noRows);
+  }
+  const trips = new Map<string, Trip>();
+  for (const t of kept) if (stopTimes.has(t.id)) trips.set(t.id, t);
+  if (trips.size === 0) throw new StopspanError('empty-feed', 'no kept trip has any stop_times rows', { file: F });
+
+  // shapes.txt, only the shapes the kept trips use
+  const shapes = new Map<string, Shape>();
+  const wanted = new Map<string, number>();
+  const shapeIds: string[] = [];
+  for (const t of trips.values()) {
+    if (t.shapeId !== '' && !wanted.has(t.shapeId)) {
+      wanted.set(t.shapeId, shapeIds.length);
+      shapeIds.push(t.shapeId);
+    }
+  }
+  if (archive.has('shapes.txt') && shapeIds.length > 0) {
+    const S = 'shapes.txt';
+    const owner = new IntColumn(1 << 14);
+    const seqC = new IntColumn(1 << 14);
+    const lat = new FloatColumn(1 << 14);
+    const lon = new FloatColumn(1 << 14);
+    const dist = new FloatColumn(1 << 14);
+    await table(ctx, S, ['shape_id', 'shape_pt_lat', 'shape_pt_lon', 'shape_pt_sequence'], ['shape_dist_traveled'], (row, c) => {
+      const g = wanted.get(row.get(c.shape_id));
+      if (g === undefined) return;
+      const seq = fieldUint(row, c.shape_pt_sequence);
+      if (seq < 0) bad(S, row, c.shape_pt_sequence, 'shape_pt_sequence', 'a non-negative integer');
+      const la = coord(S, row, c.shape_pt_lat, 'shape_pt_lat', 90);
+      const lo = coord(S, row, c.shape_pt_lon, 'shape_pt_lon', 180);
+      if (Number.isNaN(la) || Number.isNaN(lo)) bad(S, row, Number.isNaN(la) ? c.shape_pt_lat : c.shape_pt_lon, Number.isNaN(la) ? 'shape_pt_lat' : 'shape_pt_lon', 'a coordinate');
+      let d = NaN;
+      if (c.shape_dist_traveled >= 0 && !row.isBlank(c.shape_dist_traveled)) {
+        const v = fieldNumber(row, c.shape_dist_traveled);
+        if (v === null || v < 0) bad(S, row, c.shape_dist_traveled, 'shape_dist_traveled', 'a non-negative number');
+        d = v;
+      }
+      owner.push(g);
+      seqC.push(seq);
+      lat.push(la);
+      lon.push(lo);
+      dist.push(d);
+    });
+    const { order, offsets } = groupAndSort(owner.data, seqC.data, owner.length, shapeIds.length);
+    for (let g = 0; g < shapeIds.length; g++) {
+      const a = offsets[g];
+      const b = offsets[g + 1];
+      if (a === b) continue;
+      const m = b - a;
+      const sh: Shape = { id: shapeIds[g], lat: new Float64Array(m), lon: new Float64Array(m), dist: new Float64Array(m) };
+      for (let q = 0; q < m; q++) {
+        const r = order[a + q];
+        sh.lat[q] = lat.data[r];
+        sh.lon[q] = lon.data[r];
+        sh.dist[q] = dist.data[r];
+      }
+      shapes.set(sh.id, sh);
+    }
+  }
+  const missingShapes = shapeIds.filter((id) => !shapes.has(id));
+  if (missingShapes.length > 0) warnings.add('shape-not-found', 'shape_id used by trips but absent from shapes.txt', missingShapes[0], missingShapes.length);
+
+  onProgress?.({ stage: 'hash feed' });
+  const contentHash = await archive.contentHash();
+  return {
+    source,
+    date: analysisDate,
+    contentHash,
+    agencies,
+    routes,
+    stops,
+    stopIndex,
+    trips,
+    stopTimes,
+    shapes,
+    calendar,
+    calendarDates,
+    frequencies,
+    feedInfo,
+    warnings: warnings.list(),
+    rowCounts: ctx.rowCounts,
+  };
+}
