@@ -5,9 +5,11 @@
 //   node scripts/bench-run.mjs inflate FEED.zip          floor (a): inflate stop_times.txt, count its lines
 //   node scripts/bench-run.mjs csv FEED.zip              floor (b): the project's CSV reader over stop_times.txt
 //   node scripts/bench-run.mjs audit FEED.zip OUT_DIR    the full `stopspan audit FEED --out OUT_DIR --force`
+//   node scripts/bench-run.mjs stages FEED.zip OUT_DIR   the library stages one after another, each timed:
+//                                                        readFeed, buildPatterns, runAudit, writeReport
 //
 // On exit the process writes one JSON object to the file named by $BENCH_RESULT (or to stdout when unset):
-// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, exitCode, error }. wallMs counts from the start of
+// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, stageMs, exitCode, error }. wallMs counts from the start of
 // the process (performance.timeOrigin), so node's own start-up is included in every measurement alike.
 
 import fs from 'node:fs';
@@ -21,6 +23,7 @@ const [mode, feed, outDir] = process.argv.slice(2);
 
 let rows = null;
 let error = null;
+let stageMs = null;
 
 process.on('exit', (code) => {
   const ru = process.resourceUsage(); // user/system CPU in microseconds, maxRSS in kilobytes
@@ -32,6 +35,7 @@ process.on('exit', (code) => {
     sysMs: ru.systemCPUTime / 1000,
     cpuMs: (ru.userCPUTime + ru.systemCPUTime) / 1000,
     maxRssMB: ru.maxRSS / 1024,
+    stageMs,
     exitCode: code,
     error,
   };
@@ -117,13 +121,47 @@ async function audit(feedPath, out) {
   // main.js runs the command when imported; the figures are taken when the process exits.
 }
 
+/** The library's stages in turn, as the audit command composes them, with the time of each. */
+async function stages(feedPath, out) {
+  const load = (rel) => {
+    const p = path.join(repoDir, 'dist', rel);
+    if (!fs.existsSync(p)) throw new Error(`dist/${rel} is not built`);
+    return import(pathToFileURL(p).href);
+  };
+  const [{ readFeed }, { buildPatterns }, { runAudit }, { writeReport }] = await Promise.all([
+    load('gtfs/readFeed.js'),
+    load('network/buildPatterns.js'),
+    load('audit/runAudit.js'),
+    load('report/writeReport.js'),
+  ]);
+  stageMs = {};
+  let t = performance.now();
+  stageMs.startup = t;
+  const lap = (name) => {
+    const now = performance.now();
+    stageMs[name] = now - t;
+    t = now;
+  };
+  const feedData = await readFeed(feedPath);
+  lap('readFeed');
+  const patterns = buildPatterns(feedData);
+  lap('buildPatterns');
+  const result = runAudit(feedData, patterns);
+  lap('runAudit');
+  await writeReport(result, out, { force: true });
+  lap('writeReport');
+}
+
 try {
-  if (!feed) throw new Error('usage: bench-run.mjs inflate|csv|audit FEED [OUT_DIR]');
+  if (!feed) throw new Error('usage: bench-run.mjs inflate|csv|audit|stages FEED [OUT_DIR]');
   if (mode === 'inflate') rows = await inflateAndCount(feed);
   else if (mode === 'csv') rows = await csvReaderCount(feed);
   else if (mode === 'audit') {
     if (!outDir) throw new Error('audit needs an output folder');
     await audit(feed, outDir);
+  } else if (mode === 'stages') {
+    if (!outDir) throw new Error('stages needs an output folder');
+    await stages(feed, outDir);
   } else throw new Error(`unknown mode ${JSON.stringify(mode)}`);
 } catch (e) {
   error = String(e?.message ?? e);

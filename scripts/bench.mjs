@@ -5,7 +5,8 @@
 // measurement runs in its own process (scripts/bench-run.mjs), several times; medians are reported, with
 // the targets as PASS/FAIL. Not a test: nothing here is asserted, figures are printed and saved.
 //
-//   node scripts/bench.mjs [--runs 3] [--feeds DIR] [--only real|scaled|NAME,...] [--no-build]
+//   node scripts/bench.mjs [--runs 3] [--feeds DIR] [--only real|scaled|NAME,...] [--no-build] [--stages]
+//     --stages also times the library stages (readFeed, buildPatterns, runAudit, writeReport) one by one
 //   node scripts/bench.mjs --profile FEED [--top 20]     CPU profile of one audit, hottest functions first
 //
 // Figures are also written to bench-out/bench-results.json and bench-out/bench-results.md.
@@ -36,7 +37,7 @@ const TARGETS = {
 const OUTPUTS = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
 
 function parseArgs(argv) {
-  const opts = { runs: 3, feeds: null, only: null, build: true, profile: null, top: 20 };
+  const opts = { runs: 3, feeds: null, only: null, build: true, profile: null, top: 20, stages: false };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     const v = argv[i + 1];
@@ -44,9 +45,10 @@ function parseArgs(argv) {
     else if (a === '--feeds') (opts.feeds = v), i++;
     else if (a === '--only') (opts.only = v.split(',')), i++;
     else if (a === '--no-build') opts.build = false;
+    else if (a === '--stages') opts.stages = true;
     else if (a === '--profile') (opts.profile = v), i++;
     else if (a === '--top') (opts.top = Number(v)), i++;
-    else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --profile or --top`);
+    else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --stages, --profile or --top`);
   }
   if (!Number.isInteger(opts.runs) || opts.runs < 1) throw new Error(`invalid option --runs: expected a whole number >= 1, got ${opts.runs}`);
   return opts;
@@ -154,8 +156,8 @@ function collectInputs(opts) {
 }
 
 /** Measures floors (a), (b) and the audit on one input, interleaving the runs so drift hits all alike. */
-async function benchInput(input, runs) {
-  const raw = { inflate: [], csv: [], audit: [] };
+async function benchInput(input, runs, withStages) {
+  const raw = { inflate: [], csv: [], audit: [], stages: [] };
   let outputsMissing = [];
   for (let i = 0; i < runs; i++) {
     raw.inflate.push(await measure('inflate', input.file));
@@ -168,13 +170,26 @@ async function benchInput(input, runs) {
     }
     raw.audit.push(a);
     fs.rmSync(outDir, { recursive: true, force: true });
+    if (withStages) {
+      const stDir = fs.mkdtempSync(path.join(os.tmpdir(), `stopspan-bench-${input.name}-`));
+      raw.stages.push(await measure('stages', input.file, stDir));
+      fs.rmSync(stDir, { recursive: true, force: true });
+    }
     note(`bench: ${input.name} run ${i + 1}/${runs}: inflate ${fmtS(raw.inflate[i].wallMs)} s, csv ${raw.csv[i].error ? 'n/a' : fmtS(raw.csv[i].wallMs) + ' s'}, audit ${a.error ? 'n/a' : fmtS(a.wallMs) + ' s'}`);
   }
   const inflate = summarise(raw.inflate);
   const csv = summarise(raw.csv);
   const audit = summarise(raw.audit);
   const rows = inflate.rows ?? null;
-  return { ...input, rows, inflate, csv, audit };
+  let stages = null;
+  if (withStages) {
+    stages = summarise(raw.stages);
+    if (!stages.error) {
+      stages.stageMs = {};
+      for (const k of Object.keys(raw.stages[0].stageMs ?? {})) stages.stageMs[k] = median(raw.stages.map((r) => r.stageMs[k]));
+    }
+  }
+  return { ...input, rows, inflate, csv, audit, stages };
 }
 
 const fmtS = (ms) => (Number.isFinite(ms) ? (ms / 1000).toFixed(2) : 'n/a');
@@ -207,6 +222,15 @@ function report(results, opts) {
     for (const [label, m] of [['floor (a) inflate', r.inflate], ['floor (b) csv', r.csv], ['audit', r.audit]]) {
       if (m.error) rows.push([r.name, fmtInt(r.rows), label, 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
       else rows.push([r.name, fmtInt(r.rows), label, fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), label === 'floor (a) inflate' ? '' : fmtX(m.wallMs / r.inflate.wallMs), '']);
+    }
+  }
+  for (const r of results) {
+    if (!r.stages) continue;
+    const m = r.stages;
+    if (m.error) rows.push([r.name, fmtInt(r.rows), 'stages', 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
+    else {
+      const st = Object.entries(m.stageMs).map(([k, ms]) => `${k} ${fmtS(ms)}`).join(', ');
+      rows.push([r.name, fmtInt(r.rows), 'stages', fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), fmtX(m.wallMs / r.inflate.wallMs), st]);
     }
   }
   printTable(['input', 'stop_times rows', 'measure', 'wall s', 'CPU s', 'peak MB', 'µs/row', 'x floor a', 'note'], rows, [false, true, false, true, true, true, true, true, false]);
@@ -336,7 +360,7 @@ async function main() {
   if (!inputs.length) throw new Error('nothing to measure');
   if (!fs.existsSync(mainJs)) note('bench: dist/cli/main.js is missing; the audit column will be n/a');
   const results = [];
-  for (const input of inputs) results.push(await benchInput(input, opts.runs));
+  for (const input of inputs) results.push(await benchInput(input, opts.runs, opts.stages));
   report(results, opts);
 }
 
