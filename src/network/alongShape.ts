@@ -1,7 +1,9 @@
 // Distance along a shape of each stop of a pattern. Each stop is projected onto the shape polyline,
-// searching forward from the previous stop's position, so that loops, out-and-back shapes and figure-eights
-// never snap a stop backwards. The search stops a little past the first close match, so the work per
-// pattern is about the shape's length, not stops times shape points.
+// searching forward from the previous stop's position within a look-ahead window a few times the
+// straight-line distance between the stops, so that loops, out-and-back shapes and figure-eights never
+// snap a stop backwards and the work per pattern is a small multiple of the shape's length, not stops
+// times shape points. Within the window the earliest close match wins; when nothing in the window is
+// close, the rest of the shape is searched and a much closer point there is taken instead.
 
 import { EARTH_RADIUS_M, haversineM, nearestOnSegment } from './geodesy.js';
 
@@ -40,18 +42,14 @@ export function prepareShape(shape: { lat: ArrayLike<number>; lon: ArrayLike<num
 }
 
 export interface AlongShapeOptions {
-  /** A match at most this far from the shape ends the search once the shape has moved settleM past it. */
-  snapM?: number;
-  /** How far along the shape past a close match to keep looking for a closer point. */
-  settleM?: number;
-  /** Minimum look-ahead window along the shape from the previous stop's position. */
+  /** Minimum look-ahead window along the shape from the previous stop's position, metres. */
   minLookAheadM?: number;
   /** The window is also at least this many times the straight-line distance from the previous stop. */
   lookAheadFactor?: number;
-  /** When the best match in the window is farther than this from the shape, search the rest of the shape. */
+  /** An earlier match at most this much farther from the shape than the window's best is preferred. */
+  slackM?: number;
+  /** When the window's best match is farther than this from the shape, the rest of the shape is searched. */
   fallbackM?: number;
-  /** A far-away point (beyond settleM from the current best) must be closer by this much to win. */
-  tieM?: number;
 }
 
 export interface AlongShapeResult {
@@ -70,20 +68,12 @@ export interface AlongShapeResult {
  * @example projectAlongShape(prepareShape(shape), [{ lat: 52.1, lon: 4.3 }, { lat: 52.11, lon: 4.31 }])
  */
 export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options: AlongShapeOptions = {}): AlongShapeResult {
-  const {
-    snapM = 30,
-    settleM = 100,
-    minLookAheadM = 1000,
-    lookAheadFactor = 3,
-    fallbackM = 150,
-    tieM = 0.5,
-  } = options;
-  for (const [name, v] of Object.entries({ snapM, settleM, minLookAheadM, lookAheadFactor, fallbackM, tieM })) {
+  const { minLookAheadM = 300, lookAheadFactor = 2.5, slackM = 10, fallbackM = 50 } = options;
+  for (const [name, v] of Object.entries({ minLookAheadM, lookAheadFactor, slackM, fallbackM })) {
     if (!(Number.isFinite(v) && v >= 0)) throw new RangeError(`projectAlongShape: invalid option ${name}: expected a number >= 0, got ${v}`);
   }
   const { lat, lon, cumM, lonScaleM } = shape;
-  const nPts = lat.length;
-  const nSeg = nPts - 1;
+  const nSeg = lat.length - 1;
   const distAlongM: number[] = [];
   const offsetM: number[] = [];
   let fallbacks = 0;
@@ -98,59 +88,97 @@ export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options
     return { distAlongM, offsetM, fallbacks, segmentsVisited };
   }
 
+  // Per-segment results of the current scan, reused between stops.
+  let cap = 64;
+  let dBuf = new Float64Array(cap);
+  let tBuf = new Float64Array(cap);
+
   let curSeg = 0;
   let curT = 0;
   let prevLat = lat[0];
   let prevLon = lon[0];
-  const snap2 = snapM * snapM;
+
+  /** Distances from stop s to segments from..to-1 (to exclusive) into the buffers; returns the count. */
+  const scan = (s: LatLon, from: number, to: number): number => {
+    const count = to - from;
+    if (count > cap) {
+      while (cap < count) cap *= 2;
+      dBuf = new Float64Array(cap);
+      tBuf = new Float64Array(cap);
+    }
+    for (let i = from; i < to; i++) {
+      const lonM = lonScaleM[i];
+      // Planar frame anchored at the segment's start point.
+      const r = nearestOnSegment(
+        (s.lon - lon[i]) * lonM,
+        (s.lat - lat[i]) * LAT_M,
+        0,
+        0,
+        (lon[i + 1] - lon[i]) * lonM,
+        (lat[i + 1] - lat[i]) * LAT_M,
+        i === curSeg ? curT : 0,
+      );
+      dBuf[i - from] = Math.sqrt(r.d2);
+      tBuf[i - from] = r.t;
+    }
+    segmentsVisited += count;
+    return count;
+  };
+
+  /** Index (into the buffers) of the earliest valley bottom within slackM of the best, and the best. */
+  const choose = (count: number): { k: number; bestD: number } => {
+    let bestD = Infinity;
+    for (let k = 0; k < count; k++) if (dBuf[k] < bestD) bestD = dBuf[k];
+    for (let k = 0; k < count; k++) {
+      const d = dBuf[k];
+      if (d > bestD + slackM) continue;
+      if ((k === 0 || d <= dBuf[k - 1]) && (k === count - 1 || d <= dBuf[k + 1])) return { k, bestD };
+    }
+    return { k: 0, bestD }; // unreachable: the best itself is a valley bottom
+  };
 
   for (const s of stops) {
     const startPos = cumM[curSeg] + curT * (cumM[curSeg + 1] - cumM[curSeg]);
     const chordM = haversineM(prevLat, prevLon, s.lat, s.lon);
     const windowEnd = startPos + Math.max(minLookAheadM, lookAheadFactor * chordM);
-    let bestD = Infinity;
-    let bestSeg = curSeg;
-    let bestT = curT;
-    let bestPos = startPos;
+    let end = curSeg + 1;
+    while (end < nSeg && cumM[end] <= windowEnd) end++;
 
-    const scan = (from: number, to: number, stopAtWindow: boolean): number => {
-      let i = from;
-      for (; i < to; i++) {
-        if (stopAtWindow && cumM[i] > windowEnd && bestD < Infinity) break;
-        if (bestD * bestD <= snap2 && cumM[i] > bestPos + settleM) break;
-        const lonM = lonScaleM[i];
-        // Planar frame anchored at the segment's start point.
-        const bx = (lon[i + 1] - lon[i]) * lonM;
-        const by = (lat[i + 1] - lat[i]) * LAT_M;
-        const px = (s.lon - lon[i]) * lonM;
-        const py = (s.lat - lat[i]) * LAT_M;
-        const tMin = i === curSeg ? curT : 0;
-        const r = nearestOnSegment(px, py, 0, 0, bx, by, tMin);
-        segmentsVisited++;
-        const d = Math.sqrt(r.d2);
-        const pos = cumM[i] + r.t * (cumM[i + 1] - cumM[i]);
-        const near = pos - bestPos <= settleM;
-        if (d < bestD - (near ? 0 : tieM)) {
-          bestD = d;
-          bestSeg = i;
-          bestT = r.t;
-          bestPos = pos;
-        }
-      }
-      return i;
-    };
-
-    const reached = scan(curSeg, nSeg, true);
-    if (bestD > fallbackM && reached < nSeg) {
-      fallbacks++;
-      scan(reached, nSeg, false);
+    let n = scan(s, curSeg, end);
+    const { k } = choose(n);
+    let seg = curSeg + k;
+    let t = tBuf[k];
+    let d = dBuf[k];
+    // A valley cut off by the window's end: follow it down past the end.
+    while (k === n - 1 && end < nSeg) {
+      const prevD = d;
+      scan(s, end, end + 1);
+      if (!(dBuf[0] < prevD)) break;
+      seg = end;
+      t = tBuf[0];
+      d = dBuf[0];
+      end++;
     }
-    curSeg = bestSeg;
-    curT = bestT;
+    if (d > fallbackM && end < nSeg) {
+      // Nothing close in the window: look at the rest of the shape, and move there only for a much
+      // closer point (less than half as far, and by more than the slack).
+      fallbacks++;
+      const from = end;
+      n = scan(s, from, nSeg);
+      const far = choose(n);
+      if (far.bestD < d / 2 && far.bestD < d - slackM) {
+        // The closest valley bottom out there, earliest among near-equals.
+        seg = from + far.k;
+        t = tBuf[far.k];
+        d = dBuf[far.k];
+      }
+    }
+    curSeg = seg;
+    curT = t;
     prevLat = s.lat;
     prevLon = s.lon;
-    distAlongM.push(bestPos);
-    offsetM.push(bestD);
+    distAlongM.push(cumM[seg] + t * (cumM[seg + 1] - cumM[seg]));
+    offsetM.push(d);
   }
   return { distAlongM, offsetM, fallbacks, segmentsVisited };
 }

@@ -95,10 +95,39 @@ describe('projectAlongShape', () => {
     const shape = shapeOf(xy);
     // The second stop lies 200 m north of the first: the chord is short, but along the shape it is ~6 km
     // ahead; it is 160 m from the outbound leg and 0 m from the inbound leg.
-    const r = projectAlongShape(shape, stopsAt([[100, 0], [100, 200]]), { minLookAheadM: 500, lookAheadFactor: 2, fallbackM: 100 });
+    const r = projectAlongShape(shape, stopsAt([[100, 0], [100, 200]]), { minLookAheadM: 500, lookAheadFactor: 2 });
     expect(r.fallbacks).toBe(1);
     expect(r.distAlongM[1]).toBeCloseTo(shape.lengthM, 0);
     expect(r.offsetM[1]).toBeLessThan(1);
+  });
+
+  it('prefers a much closer pass later in the window to a loose first pass', () => {
+    // The shape passes 15 m south of the stop, turns north and comes back through the stop itself
+    // about 400 m later (a jog around a block): the second pass is the stop's place.
+    const xy = [...line(0, 0, 600, 0), ...line(600, 0, 600, 15).slice(1), ...line(600, 15, 350, 15).slice(1), ...line(350, 15, 350, 100).slice(1)];
+    const shape = shapeOf(xy);
+    const r = projectAlongShape(shape, stopsAt([[0, 0], [400, 15]]));
+    expect(r.offsetM[1]).toBeLessThan(0.5);
+    expect(r.distAlongM[1]).toBeCloseTo(600 + 15 + 200, 0);
+  });
+
+  it('keeps an earlier pass when a later one is only a little closer (within the slack)', () => {
+    // Same street both ways, the return 8 m north; a stop 5 m north of the outbound line, then the turn.
+    const xy = [...line(0, 0, 600, 0), ...line(600, 0, 600, 8).slice(1), ...line(600, 8, 0, 8).slice(1)];
+    const shape = shapeOf(xy);
+    const r = projectAlongShape(shape, stopsAt([[0, 0], [500, 5]]));
+    expect(r.distAlongM[1]).toBeCloseTo(500, 0);
+  });
+
+  it('follows a terminal loop longer than the window to the far pass of a stop', () => {
+    // The bus runs 200 m east, then a 1.6 km loop north and back to a stop 140 m north of the street
+    // it left; the straight line between the two stops is short, the path is long.
+    const xy = [...line(0, 0, 200, 0), ...line(200, 0, 200, 800).slice(1), ...line(200, 800, 300, 800).slice(1), ...line(300, 800, 300, 140).slice(1), ...line(300, 140, 260, 140).slice(1)];
+    const shape = shapeOf(xy);
+    const r = projectAlongShape(shape, stopsAt([[100, 0], [260, 140]]));
+    expect(r.fallbacks).toBe(1);
+    expect(r.offsetM[1]).toBeLessThan(0.5);
+    expect(r.distAlongM[1]).toBeCloseTo(shape.lengthM, 0);
   });
 
   it('agrees with turf nearestPointOnLine on a winding street without ambiguity', () => {
@@ -129,12 +158,14 @@ describe('projectAlongShape', () => {
     const r = projectAlongShape(shape, stops);
     const nSeg = xy.length - 1;
     expect(r.distAlongM[80]).toBeCloseTo(20000, -1);
-    expect(r.segmentsVisited).toBeLessThan(2 * nSeg); // a whole-line search per stop would be 81 * 2000
+    // The window is 2.5 times the 250 m chord, so about 2.5 times the shape; a whole-line search per
+    // stop would be 81 * 2000 = 162 000 segments.
+    expect(r.segmentsVisited).toBeLessThan(3 * nSeg);
     expect(r.fallbacks).toBe(0);
   });
 
   it('rejects a bad option, naming it', () => {
     const shape = shapeOf(line(0, 0, 100, 0));
-    expect(() => projectAlongShape(shape, [], { snapM: -1 })).toThrow(/snapM/);
+    expect(() => projectAlongShape(shape, [], { slackM: -1 })).toThrow(/slackM/);
   });
 });
