@@ -5,7 +5,9 @@ import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { observeArchive, type ObservedData } from '../../src/realtime/index.js';
+import GtfsRealtimeBindings from 'gtfs-realtime-bindings';
+import { observeArchive, serviceDayOriginS, type ObservedData } from '../../src/realtime/index.js';
+import { WarningSink } from '../../src/common/warnings.js';
 // @ts-expect-error the generator is a plain ES module without type declarations
 import { simulateArchive } from '../../scripts/make-demo-realtime.mjs';
 import { buildNetwork } from './helpers.js';
@@ -52,7 +54,7 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('observeArchive on a simulated archive', () => {
   it('reads every snapshot except the one DIFFERENTIAL and matches every simulated trip instance', () => {
-    // 8 hours... 4 h window at 30 s: 481 polls, two files each, plus one DIFFERENTIAL file
+    // a 4 h window at 30 s: 481 polls, two files each, plus one DIFFERENTIAL file
     expect(data.snapshotsRead).toBe(481 * 2);
     expect(data.snapshotsSkipped).toBe(1);
     expect(data.warnings.find((w) => w.code === 'realtime-differential')?.count).toBe(1);
@@ -105,5 +107,81 @@ describe('observeArchive on a simulated archive', () => {
     const mean = shares.reduce((s, x) => s + x, 0) / shares.length;
     expect(mean).toBeGreaterThan(0.68);
     expect(mean).toBeLessThan(0.78);
+  });
+});
+
+describe('observeArchive from VehiclePositions alone', () => {
+  it('recovers dwell, cruise speed and stopping share from STOPPED_AT observations polled every 5 s', async () => {
+    const vpDir = mkdtempSync(join(tmpdir(), 'stopspan-rt-vp-'));
+    try {
+      simulateArchive(
+        net.sim,
+        { windowStartS: 6 * 3600 + 30 * 60, windowEndS: 9 * 3600 + 30 * 60, pollS: 5, routeParams: (id: 'N1' | 'N2') => ROUTE[id], lambda: lambdaOf, seed: 12, differential: false },
+        (name: string, bytes: Uint8Array) => {
+          if (name.startsWith('trip-updates/')) return;
+          mkdirSync(dirname(join(vpDir, name)), { recursive: true });
+          writeFileSync(join(vpDir, name), bytes);
+        },
+      );
+      const vp = await observeArchive(vpDir, net.feed, net.patterns);
+      for (const [id, r] of Object.entries(ROUTE)) {
+        const p = vp.byPattern.get(`${id}:0:1`)!;
+        // bracket midpoints: unbiased over the polling phase, each within one interval (5 s)
+        expect(Math.abs(p.meanDwellS! - r.dwellS)).toBeLessThan(1.5);
+        expect(Math.abs(p.cruiseSpeedMps! / r.cruiseSpeedMps - 1)).toBeLessThan(0.03);
+        const shares = p.stopShare.slice(1, -1) as number[];
+        expect(shares.every((s) => s !== null && s > 0.2 && s < 1)).toBe(true);
+      }
+    } finally {
+      rmSync(vpDir, { recursive: true, force: true });
+    }
+  }, 60_000);
+});
+
+describe('observeArchive on bad input', () => {
+  const rt = GtfsRealtimeBindings.transit_realtime;
+  const base = serviceDayOriginS('20261104', 'Etc/GMT-1') + 7 * 3600;
+  function write(d: string, name: string, ts: number, entity: unknown[]) {
+    const msg = rt.FeedMessage.fromObject({ header: { gtfsRealtimeVersion: '2.0', incrementality: 0, timestamp: ts }, entity });
+    writeFileSync(join(d, name), rt.FeedMessage.encode(msg).finish());
+  }
+
+  it('counts unmatched trips, vehicles without trips, out-of-order reports and snapshots of another feed, and skips them', async () => {
+    const d = mkdtempSync(join(tmpdir(), 'stopspan-rt-bad-'));
+    try {
+      const STOPPED = rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
+      write(d, '1.pb', base, [
+        { id: 'a', vehicle: { trip: { tripId: 'N1-T001', startDate: '20261104' }, currentStopSequence: 10, currentStatus: STOPPED, timestamp: base } },
+        { id: 'b', vehicle: { vehicle: { id: 'deadhead' }, timestamp: base } },
+        { id: 'c', vehicle: { trip: { tripId: 'GHOST' }, currentStopSequence: 10, timestamp: base } },
+        { id: 'd', vehicle: { trip: { tripId: 'N2-T001', startDate: '20261104' }, currentStopSequence: 10, timestamp: base } },
+        { id: 'e', vehicle: { trip: { tripId: 'N2-T001', startDate: '20261104', startTime: '06:31:00' }, currentStopSequence: 10, timestamp: base } },
+        { id: 'f', tripUpdate: { trip: { tripId: 'N1-T002', startDate: '20261107' }, stopTimeUpdate: [{ stopSequence: 10, arrival: { delay: 0 } }] } },
+      ]);
+      write(d, '2.pb', base + 30, [
+        { id: 'a', vehicle: { trip: { tripId: 'N1-T001', startDate: '20261104' }, currentStopSequence: 20, timestamp: base - 100 } },
+      ]);
+      write(d, '3.pb', base + 60, [{ id: 'x', vehicle: { trip: { tripId: 'OTHER-1' }, currentStopSequence: 1, timestamp: base + 60 } }]);
+      const w = new WarningSink();
+      const obs = await observeArchive(d, net.feed, net.patterns, { warnings: w });
+      const count = new Map(obs.warnings.map((x) => [x.code, x.count]));
+      expect(obs.snapshotsRead).toBe(2);
+      expect(obs.snapshotsSkipped).toBe(1);
+      expect(count.get('realtime-other-feed')).toBe(1);
+      expect(count.get('realtime-vehicle-without-trip')).toBe(1);
+      expect(count.get('realtime-out-of-order')).toBe(1);
+      expect(count.get('realtime-trip-unknown')).toBe(1);
+      expect(count.get('realtime-frequency-no-start-time')).toBe(1);
+      expect(count.get('realtime-frequency-start-mismatch')).toBe(1);
+      expect(count.get('realtime-date-mismatch')).toBe(1); // 2026-11-07 is a Saturday; the service runs Monday-Friday
+      expect(obs.tripsMatched).toBe(1);
+      expect(obs.tripsUnmatched).toBe(4);
+    } finally {
+      rmSync(d, { recursive: true, force: true });
+    }
+  });
+
+  it('refuses an invalid option with bad-option', async () => {
+    await expect(observeArchive(dir, net.feed, net.patterns, { minTrips: 0 })).rejects.toMatchObject({ code: 'bad-option' });
   });
 });
