@@ -246,6 +246,17 @@ async function committedCases() {
     feed['trips.txt'] = feed['trips.txt'].replace('M2,WKDY,M2-2', 'M2,NEVER,M2-2');
     add({ name: 'one-service-never-runs', path: 'one-service-never-runs.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'service NEVER ends before it starts: trip M2-2 never runs; the rest is usable' });
   }
+
+  // missing pieces, and two valid oddities a reader must take in its stride
+  add({ name: 'not-a-zip', path: 'not-a-zip.zip', bytes: Buffer.from(base['stops.txt']), exit: 2, words: ['not-a-zip.zip'], why: 'a CSV file named .zip: no zip signature at all' });
+  add({ name: 'missing-table', path: 'missing-table.zip', bytes: await zipBuffer(without(base, 'stop_times.txt', {})), exit: 2, words: ['stop_times.txt'], why: 'the required table stop_times.txt is absent' });
+  await table('missing-column', 'stops.txt', t['stops.txt'].split('\n').map((l) => l.split(',').slice(0, 3).join(',')).join('\n'), 2, ['stops.txt', 'stop_lon'], 'stops.txt has no stop_lon column, and its stops are served');
+  {
+    const feed = minimalFeed();
+    for (const k of Object.keys(feed)) feed[k] = '\ufeff' + feed[k].replace(/\n/g, '\r\n');
+    add({ name: 'bom-crlf', path: 'bom-crlf.zip', bytes: await zipBuffer(feed), exit: 0, words: [], why: 'every table starts with a UTF-8 byte-order mark and ends lines with CRLF: valid, read as usual' });
+  }
+  await table('padded-values', 'stops.txt', t['stops.txt'].split('\n').map((l, i) => (i === 0 || l === '' ? l : l.replace(/,(45\.\d+),(10\.\d+)$/, ', $1 ,  $2'))).join('\n'), 0, [], 'stop_lat and stop_lon padded with spaces, as some real feeds are: trim them and count it', { warning: true });
   return { base, baseZip, cases };
 }
 

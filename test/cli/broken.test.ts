@@ -193,6 +193,17 @@ describe('the broken corpus', () => {
     const seq = parse(await text('sequence-repeated', 'stop_times.txt'), { columns: true }) as Record<string, string>[];
     const m11 = seq.filter((r) => r.trip_id === 'M1-1').map((r) => r.stop_sequence);
     expect(new Set(m11).size).toBe(m11.length - 1);
+    // csv-parse with its bom option reads the BOM + CRLF tables to the same rows as the minimal feed
+    const bom = await text('bom-crlf', 'stops.txt');
+    expect([...bom.subarray(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
+    expect(bom.includes('\r\n')).toBe(true);
+    expect(parse(bom, { columns: true, bom: true })).toEqual(parse(readFileSync(join(BROKEN, 'minimal', 'stops.txt')), { columns: true }));
+    const padded = parse(await text('padded-values', 'stops.txt'), { columns: true }) as Record<string, string>[];
+    expect(padded.every((r) => r.stop_lat !== r.stop_lat.trim())).toBe(true);
+    expect((parse(await text('missing-column', 'stops.txt'), { to_line: 1 }) as string[][])[0]).not.toContain('stop_lon');
+    expect('error' in (await openZip(join(BROKEN, 'not-a-zip.zip')))).toBe(true);
+    const missing = await openZip(join(BROKEN, 'missing-table.zip'));
+    expect('entries' in missing && missing.entries.map((e) => e.fileName)).not.toContain('stop_times.txt');
     const longLine = (await readEntry(join(tmp, 'large', 'long-line.zip'), 'stops.txt')).toString('utf8').split('\n');
     expect(Math.max(...longLine.map((l) => l.length))).toBeGreaterThan(10 * 1024 * 1024);
   });
