@@ -1,0 +1,47 @@
+// The whole audit as one library call: read the feed, build patterns, optionally read observed data,
+// run the model. Returns the result and the intermediate stages; writes nothing.
+
+import type { OnProgress } from '../common/progress.js';
+import type { Feed } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import type { ObservedData } from '../realtime/types.js';
+import type { AuditResult } from './types.js';
+import { readFeed } from '../gtfs/readFeed.js';
+import { buildPatterns } from '../network/buildPatterns.js';
+import { observeArchive } from '../realtime/calibrate.js';
+import { runAudit } from './runAudit.js';
+import { StopspanError } from '../common/errors.js';
+
+export interface AuditFeedOptions {
+  date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
+  routes?: string[];
+  params?: unknown; // a parameters object (from --params and single options), normalised by the model
+  ridership?: string; // path of a ridership CSV
+  observed?: string; // path of a GTFS-Realtime archive (zip or folder)
+  keep?: string[]; // stop ids the optimiser must keep
+  onProgress?: OnProgress;
+}
+
+export interface AuditFeedOutput {
+  feed: Feed;
+  patterns: PatternSet;
+  observed: ObservedData | null;
+  result: AuditResult;
+}
+
+export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
+  const { date, routes, params, ridership, observed: observedPath, keep, onProgress } = options;
+  if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
+    throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
+  }
+  const feed = await readFeed(source, { date: date ?? 'auto', routes, onProgress });
+  const patterns = buildPatterns(feed, { date: feed.date ?? undefined, routes, onProgress });
+  if (patterns.patterns.length === 0) {
+    throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}${routes?.length ? ' for the routes asked for' : ''}`, {
+      file: 'trips.txt',
+    });
+  }
+  const observed = observedPath ? await observeArchive(observedPath, feed, patterns, { onProgress }) : null;
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress });
+  return { feed, patterns, observed, result };
+}

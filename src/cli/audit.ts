@@ -1,0 +1,122 @@
+// `stopspan audit FEED`: the whole audit, written as reports into a folder.
+
+import type { Command } from 'commander';
+import path from 'node:path';
+import { auditFeed } from '../audit/auditFeed.js';
+import { writeReport } from '../report/writeReport.js';
+import { loadParamsFile, normalizeParams } from '../model/params.js';
+import { StopspanError } from '../common/errors.js';
+import { EXIT, listOption, makeProgress, runAction } from './shared.js';
+import { paramOverrides, addParamOptions } from './paramOptions.js';
+import { auditRunRow, openHistory, recordRun } from '../history/index.js';
+
+const FORMATS = ['html', 'csv', 'geojson', 'json'] as const;
+type Format = (typeof FORMATS)[number];
+
+interface AuditOpts {
+  date?: string;
+  out?: string;
+  routes?: string[];
+  params?: string;
+  ridership?: string;
+  observed?: string;
+  keep?: string[];
+  format?: string[];
+  units: string;
+  force?: boolean;
+  history?: string;
+  quiet?: boolean;
+  verbose?: boolean;
+  [k: string]: unknown;
+}
+
+export function registerAudit(program: Command): void {
+  const cmd = program
+    .command('audit')
+    .description('audit stop spacing on every route pattern of a GTFS feed and write reports')
+    .argument('<feed>', 'GTFS feed: a .zip file, a folder of .txt files, or an http(s) URL')
+    .option('--date <YYYY-MM-DD>', 'analysis date (default: the weekday in the feed with the most trips)')
+    .option('--out <dir>', 'output folder (default: reports/<feed name>)')
+    .option('--routes <ids>', 'only these route_ids (comma-separated)', listOption)
+    .option('--params <file.json>', 'model parameters (every key optional; see README)')
+    .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
+    .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
+    .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
+    .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: all)`, listOption)
+    .option('--units <system>', 'units people read: metric or imperial', 'metric')
+    .option('--force', 'replace the output folder if it exists')
+    .option('--history <file.sqlite>', 'append this run to a history database')
+    .option('-q, --quiet', 'no progress on stderr')
+    .option('--verbose', 'stack traces for internal errors');
+  addParamOptions(cmd);
+  cmd.action(async (feedArg: string, opts: AuditOpts) => {
+    await runAction(Boolean(opts.verbose), async () => {
+      const formats = checkFormats(opts.format);
+      if (opts.units !== 'metric' && opts.units !== 'imperial') {
+        throw new StopspanError('bad-option', 'invalid option --units: expected metric or imperial', { value: opts.units });
+      }
+      const outDir = opts.out ?? path.join('reports', feedName(feedArg));
+      const params = mergeParams(opts.params, paramOverrides(opts));
+      const progress = makeProgress(Boolean(opts.quiet));
+      try {
+        const { result } = await auditFeed(feedArg, {
+          date: opts.date,
+          routes: opts.routes,
+          params,
+          ridership: opts.ridership,
+          observed: opts.observed,
+          keep: opts.keep,
+          onProgress: progress.onProgress,
+        });
+        progress.onProgress?.({ stage: 'writing reports' });
+        const written = await writeReport(result, outDir, { formats, units: opts.units, force: Boolean(opts.force) });
+        if (opts.history) {
+          const db = openHistory(opts.history);
+          try {
+            recordRun(db, auditRunRow(result));
+          } finally {
+            db.close();
+          }
+        }
+        progress.done();
+        const h = result.headline;
+        process.stdout.write(
+          `${result.feed.source} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
+            `modelled optimum ${Math.round(h.meanOptimalSpacingM)} m (${result.demandSource} demand)\n` +
+            `${h.closeStops} close stops, ${h.wideGaps} wide gaps, ${Math.round(h.paxMinLostPerDay).toLocaleString('en')} passenger-minutes a day lost to today's spacing\n` +
+            `wrote ${written.length} files to ${outDir}${path.sep}\n`,
+        );
+      } finally {
+        progress.done();
+      }
+      return EXIT.clean;
+    });
+  });
+}
+
+/** Parameters from a --params file, then single options on top; validated once by the model. */
+export function mergeParams(file: string | undefined, overrides: Record<string, unknown>): unknown {
+  const raw: Record<string, unknown> = {};
+  if (file) {
+    const np = loadParamsFile(file);
+    for (const k of np.given) raw[k] = np.values[k];
+  }
+  return normalizeParams({ ...raw, ...overrides }, { file });
+}
+
+function checkFormats(list: string[] | undefined): Format[] {
+  if (!list || list.length === 0) return [...FORMATS];
+  for (const f of list) {
+    if (!(FORMATS as readonly string[]).includes(f)) {
+      throw new StopspanError('bad-option', `invalid option --format: expected some of ${FORMATS.join(', ')}`, { value: f });
+    }
+  }
+  return list as Format[];
+}
+
+/** A folder name from the feed argument: its base name without extension, made safe. */
+export function feedName(feedArg: string): string {
+  const base = feedArg.replace(/[?#].*$/, '').replace(/[/\\]+$/, '').split(/[/\\]/).pop() ?? 'feed';
+  const name = base.replace(/\.zip$/i, '').replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^[.]+/, '');
+  return name || 'feed';
+}
