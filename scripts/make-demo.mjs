@@ -366,7 +366,7 @@ function buildFeed({ next }) {
         offsets.push(offsets[i - 1] + gap / route.cruiseMps + route.cruiseMps / 1.2 + dwellS);
       }
 
-      const headsign = dir === 0 ? roadStops[roadStops.length - 1].name : roadStops[0].name;
+      const headsign = route.loop ? `${route.long}` : dir === 0 ? roadStops[roadStops.length - 1].name : roadStops[0].name;
       const services = route.services ?? ['WKDY', 'SAT', 'SUN'];
       let tripsOnWeekday = 0;
       for (const svc of services) {
