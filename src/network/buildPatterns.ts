@@ -12,12 +12,12 @@ import { haversineM } from './geodesy.js';
 import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
 import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
 import { simplifyPath } from './simplifyPath.js';
-import { tripsOnDate, type TripInstances } from './tripsOnDate.js';
+import { tripInstancesOnDate, type TripRuns as TripInstances } from '../gtfs/frequencies.js';
 
 export interface BuildPatternsOptions {
   /** Analysis date YYYY-MM-DD; defaults to feed.date. */
   date?: string;
-  /** Only these route_ids. */
+  /** Only these routes (route_id, or route_short_name when no route has that id). */
   routes?: string[];
   onProgress?: OnProgress;
   warnings?: WarningSink;
@@ -46,14 +46,20 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   }
   let routeSet: Set<string> | null = null;
   if (routes !== undefined) {
-    routeSet = new Set(routes);
-    for (const r of routeSet) {
-      if (!feed.routes.has(r)) throw new StopspanError('bad-option', `invalid option routes: expected route_ids of the feed, got ${r}`, { value: r });
+    routeSet = new Set();
+    for (const r of routes) {
+      if (feed.routes.has(r)) {
+        routeSet.add(r);
+        continue;
+      }
+      const byName = [...feed.routes.values()].filter((x) => x.shortName === r);
+      if (byName.length === 0) throw new StopspanError('bad-option', `invalid option routes: expected route_ids or route_short_names of the feed, got ${r}`, { value: r });
+      for (const x of byName) routeSet.add(x.id);
     }
   }
   if (!(pathToleranceM >= 0)) throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);
 
-  const instances = tripsOnDate(feed, date);
+  const instances = tripInstancesOnDate(feed, date);
 
   // 1. Group trips by (route, direction, ordered stop list).
   const groups = new Map<string, Group>();

@@ -4,5 +4,4 @@ export * from './geodesy.js';
 export * from './alongShape.js';
 export * from './shapeDistUnit.js';
 export * from './simplifyPath.js';
-export * from './tripsOnDate.js';
 export * from './buildPatterns.js';
