@@ -1,7 +1,7 @@
 // Each pattern's demand: boardings and alightings per day at its (passenger) stops, the load on board
 // departing each stop, and the mean in-vehicle trip length. From a ridership file, or assumed: origins
-// and destinations uniform along the pattern with origin before destination, so boardings per metre fall
-// linearly from the start, alightings rise linearly, the load is R*y*(D-y)*2/D^2 and the mean trip is D/3.
+// and destinations uniform along the pattern with origin before destination (boardings per metre fall
+// linearly from the start, alightings rise linearly, the mean trip is a third of the length).
 
 import type { WarningSink } from '../common/warnings.js';
 import type { DemandSource } from '../audit/types.js';
@@ -18,25 +18,32 @@ export interface PatternDemand {
   demandSource: DemandSource;
 }
 
-/** Assumed uniform demand on a pattern whose model stops sit at `posM` (first at 0 or above). */
+/**
+ * Assumed uniform demand on a pattern whose model stops sit at `posM`. Trip ends are uniform along the
+ * line and origins precede destinations; discretised to stops, riders from stop i to stop j > i number in
+ * proportion to the two catchment lengths, so a stop's boardings and alightings are always consistent
+ * (nobody alights before boarding, the load never goes negative). Mean trip length reported as D/3.
+ */
 export function assumedDemand(patternId: string, posM: number[], tripsPerDay: number, { boardingsPerTripKm }: { boardingsPerTripKm: number }): PatternDemand {
   const n = posM.length;
-  const start = posM[0];
-  const D = posM[n - 1] - start;
+  const D = posM[n - 1] - posM[0];
   const riders = boardingsPerTripKm * (D / 1000) * tripsPerDay;
-  const boardPerDay: number[] = new Array(n).fill(0);
+  const len = posM.map((x, j) => (j === n - 1 ? x : (x + posM[j + 1]) / 2) - (j === 0 ? x : (posM[j - 1] + x) / 2));
+  const after: number[] = new Array(n).fill(0); // catchment length of the stops after j
+  for (let j = n - 2; j >= 0; j--) after[j] = after[j + 1] + len[j + 1];
+  let pairs = 0;
+  for (let j = 0; j < n; j++) pairs += len[j] * after[j];
+  const c = pairs > 0 ? riders / pairs : 0;
+  const boardPerDay = len.map((l, j) => c * l * after[j]);
   const alightPerDay: number[] = new Array(n).fill(0);
-  if (D > 0) {
-    const Fb = (y: number) => (2 * D * y - y * y) / (D * D); // share of boardings before y
-    const Fa = (y: number) => (y * y) / (D * D); // share of alightings before y
-    for (let j = 0; j < n; j++) {
-      const lo = j === 0 ? 0 : (posM[j - 1] + posM[j]) / 2 - start;
-      const hi = j === n - 1 ? D : (posM[j] + posM[j + 1]) / 2 - start;
-      boardPerDay[j] = riders * (Fb(hi) - Fb(lo));
-      alightPerDay[j] = riders * (Fa(hi) - Fa(lo));
-    }
+  let before = 0;
+  for (let j = 0; j < n; j++) {
+    alightPerDay[j] = c * len[j] * before;
+    before += len[j];
   }
-  return finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', D / 3);
+  const out = finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', D / 3);
+  out.meanTripLengthM = D / 3;
+  return out;
 }
 
 /**
