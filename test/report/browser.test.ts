@@ -147,7 +147,7 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
       onerror: document.querySelectorAll('[onerror]').length,
       scripts: document.querySelectorAll('script').length,
       italics: document.querySelectorAll('i, b').length,
-      titles: [...document.querySelectorAll('svg title')].map((t) => t.textContent ?? ''),
+      titles: Array.from(document.querySelectorAll('svg title')).map((t) => t.textContent ?? ''),
       text: document.body.innerText,
       docTitle: document.title,
     }));
