@@ -73,6 +73,8 @@ export class CsvCore {
   private soloQuoted = false; // the record just parsed is one quoted field
   paddedValues = 0;
   readonly paddedExamples: Array<{ line: number; field: number }> = [];
+  /** Column names for error messages, once the header is known. */
+  names: string[] | null = null;
 
   constructor(
     private readonly file: string,
@@ -87,7 +89,12 @@ export class CsvCore {
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
     }
     const nul = text.indexOf('\0');
-    if (nul >= 0) this.failNul(text, nul);
+    if (nul >= 0) {
+      // parse the lines before it first, so the header (for the column name) and line count are known
+      const lineStart = text.lastIndexOf('\n', nul) + 1;
+      if (lineStart > 0) this.push(text.slice(0, lineStart));
+      this.failNul(text.slice(lineStart), nul - lineStart);
+    }
     const buf = this.rest.length > 0 ? this.rest + text : text;
     const used = this.scan(buf, false);
     this.rest = used >= buf.length ? '' : buf.slice(used);
@@ -99,11 +106,24 @@ export class CsvCore {
     this.rest = '';
   }
 
+  private columnName(i: number): string {
+    return this.names?.[i] ?? String(i + 1);
+  }
+
   private failNul(text: string, at: number): never {
+    const buf = this.rest + text;
+    const pos = this.rest.length + at;
     let line = this.line;
-    for (let p = this.rest.indexOf('\n'); p >= 0; p = this.rest.indexOf('\n', p + 1)) line++;
-    for (let p = text.indexOf('\n'); p >= 0 && p < at; p = text.indexOf('\n', p + 1)) line++;
-    throw new StopspanError('csv-syntax', 'NUL byte in the CSV text: not a text table', { file: this.file, line, value: '\0' });
+    for (let p = buf.indexOf('\n'); p >= 0 && p < pos; p = buf.indexOf('\n', p + 1)) line++;
+    // the field: commas outside quotes between the start of the physical line and the NUL
+    let field = 0;
+    let inQuotes = false;
+    for (let p = buf.lastIndexOf('\n', pos) + 1; p < pos; p++) {
+      const c = buf.charCodeAt(p);
+      if (c === QUOTE) inQuotes = !inQuotes;
+      else if (c === COMMA && !inQuotes) field++;
+    }
+    throw new StopspanError('csv-syntax', 'NUL byte in the CSV text', { file: this.file, line, column: this.columnName(field), value: '\0' });
   }
 
   private failTooLong(line: number): never {
@@ -234,7 +254,7 @@ export class CsvCore {
           const q = buf.indexOf('"', k);
           if (q < 0) {
             if (!final) return -1;
-            throw new StopspanError('csv-syntax', 'unterminated quoted field', { file: this.file, line: this.line, column: String(nf + 1) });
+            throw new StopspanError('csv-syntax', 'unterminated quoted field', { file: this.file, line: this.line, column: this.columnName(nf) });
           }
           if (q + 1 >= n && !final) return -1;
           if (q + 1 < n && buf.charCodeAt(q + 1) === QUOTE) {
@@ -258,7 +278,7 @@ export class CsvCore {
           throw new StopspanError('csv-syntax', 'unexpected character after a closing quote', {
             file: this.file,
             line: this.line + lines,
-            column: String(nf + 1),
+            column: this.columnName(nf),
             value: buf.slice(i, i + 10),
           });
         }
@@ -342,6 +362,7 @@ export function parseCsv(
       if (header === null) {
         header = row.toArray();
         checkHeader(header, file);
+        core.names = header;
         return;
       }
       countWidth(row, header.length, stats);
@@ -368,7 +389,7 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
   else if (row.count > width) stats.longRows++;
 }
 
-function reportStats(warnings: WarningSink, file: string, header: string[], core: CsvCore, stats: CsvStats): void {
+function reportStats(warnings: WarningSink, file: string, header: string[], core: CsvCore, stats: CsvStats, replacedAt: string[] = []): void {
   stats.paddedValues = core.paddedValues;
   if (core.paddedValues > 0) {
     const msg = 'values padded with spaces were trimmed';
@@ -378,7 +399,11 @@ function reportStats(warnings: WarningSink, file: string, header: string[], core
   }
   if (stats.shortRows > 0) warnings.add('short-rows', 'rows with fewer fields than the header (missing fields read as blank)', file, stats.shortRows);
   if (stats.longRows > 0) warnings.add('long-rows', 'rows with more fields than the header (extra fields ignored)', file, stats.longRows);
-  if (stats.invalidUtf8 > 0) warnings.add('invalid-utf8', 'invalid UTF-8 byte sequences were replaced with U+FFFD', file, stats.invalidUtf8);
+  if (stats.invalidUtf8 > 0) {
+    const msg = 'invalid UTF-8 byte sequences were replaced with U+FFFD';
+    warnings.add('invalid-utf8', msg, replacedAt[0] ?? file, stats.invalidUtf8);
+    for (const e of replacedAt.slice(1)) warnings.add('invalid-utf8', msg, e, 0);
+  }
 }
 
 export interface ReadCsvOptions {
@@ -407,16 +432,33 @@ export async function readCsv(
       if (header === null) {
         header = row.toArray();
         checkHeader(header, file);
+        core.names = header;
         width = header.length;
         onHeader(header);
         return;
       }
       stats.records++;
       if (row.count !== width) countWidth(row, width, stats);
+      if (checkReplaced) noteReplaced(row);
       onRow(row);
     },
     maxRecordChars,
   );
+  // after a chunk with invalid UTF-8, look for the replacement characters to name where they are
+  let checkReplaced = false;
+  const replacedAt: string[] = [];
+  const noteReplaced = (row: CsvRow): void => {
+    for (let k = 0; k < row.count && replacedAt.length < 5; k++) {
+      if (row.get(k).includes('\ufffd')) replacedAt.push(`${file}:${row.line} column ${header?.[k] ?? k + 1}`);
+    }
+  };
+  const pushBytes = (b: Buffer): void => {
+    const before = stats.invalidUtf8;
+    const text = decode(b, stats);
+    checkReplaced = stats.invalidUtf8 > before;
+    core.push(text);
+    checkReplaced = false;
+  };
   let carry: Buffer | null = null;
   let sinceReport = 0;
   for await (const chunk of stream) {
@@ -436,18 +478,20 @@ export async function readCsv(
       carry = Buffer.from(bytes.subarray(cut));
       bytes = bytes.subarray(0, cut);
     }
-    core.push(decode(bytes, stats));
+    pushBytes(bytes);
     if (onBytes && sinceReport >= 4 << 20) {
       sinceReport = 0;
       onBytes(stats.bytes);
     }
   }
-  if (carry) core.push(decode(carry, stats));
+  if (carry) pushBytes(carry);
+  checkReplaced = stats.invalidUtf8 > 0;
   core.end();
   if (onBytes) onBytes(stats.bytes);
   if (header === null) onHeader([]);
-  if (warnings) reportStats(warnings, file, header ?? [], core, stats);
-  else stats.paddedValues = core.paddedValues;
+  if (warnings) {
+    reportStats(warnings, file, header ?? [], core, stats, replacedAt);
+  } else stats.paddedValues = core.paddedValues;
   return stats;
 }
 

@@ -67,6 +67,12 @@ async function table<R extends string, O extends string>(
 ): Promise<void> {
   let col = {} as Columns<R, O>;
   const total = ctx.archive.size(file);
+  if (total === 0 && !REQUIRED_TABLES.includes(file)) {
+    // an optional table of zero bytes reads as absent
+    ctx.warnings.add('empty-table', 'optional tables of zero bytes were read as absent', file);
+    ctx.rowCounts[file] = 0;
+    return;
+  }
   const stage = `read ${file}`;
   ctx.onProgress?.({ stage, done: 0, total, unit: 'bytes' });
   const stream = await ctx.archive.open(file);
@@ -208,6 +214,10 @@ async function readArchive(
   await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c) => {
     const id = need('stops.txt', row, c.stop_id, 'stop_id');
     const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
+    if (locationType <= 2 && (c.stop_lat < 0 || c.stop_lon < 0)) {
+      const column = c.stop_lat < 0 ? 'stop_lat' : 'stop_lon';
+      throw new StopspanError('missing-column', `required column ${column} is missing (stops need coordinates)`, { file: 'stops.txt', line: 1, column });
+    }
     const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
     const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
     // [GTFS Schedule reference: stop_lat/stop_lon required for location_type 0, 1 and 2]
@@ -263,7 +273,9 @@ async function readArchive(
     const directionId = intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1);
     allTrips.set(id, { id, routeId, serviceId: row.get(c.service_id), directionId, headsign: row.get(c.trip_headsign), shapeId: row.get(c.shape_id) });
   });
-  void unknownRoute;
+  if (allTrips.size === 0 && unknownRoute > 0) {
+    throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });
+  }
 
   // frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based]
   const frequencies: Frequency[] = [];
