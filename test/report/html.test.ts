@@ -1,0 +1,101 @@
+// index.html as text (the browser test covers behaviour): feed text escaped for element and attribute
+// contexts, the data block cannot close its script, nothing refers to the network, the cautions and
+// the assumed-demand labels are present, imperial units, and the histogram counts every gap.
+
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { CAUTIONS } from '../../src/report/cautions.js';
+import { escapeHtml, jsonForScript } from '../../src/report/html/escape.js';
+import { histogramSvg } from '../../src/report/html/histogramSvg.js';
+import { indexHtml } from '../../src/report/html/indexHtml.js';
+import { HOSTILE_NAMES, makeSampleResult } from './sampleResult.js';
+
+const sample = makeSampleResult();
+const html = indexHtml(sample);
+const dataStart = html.indexOf('<script type="application/json" id="report-data">');
+const markupOnly = html.slice(0, dataStart); // everything rendered on the server side
+
+describe('escaping', () => {
+  it('escapes the five characters HTML gives meaning to, for text and quoted attributes', () => {
+    // HTML Living Standard, "serializing HTML fragments" escapes & < > in text and " in attributes [M, from memory];
+    // ' is escaped as well so single-quoted attributes are safe too
+    expect(escapeHtml(`<img src=x onerror="a('1')">&`)).toBe('&lt;img src=x onerror=&quot;a(&#39;1&#39;)&quot;&gt;&amp;');
+    fc.assert(
+      fc.property(fc.string({ unit: 'grapheme' }), (s) => {
+        const e = escapeHtml(s);
+        expect(e).not.toMatch(/[<>"']/);
+        // decoding the five entities gives the text back
+        expect(e.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&')).toBe(s);
+      }),
+    );
+  });
+
+  it('embeds JSON that no "</script>" or "<!--" can break, and that parses back unchanged', () => {
+    fc.assert(
+      fc.property(fc.jsonValue(), fc.string(), (v, s) => {
+        const text = jsonForScript({ v, s: s + '</script><!--' });
+        expect(text).not.toMatch(/</);
+        expect(JSON.parse(text)).toEqual(JSON.parse(JSON.stringify({ v, s: s + '</script><!--' })));
+      }),
+    );
+  });
+});
+
+describe('index.html', () => {
+  it('holds feed text only escaped outside the data block', () => {
+    expect(markupOnly).not.toContain(HOSTILE_NAMES.img);
+    expect(markupOnly).toContain(escapeHtml(HOSTILE_NAMES.img)); // the top candidate in the headline
+    expect(markupOnly).toContain('Vellmoor Transit &amp; &quot;Ferries&quot;');
+    expect(markupOnly).toContain('2026-11 &lt;draft&gt;');
+    expect(markupOnly).not.toMatch(/<img|onerror=alert\(3\)>|<i>Express/);
+    expect(html.match(/<script/g)?.length).toBe(2);
+    expect(html.match(/<\/script/g)?.length).toBe(2);
+    // the parameter note appears in a title attribute's neighbour cell, escaped
+    expect(markupOnly).toContain('P = 1 - exp(-λ) &lt;Poisson&gt;');
+  });
+
+  it('refers to nothing on the network: no src, href, url() or @import to another origin', () => {
+    expect(html).not.toMatch(/\s(src|href|action|poster)\s*=\s*["']?\s*(https?:)?\/\//i);
+    expect(html).not.toMatch(/url\(|@import|<link|<iframe|<object|<embed/i);
+    expect(html).toContain("default-src 'none'"); // the page's own policy forbids fetching anything
+  });
+
+  it('shows the cautions and labels figures from assumed demand', () => {
+    for (const c of CAUTIONS) expect(markupOnly).toContain(escapeHtml(c));
+    expect(markupOnly).toMatch(/field review of the walk \(crossings, sidewalks, grades, lighting\)/);
+    expect(markupOnly).toMatch(/ADA/);
+    expect(markupOnly).toMatch(/Title VI/);
+    expect(markupOnly).toMatch(/Passenger-minutes lost per day<\/div><div class="v">[\d,]+<\/div><div class="s">[^<]*<span class="badge assumed">assumed<\/span>/);
+    expect(markupOnly).toContain('net passenger-min/day (assumed)');
+    const observed = indexHtml({ ...sample, demandSource: 'observed' });
+    expect(observed).not.toContain('net passenger-min/day (assumed)');
+    expect(observed).toContain('observed demand');
+  });
+
+  it('shows feet for people with units imperial, metres otherwise', () => {
+    const imp = indexHtml(sample, { units: 'imperial' });
+    const head = (s: string): string => s.slice(s.indexOf('id="headline"'), s.indexOf('id="cautions"'));
+    expect(head(imp)).toMatch(/<div class="v">[\d,]+ ft<\/div>/);
+    expect(head(imp)).not.toMatch(/\d m\b/);
+    expect(head(html)).toMatch(/<div class="v">[\d,]+ m<\/div>/);
+    expect(imp).toContain('"units":"imperial"');
+  });
+
+  it('draws a histogram whose bars count every gap, with the band', () => {
+    const gapsM = [50, 120, 180, 240, 260, 310, 420, 990, 2500, 5000];
+    const svg = histogramSvg({ gapsM, bandLowM: 200, bandHighM: 380, optimalM: 270, medianGapM: 285 }, 'metric');
+    const counts = [...svg.matchAll(/: (\d+) gaps<\/title>/g)].map((m) => Number(m[1]));
+    expect(counts.reduce((a, b) => a + b, 0)).toBe(gapsM.length);
+    expect(svg).toContain('near-optimal band 200 m to 380 m');
+    expect(svg.match(/class="bar close"/g)?.length).toBe(3); // bins 50-100, 100-150, 150-200: all below 200 m
+    expect(svg).toContain('or more: 2 gaps'); // the overflow bar holds 2 500 and 5 000 m
+  });
+
+  it('stays a few MB for a large network (160 patterns, 3 000+ stop rows)', () => {
+    const big = makeSampleResult({ patterns: 160, stopsPerPattern: 22 });
+    expect(big.stops.length).toBeGreaterThan(3000);
+    const text = indexHtml(big);
+    expect(Buffer.byteLength(text)).toBeLessThan(4 * 1024 * 1024);
+    expect(text.match(/<details/g)).toBeNull(); // per-pattern sections are built by the script when the page opens
+  });
+});
