@@ -1,0 +1,179 @@
+// compareFeeds on the real Manhattan bus feed against a copy altered here (three stops removed from
+// stops.txt and stop_times.txt, one moved 50 m, one renamed): it reports exactly those changes.
+import { describe, expect, it } from 'vitest';
+import { existsSync, mkdtempSync, rmSync, createWriteStream } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import yauzl from 'yauzl';
+import yazl from 'yazl';
+import { parse } from 'csv-parse/sync';
+import geodesicPkg from 'geographiclib-geodesic';
+import * as gtfs from '../../src/gtfs/index.js';
+import { buildPatterns } from '../../src/network/index.js';
+import { compareFeeds } from '../../src/audit/compare.js';
+import { checkFeed } from '../../src/audit/check.js';
+import type { Feed } from '../../src/gtfs/types.js';
+
+const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
+const BUS = join(FEEDS, 'nyct-bus-manhattan.zip');
+const SUBWAY = join(FEEDS, 'nyct-subway.zip');
+const readFeed = (gtfs as Record<string, unknown>).readFeed as ((s: string, o: { date: string }) => Promise<Feed>) | undefined;
+const DATE = '2026-10-14'; // the date of the feeds' README facts, a Wednesday
+const Geodesic = (geodesicPkg as any).Geodesic;
+
+function readZip(path: string): Promise<Map<string, Buffer>> {
+  return new Promise((ok, fail) => {
+    yauzl.open(path, { lazyEntries: true }, (err, zip) => {
+      if (err || !zip) return fail(err);
+      const out = new Map<string, Buffer>();
+      zip.on('entry', (e: yauzl.Entry) => {
+        zip.openReadStream(e, (err2, s) => {
+          if (err2 || !s) return fail(err2);
+          const parts: Buffer[] = [];
+          s.on('data', (d: Buffer) => parts.push(d));
+          s.on('end', () => {
+            out.set(e.fileName, Buffer.concat(parts));
+            zip.readEntry();
+          });
+        });
+      });
+      zip.on('end', () => ok(out));
+      zip.on('error', fail);
+      zip.readEntry();
+    });
+  });
+}
+
+function writeZip(path: string, files: Map<string, Buffer>): Promise<void> {
+  return new Promise((ok, fail) => {
+    const z = new yazl.ZipFile();
+    for (const [name, buf] of files) z.addBuffer(buf, name);
+    z.end();
+    const ws = createWriteStream(path);
+    z.outputStream.pipe(ws).on('close', () => ok()).on('error', fail);
+  });
+}
+
+describe.skipIf(!readFeed || !existsSync(BUS))('compare on the Manhattan bus feed', () => {
+  it('reports exactly three stops removed, one moved 50 m and one renamed', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-compare-'));
+    try {
+      const oldFeed = await readFeed!(BUS, { date: 'all' });
+      const oldPatterns = buildPatterns(oldFeed, { date: DATE });
+      // the feeds' README: 151 patterns on 2026-10-14 [real feed fact]
+      expect(oldPatterns.patterns.length).toBe(151);
+
+      // pick interior stops of three different patterns to remove, a fourth to move and a fifth to rename
+      const used = new Set<string>();
+      const pick = (p: number) => {
+        const ids = oldPatterns.patterns[p].stopIdx.map((i) => oldFeed.stops[i].id);
+        const id = ids.slice(2, -2).find((x) => !used.has(x))!;
+        used.add(id);
+        return id;
+      };
+      const removedIds = [pick(0), pick(10), pick(20)].sort();
+      const movedId = pick(30);
+      const renamedId = pick(40);
+
+      const files = await readZip(BUS);
+      const stopsText = files.get('stops.txt')!.toString('utf8');
+      const timesText = files.get('stop_times.txt')!.toString('utf8');
+      expect(stopsText.includes('"') || timesText.includes('"')).toBe(false); // so lines can be split on commas
+      // csv-parse as the independent reading of stops.txt
+      const rows: string[][] = parse(stopsText, { relax_column_count: false });
+      const header = rows[0];
+      const iId = header.indexOf('stop_id');
+      const iName = header.indexOf('stop_name');
+      const iLat = header.indexOf('stop_lat');
+      const iLon = header.indexOf('stop_lon');
+      const lines = stopsText.split('\n');
+      let moveFrom: [number, number] = [0, 0];
+      let moveTo: [number, number] = [0, 0];
+      const outLines = lines.filter((line, k) => {
+        if (k === 0 || line === '') return true;
+        const cells = line.split(',');
+        return !removedIds.includes(cells[iId]);
+      }).map((line, k) => {
+        if (k === 0 || line === '') return line;
+        const cells = line.split(',');
+        if (cells[iId] === movedId) {
+          const lat = Number(cells[iLat]);
+          const lon = Number(cells[iLon]);
+          // the point 50 m due north on the WGS84 ellipsoid (geographiclib Direct) [C]
+          const d = Geodesic.WGS84.Direct(lat, lon, 0, 50);
+          moveFrom = [lat, lon];
+          moveTo = [d.lat2, d.lon2];
+          cells[iLat] = d.lat2.toFixed(7);
+          cells[iLon] = d.lon2.toFixed(7);
+        }
+        if (cells[iId] === renamedId) cells[iName] = 'VELLMOOR TEST NAME';
+        return cells.join(',');
+      });
+      expect(rows.length - 1 - 3).toBe(outLines.filter((l, k) => k > 0 && l !== '').length);
+      const tLines = timesText.split('\n');
+      const iStop = tLines[0].split(',').indexOf('stop_id');
+      const keptTimes = tLines.filter((l, k) => k === 0 || l === '' || !removedIds.includes(l.split(',')[iStop]));
+      expect(tLines.length - keptTimes.length).toBeGreaterThan(0);
+      files.set('stops.txt', Buffer.from(outLines.join('\n')));
+      files.set('stop_times.txt', Buffer.from(keptTimes.join('\n')));
+      const altered = join(dir, 'altered.zip');
+      await writeZip(altered, files);
+
+      const newFeed = await readFeed!(altered, { date: 'all' });
+      const newPatterns = buildPatterns(newFeed, { date: DATE });
+      const c = compareFeeds(oldFeed, newFeed, oldPatterns, newPatterns, { moveThresholdM: 10 });
+
+      expect(c.stops.removed.map((s) => s.stopId)).toEqual(removedIds);
+      expect(c.stops.added).toEqual([]);
+      expect(c.stops.moved.map((s) => s.stopId)).toEqual([movedId]);
+      // the move measured here agrees with geographiclib's 50 m within 0.5 % [C]
+      const g = Geodesic.WGS84.Inverse(moveFrom[0], moveFrom[1], moveTo[0], moveTo[1]).s12;
+      expect(Math.abs(g - 50)).toBeLessThan(0.01);
+      expect(Math.abs(c.stops.moved[0].movedM - 50) / 50).toBeLessThan(0.005);
+      expect(c.stops.renamed).toEqual([{ stopId: renamedId, oldName: oldFeed.stops[oldFeed.stopIndex.get(renamedId)!].name, newName: 'VELLMOOR TEST NAME' }]);
+
+      // patterns: exactly those serving a removed stop changed, each dropping only removed stops
+      const idsOf = (p: { stopIdx: number[] }) => p.stopIdx.map((i) => oldFeed.stops[i].id);
+      const touched = oldPatterns.patterns.filter((p) => idsOf(p).some((x) => removedIds.includes(x))).map((p) => p.id).sort();
+      expect(touched.length).toBeGreaterThanOrEqual(3);
+      expect(c.patterns.changed.map((x) => x.oldPatternId).sort()).toEqual(touched);
+      for (const ch of c.patterns.changed) {
+        expect(ch.inserted).toEqual([]);
+        expect(ch.dropped.length).toBeGreaterThan(0);
+        expect(ch.dropped.every((x) => removedIds.includes(x))).toBe(true);
+      }
+      expect(new Set(c.patterns.changed.flatMap((x) => x.dropped))).toEqual(new Set(removedIds));
+      expect(c.patterns.added).toEqual([]);
+      expect(c.patterns.removed).toEqual([]);
+      expect(c.patterns.unchanged + touched.length).toBe(151);
+
+      // spacing before: the README's median gap along the shape, 222.3 m [real feed fact], within 1 %
+      expect(Math.abs(c.spacing.before.medianGapM! - 222.3) / 222.3).toBeLessThan(0.01);
+      expect(c.spacing.before.stopsServed).toBe(1822); // README: 1 822 stops served [real feed fact]
+      expect(c.spacing.after.stopsServed).toBe(1822 - 3);
+      // three of thousands of gaps merge: the median barely moves (it may move either way) [D]
+      expect(Math.abs(c.spacing.after.medianGapM! - c.spacing.before.medianGapM!) / c.spacing.before.medianGapM!).toBeLessThan(0.01);
+      expect(c.spacing.after.patterns).toBe(151);
+
+      // and the real feed's service end as documented in the feeds' README: 2027-01-02 [real feed fact]
+      const report = checkFeed(oldFeed, oldPatterns, { today: DATE });
+      expect(report.serviceEnd).toBe('2027-01-02');
+      expect(report.counts['service-ending-soon']).toBe(0);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  }, 240_000);
+});
+
+describe.skipIf(!readFeed || !existsSync(SUBWAY))('check on the subway feed', () => {
+  it('sees the service end documented for the feed, and flags it within a week of it', async () => {
+    const feed = await readFeed!(SUBWAY, { date: 'all' });
+    const patterns = buildPatterns(feed, { date: DATE });
+    // the feeds' README: subway service runs to 2026-10-31 [real feed fact]
+    expect(checkFeed(feed, patterns, { today: DATE }).serviceEnd).toBe('2026-10-31');
+    expect(checkFeed(feed, patterns, { today: DATE }).counts['service-ending-soon']).toBe(0);
+    // GTFS Schedule best practices: valid for at least the next 7 days [C]
+    expect(checkFeed(feed, patterns, { today: '2026-10-28' }).counts['service-ending-soon']).toBe(1);
+    expect(checkFeed(feed, patterns, { today: '2026-10-24' }).counts['service-ending-soon']).toBe(0);
+  }, 120_000);
+});
