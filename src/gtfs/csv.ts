@@ -420,7 +420,7 @@ export interface ReadCsvOptions {
 
 /** Streams a CSV table from bytes (a Readable or any async iterable of Buffers or strings). */
 export async function readCsv(
-  stream: AsyncIterable<Buffer | Uint8Array | string>,
+  stream: AsyncIterable<Buffer | Uint8Array | string> | Iterable<Buffer | Uint8Array | string>,
   { file, onHeader, onRow, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onBytes }: ReadCsvOptions,
 ): Promise<CsvStats> {
   let header: string[] | null = null;

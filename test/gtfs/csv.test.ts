@@ -1,0 +1,281 @@
+// The CSV reader against csv-parse (the reference reader), record for record: hand-made edge cases, text
+// split into chunks at every possible boundary, random tables, and every table of the real feeds. Then
+// the strict cases: each error pins its code and where it points (file, line, column).
+
+import { createHash } from 'node:crypto';
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { parse } from 'csv-parse/sync';
+import { parse as parseStream } from 'csv-parse';
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { StopspanError } from '../../src/common/errors.js';
+import { WarningSink } from '../../src/common/warnings.js';
+import { openFeed } from '../../src/gtfs/archive.js';
+import { parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
+
+// csv-parse options that state the same rules: BOM dropped, values trimmed outside quotes, blank lines
+// skipped, ragged rows allowed (our reader pads or ignores them and counts it)
+const ORACLE = { bom: true, trim: true, skip_empty_lines: true, relax_column_count: true } as const;
+
+function oracle(text: string): string[][] {
+  return parse(text, ORACLE) as string[][];
+}
+
+/** All records (header included) as our streaming reader sees them, text fed in the given pieces. */
+async function ours(pieces: Array<string | Buffer>, file = 't.csv'): Promise<{ records: string[][]; lines: number[] }> {
+  const records: string[][] = [];
+  const lines: number[] = [];
+  await readCsv(
+    (async function* () {
+      yield* pieces.map((p) => (typeof p === 'string' ? Buffer.from(p, 'utf8') : p));
+    })(),
+    {
+      file,
+      onHeader: (h) => {
+        if (h.length > 0) {
+          records.push(h);
+          lines.push(1);
+        }
+      },
+      onRow: (row: CsvRow) => {
+        records.push(row.toArray());
+        lines.push(row.line);
+      },
+    },
+  );
+  return { records, lines };
+}
+
+function thrown(f: () => unknown): StopspanError {
+  try {
+    f();
+  } catch (e) {
+    if (e instanceof StopspanError) return e;
+    throw e;
+  }
+  throw new Error('expected a StopspanError');
+}
+
+async function rejected(p: Promise<unknown>): Promise<StopspanError> {
+  try {
+    await p;
+  } catch (e) {
+    if (e instanceof StopspanError) return e;
+    throw e;
+  }
+  throw new Error('expected a StopspanError');
+}
+
+const CASES: Record<string, string> = {
+  'quoted commas': 'a,b,c\n1,"x,y",3\n',
+  'doubled quotes': 'a,b\n"say ""hi""",2\n"""",""\n',
+  'newlines inside quotes': 'a,b\n"line one\nline two",2\n"cr\r\nlf",3\n',
+  'BOM and CRLF': '\ufeffstop_id,stop_name\r\nS1,Harbour Gate\r\nS2,Mill Lane\r\n',
+  'padded values': 'stop_id,stop_lat,stop_lon\nS1,  40.712800 , -74.006000  \nS2,\t40.7,-74.0\t\n',
+  'padding around quotes': 'a,b\n  "x" ,y\n',
+  'missing optional columns and short rows': 'trip_id,stop_id,stop_sequence,timepoint\nT1,S1,1\nT1,S2,2,1\n',
+  'extra columns': 'a,b\n1,2,3,4\n5,6\n',
+  'blank trailing lines': 'a,b\n1,2\n\n\n\r\n',
+  'no final line break': 'a,b\n1,2',
+  'empty fields': 'a,b,c\n,,\n1,,3\n',
+  'unicode': 'stop_id,stop_name\nV1,Vellmoor Strandpromenade – Süd\nV2,"Café ""Am Tor"""\nV3,東口\n',
+  'CR only line breaks': 'a,b\r1,2\r3,4\r',
+};
+
+describe('the CSV reader agrees with csv-parse', () => {
+  for (const [name, text] of Object.entries(CASES)) {
+    it(`on ${name}`, async () => {
+      const want = oracle(text);
+      const got = await ours([text]);
+      expect(got.records).toEqual(want);
+      // parseCsv uses the same code: same header, rows cut or padded to the header's width
+      const sync = parseCsv(text, { file: 't.csv' });
+      expect(sync.header).toEqual(want[0]);
+      expect(sync.rows).toEqual(want.slice(1).map((r) => Array.from({ length: want[0].length }, (_, k) => r[k] ?? '')));
+    });
+  }
+
+  it('wherever the text is split into chunks, even inside a UTF-8 sequence or a CRLF', async () => {
+    const text = CASES['unicode'] + '"q\r\nq",x\r\n' + CASES['doubled quotes'].slice(4);
+    const bytes = Buffer.from(text, 'utf8');
+    const want = oracle(text);
+    for (let cut = 1; cut < bytes.length; cut++) {
+      const got = await ours([bytes.subarray(0, cut), bytes.subarray(cut)]);
+      expect(got.records, `cut at byte ${cut}`).toEqual(want);
+    }
+  });
+
+  it('on random tables with quotes, commas, line breaks and padding, in random chunks', async () => {
+    const cell = fc.oneof(
+      fc.stringMatching(/^[a-z0-9 .:_-]{0,8}$/).map((s) => s.trim()),
+      fc.stringMatching(/^[a-z,"\n\r ]{0,8}$/).map((s) => `"${s.replace(/"/g, '""')}"`),
+      fc.stringMatching(/^[a-z0-9]{1,5}$/).map((s) => `  ${s} `),
+    );
+    const table = fc.array(fc.array(cell, { minLength: 3, maxLength: 3 }), { minLength: 1, maxLength: 12 });
+    await fc.assert(
+      fc.asyncProperty(table, fc.array(fc.nat(200), { maxLength: 5 }), fc.boolean(), async (rows, cuts, crlf) => {
+        const text = 'h1,h2,h3' + (crlf ? '\r\n' : '\n') + rows.map((r) => r.join(',')).join(crlf ? '\r\n' : '\n') + '\n';
+        const want = oracle(text).filter((r) => !(r.length === 1 && r[0] === '')); // whitespace-only lines are blank lines to us
+        const bytes = Buffer.from(text, 'utf8');
+        const points = [...new Set(cuts.map((c) => c % bytes.length))].sort((a, b) => a - b);
+        const pieces: Buffer[] = [];
+        let prev = 0;
+        for (const p of points) {
+          pieces.push(bytes.subarray(prev, p));
+          prev = p;
+        }
+        pieces.push(bytes.subarray(prev));
+        const got = await ours(pieces);
+        expect(got.records).toEqual(want);
+      }),
+      { numRuns: 300, seed: 20261201 },
+    );
+  });
+});
+
+describe('the CSV reader reports where each record starts', () => {
+  it('as the physical line, counting blank lines and line breaks inside quotes', () => {
+    const r = parseCsv('a,b\n\n1,"two\nlines"\n3,4\r\n\r\n5,6\n', { file: 't.csv' });
+    expect(r.rows).toEqual([
+      ['1', 'two\nlines'],
+      ['3', '4'],
+      ['5', '6'],
+    ]);
+    expect(r.lines).toEqual([3, 5, 7]);
+  });
+
+  it('and the line numbers agree with csv-parse for records without embedded line breaks', () => {
+    const text = 'a,b\n1,2\n\n3,4\n\n\n5,6\n';
+    const info = parse(text, { ...ORACLE, info: true }) as Array<{ info: { lines: number } }>;
+    const r = parseCsv(text, { file: 't.csv' });
+    expect(r.lines).toEqual(info.slice(1).map((x) => x.info.lines));
+  });
+});
+
+describe('the CSV reader counts what it forgives', () => {
+  it('padded values, short and long rows', () => {
+    const w = new WarningSink();
+    parseCsv('a,b\n 1 ,2\n3\n4,5,6\n', { file: 'x.txt', warnings: w });
+    const byCode = Object.fromEntries(w.list().map((x) => [x.code, x]));
+    expect(byCode['padded-values'].count).toBe(1);
+    expect(byCode['padded-values'].examples[0]).toBe('x.txt:2 column a');
+    expect(byCode['short-rows'].count).toBe(1);
+    expect(byCode['long-rows'].count).toBe(1);
+  });
+
+  it('invalid UTF-8: replaced with U+FFFD as the WHATWG decoder does, counted and located', async () => {
+    const bytes = Buffer.concat([Buffer.from('stop_id,stop_name\nS1,Caf'), Buffer.from([0xe9]), Buffer.from('\nS2,ok\n')]);
+    const w = new WarningSink();
+    const rows: string[][] = [];
+    await readCsv([bytes], { file: 'stops.txt', warnings: w, onHeader: () => {}, onRow: (r) => rows.push(r.toArray()) });
+    // reference: the WHATWG Encoding Standard's UTF-8 decoder (TextDecoder, non-fatal) [C]
+    const whatwg = new TextDecoder('utf-8').decode(bytes);
+    expect(rows[0][1]).toBe(whatwg.split('\n')[1].split(',')[1]);
+    expect(rows[0][1]).toBe('Caf\ufffd');
+    const inv = w.list().find((x) => x.code === 'invalid-utf8')!;
+    expect(inv.count).toBe(1);
+    expect(inv.examples[0]).toBe('stops.txt:2 column stop_name');
+  });
+});
+
+describe('the CSV reader refuses', () => {
+  it('an unterminated quote, naming file, line and column', async () => {
+    const e = await rejected(ours(['trip_id,trip_headsign\nT1,"Harbour\nT2,Mill\n'], 'trips.txt'));
+    expect(e.code).toBe('csv-syntax');
+    expect(e.context).toMatchObject({ file: 'trips.txt', line: 2, column: 'trip_headsign' });
+    expect(e.oneLine()).toBe('trips.txt:2 column trip_headsign: unterminated quoted field');
+  });
+
+  it('a NUL byte, naming file, line and column', () => {
+    const e = thrown(() => parseCsv('route_id,route_long_name\nR1,ok\nR2,Ha\0rbour\n', { file: 'routes.txt' }));
+    expect(e.code).toBe('csv-syntax');
+    expect(e.context).toMatchObject({ file: 'routes.txt', line: 3, column: 'route_long_name' });
+  });
+
+  it('a duplicate header name', () => {
+    const e = thrown(() => parseCsv('stop_id,stop_name,stop_name\nS1,a,b\n', { file: 'stops.txt' }));
+    expect(e.code).toBe('csv-syntax');
+    expect(e.context).toMatchObject({ file: 'stops.txt', line: 1, column: 'stop_name' });
+  });
+
+  it('a record longer than the cap, whole or arriving in pieces', async () => {
+    const long = 'x'.repeat(3000);
+    const e1 = thrown(() => parseCsv(`a,b\n1,2\n3,${long}\n`, { file: 'stops.txt', maxRecordChars: 1000 }));
+    expect(e1.code).toBe('csv-syntax');
+    expect(e1.context).toMatchObject({ file: 'stops.txt', line: 3 });
+    const e2 = await rejected(
+      readCsv(['a,b\n1,2\n3,', long.slice(0, 1500), long.slice(1500), '\n'].map((s) => Buffer.from(s)), {
+        file: 'stops.txt',
+        maxRecordChars: 1000,
+        onHeader: () => {},
+        onRow: () => {},
+      }),
+    );
+    expect(e2.code).toBe('csv-syntax');
+    expect(e2.context).toMatchObject({ file: 'stops.txt', line: 3 });
+    expect(e2.message).toContain('1000');
+  });
+
+  it('text after a closing quote', () => {
+    const e = thrown(() => parseCsv('a,b\n"x"y,2\n', { file: 't.txt' }));
+    expect(e.code).toBe('csv-syntax');
+    expect(e.context).toMatchObject({ file: 't.txt', line: 2, column: 'a' });
+  });
+});
+
+const FEEDS = process.env.STOPSPAN_FEEDS ?? join(import.meta.dirname, '..', '..', '..', 'shared', 'feeds');
+const HAVE_FEEDS = existsSync(join(FEEDS, 'nyct-bus-manhattan.zip'));
+if (!HAVE_FEEDS) console.warn(`real feeds not found at ${FEEDS}: skipping the real-feed CSV comparisons`);
+
+/** sha256 over records (fields joined by U+0001, records ended by U+0002) plus every 997th record kept. */
+class RecordDigest {
+  private h = createHash('sha256');
+  count = 0;
+  sample: string[][] = [];
+  add(rec: string[]): void {
+    this.h.update(rec.join('\u0001') + '\u0002');
+    if (this.count % 997 === 0) this.sample.push(rec);
+    this.count++;
+  }
+  digest(): string {
+    return this.h.digest('hex');
+  }
+}
+
+describe.skipIf(!HAVE_FEEDS)('the CSV reader agrees with csv-parse on every table of the real feeds', () => {
+  for (const feed of ['lirr-rail.zip', 'nyct-subway.zip', 'nyct-bus-manhattan.zip']) {
+    it(`record for record in ${feed}`, async () => {
+      const archive = await openFeed(join(FEEDS, feed));
+      try {
+        for (const name of archive.names()) {
+          const ref = new RecordDigest();
+          const parser = (await archive.open(name)).pipe(parseStream(ORACLE));
+          for await (const rec of parser) ref.add(rec as string[]);
+          const mine = new RecordDigest();
+          await readCsv(await archive.open(name), {
+            file: name,
+            onHeader: (h) => mine.add(h),
+            onRow: (row) => mine.add(row.toArray()),
+          });
+          expect(mine.count, `${feed} ${name} records`).toBe(ref.count);
+          expect(mine.sample, `${feed} ${name} sample`).toEqual(ref.sample);
+          expect(mine.digest(), `${feed} ${name} every record`).toBe(ref.digest());
+        }
+      } finally {
+        await archive.close();
+      }
+    });
+  }
+
+  it('and the Manhattan stop_times.txt has the row count the feeds README gives', async () => {
+    // feeds README: nyct-bus-manhattan.zip has 1 174 914 stop_times rows [C, shared/feeds/README.md]
+    const archive = await openFeed(join(FEEDS, 'nyct-bus-manhattan.zip'));
+    try {
+      const stats = await readCsv(await archive.open('stop_times.txt'), { file: 'stop_times.txt', onHeader: () => {}, onRow: () => {} });
+      expect(stats.records).toBe(1_174_914);
+    } finally {
+      await archive.close();
+    }
+  });
+});
