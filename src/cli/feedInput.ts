@@ -3,21 +3,13 @@
 
 import { mkdir, rename, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
-import * as gtfs from '../gtfs/index.js';
+import { readFeed } from '../gtfs/index.js';
 import { buildPatterns } from '../network/index.js';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { busiestWeekday } from '../audit/check.js';
-
-type ReadFeed = (source: string, options: { date?: string; onProgress?: OnProgress }) => Promise<Feed>;
-
-function reader(): ReadFeed {
-  const f = (gtfs as Record<string, unknown>).readFeed;
-  if (typeof f !== 'function') throw new Error('the feed reader (readFeed in src/gtfs) is not available');
-  return f as ReadFeed;
-}
 
 export interface LoadedFeed {
   feed: Feed;
@@ -34,7 +26,7 @@ export async function loadFeed(source: string, options: { date?: string; onProgr
   if (asked !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(asked)) {
     throw new StopspanError('bad-option', `invalid option --date: expected YYYY-MM-DD, got ${asked}`, { value: asked });
   }
-  const feed = await reader()(source, { date: 'all', onProgress });
+  const feed = await readFeed(source, { date: 'all', onProgress });
   const date = asked ?? busiestWeekday(feed);
   const empty: PatternSet = { date: date ?? '', patterns: [], routesAtStop: new Map() };
   if (date === null) return { feed, patterns: empty, date };

@@ -8,16 +8,14 @@ import yauzl from 'yauzl';
 import yazl from 'yazl';
 import { parse } from 'csv-parse/sync';
 import geodesicPkg from 'geographiclib-geodesic';
-import * as gtfs from '../../src/gtfs/index.js';
+import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
 import { compareFeeds } from '../../src/audit/compare.js';
 import { checkFeed } from '../../src/audit/check.js';
-import type { Feed } from '../../src/gtfs/types.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
 const BUS = join(FEEDS, 'nyct-bus-manhattan.zip');
 const SUBWAY = join(FEEDS, 'nyct-subway.zip');
-const readFeed = (gtfs as Record<string, unknown>).readFeed as ((s: string, o: { date: string }) => Promise<Feed>) | undefined;
 const DATE = '2026-10-14'; // the date of the feeds' README facts, a Wednesday
 const Geodesic = (geodesicPkg as any).Geodesic;
 
@@ -54,11 +52,11 @@ function writeZip(path: string, files: Map<string, Buffer>): Promise<void> {
   });
 }
 
-describe.skipIf(!readFeed || !existsSync(BUS))('compare on the Manhattan bus feed', () => {
+describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
   it('reports exactly three stops removed, one moved 50 m and one renamed', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'stopspan-compare-'));
     try {
-      const oldFeed = await readFeed!(BUS, { date: 'all' });
+      const oldFeed = await readFeed(BUS, { date: 'all' });
       const oldPatterns = buildPatterns(oldFeed, { date: DATE });
       // the feeds' README: 151 patterns on 2026-10-14 [real feed fact]
       expect(oldPatterns.patterns.length).toBe(151);
@@ -119,7 +117,7 @@ describe.skipIf(!readFeed || !existsSync(BUS))('compare on the Manhattan bus fee
       const altered = join(dir, 'altered.zip');
       await writeZip(altered, files);
 
-      const newFeed = await readFeed!(altered, { date: 'all' });
+      const newFeed = await readFeed(altered, { date: 'all' });
       const newPatterns = buildPatterns(newFeed, { date: DATE });
       const c = compareFeeds(oldFeed, newFeed, oldPatterns, newPatterns, { moveThresholdM: 10 });
 
@@ -165,9 +163,9 @@ describe.skipIf(!readFeed || !existsSync(BUS))('compare on the Manhattan bus fee
   }, 240_000);
 });
 
-describe.skipIf(!readFeed || !existsSync(SUBWAY))('check on the subway feed', () => {
+describe.skipIf(!existsSync(SUBWAY))('check on the subway feed', () => {
   it('sees the service end documented for the feed, and flags it within a week of it', async () => {
-    const feed = await readFeed!(SUBWAY, { date: 'all' });
+    const feed = await readFeed(SUBWAY, { date: 'all' });
     const patterns = buildPatterns(feed, { date: DATE });
     // the feeds' README: subway service runs to 2026-10-31 [real feed fact]
     expect(checkFeed(feed, patterns, { today: DATE }).serviceEnd).toBe('2026-10-31');
