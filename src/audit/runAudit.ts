@@ -75,7 +75,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       feed,
       patterns,
       pattern,
-      (modelStops, posM) => observedDemand?.get(pattern.id) ?? assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km }),
+      (modelStops, posM) => observedDemand?.get(pattern.id) ?? assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km, catchmentHalfMaxM: params.max_gap_m / 2 }),
       params,
       { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
     );

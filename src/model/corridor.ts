@@ -1,5 +1,6 @@
 // A pattern seen as a line of demand: each existing stop's boardings and alightings per day are spread
-// evenly over its catchment (from the midpoint with the stop before to the midpoint with the stop after),
+// evenly over its catchment (from the midpoint with the stop before to the midpoint with the stop after,
+// at most a set distance from the stop),
 // so the walk and ride cost of ANY set of served stops (existing ones removed, new ones added) can be
 // computed from prefix integrals. The optimiser, the verdicts and the what-if engine share it, so a
 // stop's removal figure is exactly the change in the optimiser's objective.
@@ -12,6 +13,9 @@ export interface CorridorInput {
   boardPerDay: number[];
   alightPerDay: number[];
   tripsPerDay: number;
+  /** Riders come from at most this far from their stop (default: no limit); a long gap, such as a bridge,
+   * then holds no trip ends in its middle. */
+  catchmentHalfMaxM?: number;
 }
 
 export interface CostSettings {
@@ -46,7 +50,7 @@ export class Corridor {
   private readonly cumA: Float64Array;
   private readonly cumM: Float64Array; // prefix of trip ends times their mean position
 
-  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay }: CorridorInput) {
+  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity }: CorridorInput) {
     const n = posM.length;
     if (n < 2) throw new RangeError(`Corridor: expected at least 2 stops, got ${n}`);
     if (boardPerDay.length !== n || alightPerDay.length !== n) throw new RangeError('Corridor: demand arrays must match the stops');
@@ -62,8 +66,8 @@ export class Corridor {
     this.cumA = new Float64Array(n + 1);
     this.cumM = new Float64Array(n + 1);
     for (let j = 0; j < n; j++) {
-      this.lo[j] = j === 0 ? posM[0] : (posM[j - 1] + posM[j]) / 2;
-      this.hi[j] = j === n - 1 ? posM[n - 1] : (posM[j] + posM[j + 1]) / 2;
+      this.lo[j] = j === 0 ? posM[0] : Math.max((posM[j - 1] + posM[j]) / 2, posM[j] - catchmentHalfMaxM);
+      this.hi[j] = j === n - 1 ? posM[n - 1] : Math.min((posM[j] + posM[j + 1]) / 2, posM[j] + catchmentHalfMaxM);
       const e = boardPerDay[j] + alightPerDay[j];
       this.cumB[j + 1] = this.cumB[j] + boardPerDay[j];
       this.cumA[j + 1] = this.cumA[j] + alightPerDay[j];

@@ -15,7 +15,7 @@ export function cruiseSpeedRangeMps(routeType: number): { minMps: number; maxMps
     case 1: return { minMps: 5, maxMps: 30, fallbackMps: 15 }; // subway, metro
     case 2: return { minMps: 8, maxMps: 70, fallbackMps: 25 }; // rail
     case 4: return { minMps: 2, maxMps: 20, fallbackMps: 8 }; // ferry
-    case 3: case 11: return { minMps: 2, maxMps: 25, fallbackMps: 8 }; // bus, trolleybus
+    case 3: case 11: return { minMps: 5, maxMps: 25, fallbackMps: 8 }; // bus, trolleybus: below about 18 km/h the schedule holds traffic delay, not cruising
     default: return { minMps: 2, maxMps: 30, fallbackMps: 8 };
   }
 }

@@ -22,13 +22,21 @@ export interface PatternDemand {
  * Assumed uniform demand on a pattern whose model stops sit at `posM`. Trip ends are uniform along the
  * line and origins precede destinations; discretised to stops, riders from stop i to stop j > i number in
  * proportion to the two catchment lengths, so a stop's boardings and alightings are always consistent
- * (nobody alights before boarding, the load never goes negative). Mean trip length reported as D/3.
+ * (nobody alights before boarding, the load never goes negative). Catchments reach at most
+ * catchmentHalfMaxM from a stop, so a long gap holds no riders in its middle. Mean trip length reported as D/3.
  */
-export function assumedDemand(patternId: string, posM: number[], tripsPerDay: number, { boardingsPerTripKm }: { boardingsPerTripKm: number }): PatternDemand {
+export function assumedDemand(
+  patternId: string,
+  posM: number[],
+  tripsPerDay: number,
+  { boardingsPerTripKm, catchmentHalfMaxM = Infinity }: { boardingsPerTripKm: number; catchmentHalfMaxM?: number },
+): PatternDemand {
   const n = posM.length;
   const D = posM[n - 1] - posM[0];
   const riders = boardingsPerTripKm * (D / 1000) * tripsPerDay;
-  const len = posM.map((x, j) => (j === n - 1 ? x : (x + posM[j + 1]) / 2) - (j === 0 ? x : (posM[j - 1] + x) / 2));
+  const len = posM.map(
+    (x, j) => (j === n - 1 ? x : Math.min((x + posM[j + 1]) / 2, x + catchmentHalfMaxM)) - (j === 0 ? x : Math.max((posM[j - 1] + x) / 2, x - catchmentHalfMaxM)),
+  );
   const after: number[] = new Array(n).fill(0); // catchment length of the stops after j
   for (let j = n - 2; j >= 0; j--) after[j] = after[j + 1] + len[j + 1];
   let pairs = 0;

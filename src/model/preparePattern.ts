@@ -58,7 +58,7 @@ export function preparePattern(
   const routeType = route?.type ?? 3;
   const demand = demandOf(modelStops, posM);
   const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
-  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips });
+  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2 });
 
   let stoppingModel = params.stopping_model;
   let observedShare: (number | null)[] | undefined;
