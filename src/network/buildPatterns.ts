@@ -72,7 +72,8 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       warnings.add('trip-too-short', 'trip with fewer than two stop_times left out of the patterns', tripId);
       continue;
     }
-    const key = `${trip.routeId}\u0000${trip.directionId}\u0000${st.stopIdx.join(',')}`;
+    // The stop list as its raw bytes: a compact, exact key.
+    const key = `${trip.routeId}\u0000${trip.directionId}\u0000${Buffer.from(st.stopIdx.buffer, st.stopIdx.byteOffset, st.stopIdx.byteLength).toString('latin1')}`;
     let g = groups.get(key);
     if (!g) {
       g = { routeId: trip.routeId, directionId: trip.directionId, stopIdx: st.stopIdx, tripIds: [] };
@@ -318,7 +319,7 @@ function scheduledTimes(
 
 function median(xs: number[]): number {
   if (xs.length === 0) return NaN;
-  const s = [...xs].sort((a, b) => a - b);
+  const s = Float64Array.from(xs).sort();
   const m = s.length >> 1;
   return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
