@@ -38,3 +38,20 @@ describe('fixture feeds', () => {
     });
   }
 });
+
+describe('fixture details', () => {
+  it('dangling-reference counts the parent_station pointing nowhere and the trip the reader dropped, with its line', async () => {
+    const r = await check('dangling-reference');
+    expect(r.counts['dangling-reference']).toBe(2);
+    // trips.txt line 4 (header is line 1) holds the trip whose route R9 is not in routes.txt
+    expect(r.findings[0].examples.map((e) => [e.file, e.line])).toEqual([
+      ['stops.txt', undefined],
+      ['trips.txt', 4],
+    ]);
+  });
+
+  it('twin-stops measures the 2 m pair', async () => {
+    const r = await check('twin-stops');
+    expect(r.findings[0].examples[0].detail).toMatch(/S2 and S2b are 2\.0 m apart/);
+  });
+});
