@@ -58,7 +58,7 @@ export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
   value_of_time_per_hour: { default: null, source: 'D', kind: 'positive-or-null', note: 'not set: needed with operating_cost_per_vehicle_hour to weigh it against riders\' time' },
 };
 
-export const PARAM_NAMES = Object.keys(PARAM_SPECS) as ParamName[];
+export const PARAM_NAMES: readonly ParamName[] = Object.freeze(Object.keys(PARAM_SPECS) as ParamName[]);
 
 /** The defaults, as a fresh object. */
 export function defaultParams(): ModelParams {
