@@ -8,7 +8,8 @@ import { join, resolve } from 'node:path';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { buildPatterns } from '../../src/network/buildPatterns.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import type { Feed } from '../../src/gtfs/types.js';
+import * as turf from '@turf/turf';
+import type { Feed, Shape, TripStopTimes } from '../../src/gtfs/types.js';
 import type { PatternSet } from '../../src/network/types.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
@@ -79,6 +80,35 @@ for (const c of cases) {
       expect(Math.abs(f.medianAlongM - c.straightM) / c.straightM).toBeLessThan(0.001);
       // A path along the shape is never shorter than the chords.
       expect(figures(feed, set).medianAlongM).toBeGreaterThan(f.medianAlongM);
+    });
+
+    it.runIf(c.file === 'nyct-bus-manhattan.zip')('infers miles when shape_dist_traveled is written in miles, and keeps the median', () => {
+      // shape_dist_traveled in miles computed by a reference library: @turf/turf length along each shape
+      // point and nearestPointOnLine location of each stop (whole-line search), in miles.
+      const shapes = new Map<string, Shape>();
+      for (const p of set.patterns) {
+        if (shapes.has(p.shapeId)) continue;
+        const sh = feed.shapes.get(p.shapeId)!;
+        const dist = new Float64Array(sh.lat.length);
+        for (let i = 1; i < dist.length; i++) {
+          dist[i] = dist[i - 1] + turf.distance([sh.lon[i - 1], sh.lat[i - 1]], [sh.lon[i], sh.lat[i]], { units: 'miles' });
+        }
+        shapes.set(p.shapeId, { ...sh, dist });
+      }
+      const stopTimes = new Map<string, TripStopTimes>();
+      for (const p of set.patterns) {
+        const sh = feed.shapes.get(p.shapeId)!;
+        const geo = turf.lineString(Array.from(sh.lat, (la, i) => [sh.lon[i], la]));
+        const d = Float64Array.from(p.stopIdx, (k) => turf.nearestPointOnLine(geo, [feed.stops[k].lon, feed.stops[k].lat], { units: 'miles' }).properties.location);
+        for (const t of p.tripIds) stopTimes.set(t, { ...feed.stopTimes.get(t)!, shapeDist: d });
+      }
+      const mi = buildPatterns({ ...feed, shapes, stopTimes });
+      expect(mi.shapeDistUnit!.unit).toBe('mi');
+      const used = mi.patterns.filter((p) => p.distanceSource === 'shape_dist_traveled').length;
+      // Whole-line snapping goes backwards on some loops; those patterns fall back to projection.
+      expect(used).toBeGreaterThan(mi.patterns.length * 0.8);
+      expect(mi.distanceBacktracks!.length).toBeGreaterThanOrEqual(mi.patterns.length - used);
+      expect(Math.abs(figures(feed, mi).medianAlongM - c.alongM) / c.alongM).toBeLessThan(0.03);
     });
 
     it('keeps every pattern sane: distances non-decreasing, one run time per gap, paths for maps', () => {
