@@ -205,6 +205,11 @@ describe('buildPatterns: options and errors', () => {
     expect(buildPatterns(feed, { routes: ['V2'] }).patterns.map((p) => p.id)).toEqual(['V2:0:1']);
   });
 
+  it('also takes a route_short_name', () => {
+    feed.routes.get('V2')!.shortName = '22';
+    expect(buildPatterns(feed, { routes: ['22'] }).patterns.map((p) => p.id)).toEqual(['V2:0:1']);
+  });
+
   it('rejects an unknown route, naming it', () => {
     expect(() => buildPatterns(feed, { routes: ['V9'] })).toThrow(StopspanError);
     expect(() => buildPatterns(feed, { routes: ['V9'] })).toThrow(/routes.*V9/);
