@@ -1,0 +1,136 @@
+// The whole audit on a hand-made Vellmoor network: every field filled, verdicts and candidates consistent
+// with the model, the walking policy respected, sensitivity and observed data honoured.
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { StopspanError } from '../../src/common/errors.js';
+import { runAudit } from '../../src/audit/runAudit.js';
+import { bandRatios } from '../../src/model/band.js';
+import type { ObservedData } from '../../src/realtime/types.js';
+import { handmadeNetwork } from './handmade.js';
+
+// stops about 110 m apart over 6 km (mean trip 2 km): the square-root optimum at 25 mph is about 184 m
+const closeSpacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));
+
+describe('runAudit', () => {
+  const { feed, patterns } = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80 });
+  const params = { cruise_speed_mps: 11.176, stopping_model: 'always' };
+  const r = runAudit(feed, patterns, { params, generatedAt: '2026-10-14T00:00:00Z' });
+
+  it('fills the result with finite numbers and the parameters with sources', () => {
+    expect(r.tool.name).toBe('stopspan');
+    expect(r.date).toBe('2026-10-14');
+    expect(r.feed.publisher).toBe('Vellmoor Transit');
+    expect(Object.keys(r.params).length).toBe(14);
+    expect(r.params.cruise_speed_mps).toMatchObject({ value: 11.176, source: 'user' });
+    expect(r.params.walk_speed_mps.source).toBe('M');
+    expect(r.demandSource).toBe('assumed');
+    expect(r.assumptions.length).toBeGreaterThan(5);
+    for (const p of r.patterns) {
+      for (const [k, v] of Object.entries(p)) if (typeof v === 'number') expect(Number.isFinite(v), k).toBe(true);
+      expect(p.demandSource).toBe('assumed');
+      expect(p.costCurve.length).toBeGreaterThan(10);
+      const [lo, hi] = bandRatios(0.05);
+      expect(p.bandLowM / p.optimalSpacingM).toBeCloseTo(lo, 9);
+      expect(p.bandHighM / p.optimalSpacingM).toBeCloseTo(hi, 9);
+      expect(p.paxMinLostPerDay).toBeGreaterThanOrEqual(0);
+      expect(p.optimalCostPerRiderS).toBeLessThanOrEqual(p.currentCostPerRiderS + 1e-9);
+    }
+    expect(r.stops.length).toBe(closeSpacing.length + 3);
+    expect(r.headline.patterns).toBe(2);
+    expect(r.headline.stops).toBe(closeSpacing.length + 2);
+    expect(r.sensitivity.map((s) => s.label)).toEqual(['walk_weight=1.5', 'walk_weight=2.5', 'band_tolerance=0.05', 'band_tolerance=0.10']);
+  });
+
+  it('fixes terminals and the stop shared with another route, and flags close stops by the band', () => {
+    const v1 = r.stops.filter((s) => s.patternId === 'V1:0:1');
+    expect(v1[0]).toMatchObject({ verdict: 'fixed', fixedReason: 'terminal', removalNetPaxMinPerDay: null });
+    expect(v1[v1.length - 1].fixedReason).toBe('terminal');
+    expect(v1[5]).toMatchObject({ verdict: 'fixed', fixedReason: 'transfer' });
+    const p = r.patterns.find((x) => x.patternId === 'V1:0:1')!;
+    for (const s of v1) {
+      if (s.verdict === 'fixed') continue;
+      const spacing = (s.gapBeforeM! + s.gapAfterM!) / 2;
+      expect(s.verdict).toBe(spacing < p.bandLowM ? 'close' : spacing > p.bandHighM ? 'wide' : 'ok');
+      expect(s.removalNetPaxMinPerDay).not.toBeNull();
+    }
+    expect(p.closeStops).toBe(v1.filter((s) => s.verdict === 'close').length);
+    // stops about 110 m apart against an optimum near 184 m: close, and the optimiser drops some
+    expect(p.closeStops).toBeGreaterThan(0);
+    expect(p.optimalStopCount).toBeLessThan(p.stopCount);
+    expect(p.paxMinLostPerDay).toBeGreaterThan(0);
+  });
+
+  it('ranks candidates by net passenger-minutes, never a fixed stop, never opening a gap above the policy', () => {
+    expect(r.candidates.length).toBeGreaterThan(0);
+    for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay);
+    r.candidates.forEach((c, i) => expect(c.rank).toBe(i + 1));
+    const fixed = new Set(r.stops.filter((s) => s.verdict === 'fixed').map((s) => s.stopId));
+    const removed = new Set(r.candidates.filter((c) => c.action === 'remove').map((c) => c.stopId));
+    for (const id of removed) expect(fixed.has(id)).toBe(false);
+    for (const c of r.candidates) expect(c.netPaxMinPerDay).toBeCloseTo(c.walkAddedPaxMinPerDay - c.rideSavedPaxMinPerDay, 9);
+    // apply every proposed removal at once: no gap above 800 m appears
+    const v1 = r.stops.filter((s) => s.patternId === 'V1:0:1' && !removed.has(s.stopId));
+    for (let i = 1; i < v1.length; i++) expect(v1[i].distAlongM - v1[i - 1].distAlongM).toBeLessThanOrEqual(800);
+  });
+
+  it('never proposes adjacent removals that together break a tight walking policy', () => {
+    const tight = runAudit(feed, patterns, { params: { ...params, max_gap_m: 300 } });
+    const removed = new Set(tight.candidates.filter((c) => c.action === 'remove').map((c) => c.stopId));
+    expect(removed.size).toBeGreaterThan(0);
+    const v1 = tight.stops.filter((s) => s.patternId === 'V1:0:1' && !removed.has(s.stopId));
+    for (let i = 1; i < v1.length; i++) expect(v1[i].distAlongM - v1[i - 1].distAlongM).toBeLessThanOrEqual(300);
+  });
+
+  it('honours a keep-list and rejects unknown stop ids in it', () => {
+    const keepId = r.candidates.find((c) => c.action === 'remove')!.stopId;
+    const kept = runAudit(feed, patterns, { params, keep: [keepId] });
+    expect(kept.stops.find((s) => s.stopId === keepId)).toMatchObject({ verdict: 'fixed', fixedReason: 'keep' });
+    expect(kept.candidates.some((c) => c.stopId === keepId)).toBe(false);
+    expect(() => runAudit(feed, patterns, { keep: ['nowhere'] })).toThrow(StopspanError);
+  });
+
+  it('rejects bad parameters before computing anything', () => {
+    expect(() => runAudit(feed, patterns, { params: { walk_weight: 0 } })).toThrow(/invalid parameter walk_weight/);
+  });
+
+  it('marks robust candidates only when they save time in every sensitivity case', () => {
+    const sens = r.sensitivity;
+    expect(sens[0].meanOptimalSpacingM).toBeGreaterThan(sens[1].meanOptimalSpacingM); // lighter walk weight, longer optimum
+    expect(sens[3].closeStops).toBeLessThanOrEqual(sens[2].closeStops); // wider band, fewer flags
+    for (const s of sens) expect(s.candidatesKept).toBeLessThanOrEqual(Math.min(10, r.candidates.length));
+  });
+
+  it('uses observed lost time, cruise speed and stop shares where realtime data has them', () => {
+    const v1 = patterns.patterns[0];
+    const observed: ObservedData = {
+      source: 'rt.zip',
+      snapshotsRead: 10,
+      snapshotsSkipped: 0,
+      tripsMatched: 5,
+      tripsUnmatched: 0,
+      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
+      warnings: [],
+    };
+    const o = runAudit(feed, patterns, { params: {}, observed });
+    const p = o.patterns.find((x) => x.patternId === v1.id)!;
+    expect(p).toMatchObject({ lostTimeSource: 'observed', lostTimePerStopS: 17.5, cruiseSpeedMps: 7, cruiseSpeedSource: 'observed' });
+    expect(o.lostTimeSource).toBe('observed');
+    const mid = o.stops.find((s) => s.patternId === v1.id && s.stopIndex === 3)!;
+    expect(mid.stopProbability).toBeCloseTo(0.5, 9);
+  });
+
+  it('takes demand from a ridership file and marks it observed', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-audit-'));
+    const file = join(dir, 'ridership.csv');
+    const rows = closeSpacing.map((_, j) => `v1-${j},V1,${j < closeSpacing.length - 1 ? 30 : 0},${j > 0 ? 30 : 0}`);
+    writeFileSync(file, 'stop_id,route_id,boardings,alightings\n' + rows.join('\n') + '\n');
+    const o = runAudit(feed, patterns, { params, ridership: file });
+    expect(o.demandSource).toBe('observed');
+    const v1 = o.stops.filter((s) => s.patternId === 'V1:0:1');
+    expect(v1[3].boardingsPerDay).toBeCloseTo(30, 9);
+    expect(v1.every((s) => s.demandSource === 'observed')).toBe(true);
+    expect(o.warnings.some((w) => w.code === 'ridership-stop-missing')).toBe(true); // V2's own stops have no rows
+  });
+});
