@@ -156,6 +156,8 @@ export async function observeArchive(
   const unmatched = new Set<string>();
   const stats: ArchiveStats = { filesSeen: 0, snapshotsRead: 0, snapshotsSkipped: 0 };
   let otherFeedSnapshots = 0;
+  let vpIntervalSumS = 0; // time between consecutive VehiclePositions of the same trip instance
+  let vpIntervals = 0;
   let firstS = Infinity;
   let lastS = -Infinity;
 
@@ -299,6 +301,10 @@ export async function observeArchive(
           continue;
         }
         const stopped = vp.currentStatus === rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
+        if (Number.isFinite(inst.state.prevT)) {
+          vpIntervalSumS += atS - inst.state.prevT;
+          vpIntervals++;
+        }
         observeVehiclePosition(inst.state, pos, stopped, atS);
       }
     }
@@ -312,6 +318,7 @@ export async function observeArchive(
     trips: number;
     stopped: number[];
     observed: number[];
+    passedUnknown: number[];
     dwells: number[][];
     runs: number[][];
     fit: RunTimeFit;
@@ -319,6 +326,8 @@ export async function observeArchive(
   const aggs = new Map<string, Agg>();
   const vopts = { minDwellS, passMaxGapS, measuredOnly };
   let implausible = 0;
+  let vpDwells = 0;
+  let tuDwells = 0;
   for (const inst of instances.values()) {
     const p = inst.info.pattern;
     const n = p.stopIdx.length;
@@ -328,6 +337,7 @@ export async function observeArchive(
         trips: 0,
         stopped: new Array(n).fill(0),
         observed: new Array(n).fill(0),
+        passedUnknown: new Array(n).fill(0),
         dwells: Array.from({ length: n }, () => []),
         runs: Array.from({ length: Math.max(n - 1, 0) }, () => []),
         fit: new RunTimeFit(),
@@ -341,7 +351,13 @@ export async function observeArchive(
       const v = stopVerdict(inst.state, i, vopts);
       const terminal = i === 0 || i === n - 1;
       served[i] = terminal ? true : v.stopped;
-      if (v.stopped === null) continue;
+      if (v.stopped === null) {
+        // seen on both sides of the stop, but too far apart to tell a pass from a short dwell
+        if (Number.isFinite(inst.state.passGapS[i])) agg.passedUnknown[i]++;
+        continue;
+      }
+      if (v.dwellFrom === 'vehicle-position') vpDwells++;
+      else if (v.dwellFrom === 'trip-update') tuDwells++;
       agg.observed[i]++;
       if (terminal || v.stopped) agg.stopped[i]++;
       if (!terminal && v.stopped && v.dwellS !== null && v.dwellS >= 0) agg.dwells[i].push(v.dwellS);
@@ -364,6 +380,14 @@ export async function observeArchive(
     warnings.add('realtime-implausible-run-time', `observed gap run time not positive or faster than ${maxGapSpeedMps} m/s; dropped`, undefined, implausible);
   }
 
+  const meanVpIntervalS = vpIntervals > 0 ? vpIntervalSumS / vpIntervals : NaN;
+  if (vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
+    warnings.add(
+      'realtime-coarse-polling',
+      `${vpDwells} of ${vpDwells + tuDwells} dwells come from VehiclePositions about ${Math.round(meanVpIntervalS)} s apart: dwells shorter than that can be missed, so those dwells lean long`,
+    );
+  }
+  let unidentified = 0;
   const byPattern = new Map<string, ObservedPattern>();
   for (const p of patterns.patterns) {
     const agg = aggs.get(p.id);
@@ -381,7 +405,15 @@ export async function observeArchive(
       meanDwellS: allDwells.length >= minTrips ? allDwells.reduce((s, x) => s + x, 0) / allDwells.length : null,
       lostTimePerStopS: dwellFixedS !== null && lossOk ? dwellFixedS + fit.lossPerStopS : null,
       cruiseSpeedMps: fit ? fit.cruiseSpeedMps : null,
-      stopShare: agg.observed.map((o, i) => (o >= minTrips ? agg.stopped[i] / o : null)),
+      // a share is left unset where more than a tenth of the passing trips could not be told apart
+      stopShare: agg.observed.map((o, i) => {
+        if (o < minTrips) return null;
+        if (agg.passedUnknown[i] > 0.1 * (o + agg.passedUnknown[i])) {
+          unidentified++;
+          return null;
+        }
+        return agg.stopped[i] / o;
+      }),
       gapRunTimeS: agg.runs.map((r) => (r.length >= minTrips ? median(r) : null)),
       stopDwellS: agg.dwells.map((d) => (d.length >= minTrips ? median(d) : null)),
       stopsObserved: agg.observed,
@@ -391,6 +423,14 @@ export async function observeArchive(
     });
   }
 
+  if (unidentified > 0) {
+    warnings.add(
+      'realtime-share-unidentified',
+      `stopping share left unset at ${unidentified} stops: vehicles were seen before and after them too far apart (over ${passMaxGapS} s) to tell a pass from a short dwell`,
+      undefined,
+      unidentified,
+    );
+  }
   return {
     source: archivePath,
     snapshotsRead: stats.snapshotsRead - otherFeedSnapshots,

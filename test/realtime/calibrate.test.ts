@@ -138,6 +138,30 @@ describe('observeArchive from VehiclePositions alone', () => {
   }, 60_000);
 });
 
+describe('observeArchive from sparse VehiclePositions', () => {
+  it('leaves the stopping share unset and says why when polling every 30 s cannot tell a pass from a short dwell', async () => {
+    const vpDir = mkdtempSync(join(tmpdir(), 'stopspan-rt-vp30-'));
+    try {
+      simulateArchive(
+        net.sim,
+        { windowStartS: 7 * 3600, windowEndS: 8 * 3600, pollS: 30, routeParams: (id: 'N1' | 'N2') => ROUTE[id], lambda: lambdaOf, seed: 13, differential: false },
+        (name: string, bytes: Uint8Array) => {
+          if (name.startsWith('trip-updates/')) return;
+          mkdirSync(dirname(join(vpDir, name)), { recursive: true });
+          writeFileSync(join(vpDir, name), bytes);
+        },
+      );
+      const vp = await observeArchive(vpDir, net.feed, net.patterns);
+      const codes = vp.warnings.map((w) => w.code);
+      expect(codes).toContain('realtime-coarse-polling');
+      expect(codes).toContain('realtime-share-unidentified');
+      for (const p of vp.byPattern.values()) expect(p.stopShare.slice(1, -1).every((s) => s === null)).toBe(true);
+    } finally {
+      rmSync(vpDir, { recursive: true, force: true });
+    }
+  }, 60_000);
+});
+
 describe('observeArchive on bad input', () => {
   const rt = GtfsRealtimeBindings.transit_realtime;
   const base = serviceDayOriginS('20261104', 'Etc/GMT-1') + 7 * 3600;
