@@ -43,6 +43,8 @@ export interface CheckReport {
   /** Every code, zero included: what a history row stores. */
   counts: Record<FindingCode, number>;
   bySeverity: Record<Severity, number>; // how many findings (kinds, not occurrences) at each severity
+  /** The patterns checked, on their analysis date: counts and the median gap, for the history's trend. */
+  network: { date: string; patterns: number; stopsServed: number; tripsPerDay: number; medianGapM: number | null };
 }
 
 export interface CheckOptions {
@@ -118,7 +120,18 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     findings,
     counts,
     bySeverity,
+    network: networkFigures(patterns),
   };
+}
+
+function networkFigures(set: PatternSet): CheckReport['network'] {
+  const served = new Set<number>();
+  let trips = 0;
+  for (const p of set.patterns) {
+    for (const i of p.stopIdx) served.add(i);
+    trips += p.tripsPerDay;
+  }
+  return { date: set.date, patterns: set.patterns.length, stopsServed: served.size, tripsPerDay: trips, medianGapM: medianGapM(set) };
 }
 
 type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
@@ -484,4 +497,21 @@ export function busiestWeekday(feed: Pick<Feed, 'calendar' | 'calendarDates' | '
     }
   }
   return best;
+}
+
+/** Median of the gaps between consecutive passenger stops over every pattern, metres. */
+export function medianGapM(set: PatternSet): number | null {
+  const gaps: number[] = [];
+  for (const p of set.patterns) {
+    let prev = -1;
+    for (let i = 0; i < p.stopIdx.length; i++) {
+      if (p.passengerStop[i] === false) continue;
+      if (prev >= 0) gaps.push(p.distAlongM[i] - p.distAlongM[prev]);
+      prev = i;
+    }
+  }
+  if (gaps.length === 0) return null;
+  gaps.sort((a, b) => a - b);
+  const m = gaps.length >> 1;
+  return gaps.length % 2 ? gaps[m] : (gaps[m - 1] + gaps[m]) / 2;
 }

@@ -6,7 +6,9 @@ import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate } from './types.js';
 import { StopspanError } from '../common/errors.js';
-import { haversineM } from './check.js';
+import { haversineM, medianGapM } from './check.js';
+
+export { medianGapM };
 
 export interface StopBrief {
   stopId: string;
@@ -274,23 +276,6 @@ function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSe
   const byRoute = <T extends { routeId: string; directionId: number }>(a: T, b: T) =>
     a.routeId < b.routeId ? -1 : a.routeId > b.routeId ? 1 : a.directionId - b.directionId;
   return { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged };
-}
-
-/** Median of the gaps between consecutive passenger stops over every pattern, metres. */
-export function medianGapM(set: PatternSet): number | null {
-  const gaps: number[] = [];
-  for (const p of set.patterns) {
-    let prev = -1;
-    for (let i = 0; i < p.stopIdx.length; i++) {
-      if (p.passengerStop[i] === false) continue;
-      if (prev >= 0) gaps.push(p.distAlongM[i] - p.distAlongM[prev]);
-      prev = i;
-    }
-  }
-  if (gaps.length === 0) return null;
-  gaps.sort((a, b) => a - b);
-  const m = gaps.length >> 1;
-  return gaps.length % 2 ? gaps[m] : (gaps[m - 1] + gaps[m]) / 2;
 }
 
 function spacingPicture(set: PatternSet, audit: AuditResult | undefined): SpacingPicture {

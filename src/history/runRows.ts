@@ -10,6 +10,13 @@ export function checkRunRow(report: CheckReport, command = 'check'): RunRow {
     runDate: report.today,
     command,
     feed: { ...report.feed },
+    headline: {
+      analysisDate: report.network.date || null,
+      patterns: report.network.patterns,
+      stops: report.network.stopsServed,
+      trips: report.network.tripsPerDay,
+      medianGapM: report.network.medianGapM,
+    },
     findings: { ...report.counts },
     severities: { ...report.bySeverity },
   };

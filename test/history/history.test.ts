@@ -99,6 +99,9 @@ describe('recordRun and readHistory', () => {
     const [r] = readHistory(db);
     expect(r.runDate).toBe('2026-10-14');
     expect(Object.keys(r.findings)).toHaveLength(9);
+    // the clean Vellmoor street: one pattern, five stops, 400 m gaps [D]
+    expect(r.headline).toMatchObject({ patterns: 1, stops: 5, trips: 1, analysisDate: '2026-10-14' });
+    expect(r.headline.medianGapM).toBeCloseTo(400, 1);
     db.close();
   });
 });
@@ -123,6 +126,8 @@ describe('rendering', () => {
     expect(html).toContain('<polyline');
     expect(historyText(rows).split('\n')[1]).toMatch(/^2026-10-10\s+check\s+v0\s+hash0\s+300\.0\s+10\s+2\s+0\s+0\s+0\s+0$/);
     expect(historyText([])).toMatch(/no runs/);
+    expect(historyText(rows)).toMatch(/since the previous run \(2026-10-10\): new feed content\n  twin-stops \+1 \(now 1\)\n$/);
+    expect(historyText([rows[0], { ...rows[0], id: 9 }])).toMatch(/same feed content\n  no finding changed its count\n$/);
   });
 });
 
