@@ -20,6 +20,7 @@ export interface BuildPatternsOptions {
   /** Only these routes (route_id, or route_short_name when no route has that id). */
   routes?: string[];
   onProgress?: OnProgress;
+  /** Where warnings are counted; without one they are returned in PatternSet.warnings. */
   warnings?: WarningSink;
   /** Tolerance of the simplified map path, metres. */
   pathToleranceM?: number;
@@ -37,7 +38,8 @@ interface Group {
  * @example const set = buildPatterns(feed, { date: '2026-10-14' }); set.patterns[0].distAlongM
  */
 export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): PatternSet {
-  const { date = feed.date ?? undefined, routes, onProgress, warnings = new WarningSink(), pathToleranceM = 5 } = options;
+  const { date = feed.date ?? undefined, routes, onProgress, warnings: givenSink, pathToleranceM = 5 } = options;
+  const warnings = givenSink ?? new WarningSink();
   if (date === undefined) {
     throw new StopspanError('bad-option', 'invalid option date: expected YYYY-MM-DD (the feed was read without a date), got nothing');
   }
@@ -252,7 +254,9 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   if (projectionFallbacks > 0) {
     warnings.add('projection-fallback', 'stops with no close match on their shape near the previous stop; the rest of the shape was searched', undefined, projectionFallbacks);
   }
-  return { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
+  const set: PatternSet = { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
+  if (!givenSink) set.warnings = warnings.list();
+  return set;
 }
 
 /** Scheduled run time per gap, dwell per stop and whole run time: medians over the pattern's trips. */

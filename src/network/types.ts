@@ -2,6 +2,7 @@
 // distance of each stop along the pattern's path and the scheduled run time of each gap.
 
 import type { ShapeDistUnitFit } from './shapeDistUnit.js';
+import type { FeedWarning } from '../common/warnings.js';
 
 export type DistanceSource = 'shape_dist_traveled' | 'shape_projection' | 'great_circle';
 
@@ -40,6 +41,8 @@ export interface PatternSet {
   shapeDistUnit?: ShapeDistUnitFit | null;
   /** Trips whose shape_dist_traveled decreases (the check stage reports 'distance-backtrack'). */
   distanceBacktracks?: DistanceBacktrack[];
+  /** The network stage's warnings, when buildPatterns was given no WarningSink of the caller's. */
+  warnings?: FeedWarning[];
 }
 
 /** A trip whose shape_dist_traveled decreases at stop index stopIndex; its pattern fell back to projection. */

@@ -198,6 +198,35 @@ describe('buildPatterns: frequencies, stops and times', () => {
   });
 });
 
+describe('buildPatterns: missing shapes and blank directions', () => {
+  it('falls back to straight lines for a shape_id that shapes.txt lacks, counting warnings', () => {
+    const warnings = new WarningSink();
+    const feed = handFeed({ stops: STOPS, trips: [run('u1', ['A', 'B', 'C'], 0, { shape: 'GONE', dir: -1 })] });
+    const p = buildPatterns(feed, { warnings }).patterns[0];
+    expect(p.id).toBe('V1::1'); // a blank direction_id stays blank in the id
+    expect(p.directionId).toBe(-1);
+    expect(p.distanceSource).toBe('great_circle');
+    expect(p.shapeId).toBe('');
+    expect(buildPatterns(feed).warnings!.map((w) => w.code)).toEqual(['unknown-shape', 'pattern-without-shape']);
+    expect(warnings.list().map((w) => [w.code, w.count])).toEqual([
+      ['unknown-shape', 1],
+      ['pattern-without-shape', 1],
+    ]);
+  });
+
+  it('picks the most common shape among the trips as the representative one', () => {
+    const bent = { xy: [...line(0, 0, 600, 0), ...line(600, 0, 600, 40).slice(1), ...line(600, 40, 1200, 40).slice(1)] };
+    const feed = handFeed({
+      stops: STOPS,
+      shapes: { SH1: SHAPE, SH2: bent },
+      trips: [run('s1', ['A', 'C', 'E'], 0, { shape: 'SH2' }), run('s2', ['A', 'C', 'E'], 600), run('s3', ['A', 'C', 'E'], 1200)],
+    });
+    const p = buildPatterns(feed).patterns[0];
+    expect(p.shapeId).toBe('SH1');
+    expect(p.lengthM).toBeCloseTo(1200, -1);
+  });
+});
+
 describe('buildPatterns: options and errors', () => {
   const feed = handFeed({ stops: STOPS, shapes: { SH1: SHAPE }, trips: [run('a', ['A', 'B'], 0), run('b', ['C', 'D'], 0, { route: 'V2' })] });
 
