@@ -328,6 +328,7 @@ export async function observeArchive(
   let implausible = 0;
   let vpDwells = 0;
   let tuDwells = 0;
+  let predictedOnly = 0; // stop events whose last report was still a prediction
   for (const inst of instances.values()) {
     const p = inst.info.pattern;
     const n = p.stopIdx.length;
@@ -345,6 +346,10 @@ export async function observeArchive(
       aggs.set(p.id, agg);
     }
     agg.trips++;
+    for (let i = 0; i < n; i++) {
+      if (Number.isFinite(inst.state.arrS[i]) && !inst.state.arrMeasured[i]) predictedOnly++;
+      if (Number.isFinite(inst.state.depS[i]) && !inst.state.depMeasured[i]) predictedOnly++;
+    }
     const served: (boolean | null)[] = new Array(n);
     for (let i = 0; i < n; i++) {
       // terminals are always served; their "dwell" is layover, so it is not counted
@@ -380,6 +385,16 @@ export async function observeArchive(
     warnings.add('realtime-implausible-run-time', `observed gap run time not positive or faster than ${maxGapSpeedMps} m/s; dropped`, undefined, implausible);
   }
 
+  if (predictedOnly > 0) {
+    warnings.add(
+      'realtime-predicted-only',
+      measuredOnly
+        ? 'arrival or departure last reported while still in the future (a prediction); not used'
+        : 'arrival or departure last reported while still in the future (a prediction); used as measured, as asked',
+      undefined,
+      predictedOnly,
+    );
+  }
   const meanVpIntervalS = vpIntervals > 0 ? vpIntervalSumS / vpIntervals : NaN;
   if (vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
     warnings.add(
