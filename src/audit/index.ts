@@ -4,6 +4,7 @@ export * from './verdicts.js';
 export * from './candidates.js';
 export * from './sensitivity.js';
 export * from './runAudit.js';
+export * from './prepareAudit.js';
 export * from './findings.js';
 export * from './check.js';
 export * from './checkText.js';

@@ -1,0 +1,75 @@
+// The shared first half of an audit and a what-if: parameters normalised once, the keep-list checked,
+// demand per pattern (ridership file or assumed), and every pattern prepared for the model.
+
+import { StopspanError } from '../common/errors.js';
+import type { OnProgress } from '../common/progress.js';
+import { WarningSink } from '../common/warnings.js';
+import type { Feed } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import type { ObservedData } from '../realtime/types.js';
+import { assumedDemand, ridershipDemand, type PatternDemand } from '../model/demand.js';
+import { normalizeParams, type ModelParams, type NormalizedParams } from '../model/params.js';
+import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
+import { loadRidership } from '../model/ridership.js';
+
+export interface PrepareAuditOptions {
+  params?: unknown;
+  ridership?: string;
+  keep?: string[];
+  observed?: ObservedData;
+  onProgress?: OnProgress;
+  forceTransfers?: boolean;
+}
+
+export interface PreparedAudit {
+  np: NormalizedParams;
+  params: ModelParams;
+  preps: PreparedPattern[];
+  warnings: WarningSink;
+}
+
+function isNormalized(x: unknown): x is NormalizedParams {
+  return typeof x === 'object' && x !== null && 'values' in x && 'given' in x && Array.isArray((x as NormalizedParams).given);
+}
+
+export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true }: PrepareAuditOptions = {}): PreparedAudit {
+  const np = isNormalized(rawParams) ? rawParams : normalizeParams(rawParams);
+  const params = np.values;
+  if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string')) throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
+  for (const id of keep) {
+    if (!feed.stopIndex.has(id)) throw new StopspanError('bad-option', `invalid option keep: unknown stop_id ${id}`, { column: 'keep', value: id });
+  }
+  if (patterns.patterns.length === 0) throw new StopspanError('empty-feed', `no patterns to analyse on ${patterns.date}`, { file: feed.source });
+  const warnings = new WarningSink();
+
+  onProgress?.({ stage: 'demand' });
+  const layouts = patterns.patterns.map((pattern) => {
+    const modelStops: number[] = [];
+    for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
+    return { pattern, modelStops, posM: modelStops.map((j) => pattern.distAlongM[j]) };
+  });
+  let observedDemand: Map<string, PatternDemand> | null = null;
+  if (ridership !== undefined) {
+    const rows = loadRidership(ridership, feed, { warnings });
+    observedDemand = ridershipDemand(rows, layouts.filter((l) => l.modelStops.length >= 2), { warnings });
+  }
+
+  const keepSet = new Set(keep);
+  const preps: PreparedPattern[] = [];
+  patterns.patterns.forEach((pattern, i) => {
+    onProgress?.({ stage: 'model', done: i, total: patterns.patterns.length, unit: 'patterns' });
+    const prep = preparePattern(
+      feed,
+      patterns,
+      pattern,
+      (modelStops, posM) =>
+        observedDemand?.get(pattern.id) ??
+        assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km, catchmentHalfMaxM: params.max_gap_m / 2 }),
+      params,
+      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
+    );
+    if (prep) preps.push(prep);
+  });
+  if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
+  return { np, params, preps, warnings };
+}
