@@ -137,9 +137,10 @@ describe('stopspan check --history and stopspan history', () => {
     expect((await cli(['check', join(FIX, 'no-such-feed'), '--today', TODAY, '--history', db])).code).toBe(2);
     const text = await cli(['history', db]);
     expect(text.code).toBe(0);
-    const lines = text.stdout.trim().split('\n');
+    const lines = text.stdout.split('\n\n')[0].trim().split('\n');
+    expect(text.stdout).toMatch(/since the previous run \(2026-10-13\): new feed content\n  twin-stops \+1 \(now 1\)\n$/);
     expect(lines).toHaveLength(3); // header + two runs
-    expect(lines[1]).toMatch(/^2026-10-13\s+check\s+clean\b/);
+    expect(lines[1]).toMatch(/^2026-10-13\s+check\s+clean\s+\w{8}\s+400\.0\s/); // the clean street's 400 m gaps [D]
     expect(lines[2]).toMatch(/^2026-10-14\s+check\s+twin-stops\b.*\s1$/);
     const json = JSON.parse((await cli(['history', db, '--json'])).stdout);
     expect(json.map((r: { findings: Record<string, number> }) => r.findings['twin-stops'])).toEqual([0, 1]);
