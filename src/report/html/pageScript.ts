@@ -40,6 +40,14 @@ export const PAGE_SCRIPT = String.raw`
     if (v === null || v === undefined || !isFinite(v)) return '–';
     return (v > 0 ? '+' : '') + num(v, d);
   }
+  // a round tick step (1, 2 or 5 times a power of ten) giving about n ticks over span
+  function niceStep(span, n) {
+    var raw = Math.max(span, 1e-9) / n, p = Math.pow(10, Math.floor(Math.log(raw) / Math.LN10)), f = raw / p;
+    return (f < 1.5 ? 1 : f < 3.5 ? 2 : f < 7.5 ? 5 : 10) * p;
+  }
+  function decimalsFor(step) {
+    return step >= 1 ? 1 : Math.min(3, Math.ceil(-Math.log(step) / Math.LN10) + 1);
+  }
   function assumedTag(src) { return src === 'assumed' ? ' (assumed demand)' : ''; }
   function patternLabel(p) {
     return 'Route ' + p.routeName + ' to ' + p.headsign + ' (' + p.id + ')';
@@ -99,12 +107,17 @@ export const PAGE_SCRIPT = String.raw`
     var s = sv('svg', { 'class': 'chart strip', viewBox: '0 0 ' + W + ' ' + H, width: W, height: H, role: 'group', 'aria-label': 'Strip diagram of ' + patternLabel(p) });
     s.style.maxWidth = 'none';
     s.appendChild(sv('line', { 'class': 'strip-line', x1: x(0), x2: x(total), y1: y, y2: y }));
+    var labelEnd = -Infinity; // right edge of the last wide-gap label, so labels never overlap
     p.gaps.forEach(function (g) {
-      if (!g[2]) return;
+      if (!g[2] || !p.stops[g[0]]) return;
       var a = p.stops[g[0]][5], b = a + g[1];
       s.appendChild(sv('line', { 'class': 'gap-wide', x1: x(a), x2: x(b), y1: y, y2: y }));
-      var t = sv('text', { x: (x(a) + x(b)) / 2, y: y - 16, 'text-anchor': 'middle', 'class': 'marker-label' }, 'W ' + len(g[1]));
-      s.appendChild(t);
+      var mid = (x(a) + x(b)) / 2, full = 'W ' + len(g[1]), fullW = full.length * 6.2;
+      var text = x(b) - x(a) >= fullW && mid - fullW / 2 > labelEnd + 4 ? full : mid - 5 > labelEnd + 2 ? 'W' : '';
+      if (!text) return;
+      var w = text === 'W' ? 10 : fullW;
+      labelEnd = mid + w / 2;
+      s.appendChild(sv('text', { x: mid, y: y - 16, 'text-anchor': 'middle', 'class': 'marker-label' }, text));
     });
     p.stops.forEach(function (st) {
       var cx = x(st[5]);
@@ -231,15 +244,15 @@ export const PAGE_SCRIPT = String.raw`
     s.appendChild(sv('text', { 'class': 'marker-label', x: X(p.mean) + 8, y: Y(p.curCost / 60) - 8 }, 'today (mean gap) ' + len(p.mean) + ', ' + num(p.curCost / 60, 2) + ' min'));
     s.appendChild(sv('line', { 'class': 'axis', x1: L, x2: W - R, y1: H - B, y2: H - B }));
     s.appendChild(sv('line', { 'class': 'axis', x1: L, x2: L, y1: T, y2: H - B }));
-    var stepM = IMP ? 500 * 0.3048 : 100;
-    var lab = 0;
+    var stepU = niceStep(toUnit(x1) - toUnit(x0), 7), stepM = IMP ? stepU * 0.3048 : stepU;
     for (var m = Math.ceil(x0 / stepM) * stepM; m <= x1 + 1e-6; m += stepM) {
-      if (lab++ % 2 === 0) s.appendChild(sv('text', { 'class': 'tick', x: X(m), y: H - B + 16, 'text-anchor': 'middle' }, num(toUnit(m))));
+      s.appendChild(sv('text', { 'class': 'tick', x: X(m), y: H - B + 16, 'text-anchor': 'middle' }, num(toUnit(m), stepU < 1 ? 1 : 0)));
       s.appendChild(sv('line', { 'class': 'axis', x1: X(m), x2: X(m), y1: H - B, y2: H - B + 4 }));
     }
+    var yDigits = decimalsFor((y1 - y0) / 4);
     for (var i = 0; i <= 4; i++) {
       var v = y0 + (y1 - y0) * i / 4;
-      s.appendChild(sv('text', { 'class': 'tick', x: L - 6, y: Y(v) + 4, 'text-anchor': 'end' }, num(v, 1)));
+      s.appendChild(sv('text', { 'class': 'tick', x: L - 6, y: Y(v) + 4, 'text-anchor': 'end' }, num(v, yDigits)));
     }
     s.appendChild(sv('text', { 'class': 'axis-label', x: (L + W - R) / 2, y: H - 8, 'text-anchor': 'middle' }, 'stop spacing (' + lenUnit() + ')'));
     s.appendChild(sv('text', { 'class': 'axis-label', transform: 'translate(14 ' + ((T + H - B) / 2) + ') rotate(-90)', 'text-anchor': 'middle' }, 'minutes per rider (walk weighted + stops)'));

@@ -30,6 +30,7 @@ svg.chart { width:100%; height:auto; max-width:900px; background:var(--card); bo
 svg text { font-family:inherit; fill:var(--ink); }
 .tick, .axis-label, .marker-label, .band-label { font-size:11.5px; }
 .tick, .axis-label { fill:var(--muted); }
+.marker-label, .band-label { paint-order:stroke; stroke:#fff; stroke-width:3.5px; stroke-linejoin:round; }
 .axis { stroke:#9aa3a6; stroke-width:1; }
 .band { fill:var(--band); }
 .band-label { fill:var(--accent); font-weight:600; }
