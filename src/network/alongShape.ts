@@ -3,7 +3,7 @@
 // straight-line distance between the stops, so that loops, out-and-back shapes and figure-eights never
 // snap a stop backwards and the work per pattern is a small multiple of the shape's length, not stops
 // times shape points. Within the window the earliest close match wins; when nothing in the window is
-// close, the rest of the shape is searched and a much closer point there is taken instead.
+// close, the shape up to fallbackLookAheadM beyond is searched and a much closer point there is taken.
 
 import { EARTH_RADIUS_M, haversineM, nearestOnSegment } from './geodesy.js';
 
@@ -48,8 +48,10 @@ export interface AlongShapeOptions {
   lookAheadFactor?: number;
   /** An earlier match at most this much farther from the shape than the window's best is preferred. */
   slackM?: number;
-  /** When the window's best match is farther than this from the shape, the rest of the shape is searched. */
+  /** When the window's best match is farther than this from the shape, the shape beyond is searched. */
   fallbackM?: number;
+  /** How far beyond the window that search goes, metres (bounds the work when a shape is far from its stops). */
+  fallbackLookAheadM?: number;
 }
 
 export interface AlongShapeResult {
@@ -57,7 +59,7 @@ export interface AlongShapeResult {
   distAlongM: number[];
   /** Metres from each stop to its projected point on the shape. */
   offsetM: number[];
-  /** Stops whose window held no close match, so the rest of the shape was searched. */
+  /** Stops whose window held no close match, so the shape beyond the window was searched. */
   fallbacks: number;
   /** Segments examined in all (a measure of the work done). */
   segmentsVisited: number;
@@ -68,8 +70,8 @@ export interface AlongShapeResult {
  * @example projectAlongShape(prepareShape(shape), [{ lat: 52.1, lon: 4.3 }, { lat: 52.11, lon: 4.31 }])
  */
 export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options: AlongShapeOptions = {}): AlongShapeResult {
-  const { minLookAheadM = 300, lookAheadFactor = 2.5, slackM = 10, fallbackM = 50 } = options;
-  for (const [name, v] of Object.entries({ minLookAheadM, lookAheadFactor, slackM, fallbackM })) {
+  const { minLookAheadM = 300, lookAheadFactor = 2.5, slackM = 10, fallbackM = 50, fallbackLookAheadM = 3000 } = options;
+  for (const [name, v] of Object.entries({ minLookAheadM, lookAheadFactor, slackM, fallbackM, fallbackLookAheadM })) {
     if (!(Number.isFinite(v) && v >= 0)) throw new RangeError(`projectAlongShape: invalid option ${name}: expected a number >= 0, got ${v}`);
   }
   const { lat, lon, cumM, lonScaleM } = shape;
@@ -164,7 +166,10 @@ export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options
       // closer point (less than half as far, and by more than the slack).
       fallbacks++;
       const from = end;
-      n = scan(s, from, nSeg);
+      let to = from + 1;
+      const farEnd = cumM[from] + fallbackLookAheadM;
+      while (to < nSeg && cumM[to] <= farEnd) to++;
+      n = scan(s, from, to);
       const far = choose(n);
       if (far.bestD < d / 2 && far.bestD < d - slackM) {
         // The closest valley bottom out there, earliest among near-equals.

@@ -89,12 +89,12 @@ describe('projectAlongShape', () => {
   });
 
   it('searches the rest of the shape when nothing near lies within the look-ahead window', () => {
-    // Out 2.9 km along a street and back 200 m to the north. The look-ahead window from the first stop
-    // is 500 m of shape (the chord to the next stop is short), far short of the return leg.
-    const xy = [...line(0, 0, 3000, 0), ...line(3000, 0, 3000, 200).slice(1), ...line(3000, 200, 100, 200).slice(1)];
+    // Out 1.3 km along a street and back 200 m to the north. The look-ahead window from the first stop
+    // is 500 m of shape (the chord to the next stop is short), well short of the return leg.
+    const xy = [...line(0, 0, 1300, 0), ...line(1300, 0, 1300, 200).slice(1), ...line(1300, 200, 100, 200).slice(1)];
     const shape = shapeOf(xy);
-    // The second stop lies 200 m north of the first: the chord is short, but along the shape it is ~6 km
-    // ahead; it is 160 m from the outbound leg and 0 m from the inbound leg.
+    // The second stop lies 200 m north of the first: the chord is short, but along the shape it is about 2.5 km
+    // ahead; it is 200 m from the outbound leg and 0 m from the inbound leg.
     const r = projectAlongShape(shape, stopsAt([[100, 0], [100, 200]]), { minLookAheadM: 500, lookAheadFactor: 2 });
     expect(r.fallbacks).toBe(1);
     expect(r.distAlongM[1]).toBeCloseTo(shape.lengthM, 0);
@@ -162,6 +162,17 @@ describe('projectAlongShape', () => {
     // stop would be 81 * 2000 = 162 000 segments.
     expect(r.segmentsVisited).toBeLessThan(3 * nSeg);
     expect(r.fallbacks).toBe(0);
+  });
+
+  it('bounds the extra search when every stop is far from its shape', () => {
+    // A shape drawn 80 m off the street: every stop triggers the search beyond the window, which stops
+    // 3 km on (fallbackLookAheadM), so the work stays a bounded multiple of the shape.
+    const xy = line(0, 0, 20000, 0);
+    const shape = shapeOf(xy);
+    const r = projectAlongShape(shape, stopsAt(Array.from({ length: 81 }, (_, k) => [k * 250, 80] as [number, number])));
+    expect(r.fallbacks).toBeGreaterThanOrEqual(79); // all but the last, whose window reaches the end
+    r.distAlongM.forEach((d, k) => expect(Math.abs(d - k * 250)).toBeLessThan(1));
+    expect(r.segmentsVisited).toBeLessThan(15 * (xy.length - 1));
   });
 
   it('rejects a bad option, naming it', () => {
