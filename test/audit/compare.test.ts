@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { compareFeeds, lcsMatch, medianGapM } from '../../src/audit/compare.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from './buildFeed.js';
+import type { AuditResult, Candidate } from '../../src/audit/types.js';
 
 function twoRoutes(): FeedSpec {
   const spec = cleanSpec();
@@ -88,6 +89,24 @@ describe('compareFeeds', () => {
     expect(medianGapM(patterns)).toBeCloseTo(400, 1);
     patterns.patterns[0].passengerStop[3] = false;
     expect(medianGapM(patterns)).toBeCloseTo(800, 1); // 800, 800
+  });
+
+  it('takes close stops, wide gaps, passenger-minutes and candidates from the two audits', () => {
+    const a = buildFeed(cleanSpec());
+    const cand = (action: 'remove' | 'add', stopId: string, stopName: string, net: number) =>
+      ({ rank: 1, action, stopId, stopName, lat: 0, lon: 0, routeIds: ['R1'], patternIds: [], netPaxMinPerDay: net }) as unknown as Candidate;
+    const audit = (closeStops: number, wideGaps: number, paxMinLostPerDay: number, candidates: Candidate[]) =>
+      ({ headline: { closeStops, wideGaps, paxMinLostPerDay }, candidates }) as unknown as AuditResult;
+    const c = compareFeeds(a.feed, a.feed, a.patterns, a.patterns, {
+      audits: {
+        old: audit(4, 1, 120, [cand('remove', 'S2', 'Vellmoor S2', -30), cand('add', '', 'between S3 and S4', -5)]),
+        new: audit(3, 1, 90, [cand('remove', 'S4', 'Vellmoor S4', -12), cand('add', '', 'between S3 and S4', -6)]),
+      },
+    });
+    expect(c.spacing.before).toMatchObject({ closeStops: 4, wideGaps: 1, paxMinLostPerDay: 120 });
+    expect(c.spacing.after).toMatchObject({ closeStops: 3, wideGaps: 1, paxMinLostPerDay: 90 });
+    expect(c.candidates!.appeared.map((x) => x.stopId)).toEqual(['S4']);
+    expect(c.candidates!.disappeared.map((x) => x.stopId)).toEqual(['S2']);
   });
 
   it('rejects a negative move threshold', () => {
