@@ -1,0 +1,33 @@
+// The text and HTML renderings of check reports and comparisons keep feed text inert.
+import { describe, expect, it } from 'vitest';
+import { checkFeed } from '../../src/audit/check.js';
+import { checkText } from '../../src/audit/checkText.js';
+import { compareFeeds } from '../../src/audit/compare.js';
+import { comparisonHtml, comparisonText } from '../../src/audit/compareRender.js';
+import { buildFeed, cleanSpec } from './buildFeed.js';
+
+describe('renderers', () => {
+  const hostile = '<img src=x onerror=alert(1)>\u001b[2J';
+  const a = buildFeed(cleanSpec());
+  const spec = cleanSpec();
+  spec.stops[0].name = hostile;
+  spec.stops.push({ id: 'Z0\u001b[31m', lat: 0, lon: 0, name: hostile });
+  const b = buildFeed(spec);
+
+  it('comparisonHtml escapes feed text and loads nothing', () => {
+    const html = comparisonHtml(compareFeeds(a.feed, b.feed, a.patterns, b.patterns));
+    expect(html).not.toContain('<img');
+    expect(html).toContain('&lt;img src=x onerror=alert(1)&gt;');
+    expect(html).not.toMatch(/<script|<link|src="/);
+    expect(html).toContain('Stops renamed (1)');
+  });
+
+  it('comparisonText and checkText show control characters escaped', () => {
+    const text = comparisonText(compareFeeds(a.feed, b.feed, a.patterns, b.patterns));
+    expect(text).not.toContain('\u001b');
+    expect(text).toContain('\\u001b[2J');
+    const report = checkText(checkFeed(b.feed, b.patterns, { today: '2026-10-14' }));
+    expect(report).not.toContain('\u001b');
+    expect(report).toMatch(/ERROR\s+coordinate-fault \(1\)/);
+  });
+});
