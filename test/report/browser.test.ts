@@ -193,6 +193,7 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
       }
       await writeFile(join(keep, 'report-pattern.png'), await v.page.locator('details.pattern').first().screenshot());
       await v.page.evaluate(() => window.scrollTo(0, 0));
+      await writeFile(join(keep, 'report-overview.png'), await v.page.screenshot({ fullPage: true, clip: { x: 0, y: 0, width: 1280, height: 2300 } }));
       await writeFile(join(keep, 'report-top.png'), await v.page.screenshot({ fullPage: false }));
     }
   });

@@ -46,7 +46,7 @@ export const PAGE_SCRIPT = String.raw`
     return (f < 1.5 ? 1 : f < 3.5 ? 2 : f < 7.5 ? 5 : 10) * p;
   }
   function decimalsFor(step) {
-    return step >= 1 ? 1 : Math.min(3, Math.ceil(-Math.log(step) / Math.LN10) + 1);
+    return step >= 10 ? 0 : Math.min(3, Math.max(1, Math.ceil(-Math.log(step) / Math.LN10)));
   }
   function assumedTag(src) { return src === 'assumed' ? ' (assumed demand)' : ''; }
   function patternLabel(p) {
