@@ -5,6 +5,8 @@ export * from './candidates.js';
 export * from './sensitivity.js';
 export * from './runAudit.js';
 export * from './prepareAudit.js';
+export * from './whatif.js';
+export * from './cautions.js';
 export * from './findings.js';
 export * from './check.js';
 export * from './checkText.js';

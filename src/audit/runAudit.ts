@@ -10,6 +10,7 @@ import { version } from '../version.js';
 import type { AuditResult, Headline } from './types.js';
 import { paramsReport } from '../model/params.js';
 import { prepareAudit } from './prepareAudit.js';
+import { CAUTIONS } from './cautions.js';
 import { analysePattern } from './verdicts.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
@@ -98,7 +99,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
-    'This is a screening tool. Before any stop is removed or moved: field review of the walk (crossings, sidewalks, grades, lighting), accessibility review under local law (for example the ADA in the US), attention to older and disabled riders, an equity review where one is required (for example Title VI service-equity analysis in the US), and public engagement. Local policy and licensed professional judgement decide.',
+    ...CAUTIONS,
   ];
 
   return {

@@ -113,6 +113,30 @@ export class Corridor {
     return cv.b + cv.a - cu.b - cu.a;
   }
 
+  /** The stretch of line whose trip ends belong to existing stop j today. */
+  tileBounds(j: number): { loM: number; hiM: number } {
+    return { loM: this.lo[j], hiM: this.hi[j] };
+  }
+
+  /** Metres walked per day by the trip ends between u and v (u <= v) if all of them go to point x. */
+  walkToPointM(u: number, v: number, x: number): number {
+    if (!(v > u)) return 0;
+    let total = 0;
+    const a = Math.min(v, x);
+    if (a > u) {
+      const cu = this.cumulative(u);
+      const ca = this.cumulative(a);
+      total += x * (ca.b + ca.a - cu.b - cu.a) - (ca.m - cu.m);
+    }
+    const b = Math.max(u, x);
+    if (v > b) {
+      const cb = this.cumulative(b);
+      const cv = this.cumulative(v);
+      total += cv.m - cb.m - x * (cv.b + cv.a - cb.b - cb.a);
+    }
+    return Math.max(0, total);
+  }
+
   /** Riders on board at point y (boardings minus alightings before it), per day. */
   loadAt(y: number): number {
     const c = this.cumulative(y);

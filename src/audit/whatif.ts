@@ -1,0 +1,463 @@
+// The what-if engine: a concrete proposal (remove stops, add stops at coordinates, move stops) weighed
+// pattern by pattern on the same corridor cost as the audit: who walks farther and who walks less, the
+// ride time saved for riders on board, the neighbours' changed stopping, the net in passenger-minutes per
+// day, run time and vehicle-hours, the largest gap against the walking policy and the share of the route
+// within the policy's walk of a stop, before and after, and the net again at the sensitivity walk weights.
+// A scenario is checked whole before anything is computed: an unknown or ambiguous stop, a terminal, a
+// coordinate far from the named route, or an unknown key is a 'bad-scenario' error naming the item.
+
+import { readFileSync } from 'node:fs';
+import { StopspanError } from '../common/errors.js';
+import type { FeedWarning } from '../common/warnings.js';
+import type { Feed } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import type { DemandSource, ParamsReport } from './types.js';
+import { type Corridor, type CostSettings, servedStopCost } from '../model/corridor.js';
+import { paramsReport, type ModelParams } from '../model/params.js';
+import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
+import { prepareAudit, type PrepareAuditOptions } from './prepareAudit.js';
+import { CAUTIONS } from './cautions.js';
+
+/** A scenario as written in a scenario file (every key optional; unknown keys are refused). */
+export interface ScenarioInput {
+  remove?: (string | { stop: string; routes?: string[] })[];
+  add?: { lat: number; lon: number; route?: string; name?: string }[];
+  move?: { stop: string; lat: number; lon: number }[];
+}
+
+/** How far (metres) an added or moved stop may lie from the pattern's line of stops. */
+export const SNAP_LIMIT_M = 200;
+
+export interface ScenarioPatternEffect {
+  patternId: string;
+  routeId: string;
+  tripsPerDay: number;
+  demandSource: DemandSource;
+  removedStopIds: string[];
+  movedStopIds: string[];
+  addedCount: number;
+  ridersAffectedPerDay: number; // riders whose stop changes
+  walkAddedPaxMinPerDay: number;
+  walkSavedPaxMinPerDay: number;
+  rideSavedPaxMinPerDay: number; // riders on board, at the stops no longer served (minus new stops' delay)
+  neighboursExtraPaxMinPerDay: number; // change in delay at the stops kept (their stopping changes)
+  netPaxMinPerDay: number; // walk added - walk saved - ride saved + neighbours' extra; negative = saving
+  runTimeSavedPerTripS: number;
+  vehicleHoursPerDay: number; // saved (positive) or added (negative)
+  largestGapBeforeM: number;
+  largestGapAfterM: number;
+  coverageBefore: number; // share of the pattern's length within max_gap_m/2 of a stop
+  coverageAfter: number;
+}
+
+export type ScenarioTotals = Omit<ScenarioPatternEffect, 'patternId' | 'routeId' | 'tripsPerDay' | 'demandSource' | 'removedStopIds' | 'movedStopIds' | 'addedCount' | 'coverageBefore' | 'coverageAfter'> & { patternsAffected: number; overPolicyAfter: number };
+
+export interface ScenarioSensitivity {
+  label: string;
+  walkWeight: number;
+  netPaxMinPerDay: number;
+}
+
+export interface ScenarioResult {
+  date: string;
+  patterns: ScenarioPatternEffect[];
+  totals: ScenarioTotals;
+  sensitivity: ScenarioSensitivity[];
+  params: ParamsReport;
+  assumptions: string[];
+  cautions: string[];
+  warnings: FeedWarning[];
+}
+
+export interface EvaluateScenarioOptions extends PrepareAuditOptions {}
+
+const KNOWN_KEYS = ['remove', 'add', 'move'];
+
+function bad(message: string, value?: string, file?: string): StopspanError {
+  return new StopspanError('bad-scenario', message, { file, value });
+}
+
+function isObject(x: unknown): x is Record<string, unknown> {
+  return typeof x === 'object' && x !== null && !Array.isArray(x);
+}
+
+function num(x: unknown, what: string, file?: string): number {
+  const n = typeof x === 'string' && x.trim() !== '' ? Number(x) : x;
+  if (typeof n !== 'number' || !Number.isFinite(n)) throw bad(`invalid ${what}: expected a number`, String(x), file);
+  return n;
+}
+
+function latLon(lat: unknown, lon: unknown, where: string, file?: string): { lat: number; lon: number } {
+  const la = num(lat, `${where} lat`, file);
+  const lo = num(lon, `${where} lon`, file);
+  if (la < -90 || la > 90 || lo < -180 || lo > 180) throw bad(`invalid ${where}: coordinates out of range`, `${la},${lo}`, file);
+  return { lat: la, lon: lo };
+}
+
+/** Checks a scenario object (from a file or built from options); unknown keys are errors. */
+export function parseScenario(input: unknown, { file }: { file?: string } = {}): ScenarioInput {
+  if (!isObject(input)) throw bad('invalid scenario: expected an object with remove, add and/or move', undefined, file);
+  for (const k of Object.keys(input)) if (!KNOWN_KEYS.includes(k)) throw bad(`invalid scenario key ${k}: expected one of ${KNOWN_KEYS.join(', ')}`, k, file);
+  const out: ScenarioInput = {};
+  if (input.remove !== undefined) {
+    if (!Array.isArray(input.remove)) throw bad('invalid scenario remove: expected a list', undefined, file);
+    out.remove = input.remove.map((r, i) => {
+      if (typeof r === 'string') return r;
+      if (!isObject(r)) throw bad(`invalid scenario remove[${i}]: expected a stop id or {stop, routes}`, JSON.stringify(r), file);
+      for (const k of Object.keys(r)) if (k !== 'stop' && k !== 'routes') throw bad(`invalid scenario key remove[${i}].${k}: expected stop or routes`, k, file);
+      if (typeof r.stop !== 'string' || r.stop === '') throw bad(`invalid scenario remove[${i}].stop: expected a stop id or name`, JSON.stringify(r.stop), file);
+      if (r.routes !== undefined && (!Array.isArray(r.routes) || r.routes.some((x) => typeof x !== 'string'))) throw bad(`invalid scenario remove[${i}].routes: expected a list of route ids`, JSON.stringify(r.routes), file);
+      return { stop: r.stop, routes: r.routes as string[] | undefined };
+    });
+  }
+  if (input.add !== undefined) {
+    if (!Array.isArray(input.add)) throw bad('invalid scenario add: expected a list', undefined, file);
+    out.add = input.add.map((a, i) => {
+      if (!isObject(a)) throw bad(`invalid scenario add[${i}]: expected {lat, lon, route?, name?}`, JSON.stringify(a), file);
+      for (const k of Object.keys(a)) if (!['lat', 'lon', 'route', 'name'].includes(k)) throw bad(`invalid scenario key add[${i}].${k}: expected lat, lon, route or name`, k, file);
+      if (a.route !== undefined && typeof a.route !== 'string') throw bad(`invalid scenario add[${i}].route: expected a route id`, JSON.stringify(a.route), file);
+      if (a.name !== undefined && typeof a.name !== 'string') throw bad(`invalid scenario add[${i}].name: expected text`, JSON.stringify(a.name), file);
+      return { ...latLon(a.lat, a.lon, `add[${i}]`, file), route: a.route as string | undefined, name: a.name as string | undefined };
+    });
+  }
+  if (input.move !== undefined) {
+    if (!Array.isArray(input.move)) throw bad('invalid scenario move: expected a list', undefined, file);
+    out.move = input.move.map((m, i) => {
+      if (!isObject(m)) throw bad(`invalid scenario move[${i}]: expected {stop, lat, lon}`, JSON.stringify(m), file);
+      for (const k of Object.keys(m)) if (!['stop', 'lat', 'lon'].includes(k)) throw bad(`invalid scenario key move[${i}].${k}: expected stop, lat or lon`, k, file);
+      if (typeof m.stop !== 'string' || m.stop === '') throw bad(`invalid scenario move[${i}].stop: expected a stop id or name`, JSON.stringify(m.stop), file);
+      return { stop: m.stop, ...latLon(m.lat, m.lon, `move[${i}]`, file) };
+    });
+  }
+  if (!out.remove?.length && !out.add?.length && !out.move?.length) throw bad('invalid scenario: nothing to remove, add or move', undefined, file);
+  return out;
+}
+
+/** Builds a scenario from command-line strings: remove STOP; add LAT,LON[:ROUTE]; move STOP:LAT,LON. */
+export function scenarioFromOptions({ remove = [], add = [], move = [] }: { remove?: string[]; add?: string[]; move?: string[] }): ScenarioInput {
+  const addOut = add.map((s) => {
+    const m = /^\s*([-+0-9.eE]+)\s*,\s*([-+0-9.eE]+)\s*(?::\s*(.+))?$/.exec(s);
+    if (!m) throw bad('invalid option --add: expected LAT,LON[:ROUTE_ID]', s);
+    return { lat: Number(m[1]), lon: Number(m[2]), ...(m[3] ? { route: m[3].trim() } : {}) };
+  });
+  const moveOut = move.map((s) => {
+    const m = /^(.+):\s*([-+0-9.eE]+)\s*,\s*([-+0-9.eE]+)\s*$/.exec(s);
+    if (!m) throw bad('invalid option --move: expected STOP_ID:LAT,LON', s);
+    return { stop: m[1].trim(), lat: Number(m[2]), lon: Number(m[3]) };
+  });
+  return parseScenario({ ...(remove.length ? { remove } : {}), ...(addOut.length ? { add: addOut } : {}), ...(moveOut.length ? { move: moveOut } : {}) });
+}
+
+/** Reads a scenario JSON file. */
+export function loadScenarioFile(path: string): ScenarioInput {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (e) {
+    throw new StopspanError('bad-scenario', `cannot read scenario file: ${(e as Error).message}`, { file: path });
+  }
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(text.replace(/^\uFEFF/, ''));
+  } catch (e) {
+    throw new StopspanError('bad-scenario', `scenario file is not valid JSON: ${(e as Error).message}`, { file: path });
+  }
+  return parseScenario(parsed, { file: path });
+}
+
+/** A stop by id, else by name (case-insensitive); an ambiguous name is an error. */
+function resolveStop(feed: Feed, ref: string, where: string): number {
+  const byId = feed.stopIndex.get(ref);
+  if (byId !== undefined) return byId;
+  const wanted = ref.trim().toLowerCase();
+  const hits: number[] = [];
+  feed.stops.forEach((s, i) => {
+    if (s.name.trim().toLowerCase() === wanted && (s.locationType === 0 || Number.isNaN(s.locationType))) hits.push(i);
+  });
+  if (hits.length === 1) return hits[0];
+  if (hits.length > 1) throw bad(`${where}: stop name "${ref}" is ambiguous (${hits.length} stops: ${hits.slice(0, 6).map((i) => feed.stops[i].id).join(', ')}${hits.length > 6 ? ', ...' : ''}); give the stop_id`, ref);
+  throw bad(`${where}: unknown stop "${ref}" (neither a stop_id nor a stop name of the feed)`, ref);
+}
+
+/** Nearest point of a pattern's line of stops to (lat, lon): distance along and offset, metres. */
+function project(feed: Feed, prep: PreparedPattern, lat: number, lon: number): { posM: number; offsetM: number } {
+  const { modelStops, posM, pattern } = prep;
+  const R = 6_371_008.8;
+  const k = Math.cos((lat * Math.PI) / 180);
+  const toXY = (la: number, lo: number) => [((lo - lon) * Math.PI * R * k) / 180, ((la - lat) * Math.PI * R) / 180];
+  let best = { posM: posM[0], offsetM: Infinity };
+  for (let m = 0; m + 1 < modelStops.length; m++) {
+    const a = feed.stops[pattern.stopIdx[modelStops[m]]];
+    const b = feed.stops[pattern.stopIdx[modelStops[m + 1]]];
+    const [ax, ay] = toXY(a.lat, a.lon);
+    const [bx, by] = toXY(b.lat, b.lon);
+    const dx = bx - ax;
+    const dy = by - ay;
+    const len2 = dx * dx + dy * dy;
+    const t = len2 > 0 ? Math.min(1, Math.max(0, -(ax * dx + ay * dy) / len2)) : 0;
+    const px = ax + t * dx;
+    const py = ay + t * dy;
+    const d = Math.hypot(px, py);
+    if (d < best.offsetM) best = { posM: posM[m] + t * (posM[m + 1] - posM[m]), offsetM: d };
+  }
+  return best;
+}
+
+interface Served {
+  pos: number;
+  existing: number; // model stop index, -1 for a new or moved stop
+}
+
+interface PatternChange {
+  prep: PreparedPattern;
+  removed: Set<number>; // model positions
+  moved: Map<number, number>; // model position -> new distance along
+  added: number[]; // distances along
+}
+
+function totalStops(c: Corridor, served: Served[], s: CostSettings): { costS: number[]; busS: number[] } {
+  const costS: number[] = served.map(() => 0);
+  const busS: number[] = served.map(() => 0);
+  for (let t = 1; t + 1 < served.length; t++) {
+    const r = servedStopCost(c, served[t - 1].pos, served[t].pos, served[t + 1].pos, served[t].existing, s);
+    costS[t] = r.costS;
+    busS[t] = r.busTimePerTripS;
+  }
+  return { costS, busS };
+}
+
+function walkToNearestM(c: Corridor, u: number, v: number, served: Served[]): number {
+  let total = 0;
+  for (let t = 0; t < served.length; t++) {
+    const lo = t === 0 ? -Infinity : (served[t - 1].pos + served[t].pos) / 2;
+    const hi = t === served.length - 1 ? Infinity : (served[t].pos + served[t + 1].pos) / 2;
+    const a = Math.max(u, lo);
+    const b = Math.min(v, hi);
+    if (b > a) total += c.walkToPointM(a, b, served[t].pos);
+  }
+  return total;
+}
+
+function coverage(served: Served[], startM: number, endM: number, radiusM: number): number {
+  const D = endM - startM;
+  if (!(D > 0)) return 1;
+  let covered = 0;
+  let reach = startM;
+  for (const s of served) {
+    const a = Math.max(reach, s.pos - radiusM, startM);
+    const b = Math.min(s.pos + radiusM, endM);
+    if (b > a) covered += b - a;
+    reach = Math.max(reach, b);
+  }
+  return Math.min(1, covered / D);
+}
+
+function largestGap(served: Served[]): number {
+  let g = 0;
+  for (let t = 0; t + 1 < served.length; t++) g = Math.max(g, served[t + 1].pos - served[t].pos);
+  return g;
+}
+
+function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWeight: number): ScenarioPatternEffect {
+  const { prep, removed, moved, added } = change;
+  const c = prep.corridor;
+  const settings = costSettings(prep, params, { walkWeight });
+  const wv = settings.walkWeight / settings.walkSpeedMps;
+  const today: Served[] = prep.posM.map((pos, m) => ({ pos, existing: m }));
+  const after: Served[] = [];
+  prep.posM.forEach((pos, m) => {
+    if (removed.has(m)) return;
+    const to = moved.get(m);
+    after.push(to === undefined ? { pos, existing: m } : { pos: to, existing: -1 });
+  });
+  for (const pos of added) after.push({ pos, existing: -1 });
+  after.sort((a, b) => a.pos - b.pos || a.existing - b.existing);
+
+  // walk, tile by tile (each tile's riders used stop m today)
+  let walkAddedM = 0;
+  let walkSavedM = 0;
+  let affected = 0;
+  for (let m = 0; m < c.n; m++) {
+    const { loM, hiM } = c.tileBounds(m);
+    const before = c.walkToPointM(loM, hiM, prep.posM[m]);
+    const now = walkToNearestM(c, loM, hiM, after);
+    if (now > before) walkAddedM += now - before;
+    else walkSavedM += before - now;
+    const ends = c.endsBetween(loM, hiM);
+    const t = after.findIndex((s) => s.existing === m);
+    if (t < 0) affected += ends;
+    else {
+      const l = t === 0 ? -Infinity : (after[t - 1].pos + after[t].pos) / 2;
+      const r = t === after.length - 1 ? Infinity : (after[t].pos + after[t + 1].pos) / 2;
+      const a = Math.max(loM, l);
+      const b = Math.min(hiM, r);
+      affected += ends - (b > a ? c.endsBetween(a, b) : 0);
+    }
+  }
+
+  // delay at stops
+  const st0 = totalStops(c, today, settings);
+  const st1 = totalStops(c, after, settings);
+  let rideSavedS = 0;
+  let neighboursS = 0;
+  const keptAfter = new Map<number, number>();
+  after.forEach((s, t) => {
+    if (s.existing >= 0) keptAfter.set(s.existing, t);
+  });
+  today.forEach((s, t) => {
+    const u = keptAfter.get(s.existing);
+    if (u === undefined) rideSavedS += st0.costS[t];
+    else neighboursS += st1.costS[u] - st0.costS[t];
+  });
+  after.forEach((s, t) => {
+    if (s.existing < 0) rideSavedS -= st1.costS[t];
+  });
+  const busSaved = st0.busS.reduce((x, y) => x + y, 0) - st1.busS.reduce((x, y) => x + y, 0);
+  const walkAdded = (wv * walkAddedM) / 60;
+  const walkSaved = (wv * walkSavedM) / 60;
+  const rideSaved = rideSavedS / 60;
+  const neighbours = neighboursS / 60;
+  const radius = params.max_gap_m / 2;
+  const stopId = (m: number) => feed.stops[prep.pattern.stopIdx[prep.modelStops[m]]]?.id ?? '';
+  return {
+    patternId: prep.pattern.id,
+    routeId: prep.pattern.routeId,
+    tripsPerDay: prep.pattern.tripsPerDay,
+    demandSource: prep.demand.demandSource,
+    removedStopIds: [...removed].sort((a, b) => a - b).map(stopId),
+    movedStopIds: [...moved.keys()].sort((a, b) => a - b).map(stopId),
+    addedCount: added.length,
+    ridersAffectedPerDay: affected,
+    walkAddedPaxMinPerDay: walkAdded,
+    walkSavedPaxMinPerDay: walkSaved,
+    rideSavedPaxMinPerDay: rideSaved,
+    neighboursExtraPaxMinPerDay: neighbours,
+    netPaxMinPerDay: walkAdded - walkSaved - rideSaved + neighbours,
+    runTimeSavedPerTripS: busSaved,
+    vehicleHoursPerDay: (busSaved * prep.pattern.tripsPerDay) / 3600,
+    largestGapBeforeM: largestGap(today),
+    largestGapAfterM: largestGap(after),
+    coverageBefore: coverage(today, c.startM, c.endM, radius),
+    coverageAfter: coverage(after, c.startM, c.endM, radius),
+  };
+}
+
+function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number): ScenarioTotals {
+  const sum = (f: (e: ScenarioPatternEffect) => number) => effects.reduce((s, e) => s + f(e), 0);
+  const trips = sum((e) => e.tripsPerDay);
+  return {
+    patternsAffected: effects.length,
+    ridersAffectedPerDay: sum((e) => e.ridersAffectedPerDay),
+    walkAddedPaxMinPerDay: sum((e) => e.walkAddedPaxMinPerDay),
+    walkSavedPaxMinPerDay: sum((e) => e.walkSavedPaxMinPerDay),
+    rideSavedPaxMinPerDay: sum((e) => e.rideSavedPaxMinPerDay),
+    neighboursExtraPaxMinPerDay: sum((e) => e.neighboursExtraPaxMinPerDay),
+    netPaxMinPerDay: sum((e) => e.netPaxMinPerDay),
+    runTimeSavedPerTripS: trips > 0 ? sum((e) => e.runTimeSavedPerTripS * e.tripsPerDay) / trips : 0,
+    vehicleHoursPerDay: sum((e) => e.vehicleHoursPerDay),
+    largestGapBeforeM: Math.max(0, ...effects.map((e) => e.largestGapBeforeM)),
+    largestGapAfterM: Math.max(0, ...effects.map((e) => e.largestGapAfterM)),
+    overPolicyAfter: effects.filter((e) => e.largestGapAfterM > maxGapM && e.largestGapAfterM > e.largestGapBeforeM).length,
+  };
+}
+
+/** Weighs a scenario on every pattern it touches; throws 'bad-scenario' before computing if any item is not understood. */
+export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: ScenarioInput, options: EvaluateScenarioOptions = {}): ScenarioResult {
+  const sc = parseScenario(scenario);
+  const { np, params, preps, warnings } = prepareAudit(feed, patterns, options);
+  const changes = new Map<string, PatternChange>();
+  const changeOf = (prep: PreparedPattern) => {
+    let ch = changes.get(prep.pattern.id);
+    if (!ch) changes.set(prep.pattern.id, (ch = { prep, removed: new Set(), moved: new Map(), added: [] }));
+    return ch;
+  };
+  const positionsOf = (prep: PreparedPattern, stopIdx: number) => prep.modelStops.map((j, m) => (prep.pattern.stopIdx[j] === stopIdx ? m : -1)).filter((m) => m >= 0);
+  const checkRoutes = (routes: string[] | undefined, where: string) => {
+    for (const r of routes ?? []) if (!feed.routes.has(r)) throw bad(`${where}: unknown route_id ${r}`, r);
+  };
+  const touched = new Set<number>();
+
+  (sc.remove ?? []).forEach((item, i) => {
+    const ref = typeof item === 'string' ? item : item.stop;
+    const routes = typeof item === 'string' ? undefined : item.routes;
+    const where = `remove[${i}]`;
+    checkRoutes(routes, where);
+    const stopIdx = resolveStop(feed, ref, where);
+    if (touched.has(stopIdx)) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is named twice in the scenario`, ref);
+    touched.add(stopIdx);
+    let hit = 0;
+    for (const prep of preps) {
+      if (routes && !routes.includes(prep.pattern.routeId)) continue;
+      for (const m of positionsOf(prep, stopIdx)) {
+        if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be removed`, ref);
+        changeOf(prep).removed.add(m);
+        hit++;
+      }
+    }
+    if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${routes ? ` of route ${routes.join(', ')}` : ''} on ${patterns.date}`, ref);
+  });
+
+  (sc.move ?? []).forEach((item, i) => {
+    const where = `move[${i}]`;
+    const stopIdx = resolveStop(feed, item.stop, where);
+    if (touched.has(stopIdx)) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is named twice in the scenario`, item.stop);
+    touched.add(stopIdx);
+    let hit = 0;
+    for (const prep of preps) {
+      for (const m of positionsOf(prep, stopIdx)) {
+        if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be moved`, item.stop);
+        const p = project(feed, prep, item.lat, item.lon);
+        if (p.offsetM > SNAP_LIMIT_M) throw bad(`${where}: ${item.lat},${item.lon} is ${Math.round(p.offsetM)} m from pattern ${prep.pattern.id} (limit ${SNAP_LIMIT_M} m)`, `${item.lat},${item.lon}`);
+        changeOf(prep).moved.set(m, p.posM);
+        hit++;
+      }
+    }
+    if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern on ${patterns.date}`, item.stop);
+  });
+
+  (sc.add ?? []).forEach((item, i) => {
+    const where = `add[${i}]`;
+    checkRoutes(item.route ? [item.route] : undefined, where);
+    let hit = 0;
+    let nearest = Infinity;
+    for (const prep of preps) {
+      if (item.route && prep.pattern.routeId !== item.route) continue;
+      const p = project(feed, prep, item.lat, item.lon);
+      nearest = Math.min(nearest, p.offsetM);
+      if (p.offsetM > SNAP_LIMIT_M) continue;
+      if (!(p.posM > prep.posM[0] && p.posM < prep.posM[prep.posM.length - 1])) continue;
+      changeOf(prep).added.push(p.posM);
+      hit++;
+    }
+    if (hit === 0) {
+      throw bad(
+        `${where}: ${item.lat},${item.lon} is ${Number.isFinite(nearest) ? `${Math.round(nearest)} m from the nearest pattern` : 'not near any pattern'}${item.route ? ` of route ${item.route}` : ''} (limit ${SNAP_LIMIT_M} m, and between its terminals)`,
+        `${item.lat},${item.lon}`,
+      );
+    }
+  });
+
+  const list = [...changes.values()].sort((a, b) => a.prep.pattern.id.localeCompare(b.prep.pattern.id));
+  const effects = list.map((ch) => effectOf(feed, ch, params, params.walk_weight));
+  const sensitivity: ScenarioSensitivity[] = [1.5, 2.5].map((w) => ({
+    label: `walk_weight=${w}`,
+    walkWeight: w,
+    netPaxMinPerDay: list.reduce((s, ch) => s + effectOf(feed, ch, params, w).netPaxMinPerDay, 0),
+  }));
+  const assumed = effects.some((e) => e.demandSource === 'assumed');
+  return {
+    date: patterns.date,
+    patterns: effects,
+    totals: totalsOf(effects, params.max_gap_m),
+    sensitivity,
+    params: paramsReport(np),
+    assumptions: [
+      assumed ? 'Some or all demand is assumed uniform along the pattern (no ridership file for it): figures marked demand_source=assumed.' : 'Demand comes from the ridership file.',
+      'Riders are spread evenly over each stop\'s catchment and walk along the route to the nearest stop served after the change; in-vehicle time between stops is not changed.',
+      `Added and moved stops are placed on the line between the pattern's stops nearest to the given point (at most ${SNAP_LIMIT_M} m away).`,
+      'The band tolerance does not enter a scenario\'s figures; sensitivity shows the net at walk weights 1.5 and 2.5.',
+    ],
+    cautions: [...CAUTIONS],
+    warnings: [...feed.warnings, ...warnings.list()],
+  };
+}
