@@ -9,7 +9,7 @@
 //                                                        readFeed, buildPatterns, runAudit, writeReport
 //
 // On exit the process writes one JSON object to the file named by $BENCH_RESULT (or to stdout when unset):
-// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, stageMs, exitCode, error }. wallMs counts from the start of
+// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, stageMs, stageCpuMs, exitCode, error }. wallMs counts from the start of
 // the process (performance.timeOrigin), so node's own start-up is included in every measurement alike.
 
 import fs from 'node:fs';
@@ -24,6 +24,7 @@ const [mode, feed, outDir] = process.argv.slice(2);
 let rows = null;
 let error = null;
 let stageMs = null;
+let stageCpuMs = null;
 
 process.on('exit', (code) => {
   const ru = process.resourceUsage(); // user/system CPU in microseconds, maxRSS in kilobytes
@@ -36,6 +37,7 @@ process.on('exit', (code) => {
     cpuMs: (ru.userCPUTime + ru.systemCPUTime) / 1000,
     maxRssMB: ru.maxRSS / 1024,
     stageMs,
+    stageCpuMs,
     exitCode: code,
     error,
   };
@@ -135,12 +137,18 @@ async function stages(feedPath, out) {
     load('report/writeReport.js'),
   ]);
   stageMs = {};
+  stageCpuMs = {};
   let t = performance.now();
+  let cpu = process.cpuUsage();
   stageMs.startup = t;
+  stageCpuMs.startup = (cpu.user + cpu.system) / 1000;
   const lap = (name) => {
     const now = performance.now();
+    const c = process.cpuUsage();
     stageMs[name] = now - t;
+    stageCpuMs[name] = (c.user + c.system - cpu.user - cpu.system) / 1000;
     t = now;
+    cpu = c;
   };
   const feedData = await readFeed(feedPath);
   lap('readFeed');

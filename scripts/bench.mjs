@@ -186,7 +186,11 @@ async function benchInput(input, runs, withStages) {
     stages = summarise(raw.stages);
     if (!stages.error) {
       stages.stageMs = {};
-      for (const k of Object.keys(raw.stages[0].stageMs ?? {})) stages.stageMs[k] = median(raw.stages.map((r) => r.stageMs[k]));
+      stages.stageCpuMs = {};
+      for (const k of Object.keys(raw.stages[0].stageMs ?? {})) {
+        stages.stageMs[k] = median(raw.stages.map((r) => r.stageMs[k]));
+        stages.stageCpuMs[k] = median(raw.stages.map((r) => r.stageCpuMs?.[k]));
+      }
     }
   }
   return { ...input, rows, inflate, csv, audit, stages };
@@ -229,7 +233,7 @@ function report(results, opts) {
     const m = r.stages;
     if (m.error) rows.push([r.name, fmtInt(r.rows), 'stages', 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
     else {
-      const st = Object.entries(m.stageMs).map(([k, ms]) => `${k} ${fmtS(ms)}`).join(', ');
+      const st = Object.entries(m.stageMs).map(([k, ms]) => `${k} ${fmtS(ms)} (CPU ${fmtS(m.stageCpuMs[k])})`).join(', ');
       rows.push([r.name, fmtInt(r.rows), 'stages', fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), fmtX(m.wallMs / r.inflate.wallMs), st]);
     }
   }
