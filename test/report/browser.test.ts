@@ -11,7 +11,7 @@ import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
 import { writeReport } from '../../src/report/writeReport.js';
-import { HOSTILE_NAMES, makeSampleResult } from './sampleResult.js';
+import { HOSTILE_NAMES, makeEmptyResult, makeSampleResult } from './sampleResult.js';
 import { looksDrawn, pngStats } from './pngCheck.js';
 
 const CHROMIUM = '/usr/bin/chromium';
@@ -196,6 +196,14 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
       await writeFile(join(keep, 'report-overview.png'), await v.page.screenshot({ fullPage: true, clip: { x: 0, y: 0, width: 1280, height: 2300 } }));
       await writeFile(join(keep, 'report-top.png'), await v.page.screenshot({ fullPage: false }));
     }
+  });
+
+  it('loads a report with nothing in it without errors', async () => {
+    const out = join(work, 'empty');
+    await writeReport(makeEmptyResult(), out, { formats: ['html'] });
+    const v = await visit(join(out, 'index.html'));
+    expect(v.consoleErrors).toEqual([]);
+    expect(await v.page.textContent('#cand-count')).toBe('Showing 0 of 0 matching (0 in all).');
   });
 
   it('shows feet and miles with units imperial', async () => {

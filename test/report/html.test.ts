@@ -8,7 +8,7 @@ import { CAUTIONS } from '../../src/report/cautions.js';
 import { escapeHtml, jsonForScript } from '../../src/report/html/escape.js';
 import { histogramSvg } from '../../src/report/html/histogramSvg.js';
 import { indexHtml } from '../../src/report/html/indexHtml.js';
-import { HOSTILE_NAMES, makeSampleResult } from './sampleResult.js';
+import { HOSTILE_NAMES, makeEmptyResult, makeSampleResult } from './sampleResult.js';
 
 const sample = makeSampleResult();
 const html = indexHtml(sample);
@@ -97,5 +97,12 @@ describe('index.html', () => {
     const text = indexHtml(big);
     expect(Buffer.byteLength(text)).toBeLessThan(4 * 1024 * 1024);
     expect(text.match(/<details/g)).toBeNull(); // per-pattern sections are built by the script when the page opens
+  });
+
+  it('renders a result with nothing in it', () => {
+    const text = indexHtml(makeEmptyResult());
+    expect(text).toContain('No stop change saves riders time under these parameters.');
+    expect(text).toContain('The feed was read without warnings.');
+    for (const c of CAUTIONS) expect(text).toContain(escapeHtml(c));
   });
 });

@@ -357,3 +357,19 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
     ],
   };
 }
+
+/** A result with nothing in it (no patterns, stops, candidates or warnings): the reports must still render. */
+export function makeEmptyResult(): AuditResult {
+  const r = makeSampleResult();
+  return {
+    ...r,
+    headline: { patterns: 0, stops: 0, trips: 0, medianGapM: 0, meanOptimalSpacingM: 0, closeStops: 0, wideGaps: 0, paxMinLostPerDay: 0 },
+    patterns: [],
+    stops: [],
+    gaps: [],
+    candidates: [],
+    sensitivity: [],
+    warnings: [],
+    assumptions: [],
+  };
+}

@@ -174,6 +174,7 @@ export const PAGE_SCRIPT = String.raw`
   }
 
   function patternBody(p, body) {
+    if (!p.stops.length) { body.appendChild(el('p', { 'class': 'note' }, 'This pattern has no stops to draw.')); return; }
     var info = el('p', { 'class': 'info', 'aria-live': 'polite' }, 'Point at or tab to a stop to read its numbers.');
     var facts = el('dl', { 'class': 'kv' });
     [['stops', num(p.stops.length)], ['length', longLen(p.len)], ['trips per day', num(p.trips, 1)],
