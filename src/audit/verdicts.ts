@@ -1,6 +1,7 @@
 // One pattern's verdicts: the optimum spacing and its band, the optimiser's stop count and the riders'
 // minutes lost to today's spacing, and for every stop close / wide / ok / fixed with the numbers behind it
-// (gaps, net passenger-minutes per day if it were removed); for every gap above the band, the change if a
+// (gaps, net passenger-minutes per day if it were removed; a stop is close when its spacing is below the
+// band and its removal saves riders time); for every gap above the band, the change if a
 // stop were added in its middle. All figures come from the corridor cost the optimiser minimises, so a
 // removal figure is exactly the change in that objective.
 
@@ -254,7 +255,9 @@ export function analysePattern(
     } else {
       removal = removalEffect(prep, m, settings);
       const spacing = (gapBeforeM! + gapAfterM!) / 2;
-      if (hasOptimum && spacing < band.lowM) verdict = 'close';
+      // close only when the spacing is below the band AND taking the stop out saves riders time: the band
+      // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
+      if (hasOptimum && spacing < band.lowM && removal.netPaxMinPerDay < 0) verdict = 'close';
       else if (hasOptimum && spacing > band.highM) verdict = 'wide';
       removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
     }
