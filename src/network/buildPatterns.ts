@@ -3,7 +3,7 @@
 // run time of each gap. Distances prefer shape_dist_traveled (unit inferred), then forward projection onto
 // the shape, then great-circle between consecutive stops; the choice is recorded per pattern.
 
-import type { Feed, TripStopTimes } from '../gtfs/types.js';
+import type { Feed } from '../gtfs/types.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
 import { StopspanError } from '../common/errors.js';
@@ -12,6 +12,7 @@ import { haversineM } from './geodesy.js';
 import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
 import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
 import { simplifyPath } from './simplifyPath.js';
+import { scheduledTimes } from './scheduledTimes.js';
 import { tripInstancesOnDate, type TripRuns as TripInstances } from '../gtfs/frequencies.js';
 
 export interface BuildPatternsOptions {
@@ -214,7 +215,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       path = stops.map((s) => [s.lon, s.lat] as [number, number]);
     }
 
-    const times = scheduledTimes(g.tripIds.map((t) => feed.stopTimes.get(t)!), distAlongM, warnings, g.tripIds);
+    const times = scheduledTimes(g.tripIds.map((t) => feed.stopTimes.get(t)!), distAlongM, { warnings, tripIds: g.tripIds });
 
     const headCounts = new Map<string, number>();
     for (const t of g.tripIds) {
@@ -257,75 +258,6 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   const set: PatternSet = { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
   if (!givenSink) set.warnings = warnings.list();
   return set;
-}
-
-/** Scheduled run time per gap, dwell per stop and whole run time: medians over the pattern's trips. */
-function scheduledTimes(
-  trips: TripStopTimes[],
-  distAlongM: number[],
-  warnings: WarningSink,
-  tripIds: string[],
-): { gapRunTimeS: number[]; gapTimeInterpolated: boolean[]; runTimeS: number; scheduledDwellS: number[] } {
-  const n = distAlongM.length;
-  const gapSamples: number[][] = Array.from({ length: n - 1 }, () => []);
-  const dwellSamples: number[][] = Array.from({ length: n }, () => []);
-  const runSamples: number[] = [];
-  const interpolated = new Array<boolean>(n - 1).fill(false);
-  const arr = new Float64Array(n);
-  const dep = new Float64Array(n);
-  const filled = new Uint8Array(n);
-  trips.forEach((st, k) => {
-    for (let i = 0; i < n; i++) {
-      const a = st.arrS[i];
-      const dd = st.depS[i];
-      arr[i] = a >= 0 ? a : dd;
-      dep[i] = dd >= 0 ? dd : a;
-      filled[i] = 0;
-    }
-    // Interpolate blank stops by distance between the surrounding timed stops.
-    let prev = -1;
-    for (let i = 0; i < n; i++) {
-      if (arr[i] < 0) continue;
-      if (prev >= 0 && i > prev + 1) {
-        const t0 = dep[prev];
-        const t1 = arr[i];
-        const span = distAlongM[i] - distAlongM[prev];
-        for (let j = prev + 1; j < i; j++) {
-          const f = span > 0 ? (distAlongM[j] - distAlongM[prev]) / span : (j - prev) / (i - prev);
-          arr[j] = dep[j] = t0 + f * (t1 - t0);
-          filled[j] = 1;
-        }
-      }
-      prev = i;
-    }
-    let untimed = false;
-    for (let i = 0; i < n; i++) {
-      if (arr[i] < 0) untimed = true;
-    }
-    if (untimed) {
-      warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds[k]);
-      return;
-    }
-    for (let i = 0; i < n - 1; i++) {
-      gapSamples[i].push(arr[i + 1] - dep[i]);
-      if (filled[i] || filled[i + 1]) interpolated[i] = true;
-    }
-    for (let i = 0; i < n; i++) dwellSamples[i].push(dep[i] - arr[i]);
-    runSamples.push(arr[n - 1] - dep[0]);
-  });
-  return {
-    gapRunTimeS: gapSamples.map(median),
-    gapTimeInterpolated: interpolated,
-    runTimeS: median(runSamples),
-    scheduledDwellS: dwellSamples.map(median),
-  };
-}
-
-function median(xs: number[]): number {
-  if (xs.length === 0) return NaN;
-  const s = Float64Array.from(xs).sort();
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 /** Most frequent key; ties go to the smallest key so the choice is stable. '' for an empty map. */

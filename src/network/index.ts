@@ -4,4 +4,5 @@ export * from './geodesy.js';
 export * from './alongShape.js';
 export * from './shapeDistUnit.js';
 export * from './simplifyPath.js';
+export * from './scheduledTimes.js';
 export * from './buildPatterns.js';
