@@ -143,9 +143,13 @@ describe('two processes writing at once', () => {
     const script = join(out, 'writer.mjs');
     writeFileSync(
       script,
-      `import { openHistory, recordRun } from './history/index.js';
-const [path, who, n] = process.argv.slice(2);
+      `import { existsSync, writeFileSync } from 'node:fs';
+import { openHistory, recordRun } from './history/index.js';
+const [path, who, other, n] = process.argv.slice(2);
 const db = openHistory(path);
+// start together: say ready, then wait for the other writer (a barrier, not a timing)
+writeFileSync(path + '.ready-' + who, '');
+while (!existsSync(path + '.ready-' + other)) Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 5);
 for (let k = 0; k < Number(n); k++) {
   recordRun(db, { runDate: '2026-10-14', command: 'check', feed: { source: who, contentHash: who + k, version: 'v' },
     findings: { 'twin-stops': k, 'stop-off-path': 1 }, severities: { warning: 2 } });
@@ -154,16 +158,16 @@ db.close();
 `,
     );
     const path = join(dir, 'shared.sqlite'); // not created yet: both children race to create the schema too
-    const N = 300;
-    const child = (who: string) =>
+    const N = 1000;
+    const child = (who: string, other: string) =>
       new Promise<number>((ok, fail) => {
-        const p = spawn(process.execPath, [script, path, who, String(N)], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
+        const p = spawn(process.execPath, [script, path, who, other, String(N)], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
         let err = '';
         p.stderr.on('data', (d) => (err += d));
         p.on('error', fail);
         p.on('exit', (code) => (code === 0 ? ok(code) : fail(new Error(`writer ${who} exited ${code}: ${err}`))));
       });
-    await Promise.all([child('A'), child('B')]);
+    await Promise.all([child('A', 'B'), child('B', 'A')]);
     const db = new Database(path, { readonly: true });
     expect(db.pragma('integrity_check', { simple: true })).toBe('ok');
     expect(db.prepare('SELECT feed_source, COUNT(*) AS n FROM runs GROUP BY feed_source ORDER BY 1').all()).toEqual([
