@@ -8,8 +8,9 @@ const wgs84 = geodesic.Geodesic.WGS84;
 const karneyM = (a: [number, number], b: [number, number]) => wgs84.Inverse(a[0], a[1], b[0], b[1]).s12!;
 
 describe('haversineM', () => {
-  // Reference: geographiclib-geodesic (C. F. F. Karney, "Algorithms for geodesics", J. Geodesy 87, 2013),
-  // WGS84 ellipsoid. The sphere is expected to agree within 0.5 % (design section 3).
+  // [C] Reference library: geographiclib-geodesic, Karney's geodesics on the WGS84 ellipsoid (the paper,
+  // "Algorithms for geodesics", J. Geodesy 2013, cited from memory [M]). The sphere must agree within
+  // 0.5 % (design section 3).
   const pairs: [string, [number, number], [number, number]][] = [
     ['a 200 m east-west gap at 52 N', [52.0, 4.9], [52.0, 4.902922]],
     ['a 200 m north-south gap at 52 N', [52.0, 4.9], [52.0018, 4.9]],
