@@ -7,6 +7,12 @@ import { commands } from './commands.js';
 import { EXIT } from './shared.js';
 import { version } from '../version.js';
 
+// A reader that closes early (`stopspan check ... | head`) is not an error.
+process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+  if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+  throw e;
+});
+
 const program = new Command();
 program
   .name('stopspan')
