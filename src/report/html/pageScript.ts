@@ -163,12 +163,13 @@ export const PAGE_SCRIPT = String.raw`
     s.appendChild(sv('text', { x: rightSide ? first[0] - 8 : first[0] + 8, y: first[1] - 8, 'text-anchor': rightSide ? 'end' : 'start', 'class': 'marker-label' }, 'first stop'));
     // scale bar: a round length near a quarter of the width
     var mPerPx = 111320 / sc;
-    var want = mPerPx * W / 4, unitM = IMP ? 0.3048 : 1, nice = [100, 200, 250, 500, 1000, 2000, 2500, 5000, 10000, 20000, 50000];
+    var want = mPerPx * W / 4, unitM = IMP ? 0.3048 : 1;
+    var nice = IMP ? [100, 200, 500, 1000, 2000, 2640, 5280, 10560, 26400, 52800] : [100, 200, 250, 500, 1000, 2000, 2500, 5000, 10000, 20000, 50000];
     var barU = nice[0];
     nice.forEach(function (v) { if (v * unitM <= want) barU = v; });
     var barPx = barU * unitM / mPerPx;
     s.appendChild(sv('line', { 'class': 'axis', x1: 12, x2: 12 + barPx, y1: H - 12, y2: H - 12, 'stroke-width': 3 }));
-    s.appendChild(sv('text', { x: 16 + barPx, y: H - 8, 'class': 'tick' }, IMP ? (barU >= 5280 ? num(barU / 5280, 1) + ' mi' : barU + ' ft') : (barU >= 1000 ? barU / 1000 + ' km' : barU + ' m')));
+    s.appendChild(sv('text', { x: 16 + barPx, y: H - 8, 'class': 'tick' }, IMP ? (barU >= 2640 ? num(barU / 5280, 1) + ' mi' : barU + ' ft') : (barU >= 1000 ? barU / 1000 + ' km' : barU + ' m')));
     s.appendChild(sv('text', { x: W - 12, y: 16, 'text-anchor': 'end', 'class': 'tick' }, 'N ↑'));
     return s;
   }
