@@ -148,6 +148,7 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
       scripts: document.querySelectorAll('script').length,
       italics: document.querySelectorAll('i, b').length,
       titles: Array.from(document.querySelectorAll('svg title')).map((t) => t.textContent ?? ''),
+      stopCells: Array.from(document.querySelectorAll('details.stop-list td')).map((t) => t.textContent ?? ''),
       text: document.body.innerText,
       docTitle: document.title,
     }));
@@ -163,6 +164,8 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
     expect(probe.text).toContain('7 <i>Express</i>');
     expect(probe.titles.some((t) => t.includes(HOSTILE_NAMES.script))).toBe(true);
     expect(probe.titles.some((t) => t.includes(HOSTILE_NAMES.quotes))).toBe(true);
+    expect(probe.stopCells).toContain(HOSTILE_NAMES.script); // the per-pattern stop list, as plain text
+    expect(probe.stopCells).toContain(HOSTILE_NAMES.formula);
     expect(probe.docTitle).toContain('Vellmoor Transit & "Ferries"');
     expect(v.dialogs).toEqual([]);
     expect(v.consoleErrors).toEqual([]);

@@ -259,7 +259,7 @@ ${hist}
 <label for="pat-verdict">Verdict<select id="pat-verdict"><option value="">all patterns</option><option value="close">with close stops</option><option value="wide">with wide gaps</option><option value="ok">all gaps within the band</option></select></label>
 </div>
 <p class="note" id="pat-count" aria-live="polite"></p>
-<div class="table-wrap"><table id="pat-table"><thead><tr>${th('pattern', 'pattern')}${th('route', 'route')}${th('headsign', 'headsign')}${th('stops', 'stops', true)}${th('length', 'length', true)}${th('median', 'median gap', true)}${th('opt', 'optimum', true)}${th('close', 'close stops', true)}${th('wide', 'wide gaps', true)}${th('lost', `${paxHeader} lost`, true)}</tr></thead><tbody></tbody></table></div>
+<div class="table-wrap"><table id="pat-table"><thead><tr>${th('pattern', 'pattern')}${th('route', 'route')}${th('headsign', 'headsign')}${th('stops', 'stops', true)}${th('length', 'length', true)}${th('median', 'median gap', true)}${th('opt', 'optimum', true)}${th('close', 'close stops', true)}${th('wide', 'wide gaps', true)}${th('lost', `passenger-min lost/day${assumed ? ' (assumed)' : ''}`, true)}</tr></thead><tbody></tbody></table></div>
 </section>
 
 <section id="pattern-detail" aria-labelledby="detail-h">

@@ -198,6 +198,35 @@ export const PAGE_SCRIPT = String.raw`
     body.appendChild(wrap);
     body.appendChild(info);
     body.appendChild(legend());
+    body.appendChild(stopTable(p));
+  }
+
+  // the same stops as a table, for reading without the diagram (and for screen readers)
+  function stopTable(p) {
+    var d = el('details', { 'class': 'stop-list' });
+    d.appendChild(el('summary', null, 'List of the ' + p.stops.length + ' stops'));
+    var wrap = el('div', { 'class': 'table-wrap' });
+    var t = el('table');
+    var head = el('tr');
+    ['#', 'stop', 'stop_id', 'verdict', 'along', 'gap before', 'gap after', 'boardings/day', 'alightings/day', 'removing it, passenger-min/day' + assumedTag(p.demand)].forEach(function (h, i) {
+      head.appendChild(el('th', i === 0 || i >= 4 ? { scope: 'col', 'class': 'num' } : { scope: 'col' }, h));
+    });
+    var thead = el('thead');
+    thead.appendChild(head);
+    t.appendChild(thead);
+    var tb = el('tbody');
+    p.stops.forEach(function (st, i) {
+      var prev = p.stops[i - 1], next = p.stops[i + 1];
+      var cells = [i + 1, st[2], st[1], st[6] + ' ' + VERDICT_TEXT[st[6]] + (st[7] ? ' (' + st[7] + ')' : '') + (st[8] && st[7] !== 'timepoint' ? ', timepoint' : ''),
+        len(st[5]), prev ? len(st[5] - prev[5]) : '–', next ? len(next[5] - st[5]) : '–', num(st[10]), num(st[11]), signed(st[9], 1)];
+      var tr = el('tr');
+      cells.forEach(function (c, j) { tr.appendChild(el('td', j === 0 || j >= 4 ? { 'class': 'num' } : null, c)); });
+      tb.appendChild(tr);
+    });
+    t.appendChild(tb);
+    wrap.appendChild(t);
+    d.appendChild(wrap);
+    return d;
   }
 
   function buildPatternSections() {

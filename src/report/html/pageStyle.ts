@@ -71,6 +71,8 @@ details.pattern { background:var(--card); border:1px solid var(--rule); border-r
 details.pattern > summary { cursor:pointer; padding:8px 12px; font-weight:600; }
 details.pattern > summary .s { font-weight:400; color:var(--muted); }
 details.pattern .body { padding:4px 12px 12px; }
+details.stop-list > summary { cursor:pointer; margin:8px 0 4px; color:var(--ink); font-size:14px; }
+details.stop-list .table-wrap { max-height:420px; }
 .strip-wrap { overflow-x:auto; }
 .pat-grid { display:grid; grid-template-columns: minmax(260px, 430px) 1fr; gap:14px; align-items:start; }
 @media (max-width:820px) { .pat-grid { grid-template-columns:1fr; } }
