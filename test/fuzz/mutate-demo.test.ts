@@ -35,6 +35,8 @@ type Mutation =
   | { kind: 'duplicate-row'; table: string; row: number }
   | { kind: 'swap-cells'; table: string; a: [number, number]; b: [number, number] }
   | { kind: 'corrupt-cell'; table: string; row: number; col: number; value: string; raw: boolean }
+  | { kind: 'perturb-number'; table: string; row: number; col: number; scale: number; shift: number }
+  | { kind: 'swap-rows'; table: string; a: number; b: number }
   | { kind: 'drop-column'; table: string; col: number };
 
 /** Junk a cell may become: random text, nothing, huge or odd numbers, markup, quote and line characters. */
@@ -60,6 +62,16 @@ function mutationArb(tables: string[]): fc.Arbitrary<Mutation> {
     // corruption twice as likely: it is where most of the value parsing lives
     fc.record({ kind: fc.constant('corrupt-cell' as const), table, row: ix, col: ix, value: junk, raw: fc.boolean() }),
     fc.record({ kind: fc.constant('corrupt-cell' as const), table, row: ix, col: ix, value: junk, raw: fc.boolean() }),
+    // a plausible-looking number gone wrong: the cell's own value scaled or shifted (negative, zero, huge)
+    fc.record({
+      kind: fc.constant('perturb-number' as const),
+      table,
+      row: ix,
+      col: ix,
+      scale: fc.constantFrom(-1, 0, 1, 0.001, 1000, 1e9),
+      shift: fc.constantFrom(0, -1, 1, -1000, 0.5, 86400),
+    }),
+    fc.record({ kind: fc.constant('swap-rows' as const), table, a: ix, b: ix }),
     fc.record({ kind: fc.constant('drop-column' as const), table, col: ix }),
   );
 }
@@ -91,6 +103,23 @@ function apply(tables: Tables, m: Mutation): void {
       else t.raw!.delete(`${r}:${c}`);
       break;
     }
+    case 'perturb-number': {
+      if (!n) break;
+      const row = t.rows[m.row % n];
+      // the first numeric cell at or after the chosen column, so the mutation lands on a number
+      for (let k = 0; k < row.length; k++) {
+        const c = (m.col + k) % row.length;
+        const v = Number(row[c]);
+        if (row[c] !== '' && Number.isFinite(v)) {
+          row[c] = String(v * m.scale + m.shift);
+          break;
+        }
+      }
+      break;
+    }
+    case 'swap-rows':
+      if (n) [t.rows[m.a % n], t.rows[m.b % n]] = [t.rows[m.b % n], t.rows[m.a % n]];
+      break;
     case 'drop-column': {
       const c = m.col % w;
       t.header.splice(c, 1);
@@ -131,8 +160,27 @@ function inconsistencies(dir: string): string[] {
     list.push(s);
     byPattern.set(s.pattern_id, list);
   }
+  for (const [f, rows] of [['patterns.csv', patterns], ['stops.csv', stops]] as const) {
+    for (const r of rows) for (const [k, v] of Object.entries(r)) if (/^-?(NaN|Infinity)$/.test(v)) bad.push(`${f} ${k} = ${v}`);
+  }
+  if (summary.counts?.patterns !== patterns.length) bad.push(`summary.json counts.patterns ${summary.counts?.patterns}, patterns.csv has ${patterns.length}`);
+  if (summary.counts?.stop_rows !== stops.length) bad.push(`summary.json counts.stop_rows ${summary.counts?.stop_rows}, stops.csv has ${stops.length}`);
+  for (const s of stops) if (!['close', 'wide', 'ok', 'fixed'].includes(s.verdict)) bad.push(`stops.csv verdict ${JSON.stringify(s.verdict)}`);
+  const html = readFileSync(join(dir, 'index.html'), 'utf8');
+  const block = /<script type="application\/json" id="report-data">([^<]*)<\/script>/.exec(html);
+  if (!block) bad.push('index.html has no data block');
+  else JSON.parse(block[1]);
   for (const p of patterns) {
     const rows = byPattern.get(p.pattern_id) ?? [];
+    // stops in order along the path: indices 0..n-1, distance never decreasing, each gap the step in distance
+    const ordered = [...rows].sort((a, b) => Number(a.stop_index) - Number(b.stop_index));
+    ordered.forEach((r, i) => {
+      if (Number(r.stop_index) !== i) bad.push(`pattern ${p.pattern_id}: stop_index ${r.stop_index} at position ${i}`);
+      if (i === 0) return;
+      const step = Number(r.dist_along_m) - Number(ordered[i - 1].dist_along_m);
+      if (step < -0.05) bad.push(`pattern ${p.pattern_id}: dist_along_m falls from ${ordered[i - 1].dist_along_m} to ${r.dist_along_m}`);
+      if (r.gap_before_m !== '' && Math.abs(step - Number(r.gap_before_m)) > 0.1 + 1e-6) bad.push(`pattern ${p.pattern_id}: gap_before_m ${r.gap_before_m} at index ${i}, distance step ${step.toFixed(2)}`);
+    });
     if (Number(p.stop_count) !== rows.length) bad.push(`pattern ${p.pattern_id}: stop_count ${p.stop_count} but ${rows.length} rows in stops.csv`);
     const gaps = rows.map((r) => r.gap_before_m).filter((g) => g !== '').map(Number);
     const sum = gaps.reduce((a, b) => a + b, 0);
@@ -192,7 +240,7 @@ describe('the demo feed mutated', () => {
   it(`either audits consistently or refuses with a StopspanError (seed ${SEED}, ${RUNS} runs, in-process)`, async () => {
     const names = Object.keys(base).sort();
     await fc.assert(
-      fc.asyncProperty(fc.array(mutationArb(names), { minLength: 1, maxLength: 3 }), async (ms) => {
+      fc.asyncProperty(fc.array(mutationArb(names), { minLength: 1, maxLength: 4 }), async (ms) => {
         const k = counter++;
         const tables = cloneTables(base);
         for (const m of ms) apply(tables, m);
@@ -230,7 +278,7 @@ describe('the demo feed mutated', () => {
     const names = Object.keys(base).sort();
     const seen = { 0: 0, 2: 0 };
     await fc.assert(
-      fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: 3 }), (ms) => {
+      fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: 4 }), (ms) => {
         const k = counter++;
         const tables = cloneTables(base);
         for (const m of ms) apply(tables, m);
