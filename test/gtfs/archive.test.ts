@@ -1,0 +1,159 @@
+// Opening feeds: zips (nested folder, unsafe paths, corrupt, truncated, lying sizes, inflation caps),
+// folders, and bad paths. Zips are built with yazl (an independent writer) and damaged byte by byte.
+
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { StopspanError } from '../../src/common/errors.js';
+import { WarningSink } from '../../src/common/warnings.js';
+import { openFeed } from '../../src/gtfs/archive.js';
+import { readFeed } from '../../src/gtfs/readFeed.js';
+import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
+
+afterAll(cleanupCopies);
+
+async function rejected(p: Promise<unknown>): Promise<StopspanError> {
+  try {
+    await p;
+  } catch (e) {
+    if (e instanceof StopspanError) return e;
+    throw e;
+  }
+  throw new Error('expected a StopspanError');
+}
+
+async function drain(stream: AsyncIterable<Buffer>): Promise<number> {
+  let n = 0;
+  for await (const c of stream) n += c.length;
+  return n;
+}
+
+const tmp = mkdtempSync(join(tmpdir(), 'stopspan-archive-test-'));
+
+/** Replaces every occurrence of a byte string (same length) in a file. */
+function patchBytes(path: string, from: string, to: string): void {
+  expect(to.length).toBe(from.length);
+  const buf = readFileSync(path);
+  let at = buf.indexOf(from);
+  expect(at).toBeGreaterThanOrEqual(0);
+  while (at >= 0) {
+    buf.write(to, at, 'latin1');
+    at = buf.indexOf(from, at + 1);
+  }
+  writeFileSync(path, buf);
+}
+
+describe('openFeed on zips', () => {
+  it('reads tables from one nested subfolder exactly as from the root', async () => {
+    const flat = await readFeed(await zipFolder(BASIC));
+    const nested = await readFeed(await zipFolder(BASIC, { prefix: 'vellmoor-gtfs/' }));
+    expect({ ...nested, source: '', contentHash: '' }).toEqual({ ...flat, source: '', contentHash: '' });
+  });
+
+  it('ignores entries with ../ or absolute paths and counts them', async () => {
+    // yazl refuses such names, so write harmless ones of the same length and rewrite the bytes
+    const zip = await zipFolder(BASIC, { extra: { 'QQ/stops.txt': 'stop_id\nEVIL\n', 'Qtrips.txt': 'x\n' } });
+    patchBytes(zip, 'QQ/stops.txt', '../stops.txt');
+    patchBytes(zip, 'Qtrips.txt', '/trips.txt');
+    const w = new WarningSink();
+    const archive = await openFeed(zip, { warnings: w });
+    expect(archive.names()).toEqual(['agency.txt', 'calendar.txt', 'calendar_dates.txt', 'feed_info.txt', 'frequencies.txt', 'routes.txt', 'shapes.txt', 'stop_times.txt', 'stops.txt', 'trips.txt']);
+    await archive.close();
+    const unsafe = w.list().find((x) => x.code === 'unsafe-zip-path')!;
+    expect(unsafe.count).toBe(2);
+    expect(unsafe.examples.sort()).toEqual(['../stops.txt', '/trips.txt']);
+    const feed = await readFeed(zip);
+    expect(feed.stopIndex.has('EVIL')).toBe(false);
+  });
+
+  it('refuses a truncated or corrupt zip with one line naming the file', async () => {
+    const zip = await zipFolder(BASIC);
+    const bytes = readFileSync(zip);
+    const cut = join(tmp, 'cut.zip');
+    writeFileSync(cut, bytes.subarray(0, Math.floor(bytes.length / 2)));
+    const e = await rejected(readFeed(cut));
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.context.file).toBe(cut);
+    expect(e.oneLine()).not.toContain('\n');
+    const text = join(tmp, 'notes.zip');
+    writeFileSync(text, 'these are not the tables you are looking for\n');
+    expect((await rejected(readFeed(text))).code).toBe('feed-unreadable');
+  });
+
+  it('refuses an entry whose inflated size differs from the size it declares', async () => {
+    const zip = await zipFolder(BASIC);
+    const buf = readFileSync(zip);
+    // central directory header: signature 0x02014b50, uncompressed size at +24, name length at +28, name at +46 [C, PKWARE APPNOTE 4.3.12]
+    for (let p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02])); p >= 0; p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]), p + 4)) {
+      const name = buf.toString('latin1', p + 46, p + 46 + buf.readUInt16LE(p + 28));
+      if (name === 'agency.txt') buf.writeUInt32LE(10, p + 24);
+    }
+    const lying = join(tmp, 'lying.zip');
+    writeFileSync(lying, buf);
+    const e = await rejected(readFeed(lying));
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.context.file).toContain('agency.txt');
+  });
+
+  it('refuses absurd declared sizes and compression ratios, and caps inflated bytes while streaming', async () => {
+    const lines: string[] = [];
+    for (let k = 0, len = 0; len < 2 * 1024 * 1024; k++) {
+      const line = `T${k % 50},08:${String(k % 60).padStart(2, '0')}:00,S${k % 9},${k}\n`;
+      lines.push(line);
+      len += line.length;
+    }
+    const zip = await zipFolder(BASIC, { extra: { 'big.txt': lines.join('') } });
+    const archive = await openFeed(zip);
+    const size = archive.size('big.txt')!;
+    expect(size).toBeGreaterThan(2 * 1024 * 1024);
+    expect(await drain(await archive.open('big.txt'))).toBe(size); // under the default caps it reads whole
+    await archive.close();
+
+    const ratio = await openFeed(zip, { limits: { maxRatio: 5 } });
+    const e1 = await rejected(ratio.open('big.txt'));
+    expect(e1.code).toBe('feed-too-large');
+    expect(e1.context.file).toBe('big.txt');
+    expect(e1.message).toContain('ratio');
+    await ratio.close();
+
+    const declared = await openFeed(zip, { limits: { maxEntryBytes: 1024 * 1024 } });
+    const e2 = await rejected(declared.open('big.txt'));
+    expect(e2.code).toBe('feed-too-large');
+    expect(e2.message).toContain('declared size');
+    await declared.close();
+
+    // the total cap counts inflated bytes over every entry read: the small tables pass, big.txt does not
+    const small = archive.names().filter((n) => n !== 'big.txt');
+    const smallBytes = small.reduce((a, n) => a + archive.size(n)!, 0);
+    const total = await openFeed(zip, { limits: { maxTotalBytes: smallBytes + 1000 } });
+    for (const n of small) await drain(await total.open(n));
+    const e3 = await rejected(drain(await total.open('big.txt')));
+    expect(e3.code).toBe('feed-too-large');
+    expect(e3.message).toContain(`total cap of ${smallBytes + 1000}`);
+    await total.close();
+  });
+});
+
+describe('openFeed on paths', () => {
+  it('refuses a missing path, an empty file and a folder without tables', async () => {
+    const missing = await rejected(readFeed(join(tmp, 'no-such-feed.zip')));
+    expect(missing.code).toBe('feed-unreadable');
+    expect(missing.oneLine()).toBe(`${join(tmp, 'no-such-feed.zip')}: cannot read the feed: no such file or folder`);
+    const empty = join(tmp, 'empty.zip');
+    writeFileSync(empty, '');
+    const e = await rejected(readFeed(empty));
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.message).toContain('empty');
+    const bare = mkdtempSync(join(tmp, 'bare-'));
+    const m = await rejected(readFeed(bare));
+    expect(m.code).toBe('missing-table');
+  });
+
+  it('lists only .txt files of a folder', async () => {
+    const archive = await openFeed(BASIC);
+    expect(archive.names()).not.toContain('README.md');
+    expect(archive.size('agency.txt')).toBe(readFileSync(join(BASIC, 'agency.txt')).length);
+    await archive.close();
+  });
+});
