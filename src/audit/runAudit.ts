@@ -116,7 +116,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     gaps: analyses.flatMap((a) => a.gaps),
     candidates,
     sensitivity: cases,
-    warnings: [...feed.warnings, ...(observed?.warnings ?? []), ...warnings.list()],
+    warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,
   };
 }

@@ -149,6 +149,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     }
   }
   const unitFit = inferShapeDistUnit(unitSamples);
+  const shapeMetresPerUnit = new Map<string, number | null>(); // per shape: metres per unit, null = do not use
   if (unitFit) {
     if (unitFit.unit === 'scale') {
       warnings.add('shape-dist-unit-unknown', `shape_dist_traveled matches no known unit; read as ${unitFit.metresPerUnit.toPrecision(4)} m per unit`);
@@ -156,8 +157,19 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       warnings.add('shape-dist-unit-poor-fit', `shape_dist_traveled read as ${unitFit.unit}, but shapes are ${(unitFit.misfit * 100).toFixed(1)} % off that on the median`);
     }
     for (const [sid, r] of shapeRatio) {
-      if (Math.abs(Math.log(r / unitFit.metresPerUnit)) > Math.log(1.1)) {
-        warnings.add('shape-dist-mismatch', 'shape whose shape_dist_traveled range is more than 10 % off its geometric length', sid);
+      if (Math.abs(Math.log(r / unitFit.metresPerUnit)) <= Math.log(1.1)) {
+        shapeMetresPerUnit.set(sid, unitFit.metresPerUnit);
+        continue;
+      }
+      // A shape off the feed's unit: GTFS asks only that shapes.txt and stop_times.txt agree for each
+      // shape, so read this one in the named unit its own length fits well, or measure it by projection.
+      const own = inferShapeDistUnit([{ distRange: 1, lengthM: r }]);
+      if (own && own.unit !== 'scale' && !own.poorFit) {
+        shapeMetresPerUnit.set(sid, own.metresPerUnit);
+        warnings.add('shape-dist-unit-per-shape', `shapes whose shape_dist_traveled is in another unit than the feed's ${unitFit.unit}; read in the unit their length fits`, `${sid} in ${own.unit}`);
+      } else {
+        shapeMetresPerUnit.set(sid, null);
+        warnings.add('shape-dist-mismatch', 'shape whose shape_dist_traveled range is more than 10 % off its geometric length; measured by projection', sid);
       }
     }
   }
@@ -187,7 +199,8 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       offsetFromShapeM = proj.offsetM;
       distAlongM = proj.distAlongM.map((v) => v - proj.distAlongM[0]);
       distanceSource = 'shape_projection';
-      if (unitFit) {
+      const metresPerUnit = shapeMetresPerUnit.get(shapeId);
+      if (unitFit && metresPerUnit) {
         let usable = true;
         for (const t of g.tripIds) {
           const bt = firstBacktrack(feed.stopTimes.get(t)!.shapeDist);
@@ -197,7 +210,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
             warnings.add('distance-backtrack', 'shape_dist_traveled decreases along a trip; the pattern is measured by projection instead', `${t} stop ${bt}`);
           }
         }
-        const metres = usable ? shapeDistToMetres(rep.shapeDist, unitFit.metresPerUnit) : null;
+        const metres = usable ? shapeDistToMetres(rep.shapeDist, metresPerUnit) : null;
         if (metres) {
           distAlongM = metres;
           distanceSource = 'shape_dist_traveled';

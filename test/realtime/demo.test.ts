@@ -58,7 +58,7 @@ describe('observeArchive on the demo archive', () => {
     expect(checked).toBeGreaterThan(10);
   });
 
-  it.fails('recovers the cruise speed of the route whose shape distances are in kilometres (fails until src/network converts them)', () => {
+  it('recovers the cruise speed of the route whose shape distances are in kilometres', () => {
     const p = patterns.patterns.find((x) => x.routeId === KM_ROUTE)!;
     expect(Math.abs(data.byPattern.get(p.id)!.cruiseSpeedMps! / truth.routes[KM_ROUTE].cruiseSpeedMps - 1)).toBeLessThan(0.03);
   });
