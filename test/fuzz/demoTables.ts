@@ -4,6 +4,7 @@
 // project's own reader, so the fuzz input does not depend on the code under test.
 
 import { mkdirSync, writeFileSync } from 'node:fs';
+import yazl from 'yazl';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import yauzl from 'yauzl';
@@ -112,4 +113,20 @@ export function tableText(t: Table): string {
 export function writeFeedFolder(t: Tables, dir: string): void {
   mkdirSync(dir, { recursive: true });
   for (const [name, tab] of Object.entries(t)) writeFileSync(join(dir, name), tableText(tab), 'utf8');
+}
+
+/** Writes the tables as a zip (yazl, fixed timestamps), the form agencies publish. */
+export function writeFeedZip(t: Tables, path: string): Promise<void> {
+  return new Promise((res, rej) => {
+    const zip = new yazl.ZipFile();
+    for (const [name, tab] of Object.entries(t)) zip.addBuffer(Buffer.from(tableText(tab), 'utf8'), name, { mtime: new Date(Date.UTC(2026, 10, 1)) });
+    zip.end();
+    const chunks: Buffer[] = [];
+    zip.outputStream.on('data', (c: Buffer) => chunks.push(c));
+    zip.outputStream.on('end', () => {
+      writeFileSync(path, Buffer.concat(chunks));
+      res();
+    });
+    zip.outputStream.on('error', rej);
+  });
 }

@@ -6,7 +6,8 @@
 // gaps add up to its length, summary.json parses), or it fails with a StopspanError (CLI: exit 2, one
 // stderr line, no stack frames, no output folder). Anything else is a bug, reported with the seed.
 // Seeded for replay: STOPSPAN_FUZZ_SEED=<n> (and STOPSPAN_FUZZ_PATH=<path> from a failure message)
-// reruns a failing case; STOPSPAN_FUZZ_RUNS changes the number of in-process runs.
+// reruns a failing case; STOPSPAN_FUZZ_RUNS and STOPSPAN_FUZZ_MAX_MUTATIONS (per run) widen a search.
+// Half the in-process runs write the feed as a zip (yazl) instead of a folder, so both readers are fuzzed.
 
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
@@ -18,11 +19,12 @@ import { parse } from 'csv-parse/sync';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { isStopspanError } from '../../src/common/errors.js';
-import { ROOT, cloneTables, demoBase, writeFeedFolder, type Tables } from './demoTables.js';
+import { ROOT, cloneTables, demoBase, writeFeedFolder, writeFeedZip, type Tables } from './demoTables.js';
 
 const SEED = process.env.STOPSPAN_FUZZ_SEED !== undefined ? Number(process.env.STOPSPAN_FUZZ_SEED) : 20261201;
 const PATH = process.env.STOPSPAN_FUZZ_PATH; // fast-check's replay path, printed with a failure
 const RUNS = Number(process.env.STOPSPAN_FUZZ_RUNS ?? 50);
+const MAX_MUTATIONS = Number(process.env.STOPSPAN_FUZZ_MAX_MUTATIONS ?? 4);
 const CLI_RUNS = 4;
 const CLI = join(ROOT, 'dist', 'cli', 'main.js');
 console.log(`test/fuzz/mutate-demo.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED}), ${RUNS} in-process runs, ${CLI_RUNS} CLI runs`);
@@ -240,13 +242,14 @@ describe('the demo feed mutated', () => {
   it(`either audits consistently or refuses with a StopspanError (seed ${SEED}, ${RUNS} runs, in-process)`, async () => {
     const names = Object.keys(base).sort();
     await fc.assert(
-      fc.asyncProperty(fc.array(mutationArb(names), { minLength: 1, maxLength: 4 }), async (ms) => {
+      fc.asyncProperty(fc.array(mutationArb(names), { minLength: 1, maxLength: MAX_MUTATIONS }), fc.boolean(), async (ms, asZip) => {
         const k = counter++;
         const tables = cloneTables(base);
         for (const m of ms) apply(tables, m);
-        const feed = join(work, `feed-${k}`);
+        const feed = join(work, asZip ? `feed-${k}.zip` : `feed-${k}`);
         const out = join(work, `out-${k}`);
-        writeFeedFolder(tables, feed);
+        if (asZip) await writeFeedZip(tables, feed);
+        else writeFeedFolder(tables, feed);
         try {
           let result;
           try {
@@ -278,7 +281,7 @@ describe('the demo feed mutated', () => {
     const names = Object.keys(base).sort();
     const seen = { 0: 0, 2: 0 };
     await fc.assert(
-      fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: 4 }), (ms) => {
+      fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: MAX_MUTATIONS }), (ms) => {
         const k = counter++;
         const tables = cloneTables(base);
         for (const m of ms) apply(tables, m);
