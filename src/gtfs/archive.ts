@@ -137,7 +137,8 @@ class ByteCap extends Transform {
     private readonly addTotal: (n: number) => void,
     private readonly maxTotal: number,
   ) {
-    super();
+    // a deep buffer lets inflating (on the thread pool) run ahead while the CSV reader parses
+    super({ readableHighWaterMark: 4 << 20, writableHighWaterMark: 1 << 20 });
   }
   override _transform(chunk: Buffer, _enc: BufferEncoding, cb: TransformCallback): void {
     this.seen += chunk.length;

@@ -180,7 +180,8 @@ export class CsvCore {
     for (;;) {
       while (k < n) {
         c = buf.charCodeAt(k);
-        if (c === COMMA || c === LF || c === CR || c === QUOTE) break;
+        // every delimiter is <= ',' (44); most data characters (digits, letters, ':', '.') are above it
+        if (c <= COMMA && (c === COMMA || c === LF || c === CR || c === QUOTE)) break;
         k++;
       }
       if (k >= n) {

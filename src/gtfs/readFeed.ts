@@ -332,6 +332,12 @@ async function readArchive(
     if (kept.length === 0) throw new StopspanError('empty-feed', `no trip runs on ${analysisDate}`, { value: analysisDate });
   }
   if (kept.length === 0) throw new StopspanError('empty-feed', 'the feed has no trips', { file: 'trips.txt' });
+  // blank optional fields the later stages lean on
+  const noDirection = kept.filter((t) => t.directionId < 0);
+  if (noDirection.length > 0) warnings.add('blank-direction-id', 'trips with a blank direction_id (patterns are keyed on route and stops alone)', noDirection[0].id, noDirection.length);
+  const known = new Set([...calendar.map((c) => c.serviceId), ...calendarDates.map((d) => d.serviceId)]);
+  const noService = candidates.filter((t) => !known.has(t.serviceId));
+  if (noService.length > 0) warnings.add('trip-unknown-service', 'trips whose service_id is in neither calendar.txt nor calendar_dates.txt (they never run)', noService[0].id, noService.length);
   const tripIdx = new Map<string, number>();
   kept.forEach((t, k) => tripIdx.set(t.id, k));
   const noShape = kept.filter((t) => t.shapeId === '').length;

@@ -174,6 +174,14 @@ describe('readFeed on the Vellmoor fixture', () => {
     expect(warning(feed, 'repeated-stop-sequence')?.count).toBe(1);
   });
 
+  it('counts blank direction_id and trips on a service no calendar defines', async () => {
+    const trips = readFileSync(join(BASIC, 'trips.txt'), 'utf8').replace('R1,WK,T1,Uplands,0,SH1', 'R1,WK,T1,Uplands,,SH1') + 'R1,GHOST,TG,Nowhere,0,SH1\n';
+    const feed = await readFeed(feedCopy({ 'trips.txt': trips }), { date: 'all' });
+    expect(feed.trips.get('T1')!.directionId).toBe(-1);
+    expect(warning(feed, 'blank-direction-id')).toMatchObject({ count: 1, examples: ['T1'] });
+    expect(warning(feed, 'trip-unknown-service')).toMatchObject({ count: 1, examples: ['TG'] });
+  });
+
   it('reads an optional table of zero bytes as absent and says so', async () => {
     const feed = await readFeed(feedCopy({ 'shapes.txt': '' }));
     expect(feed.shapes.size).toBe(0);
