@@ -2,11 +2,12 @@
 // zip bomb (about 4 MB inflating to 4 GB of zeros: scripts/make-broken.mjs --large) with exit 2 and one
 // line, and so does the same bomb with its declared sizes rewritten to look small, which forces the
 // streaming byte cap and the zip reader's size check instead of the up-front ratio check. The 10 MB line
-// is refused at the record cap under the same heap. The peak resident set of each run is measured by a
+// is refused at the record cap under the same heap, and a feed folder whose stop_times.txt is a link to
+// an endless device (/dev/zero, /dev/urandom) ends with exit 2 instead of reading forever. The peak resident set of each run is measured by a
 // preloaded module and must stay far below what inflating the entry would take.
 
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -118,5 +119,14 @@ describe.skipIf(!haveCli)(`hostile archives under a ${HEAP_MB} MB heap (built CL
 
   it('refuses the 10 MB line at the record cap', () => {
     expectRefused(runSmallHeap(join(tmp, 'large', 'long-line.zip'), 'long-line'), ['stops.txt']);
+  });
+
+  it.each(['/dev/zero', '/dev/urandom'])('ends with exit 2 when a folder table links to %s', (device) => {
+    if (!existsSync(device)) return console.warn(`skipped: ${device} is absent`);
+    const feed = join(tmp, `linked-${device.replace(/\//g, '_')}`);
+    cpSync(join(ROOT, 'fixtures', 'broken', 'minimal'), feed, { recursive: true });
+    rmSync(join(feed, 'stop_times.txt'));
+    symlinkSync(device, join(feed, 'stop_times.txt'));
+    expectRefused(runSmallHeap(feed, `link${device.replace(/\//g, '-')}`), ['stop_times.txt']);
   });
 });
