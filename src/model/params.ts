@@ -44,7 +44,7 @@ interface ParamSpec {
 export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
   walk_speed_mps: { default: 1.2, source: 'M', kind: 'positive', note: 'common practice: pedestrian design speed of about 1.2 m/s (4 ft/s); value from memory' },
   walk_weight: { default: 2, source: 'M', kind: 'positive', note: 'common practice: riders weigh walking about twice in-vehicle time; value from memory' },
-  door_time_s: { default: 3, source: 'M', kind: 'nonnegative', note: 'door opening and closing, TCQSM range 2-5 s (from memory)' },
+  door_time_s: { default: 5, source: 'C', kind: 'nonnegative', note: 'fixed part of dwell, 5 s (Levinson 1983, TRR 915); door opening and closing alone is 2-5 s (TCQSM, from memory)' },
   accel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   decel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   reentry_delay_s: { default: 2, source: 'M', kind: 'nonnegative', note: 'assumption: wait to re-enter traffic, chosen within 0-3 s' },

@@ -32,7 +32,7 @@ describe('normalizeParams', () => {
     expect(np.values.cruise_speed_mps).toBe(9);
     const rep = paramsReport(np);
     expect(rep.walk_weight.source).toBe('user');
-    expect(rep.door_time_s.source).toBe('M');
+    expect(rep.door_time_s.source).toBe('C');
     expect(rep.accel_mps2.source).toBe('S');
     expect(Object.keys(rep).length).toBe(14);
     for (const v of Object.values(rep)) expect(v.note.length).toBeGreaterThan(5);
