@@ -24,7 +24,7 @@ describe('normalizeParams', () => {
     const { values, given } = normalizeParams(undefined);
     expect(given).toEqual([]);
     // [S] HCM 2010 via design notes: 4.0 ft/s2 = 1.22 m/s2; common practice 1.2 m/s walking; design band 5 %
-    expect(values).toMatchObject({ walk_speed_mps: 1.2, walk_weight: 2, door_time_s: 3, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, band_tolerance: 0.05, max_gap_m: 800, stopping_model: 'poisson', cruise_speed_mps: null });
+    expect(values).toMatchObject({ walk_speed_mps: 1.2, walk_weight: 2, door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, band_tolerance: 0.05, max_gap_m: 800, stopping_model: 'poisson', cruise_speed_mps: null });
   });
   it('takes user values, also numbers given as strings, and reports them as user-set', () => {
     const np = normalizeParams({ walk_weight: '2.5', stopping_model: 'always', cruise_speed_mps: 9 });
