@@ -394,6 +394,14 @@ async function readArchive(
   {
     const n = stOwner.length;
     const { order, offsets } = groupAndSort(stOwner.data, stSeq.data, n, kept.length);
+    const outStop = new Int32Array(n);
+    const outSeq = new Int32Array(n);
+    const outArr = new Int32Array(n);
+    const outDep = new Int32Array(n);
+    const outDist = new Float64Array(n);
+    const outTp = new Uint8Array(n);
+    const outNs = new Uint8Array(n);
+    let w = 0;
     let repeated = 0;
     let noTimes = 0;
     let noRows = 0;
@@ -414,26 +422,28 @@ async function readArchive(
         }
         pick.push(r);
       }
-      const m = pick.length;
-      const rec: TripStopTimes = {
-        stopIdx: new Int32Array(m),
-        seq: new Int32Array(m),
-        arrS: new Int32Array(m),
-        depS: new Int32Array(m),
-        shapeDist: new Float64Array(m),
-        timepoint: new Uint8Array(m),
-        noService: new Uint8Array(m),
-      };
-      for (let q = 0; q < m; q++) {
-        const r = pick[q];
-        rec.stopIdx[q] = stStop.data[r];
-        rec.seq[q] = stSeq.data[r];
-        rec.arrS[q] = stArr.data[r];
-        rec.depS[q] = stDep.data[r];
-        rec.shapeDist[q] = stDist.data[r];
-        rec.timepoint[q] = stFlags.data[r] & 1;
-        rec.noService[q] = (stFlags.data[r] >> 1) & 1;
+      // each trip's arrays are views into one buffer per column: no backing store per trip
+      const w0 = w;
+      for (const r of pick) {
+        outStop[w] = stStop.data[r];
+        outSeq[w] = stSeq.data[r];
+        outArr[w] = stArr.data[r];
+        outDep[w] = stDep.data[r];
+        outDist[w] = stDist.data[r];
+        outTp[w] = stFlags.data[r] & 1;
+        outNs[w] = (stFlags.data[r] >> 1) & 1;
+        w++;
       }
+      const m = w - w0;
+      const rec: TripStopTimes = {
+        stopIdx: outStop.subarray(w0, w),
+        seq: outSeq.subarray(w0, w),
+        arrS: outArr.subarray(w0, w),
+        depS: outDep.subarray(w0, w),
+        shapeDist: outDist.subarray(w0, w),
+        timepoint: outTp.subarray(w0, w),
+        noService: outNs.subarray(w0, w),
+      };
       // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
       if (rec.arrS[0] < 0 || rec.depS[m - 1] < 0) noTimes++;
       stopTimes.set(kept[k].id, rec);
