@@ -1,4 +1,17 @@
-// The cautions shown with every audit and every what-if (design notes, section 9).
+// The cautions every audit, every what-if and every report must show (design notes, section 9), as the
+// one source: the HTML pages, summary.json and the CLI print the same words. src/report/cautions.ts
+// re-exports these.
+
 export const CAUTIONS: readonly string[] = Object.freeze([
-  'This is a screening tool. Before any stop is removed or moved: field review of the walk (crossings, sidewalks, grades, lighting), accessibility review under local law (for example the ADA in the US), attention to older and disabled riders, an equity review where one is required (for example Title VI service-equity analysis in the US), and public engagement. Local policy and licensed professional judgement decide.',
+  'This is a screening tool: its figures show where a closer look may pay off; they decide nothing.',
+  'Before any stop is removed or moved: a field review of the walk (crossings, sidewalks, grades, lighting);',
+  'an accessibility review under local law (for example the ADA in the US);',
+  'attention to older and disabled riders, for whom a longer walk weighs more;',
+  'an equity review where one is required (for example Title VI service-equity analysis in the US);',
+  'and public engagement with the riders and neighbours affected.',
+  'Local policy and licensed professional judgement decide.',
+  'Every figure computed from assumed demand is labelled as assumed.',
 ]);
+
+/** The cautions as one paragraph, for plain-text output (the list items read on as one sentence). */
+export const CAUTIONS_TEXT: string = CAUTIONS.join(' ');
