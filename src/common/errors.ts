@@ -43,8 +43,14 @@ export class StopspanError extends Error {
     if (line !== undefined) where += `${where ? ':' : 'line '}${line}`;
     if (column) where += `${where ? ' ' : ''}column ${column}`;
     const got = value !== undefined ? ` (got ${JSON.stringify(clip(value, 60))})` : '';
-    return `${where ? where + ': ' : ''}${this.message.replace(/[\r\n]+/g, ' ')}${got}`;
+    return escapeControls(`${where ? where + ': ' : ''}${this.message.replace(/[\r\n]+/g, ' ')}${got}`);
   }
+}
+
+/** Shows C0 and C1 control characters, DEL and the Unicode line and paragraph separators as \uXXXX, so a
+ * line built from feed text can neither break into several lines nor send escape sequences to a terminal. */
+function escapeControls(s: string): string {
+  return s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }
 
 function clip(s: string, n: number): string {
