@@ -6,7 +6,7 @@ import type { Command } from 'commander';
 const OPTIONS: { flag: string; key: string; help: string; numeric: boolean }[] = [
   { flag: '--walk-speed <m/s>', key: 'walk_speed_mps', help: 'walking speed, m/s', numeric: true },
   { flag: '--walk-weight <w>', key: 'walk_weight', help: 'weight of walk time relative to riding time', numeric: true },
-  { flag: '--door-time <s>', key: 'door_time_s', help: 'door opening and closing time per stop, s', numeric: true },
+  { flag: '--door-time <s>', key: 'door_time_s', help: 'fixed time lost per stop served (doors and first movements), s', numeric: true },
   { flag: '--cruise-speed <m/s>', key: 'cruise_speed_mps', help: 'bus cruise speed, m/s (default: estimated per pattern)', numeric: true },
   { flag: '--band-tolerance <e>', key: 'band_tolerance', help: 'cost tolerance of the near-optimal band (0.05 = 5 %)', numeric: true },
   { flag: '--max-gap <m>', key: 'max_gap_m', help: 'largest gap between stops the walking policy allows, m', numeric: true },
