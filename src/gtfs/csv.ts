@@ -178,10 +178,14 @@ export class CsvCore {
     let k = start;
     let c = 0;
     for (;;) {
+      let ws = false;
       while (k < n) {
         c = buf.charCodeAt(k);
-        // every delimiter is <= ',' (44); most data characters (digits, letters, ':', '.') are above it
-        if (c <= COMMA && (c === COMMA || c === LF || c === CR || c === QUOTE)) break;
+        // every delimiter (and space, tab) is <= ',' (44); most data characters are above it
+        if (c <= COMMA) {
+          if (c === COMMA || c === LF || c === CR || c === QUOTE) break;
+          if (c === SPACE || c === TAB) ws = true;
+        }
         k++;
       }
       if (k >= n) {
@@ -193,7 +197,7 @@ export class CsvCore {
       // field [fs, k): trim spaces and tabs
       let a = fs;
       let e = k;
-      if (a < e) {
+      if (ws) {
         let d = buf.charCodeAt(a);
         if (d === SPACE || d === TAB) {
           while (a < e && ((d = buf.charCodeAt(a)) === SPACE || d === TAB)) a++;
