@@ -5,6 +5,7 @@ import { registerAudit } from './audit.js';
 import { registerCheck } from './check.js';
 import { registerCompare } from './compare.js';
 import { registerHistory } from './history.js';
+import { registerWhatif } from './whatif.js';
 
 export type RegisterCommand = (program: Command) => void;
 
@@ -13,4 +14,5 @@ export const commands: RegisterCommand[] = [
   registerCheck,
   registerCompare,
   registerHistory,
+  registerWhatif,
 ];

@@ -1,0 +1,97 @@
+// The what-if result as plain text for a terminal: one table of figures with a column per affected
+// pattern and a total column (wrapped into blocks when there are many patterns), the sensitivity line,
+// the largest gaps against the walking policy, and the cautions. Feed text has its control characters
+// shown as \uXXXX so it cannot move the cursor or break lines.
+
+import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../audit/whatif.js';
+
+export interface WhatifTextOptions {
+  feedSource?: string;
+  /** What each pattern is (e.g. "route 1 to Eastgate"), listed under the table whose columns are pattern ids. */
+  labels?: Map<string, string>;
+  columnsPerBlock?: number;
+  width?: number;
+}
+
+const safe = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+const n0 = (v: number): string => (Number.isFinite(v) ? Math.round(v).toLocaleString('en-US') : '-');
+const n1 = (v: number): string => (Number.isFinite(v) ? v.toFixed(1) : '-');
+const n2 = (v: number): string => (Number.isFinite(v) ? v.toFixed(2) : '-');
+const pc = (v: number): string => (Number.isFinite(v) ? `${(v * 100).toFixed(1)}%` : '-');
+
+function wrap(text: string, width: number): string[] {
+  const out: string[] = [];
+  let line = '';
+  for (const word of text.split(/\s+/).filter(Boolean)) {
+    if (line && line.length + 1 + word.length > width) {
+      out.push(line);
+      line = word;
+    } else line = line ? `${line} ${word}` : word;
+  }
+  if (line) out.push(line);
+  return out;
+}
+
+type Cell = (e: ScenarioPatternEffect | null, t: ScenarioTotals) => string;
+
+/** The result as terminal text (ends with a newline). */
+export function whatifText(result: ScenarioResult, options: WhatifTextOptions = {}): string {
+  const { feedSource = '', labels = new Map(), columnsPerBlock = 4, width = 100 } = options;
+  const maxGapM = Number(result.params.max_gap_m?.value ?? 800);
+  const t = result.totals;
+  const gap = (a: number, b: number): string => `${n0(a)} -> ${n0(b)}${b > maxGapM && b > a ? ' !' : ''}`;
+  const rows: [string, Cell][] = [
+    ['trips per day', (e) => (e ? n0(e.tripsPerDay) : n0(result.patterns.reduce((s, x) => s + x.tripsPerDay, 0)))],
+    ['stops removed/moved/added', (e) => (e ? `${e.removedStopIds.length}/${e.movedStopIds.length}/${e.addedCount}` : '')],
+    ['riders whose stop changes /day', (e) => n0((e ?? t).ridersAffectedPerDay)],
+    ['walk added, pax-min/day', (e) => n0((e ?? t).walkAddedPaxMinPerDay)],
+    ['walk saved, pax-min/day', (e) => n0((e ?? t).walkSavedPaxMinPerDay)],
+    ['ride time saved, pax-min/day', (e) => n0((e ?? t).rideSavedPaxMinPerDay)],
+    ["neighbours' extra stopping, pax-min/day", (e) => n0((e ?? t).neighboursExtraPaxMinPerDay)],
+    ['net, pax-min/day (- = riders save)', (e) => n0((e ?? t).netPaxMinPerDay)],
+    ['run time saved per trip, s', (e) => n1((e ?? t).runTimeSavedPerTripS)],
+    ['vehicle-hours saved per day', (e) => n2((e ?? t).vehicleHoursPerDay)],
+    [`largest gap before -> after, m`, (e) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM)],
+    [`within ${n0(maxGapM / 2)} m of a stop, before -> after`, (e) => (e ? `${pc(e.coverageBefore)} -> ${pc(e.coverageAfter)}` : '')],
+    ['demand', (e) => (e ? e.demandSource : '')],
+  ];
+  const columns: { head: string; e: ScenarioPatternEffect | null }[] = [
+    ...result.patterns.map((e) => ({ head: safe(e.patternId), e })),
+    { head: 'total', e: null },
+  ];
+  const labelW = Math.max(...rows.map(([l]) => l.length));
+  const lines: string[] = [];
+  const assumed = result.patterns.some((e) => e.demandSource === 'assumed');
+  lines.push(`what-if on ${safe(feedSource)} for ${result.date}: ${t.patternsAffected} pattern${t.patternsAffected === 1 ? '' : 's'} affected${assumed ? ' (demand assumed, not counted)' : ''}`);
+  for (let b = 0; b < columns.length; b += columnsPerBlock) {
+    const block = columns.slice(b, b + columnsPerBlock);
+    const cells = block.map((c) => rows.map(([, f]) => f(c.e, t)));
+    const widths = block.map((c, i) => Math.max(c.head.length, ...cells[i].map((s) => s.length)));
+    lines.push('');
+    lines.push(`${''.padEnd(labelW)}  ${block.map((c, i) => c.head.padStart(widths[i])).join('  ')}`);
+    rows.forEach(([label], r) => lines.push(`${label.padEnd(labelW)}  ${block.map((_, i) => cells[i][r].padStart(widths[i])).join('  ')}`));
+  }
+  lines.push('');
+  for (const e of result.patterns) {
+    const what = labels.get(e.patternId);
+    const changed = [
+      e.removedStopIds.length ? `removes ${e.removedStopIds.join(', ')}` : '',
+      e.movedStopIds.length ? `moves ${e.movedStopIds.join(', ')}` : '',
+      e.addedCount ? `adds ${e.addedCount} stop${e.addedCount === 1 ? '' : 's'}` : '',
+    ].filter(Boolean);
+    lines.push(safe(`${e.patternId}: ${what ? what + ', ' : ''}${changed.join('; ')}`));
+  }
+  lines.push('');
+  const net = t.netPaxMinPerDay;
+  lines.push(`net: riders ${net <= 0 ? 'save' : 'lose'} ${n0(Math.abs(net))} passenger-minutes a day; buses save ${n1(t.runTimeSavedPerTripS)} s per trip, ${n2(t.vehicleHoursPerDay)} vehicle-hours a day`);
+  lines.push(`sensitivity (net pax-min/day): ${result.sensitivity.map((s) => `${s.label} ${n0(s.netPaxMinPerDay)}`).join(', ')}`);
+  lines.push(
+    t.overPolicyAfter > 0
+      ? `walking policy: ${t.overPolicyAfter} pattern${t.overPolicyAfter === 1 ? '' : 's'} get a gap above ${n0(maxGapM)} m that was not there before (marked !)`
+      : `walking policy: no new gap above ${n0(maxGapM)} m`,
+  );
+  if (result.warnings.length) lines.push(`${result.warnings.length} feed warning${result.warnings.length === 1 ? '' : 's'} (see --json)`);
+  lines.push('');
+  lines.push(...wrap(`Cautions: ${result.cautions.join(' ')}`, width));
+  return lines.join('\n') + '\n';
+}
