@@ -5,7 +5,7 @@ import type { CheckReport } from './check.js';
 export function checkText(report: CheckReport): string {
   const lines: string[] = [];
   const f = report.feed;
-  lines.push(`feed ${f.source}${f.version ? ` (version ${f.version})` : ''}, sha256 ${f.contentHash.slice(0, 12)}`);
+  lines.push(`feed ${oneLine(f.source)}${f.version ? ` (version ${oneLine(f.version)})` : ''}, sha256 ${f.contentHash.slice(0, 12)}`);
   lines.push(`checked against ${report.today}; service runs until ${report.serviceEnd ?? 'never'}`);
   lines.push('');
   if (report.findings.length === 0) {
@@ -25,5 +25,5 @@ export function checkText(report: CheckReport): string {
 /** Feed text is shown on one line with control characters escaped, so a feed cannot redraw the terminal. */
 function oneLine(s: string): string {
   // eslint-disable-next-line no-control-regex
-  return s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+  return s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }
