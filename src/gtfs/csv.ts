@@ -73,6 +73,8 @@ export class CsvCore {
   private soloQuoted = false; // the record just parsed is one quoted field
   paddedValues = 0;
   readonly paddedExamples: Array<{ line: number; field: number }> = [];
+  strayQuotes = 0;
+  readonly strayExamples: Array<{ line: number; field: number }> = [];
   /** Column names for error messages, once the header is known. */
   names: string[] | null = null;
 
@@ -299,6 +301,12 @@ export class CsvCore {
           k++;
         }
         if (k >= n && !final) return -1;
+        const q = buf.indexOf('"', j);
+        if (q >= 0 && q < k) {
+          // a quote inside an unquoted field is taken literally, and counted
+          this.strayQuotes++;
+          if (this.strayExamples.length < 5) this.strayExamples.push({ line: this.line + lines, field: nf });
+        }
         let e = k;
         c = e > j ? buf.charCodeAt(e - 1) : 0;
         if (c === SPACE || c === TAB) {
@@ -401,6 +409,12 @@ function reportStats(warnings: WarningSink, file: string, header: string[], core
     const ex = core.paddedExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
     warnings.add('padded-values', msg, ex[0], core.paddedValues);
     for (const e of ex.slice(1)) warnings.add('padded-values', msg, e, 0); // keep examples, count once
+  }
+  if (core.strayQuotes > 0) {
+    const msg = 'quotes inside unquoted values were read as literal characters';
+    const ex = core.strayExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
+    warnings.add('stray-quotes', msg, ex[0], core.strayQuotes);
+    for (const e of ex.slice(1)) warnings.add('stray-quotes', msg, e, 0);
   }
   if (stats.shortRows > 0) warnings.add('short-rows', 'rows with fewer fields than the header (missing fields read as blank)', file, stats.shortRows);
   if (stats.longRows > 0) warnings.add('long-rows', 'rows with more fields than the header (extra fields ignored)', file, stats.longRows);

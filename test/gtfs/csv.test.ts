@@ -164,6 +164,14 @@ describe('the CSV reader counts what it forgives', () => {
     expect(byCode['long-rows'].count).toBe(1);
   });
 
+  it('a quote inside an unquoted value: literal, as csv-parse reads it with relax_quotes, and counted', () => {
+    const text = 'stop_id,stop_desc\nS1,5" kerb\nS2,"ok"\n';
+    const w = new WarningSink();
+    const r = parseCsv(text, { file: 'stops.txt', warnings: w });
+    expect([r.header, ...r.rows]).toEqual(parse(text, { ...ORACLE, relax_quotes: true }));
+    expect(w.list().find((x) => x.code === 'stray-quotes')).toMatchObject({ count: 1, examples: ['stops.txt:2 column stop_desc'] });
+  });
+
   it('invalid UTF-8: replaced with U+FFFD as the WHATWG decoder does, counted and located', async () => {
     const bytes = Buffer.concat([Buffer.from('stop_id,stop_name\nS1,Caf'), Buffer.from([0xe9]), Buffer.from('\nS2,ok\n')]);
     const w = new WarningSink();
