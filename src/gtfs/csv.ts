@@ -349,6 +349,7 @@ export class CsvCore {
 function checkHeader(header: string[], file: string): void {
   const seen = new Set<string>();
   for (const h of header) {
+    if (h === '') continue; // unnamed columns (trailing commas) are ignored, however many
     if (seen.has(h)) throw new StopspanError('csv-syntax', 'duplicate column name in the header', { file, line: 1, column: h, value: h });
     seen.add(h);
   }

@@ -80,6 +80,7 @@ const CASES: Record<string, string> = {
   'no final line break': 'a,b\n1,2',
   'empty fields': 'a,b,c\n,,\n1,,3\n',
   'unicode': 'stop_id,stop_name\nV1,Vellmoor Strandpromenade – Süd\nV2,"Café ""Am Tor"""\nV3,東口\n',
+  'trailing commas in header and rows': 'a,b,,\n1,2,,\n',
   'CR only line breaks': 'a,b\r1,2\r3,4\r',
 };
 
