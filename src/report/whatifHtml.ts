@@ -29,6 +29,7 @@ table.wf th:first-child, table.wf td:first-child { text-align:left; }
 
 const fmt0 = (v: number): string => (Number.isFinite(v) ? Math.round(v).toLocaleString('en-US') : '–');
 const fmt1 = (v: number): string => (Number.isFinite(v) ? (Math.round(v * 10) / 10).toLocaleString('en-US', { minimumFractionDigits: 1 }) : '–');
+const fmt2 = (v: number): string => (Number.isFinite(v) ? (Math.abs(v) < 0.005 ? 0 : v).toFixed(2) : '–');
 const pct = (v: number): string => (Number.isFinite(v) ? `${(v * 100).toFixed(1)} %` : '–');
 
 /** An inline SVG strip diagram: today's stops on the upper line, the stops after the change below. */
@@ -82,7 +83,7 @@ function rows(maxGapM: number, units: Units): Row[] {
     ["Neighbours' extra stopping, passenger-minutes per day", (e, t) => fmt0((e ?? t).neighboursExtraPaxMinPerDay)],
     ['Net, passenger-minutes per day (negative: riders save)', (e, t) => fmt0((e ?? t).netPaxMinPerDay)],
     ['Run time saved per trip, s', (e, t) => fmt1((e ?? t).runTimeSavedPerTripS)],
-    ['Vehicle-hours saved per day', (e, t) => fmt1((e ?? t).vehicleHoursPerDay)],
+    ['Vehicle-hours saved per day', (e, t) => fmt2((e ?? t).vehicleHoursPerDay)],
     [`Largest gap before → after (policy ${formatShortDistance(maxGapM, units)})`, (e, t) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM)],
     ["Share of length within the policy's walk, before → after", (e) => (e ? `${pct(e.coverageBefore)} → ${pct(e.coverageAfter)}` : '–')],
   ];
@@ -119,7 +120,10 @@ ${whatifStripSvg(s, maxGapM, units)}
 <p class="note">${h([...changed, ...added].join('; '))}</p>`;
     })
     .join('\n');
-  const headline = `${net <= 0 ? 'Riders save' : 'Riders lose'} ${fmt0(Math.abs(net))} passenger-minutes a day in total; buses save ${fmt1(t.runTimeSavedPerTripS)} s per trip (${fmt1(t.vehicleHoursPerDay)} vehicle-hours a day).`;
+  const bus = t.runTimeSavedPerTripS;
+  const headline =
+    `${net <= 0 ? 'Riders save' : 'Riders lose'} ${fmt0(Math.abs(net))} passenger-minutes a day in total; ` +
+    `buses ${bus >= 0 ? 'save' : 'lose'} ${fmt1(Math.abs(bus))} s per trip (${fmt2(Math.abs(t.vehicleHoursPerDay))} vehicle-hours a day).`;
   return `<!doctype html>
 <html lang="en">
 <head>

@@ -16,7 +16,7 @@ export interface WhatifTextOptions {
 const safe = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 const n0 = (v: number): string => (Number.isFinite(v) ? Math.round(v).toLocaleString('en-US') : '-');
 const n1 = (v: number): string => (Number.isFinite(v) ? v.toFixed(1) : '-');
-const n2 = (v: number): string => (Number.isFinite(v) ? v.toFixed(2) : '-');
+const n2 = (v: number): string => (Number.isFinite(v) ? (Math.abs(v) < 0.005 ? 0 : v).toFixed(2) : '-');
 const pc = (v: number): string => (Number.isFinite(v) ? `${(v * 100).toFixed(1)}%` : '-');
 
 function wrap(text: string, width: number): string[] {
@@ -83,7 +83,11 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
   }
   lines.push('');
   const net = t.netPaxMinPerDay;
-  lines.push(`net: riders ${net <= 0 ? 'save' : 'lose'} ${n0(Math.abs(net))} passenger-minutes a day; buses save ${n1(t.runTimeSavedPerTripS)} s per trip, ${n2(t.vehicleHoursPerDay)} vehicle-hours a day`);
+  const bus = t.runTimeSavedPerTripS;
+  lines.push(
+    `net: riders ${net <= 0 ? 'save' : 'lose'} ${n0(Math.abs(net))} passenger-minutes a day; buses ${bus >= 0 ? 'save' : 'lose'} ${n1(Math.abs(bus))} s per trip, ` +
+      `${n2(Math.abs(t.vehicleHoursPerDay))} vehicle-hours a day`,
+  );
   lines.push(`sensitivity (net pax-min/day): ${result.sensitivity.map((s) => `${s.label} ${n0(s.netPaxMinPerDay)}`).join(', ')}`);
   lines.push(
     t.overPolicyAfter > 0
