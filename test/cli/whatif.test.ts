@@ -1,0 +1,168 @@
+// The built CLI's whatif command on the demo feed (the invented city of Vellmoor): stops by id and by name,
+// the errors that refuse a scenario whole (ambiguous name, unknown stop, terminal, far coordinates,
+// unknown keys), the terminal table, --json, parameter options, --out with its page and scenario.json.
+// The walk added by one removal is checked against a*b/(a+b) with the neighbours' spacing measured
+// independently by geographiclib.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { execFileSync, spawn } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import geodesicPkg from 'geographiclib-geodesic';
+import { CAUTIONS } from '../../src/audit/cautions.js';
+
+const Geodesic = (geodesicPkg as any).Geodesic;
+const ROOT = resolve(__dirname, '../..');
+const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
+const FIX = join(ROOT, 'fixtures/whatif');
+let dir: string;
+
+function cli(args: string[]): Promise<{ code: number | null; stdout: string; stderr: string }> {
+  return new Promise((ok, fail) => {
+    const p = spawn(process.execPath, [join(ROOT, 'dist/cli/main.js'), 'whatif', ...args], { cwd: ROOT, env: { ...process.env, NO_COLOR: '1' } });
+    let stdout = '';
+    let stderr = '';
+    p.stdout.on('data', (d) => (stdout += d));
+    p.stderr.on('data', (d) => (stderr += d));
+    p.on('error', fail);
+    p.on('close', (code) => ok({ code, stdout, stderr }));
+  });
+}
+
+beforeAll(() => {
+  execFileSync(join(ROOT, 'node_modules/.bin/tsc'), ['-p', 'tsconfig.json'], { cwd: ROOT, stdio: 'pipe' });
+  dir = mkdtempSync(join(tmpdir(), 'stopspan-whatif-cli-'));
+}, 120_000);
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** A demo stop's coordinates, read from the feed's stops.txt. */
+function demoStop(id: string): { lat: number; lon: number } {
+  const text = execFileSync('unzip', ['-p', DEMO, 'stops.txt'], { encoding: 'utf8' });
+  const head = text.split(/\r?\n/)[0].split(',');
+  const row = text.split(/\r?\n/).map((l) => l.split(',')).find((r) => r[0] === id)!;
+  return { lat: Number(row[head.indexOf('stop_lat')]), lon: Number(row[head.indexOf('stop_lon')]) };
+}
+
+describe('stopspan whatif on the demo feed', () => {
+  it('removes a stop by id and prints the table per pattern and in total, the sensitivity and the cautions', async () => {
+    const r = await cli([DEMO, '--remove', 'MKT-05-a']);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^ +R1:0:1 +R1:0:2 +total$/m);
+    for (const row of ['riders whose stop changes /day', 'walk added, pax-min/day', 'walk saved, pax-min/day', 'ride time saved, pax-min/day', "neighbours' extra stopping", 'net, pax-min/day', 'run time saved per trip, s', 'vehicle-hours saved per day', 'largest gap before -> after, m', 'within 400 m of a stop, before -> after']) {
+      expect(r.stdout).toContain(row);
+    }
+    expect(r.stdout).toMatch(/R1:0:1: route 1 to Eastgate Terminus, removes MKT-05-a/);
+    expect(r.stdout).toMatch(/sensitivity \(net pax-min\/day\): walk_weight=1\.5 [\d,-]+, walk_weight=2\.5 [\d,-]+/);
+    expect(r.stdout).toMatch(/demand assumed, not counted/);
+    expect(r.stdout.replace(/\s+/g, ' ')).toContain(CAUTIONS.join(' '));
+  });
+
+  it('removes a stop by its unique name', async () => {
+    const r = await cli([DEMO, '--remove', 'Ring Rd / Glebe Rd', '--json']);
+    expect(r.code).toBe(0);
+    const doc = JSON.parse(r.stdout);
+    expect(doc.patterns.map((p: any) => p.removedStopIds)).toEqual([['RNG-02-a']]);
+  });
+
+  it('refuses an ambiguous name, an unknown stop, a terminal and a far point, naming the item, and prints nothing on stdout', async () => {
+    const cases: [string[], RegExp][] = [
+      [['--remove', 'Market St / Oriel St'], /remove\[0\]: stop name "Market St \/ Oriel St" is ambiguous \(2 stops: MKT-02-a, MKT-02-b\); give the stop_id/],
+      [['--remove', 'MKT-05-a,VELL-NOWHERE'], /remove\[1\]: unknown stop "VELL-NOWHERE"/],
+      [['--remove', 'MKT-01-a'], /remove\[0\]: stop MKT-01-a is a terminal of pattern R1:0:\d and cannot be removed/],
+      [['--add', '45.1,10.0:R1'], /add\[0\]: 45\.1,10 is \d+ m from the nearest pattern of route R1 \(limit 200 m/],
+      [['--move', 'MKT-09-a:45.03,10.0135'], /move\[0\]: 45\.03,10\.0135 is \d+ m from pattern R1:0:\d \(limit 200 m\)/],
+      [['--add', 'north of the market'], /invalid option --add: expected LAT,LON\[:ROUTE_ID\]/],
+      [[], /nothing to weigh: give --remove, --add, --move or --scenario/],
+    ];
+    for (const [args, message] of cases) {
+      const r = await cli([DEMO, ...args]);
+      expect(r.code, args.join(' ')).toBe(2);
+      expect(r.stderr).toMatch(/^error: /);
+      expect(r.stderr).toMatch(message);
+      expect(r.stdout).toBe('');
+    }
+  });
+
+  it('refuses a scenario file with an unknown key before reading the feed', async () => {
+    // the feed argument does not exist: the scenario error comes first, so nothing was computed from it
+    const r = await cli([join(dir, 'no-such-feed.zip'), '--scenario', join(FIX, 'unknown-key.json')]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/unknown-key\.json: invalid scenario key close: expected one of remove, add, move/);
+    expect(r.stdout).toBe('');
+  });
+
+  it('--json prints one document with the totals, per-pattern figures, sensitivity and cautions', async () => {
+    const r = await cli([DEMO, '--scenario', join(FIX, 'market-street.json'), '--json']);
+    expect(r.code).toBe(0);
+    expect(r.stdout.trim().split('\n').length).toBe(1);
+    const doc = JSON.parse(r.stdout);
+    expect(doc.tool.name).toBe('stopspan');
+    expect(doc.scenario.remove).toEqual(['MKT-05-a', { stop: 'Ring Rd / Glebe Rd', routes: ['R30'] }]);
+    const t = doc.totals;
+    for (const k of ['patternsAffected', 'ridersAffectedPerDay', 'walkAddedPaxMinPerDay', 'walkSavedPaxMinPerDay', 'rideSavedPaxMinPerDay', 'neighboursExtraPaxMinPerDay', 'netPaxMinPerDay', 'runTimeSavedPerTripS', 'vehicleHoursPerDay', 'largestGapBeforeM', 'largestGapAfterM', 'overPolicyAfter']) {
+      expect(typeof t[k], k).toBe('number');
+    }
+    expect(t.patternsAffected).toBe(doc.patterns.length);
+    const sum = (k: string) => doc.patterns.reduce((s: number, p: any) => s + p[k], 0);
+    expect(t.netPaxMinPerDay).toBeCloseTo(sum('netPaxMinPerDay'), 6);
+    expect(t.walkAddedPaxMinPerDay).toBeCloseTo(sum('walkAddedPaxMinPerDay'), 6);
+    // R30 lost only its named stop; route R1 patterns got the move and the addition
+    expect(doc.patterns.find((p: any) => p.routeId === 'R30').removedStopIds).toEqual(['RNG-02-a']);
+    expect(doc.patterns.filter((p: any) => p.routeId === 'R1' && p.addedCount === 1).length).toBeGreaterThan(0);
+    expect(doc.patterns.some((p: any) => p.movedStopIds.includes('MKT-09-a'))).toBe(true);
+    expect(doc.sensitivity.map((s: any) => s.label)).toEqual(['walk_weight=1.5', 'walk_weight=2.5']);
+    expect(doc.cautions).toEqual([...CAUTIONS]);
+  });
+
+  it('one removal adds a*b/(a+b) of walk per trip end, with a and b measured by geographiclib', async () => {
+    const r = await cli([DEMO, '--remove', 'MKT-05-a', '--json']);
+    const doc = JSON.parse(r.stdout);
+    const e = doc.patterns.find((p: any) => p.patternId === 'R1:0:1');
+    // [C] geographiclib (Karney 2013, WGS84 geodesics): the neighbours' distances along the straight street
+    const [s4, s5, s6] = ['MKT-04-a', 'MKT-05-a', 'MKT-06-a'].map(demoStop);
+    const a = Geodesic.WGS84.Inverse(s4.lat, s4.lon, s5.lat, s5.lon).s12;
+    const b = Geodesic.WGS84.Inverse(s5.lat, s5.lon, s6.lat, s6.lon).s12;
+    const w = doc.params.walk_weight.value;
+    const v = doc.params.walk_speed_mps.value;
+    // [D] design notes section 4: walk added = w/v * riders * a*b/(a+b); riders = the stop's trip ends
+    const expected = ((w / v) * e.ridersAffectedPerDay * ((a * b) / (a + b))) / 60;
+    expect(Math.abs(e.walkAddedPaxMinPerDay - expected) / expected).toBeLessThan(0.01);
+    expect(e.largestGapAfterM).toBeGreaterThanOrEqual(a + b - 5);
+  });
+
+  it('takes parameter options and files: a heavier walk weight raises the net, ridership changes the demand source', async () => {
+    const base = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json'])).stdout);
+    const heavy = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json', '--walk-weight', '3'])).stdout);
+    expect(heavy.params.walk_weight).toMatchObject({ value: 3, source: 'user' });
+    expect(heavy.totals.netPaxMinPerDay).toBeGreaterThan(base.totals.netPaxMinPerDay);
+    expect(heavy.totals.rideSavedPaxMinPerDay).toBeCloseTo(base.totals.rideSavedPaxMinPerDay, 6);
+    const counted = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json', '--ridership', join(ROOT, 'fixtures/demo/ridership.csv')])).stdout);
+    expect(counted.patterns.every((p: any) => p.demandSource === 'observed')).toBe(true);
+    const bad = await cli([DEMO, '--remove', 'MKT-05-a', '--walk-weight', 'brisk']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/walk_weight/);
+  });
+
+  it('--out writes the page and scenario.json, refuses an existing folder without --force', async () => {
+    const out = join(dir, 'market');
+    const r = await cli([DEMO, '--scenario', join(FIX, 'market-street.json'), '--out', out, '--quiet']);
+    expect(r.code).toBe(0);
+    expect(readdirSync(out).sort()).toEqual(['index.html', 'scenario.json']);
+    const html = readFileSync(join(out, 'index.html'), 'utf8');
+    expect(html).toMatch(/^<!doctype html>/);
+    expect(html).toContain('Market St / Wheelwright St (MKT-05-a): removed');
+    expect(html).toContain('Market St / Quarry Hill Rd west: added');
+    expect((html.match(/<svg class="chart strip wf-strip"/g) ?? []).length).toBe(JSON.parse(readFileSync(join(out, 'scenario.json'), 'utf8')).patterns.length);
+    expect(html).not.toMatch(/<script|https?:\/\//);
+    const again = await cli([DEMO, '--remove', 'MKT-05-a', '--out', out]);
+    expect(again.code).toBe(2);
+    expect(again.stderr).toMatch(/already exists; choose another folder or pass --force/);
+    expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe(html);
+    const forced = await cli([DEMO, '--remove', 'MKT-05-a', '--out', out, '--force', '--json']);
+    expect(forced.code).toBe(0);
+    expect(JSON.parse(readFileSync(join(out, 'scenario.json'), 'utf8'))).toEqual(JSON.parse(forced.stdout));
+    expect(readdirSync(dir).filter((n) => n.startsWith('.'))).toEqual([]);
+    expect(existsSync(join(out, 'index.html'))).toBe(true);
+  });
+});
