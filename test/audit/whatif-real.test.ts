@@ -39,17 +39,34 @@ describe.skipIf(!have)('evaluateScenario on nyct-bus-manhattan.zip', () => {
     expect(e).toBeDefined();
     const perStop = e.runTimeSavedPerTripS / removedIds.length;
     const share = e.runTimeSavedPerTripS / runTimeS;
-    // El-Geneidy et al. 2006 (TRR 1971) found consolidation cut running time by nearly 6 %, and Portland's
-    // Route 14 about 26 s per stop removed [C, via the issue]. The model's figure is far smaller (recorded
-    // in the notes): at 25 mph the lost time is 14.2 s per stop and the model has no signal or queueing
-    // delay that a stop adds in real traffic. Here the direction and the bound are checked: a positive
-    // saving, at most the full lost time per stop, and taking out a run of adjacent close stops together
-    // opens a gap above the walking policy.
     const p = audit.patterns.find((x) => x.patternId === e.patternId)!.lostTimePerStopS;
+    // The figure for the notes, printed with the run.
+    console.info(
+      `what-if on ${e.patternId} (${DATE}, cruise 25 mph, always stopping): ${removedIds.length} close stops removed, ` +
+        `run time saved ${e.runTimeSavedPerTripS.toFixed(1)} s per trip = ${perStop.toFixed(1)} s per stop removed = ` +
+        `${(share * 100).toFixed(2)} % of the scheduled ${Math.round(runTimeS)} s; lost time per stop ${p.toFixed(1)} s; ` +
+        `net ${Math.round(e.netPaxMinPerDay)} pax-min/day, ${e.vehicleHoursPerDay.toFixed(2)} vehicle-hours/day`,
+    );
+    // Published consolidation results: El-Geneidy et al. 2006 (TRR 1971), running times improved by nearly
+    // 6 % [C]; Portland Route 14, about 26 s saved per stop removed [C, USDOT ITS benefit database]. Measured
+    // here (M15:1:1, 17 close stops): about 16 s per stop removed and about 5.4 % of the run time. It need
+    // not match, and differs for known reasons: the model saves exactly the lost time of one stop (doors,
+    // braking and accelerating from cruise speed, re-entry: about 16 s at 25 mph) because the boarding time
+    // moves to the neighbours with the riders; a stop removed in real traffic also takes away signal and
+    // queueing delay, the slow pull to the kerb and part of the dwell spread, which Portland's 26 s includes.
+    // The per cent is near 6 % partly by coincidence: it depends on how many stops are taken out of how long
+    // a route (here 17 on one long avenue pattern under a regime where the bus stops everywhere), and the
+    // Portland study removed a smaller share. So only what the model must satisfy is asserted: a positive
+    // saving, at most the full lost time per stop (with rounding room), a share of the run time between 0
+    // and 1, riders who walk farther and ride faster, and a gap that opens.
     expect(perStop).toBeGreaterThan(0);
-    expect(perStop).toBeLessThanOrEqual(p + 1e-9);
-    expect(share).toBeLessThan(0.06);
+    expect(perStop).toBeLessThanOrEqual(p + 1e-6);
+    expect(share).toBeGreaterThan(0);
+    expect(share).toBeLessThan(1);
+    expect(e.ridersAffectedPerDay).toBeGreaterThan(0);
     expect(r.totals.walkAddedPaxMinPerDay).toBeGreaterThan(0);
+    expect(e.rideSavedPaxMinPerDay).toBeGreaterThan(0);
     expect(e.largestGapAfterM).toBeGreaterThan(e.largestGapBeforeM);
+    expect(r.cautions.length).toBeGreaterThan(0);
   });
 });
