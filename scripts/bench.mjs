@@ -10,6 +10,7 @@
 //     one in a run of their own (--no-stages skips it); when the CLI's audit fails, the targets are judged
 //     on that run instead, and say so
 //   node scripts/bench.mjs --profile FEED [--top 20]     CPU profile of one audit, hottest functions first
+//   node scripts/bench.mjs --report FILE.json            print the tables again from saved figures
 //
 // Figures are also written to bench-out/bench-results.json and bench-out/bench-results.md.
 
@@ -39,7 +40,7 @@ const TARGETS = {
 const OUTPUTS = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
 
 function parseArgs(argv) {
-  const opts = { runs: 3, feeds: null, only: null, build: true, profile: null, top: 20, stages: true };
+  const opts = { runs: 3, feeds: null, only: null, build: true, profile: null, top: 20, stages: true, report: null };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     const v = argv[i + 1];
@@ -50,7 +51,8 @@ function parseArgs(argv) {
     else if (a === '--no-stages') opts.stages = false;
     else if (a === '--profile') (opts.profile = v), i++;
     else if (a === '--top') (opts.top = Number(v)), i++;
-    else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --no-stages, --profile or --top`);
+    else if (a === '--report') (opts.report = v), i++;
+    else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --no-stages, --profile, --report or --top`);
   }
   if (!Number.isInteger(opts.runs) || opts.runs < 1) throw new Error(`invalid option --runs: expected a whole number >= 1, got ${opts.runs}`);
   return opts;
@@ -216,10 +218,10 @@ function printTable(header, rows, right) {
 }
 
 function report(results, opts) {
-  const machine = `${os.cpus().length} cores, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${os.platform()} ${os.arch()}`;
-  const date = new Date().toISOString().slice(0, 10);
+  const machine = opts.machine ?? `${os.cpus().length} cores, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${os.platform()} ${os.arch()}`;
+  const date = opts.date ?? new Date().toISOString().slice(0, 10);
   log('');
-  log(`stopspan benchmark, ${date}, ${machine}; median of ${opts.runs} run(s), each in its own process`);
+  log(`stopspan benchmark, ${date}, ${machine}; median of ${opts.runs} run(s) (the scaling series at least 5), each in its own process`);
   log(`load average at the start ${opts.loadAtStart.map((x) => x.toFixed(2)).join(' ')}, at the end ${os.loadavg().map((x) => x.toFixed(2)).join(' ')} (other work on the machine inflates wall times)`);
   log('floor (a): inflate stop_times.txt and count its lines; floor (b): the project CSV reader over stop_times.txt');
   log('');
@@ -296,7 +298,7 @@ function report(results, opts) {
 
   // The README table.
   const md = [
-    `Measured ${date} on ${machine}; median of ${opts.runs} runs, each in its own process. Floor (a) = inflating stop_times.txt and counting its lines.`,
+    `Measured ${date} on ${machine}; median of ${opts.runs} runs (scaling series: at least 5), each in its own process. Floor (a) = inflating stop_times.txt and counting its lines.`,
     '',
     '| input | stop_times rows | audit wall | audit CPU | audit peak memory | floor (a) wall | CSV reader wall | audit / floor (a) |',
     '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |',
@@ -310,9 +312,11 @@ function report(results, opts) {
   log('');
   log('README table');
   log(md);
+  if (opts.noSave) return;
   fs.mkdirSync(benchOut, { recursive: true });
   fs.writeFileSync(path.join(benchOut, 'bench-results.md'), md + '\n');
-  fs.writeFileSync(path.join(benchOut, 'bench-results.json'), JSON.stringify({ date, machine, runs: opts.runs, targets: TARGETS, verdicts, results }, null, 2) + '\n');
+  const saved = { date, machine, runs: opts.runs, loadAtStart: opts.loadAtStart, loadAtEnd: os.loadavg(), targets: TARGETS, verdicts, results };
+  fs.writeFileSync(path.join(benchOut, 'bench-results.json'), JSON.stringify(saved, null, 2) + '\n');
 }
 
 /** Self time per function of a .cpuprofile, hottest first, and per file. */
@@ -373,6 +377,10 @@ async function profileAudit(opts) {
 
 async function main() {
   const opts = parseArgs(process.argv.slice(2));
+  if (opts.report) {
+    const saved = JSON.parse(fs.readFileSync(opts.report, 'utf8'));
+    return report(saved.results, { ...opts, runs: saved.runs, loadAtStart: saved.loadAtStart ?? [NaN, NaN, NaN], date: saved.date, machine: saved.machine, noSave: true });
+  }
   if (opts.build) build();
   if (opts.profile) return profileAudit(opts);
   opts.loadAtStart = os.loadavg();
@@ -380,7 +388,8 @@ async function main() {
   if (!inputs.length) throw new Error('nothing to measure');
   if (!fs.existsSync(mainJs)) note('bench: dist/cli/main.js is missing; the audit column will be n/a');
   const results = [];
-  for (const input of inputs) results.push(await benchInput(input, opts.runs, opts.stages));
+  // the scaling series is cheap and its steps are small beside start-up, so it gets at least 5 runs
+  for (const input of inputs) results.push(await benchInput(input, input.kind === 'scaled' ? Math.max(5, opts.runs) : opts.runs, opts.stages));
   report(results, opts);
 }
 
