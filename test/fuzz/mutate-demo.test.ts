@@ -39,6 +39,7 @@ type Mutation =
   | { kind: 'corrupt-cell'; table: string; row: number; col: number; value: string; raw: boolean }
   | { kind: 'perturb-number'; table: string; row: number; col: number; scale: number; shift: number }
   | { kind: 'swap-rows'; table: string; a: number; b: number }
+  | { kind: 'corrupt-header'; table: string; col: number; value: string }
   | { kind: 'drop-column'; table: string; col: number };
 
 /** Junk a cell may become: random text, nothing, huge or odd numbers, markup, quote and line characters. */
@@ -74,6 +75,13 @@ function mutationArb(tables: string[]): fc.Arbitrary<Mutation> {
       shift: fc.constantFrom(0, -1, 1, -1000, 0.5, 86400),
     }),
     fc.record({ kind: fc.constant('swap-rows' as const), table, a: ix, b: ix }),
+    // a column name renamed, blanked, repeated from another column, or given a BOM or padding
+    fc.record({
+      kind: fc.constant('corrupt-header' as const),
+      table,
+      col: ix,
+      value: fc.oneof(junk, fc.constantFrom('stop_id', 'trip_id', 'route_id', 'shape_id', ' stop_id', 'STOP_ID', '\ufeffstop_id')),
+    }),
     fc.record({ kind: fc.constant('drop-column' as const), table, col: ix }),
   );
 }
@@ -121,6 +129,10 @@ function apply(tables: Tables, m: Mutation): void {
     }
     case 'swap-rows':
       if (n) [t.rows[m.a % n], t.rows[m.b % n]] = [t.rows[m.b % n], t.rows[m.a % n]];
+      break;
+    case 'corrupt-header':
+      t.header[m.col % w] = m.value;
+      t.raw!.delete(`-1:${m.col % w}`);
       break;
     case 'drop-column': {
       const c = m.col % w;
