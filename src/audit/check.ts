@@ -1,6 +1,7 @@
 // Feed-quality check: runs every finding of the table in findings.ts over a read feed and its patterns
 // and returns counts and a few examples per finding, for people and for nightly jobs' exit codes.
 
+import { haversineM } from '../network/geodesy.js';
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { StopspanError } from '../common/errors.js';
@@ -135,17 +136,6 @@ function networkFigures(set: PatternSet): CheckReport['network'] {
 }
 
 type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
-
-const R_EARTH_M = 6_371_008.8; // mean Earth radius, IUGG [M]
-
-/** Great-circle distance on a sphere of mean Earth radius, metres. */
-export function haversineM(lat1: number, lon1: number, lat2: number, lon2: number): number {
-  const rad = Math.PI / 180;
-  const dLat = (lat2 - lat1) * rad;
-  const dLon = (lon2 - lon1) * rad;
-  const a = Math.sin(dLat / 2) ** 2 + Math.cos(lat1 * rad) * Math.cos(lat2 * rad) * Math.sin(dLon / 2) ** 2;
-  return 2 * R_EARTH_M * Math.asin(Math.min(1, Math.sqrt(a)));
-}
 
 const fmt = (x: number, digits = 1): string => (Number.isFinite(x) ? x.toFixed(digits) : String(x));
 

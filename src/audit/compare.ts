@@ -6,7 +6,8 @@ import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate } from './types.js';
 import { StopspanError } from '../common/errors.js';
-import { haversineM, medianGapM } from './check.js';
+import { medianGapM } from './check.js';
+import { haversineM } from '../network/geodesy.js';
 
 export { medianGapM };
 

@@ -2,9 +2,7 @@
 // self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped).
 
 import type { Comparison, SpacingPicture } from './compare.js';
-
-const esc = (s: string): string =>
-  s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+import { escapeHtml as esc } from '../report/html/escape.js';
 // eslint-disable-next-line no-control-regex
 const term = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));

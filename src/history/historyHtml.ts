@@ -1,11 +1,9 @@
 // The history as a self-contained HTML page: one small inline-SVG line chart per figure, and the table
 // of runs. No scripts, no network; every piece of feed text is escaped.
 
+import { escapeHtml } from '../report/html/escape.js';
 import type { RunRecord } from './readHistory.js';
 
-export function escapeHtml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
-}
 
 interface Series {
   title: string;

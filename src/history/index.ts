@@ -4,4 +4,4 @@ export { recordRun, type RunRow, type RunHeadline } from './recordRun.js';
 export { readHistory, type RunRecord, type ReadHistoryOptions } from './readHistory.js';
 export { checkRunRow, auditRunRow } from './runRows.js';
 export { historyText } from './historyText.js';
-export { historyHtml, lineChartSvg, escapeHtml } from './historyHtml.js';
+export { historyHtml, lineChartSvg } from './historyHtml.js';

@@ -4,7 +4,7 @@
 import type { Feed, Stop, Trip, TripStopTimes, Shape, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
 import type { FeedWarning } from '../../src/common/warnings.js';
-import { haversineM } from '../../src/audit/check.js';
+import { haversineM } from '../../src/network/geodesy.js';
 
 export interface StopSpec {
   id: string;

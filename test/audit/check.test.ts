@@ -2,7 +2,8 @@
 // silent on the clean feed.
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { busiestWeekday, checkFeed, haversineM, lastServiceDate } from '../../src/audit/check.js';
+import { busiestWeekday, checkFeed, lastServiceDate } from '../../src/audit/check.js';
+import { haversineM } from '../../src/network/geodesy.js';
 import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
 import { buildFeed, cleanSpec, street } from './buildFeed.js';
 import { StopspanError } from '../../src/common/errors.js';
