@@ -119,14 +119,15 @@ export function registerWhatif(program: Command): void {
         progress.done();
       }
       const doc = whatifDocument(feed, scenario, result);
+      let written: string[] = [];
       if (opts.out) {
         // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
         const { whatifStrips } = await import('../report/whatifStrips.js');
         const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source });
-        const written = await writeWhatifFolder(opts.out, { 'index.html': html, 'scenario.json': JSON.stringify(doc, null, 2) + '\n' }, { force: Boolean(opts.force) });
-        if (!opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);
+        written = await writeWhatifFolder(opts.out, { 'index.html': html, 'scenario.json': JSON.stringify(doc, null, 2) + '\n' }, { force: Boolean(opts.force) });
       }
       process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result) }));
+      if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);
       return EXIT.clean;
     });
   });
