@@ -1,7 +1,7 @@
 // Feed text reaches the terminal through the commands' plain-text output (feed version, ids in findings,
 // names in comparisons). A feed carrying terminal escape sequences (ESC ... BEL retitles a window, ESC [2J
 // clears the screen) and C1 controls (NEL) must not get them through: every line the built CLI prints for
-// audit, check and compare is free of Unicode Cc characters (judged by the JavaScript engine's Unicode
+// audit, check, compare and history is free of Unicode Cc characters (judged by the JavaScript engine's Unicode
 // property tables), newline excepted. (U+2028 LINE SEPARATOR, which terminals draw as a blank, is in the
 // feed too; only the one-line error promises to escape it, see error-line.test.ts.)
 
@@ -78,5 +78,16 @@ describe.skipIf(!existsSync(CLI))('escape sequences in feed text never reach the
     const r = spawnSync(process.execPath, [CLI, 'compare', a, b], { encoding: 'utf8', timeout: 60_000 });
     expect([0, 1], r.stderr).toContain(r.status);
     expectClean('compare', r.stdout + r.stderr);
+  });
+
+  it('history: the recorded feed version is shown escaped', () => {
+    const feed = escapeFeed();
+    const db = join(feed, '..', 'runs.sqlite');
+    const a = spawnSync(process.execPath, [CLI, 'audit', feed, '--out', join(feed, '..', 'out-h'), '--history', db, '-q'], { encoding: 'utf8', timeout: 60_000 });
+    expect(a.status, a.stderr).toBe(0);
+    const r = spawnSync(process.execPath, [CLI, 'history', db], { encoding: 'utf8', timeout: 60_000 });
+    expect(r.status, r.stderr).toBe(0);
+    expectClean('history', r.stdout + r.stderr);
+    expect(r.stdout).toContain('2026.11\\u001b]0;pwned\\u0007');
   });
 });
