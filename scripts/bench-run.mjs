@@ -19,6 +19,8 @@ import { performance } from 'node:perf_hooks';
 import yauzl from 'yauzl';
 
 const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+/** The built code measured: $BENCH_DIST (bench.mjs builds its own copy there), else dist/. */
+const distDir = path.resolve(process.env.BENCH_DIST ?? path.join(repoDir, 'dist'));
 const [mode, feed, outDir] = process.argv.slice(2);
 
 let rows = null;
@@ -91,8 +93,8 @@ async function inflateAndCount(feedPath) {
  * (dist/gtfs/csv.js, readCsv) sees every record and does nothing with it.
  */
 async function csvReaderCount(feedPath) {
-  const csvPath = path.join(repoDir, 'dist/gtfs/csv.js');
-  if (!fs.existsSync(csvPath)) throw new Error('dist/gtfs/csv.js is not built yet');
+  const csvPath = path.join(distDir, 'gtfs/csv.js');
+  if (!fs.existsSync(csvPath)) throw new Error(`${csvPath} is not built yet`);
   const csv = await import(pathToFileURL(csvPath).href);
   const stream = await openStopTimes(feedPath);
   return countWithReader(csv, stream);
@@ -116,8 +118,8 @@ async function countWithReader(csv, stream) {
 
 /** The full audit, exactly as a user runs it, in this process. */
 async function audit(feedPath, out) {
-  const mainPath = path.join(repoDir, 'dist/cli/main.js');
-  if (!fs.existsSync(mainPath)) throw new Error('dist/cli/main.js is not built');
+  const mainPath = path.join(distDir, 'cli/main.js');
+  if (!fs.existsSync(mainPath)) throw new Error(`${mainPath} is not built`);
   process.argv = [process.argv[0], mainPath, 'audit', feedPath, '--out', out, '--force'];
   await import(pathToFileURL(mainPath).href);
   // main.js runs the command when imported; the figures are taken when the process exits.
@@ -126,8 +128,8 @@ async function audit(feedPath, out) {
 /** The library's stages in turn, as the audit command composes them, with the time of each. */
 async function stages(feedPath, out) {
   const load = (rel) => {
-    const p = path.join(repoDir, 'dist', rel);
-    if (!fs.existsSync(p)) throw new Error(`dist/${rel} is not built`);
+    const p = path.join(distDir, rel);
+    if (!fs.existsSync(p)) throw new Error(`${p} is not built`);
     return import(pathToFileURL(p).href);
   };
   const [{ readFeed }, { buildPatterns }, { runAudit }, { writeReport }] = await Promise.all([

@@ -23,7 +23,11 @@ import { fileURLToPath } from 'node:url';
 const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const benchOut = path.join(repoDir, 'bench-out');
 const runner = path.join(repoDir, 'scripts/bench-run.mjs');
-const mainJs = path.join(repoDir, 'dist/cli/main.js');
+// The benchmark builds its own copy of the code (bench-out/dist), so that a build of dist/ running at the
+// same time cannot change the code under measurement; with --no-build it measures dist/ as it stands.
+const benchDist = path.join(benchOut, 'dist');
+let distDir = benchDist;
+const mainJs = () => path.join(distDir, 'cli/main.js');
 
 /** The targets of the benchmark (issue 8). */
 const TARGETS = {
@@ -73,8 +77,9 @@ function feedsDir(opt) {
 
 function build() {
   const tsc = path.join(repoDir, 'node_modules/typescript/bin/tsc');
-  const r = spawnSync(process.execPath, [tsc, '-p', 'tsconfig.json'], { cwd: repoDir, encoding: 'utf8' });
-  if (r.status !== 0) note(`bench: tsc reported errors (dist/ may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
+  fs.rmSync(benchDist, { recursive: true, force: true });
+  const r = spawnSync(process.execPath, [tsc, '-p', 'tsconfig.json', '--outDir', benchDist], { cwd: repoDir, encoding: 'utf8' });
+  if (r.status !== 0) note(`bench: tsc reported errors (the build may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
 }
 
 /** Runs one measurement in a child process; resolves to its figures plus the wall time seen from here. */
@@ -85,7 +90,7 @@ function measure(mode, feed, outDir) {
     const t0 = process.hrtime.bigint();
     const child = spawn(process.execPath, args, {
       cwd: repoDir,
-      env: { ...process.env, BENCH_RESULT: resultFile },
+      env: { ...process.env, BENCH_RESULT: resultFile, BENCH_DIST: distDir },
       stdio: ['ignore', 'ignore', 'pipe'],
     });
     let stderr = '';
@@ -251,7 +256,12 @@ function report(results, opts) {
   // the CLI audit when it ran; else the library stages run, labelled as such
   const fallback = results.some((r) => r.audit.error && r.stages && !r.stages.error);
   if (fallback) {
-    for (const r of results) if (r.audit.error && r.stages && !r.stages.error) r.audit = { ...r.stages, standIn: true, cliError: r.audit.error };
+    // one measure throughout the scaling series: if one of its inputs falls back, all of them do
+    const scaledFalls = results.some((r) => r.kind === 'scaled' && r.audit.error);
+    for (const r of results) {
+      const falls = r.audit.error || (scaledFalls && r.kind === 'scaled');
+      if (falls && r.stages && !r.stages.error) r.audit = { ...r.stages, standIn: true, cliError: r.audit.error ?? null };
+    }
     log('note: `stopspan audit` did not run on some inputs; their targets are judged on the library stages run (marked *)');
   }
   const star = (r) => (r.audit.standIn ? '*' : '');
@@ -353,7 +363,7 @@ async function profileAudit(opts) {
   fs.mkdirSync(profDir, { recursive: true });
   const before = new Set(fs.readdirSync(profDir));
   const outDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stopspan-prof-'));
-  const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${profDir}`, mainJs, 'audit', feed, '--out', outDir, '--force'], { cwd: repoDir, encoding: 'utf8' });
+  const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${profDir}`, mainJs(), 'audit', feed, '--out', outDir, '--force'], { cwd: repoDir, encoding: 'utf8' });
   fs.rmSync(outDir, { recursive: true, force: true });
   if (r.status !== 0) note(`bench: audit exited ${r.status}: ${r.stderr.trim().split('\n').slice(-3).join(' | ')}`);
   const made = fs.readdirSync(profDir).filter((f) => f.endsWith('.cpuprofile') && !before.has(f));
@@ -382,11 +392,12 @@ async function main() {
     return report(saved.results, { ...opts, runs: saved.runs, loadAtStart: saved.loadAtStart ?? [NaN, NaN, NaN], date: saved.date, machine: saved.machine, noSave: true });
   }
   if (opts.build) build();
+  else distDir = path.join(repoDir, 'dist');
   if (opts.profile) return profileAudit(opts);
   opts.loadAtStart = os.loadavg();
   const inputs = collectInputs(opts);
   if (!inputs.length) throw new Error('nothing to measure');
-  if (!fs.existsSync(mainJs)) note('bench: dist/cli/main.js is missing; the audit column will be n/a');
+  if (!fs.existsSync(mainJs())) note(`bench: ${mainJs()} is missing; the audit column will be n/a`);
   const results = [];
   // the scaling series is cheap and its steps are small beside start-up, so it gets at least 5 runs
   for (const input of inputs) results.push(await benchInput(input, input.kind === 'scaled' ? Math.max(5, opts.runs) : opts.runs, opts.stages));
