@@ -26,6 +26,13 @@ const SERVICE_END = '20270331';
 // ---------------------------------------------------------------------------------------------------
 // Small helpers
 
+/** FNV-1a over a string: a seed per route, so editing one route leaves the others' draws alone. */
+function seedOf(text) {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < text.length; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193) >>> 0;
+  return h;
+}
+
 /** mulberry32: a tiny seeded PRNG, so every run draws the same numbers. */
 function prng(seed) {
   let a = seed >>> 0;
@@ -127,18 +134,19 @@ const STATIONS = [
   { id: 'VELL-STATION', name: 'Vellmoor Central Station (station)', xy: [-310, 610] },
 ];
 
-// zones: [fromM, toM, minGapM, maxGapM] (a zone with maxGap 0 has no stops: the bridge)
+// zones: [fromM, toM, minGapM, maxGapM, kind?] (a zone with maxGap 0 has no stops: the bridge; kind 'old':
+// the old-town grid, where stops sit a block apart and busy corners alternate with quiet side streets)
 // shapeDist: 'm' metres, 'km' kilometres, null: shapes without shape_dist_traveled; noShape: no shape at all
 const ROUTES = [
   {
     id: 'R1', ends: ['Westgate Terminus', 'Eastgate Terminus'], short: '1', long: 'Market Street Crosstown', code: 'MKT', street: 'Market St', color: 'C0392B',
-    path: [[-4200, 0], [4200, 0]], zones: [[0, 3300, 320, 420], [3300, 5100, 150, 200], [5100, 8400, 320, 420]],
+    path: [[-4200, 0], [4200, 0]], zones: [[0, 3300, 320, 420], [3300, 5100, 70, 130, 'old'], [5100, 8400, 320, 420]],
     shared: [{ stop: 'CSQ', at: 4200 }], shapeDist: 'm', cruiseMps: 8.5, headways: 'trunk', shortTurnAtM: 6000,
     seqStep: 1,
   },
   {
     id: 'R2', ends: ['Northfield Terminus', 'Southmead Terminus'], short: '2', long: 'Cathedral Avenue', code: 'CAT', street: 'Cathedral Ave', color: '2471A3',
-    path: [[0, 3400], [0, -3600]], zones: [[0, 2500, 300, 380], [2500, 4300, 160, 190], [4300, 7000, 300, 400]],
+    path: [[0, 3400], [0, -3600]], zones: [[0, 2500, 300, 380], [2500, 4300, 70, 130, 'old'], [4300, 7000, 300, 400]],
     shared: [{ stop: 'CSQ', at: 3400 }, { stop: 'HRBCATH', at: 5400 }], shapeDist: null, cruiseMps: 8,
     headways: 'trunk', seqStep: 5,
   },
@@ -191,7 +199,7 @@ const ROUTES = [
 ];
 
 // next-version edits (for the compare demo)
-const NEXT_REMOVED = ['MKT-13-a', 'MKT-19-a', 'MKT-19-b', 'CAT-10-a'];
+const NEXT_REMOVED = ['MKT-12-a', 'MKT-22-a', 'MKT-22-b', 'CAT-11-a']; // quiet old-town stops the planners took out
 const NEXT_MOVED = { id: 'MKT-17-a', alongM: 60 };
 const NEXT_RENAMED = { id: 'HRB-20-a', name: 'Harbour Rd / Saltmarsh Market' };
 
@@ -256,7 +264,6 @@ function roadLine(route) {
 
 /** Builds every table of one feed version. */
 function buildFeed({ next }) {
-  const rand = prng(20261102);
   const stops = new Map(); // id -> row
   const shapes = [];
   const trips = [];
@@ -264,7 +271,6 @@ function buildFeed({ next }) {
   const frequencies = [];
   const ridership = new Map(); // key stop|route|dir -> {b, a}
   const routesRows = [];
-  const streetPick = prng(7);
   const usedNames = new Set();
   let stopCode = 1000;
 
@@ -274,6 +280,9 @@ function buildFeed({ next }) {
   }
 
   for (const route of ROUTES) {
+    // each route draws from its own streams (stop gaps and demand; cross-street names)
+    const rand = prng(seedOf(`${route.id}:20261102`));
+    const streetPick = prng(seedOf(`${route.id}:names`));
     routesRows.push({ route_id: route.id, agency_id: 'VTA', route_short_name: route.short, route_long_name: route.long, route_type: 3, route_color: route.color, route_text_color: 'FFFFFF' });
     const line = roadLine(route);
     const placed = placeStops(route, line, rand);
@@ -293,12 +302,19 @@ function buildFeed({ next }) {
       return { ...p, name, seq: i };
     });
     if (route.loop) roadStops[roadStops.length - 1] = { ...roadStops[0], d: L }; // the loop closes on its first stop
+    let oldRun = 0; // position within the current old-town stretch
     const weights = roadStops.map((s) => {
       const { xy } = pointAt(line, s.d);
       const r = Math.hypot(xy[0], xy[1]);
       const base = r < 950 ? 3 : r < 2500 ? 1.6 : 0.8;
       const bonus = s.shared ? 3 : 1;
-      return base * bonus * (0.5 + rand());
+      // old town: two busy corners, then a quiet side-street stop a block from each (a removal that pays)
+      let street = 1;
+      if (zoneAt(route.zones, s.d)[4] === 'old' && !s.shared) {
+        street = oldRun % 3 === 2 ? 0.12 : 1.4;
+        oldRun += 1;
+      }
+      return base * bonus * street * (0.5 + rand());
     });
 
     for (const dir of dirs) {

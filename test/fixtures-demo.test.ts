@@ -203,17 +203,41 @@ describe('the demo city shows each feature', () => {
     expect(ex).toEqual(new Set(['0', '1']));
   });
 
-  it('has a downtown stretch of 150-200 m and a bridge gap over 2 km (geographiclib distances)', () => {
+  it('has old-town stretches of stops 70-145 m apart on routes 1 and 2 and a bridge gap over 2 km (geographiclib distances)', () => {
     const ll = stopLL();
     const gaps = (tripId: string) => {
       const sts = timesOf(tripId);
       return sts.slice(1).map((s, i) => geoM(ll.get(sts[i].stop_id)!, ll.get(s.stop_id)!));
     };
-    const market = gaps('R1-WKDY-0-001');
-    const downtown = market.filter((g) => g < 230);
-    expect(downtown.length).toBeGreaterThanOrEqual(8);
-    for (const g of downtown) expect(g).toBeGreaterThan(140);
+    // a block apart, as in an old city grid: well under the ~400 m (quarter-mile) spacing that transit
+    // guidelines commonly give for local buses (common practice, from memory)
+    for (const [tripId, minClose] of [['R1-WKDY-0-001', 16], ['R2-WKDY-0-001', 14]] as const) {
+      const g = gaps(tripId);
+      const oldTown = g.filter((x) => x < 230);
+      expect(oldTown.length, tripId).toBeGreaterThanOrEqual(minClose);
+      for (const x of oldTown) expect(x, tripId).toBeGreaterThan(65);
+      for (const x of oldTown) expect(x, tripId).toBeLessThan(225);
+      expect(oldTown.filter((x) => x < 90).length, `${tripId}: some pairs about 80 m apart`).toBeGreaterThanOrEqual(3);
+      // most gaps a block long; the few longer ones flank Central Square, which keeps other stops 110 m off
+      expect(oldTown.filter((x) => x <= 145).length / oldTown.length, tripId).toBeGreaterThan(0.75);
+      // and the rest of the route is spaced wider: more than 300 m outside the old town
+      expect(g.filter((x) => x >= 230).every((x) => x > 300), tripId).toBe(true);
+    }
     expect(Math.max(...gaps('R20-WKDY-0-001'))).toBeGreaterThan(2000);
+  });
+
+  it('alternates busy and quiet stops in the old town: quiet ones between busy neighbours', () => {
+    const rows = parse(readFileSync(join(DEMO, 'ridership.csv')), { columns: true }) as Row[];
+    const use = new Map(rows.filter((r) => r.route_id === 'R1' && r.direction_id === '0').map((r) => [r.stop_id, Number(r.boardings) + Number(r.alightings)]));
+    const ll = stopLL();
+    const sts = timesOf('R1-WKDY-0-001').map((s) => s.stop_id);
+    let quietBetweenBusy = 0;
+    for (let i = 1; i < sts.length - 1; i++) {
+      const gapM = geoM(ll.get(sts[i - 1])!, ll.get(sts[i])!);
+      const [u0, u, u1] = [use.get(sts[i - 1])!, use.get(sts[i])!, use.get(sts[i + 1])!];
+      if (gapM < 150 && u * 4 < Math.min(u0, u1)) quietBetweenBusy++;
+    }
+    expect(quietBetweenBusy).toBeGreaterThanOrEqual(3);
   });
 
   it('writes shape_dist_traveled in metres on route 1 and in kilometres on route 10, matching geographiclib lengths', () => {
