@@ -450,7 +450,7 @@ function buildFeed({ next }) {
       // ridership for a weekday (the FAIR shuttle runs on two days only: no counts)
       if (!route.services) {
         const n = patternStops.length;
-        const boardPerTrip = 2.4 * (patternStops[n - 1].distM / 1000);
+        const boardPerTrip = (route.headways === 'trunk' ? 6 : 2.4) * (patternStops[n - 1].distM / 1000); // trunk routes carry more
         const bw = patternStops.map((s, i) => (i === n - 1 ? 0 : s.weight * (n - 1 - i)));
         const aw = patternStops.map((s, i) => (i === 0 ? 0 : s.weight * i));
         const sb = bw.reduce((x, y) => x + y, 0);
