@@ -12,7 +12,7 @@ import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { whatifHtml } from '../report/whatifHtml.js';
 import { whatifText } from '../report/whatifText.js';
-import { writeWhatifFolder } from '../report/writeWhatif.js';
+import { writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { addParamOptions, paramOverrides } from './paramOptions.js';
@@ -124,7 +124,7 @@ export function registerWhatif(program: Command): void {
         // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
         const { whatifStrips } = await import('../report/whatifStrips.js');
         const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source });
-        written = await writeWhatifFolder(opts.out, { 'index.html': html, 'scenario.json': JSON.stringify(doc, null, 2) + '\n' }, { force: Boolean(opts.force) });
+        written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], { force: Boolean(opts.force) });
       }
       process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result) }));
       if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);

@@ -7,3 +7,4 @@ export * from './units.js';
 export { indexHtml, pageData, type HtmlOptions } from './html/indexHtml.js';
 export { escapeHtml, jsonForScript } from './html/escape.js';
 export * from './writeReport.js';
+export * from './writeFolder.js';

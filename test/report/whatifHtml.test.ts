@@ -12,7 +12,7 @@ import { CAUTIONS as REPORT_CAUTIONS } from '../../src/report/cautions.js';
 import { whatifHtml } from '../../src/report/whatifHtml.js';
 import { whatifStrips } from '../../src/report/whatifStrips.js';
 import { whatifText } from '../../src/report/whatifText.js';
-import { writeWhatifFolder } from '../../src/report/writeWhatif.js';
+import { writeFolder } from '../../src/report/writeFolder.js';
 import { handmadeNetwork } from '../audit/handmade.js';
 import { scanHtml } from '../security/htmlScan.js';
 
@@ -106,19 +106,19 @@ describe('whatifText', () => {
   });
 });
 
-describe('writeWhatifFolder', () => {
+describe('writeFolder', () => {
   it('writes the folder whole, refuses an existing one without force and replaces it with force', async () => {
     const root = mkdtempSync(join(tmpdir(), 'stopspan-whatif-'));
     dirs.push(root);
     const out = join(root, 'scenario');
-    await writeWhatifFolder(out, { 'index.html': html, 'scenario.json': '{}\n' });
+    await writeFolder(out, [['index.html', html], ['scenario.json', '{}\n']]);
     expect(readdirSync(out).sort()).toEqual(['index.html', 'scenario.json']);
-    await expect(writeWhatifFolder(out, { 'index.html': 'x' })).rejects.toMatchObject({ code: 'output-exists' });
+    await expect(writeFolder(out, [['index.html', 'x']])).rejects.toMatchObject({ code: 'output-exists' });
     expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe(html);
-    await writeWhatifFolder(out, { 'index.html': 'second' }, { force: true });
+    await writeFolder(out, [['index.html', 'second']], { force: true });
     expect(readdirSync(out)).toEqual(['index.html']);
     expect(readdirSync(root)).toEqual(['scenario']); // no temporary folder left behind
-    await expect(writeWhatifFolder(join(root, 'x'), { '../escape.html': 'x' })).rejects.toMatchObject({ code: 'bad-option' });
+    await expect(writeFolder(join(root, 'x'), [['../escape.html', 'x']])).rejects.toMatchObject({ code: 'bad-option' });
     expect(existsSync(join(root, 'escape.html'))).toBe(false);
   });
 
@@ -129,7 +129,7 @@ describe('writeWhatifFolder', () => {
     mkdirSync(out);
     writeFileSync(join(out, 'index.html'), 'old');
     // a file name with a folder in it is refused before anything is written or renamed
-    await expect(writeWhatifFolder(out, { 'index.html': 'new', 'sub/x.html': 'x' }, { force: true })).rejects.toMatchObject({ code: 'bad-option' });
+    await expect(writeFolder(out, [['index.html', 'new'], ['sub/x.html', 'x']], { force: true })).rejects.toMatchObject({ code: 'bad-option' });
     expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe('old');
   });
 });
