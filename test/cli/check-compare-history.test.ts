@@ -1,36 +1,24 @@
 // The built CLI's check, compare and history commands: stdout, stderr and exit codes, on the fixture
 // feeds of fixtures/check and a loopback server for URLs.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { execFileSync, spawn } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
+import { ROOT, runCli } from '../helpers/cli.js';
 import { checkExitCode } from '../../src/cli/check.js';
 import type { Finding } from '../../src/audit/check.js';
 
-const ROOT = resolve(__dirname, '../..');
 const FIX = join(ROOT, 'fixtures/check');
 const TODAY = '2026-10-14';
 let dir: string;
 
-function cli(args: string[]): Promise<{ code: number | null; stdout: string; stderr: string }> {
-  return new Promise((ok, fail) => {
-    const p = spawn(process.execPath, [join(ROOT, 'dist/cli/main.js'), ...args], { cwd: ROOT, env: { ...process.env, NO_COLOR: '1' } });
-    let stdout = '';
-    let stderr = '';
-    p.stdout.on('data', (d) => (stdout += d));
-    p.stderr.on('data', (d) => (stderr += d));
-    p.on('error', fail);
-    p.on('close', (code) => ok({ code, stdout, stderr }));
-  });
-}
+const cli = (args: string[]) => runCli(args);
 
 beforeAll(() => {
-  execFileSync(join(ROOT, 'node_modules/.bin/tsc'), ['-p', 'tsconfig.json'], { cwd: ROOT, stdio: 'pipe' });
   dir = mkdtempSync(join(tmpdir(), 'stopspan-cli-'));
-}, 120_000);
+});
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 const finding = (severity: Finding['severity']): Finding => ({ code: 'twin-stops', title: '', severity, explanation: '', count: 1, examples: [] });

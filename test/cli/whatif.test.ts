@@ -4,43 +4,34 @@
 // The walk added by one removal is checked against a*b/(a+b) with the neighbours' spacing measured
 // independently by geographiclib.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { execFileSync, spawn } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
+import { ROOT, runCli } from '../helpers/cli.js';
+import { readFeed } from '../../src/gtfs/readFeed.js';
 import geodesicPkg from 'geographiclib-geodesic';
 import { CAUTIONS } from '../../src/audit/cautions.js';
 
 const Geodesic = (geodesicPkg as any).Geodesic;
-const ROOT = resolve(__dirname, '../..');
 const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
 const FIX = join(ROOT, 'fixtures/whatif');
 let dir: string;
 
-function cli(args: string[]): Promise<{ code: number | null; stdout: string; stderr: string }> {
-  return new Promise((ok, fail) => {
-    const p = spawn(process.execPath, [join(ROOT, 'dist/cli/main.js'), 'whatif', ...args], { cwd: ROOT, env: { ...process.env, NO_COLOR: '1' } });
-    let stdout = '';
-    let stderr = '';
-    p.stdout.on('data', (d) => (stdout += d));
-    p.stderr.on('data', (d) => (stderr += d));
-    p.on('error', fail);
-    p.on('close', (code) => ok({ code, stdout, stderr }));
-  });
-}
+const cli = (args: string[]) => runCli(['whatif', ...args]);
 
-beforeAll(() => {
-  execFileSync(join(ROOT, 'node_modules/.bin/tsc'), ['-p', 'tsconfig.json'], { cwd: ROOT, stdio: 'pipe' });
+let demoStops: Map<string, { lat: number; lon: number }>;
+beforeAll(async () => {
   dir = mkdtempSync(join(tmpdir(), 'stopspan-whatif-cli-'));
-}, 120_000);
+  const feed = await readFeed(DEMO, { date: 'all' });
+  demoStops = new Map(feed.stops.map((s) => [s.id, { lat: s.lat, lon: s.lon }]));
+});
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-/** A demo stop's coordinates, read from the feed's stops.txt. */
+/** A demo stop's coordinates, as the feed's stops.txt gives them. */
 function demoStop(id: string): { lat: number; lon: number } {
-  const text = execFileSync('unzip', ['-p', DEMO, 'stops.txt'], { encoding: 'utf8' });
-  const head = text.split(/\r?\n/)[0].split(',');
-  const row = text.split(/\r?\n/).map((l) => l.split(',')).find((r) => r[0] === id)!;
-  return { lat: Number(row[head.indexOf('stop_lat')]), lon: Number(row[head.indexOf('stop_lon')]) };
+  const s = demoStops.get(id);
+  if (!s) throw new Error(`no demo stop ${id}`);
+  return s;
 }
 
 describe('stopspan whatif on the demo feed', () => {
