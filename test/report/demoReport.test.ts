@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
 import { parse } from 'csv-parse/sync';
 import yauzl from 'yauzl';
+import geodesicPkg from 'geographiclib-geodesic';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import type { AuditResult } from '../../src/audit/types.js';
@@ -93,6 +94,39 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
     }
     const lines = JSON.parse(await readFile(join(out, 'patterns.geojson'), 'utf8'));
     for (const f of lines.features) expect(f.geometry.coordinates.length).toBeGreaterThanOrEqual(2);
+  });
+
+  it('shows a planner every kind of finding: close stops, removals that save time, busy stops that stay, additions, fixed stops', async () => {
+    expect(result.headline.closeStops).toBeGreaterThan(0);
+    const removals = result.candidates.filter((c) => c.action === 'remove');
+    const additions = result.candidates.filter((c) => c.action === 'add');
+    expect(removals.length).toBeGreaterThanOrEqual(5);
+    expect(additions.length).toBeGreaterThanOrEqual(5);
+    for (const c of result.candidates) expect(c.netPaxMinPerDay, `${c.action} ${c.stopId}`).toBeLessThan(0); // a saving
+    // the removals are the old town's quiet stops on routes 1 and 2
+    expect(removals.filter((c) => /^(MKT|CAT)-/.test(c.stopId)).length / removals.length).toBeGreaterThan(0.8);
+    // each leaves its neighbours at most a few blocks apart: the straight-line gap between them, measured with
+    // geographiclib (Karney's WGS84 geodesic) from the feed's own stops.txt, stays under 400 m, the
+    // quarter-mile local-bus spacing many agencies use (common practice, from memory)
+    const stopsTxt = parse(await readZipEntry(FEED, 'stops.txt'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
+    const ll = new Map(stopsTxt.map((s) => [s.stop_id, [Number(s.stop_lat), Number(s.stop_lon)]]));
+    let measured = 0;
+    for (const c of removals.filter((x) => /^(MKT|CAT)-/.test(x.stopId))) {
+      for (const pid of c.patternIds) {
+        const ps = result.stops.filter((s) => s.patternId === pid);
+        const i = ps.findIndex((s) => s.stopId === c.stopId);
+        const [a, b] = [ll.get(ps[i - 1].stopId)!, ll.get(ps[i + 1].stopId)!];
+        expect(geodesicPkg.Geodesic.WGS84.Inverse(a[0], a[1], b[0], b[1]).s12, `${pid} without ${c.stopId}`).toBeLessThan(400);
+        measured++;
+      }
+    }
+    expect(measured).toBeGreaterThan(0);
+    // busy old-town corners stay: close to a neighbour, yet removing them would cost riders time
+    const busyClose = result.stops.filter((s) => /^(MKT|CAT)-/.test(s.stopId) && s.gapBeforeM !== null && s.gapBeforeM < 130 && (s.removalNetPaxMinPerDay ?? 0) > 50);
+    expect(busyClose.length).toBeGreaterThanOrEqual(5);
+    // terminals and the transfer stop are fixed
+    expect(result.stops.some((s) => s.stopId === 'CSQ' && s.verdict === 'fixed')).toBe(true);
+    expect(result.stops.filter((s) => s.verdict === 'fixed').length).toBeGreaterThanOrEqual(result.patterns.length * 2);
   });
 
   it('writes a self-contained index.html well under a megabyte', async () => {
