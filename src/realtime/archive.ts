@@ -191,7 +191,7 @@ async function isZipFile(file: string): Promise<boolean> {
  * files that are truncated or not protobuf, snapshots without a header timestamp.
  */
 export async function* readArchive(archivePath: string, options: ReadArchiveOptions = {}): AsyncGenerator<Snapshot> {
-  const { warnings = new WarningSink(), onProgress, maxSnapshotBytes = 256 * 1024 * 1024 } = options;
+  const { warnings = new WarningSink(), onProgress, maxSnapshotBytes = 64 * 1024 * 1024 } = options;
   const stats: ArchiveStats = options.stats ?? { filesSeen: 0, snapshotsRead: 0, snapshotsSkipped: 0 };
   if (typeof archivePath !== 'string' || archivePath === '') {
     throw new StopspanError('bad-option', 'invalid option archivePath: expected a folder or zip path', { value: String(archivePath) });

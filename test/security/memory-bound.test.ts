@@ -5,7 +5,7 @@
 // is refused at the record cap under the same heap, and a feed folder whose stop_times.txt is a link to
 // an endless device (/dev/zero, /dev/urandom) ends with exit 2 instead of reading forever. A GTFS-Realtime
 // snapshot that is a gzip bomb (512 MiB of zeros in about 0.5 MB) is skipped with a counted warning at
-// the realtime reader's 256 MiB snapshot cap, and the audit goes on. The peak resident set of each run is measured by a
+// the realtime reader's 64 MiB snapshot cap, and the audit goes on. The peak resident set of each run is measured by a
 // preloaded module and must stay far below what inflating the entry would take.
 
 import { spawnSync } from 'node:child_process';
@@ -135,7 +135,7 @@ describe.skipIf(!haveCli)(`hostile archives under a ${HEAP_MB} MB heap (built CL
     expectRefused(runSmallHeap(feed, `link${device.replace(/\//g, '-')}`), ['stop_times.txt']);
   });
 
-  it('skips a gzip-bomb realtime snapshot with a counted warning, at the 256 MiB snapshot cap', async () => {
+  it('skips a gzip-bomb realtime snapshot with a counted warning, at the 64 MiB snapshot cap', async () => {
     const rt = join(tmp, 'realtime-bomb');
     mkdirSync(rt);
     const MiB = Buffer.alloc(1024 * 1024);
@@ -146,7 +146,7 @@ describe.skipIf(!haveCli)(`hostile archives under a ${HEAP_MB} MB heap (built CL
     const summary = JSON.parse(readFileSync(join(run.out, 'summary.json'), 'utf8'));
     const w = summary.warnings.find((x: { code: string }) => x.code === 'realtime-undecodable');
     expect(w?.count).toBe(1);
-    // the inflated buffer is bounded by the 256 MiB snapshot cap (outside the JS heap); measured about 335 MiB peak
-    expect(run.peakMiB).toBeLessThan(256 + 200);
+    // the inflated buffer is bounded by the 64 MiB snapshot cap (outside the JS heap)
+    expect(run.peakMiB).toBeLessThan(64 + 200);
   });
 });
