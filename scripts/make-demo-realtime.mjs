@@ -25,21 +25,11 @@ import yauzl from 'yauzl';
 import yazl from 'yazl';
 import { parse } from 'csv-parse/sync';
 import GtfsRealtimeBindings from 'gtfs-realtime-bindings';
+import { prng, hms, hmsToS } from './lib/seeded.mjs';
+export { prng };
 
 const rt = GtfsRealtimeBindings.transit_realtime;
 const ZIP_MTIME = new Date(Date.UTC(2026, 10, 1, 0, 0, 0));
-
-/** mulberry32: a tiny seeded PRNG. */
-export function prng(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A stable number in [0, 1) from a string (FNV-1a), so per-stop values do not depend on read order. */
 export function hash01(s) {
@@ -49,18 +39,6 @@ export function hash01(s) {
     h = Math.imul(h, 0x01000193) >>> 0;
   }
   return h / 4294967296;
-}
-
-function hms(s) {
-  const h = Math.floor(s / 3600);
-  const m = Math.floor((s % 3600) / 60);
-  const sec = s % 60;
-  return `${String(h).padStart(2, '0')}:${String(m).padStart(2, '0')}:${String(sec).padStart(2, '0')}`;
-}
-
-function hmsToS(t) {
-  const [h, m, s] = t.split(':').map(Number);
-  return h * 3600 + m * 60 + s;
 }
 
 /** POSIX second of "noon minus 12 h" on date (YYYYMMDD) in timeZone. */

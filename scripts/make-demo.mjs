@@ -13,6 +13,7 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import yazl from 'yazl';
 import geodesicPkg from 'geographiclib-geodesic';
+import { prng, hms, hmsToS } from './lib/seeded.mjs';
 
 const WGS84 = geodesicPkg.Geodesic.WGS84;
 const ZIP_MTIME = new Date(Date.UTC(2026, 10, 1, 0, 0, 0)); // 2026-11-01 00:00 UTC, every entry
@@ -33,28 +34,9 @@ function seedOf(text) {
   return h;
 }
 
-/** mulberry32: a tiny seeded PRNG, so every run draws the same numbers. */
-function prng(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 const toLatLon = ([x, y]) => [ORIGIN_LAT + y / M_PER_DEG_LAT, ORIGIN_LON + x / M_PER_DEG_LON];
 const geodesicM = (a, b) => WGS84.Inverse(a[0], a[1], b[0], b[1]).s12;
 const fmt6 = (v) => v.toFixed(6);
-
-function hms(s) {
-  const h = Math.floor(s / 3600);
-  const m = Math.floor((s % 3600) / 60);
-  const sec = s % 60;
-  return `${String(h).padStart(2, '0')}:${String(m).padStart(2, '0')}:${String(sec).padStart(2, '0')}`;
-}
 
 function csvCell(v) {
   const s = v === undefined || v === null ? '' : String(v);
@@ -499,11 +481,6 @@ function buildFeed({ next }) {
     ['frequencies.txt', table(['trip_id', 'start_time', 'end_time', 'headway_secs', 'exact_times'], frequencies)],
   ];
   return { files, ridership: table(['stop_id', 'route_id', 'direction_id', 'boardings', 'alightings'], ridershipRows) };
-}
-
-function hmsToS(t) {
-  const [h, m, s] = t.split(':').map(Number);
-  return h * 3600 + m * 60 + s;
 }
 
 function writeZip(path, files) {

@@ -5,17 +5,9 @@ import { assumedDemand } from '../../src/model/demand.js';
 import { optimiseStops } from '../../src/model/optimiser.js';
 import { sqrtLawSpacingM } from '../../src/model/sqrtLaw.js';
 import { relativeCost } from '../../src/model/band.js';
+// @ts-expect-error: a plain ES module of the generators, without type declarations
+import { prng as rng } from '../../scripts/lib/seeded.mjs';
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function bruteForce(c: Corridor, s: CostSettings, forced: boolean[], maxGapM: number): { costS: number; kept: number[] } {
   const n = c.n;
