@@ -113,6 +113,33 @@ describe('buildPatterns: distances from shape_dist_traveled', () => {
     expect(p.distAlongM[4]).toBeCloseTo(1200, 9);
   });
 
+  it('reads each shape in the unit its own length fits when one shape is in kilometres and the rest in metres', () => {
+    // GTFS Schedule reference [C]: shape_dist_traveled must use the same unit in shapes.txt and stop_times.txt
+    // for a shape; it says nothing of one unit for the whole feed, so a mixed feed is read shape by shape.
+    const warnings = new WarningSink();
+    const feed = handFeed({
+      stops: STOPS,
+      shapes: {
+        SH1: { xy: SHAPE.xy, dist: SHAPE.xy.map(([x]) => x) },
+        SH2: { xy: SHAPE.xy, dist: SHAPE.xy.map(([x]) => x) },
+        SK: { xy: SHAPE.xy, dist: SHAPE.xy.map(([x]) => x / 1000) },
+      },
+      trips: [
+        { id: 'm1', shape: 'SH1', times: ['A', 'B', 'C'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 310, 600][i] })) },
+        { id: 'm2', shape: 'SH2', dir: 1, times: ['A', 'C', 'E'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 600, 1200][i] })) },
+        { id: 'k1', shape: 'SK', route: 'R2', times: ['A', 'B', 'D'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 0.31, 0.9][i] })) },
+      ],
+    });
+    const set = buildPatterns(feed, { warnings });
+    expect(set.shapeDistUnit!.unit).toBe('m');
+    const km = set.patterns.find((p) => p.tripIds[0] === 'k1')!;
+    expect(km.distanceSource).toBe('shape_dist_traveled');
+    expect(km.distAlongM[1]).toBeCloseTo(310, 9);
+    expect(km.lengthM).toBeCloseTo(900, 9);
+    expect(set.patterns.find((p) => p.tripIds[0] === 'm1')!.distAlongM[1]).toBeCloseTo(310, 9);
+    expect(warnings.list().find((w) => w.code === 'shape-dist-unit-per-shape')!.examples).toEqual(['SK in km']);
+  });
+
   it('records a decreasing shape_dist_traveled and measures that pattern by projection', () => {
     const warnings = new WarningSink();
     const feed = handFeed({
