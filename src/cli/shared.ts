@@ -42,7 +42,7 @@ export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefin
       const t = ev.total ? (ev.unit === 'bytes' ? ` / ${(ev.total / 1e6).toFixed(1)} MB` : ` / ${ev.total.toLocaleString('en')}`) : '';
       text += `: ${d}${t}${ev.unit && ev.unit !== 'bytes' ? ' ' + ev.unit : ''}`;
     }
-    process.stderr.write(`\r\x1b[2K${text.slice(0, (process.stderr.columns ?? 80) - 1)}`);
+    process.stderr.write(`\r\x1b[2K${text.slice(0, Math.max(20, (process.stderr.columns || 80) - 1))}`);
   };
   return { onProgress: draw, done: () => process.stderr.write('\r\x1b[2K') };
 }
