@@ -4,6 +4,7 @@
 import type { Command } from 'commander';
 import { compareFeeds } from '../audit/compare.js';
 import { runAudit } from '../audit/runAudit.js';
+import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
 import { comparisonHtml, comparisonText } from '../audit/compareRender.js';
 import { version } from '../version.js';
@@ -15,6 +16,8 @@ interface CompareCliOptions {
   out?: string;
   moveThreshold?: string;
   date?: string;
+  ridership?: string;
+  params?: string;
   audit: boolean;
   quiet?: boolean;
   verbose?: boolean;
@@ -30,6 +33,8 @@ export function registerCompare(program: Command): void {
     .option('--out <dir>', 'also write compare.html and compare.json into this folder')
     .option('--move-threshold <m>', 'a stop that moved more than this many metres counts as moved', '10')
     .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
+    .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
+    .option('--params <file.json>', 'model parameters used for both audits')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
@@ -46,8 +51,9 @@ export function registerCompare(program: Command): void {
         }
         let audits: { old: AuditResult; new: AuditResult } | undefined;
         if (o.audit && a.patterns.patterns.length > 0 && b.patterns.patterns.length > 0) {
-          // assumed demand and default parameters on both sides, so the figures differ only by the feeds
-          audits = { old: runAudit(a.feed, a.patterns), new: runAudit(b.feed, b.patterns) };
+          // the same parameters and ridership file on both sides, so the figures differ only by the feeds
+          const params = mergeParams(o.params, {});
+          audits = { old: runAudit(a.feed, a.patterns, { params, ridership: o.ridership }), new: runAudit(b.feed, b.patterns, { params, ridership: o.ridership }) };
         }
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };

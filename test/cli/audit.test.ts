@@ -111,3 +111,17 @@ describe('stopspan audit', () => {
     expect(r.stderr).toMatch(/missing required argument/);
   });
 });
+
+describe('stopspan compare with a ridership file', () => {
+  it('audits both versions on the same counted ridership, which changes the spacing figures', async () => {
+    const NEXT = join(ROOT, 'fixtures/demo/demo-feed-next.zip');
+    const assumed = await runCli(['compare', DEMO, NEXT, '--json', '-q']);
+    const counted = await runCli(['compare', DEMO, NEXT, '--ridership', RIDERSHIP, '--json', '-q']);
+    expect(assumed.code, assumed.stderr).toBe(0);
+    expect(counted.code, counted.stderr).toBe(0);
+    const a = JSON.parse(assumed.stdout).spacing.before;
+    const c = JSON.parse(counted.stdout).spacing.before;
+    expect(c.medianGapM).toBeCloseTo(a.medianGapM, 6); // geometry does not depend on demand
+    expect(c.paxMinLostPerDay).not.toBeCloseTo(a.paxMinLostPerDay, 0);
+  });
+});
