@@ -97,14 +97,33 @@ export class CsvCore {
       if (lineStart > 0) this.push(text.slice(0, lineStart));
       this.failNul(text.slice(lineStart), nul - lineStart);
     }
+    let from = 0;
+    if (this.rest.length > 0) {
+      // finish the record cut at the last chunk's end on its own, joined with this text up to its first
+      // line break, so that the rest of the text is scanned as it came: reading a joined string character
+      // by character is markedly slower (measured: about a quarter of the scan on a big stop_times.txt)
+      const nl = text.indexOf('\n');
+      if (nl >= 0) {
+        const head = this.rest + text.slice(0, nl + 1);
+        const used = this.scan(head, false, 0);
+        if (used >= head.length) {
+          this.rest = '';
+          from = nl + 1;
+        } else {
+          // a record still open at that line break (a quoted one): join what is left as before
+          this.rest = head.slice(used);
+          text = text.slice(nl + 1);
+        }
+      }
+    }
     const buf = this.rest.length > 0 ? this.rest + text : text;
-    const used = this.scan(buf, false);
+    const used = this.scan(buf, false, from);
     this.rest = used >= buf.length ? '' : buf.slice(used);
     if (this.rest.length > this.maxRecordChars) this.failTooLong(this.line);
   }
 
   end(): void {
-    if (this.rest.length > 0) this.scan(this.rest, true);
+    if (this.rest.length > 0) this.scan(this.rest, true, 0);
     this.rest = '';
   }
 
@@ -132,12 +151,12 @@ export class CsvCore {
     throw new StopspanError('csv-syntax', `record longer than the cap of ${this.maxRecordChars} characters`, { file: this.file, line });
   }
 
-  /** Parses every complete record in buf; returns the index of the first character not consumed. */
-  private scan(buf: string, final: boolean): number {
+  /** Parses every complete record in buf from index `from` on; returns the index of the first character not consumed. */
+  private scan(buf: string, final: boolean, from: number): number {
     const n = buf.length;
     const row = this.row;
     row.text = buf;
-    let i = 0;
+    let i = from;
     while (i < n) {
       const c = buf.charCodeAt(i);
       if (c === LF) {
