@@ -1,8 +1,9 @@
 // Reads a GTFS Schedule feed into the compact Feed of types.ts. The small tables come first so the
 // analysis date (and with it the trips to keep) is known before the big ones stream: stop_times.txt is
-// collected into growable typed columns for the kept trips only, then grouped per trip and sorted by
-// stop_sequence; shapes.txt keeps only the shapes those trips use. Bad input throws StopspanError with
-// file, line, column and value; recoverable oddities are counted in the WarningSink and Feed.warnings.
+// collected into blocks of typed columns for the kept trips only, each trip's rows together and sorted by
+// stop_sequence, and the Feed's per-trip arrays are views into those blocks; shapes.txt keeps only the
+// shapes those trips use. Bad input throws StopspanError with file, line, column and value; recoverable
+// oddities are counted in the WarningSink and Feed.warnings.
 
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
@@ -13,7 +14,7 @@ import { readCsv, type CsvRow } from './csv.js';
 import type { DownloadLimits } from './download.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
-import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
+import { FloatColumn, groupAndSort, IntColumn, TripRowBlocks, type RowBlock } from './columns.js';
 import { BLANK, checkDate, fieldNumber, fieldTimeS, fieldUint, MALFORMED } from './values.js';
 
 export interface ReadFeedOptions {
@@ -286,14 +287,8 @@ async function readArchive(
   const noShape = kept.filter((t) => t.shapeId === '').length;
   if (noShape > 0) warnings.add('trip-without-shape', 'trips without a shape_id (distances fall back to stop positions)', kept.find((t) => t.shapeId === '')!.id, noShape);
 
-  // stop_times.txt, kept trips only, into typed columns
-  const stOwner = new IntColumn(1 << 16);
-  const stStop = new IntColumn(1 << 16);
-  const stSeq = new IntColumn(1 << 16);
-  const stArr = new IntColumn(1 << 16);
-  const stDep = new IntColumn(1 << 16);
-  const stDist = new FloatColumn(1 << 16);
-  const stFlags = new IntColumn(1 << 16); // bit 0 timepoint, bit 1 no passenger service
+  // stop_times.txt, kept trips only, into blocks of typed columns, each trip's rows together
+  const st = new TripRowBlocks(kept.length);
   let atStation = 0;
   const F = 'stop_times.txt';
   await table(ctx, F, ['trip_id', 'stop_id', 'stop_sequence'], ['arrival_time', 'departure_time', 'shape_dist_traveled', 'timepoint', 'pickup_type', 'drop_off_type'], (row, c) => {
@@ -323,73 +318,62 @@ async function readArchive(
     // [GTFS Schedule reference: timepoint empty means exact times when times are given]
     const exact = tp === 1 || (tp === -1 && arr >= 0);
     if (stops[s].locationType === 1) atStation++;
-    stOwner.push(t);
-    stStop.push(s);
-    stSeq.push(seq);
-    stArr.push(arr);
-    stDep.push(dep);
-    stDist.push(dist);
-    stFlags.push((exact ? 1 : 0) | (pickup === 1 && dropOff === 1 ? 2 : 0));
+    st.push(t, s, seq, arr, dep, dist, exact ? 1 : 0, pickup === 1 && dropOff === 1 ? 1 : 0);
   });
   if (atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, atStation);
 
   const stopTimes = new Map<string, TripStopTimes>();
   {
-    const n = stOwner.length;
-    const { order, offsets } = groupAndSort(stOwner.data, stSeq.data, n, kept.length);
-    const outStop = new Int32Array(n);
-    const outSeq = new Int32Array(n);
-    const outArr = new Int32Array(n);
-    const outDep = new Int32Array(n);
-    const outDist = new Float64Array(n);
-    const outTp = new Uint8Array(n);
-    const outNs = new Uint8Array(n);
-    let w = 0;
     let repeated = 0;
     let noTimes = 0;
     let noRows = 0;
-    for (let k = 0; k < kept.length; k++) {
-      const a = offsets[k];
-      const b = offsets[k + 1];
-      if (a === b) {
-        noRows++;
-        continue;
-      }
-      // drop rows repeating the previous stop_sequence [GTFS Schedule reference: stop_sequence unique per trip]
-      const pick: number[] = [];
-      for (let p = a; p < b; p++) {
-        const r = order[p];
-        if (pick.length > 0 && stSeq.data[pick[pick.length - 1]] === stSeq.data[r]) {
-          repeated++;
-          continue;
-        }
-        pick.push(r);
-      }
-      // each trip's arrays are views into one buffer per column: no backing store per trip
-      const w0 = w;
-      for (const r of pick) {
-        outStop[w] = stStop.data[r];
-        outSeq[w] = stSeq.data[r];
-        outArr[w] = stArr.data[r];
-        outDep[w] = stDep.data[r];
-        outDist[w] = stDist.data[r];
-        outTp[w] = stFlags.data[r] & 1;
-        outNs[w] = (stFlags.data[r] >> 1) & 1;
-        w++;
-      }
-      const m = w - w0;
+    const add = (k: number, b: RowBlock, a: number, m: number): void => {
+      // each trip's arrays are views into its block: no backing store per trip
       const rec: TripStopTimes = {
-        stopIdx: outStop.subarray(w0, w),
-        seq: outSeq.subarray(w0, w),
-        arrS: outArr.subarray(w0, w),
-        depS: outDep.subarray(w0, w),
-        shapeDist: outDist.subarray(w0, w),
-        timepoint: outTp.subarray(w0, w),
-        noService: outNs.subarray(w0, w),
+        stopIdx: b.stop.subarray(a, a + m),
+        seq: b.seq.subarray(a, a + m),
+        arrS: b.arr.subarray(a, a + m),
+        depS: b.dep.subarray(a, a + m),
+        shapeDist: b.dist.subarray(a, a + m),
+        timepoint: b.tp.subarray(a, a + m),
+        noService: b.ns.subarray(a, a + m),
       };
       // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
       if (rec.arrS[0] < 0 || rec.depS[m - 1] < 0) noTimes++;
       stopTimes.set(kept[k].id, rec);
+    };
+    if (!st.scattered) {
+      // the usual layout, rows grouped by trip: sort each trip's run in place where needed
+      for (let k = 0; k < kept.length; k++) {
+        if (st.tripCount[k] === 0) {
+          noRows++;
+          continue;
+        }
+        st.sortRun(k);
+        // drop rows repeating the previous stop_sequence [GTFS Schedule reference: stop_sequence unique per trip]
+        repeated += st.dropRepeats(k);
+        add(k, st.blocks[st.tripBlock[k]], st.tripStart[k], st.tripCount[k]);
+      }
+    } else {
+      // rows of a trip spread over the table: group them, then copy each trip's rows together
+      const flat = st.flatRows();
+      const n = flat.used;
+      const { order, offsets } = groupAndSort(flat.owner, flat.seq, n, kept.length);
+      const out = new TripRowBlocks(kept.length, Math.max(1, n));
+      for (let k = 0; k < kept.length; k++) {
+        let last = -1;
+        for (let p = offsets[k]; p < offsets[k + 1]; p++) {
+          const r = order[p];
+          if (last >= 0 && flat.seq[last] === flat.seq[r]) {
+            repeated++;
+            continue;
+          }
+          out.push(k, flat.stop[r], flat.seq[r], flat.arr[r], flat.dep[r], flat.dist[r], flat.tp[r], flat.ns[r]);
+          last = r;
+        }
+        if (out.tripCount[k] === 0) noRows++;
+        else add(k, out.blocks[out.tripBlock[k]], out.tripStart[k], out.tripCount[k]);
+      }
     }
     if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
     if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);

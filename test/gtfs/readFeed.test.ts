@@ -174,6 +174,22 @@ describe('readFeed on the Vellmoor fixture', () => {
     expect(warning(feed, 'repeated-stop-sequence')?.count).toBe(1);
   });
 
+  it('reads stop_times the same whatever the order of its rows', async () => {
+    // rows grouped by trip take the in-place path, rows of trips interleaved the grouping path; the
+    // result must not depend on it [GTFS Schedule reference: stop_times rows may come in any order]
+    const [head, ...rows] = readFileSync(join(BASIC, 'stop_times.txt'), 'utf8').trim().split('\n');
+    const byTrip = new Map<string, string[]>();
+    for (const r of rows) byTrip.set(r.split(',')[0], [...(byTrip.get(r.split(',')[0]) ?? []), r]);
+    const groupedReversed = [...byTrip.values()].reverse().flatMap((rs) => [...rs].reverse());
+    const interleaved = [...rows].sort((a, b) => a.split(',')[4].localeCompare(b.split(',')[4]) || a.localeCompare(b));
+    const plain = (f: Feed) => [...f.stopTimes].map(([id, st]) => [id, Object.fromEntries(Object.entries(st).map(([k, v]) => [k, [...v]]))]);
+    const base = await readFeed(BASIC, { date: 'all' });
+    for (const order of [groupedReversed, interleaved]) {
+      const feed = await readFeed(feedCopy({ 'stop_times.txt': [head, ...order].join('\n') + '\n' }), { date: 'all' });
+      expect(plain(feed)).toEqual(plain(base));
+    }
+  });
+
   it('counts blank direction_id and trips on a service no calendar defines', async () => {
     const trips = readFileSync(join(BASIC, 'trips.txt'), 'utf8').replace('R1,WK,T1,Uplands,0,SH1', 'R1,WK,T1,Uplands,,SH1') + 'R1,GHOST,TG,Nowhere,0,SH1\n';
     const feed = await readFeed(feedCopy({ 'trips.txt': trips }), { date: 'all' });
