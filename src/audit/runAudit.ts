@@ -43,7 +43,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const analyses = preps.map((p) => analysePattern(feed, p, params));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates);
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
 
   // headline

@@ -1,5 +1,6 @@
 // How robust the headline figures and the candidates are: the same audit at walk weights 1.5 and 2.5 and at
-// band tolerances 0.05 and 0.10, everything else unchanged.
+// band tolerances 0.05 and 0.10, everything else unchanged. A case whose settings are the base audit's own
+// (band tolerance 0.05 by default) reuses the base analyses and candidates instead of computing them again.
 
 import type { Feed } from '../gtfs/types.js';
 import type { Candidate, SensitivityCase } from './types.js';
@@ -37,14 +38,22 @@ export function runSensitivity(
   preps: PreparedPattern[],
   params: ModelParams,
   baseCandidates: Candidate[],
-  { settings = sensitivitySettings(params) }: { settings?: SensitivitySetting[] } = {},
+  {
+    settings = sensitivitySettings(params),
+    baseAnalyses,
+  }: {
+    settings?: SensitivitySetting[];
+    /** The base audit's analysePattern results for preps (at params' own settings), from which baseCandidates were built. */
+    baseAnalyses?: PatternAnalysis[];
+  } = {},
 ): { cases: SensitivityCase[]; robustKeys: Set<string> } {
   const top = baseCandidates.slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
   let robustKeys = new Set(baseCandidates.map(candidateKey));
   const cases: SensitivityCase[] = [];
   for (const s of settings) {
-    const analyses = preps.map((p) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance }));
-    const cands = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+    const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
+    const analyses = isBase ? baseAnalyses : preps.map((p) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance }));
+    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));
     cases.push({
