@@ -2,24 +2,14 @@
 // added and the ride saved of one removal against hand computation, agreement with the audit's removal
 // figure, the mirror case of an addition, and the scenario errors.
 import { describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import { evaluateScenario, parseScenario, scenarioFromOptions } from '../../src/audit/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { handmadeNetwork } from './handmade.js';
+import { thrown } from '../helpers/errors.js';
 
 const even = Array.from({ length: 16 }, (_, j) => j * 200); // 3 km, stops every 200 m
 const { feed, patterns } = handmadeNetwork({ distM: even, tripsPerDay: 50, sharedAt: 12 });
 const params = { cruise_speed_mps: 11.176, stopping_model: 'always' };
-
-function errorOf(f: () => unknown): StopspanError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
 
 describe('evaluateScenario', () => {
   const audit = runAudit(feed, patterns, { params });
@@ -82,15 +72,15 @@ describe('evaluateScenario', () => {
   });
 
   it('refuses unknown stops, terminals, far coordinates, ambiguous names and unknown keys before computing', () => {
-    expect(errorOf(() => evaluateScenario(feed, patterns, { remove: ['nowhere'] }, { params })).message).toMatch(/remove\[0\]: unknown stop "nowhere"/);
-    expect(errorOf(() => evaluateScenario(feed, patterns, { remove: ['v1-0'] }, { params })).message).toMatch(/terminal of pattern V1:0:1/);
-    expect(errorOf(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.2, lon: 4.3, route: 'V1' }] }, { params })).message).toMatch(/add\[0\]: .* m from the nearest pattern of route V1 \(limit 200 m/);
-    expect(errorOf(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(/unknown route_id V7/);
-    expect(errorOf(() => parseScenario({ remove: ['v1-3'], close: ['v1-4'] })).message).toMatch(/invalid scenario key close/);
-    expect(errorOf(() => parseScenario({})).code).toBe('bad-scenario');
+    expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['nowhere'] }, { params })).message).toMatch(/remove\[0\]: unknown stop "nowhere"/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['v1-0'] }, { params })).message).toMatch(/terminal of pattern V1:0:1/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.2, lon: 4.3, route: 'V1' }] }, { params })).message).toMatch(/add\[0\]: .* m from the nearest pattern of route V1 \(limit 200 m/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(/unknown route_id V7/);
+    expect(thrown(() => parseScenario({ remove: ['v1-3'], close: ['v1-4'] })).message).toMatch(/invalid scenario key close/);
+    expect(thrown(() => parseScenario({})).code).toBe('bad-scenario');
     const twin = handmadeNetwork({ distM: even, tripsPerDay: 50, sharedAt: 12 });
     twin.feed.stops[3].name = twin.feed.stops[4].name;
-    expect(errorOf(() => evaluateScenario(twin.feed, twin.patterns, { remove: [twin.feed.stops[4].name] }, { params })).message).toMatch(/ambiguous \(2 stops: v1-3, v1-4\)/);
+    expect(thrown(() => evaluateScenario(twin.feed, twin.patterns, { remove: [twin.feed.stops[4].name] }, { params })).message).toMatch(/ambiguous \(2 stops: v1-3, v1-4\)/);
     expect(evaluateScenario(feed, patterns, { remove: ['Vellmoor Street 7'] }, { params }).patterns[0].removedStopIds).toEqual(['v1-7']);
   });
 

@@ -5,23 +5,13 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
+import { rejected } from '../helpers/errors.js';
 
 afterAll(cleanupCopies);
-
-async function rejected(p: Promise<unknown>): Promise<StopspanError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
 
 async function drain(stream: AsyncIterable<Buffer>): Promise<number> {
   let n = 0;

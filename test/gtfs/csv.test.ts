@@ -9,10 +9,10 @@ import { parse } from 'csv-parse/sync';
 import { parse as parseStream } from 'csv-parse';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
+import { thrown, rejected } from '../helpers/errors.js';
 
 // csv-parse options that state the same rules: BOM dropped, values trimmed outside quotes, blank lines
 // skipped, ragged rows allowed (our reader pads or ignores them and counts it)
@@ -45,26 +45,6 @@ async function ours(pieces: Array<string | Buffer>, file = 't.csv'): Promise<{ r
     },
   );
   return { records, lines };
-}
-
-function thrown(f: () => unknown): StopspanError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
-
-async function rejected(p: Promise<unknown>): Promise<StopspanError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
 }
 
 const CASES: Record<string, string> = {

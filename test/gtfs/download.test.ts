@@ -6,10 +6,10 @@ import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import { downloadFeed } from '../../src/gtfs/download.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
+import { rejected } from '../helpers/errors.js';
 
 let server: http.Server;
 let base = '';
@@ -65,16 +65,6 @@ afterAll(async () => {
   await new Promise((resolve) => server.close(resolve));
   cleanupCopies();
 });
-
-async function rejected(p: Promise<unknown>): Promise<StopspanError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
 
 const ours = () => readdirSync(tmpdir()).filter((n) => n.startsWith('stopspan-dl-')).sort();
 

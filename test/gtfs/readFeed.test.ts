@@ -6,23 +6,13 @@ import { createHash } from 'node:crypto';
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import type { ProgressEvent } from '../../src/common/progress.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import type { Feed } from '../../src/gtfs/types.js';
 import { BASIC, cleanupCopies, editTable, feedCopy, FIXTURES, zipFolder } from './feedCopy.js';
+import { rejected } from '../helpers/errors.js';
 
 afterAll(cleanupCopies);
-
-async function rejected(p: Promise<unknown>): Promise<StopspanError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
 
 const stopIds = (feed: Feed, tripId: string) => [...feed.stopTimes.get(tripId)!.stopIdx].map((i) => feed.stops[i].id);
 const warning = (feed: Feed, code: string) => feed.warnings.find((w) => w.code === code);

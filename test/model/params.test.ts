@@ -3,18 +3,8 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { StopspanError } from '../../src/common/errors.js';
 import { defaultParams, loadParamsFile, normalizeParams, paramsReport, PARAM_NAMES } from '../../src/model/params.js';
-
-function errorOf(f: () => unknown): StopspanError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof StopspanError) return e;
-    throw e;
-  }
-  throw new Error('expected a StopspanError');
-}
+import { thrown } from '../helpers/errors.js';
 
 describe('normalizeParams', () => {
   it('fills every name of the design notes with its default', () => {
@@ -38,18 +28,18 @@ describe('normalizeParams', () => {
     for (const v of Object.values(rep)) expect(v.note.length).toBeGreaterThan(5);
   });
   it('rejects unknown keys by name', () => {
-    const e = errorOf(() => normalizeParams({ walk_speed: 1.2 }));
+    const e = thrown(() => normalizeParams({ walk_speed: 1.2 }));
     expect(e.code).toBe('bad-option');
     expect(e.message).toMatch(/^invalid parameter walk_speed: expected one of walk_speed_mps/);
   });
   it('rejects bad values with what was expected and what was given', () => {
-    expect(errorOf(() => normalizeParams({ walk_speed_mps: -1 })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got -1');
-    expect(errorOf(() => normalizeParams({ band_tolerance: 5 })).message).toBe('invalid parameter band_tolerance: expected a number between 0 and 1 (0.05 means 5 %), got 5');
-    expect(errorOf(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe('invalid parameter stopping_model: expected "always", "poisson" or "observed", got "sometimes"');
-    expect(errorOf(() => normalizeParams({ door_time_s: 'abc' })).message).toBe('invalid parameter door_time_s: expected a number of 0 or more, got "abc"');
-    expect(errorOf(() => normalizeParams({ max_gap_m: null })).message).toMatch(/invalid parameter max_gap_m: expected a number above 0, got null/);
-    expect(errorOf(() => normalizeParams({ operating_cost_per_vehicle_hour: 100 })).message).toMatch(/invalid parameter value_of_time_per_hour/);
-    expect(errorOf(() => normalizeParams([1, 2])).code).toBe('bad-option');
+    expect(thrown(() => normalizeParams({ walk_speed_mps: -1 })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got -1');
+    expect(thrown(() => normalizeParams({ band_tolerance: 5 })).message).toBe('invalid parameter band_tolerance: expected a number between 0 and 1 (0.05 means 5 %), got 5');
+    expect(thrown(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe('invalid parameter stopping_model: expected "always", "poisson" or "observed", got "sometimes"');
+    expect(thrown(() => normalizeParams({ door_time_s: 'abc' })).message).toBe('invalid parameter door_time_s: expected a number of 0 or more, got "abc"');
+    expect(thrown(() => normalizeParams({ max_gap_m: null })).message).toMatch(/invalid parameter max_gap_m: expected a number above 0, got null/);
+    expect(thrown(() => normalizeParams({ operating_cost_per_vehicle_hour: 100 })).message).toMatch(/invalid parameter value_of_time_per_hour/);
+    expect(thrown(() => normalizeParams([1, 2])).code).toBe('bad-option');
   });
   it('returns fresh defaults each time', () => {
     const a = defaultParams();
@@ -66,12 +56,12 @@ describe('loadParamsFile', () => {
     expect(loadParamsFile(ok).values).toMatchObject({ walk_weight: 1.5, max_gap_m: 600 });
     const badKey = join(dir, 'bad.json');
     writeFileSync(badKey, '{"walkweight": 1.5}');
-    const e = errorOf(() => loadParamsFile(badKey));
+    const e = thrown(() => loadParamsFile(badKey));
     expect(e.context.file).toBe(badKey);
     expect(e.oneLine()).toContain('invalid parameter walkweight');
     const notJson = join(dir, 'nope.json');
     writeFileSync(notJson, '{walk_weight: 1.5}');
-    expect(errorOf(() => loadParamsFile(notJson)).message).toMatch(/not valid JSON/);
-    expect(errorOf(() => loadParamsFile(join(dir, 'missing.json'))).code).toBe('bad-option');
+    expect(thrown(() => loadParamsFile(notJson)).message).toMatch(/not valid JSON/);
+    expect(thrown(() => loadParamsFile(join(dir, 'missing.json'))).code).toBe('bad-option');
   });
 });
