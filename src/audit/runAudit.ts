@@ -28,6 +28,22 @@ export interface RunAuditOptions {
   generatedAt?: string;
 }
 
+function countBy(values: string[]): Map<string, number> {
+  const m = new Map<string, number>();
+  for (const v of values) m.set(v, (m.get(v) ?? 0) + 1);
+  return m;
+}
+
+/** The assumptions line on when a bus stops, naming what each pattern used. */
+function stoppingAssumption(param: string, used: string[]): string {
+  const models = new Set(used);
+  const parts: string[] = [];
+  if (models.has('always')) parts.push(param === 'always' ? 'The bus is assumed to stop at every stop (as set).' : 'Where demand is assumed, the bus is assumed to stop at every stop: a chance of skipping a stop is only as good as the counts behind it.');
+  if (models.has('poisson')) parts.push('A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat).');
+  if (models.has('observed')) parts.push('Where realtime data covers a pattern, the observed share of trips stopping at each stop is used.');
+  return parts.join(' ') || 'No pattern was modelled.';
+}
+
 function median(values: number[]): number {
   if (values.length === 0) return 0;
   const s = Float64Array.from(values).sort();
@@ -77,6 +93,14 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       note: `${sources.has('observed') ? 'observed where realtime data covers a pattern, else ' : ''}estimated per pattern from the schedule: median ${median(speeds).toFixed(1)} m/s (range ${Math.min(...speeds).toFixed(1)}-${Math.max(...speeds).toFixed(1)})`,
     };
   }
+  if (params.stopping_model === 'auto') {
+    const used = countBy(preps.map((p) => p.stoppingModel));
+    overrides.stopping_model = {
+      value: 'auto',
+      source: 'D',
+      note: `chosen per pattern by the data it has (observed stop shares, else Poisson on counted demand, else every stop served): ${[...used].map(([m, n]) => `${m} on ${n}`).join(', ') || 'no patterns'}`,
+    };
+  }
   if (params.mean_trip_length_m === null) {
     overrides.mean_trip_length_m = {
       value: null,
@@ -91,10 +115,10 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       ? `No ridership file: demand is assumed uniform along each pattern at ${params.assumed_boardings_per_trip_km} boardings per trip per km, with a mean trip of a third of the pattern length; every figure from it is marked demand_source=assumed.`
       : `Demand comes from the ridership file ${ridership}; a stop's counts are split between the patterns serving it by trips per day.`,
     params.cruise_speed_mps === null
-      ? 'Cruise speed is estimated per pattern so that the scheduled run time is explained by driving, stops served and boarding (2.75 s per boarding, Levinson 1983); traffic delay is folded into the cruise speed.'
+      ? 'Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (2.75 s per boarding, Levinson 1983), or the route type\'s typical cruise speed (bus 11.2 m/s, 25 mph) when the schedule is slower than that; the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.'
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
-    params.stopping_model === 'always' ? 'The bus is assumed to stop at every stop.' : 'A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat); observed stop shares replace it where realtime data exists.',
+    stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,

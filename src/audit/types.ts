@@ -7,6 +7,7 @@
 
 import type { FeedWarning } from '../common/warnings.js';
 import type { DistanceSource } from '../network/types.js';
+import type { StoppingModel } from '../model/params.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
 export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'keep';
@@ -95,6 +96,9 @@ export interface PatternResult {
   lostTimePerStopS: number;
   cruiseSpeedMps: number;
   cruiseSpeedSource: SourceLabel;
+  /** Run time per trip the schedule holds beyond driving at the cruise speed, stops and boarding (signals, congestion); null when the cruise speed was not estimated from the schedule. */
+  trafficDelayS: number | null;
+  stoppingModel: StoppingModel; // the stopping model used on this pattern
   meanTripLengthM: number;
   ridersPerDay: number; // boardings per day on the pattern
   runTimeS: number;

@@ -339,6 +339,8 @@ export function analysePattern(
     lostTimePerStopS: prep.lostTimePerStopS,
     cruiseSpeedMps: prep.cruiseSpeedMps,
     cruiseSpeedSource: prep.cruiseSpeedSource,
+    trafficDelayS: prep.trafficDelayS,
+    stoppingModel: prep.stoppingModel,
     meanTripLengthM: prep.meanTripLengthM,
     ridersPerDay: demand.ridersPerDay,
     runTimeS: pattern.runTimeS,

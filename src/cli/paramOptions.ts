@@ -10,7 +10,7 @@ const OPTIONS: { flag: string; key: string; help: string; numeric: boolean }[] =
   { flag: '--cruise-speed <m/s>', key: 'cruise_speed_mps', help: 'bus cruise speed, m/s (default: estimated per pattern)', numeric: true },
   { flag: '--band-tolerance <e>', key: 'band_tolerance', help: 'cost tolerance of the near-optimal band (0.05 = 5 %)', numeric: true },
   { flag: '--max-gap <m>', key: 'max_gap_m', help: 'largest gap between stops the walking policy allows, m', numeric: true },
-  { flag: '--stopping-model <name>', key: 'stopping_model', help: 'always, poisson or observed', numeric: false },
+  { flag: '--stopping-model <name>', key: 'stopping_model', help: 'auto (default: observed, else poisson with a ridership file, else always), always, poisson or observed', numeric: false },
 ];
 
 export function addParamOptions(cmd: Command): void {

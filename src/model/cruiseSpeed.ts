@@ -1,22 +1,33 @@
-// Estimates a pattern's cruise speed V so that the schedule is explained:
-//   T_sched = D/V + n*(t_doors + t_reentry) + (n+1)*V*(1/(2a) + 1/(2d)) + boarding time,
+// Estimates a pattern's cruise speed V, the speed a vehicle reaches between stops, from its schedule:
+//   T_sched = D/V + n*(t_doors + t_reentry) + (n+1)*V*(1/(2a) + 1/(2d)) + boarding time + traffic delay,
 // n the expected number of intermediate stops served (the +1 is accelerating from the first stop and
-// braking into the last). Solved for V (the smaller root of a quadratic: the larger one would have the bus
-// spend most of its time accelerating), then clamped to a plausible range for the route type.
+// braking into the last). One schedule cannot tell cruise speed from traffic delay (signals, congestion):
+// solving the equation with no traffic delay gives the slowest cruise that still keeps to the schedule
+// (the smaller root of a quadratic: the larger one would have the bus spend most of its time
+// accelerating). V is that speed or the route type's typical cruise speed, whichever is higher; when the
+// typical speed is used, the rest of the run time is reported as traffic delay. Folding a congested
+// schedule into a slow cruise instead would shrink the braking-and-accelerating loss, and so the optimal
+// spacing, exactly where traffic is worst.
 
 /** Per-passenger boarding time, 2.75 s [C, Levinson 1983, TRR 915: dwell 5 s + 2.75 s per passenger]. */
 export const BOARDING_TIME_PER_PAX_S = 2.75;
 
-/** Plausible cruise speeds (m/s) by GTFS route_type, with extended types grouped by hundreds. Common practice, values from memory. */
-export function cruiseSpeedRangeMps(routeType: number): { minMps: number; maxMps: number; fallbackMps: number } {
+/**
+ * Typical and highest plausible cruise speeds (m/s) by GTFS route_type, with extended types grouped by
+ * hundreds. Common practice, values from memory; the bus figure is 25 mph, a usual urban street limit and
+ * the speed of the HCM 2010 transit delay example.
+ */
+const MPH25 = 25 * 0.44704; // 11.176 m/s
+
+export function cruiseSpeedBoundsMps(routeType: number): { typicalMps: number; maxMps: number } {
   const basic = routeType >= 100 ? extendedToBasic(routeType) : routeType;
   switch (basic) {
-    case 0: return { minMps: 2, maxMps: 22, fallbackMps: 8 }; // tram
-    case 1: return { minMps: 5, maxMps: 30, fallbackMps: 15 }; // subway, metro
-    case 2: return { minMps: 8, maxMps: 70, fallbackMps: 25 }; // rail
-    case 4: return { minMps: 2, maxMps: 20, fallbackMps: 8 }; // ferry
-    case 3: case 11: return { minMps: 5, maxMps: 25, fallbackMps: 8 }; // bus, trolleybus: below about 18 km/h the schedule holds traffic delay, not cruising
-    default: return { minMps: 2, maxMps: 30, fallbackMps: 8 };
+    case 0: return { typicalMps: MPH25, maxMps: 22 }; // tram, on street
+    case 1: return { typicalMps: 15, maxMps: 30 }; // subway, metro
+    case 2: return { typicalMps: 25, maxMps: 70 }; // rail
+    case 4: return { typicalMps: 8, maxMps: 20 }; // ferry
+    case 3: case 11: return { typicalMps: MPH25, maxMps: 25 }; // bus, trolleybus
+    default: return { typicalMps: 8, maxMps: 30 };
   }
 }
 
@@ -44,23 +55,27 @@ export interface CruiseSpeedInput {
 
 export interface CruiseSpeedEstimate {
   cruiseSpeedMps: number;
-  /** The unclamped solution (NaN when the schedule is too tight to be explained). */
+  /** The slowest cruise that keeps to the schedule with no traffic delay (NaN when the schedule is too tight to be explained). */
   solvedMps: number;
-  clamped: 'low' | 'high' | null;
+  /** schedule: V from the schedule; typical: the route type's typical speed, the schedule being slower; ceiling: capped at the highest plausible speed. */
+  basis: 'schedule' | 'typical' | 'ceiling';
+  /** Run time per trip not explained by driving at V, the stops served and boarding: signals and congestion (s, >= 0). */
+  trafficDelayS: number;
 }
 
 export function estimateCruiseSpeed({ runTimeS, lengthM, expectedStopsServed, boardingsPerTrip, doorTimeS, reentryDelayS, accelMps2, decelMps2, routeType }: CruiseSpeedInput): CruiseSpeedEstimate {
-  const range = cruiseSpeedRangeMps(routeType);
-  if (!(runTimeS > 0) || !(lengthM > 0)) return { cruiseSpeedMps: range.fallbackMps, solvedMps: NaN, clamped: 'high' };
+  const { typicalMps, maxMps } = cruiseSpeedBoundsMps(routeType);
+  if (!(runTimeS > 0) || !(lengthM > 0)) return { cruiseSpeedMps: typicalMps, solvedMps: NaN, basis: 'typical', trafficDelayS: 0 };
   const n = Math.max(0, expectedStopsServed);
   const k = 1 / (2 * accelMps2) + 1 / (2 * decelMps2);
-  const available = runTimeS - n * (doorTimeS + reentryDelayS) - boardingsPerTrip * BOARDING_TIME_PER_PAX_S;
+  const fixed = n * (doorTimeS + reentryDelayS) + boardingsPerTrip * BOARDING_TIME_PER_PAX_S;
+  const available = runTimeS - fixed;
   const qa = (n + 1) * k;
   const disc = available * available - 4 * qa * lengthM;
   let solved = NaN;
   if (available > 0 && disc >= 0) solved = (2 * lengthM) / (available + Math.sqrt(disc)); // smaller root, stable form
-  if (!Number.isFinite(solved)) return { cruiseSpeedMps: range.maxMps, solvedMps: NaN, clamped: 'high' };
-  if (solved < range.minMps) return { cruiseSpeedMps: range.minMps, solvedMps: solved, clamped: 'low' };
-  if (solved > range.maxMps) return { cruiseSpeedMps: range.maxMps, solvedMps: solved, clamped: 'high' };
-  return { cruiseSpeedMps: solved, solvedMps: solved, clamped: null };
+  if (!Number.isFinite(solved) || solved > maxMps) return { cruiseSpeedMps: maxMps, solvedMps: solved, basis: 'ceiling', trafficDelayS: 0 };
+  if (solved >= typicalMps) return { cruiseSpeedMps: solved, solvedMps: solved, basis: 'schedule', trafficDelayS: 0 };
+  const explained = lengthM / typicalMps + fixed + qa * typicalMps;
+  return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'typical', trafficDelayS: Math.max(0, runTimeS - explained) };
 }

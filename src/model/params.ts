@@ -7,6 +7,8 @@ import { StopspanError } from '../common/errors.js';
 import type { ParamsReport, SourceLabel } from '../audit/types.js';
 
 export type StoppingModel = 'always' | 'poisson' | 'observed';
+/** The parameter's values: a model, or auto (chosen per pattern by the data it has). */
+export type StoppingModelParam = StoppingModel | 'auto';
 
 export interface ModelParams {
   walk_speed_mps: number;
@@ -19,7 +21,7 @@ export interface ModelParams {
   mean_trip_length_m: number | null; // null: from ridership, else a third of the pattern length
   band_tolerance: number;
   max_gap_m: number;
-  stopping_model: StoppingModel;
+  stopping_model: StoppingModelParam;
   assumed_boardings_per_trip_km: number;
   operating_cost_per_vehicle_hour: number | null;
   value_of_time_per_hour: number | null;
@@ -52,8 +54,8 @@ export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
   mean_trip_length_m: { default: null, source: 'D', kind: 'positive-or-null', note: 'from the ridership load profile, else a third of the pattern length (uniform origins and destinations)' },
   band_tolerance: { default: 0.05, source: 'D', kind: 'fraction', note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal' },
   max_gap_m: { default: 800, source: 'M', kind: 'positive', note: 'common practice walking policy (about half a mile between stops); from memory' },
-  stopping_model: { default: 'poisson', source: 'M', kind: 'stopping', note: 'P = 1 - exp(-lambda), standard in the stop-spacing literature (from memory); overestimates stopping (Tirachini 2014)' },
-  assumed_boardings_per_trip_km: { default: 3, source: 'M', kind: 'positive', note: 'assumption used only without a ridership file: boardings per trip per km of pattern' },
+  stopping_model: { default: 'auto', source: 'D', kind: 'stopping', note: 'auto: observed stop shares where realtime data covers a pattern, Poisson P = 1 - exp(-lambda) where demand comes from a ridership file, always (every stop served) where demand is assumed, since a chance of skipping a stop is only as good as the counts behind it' },
+  assumed_boardings_per_trip_km: { default: 3, source: 'M', kind: 'positive', note: 'assumption used only without a ridership file: boardings per trip per km of pattern; it scales the passenger-minutes, and moves the optimum only when stopping_model=poisson is set' },
   operating_cost_per_vehicle_hour: { default: null, source: 'D', kind: 'nonnegative-or-null', note: 'not set: operating cost left out of the optimiser' },
   value_of_time_per_hour: { default: null, source: 'D', kind: 'positive-or-null', note: 'not set: needed with operating_cost_per_vehicle_hour to weigh it against riders\' time' },
 };
@@ -82,8 +84,8 @@ function check(name: ParamName, raw: unknown, file?: string): number | string | 
   const num = typeof raw === 'string' && raw.trim() !== '' && /^[-+0-9.eE]+$/.test(raw.trim()) ? Number(raw) : raw;
   switch (spec.kind) {
     case 'stopping':
-      if (raw === 'always' || raw === 'poisson' || raw === 'observed') return raw;
-      throw bad(name, '"always", "poisson" or "observed"', raw, file);
+      if (raw === 'auto' || raw === 'always' || raw === 'poisson' || raw === 'observed') return raw;
+      throw bad(name, '"auto", "always", "poisson" or "observed"', raw, file);
     case 'positive':
       if (typeof num === 'number' && Number.isFinite(num) && num > 0) return num;
       throw bad(name, 'a number above 0', raw, file);

@@ -9,9 +9,9 @@ import type { FixedReason, LostTimeSource, SourceLabel } from '../audit/types.js
 import type { ObservedPattern } from '../realtime/types.js';
 import { Corridor, type CostSettings } from './corridor.js';
 import type { PatternDemand } from './demand.js';
-import { estimateCruiseSpeed, cruiseSpeedRangeMps } from './cruiseSpeed.js';
+import { estimateCruiseSpeed, cruiseSpeedBoundsMps } from './cruiseSpeed.js';
 import { lostTimePerStopS } from './lostTime.js';
-import type { ModelParams } from './params.js';
+import type { ModelParams, StoppingModel } from './params.js';
 import { stopProbability } from './stopping.js';
 
 export interface PreparedPattern {
@@ -28,7 +28,8 @@ export interface PreparedPattern {
   cruiseSpeedSource: SourceLabel;
   meanTripLengthM: number;
   observedShare: (number | null)[] | undefined; // per model stop
-  stoppingModel: ModelParams['stopping_model'];
+  stoppingModel: StoppingModel; // the model used on this pattern (auto resolved)
+  trafficDelayS: number | null; // run time per trip the schedule holds beyond driving, stops and boarding; null unless estimated
   fixedReason: FixedReason[]; // per model stop
 }
 
@@ -60,14 +61,19 @@ export function preparePattern(
   const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
   const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2 });
 
-  let stoppingModel = params.stopping_model;
+  // auto: observed shares where realtime data has them, Poisson on counted demand, every stop on assumed demand
+  let stoppingModel: StoppingModel;
   let observedShare: (number | null)[] | undefined;
-  if (observed && observed.stopShare.some((x) => x !== null)) {
+  if (observed && observed.stopShare.some((x) => x !== null) && (params.stopping_model === 'auto' || params.stopping_model === 'observed')) {
     observedShare = modelStops.map((j) => observed.stopShare[j] ?? null);
     stoppingModel = 'observed';
-  } else if (stoppingModel === 'observed') {
+  } else if (params.stopping_model === 'observed') {
     warnings.add('no-observed-stopping', 'stopping_model=observed but no observed stop shares for the pattern: Poisson used', pattern.id);
     stoppingModel = 'poisson';
+  } else if (params.stopping_model === 'auto') {
+    stoppingModel = demand.demandSource === 'assumed' ? 'always' : 'poisson';
+  } else {
+    stoppingModel = params.stopping_model;
   }
   // expected intermediate stops served today, for the cruise speed estimate
   let expectedStops = 0;
@@ -78,6 +84,7 @@ export function preparePattern(
   const kin = { doorTimeS: params.door_time_s, accelMps2: params.accel_mps2, decelMps2: params.decel_mps2, reentryDelayS: params.reentry_delay_s };
   let cruiseSpeedMps: number;
   let cruiseSpeedSource: SourceLabel;
+  let trafficDelayS: number | null = null;
   if (observed?.cruiseSpeedMps != null && observed.cruiseSpeedMps > 0) {
     cruiseSpeedMps = observed.cruiseSpeedMps;
     cruiseSpeedSource = 'observed';
@@ -95,12 +102,12 @@ export function preparePattern(
     });
     cruiseSpeedMps = est.cruiseSpeedMps;
     cruiseSpeedSource = 'estimated';
-    if (est.clamped) {
-      const r = cruiseSpeedRangeMps(routeType);
+    trafficDelayS = est.trafficDelayS;
+    if (est.basis === 'ceiling') {
       warnings.add(
-        'cruise-speed-clamped',
-        `patterns whose schedule implies an implausible cruise speed for the route type: clamped to the range (bus ${cruiseSpeedRangeMps(3).minMps}-${cruiseSpeedRangeMps(3).maxMps} m/s)`,
-        `${pattern.id} solved ${Number.isFinite(est.solvedMps) ? est.solvedMps.toFixed(1) : 'none'} m/s, used ${est.cruiseSpeedMps} (range ${r.minMps}-${r.maxMps})`,
+        'cruise-speed-capped',
+        `patterns whose schedule is too fast to explain below the highest plausible cruise speed for the route type: capped (bus ${cruiseSpeedBoundsMps(3).maxMps} m/s)`,
+        `${pattern.id} solved ${Number.isFinite(est.solvedMps) ? est.solvedMps.toFixed(1) : 'none'} m/s, used ${est.cruiseSpeedMps}`,
       );
     }
   }
@@ -143,6 +150,7 @@ export function preparePattern(
     meanTripLengthM,
     observedShare,
     stoppingModel,
+    trafficDelayS,
     fixedReason,
   };
 }

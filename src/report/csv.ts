@@ -94,6 +94,13 @@ export const PATTERN_COLUMNS: Column<PatternResult>[] = [
   num('optimal_stop_count', (p) => p.optimalStopCount),
   num('pax_min_lost_per_day', (p) => p.paxMinLostPerDay, 1),
   text('demand_source', (p) => p.demandSource),
+  num('lost_time_per_stop_s', (p) => p.lostTimePerStopS, 2),
+  text('lost_time_source', (p) => p.lostTimeSource),
+  num('cruise_speed_mps', (p) => p.cruiseSpeedMps, 2),
+  text('cruise_speed_source', (p) => p.cruiseSpeedSource),
+  num('traffic_delay_s', (p) => p.trafficDelayS, 1),
+  text('stopping_model', (p) => p.stoppingModel),
+  num('mean_trip_length_m', (p) => p.meanTripLengthM, 1),
 ];
 
 export const STOP_COLUMNS: Column<StopResult>[] = [

@@ -72,6 +72,11 @@ function patternProperties(p: PatternResult): Feature<LineString>['properties'] 
     optimal_stop_count: p.optimalStopCount,
     pax_min_lost_per_day: round1(p.paxMinLostPerDay),
     demand_source: p.demandSource,
+    lost_time_per_stop_s: round1(p.lostTimePerStopS),
+    cruise_speed_mps: round1(p.cruiseSpeedMps),
+    traffic_delay_s: round1(p.trafficDelayS),
+    stopping_model: p.stoppingModel,
+    mean_trip_length_m: round1(p.meanTripLengthM),
   };
 }
 

@@ -49,14 +49,25 @@ describe.skipIf(!have)('runAudit on nyct-bus-manhattan.zip', () => {
   });
 
   // Furth & Rahbee 2000 (TRR 1731) and Li & Bertini 2008 found optimal spacing above the existing one [C,
-  // via design notes]. With the default parameters this model does NOT reproduce that on Manhattan: the
-  // schedule implies cruise speeds at or below the 5 m/s bus floor, so the lost time per stop is only
-  // about 9 s; with assumed demand of 3 boardings per trip-km the Poisson model has buses skip many stops,
-  // and the mean trip is about 2.4 km, so the mean optimum comes out near 120 m against a 222 m median
-  // gap. Marked as an expected failure so that the disagreement stays visible: if a change of defaults
-  // makes the model agree with the publications, this test fails and must be turned into a plain check.
-  it.fails('finds the mean optimal spacing longer than the median gap today (published finding)', () => {
+  // via design notes]. With the default parameters the model agrees in direction, narrowly: the mean
+  // optimum came out 223.5 m against a median gap of 222.4 m (2026-12-02). It needs the cruise speed to
+  // be the street's (a congested schedule is traffic delay, not slow cruising) and the plain square-root
+  // law where demand is assumed; with the older defaults (schedule-solved cruise, Poisson on an assumed
+  // 3 boardings per trip-km) it came out 141 m.
+  it('finds the mean optimal spacing longer than the median gap today (published finding)', () => {
     expect(r.headline.meanOptimalSpacingM).toBeGreaterThan(r.headline.medianGapM);
+  });
+
+  it('reads the congested schedule as traffic delay at the typical bus speed, and stops at every stop on assumed demand', () => {
+    for (const p of r.patterns) {
+      expect(p.stoppingModel).toBe('always');
+      expect(p.cruiseSpeedMps).toBeGreaterThanOrEqual(11.17);
+      expect(p.trafficDelayS).not.toBeNull();
+      expect(p.trafficDelayS!).toBeGreaterThanOrEqual(0);
+      expect(p.trafficDelayS!).toBeLessThan(p.runTimeS);
+    }
+    // Manhattan buses are scheduled far below street speed: most patterns hold traffic delay
+    expect(r.patterns.filter((p) => p.trafficDelayS! > 0).length).toBeGreaterThan(r.patterns.length / 2);
   });
 
   it('ranks candidates and never removes a fixed stop', () => {

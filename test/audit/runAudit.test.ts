@@ -133,4 +133,28 @@ describe('runAudit', () => {
     expect(v1.every((s) => s.demandSource === 'observed')).toBe(true);
     expect(o.warnings.some((w) => w.code === 'ridership-stop-missing')).toBe(true); // V2's own stops have no rows
   });
+
+  it('chooses the stopping model per pattern by the data it has when stopping_model is auto (the default)', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-audit-'));
+    const file = join(dir, 'ridership.csv');
+    const rows = closeSpacing.map((_, j) => `v1-${j},V1,${j < closeSpacing.length - 1 ? 30 : 0},${j > 0 ? 30 : 0}`);
+    writeFileSync(file, 'stop_id,route_id,boardings,alightings\n' + rows.join('\n') + '\n');
+    const assumed = runAudit(feed, patterns, { params: { cruise_speed_mps: 11.176 } });
+    expect(assumed.patterns.every((p) => p.stoppingModel === 'always')).toBe(true);
+    expect(assumed.stops.every((s) => s.stopProbability === 1)).toBe(true);
+    const counted = runAudit(feed, patterns, { params: { cruise_speed_mps: 11.176 }, ridership: file });
+    expect(counted.patterns.every((p) => p.stoppingModel === 'poisson')).toBe(true);
+    // Poisson [design notes]: 30 boardings and 30 alightings a day over 80 trips, lambda = 0.75, P = 1 - e^-0.75
+    const mid = counted.stops.find((s) => s.patternId === 'V1:0:1' && s.stopIndex === 3)!;
+    expect(mid.stopProbability).toBeCloseTo(1 - Math.exp(-60 / 80), 6);
+    // on assumed demand the optimum is the plain square-root law, whatever boardings per km are assumed
+    const more = runAudit(feed, patterns, { params: { cruise_speed_mps: 11.176, assumed_boardings_per_trip_km: 12 } });
+    expect(more.patterns[0].optimalSpacingM).toBeCloseTo(assumed.patterns[0].optimalSpacingM, 9);
+    expect(more.patterns[0].paxMinLostPerDay).toBeGreaterThan(assumed.patterns[0].paxMinLostPerDay);
+    // an explicit model wins over auto
+    const forced = runAudit(feed, patterns, { params: { cruise_speed_mps: 11.176, stopping_model: 'poisson' } });
+    expect(forced.patterns.every((p) => p.stoppingModel === 'poisson')).toBe(true);
+    expect(forced.params.stopping_model.source).toBe('user');
+    expect(assumed.params.stopping_model.note).toMatch(/always on \d+/);
+  });
 });

@@ -14,7 +14,7 @@ describe('normalizeParams', () => {
     const { values, given } = normalizeParams(undefined);
     expect(given).toEqual([]);
     // [S] HCM 2010 via design notes: 4.0 ft/s2 = 1.22 m/s2; common practice 1.2 m/s walking; design band 5 %
-    expect(values).toMatchObject({ walk_speed_mps: 1.2, walk_weight: 2, door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, band_tolerance: 0.05, max_gap_m: 800, stopping_model: 'poisson', cruise_speed_mps: null });
+    expect(values).toMatchObject({ walk_speed_mps: 1.2, walk_weight: 2, door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, band_tolerance: 0.05, max_gap_m: 800, stopping_model: 'auto', cruise_speed_mps: null });
   });
   it('takes user values, also numbers given as strings, and reports them as user-set', () => {
     const np = normalizeParams({ walk_weight: '2.5', stopping_model: 'always', cruise_speed_mps: 9 });
@@ -35,7 +35,7 @@ describe('normalizeParams', () => {
   it('rejects bad values with what was expected and what was given', () => {
     expect(thrown(() => normalizeParams({ walk_speed_mps: -1 })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got -1');
     expect(thrown(() => normalizeParams({ band_tolerance: 5 })).message).toBe('invalid parameter band_tolerance: expected a number between 0 and 1 (0.05 means 5 %), got 5');
-    expect(thrown(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe('invalid parameter stopping_model: expected "always", "poisson" or "observed", got "sometimes"');
+    expect(thrown(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe('invalid parameter stopping_model: expected "auto", "always", "poisson" or "observed", got "sometimes"');
     expect(thrown(() => normalizeParams({ door_time_s: 'abc' })).message).toBe('invalid parameter door_time_s: expected a number of 0 or more, got "abc"');
     expect(thrown(() => normalizeParams({ max_gap_m: null })).message).toMatch(/invalid parameter max_gap_m: expected a number above 0, got null/);
     expect(thrown(() => normalizeParams({ operating_cost_per_vehicle_hour: 100 })).message).toMatch(/invalid parameter value_of_time_per_hour/);

@@ -191,6 +191,8 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     lostTimePerStopS: P,
     cruiseSpeedMps: 8.2,
     cruiseSpeedSource: 'estimated',
+    trafficDelayS: 120,
+    stoppingModel: 'poisson',
     meanTripLengthM,
     ridersPerDay,
     runTimeS: lengthM / 5.5,

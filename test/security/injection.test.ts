@@ -27,7 +27,7 @@ const REPORT_FILES = ['candidates.csv', 'index.html', 'patterns.csv', 'patterns.
 // the CSV text columns (design notes, section 5); every other column is numeric
 const TEXT_COLUMNS: Record<string, string[]> = {
   'stops.csv': ['pattern_id', 'route_id', 'stop_id', 'stop_name', 'verdict', 'demand_source'],
-  'patterns.csv': ['pattern_id', 'route_id', 'route_short_name', 'headsign', 'shape_id', 'distance_source', 'demand_source'],
+  'patterns.csv': ['pattern_id', 'route_id', 'route_short_name', 'headsign', 'shape_id', 'distance_source', 'demand_source', 'lost_time_source', 'cruise_speed_source', 'stopping_model'],
   'candidates.csv': ['action', 'stop_id', 'stop_name', 'route_ids', 'pattern_ids', 'robust', 'demand_source'],
 };
 // cells a spreadsheet would run as a formula (OWASP "CSV Injection" lists = + - @, tab and CR; common practice)
