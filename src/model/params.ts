@@ -50,7 +50,7 @@ export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
   accel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   decel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   reentry_delay_s: { default: 2, source: 'M', kind: 'nonnegative', note: 'assumption: wait to re-enter traffic, chosen within 0-3 s' },
-  cruise_speed_mps: { default: null, source: 'estimated', kind: 'positive-or-null', note: 'estimated per pattern so that the scheduled run time is explained' },
+  cruise_speed_mps: { default: null, source: 'estimated', kind: 'positive-or-null', note: 'estimated per pattern: the slowest cruise that keeps to the schedule, or the typical speed of the route type (bus 25 mph, from memory) when the schedule is slower, the rest taken as traffic delay' },
   mean_trip_length_m: { default: null, source: 'D', kind: 'positive-or-null', note: 'from the ridership load profile, else a third of the pattern length (uniform origins and destinations)' },
   band_tolerance: { default: 0.05, source: 'D', kind: 'fraction', note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal' },
   max_gap_m: { default: 800, source: 'M', kind: 'positive', note: 'common practice walking policy (about half a mile between stops); from memory' },
