@@ -8,7 +8,6 @@ import type { ObservedData } from '../realtime/types.js';
 import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { observeArchive } from '../realtime/calibrate.js';
 import { runAudit } from './runAudit.js';
 import { StopspanError } from '../common/errors.js';
 
@@ -41,7 +40,8 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
       file: 'trips.txt',
     });
   }
-  const observed = observedPath ? await observeArchive(observedPath, feed, patterns, { onProgress }) : null;
+  // the realtime reader (and its protobuf library) loads only when an archive is given
+  const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
   const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress });
   return { feed, patterns, observed, result };
 }

@@ -8,7 +8,6 @@ import { loadParamsFile, normalizeParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
-import { auditRunRow, openHistory, recordRun } from '../history/index.js';
 
 const FORMATS = ['html', 'csv', 'geojson', 'json'] as const;
 type Format = (typeof FORMATS)[number];
@@ -71,6 +70,8 @@ export function registerAudit(program: Command): void {
         progress.onProgress?.({ stage: 'writing reports' });
         const written = await writeReport(result, outDir, { formats, units: opts.units, force: Boolean(opts.force) });
         if (opts.history) {
+          // loaded only when asked for: the SQLite binding costs start-up time on every other run
+          const { auditRunRow, openHistory, recordRun } = await import('../history/index.js');
           const db = openHistory(opts.history);
           try {
             recordRun(db, auditRunRow(result));

@@ -6,7 +6,6 @@ import { checkFeed, type CheckReport } from '../audit/check.js';
 import { checkText } from '../audit/checkText.js';
 import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
 import { StopspanError } from '../common/errors.js';
-import { checkRunRow, openHistory, recordRun } from '../history/index.js';
 import { version } from '../version.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
@@ -89,6 +88,7 @@ export function registerCheck(program: Command): void {
         }
         const report = checkFeed(loaded.feed, loaded.patterns, { today: o.today, thresholds, maxExamples: Math.floor(maxExamples) });
         if (o.history) {
+          const { checkRunRow, openHistory, recordRun } = await import('../history/index.js'); // only when asked for
           const db = openHistory(o.history);
           try {
             recordRun(db, checkRunRow(report));

@@ -3,7 +3,6 @@
 
 import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
-import { historyHtml, historyText, openHistory, readHistory } from '../history/index.js';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, runAction } from './shared.js';
 import { numberOption, writeFiles } from './feedInput.js';
@@ -32,6 +31,7 @@ export function registerHistory(program: Command): void {
       runAction(o.verbose === true, async () => {
         const limit = numberOption('--limit', o.limit, 1);
         if (!existsSync(file)) throw new StopspanError('history-db', 'no such history database', { file });
+        const { historyHtml, historyText, openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
         const db = openHistory(file);
         let rows;
         try {

@@ -5,7 +5,6 @@
 import type { Command } from 'commander';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { observeArchive } from '../realtime/calibrate.js';
 import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
@@ -112,7 +111,7 @@ export function registerWhatif(program: Command): void {
         if (patterns.patterns.length === 0) {
           throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
         }
-        const observed = opts.observed ? await observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
+        const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
         progress.onProgress?.({ stage: 'weighing the scenario' });
         result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, onProgress: progress.onProgress });
       } finally {
