@@ -71,6 +71,8 @@ export class CsvCore {
   private readonly row = new CsvRow();
   private recLines = 0; // line breaks consumed by the record just parsed
   private soloQuoted = false; // the record just parsed is one quoted field
+  private nextQuote = -1; // index of the next '"' in the text being scanned (its length when none; -1 unknown)
+  private nextCr = -1; // the same for '\r'
   paddedValues = 0;
   readonly paddedExamples: Array<{ line: number; field: number }> = [];
   strayQuotes = 0;
@@ -156,6 +158,8 @@ export class CsvCore {
     const n = buf.length;
     const row = this.row;
     row.text = buf;
+    this.nextQuote = -1;
+    this.nextCr = -1;
     let i = from;
     while (i < n) {
       const c = buf.charCodeAt(i);
@@ -186,39 +190,45 @@ export class CsvCore {
   }
 
   /**
-   * Fast path for a record without quotes: one pass over the characters. Returns the index after its line
-   * break, -1 if more text is needed, or -2 when the record holds a quote (the general path takes it).
+   * Fast path for a record without quotes or lone carriage returns: its line break, then each comma, found
+   * with indexOf (native, about twice as fast as reading the characters one by one in JavaScript; measured
+   * on a 75 MB stop_times.txt). Only the first and last character of a field are looked at for padding.
+   * Returns the index after its line break, -1 if more text is needed, or -2 when the record holds a quote
+   * or a lone CR (the general path takes it).
    */
   private plain(buf: string, start: number, final: boolean): number {
     const n = buf.length;
+    if (this.nextQuote < start) {
+      const q = buf.indexOf('"', start);
+      this.nextQuote = q < 0 ? n : q;
+    }
+    if (this.nextCr < start) {
+      const r = buf.indexOf('\r', start);
+      this.nextCr = r < 0 ? n : r;
+    }
+    let nl = buf.indexOf('\n', start);
+    if (nl < 0) {
+      if (!final) return this.nextCr < n - 1 || this.nextQuote < n ? -2 : -1;
+      nl = n;
+    }
+    if (this.nextQuote < nl) return -2;
+    let end = nl;
+    if (this.nextCr < nl) {
+      if (this.nextCr !== nl - 1) return -2;
+      end = nl - 1; // CRLF
+    }
     const row = this.row;
     const starts = row.starts;
     const ends = row.ends;
     let nf = 0;
     let fs = start;
-    let k = start;
-    let c = 0;
     for (;;) {
-      let ws = false;
-      while (k < n) {
-        c = buf.charCodeAt(k);
-        // every delimiter (and space, tab) is <= ',' (44); most data characters are above it
-        if (c <= COMMA) {
-          if (c === COMMA || c === LF || c === CR || c === QUOTE) break;
-          if (c === SPACE || c === TAB) ws = true;
-        }
-        k++;
-      }
-      if (k >= n) {
-        if (!final) return -1;
-        c = -1;
-      } else if (c === QUOTE) {
-        return -2;
-      }
-      // field [fs, k): trim spaces and tabs
+      let c = buf.indexOf(',', fs);
+      if (c < 0 || c > end) c = end;
+      // field [fs, c): trim spaces and tabs
       let a = fs;
-      let e = k;
-      if (ws) {
+      let e = c;
+      if (a < e) {
         let d = buf.charCodeAt(a);
         if (d === SPACE || d === TAB) {
           while (a < e && ((d = buf.charCodeAt(a)) === SPACE || d === TAB)) a++;
@@ -227,7 +237,7 @@ export class CsvCore {
         if (d === SPACE || d === TAB) {
           while (e > a && ((d = buf.charCodeAt(e - 1)) === SPACE || d === TAB)) e--;
         }
-        if (a > fs || e < k) {
+        if (a > fs || e < c) {
           this.paddedValues++;
           if (this.paddedExamples.length < 5) this.paddedExamples.push({ line: this.line, field: nf });
         }
@@ -235,23 +245,13 @@ export class CsvCore {
       starts[nf] = a;
       ends[nf] = e;
       nf++;
-      if (c === COMMA) {
-        fs = ++k;
-        continue;
-      }
-      break;
-    }
-    if (c === CR) {
-      if (k + 1 < n) k += buf.charCodeAt(k + 1) === LF ? 2 : 1;
-      else if (!final) return -1;
-      else k++;
-    } else if (c === LF) {
-      k++;
+      if (c === end) break;
+      fs = c + 1;
     }
     row.count = nf;
-    this.recLines = c === -1 ? 0 : 1;
+    this.recLines = nl < n ? 1 : 0;
     this.soloQuoted = false;
-    return k;
+    return nl < n ? nl + 1 : n;
   }
 
   /** Parses one record starting at i; returns the index after its line break, or -1 if more text is needed. */
