@@ -42,6 +42,14 @@ export class CsvRow {
     return s === e ? '' : this.text.slice(s, e);
   }
 
+  /** Whether the field's value is exactly `value`, without making a string of it. */
+  equals(i: number, value: string): boolean {
+    if (i >= this.count || i < 0) return value === '';
+    const s = this.starts[i];
+    if (s < 0) return this.quoted[i] === value;
+    return this.ends[i] - s === value.length && this.text.startsWith(value, s);
+  }
+
   isBlank(i: number): boolean {
     if (i >= this.count || i < 0) return true;
     const s = this.starts[i];

@@ -291,8 +291,15 @@ async function readArchive(
   const st = new TripRowBlocks(kept.length);
   let atStation = 0;
   const F = 'stop_times.txt';
+  // a trip's rows mostly come together: the trip of the row before is checked first, without a new string
+  let lastTripId = '\0';
+  let lastTrip: number | undefined;
   await table(ctx, F, ['trip_id', 'stop_id', 'stop_sequence'], ['arrival_time', 'departure_time', 'shape_dist_traveled', 'timepoint', 'pickup_type', 'drop_off_type'], (row, c) => {
-    const t = tripIdx.get(row.get(c.trip_id));
+    if (!row.equals(c.trip_id, lastTripId)) {
+      lastTripId = row.get(c.trip_id);
+      lastTrip = tripIdx.get(lastTripId);
+    }
+    const t = lastTrip;
     if (t === undefined) return;
     const stopId = row.get(c.stop_id);
     const s = stopIndex.get(stopId);
