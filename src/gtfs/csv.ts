@@ -92,7 +92,11 @@ export class CsvCore {
     private readonly file: string,
     private readonly sink: (row: CsvRow) => void,
     private readonly maxRecordChars = DEFAULT_MAX_RECORD_CHARS,
-  ) {}
+    firstLine = 1, // a block cut from the middle of a table starts at this line, and has no byte order mark
+  ) {
+    this.line = firstLine;
+    this.started = firstLine > 1;
+  }
 
   push(text: string): void {
     if (!this.started) {
@@ -393,32 +397,25 @@ export function parseCsv(
   text: string,
   { file, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS }: { file: string; warnings?: WarningSink; maxRecordChars?: number },
 ): ParsedCsv {
-  let header: string[] | null = null;
   const rows: string[][] = [];
   const lines: number[] = [];
-  const stats = emptyStats();
-  const core = new CsvCore(
+  let width = 0;
+  const parser = new CsvBlockParser(
     file,
+    null,
     (row) => {
-      if (header === null) {
-        header = row.toArray();
-        checkHeader(header, file);
-        core.names = header;
-        return;
-      }
-      countWidth(row, header.length, stats);
-      const out = new Array<string>(header.length);
-      for (let k = 0; k < header.length; k++) out[k] = row.get(k);
+      const out = new Array<string>(width);
+      for (let k = 0; k < width; k++) out[k] = row.get(k);
       rows.push(out);
       lines.push(row.line);
     },
-    maxRecordChars,
+    { maxRecordChars, onHeader: (h) => (width = h.length) },
   );
-  core.push(text);
-  core.end();
-  stats.records = rows.length;
-  if (warnings) reportStats(warnings, file, header ?? [], core, stats);
-  return { header: header ?? [], rows, lines };
+  parser.push(text);
+  const stats = parser.end();
+  const header = parser.columns ?? [];
+  if (warnings) reportCsvStats(warnings, file, header, stats);
+  return { header, rows, lines };
 }
 
 function emptyStats(): CsvStats {
@@ -430,18 +427,19 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
   else if (row.count > width) stats.longRows++;
 }
 
-function reportStats(warnings: WarningSink, file: string, header: string[], core: CsvCore, stats: CsvStats, replacedAt: string[] = []): void {
-  stats.paddedValues = core.paddedValues;
-  if (core.paddedValues > 0) {
+/** Turns a table's counts into warnings: padded values, stray quotes, ragged rows, invalid UTF-8. */
+export function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvBlockStats): void {
+  const replacedAt = stats.replacedAt;
+  if (stats.paddedValues > 0) {
     const msg = 'values padded with spaces were trimmed';
-    const ex = core.paddedExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
-    warnings.add('padded-values', msg, ex[0], core.paddedValues);
+    const ex = stats.paddedExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
+    warnings.add('padded-values', msg, ex[0], stats.paddedValues);
     for (const e of ex.slice(1)) warnings.add('padded-values', msg, e, 0); // keep examples, count once
   }
-  if (core.strayQuotes > 0) {
+  if (stats.strayQuotes > 0) {
     const msg = 'quotes inside unquoted values were read as literal characters';
-    const ex = core.strayExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
-    warnings.add('stray-quotes', msg, ex[0], core.strayQuotes);
+    const ex = stats.strayExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
+    warnings.add('stray-quotes', msg, ex[0], stats.strayQuotes);
     for (const e of ex.slice(1)) warnings.add('stray-quotes', msg, e, 0);
   }
   if (stats.shortRows > 0) warnings.add('short-rows', 'rows with fewer fields than the header (missing fields read as blank)', file, stats.shortRows);
@@ -465,81 +463,147 @@ export interface ReadCsvOptions {
   onBytes?: (bytes: number) => void;
 }
 
+/** What a block parser found, for warnings once the whole table is read (blocks merge in table order). */
+export interface CsvBlockStats extends CsvStats {
+  paddedExamples: Array<{ line: number; field: number }>;
+  strayQuotes: number;
+  strayExamples: Array<{ line: number; field: number }>;
+  replacedAt: string[]; // where invalid UTF-8 was replaced, "file:line column c"
+}
+
+/**
+ * Parses CSV bytes pushed in pieces: either a whole table (header null: its first record is the header) or
+ * a block of data records cut from a table at a line break, whose header and first line are known. Bytes
+ * may be cut anywhere, inside a UTF-8 sequence too. Strings may be pushed as already decoded text.
+ */
+export class CsvBlockParser {
+  readonly stats: CsvBlockStats = { ...emptyStats(), paddedExamples: [], strayQuotes: 0, strayExamples: [], replacedAt: [] };
+  private readonly core: CsvCore;
+  private carry: Buffer | null = null;
+  private checkReplaced = false;
+  private width: number;
+
+  constructor(
+    private readonly file: string,
+    private header: string[] | null,
+    onRow: (row: CsvRow) => void,
+    { firstLine = 1, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onHeader }: { firstLine?: number; maxRecordChars?: number; onHeader?: (header: string[]) => void } = {},
+  ) {
+    this.width = header?.length ?? 0;
+    const stats = this.stats;
+    this.core = new CsvCore(
+      file,
+      (row) => {
+        if (this.header === null) {
+          const h = row.toArray();
+          checkHeader(h, file);
+          this.header = h;
+          this.core.names = h;
+          this.width = h.length;
+          onHeader?.(h);
+          return;
+        }
+        stats.records++;
+        if (row.count !== this.width) countWidth(row, this.width, stats);
+        if (this.checkReplaced) this.noteReplaced(row);
+        onRow(row);
+      },
+      maxRecordChars,
+      firstLine,
+    );
+    if (header) this.core.names = header;
+  }
+
+  /** The header: given, or read from the first record (null until then). */
+  get columns(): string[] | null {
+    return this.header;
+  }
+
+  push(chunk: Buffer | Uint8Array | string): void {
+    if (typeof chunk === 'string') {
+      this.core.push(chunk);
+      return;
+    }
+    let bytes = Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength);
+    this.stats.bytes += bytes.length;
+    if (this.carry) {
+      bytes = Buffer.concat([this.carry, bytes]);
+      this.carry = null;
+    }
+    const cut = completeUtf8Length(bytes);
+    if (cut < bytes.length) {
+      this.carry = Buffer.from(bytes.subarray(cut));
+      bytes = bytes.subarray(0, cut);
+    }
+    this.pushBytes(bytes);
+  }
+
+  /** Parses what is left; returns the block's counts (warnings are the caller's, see reportCsvStats). */
+  end(): CsvBlockStats {
+    if (this.carry) this.pushBytes(this.carry);
+    this.carry = null;
+    this.checkReplaced = this.stats.invalidUtf8 > 0;
+    this.core.end();
+    const st = this.stats;
+    st.paddedValues = this.core.paddedValues;
+    st.paddedExamples = this.core.paddedExamples.slice();
+    st.strayQuotes = this.core.strayQuotes;
+    st.strayExamples = this.core.strayExamples.slice();
+    return st;
+  }
+
+  private pushBytes(b: Buffer): void {
+    const before = this.stats.invalidUtf8;
+    const text = decode(b, this.stats);
+    this.checkReplaced = this.stats.invalidUtf8 > before;
+    this.core.push(text);
+    this.checkReplaced = false;
+  }
+
+  // after a chunk with invalid UTF-8, look for the replacement characters to name where they are
+  private noteReplaced(row: CsvRow): void {
+    const at = this.stats.replacedAt;
+    for (let k = 0; k < row.count && at.length < 5; k++) {
+      if (row.get(k).includes('\ufffd')) at.push(`${this.file}:${row.line} column ${this.header?.[k] ?? k + 1}`);
+    }
+  }
+}
+
+/** Adds block b's counts to a (blocks in table order, so the examples stay the first few of the table). */
+export function mergeCsvStats(a: CsvBlockStats, b: CsvBlockStats): void {
+  a.records += b.records;
+  a.paddedValues += b.paddedValues;
+  a.shortRows += b.shortRows;
+  a.longRows += b.longRows;
+  a.invalidUtf8 += b.invalidUtf8;
+  a.bytes += b.bytes;
+  a.strayQuotes += b.strayQuotes;
+  for (const e of b.paddedExamples) if (a.paddedExamples.length < 5) a.paddedExamples.push(e);
+  for (const e of b.strayExamples) if (a.strayExamples.length < 5) a.strayExamples.push(e);
+  for (const e of b.replacedAt) if (a.replacedAt.length < 5) a.replacedAt.push(e);
+}
+
 /** Streams a CSV table from bytes (a Readable or any async iterable of Buffers or strings). */
 export async function readCsv(
   stream: AsyncIterable<Buffer | Uint8Array | string> | Iterable<Buffer | Uint8Array | string>,
   { file, onHeader, onRow, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onBytes }: ReadCsvOptions,
 ): Promise<CsvStats> {
-  let header: string[] | null = null;
-  let width = 0;
-  const stats = emptyStats();
-  const core = new CsvCore(
-    file,
-    (row) => {
-      if (header === null) {
-        header = row.toArray();
-        checkHeader(header, file);
-        core.names = header;
-        width = header.length;
-        onHeader(header);
-        return;
-      }
-      stats.records++;
-      if (row.count !== width) countWidth(row, width, stats);
-      if (checkReplaced) noteReplaced(row);
-      onRow(row);
-    },
-    maxRecordChars,
-  );
-  // after a chunk with invalid UTF-8, look for the replacement characters to name where they are
-  let checkReplaced = false;
-  const replacedAt: string[] = [];
-  const noteReplaced = (row: CsvRow): void => {
-    for (let k = 0; k < row.count && replacedAt.length < 5; k++) {
-      if (row.get(k).includes('\ufffd')) replacedAt.push(`${file}:${row.line} column ${header?.[k] ?? k + 1}`);
-    }
-  };
-  const pushBytes = (b: Buffer): void => {
-    const before = stats.invalidUtf8;
-    const text = decode(b, stats);
-    checkReplaced = stats.invalidUtf8 > before;
-    core.push(text);
-    checkReplaced = false;
-  };
-  let carry: Buffer | null = null;
+  const parser = new CsvBlockParser(file, null, onRow, { maxRecordChars, onHeader });
   let sinceReport = 0;
   for await (const chunk of stream) {
-    if (typeof chunk === 'string') {
-      core.push(chunk);
-      continue;
-    }
-    let bytes = Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength);
-    stats.bytes += bytes.length;
-    sinceReport += bytes.length;
-    if (carry) {
-      bytes = Buffer.concat([carry, bytes]);
-      carry = null;
-    }
-    const cut = completeUtf8Length(bytes);
-    if (cut < bytes.length) {
-      carry = Buffer.from(bytes.subarray(cut));
-      bytes = bytes.subarray(0, cut);
-    }
-    pushBytes(bytes);
+    parser.push(chunk);
+    if (typeof chunk !== 'string') sinceReport += chunk.length;
     if (onBytes && sinceReport >= 4 << 20) {
       sinceReport = 0;
-      onBytes(stats.bytes);
+      onBytes(parser.stats.bytes);
     }
   }
-  if (carry) pushBytes(carry);
-  checkReplaced = stats.invalidUtf8 > 0;
-  core.end();
+  const stats = parser.end();
   if (onBytes) onBytes(stats.bytes);
+  const header = parser.columns;
   if (header === null) onHeader([]);
-  if (warnings) {
-    reportStats(warnings, file, header ?? [], core, stats, replacedAt);
-  } else stats.paddedValues = core.paddedValues;
-  return stats;
+  if (warnings) reportCsvStats(warnings, file, header ?? [], stats);
+  return { records: stats.records, paddedValues: stats.paddedValues, shortRows: stats.shortRows, longRows: stats.longRows, invalidUtf8: stats.invalidUtf8, bytes: stats.bytes };
 }
 
 function decode(bytes: Buffer, stats: CsvStats): string {
