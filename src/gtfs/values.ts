@@ -2,6 +2,7 @@
 // (decimals, dates), so the big tables need no string per numeric field. Each returns a sentinel for
 // "blank" and for "malformed"; the table readers turn malformed values into 'bad-value' errors.
 
+import { StopspanError } from '../common/errors.js';
 import type { CsvRow } from './csv.js';
 
 export const BLANK = -1;
@@ -71,4 +72,18 @@ export function checkDate(s: string): string | null {
   const d = Number(s.slice(6, 8));
   const dt = new Date(Date.UTC(y, m - 1, d));
   return dt.getUTCFullYear() === y && dt.getUTCMonth() === m - 1 && dt.getUTCDate() === d ? s : null;
+}
+
+/** Throws the 'bad-value' error for field i of a row: file, line, column, what was expected and the value. */
+export function badField(file: string, row: CsvRow, i: number, column: string, what: string): never {
+  throw new StopspanError('bad-value', `${column} is not ${what}`, { file, line: row.line, column, value: row.get(i) });
+}
+
+/** An optional integer column within [lo, hi]; `blank` when absent or empty. */
+export function intField(file: string, row: CsvRow, i: number, column: string, lo: number, hi: number, blank: number): number {
+  if (i < 0) return blank;
+  const v = fieldUint(row, i);
+  if (v === BLANK) return blank;
+  if (v === MALFORMED || v < lo || v > hi) badField(file, row, i, column, `an integer from ${lo} to ${hi}`);
+  return v;
 }
