@@ -92,11 +92,7 @@ export class CsvCore {
     private readonly file: string,
     private readonly sink: (row: CsvRow) => void,
     private readonly maxRecordChars = DEFAULT_MAX_RECORD_CHARS,
-    firstLine = 1, // a block cut from the middle of a table starts at this line, and has no byte order mark
-  ) {
-    this.line = firstLine;
-    this.started = firstLine > 1;
-  }
+  ) {}
 
   push(text: string): void {
     if (!this.started) {
@@ -400,9 +396,8 @@ export function parseCsv(
   const rows: string[][] = [];
   const lines: number[] = [];
   let width = 0;
-  const parser = new CsvBlockParser(
+  const parser = new CsvTableParser(
     file,
-    null,
     (row) => {
       const out = new Array<string>(width);
       for (let k = 0; k < width; k++) out[k] = row.get(k);
@@ -428,7 +423,7 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
 }
 
 /** Turns a table's counts into warnings: padded values, stray quotes, ragged rows, invalid UTF-8. */
-export function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvBlockStats): void {
+function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
   const replacedAt = stats.replacedAt;
   if (stats.paddedValues > 0) {
     const msg = 'values padded with spaces were trimmed';
@@ -463,8 +458,8 @@ export interface ReadCsvOptions {
   onBytes?: (bytes: number) => void;
 }
 
-/** What a block parser found, for warnings once the whole table is read (blocks merge in table order). */
-export interface CsvBlockStats extends CsvStats {
+/** What the parser found, for the warnings once the whole table is read. */
+export interface CsvTableStats extends CsvStats {
   paddedExamples: Array<{ line: number; field: number }>;
   strayQuotes: number;
   strayExamples: Array<{ line: number; field: number }>;
@@ -472,24 +467,22 @@ export interface CsvBlockStats extends CsvStats {
 }
 
 /**
- * Parses CSV bytes pushed in pieces: either a whole table (header null: its first record is the header) or
- * a block of data records cut from a table at a line break, whose header and first line are known. Bytes
- * may be cut anywhere, inside a UTF-8 sequence too. Strings may be pushed as already decoded text.
+ * Parses a CSV table pushed in pieces, its first record the header. Bytes may be cut anywhere, inside a
+ * UTF-8 sequence too; strings may be pushed as already decoded text. Under both readCsv and parseCsv.
  */
-export class CsvBlockParser {
-  readonly stats: CsvBlockStats = { ...emptyStats(), paddedExamples: [], strayQuotes: 0, strayExamples: [], replacedAt: [] };
+export class CsvTableParser {
+  readonly stats: CsvTableStats = { ...emptyStats(), paddedExamples: [], strayQuotes: 0, strayExamples: [], replacedAt: [] };
   private readonly core: CsvCore;
   private carry: Buffer | null = null;
   private checkReplaced = false;
-  private width: number;
+  private width = 0;
+  private header: string[] | null = null;
 
   constructor(
     private readonly file: string,
-    private header: string[] | null,
     onRow: (row: CsvRow) => void,
-    { firstLine = 1, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onHeader }: { firstLine?: number; maxRecordChars?: number; onHeader?: (header: string[]) => void } = {},
+    { maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onHeader }: { maxRecordChars?: number; onHeader?: (header: string[]) => void } = {},
   ) {
-    this.width = header?.length ?? 0;
     const stats = this.stats;
     this.core = new CsvCore(
       file,
@@ -509,12 +502,10 @@ export class CsvBlockParser {
         onRow(row);
       },
       maxRecordChars,
-      firstLine,
     );
-    if (header) this.core.names = header;
   }
 
-  /** The header: given, or read from the first record (null until then). */
+  /** The header, once read (null until then). */
   get columns(): string[] | null {
     return this.header;
   }
@@ -538,8 +529,8 @@ export class CsvBlockParser {
     this.pushBytes(bytes);
   }
 
-  /** Parses what is left; returns the block's counts (warnings are the caller's, see reportCsvStats). */
-  end(): CsvBlockStats {
+  /** Parses what is left; returns the counts (warnings are the caller's, see reportCsvStats). */
+  end(): CsvTableStats {
     if (this.carry) this.pushBytes(this.carry);
     this.carry = null;
     this.checkReplaced = this.stats.invalidUtf8 > 0;
@@ -569,26 +560,12 @@ export class CsvBlockParser {
   }
 }
 
-/** Adds block b's counts to a (blocks in table order, so the examples stay the first few of the table). */
-export function mergeCsvStats(a: CsvBlockStats, b: CsvBlockStats): void {
-  a.records += b.records;
-  a.paddedValues += b.paddedValues;
-  a.shortRows += b.shortRows;
-  a.longRows += b.longRows;
-  a.invalidUtf8 += b.invalidUtf8;
-  a.bytes += b.bytes;
-  a.strayQuotes += b.strayQuotes;
-  for (const e of b.paddedExamples) if (a.paddedExamples.length < 5) a.paddedExamples.push(e);
-  for (const e of b.strayExamples) if (a.strayExamples.length < 5) a.strayExamples.push(e);
-  for (const e of b.replacedAt) if (a.replacedAt.length < 5) a.replacedAt.push(e);
-}
-
 /** Streams a CSV table from bytes (a Readable or any async iterable of Buffers or strings). */
 export async function readCsv(
   stream: AsyncIterable<Buffer | Uint8Array | string> | Iterable<Buffer | Uint8Array | string>,
   { file, onHeader, onRow, warnings, maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onBytes }: ReadCsvOptions,
 ): Promise<CsvStats> {
-  const parser = new CsvBlockParser(file, null, onRow, { maxRecordChars, onHeader });
+  const parser = new CsvTableParser(file, onRow, { maxRecordChars, onHeader });
   let sinceReport = 0;
   for await (const chunk of stream) {
     parser.push(chunk);

@@ -1,6 +1,6 @@
 // Reads one stop_times.txt record into typed values: the kept trip, the stop, stop_sequence, times,
-// shape_dist_traveled, timepoint and the no-service flag. Shared by the reader on the main thread and the
-// worker threads that parse blocks of a big table (stopTimesWorker.ts), so both check every field alike.
+// shape_dist_traveled, timepoint and the no-service flag, checking every field. The hottest code of the
+// reader (a big city has millions of these rows), so it makes no string it does not need.
 
 import { StopspanError } from '../common/errors.js';
 import type { CsvRow } from './csv.js';
@@ -70,53 +70,5 @@ export class StopTimesRowReader {
     const exact = tp === 1 || (tp === -1 && arr >= 0);
     if (this.lookup.station[s] === 1) this.atStation++;
     this.sink.push(t, s, seq, arr, dep, dist, exact ? 1 : 0, pickup === 1 && dropOff === 1 ? 1 : 0);
-  }
-}
-
-/** Growable typed columns of read records, in table order: what a worker hands back for its block. */
-export class StopTimesBuffer implements StopTimesSink {
-  n = 0;
-  trip = new Int32Array(1 << 14);
-  stop = new Int32Array(1 << 14);
-  seq = new Int32Array(1 << 14);
-  arr = new Int32Array(1 << 14);
-  dep = new Int32Array(1 << 14);
-  dist = new Float64Array(1 << 14);
-  tp = new Uint8Array(1 << 14);
-  ns = new Uint8Array(1 << 14);
-
-  push(t: number, stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number): void {
-    if (this.n === this.trip.length) this.grow();
-    const w = this.n++;
-    this.trip[w] = t;
-    this.stop[w] = stop;
-    this.seq[w] = seq;
-    this.arr[w] = arr;
-    this.dep[w] = dep;
-    this.dist[w] = dist;
-    this.tp[w] = tp;
-    this.ns[w] = ns;
-  }
-
-  /** Replays the records into another sink, in order. */
-  replay(into: StopTimesSink): void {
-    for (let r = 0; r < this.n; r++) into.push(this.trip[r], this.stop[r], this.seq[r], this.arr[r], this.dep[r], this.dist[r], this.tp[r], this.ns[r]);
-  }
-
-  private grow(): void {
-    const m = this.trip.length * 2;
-    const g = <T extends Int32Array | Float64Array | Uint8Array>(a: T, make: (n: number) => T): T => {
-      const b = make(m);
-      b.set(a);
-      return b;
-    };
-    this.trip = g(this.trip, (k) => new Int32Array(k));
-    this.stop = g(this.stop, (k) => new Int32Array(k));
-    this.seq = g(this.seq, (k) => new Int32Array(k));
-    this.arr = g(this.arr, (k) => new Int32Array(k));
-    this.dep = g(this.dep, (k) => new Int32Array(k));
-    this.dist = g(this.dist, (k) => new Float64Array(k));
-    this.tp = g(this.tp, (k) => new Uint8Array(k));
-    this.ns = g(this.ns, (k) => new Uint8Array(k));
   }
 }
