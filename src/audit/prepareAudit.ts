@@ -11,6 +11,7 @@ import { assumedDemand, ridershipDemand, type PatternDemand } from '../model/dem
 import { normalizeParams, type ModelParams, type NormalizedParams } from '../model/params.js';
 import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
 import { loadRidership } from '../model/ridership.js';
+import { localCoverByGap } from './localCover.js';
 
 export interface PrepareAuditOptions {
   params?: unknown;
@@ -71,5 +72,6 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
     if (prep) preps.push(prep);
   });
   if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
+  localCoverByGap(feed, patterns, preps).forEach((cover, i) => (preps[i].gapLocalCover = cover));
   return { np, params, preps, warnings };
 }

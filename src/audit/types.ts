@@ -58,7 +58,9 @@ export interface GapResult {
   fromStopId: string;
   toStopId: string;
   gapM: number;
-  wide: boolean; // above the band's upper edge
+  wide: boolean; // above the band's upper edge, and not served by a local route (see coveredByLocal)
+  /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null. */
+  coveredByLocal: string | null;
   overMaxGap: boolean; // above the max_gap_m walking policy
   addNetPaxMinPerDay: number | null; // change in total riders' time if a stop is added mid-gap (wide gaps only)
   addMidLat: number | null;

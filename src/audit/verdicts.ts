@@ -258,7 +258,7 @@ export function analysePattern(
       // close only when the spacing is below the band AND taking the stop out saves riders time: the band
       // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
       if (hasOptimum && spacing < band.lowM && removal.netPaxMinPerDay < 0) verdict = 'close';
-      else if (hasOptimum && spacing > band.highM) verdict = 'wide';
+      else if (hasOptimum && spacing > band.highM && [m - 1, m].some((g) => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover[g] === null)) verdict = 'wide';
       removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
     }
     if (verdict === 'close') closeStops++;
@@ -286,7 +286,8 @@ export function analysePattern(
   let wideGaps = 0;
   for (let m = 0; m + 1 < n; m++) {
     const gapM = gapsM[m];
-    const wide = hasOptimum && gapM > band.highM;
+    const coveredByLocal = prep.gapLocalCover[m] ?? null;
+    const wide = hasOptimum && gapM > band.highM && coveredByLocal === null;
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];
     let add: ChangeEffect | null = null;
@@ -306,6 +307,7 @@ export function analysePattern(
       toStopId: to?.id ?? '',
       gapM,
       wide,
+      coveredByLocal,
       overMaxGap: gapM > params.max_gap_m,
       addNetPaxMinPerDay: add ? add.netPaxMinPerDay : null,
       addMidLat: lat,

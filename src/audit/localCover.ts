@@ -1,0 +1,91 @@
+// Gaps of a limited-stop pattern that another route serves as a local: the other route calls near both
+// ends of the gap (within 150 m: limited-stop services often have stops of their own a few metres from the
+// local's), in order, with at least one stop between them, and runs at least a quarter as many trips a day.
+// Riders between those ends already have a stop on the local, so a long gap there is the limited service's
+// design, not a hole in the network: it is not flagged wide and no stop is proposed in it. (A design choice
+// of this tool; the radius, the share of trips and the reach of the search are documented defaults.)
+
+import type { PatternSet } from '../network/types.js';
+import type { Feed } from '../gtfs/types.js';
+import type { PreparedPattern } from '../model/preparePattern.js';
+import { haversineM } from '../network/geodesy.js';
+
+/** A local must run at least this share of the limited pattern's trips a day to count. */
+export const LOCAL_MIN_TRIP_SHARE = 0.25;
+/** A local's stop within this distance of a gap's end counts as calling there. */
+export const LOCAL_NEAR_M = 150;
+/** How many of the local's stops past the gap's first end are searched for its second end. */
+const MAX_LOCAL_STOPS_IN_GAP = 15;
+const CELL_DEG = 0.002; // grid cell of the stop index, about 220 m north-south
+
+/** Per prepared pattern, per model gap: the short name (else id) of a route serving it as a local, or null. */
+export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: PreparedPattern[]): (string | null)[][] {
+  const patterns = patternSet.patterns;
+  const stops = feed.stops;
+  // stop -> (pattern, position) pairs, passenger stops only; and a grid of the stops served
+  const at = new Map<number, number[]>();
+  const grid = new Map<string, number[]>();
+  const cell = (lat: number, lon: number) => `${Math.floor(lat / CELL_DEG)},${Math.floor(lon / CELL_DEG)}`;
+  patterns.forEach((q, qi) => {
+    for (let j = 0; j < q.stopIdx.length; j++) {
+      if (q.passengerStop[j] === false) continue;
+      const s = q.stopIdx[j];
+      let list = at.get(s);
+      if (!list) {
+        at.set(s, (list = []));
+        const st = stops[s];
+        if (st && Number.isFinite(st.lat) && Number.isFinite(st.lon)) {
+          const key = cell(st.lat, st.lon);
+          let g = grid.get(key);
+          if (!g) grid.set(key, (g = []));
+          g.push(s);
+        }
+      }
+      list.push(qi, j);
+    }
+  });
+  const near = (s: number): Set<number> => {
+    const out = new Set<number>([s]);
+    const st = stops[s];
+    if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) return out;
+    const ci = Math.floor(st.lat / CELL_DEG);
+    const cj = Math.floor(st.lon / CELL_DEG);
+    for (let di = -1; di <= 1; di++) {
+      for (let dj = -1; dj <= 1; dj++) {
+        for (const o of grid.get(`${ci + di},${cj + dj}`) ?? []) if (haversineM(st.lat, st.lon, stops[o].lat, stops[o].lon) <= LOCAL_NEAR_M) out.add(o);
+      }
+    }
+    return out;
+  };
+  return preps.map((prep) => {
+    const p = prep.pattern;
+    const ids = prep.modelStops.map((j) => p.stopIdx[j]);
+    const out: (string | null)[] = [];
+    let nearA = ids.length > 0 ? near(ids[0]) : new Set<number>();
+    for (let m = 0; m + 1 < ids.length; m++) {
+      const nearB = near(ids[m + 1]);
+      let by: string | null = null;
+      for (const a of nearA) {
+        const list = at.get(a) ?? [];
+        for (let k = 0; k < list.length && by === null; k += 2) {
+          const q = patterns[list[k]];
+          if (q.routeId === p.routeId || q.tripsPerDay < LOCAL_MIN_TRIP_SHARE * p.tripsPerDay) continue;
+          const i = list[k + 1];
+          let between = 0;
+          for (let j = i + 1; j < q.stopIdx.length && j <= i + MAX_LOCAL_STOPS_IN_GAP; j++) {
+            if (q.passengerStop[j] === false) continue;
+            if (nearB.has(q.stopIdx[j])) {
+              if (between > 0) by = feed.routes.get(q.routeId)?.shortName || q.routeId;
+              break;
+            }
+            if (!nearA.has(q.stopIdx[j])) between++;
+          }
+        }
+        if (by !== null) break;
+      }
+      out.push(by);
+      nearA = nearB;
+    }
+    return out;
+  });
+}
