@@ -12,7 +12,7 @@ import { paramsReport } from '../model/params.js';
 import { prepareAudit } from './prepareAudit.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern } from './verdicts.js';
-import { LOCAL_MIN_TRIP_SHARE } from './localCover.js';
+import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -130,7 +130,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
-    `A gap that another route serves as a local (it calls at both ends with stops of its own between them and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
+    `A gap that another route serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,

@@ -71,11 +71,8 @@ export function defaultParams(): ModelParams {
 
 function bad(name: string, expected: string, got: unknown, file?: string): StopspanError {
   const shown = typeof got === 'string' ? JSON.stringify(got) : String(JSON.stringify(got) ?? got);
-  return new StopspanError('bad-option', `invalid parameter ${name}: expected ${expected}, got ${shown}`, {
-    file,
-    column: name,
-    value: shown,
-  });
+  // the message names the parameter and the value already: the context adds only the file
+  return new StopspanError('bad-option', `invalid parameter ${name}: expected ${expected}, got ${shown}`, { file });
 }
 
 function check(name: ParamName, raw: unknown, file?: string): number | string | null {
