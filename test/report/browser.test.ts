@@ -217,7 +217,13 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
     expect(headline).not.toMatch(/\d m\b/);
     expect(await v.page.textContent('#gaps svg')).toContain('(ft)');
     await v.page.click('details.pattern > summary');
-    expect(await v.page.textContent('details.pattern .kv')).toMatch(/\d+(\.\d)? mi/);
+    const facts = await v.page.textContent('details.pattern .kv');
+    expect(facts).toMatch(/\d+(\.\d)? mi/);
+    // the sample pattern cruises at 8.2 m/s = 18.3 mph (1 mph = 0.44704 m/s exactly, NIST SP 811), with
+    // 120 s of traffic delay per trip and Poisson stopping
+    expect(facts).toContain('18 mph');
+    expect(facts).toContain('2.0 min');
+    expect(facts).toContain('where riders board or alight (Poisson)');
   });
 
   it('keeps a large network (160 patterns, 3 000+ stop rows) to a few MB and usable', async () => {
@@ -232,6 +238,8 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
     expect(await v.page.locator('details.pattern').count()).toBe(160);
     expect(await v.page.locator('details.pattern svg').count()).toBe(0); // nothing drawn until opened
     await v.page.locator('details.pattern > summary').nth(100).click();
+    // drawn on the toggle event, which may come a moment after the click on a busy machine
+    await v.page.waitForSelector('details.pattern svg.strip', { timeout: 10_000 });
     expect(await v.page.locator('details.pattern svg.strip').count()).toBe(1);
   });
 });

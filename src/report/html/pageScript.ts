@@ -34,6 +34,9 @@ export const PAGE_SCRIPT = String.raw`
   function longLen(m) {
     return IMP ? num(m / 1609.344, 1) + ' mi' : num(m / 1000, 1) + ' km';
   }
+  // cruise speed as people read it: km/h, or mph with --units imperial
+  function speed(mps) { return IMP ? num(mps * 2.236936, 0) + ' mph' : num(mps * 3.6, 0) + ' km/h'; }
+  var STOPPING = { always: 'at every stop (demand assumed)', poisson: 'where riders board or alight (Poisson)', observed: 'as often as observed' };
   function lenUnit() { return IMP ? 'ft' : 'm'; }
   function toUnit(m) { return IMP ? m / 0.3048 : m; }
   function signed(v, d) {
@@ -182,7 +185,9 @@ export const PAGE_SCRIPT = String.raw`
       ['median gap', len(p.median)], ['mean gap', len(p.mean)], ['modelled optimum', len(p.opt)],
       ['near-optimal band', len(p.lo) + ' to ' + len(p.hi)], ['close stops', num(p.close)], ['wide gaps', num(p.wide)],
       ['stops the optimiser keeps', num(p.optCount)], ['passenger-min lost per day', num(p.lost) + assumedTag(p.demand)],
-      ['lost time per stop', num(p.lostTime, 1) + ' s'], ['distances from', p.distSource]].forEach(function (kv) {
+      ['lost time per stop', num(p.lostTime, 1) + ' s'], ['cruise speed', speed(p.cruise)],
+      ['traffic delay per trip', p.delay === null ? 'not estimated' : num(p.delay / 60, 1) + ' min'],
+      ['the bus stops', STOPPING[p.stopping] || p.stopping], ['distances from', p.distSource]].forEach(function (kv) {
       facts.appendChild(el('dt', null, kv[0]));
       facts.appendChild(el('dd', null, kv[1]));
     });
