@@ -3,6 +3,9 @@
 // draw on this table, so a new kind without its text fails to compile.
 
 import { StopspanError } from '../common/errors.js';
+import { speedFamily, type SpeedFamily } from '../gtfs/routeTypes.js';
+
+export { speedFamily, type SpeedFamily };
 
 export type Severity = 'error' | 'warning' | 'info';
 
@@ -79,9 +82,6 @@ export function isFindingCode(s: string): s is FindingCode {
   return Object.prototype.hasOwnProperty.call(FINDINGS, s);
 }
 
-/** Speed families by GTFS route_type (basic 0-12 and the extended 100-1700 types). */
-export type SpeedFamily = 'bus' | 'tram' | 'metro' | 'rail' | 'ferry' | 'cable' | 'other';
-
 export interface SpeedLimitKmh {
   minKmh: number;
   maxKmh: number;
@@ -123,37 +123,6 @@ export const DEFAULT_THRESHOLDS: CheckThresholds = {
   slowMinSpanM: 200,
   serviceMinDays: 7,
 };
-
-/** The speed family of a GTFS route_type. */
-export function speedFamily(routeType: number): SpeedFamily {
-  switch (routeType) {
-    case 0:
-    case 5:
-      return 'tram';
-    case 1:
-    case 12:
-      return 'metro';
-    case 2:
-      return 'rail';
-    case 3:
-    case 11:
-      return 'bus';
-    case 4:
-      return 'ferry';
-    case 6:
-    case 7:
-      return 'cable';
-  }
-  if (routeType >= 100 && routeType < 200) return 'rail';
-  if (routeType >= 200 && routeType < 300) return 'bus'; // coach
-  if (routeType >= 400 && routeType < 500) return 'metro';
-  if (routeType >= 700 && routeType < 900) return 'bus'; // bus, trolleybus
-  if (routeType >= 900 && routeType < 1000) return 'tram';
-  if (routeType >= 1000 && routeType < 1100) return 'ferry';
-  if (routeType === 1200) return 'ferry';
-  if (routeType >= 1300 && routeType < 1500) return 'cable';
-  return 'other';
-}
 
 export interface ThresholdOptions {
   twinStopM?: number;

@@ -13,6 +13,7 @@ import { prepareAudit } from './prepareAudit.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
+import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -60,6 +61,14 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const analyses = preps.map((p) => analysePattern(feed, p, params));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   for (const a of analyses) {
+    const family = speedFamily(a.result.routeType);
+    if (family !== 'bus' && family !== 'tram') {
+      warnings.add(
+        'bus-model-off-street',
+        'patterns of subway, rail, ferry or cable routes, audited with the walk-and-ride model built for buses: their stops are spaced for reasons it does not see (track, stations, access by other modes), so read their verdicts and candidates as a screen at most, with parameters of your own',
+        `${a.result.patternId} (${family})`,
+      );
+    }
     for (const g of a.gaps) {
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(

@@ -9,36 +9,27 @@
 // schedule into a slow cruise instead would shrink the braking-and-accelerating loss, and so the optimal
 // spacing, exactly where traffic is worst.
 
+import { speedFamily } from '../gtfs/routeTypes.js';
+
+const MPH25 = 25 * 0.44704; // 11.176 m/s
+
 /** Per-passenger boarding time, 2.75 s [C, Levinson 1983, TRR 915: dwell 5 s + 2.75 s per passenger]. */
 export const BOARDING_TIME_PER_PAX_S = 2.75;
 
 /**
- * Typical and highest plausible cruise speeds (m/s) by GTFS route_type, with extended types grouped by
- * hundreds. Common practice, values from memory; the bus figure is 25 mph, a usual urban street limit and
- * the speed of the HCM 2010 transit delay example.
+ * Typical and highest plausible cruise speeds (m/s) by the family of the GTFS route_type. Common practice,
+ * values from memory; the bus figure is 25 mph, a usual urban street limit and the speed of the HCM 2010
+ * transit delay example.
  */
-const MPH25 = 25 * 0.44704; // 11.176 m/s
-
 export function cruiseSpeedBoundsMps(routeType: number): { typicalMps: number; maxMps: number } {
-  const basic = routeType >= 100 ? extendedToBasic(routeType) : routeType;
-  switch (basic) {
-    case 0: return { typicalMps: MPH25, maxMps: 22 }; // tram, on street
-    case 1: return { typicalMps: 15, maxMps: 30 }; // subway, metro
-    case 2: return { typicalMps: 25, maxMps: 70 }; // rail
-    case 4: return { typicalMps: 8, maxMps: 20 }; // ferry
-    case 3: case 11: return { typicalMps: MPH25, maxMps: 25 }; // bus, trolleybus
-    default: return { typicalMps: 8, maxMps: 30 };
+  switch (speedFamily(routeType)) {
+    case 'bus': return { typicalMps: MPH25, maxMps: 25 }; // bus, trolleybus, coach
+    case 'tram': return { typicalMps: MPH25, maxMps: 22 }; // on street
+    case 'metro': return { typicalMps: 15, maxMps: 30 };
+    case 'rail': return { typicalMps: 25, maxMps: 70 };
+    case 'ferry': return { typicalMps: 8, maxMps: 20 };
+    default: return { typicalMps: 8, maxMps: 30 }; // cable cars, funiculars, other
   }
-}
-
-function extendedToBasic(t: number): number {
-  if (t >= 100 && t < 200) return 2; // railway service
-  if (t >= 400 && t < 500) return 1; // urban railway
-  if (t >= 700 && t < 800) return 3; // bus service
-  if (t >= 900 && t < 1000) return 0; // tram
-  if (t >= 800 && t < 900) return 11; // trolleybus
-  if (t >= 1000 && t < 1300) return 4; // water
-  return 3;
 }
 
 export interface CruiseSpeedInput {

@@ -134,6 +134,16 @@ describe('runAudit', () => {
     expect(o.warnings.some((w) => w.code === 'ridership-stop-missing')).toBe(true); // V2's own stops have no rows
   });
 
+  it('warns when a pattern of a subway or rail route is audited with the bus model', () => {
+    expect(r.warnings.some((w) => w.code === 'bus-model-off-street')).toBe(false); // buses only
+    const net = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80 });
+    net.feed.routes.set('V2', { ...net.feed.routes.get('V2')!, type: 1 }); // V2 becomes a subway line
+    const o = runAudit(net.feed, net.patterns, { params });
+    const w = o.warnings.find((x) => x.code === 'bus-model-off-street');
+    expect(w?.count).toBe(1);
+    expect(w?.examples).toEqual(['V2:0:1 (metro)']);
+  });
+
   it('chooses the stopping model per pattern by the data it has when stopping_model is auto (the default)', () => {
     const dir = mkdtempSync(join(tmpdir(), 'stopspan-audit-'));
     const file = join(dir, 'ridership.csv');
