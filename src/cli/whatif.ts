@@ -10,6 +10,7 @@ import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { whatifHtml } from '../report/whatifHtml.js';
+import { checkUnits } from '../report/units.js';
 import { whatifText } from '../report/whatifText.js';
 import { writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
@@ -28,6 +29,7 @@ interface WhatifOpts {
   params?: string;
   json?: boolean;
   out?: string;
+  units?: string;
   force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
@@ -90,6 +92,7 @@ export function registerWhatif(program: Command): void {
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--json', 'print the result as one JSON document on stdout')
     .option('--out <dir>', 'also write index.html and scenario.json into this folder')
+    .option('--units <system>', 'units people read on the page: metric or imperial', 'metric')
     .option('--force', 'replace the output folder if it exists')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors');
@@ -97,6 +100,7 @@ export function registerWhatif(program: Command): void {
   cmd.action(async (feedArg: string, opts: WhatifOpts) => {
     await runAction(Boolean(opts.verbose), async () => {
       const scenario = scenarioOf(opts);
+      const units = checkUnits(opts.units ?? 'metric');
       if (opts.date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(opts.date)) {
         throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
       }
@@ -122,7 +126,7 @@ export function registerWhatif(program: Command): void {
       if (opts.out) {
         // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
         const { whatifStrips } = await import('../report/whatifStrips.js');
-        const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source });
+        const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
         written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], { force: Boolean(opts.force) });
       }
       process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result) }));

@@ -10,9 +10,7 @@ export const METRES_PER_MILE = 1609.344; // international mile, exactly 1609.344
 
 export function checkUnits(units: unknown): Units {
   if (units === 'metric' || units === 'imperial') return units;
-  throw new StopspanError('bad-option', `invalid option units: expected "metric" or "imperial", got ${JSON.stringify(units)}`, {
-    value: String(units),
-  });
+  throw new StopspanError('bad-option', `invalid option units: expected "metric" or "imperial", got ${JSON.stringify(units)}`); // the value is in the message
 }
 
 export function metresToFeet(m: number): number {

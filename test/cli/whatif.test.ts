@@ -156,4 +156,18 @@ describe('stopspan whatif on the demo feed', () => {
     expect(readdirSync(dir).filter((n) => n.startsWith('.'))).toEqual([]);
     expect(existsSync(join(out, 'index.html'))).toBe(true);
   });
+
+  it('--units imperial writes the page in feet and refuses an unknown system', async () => {
+    const out = join(dir, 'market-imperial');
+    const r = await cli([DEMO, '--scenario', join(FIX, 'market-street.json'), '--out', out, '--units', 'imperial', '--quiet']);
+    expect(r.code).toBe(0);
+    const html = readFileSync(join(out, 'index.html'), 'utf8');
+    // the walking policy of 800 m is 2,625 ft (1 ft = 0.3048 m exactly, NIST SP 811)
+    expect(html).toContain('Largest gap before → after (policy 2,625 ft)');
+    expect(html).toMatch(/\d ft → [\d,]+ ft/);
+    expect(html).not.toMatch(/\d m → /);
+    const bad = await cli([DEMO, '--remove', 'MKT-05-a', '--units', 'furlongs']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toBe('error: invalid option units: expected "metric" or "imperial", got "furlongs"\n');
+  });
 });
