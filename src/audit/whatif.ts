@@ -6,7 +6,7 @@
 // A scenario is checked whole before anything is computed: an unknown or ambiguous stop, a terminal, a
 // coordinate far from the named route, or an unknown key is a 'bad-scenario' error naming the item.
 
-import { readFileSync } from 'node:fs';
+import { readJsonFile } from '../common/readJsonFile.js';
 import { StopspanError } from '../common/errors.js';
 import type { FeedWarning } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
@@ -150,18 +150,7 @@ export function scenarioFromOptions({ remove = [], add = [], move = [] }: { remo
 
 /** Reads a scenario JSON file. */
 export function loadScenarioFile(path: string): ScenarioInput {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (e) {
-    throw new StopspanError('bad-scenario', `cannot read scenario file: ${(e as Error).message}`, { file: path });
-  }
-  let parsed: unknown;
-  try {
-    parsed = JSON.parse(text.replace(/^\uFEFF/, ''));
-  } catch (e) {
-    throw new StopspanError('bad-scenario', `scenario file is not valid JSON: ${(e as Error).message}`, { file: path });
-  }
+  const parsed = readJsonFile(path, 'bad-scenario', 'scenario file');
   return parseScenario(parsed, { file: path });
 }
 

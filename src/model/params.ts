@@ -2,7 +2,7 @@
 // its source label and a short note, so reports can say where every number came from. Options from the
 // CLI and from a --params file both pass through normalizeParams; unknown keys and bad values are refused.
 
-import { readFileSync } from 'node:fs';
+import { readJsonFile } from '../common/readJsonFile.js';
 import { StopspanError } from '../common/errors.js';
 import type { ParamsReport, SourceLabel } from '../audit/types.js';
 
@@ -131,18 +131,7 @@ export function normalizeParams(input: unknown, { file }: { file?: string } = {}
 
 /** Reads a JSON parameters file and normalises it; a file that is not JSON is a 'bad-option' error. */
 export function loadParamsFile(path: string): NormalizedParams {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (e) {
-    throw new StopspanError('bad-option', `cannot read parameters file: ${(e as Error).message}`, { file: path });
-  }
-  let parsed: unknown;
-  try {
-    parsed = JSON.parse(text.replace(/^\uFEFF/, ''));
-  } catch (e) {
-    throw new StopspanError('bad-option', `parameters file is not valid JSON: ${(e as Error).message}`, { file: path });
-  }
+  const parsed = readJsonFile(path, 'bad-option', 'parameters file');
   return normalizeParams(parsed, { file: path });
 }
 
