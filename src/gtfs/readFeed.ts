@@ -10,7 +10,7 @@ import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
 import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
-import { readCsv, type CsvRow } from './csv.js';
+import { readCsv, type CsvGroupKey, type CsvRow } from './csv.js';
 import type { DownloadLimits } from './download.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
@@ -80,6 +80,7 @@ async function table<R extends string, O extends string>(
   required: readonly R[],
   optional: readonly O[],
   onRow: (row: CsvRow, col: Columns<R, O>) => void,
+  groupKey?: CsvGroupKey,
 ): Promise<void> {
   let col = {} as Columns<R, O>;
   const total = ctx.archive.size(file);
@@ -101,6 +102,7 @@ async function table<R extends string, O extends string>(
       col = columnIndex(file, header, required, optional);
     },
     onRow: (row) => onRow(row, col),
+    groupKey,
   });
   ctx.rowCounts[file] = stats.records;
 }
@@ -289,9 +291,10 @@ async function readArchive(
   const lookup: StopTimesLookup = { tripIdx, stopIndex, station };
   // one pass on this thread: inflating already runs beside it on the thread pool; parsing in blocks on
   // two worker threads as well was measured slower in total and no faster in wall time on two cores
-  let reader: StopTimesRowReader | null = null;
-  await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => (reader ??= new StopTimesRowReader(lookup, c, st)).read(row));
-  const atStation = (reader as StopTimesRowReader | null)?.atStation ?? 0;
+  // rows of trips not kept are passed over by the CSV reader, a trip's run at a time
+  const reader = new StopTimesRowReader(lookup, st);
+  await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => reader.read(row, c), { column: 'trip_id', keep: (id) => reader.startTrip(id) });
+  const atStation = reader.atStation;
   if (atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, atStation);
 
   const stopTimes = new Map<string, TripStopTimes>();

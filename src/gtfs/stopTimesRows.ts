@@ -23,28 +23,28 @@ export interface StopTimesSink {
   push(t: number, stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number): void;
 }
 
-/** A record reader for stop_times.txt; `atStation` counts rows naming a station instead of a stop. */
+/**
+ * A record reader for stop_times.txt; `atStation` counts rows naming a station instead of a stop. The CSV
+ * reader hands rows over grouped by trip_id: startTrip() is asked once per run of one trip's rows and
+ * says whether the trip is kept; read() then takes each row of a kept run.
+ */
 export class StopTimesRowReader {
   atStation = 0;
-  // a trip's rows mostly come together: the trip of the row before is checked first, without a new string
-  private lastTripId = '\0';
-  private lastTrip: number | undefined;
+  private trip = -1;
 
   constructor(
     private readonly lookup: StopTimesLookup,
-    private readonly c: StopTimesColumns,
     private readonly sink: StopTimesSink,
   ) {}
 
-  read(row: CsvRow): void {
-    const c = this.c;
+  startTrip(tripId: string): boolean {
+    this.trip = this.lookup.tripIdx.get(tripId) ?? -1;
+    return this.trip >= 0;
+  }
+
+  read(row: CsvRow, c: StopTimesColumns): void {
     const F = STOP_TIMES_FILE;
-    if (!row.equals(c.trip_id, this.lastTripId)) {
-      this.lastTripId = row.get(c.trip_id);
-      this.lastTrip = this.lookup.tripIdx.get(this.lastTripId);
-    }
-    const t = this.lastTrip;
-    if (t === undefined) return;
+    const t = this.trip;
     const stopId = row.get(c.stop_id);
     const s = this.lookup.stopIndex.get(stopId);
     if (s === undefined) throw new StopspanError('bad-reference', 'stop_id is not in stops.txt', { file: F, line: row.line, column: 'stop_id', value: stopId });

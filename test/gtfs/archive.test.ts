@@ -1,10 +1,13 @@
 // Opening feeds: zips (nested folder, unsafe paths, corrupt, truncated, lying sizes, inflation caps),
 // folders, and bad paths. Zips are built with yazl (an independent writer) and damaged byte by byte.
 
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { crc32 } from 'node:zlib';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import yauzl from 'yauzl';
+import yazl from 'yazl';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
@@ -86,6 +89,45 @@ describe('openFeed on zips', () => {
     expect(e.context.file).toContain('agency.txt');
   });
 
+  it('refuses an entry whose deflated body is damaged, naming the entry', async () => {
+    const zip = await zipFolder(BASIC);
+    const buf = readFileSync(zip);
+    // local file header: signature 0x04034b50, compressed size at +18, name length at +26, extra length
+    // at +28, name at +30, data after the extra field [C, PKWARE APPNOTE 4.3.7]
+    const sig = Buffer.from([0x50, 0x4b, 0x03, 0x04]);
+    let damaged = false;
+    for (let p = buf.indexOf(sig); p >= 0; p = buf.indexOf(sig, p + 4)) {
+      const n = buf.readUInt16LE(p + 26);
+      if (buf.toString('latin1', p + 30, p + 30 + n) !== 'stop_times.txt') continue;
+      const data = p + 30 + n + buf.readUInt16LE(p + 28);
+      const size = buf.readUInt32LE(p + 18);
+      expect(buf.readUInt16LE(p + 8)).toBe(8); // deflated
+      for (let k = data + 2; k < data + size - 2; k += 3) buf[k] ^= 0x5a;
+      damaged = true;
+    }
+    expect(damaged).toBe(true);
+    const bad = join(tmp, 'damaged.zip');
+    writeFileSync(bad, buf);
+    const e = await rejected(readFeed(bad));
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.context.file).toContain('stop_times.txt');
+    expect(e.oneLine()).not.toContain('\n');
+  });
+
+  it('reads stored (uncompressed) entries as it reads deflated ones', async () => {
+    const zip = new yazl.ZipFile();
+    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: false });
+    zip.end();
+    const chunks: Buffer[] = [];
+    for await (const c of zip.outputStream) chunks.push(c as Buffer);
+    const stored = join(tmp, 'stored.zip');
+    writeFileSync(stored, Buffer.concat(chunks));
+    const a = await readFeed(stored);
+    const b = await readFeed(await zipFolder(BASIC));
+    expect(a.rowCounts).toEqual(b.rowCounts);
+    expect([...a.stopTimes.keys()]).toEqual([...b.stopTimes.keys()]);
+  });
+
   it('refuses absurd declared sizes and compression ratios, and caps inflated bytes while streaming', async () => {
     const lines: string[] = [];
     for (let k = 0, len = 0; len < 2 * 1024 * 1024; k++) {
@@ -145,5 +187,43 @@ describe('openFeed on paths', () => {
     expect(archive.names()).not.toContain('README.md');
     expect(archive.size('agency.txt')).toBe(readFileSync(join(BASIC, 'agency.txt')).length);
     await archive.close();
+  });
+});
+
+const FEEDS = process.env.STOPSPAN_FEEDS ?? join(import.meta.dirname, '..', '..', '..', 'shared', 'feeds');
+const HAVE_FEEDS = existsSync(join(FEEDS, 'lirr-rail.zip'));
+
+describe.skipIf(!HAVE_FEEDS)('inflating the real feeds', () => {
+  it('gives every table the CRC-32 and size its zip directory records', async () => {
+    // the CRC-32 of each entry's uncompressed bytes, as the writer of the zip computed it, read from the
+    // central directory by yauzl and recomputed with zlib's crc32 [C, PKWARE APPNOTE 4.4.7]
+    const path = join(FEEDS, 'lirr-rail.zip');
+    const want = await new Promise<Map<string, { crc: number; size: number }>>((resolve, reject) => {
+      const m = new Map<string, { crc: number; size: number }>();
+      yauzl.open(path, { lazyEntries: true }, (err, zf) => {
+        if (err || !zf) return reject(err);
+        zf.on('entry', (e: yauzl.Entry) => {
+          m.set(e.fileName, { crc: e.crc32, size: e.uncompressedSize });
+          zf.readEntry();
+        });
+        zf.on('end', () => resolve(m));
+        zf.readEntry();
+      });
+    });
+    const archive = await openFeed(path);
+    try {
+      expect(archive.names().length).toBeGreaterThan(5);
+      for (const name of archive.names()) {
+        let crc = 0;
+        let size = 0;
+        for await (const c of await archive.open(name)) {
+          crc = crc32(c as Buffer, crc);
+          size += (c as Buffer).length;
+        }
+        expect({ crc, size }, name).toEqual(want.get(name));
+      }
+    } finally {
+      await archive.close();
+    }
   });
 });

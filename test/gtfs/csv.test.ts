@@ -64,6 +64,88 @@ const CASES: Record<string, string> = {
   'CR only line breaks': 'a,b\r1,2\r3,4\r',
 };
 
+/** The records our reader hands on when it skips groups by the key column: header, then the kept rows. */
+async function oursGrouped(pieces: Array<string | Buffer>, column: string, keep: (v: string) => boolean): Promise<{ records: string[][]; lines: number[]; asked: string[]; count: number }> {
+  const records: string[][] = [];
+  const lines: number[] = [];
+  const asked: string[] = [];
+  const stats = await readCsv(
+    pieces.map((p) => (typeof p === 'string' ? Buffer.from(p, 'utf8') : p)),
+    {
+      file: 'g.csv',
+      onHeader: (h) => records.push(h),
+      onRow: (row) => {
+        records.push(row.toArray());
+        lines.push(row.line);
+      },
+      groupKey: {
+        column,
+        keep: (v) => {
+          asked.push(v);
+          return keep(v);
+        },
+      },
+    },
+  );
+  return { records, lines, asked, count: stats.records };
+}
+
+describe('the CSV reader skipping groups of rows by a key column', () => {
+  // the rows handed on must be csv-parse's records [csv-parse, reference library] whose key is kept, with
+  // their physical lines; keep() is asked once per run of equal keys; every row is still counted
+  const TEXT = 'trip_id,stop_id,n\nA,s1,1\nA,s2,2\nB,"s,3",3\nB,s4,4\r\nB,s5,5\n\nC,s6,6\nB,s7,7\n"B",s8,8\nA,s9,9';
+  const KEEP = new Set(['A', 'C']);
+
+  it('passes over the rows of refused groups, wherever the text is cut', async () => {
+    const all = oracle(TEXT);
+    const want = [all[0], ...all.slice(1).filter((r) => KEEP.has(r[0]))];
+    // physical lines of the kept rows, counted by hand from TEXT (line 7 is blank)
+    const wantLines = [2, 3, 8, 11];
+    const bytes = Buffer.from(TEXT, 'utf8');
+    for (let cut = 0; cut <= bytes.length; cut++) {
+      const got = await oursGrouped([bytes.subarray(0, cut), bytes.subarray(cut)], 'trip_id', (v) => KEEP.has(v));
+      expect(got.records, `cut at ${cut}`).toEqual(want);
+      expect(got.lines, `cut at ${cut}`).toEqual(wantLines);
+      expect(got.asked, `cut at ${cut}`).toEqual(['A', 'B', 'C', 'B', 'A']);
+      expect(got.count, `cut at ${cut}`).toBe(all.length - 1);
+    }
+  });
+
+  it('with the key in a later column, by the same rule', async () => {
+    const text = 'n,trip_id\n1,A\n2,B\n3,B\n4,A\n';
+    const got = await oursGrouped([text], 'trip_id', (v) => v === 'A');
+    expect(got.records).toEqual([['n', 'trip_id'], ['1', 'A'], ['4', 'A']]);
+    expect(got.asked).toEqual(['A', 'B', 'A']);
+    expect(got.count).toBe(4);
+  });
+
+  it('on random grouped tables in random chunks', async () => {
+    const key = fc.constantFrom('T1', 'T2', 'T10', 'T1x', '"T1"', ' T2');
+    const cell = fc.oneof(fc.stringMatching(/^[a-z0-9]{0,6}$/), fc.stringMatching(/^[a-z,\n ]{0,6}$/).map((s) => `"${s}"`));
+    const row = fc.tuple(key, cell, cell).map((r) => r.join(','));
+    await fc.assert(
+      fc.asyncProperty(fc.array(row, { minLength: 1, maxLength: 30 }), fc.array(fc.nat(400), { maxLength: 4 }), async (rows, cuts) => {
+        const text = 'trip_id,b,c\n' + rows.join('\n') + '\n';
+        const all = oracle(text);
+        const want = [all[0], ...all.slice(1).filter((r) => r[0] === 'T1')];
+        const bytes = Buffer.from(text, 'utf8');
+        const points = [...new Set(cuts.map((c) => c % bytes.length))].sort((a, b) => a - b);
+        const pieces: Buffer[] = [];
+        let prev = 0;
+        for (const p of points) {
+          pieces.push(bytes.subarray(prev, p));
+          prev = p;
+        }
+        pieces.push(bytes.subarray(prev));
+        const got = await oursGrouped(pieces, 'trip_id', (v) => v === 'T1');
+        expect(got.records).toEqual(want);
+        expect(got.count).toBe(all.length - 1);
+      }),
+      { numRuns: 300, seed: 20261202 },
+    );
+  });
+});
+
 describe('the CSV reader agrees with csv-parse', () => {
   for (const [name, text] of Object.entries(CASES)) {
     it(`on ${name}`, async () => {
