@@ -44,26 +44,37 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
       list.push(qi, j);
     }
   });
-  const near = (s: number): Set<number> => {
-    const out = new Set<number>([s]);
+  // the stops within LOCAL_NEAR_M of a stop (itself included), once per stop
+  const nearMemo = new Map<number, number[]>();
+  const near = (s: number): number[] => {
+    let out = nearMemo.get(s);
+    if (out) return out;
+    out = [s];
+    nearMemo.set(s, out);
     const st = stops[s];
     if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) return out;
     const ci = Math.floor(st.lat / CELL_DEG);
     const cj = Math.floor(st.lon / CELL_DEG);
     for (let di = -1; di <= 1; di++) {
       for (let dj = -1; dj <= 1; dj++) {
-        for (const o of grid.get(`${ci + di},${cj + dj}`) ?? []) if (haversineM(st.lat, st.lon, stops[o].lat, stops[o].lon) <= LOCAL_NEAR_M) out.add(o);
+        for (const o of grid.get(`${ci + di},${cj + dj}`) ?? []) if (o !== s && haversineM(st.lat, st.lon, stops[o].lat, stops[o].lon) <= LOCAL_NEAR_M) out.push(o);
       }
     }
     return out;
   };
+  // membership of the two ends' neighbourhoods by stamp: stamp[s] === gen means "near this gap's end"
+  const nearEndA = new Int32Array(stops.length).fill(-1);
+  const nearEndB = new Int32Array(stops.length).fill(-1);
+  let gen = 0;
   return preps.map((prep) => {
     const p = prep.pattern;
     const ids = prep.modelStops.map((j) => p.stopIdx[j]);
     const out: (string | null)[] = [];
-    let nearA = ids.length > 0 ? near(ids[0]) : new Set<number>();
     for (let m = 0; m + 1 < ids.length; m++) {
-      const nearB = near(ids[m + 1]);
+      gen++;
+      const nearA = near(ids[m]);
+      for (const a of nearA) nearEndA[a] = gen;
+      for (const b of near(ids[m + 1])) nearEndB[b] = gen;
       let by: string | null = null;
       for (const a of nearA) {
         const list = at.get(a) ?? [];
@@ -74,17 +85,17 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
           let between = 0;
           for (let j = i + 1; j < q.stopIdx.length && j <= i + MAX_LOCAL_STOPS_IN_GAP; j++) {
             if (q.passengerStop[j] === false) continue;
-            if (nearB.has(q.stopIdx[j])) {
+            const sj = q.stopIdx[j];
+            if (nearEndB[sj] === gen) {
               if (between > 0) by = feed.routes.get(q.routeId)?.shortName || q.routeId;
               break;
             }
-            if (!nearA.has(q.stopIdx[j])) between++;
+            if (nearEndA[sj] !== gen) between++;
           }
         }
         if (by !== null) break;
       }
       out.push(by);
-      nearA = nearB;
     }
     return out;
   });

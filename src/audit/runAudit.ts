@@ -12,7 +12,7 @@ import { paramsReport } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
 import { CAUTIONS } from './cautions.js';
-import { analysePattern } from './verdicts.js';
+import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
@@ -59,7 +59,9 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers });
 
   onProgress?.({ stage: 'verdicts' });
-  const analyses = preps.map((p) => analysePattern(feed, p, params));
+  // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
+  const parts = preps.map((p) => patternParts(p, params));
+  const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   for (const a of analyses) {
     const family = speedFamily(a.result.routeType);
@@ -80,7 +82,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     }
   }
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses });
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
 
   // headline

@@ -6,7 +6,7 @@ import type { Feed } from '../gtfs/types.js';
 import type { Candidate, SensitivityCase } from './types.js';
 import type { ModelParams } from '../model/params.js';
 import type { PreparedPattern } from '../model/preparePattern.js';
-import { analysePattern, type PatternAnalysis } from './verdicts.js';
+import { analysePattern, patternParts, type PatternAnalysis, type PatternParts } from './verdicts.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 
 export interface SensitivitySetting {
@@ -41,10 +41,13 @@ export function runSensitivity(
   {
     settings = sensitivitySettings(params),
     baseAnalyses,
+    parts = preps.map((p) => patternParts(p, params)),
   }: {
     settings?: SensitivitySetting[];
     /** The base audit's analysePattern results for preps (at params' own settings), from which baseCandidates were built. */
     baseAnalyses?: PatternAnalysis[];
+    /** patternParts of each prep, shared with the base audit (computed here when not given). */
+    parts?: PatternParts[];
   } = {},
 ): { cases: SensitivityCase[]; robustKeys: Set<string> } {
   const top = baseCandidates.slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
@@ -52,7 +55,7 @@ export function runSensitivity(
   const cases: SensitivityCase[] = [];
   for (const s of settings) {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
-    const analyses = isBase ? baseAnalyses : preps.map((p) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance }));
+    const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i] }));
     const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));

@@ -11,7 +11,7 @@ import { bandM } from '../model/band.js';
 import { type CostSettings, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
-import { optimiseStops } from '../model/optimiser.js';
+import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
 import { costPerRiderS } from '../model/sqrtLaw.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import type { ModelParams } from '../model/params.js';
@@ -58,13 +58,26 @@ export interface PatternAnalysis {
 
 const S_TO_MIN = 1 / 60;
 
-/** Change in cost from removing model stop m (0 < m < n-1) with both neighbours kept. */
-export function removalEffect(prep: PreparedPattern, m: number, settings: CostSettings): ChangeEffect {
+/**
+ * What a change does to one pattern apart from the walk weight: the metres walked per day on the stretches
+ * it joins or splits (each to be weighted), and the ride and bus time, which the walk weight does not touch.
+ * The sensitivity cases differ in the walk weight only, so these are computed once per pattern.
+ */
+export interface ChangeParts {
+  walkJoinedM: number; // the stretch the change makes (one, for a removal) or unmakes (for an addition)
+  walkSplitLeftM: number;
+  walkSplitRightM: number;
+  rideSavedS: number; // rider-seconds per day
+  runTimeSavedPerTripS: number;
+  ridersAffectedPerDay: number;
+}
+
+/** The walk-weight-free parts of removing model stop m (0 < m < n-1) with both neighbours kept. */
+export function removalParts(prep: PreparedPattern, m: number, settings: CostSettings): ChangeParts {
   const c = prep.corridor;
   const x = c.posM;
   const n = c.n;
   if (!(m > 0 && m < n - 1)) throw new RangeError(`removalEffect: not an intermediate stop: ${m}`);
-  const walkAdded = walkCostS(c, x[m - 1], x[m + 1], settings) - walkCostS(c, x[m - 1], x[m], settings) - walkCostS(c, x[m], x[m + 1], settings);
   const own = servedStopCost(c, x[m - 1], x[m], x[m + 1], m, settings);
   let neighbourCostS = 0;
   let neighbourBusS = 0;
@@ -80,23 +93,22 @@ export function removalEffect(prep: PreparedPattern, m: number, settings: CostSe
     neighbourCostS += after.costS - before.costS;
     neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
   }
-  const rideSavedS = own.costS - neighbourCostS;
   return {
-    netPaxMinPerDay: (walkAdded - rideSavedS) * S_TO_MIN,
-    walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
-    rideSavedPaxMinPerDay: rideSavedS * S_TO_MIN,
+    walkJoinedM: c.walkBetweenM(x[m - 1], x[m + 1]),
+    walkSplitLeftM: c.walkBetweenM(x[m - 1], x[m]),
+    walkSplitRightM: c.walkBetweenM(x[m], x[m + 1]),
+    rideSavedS: own.costS - neighbourCostS,
     runTimeSavedPerTripS: own.busTimePerTripS - neighbourBusS,
     ridersAffectedPerDay: c.boardPerDay[m] + c.alightPerDay[m],
   };
 }
 
-/** Change in cost from adding a stop at position q between model stops m and m+1. */
-export function additionEffect(prep: PreparedPattern, m: number, q: number, settings: CostSettings): ChangeEffect {
+/** The walk-weight-free parts of adding a stop at position q between model stops m and m+1. */
+export function additionParts(prep: PreparedPattern, m: number, q: number, settings: CostSettings): ChangeParts {
   const c = prep.corridor;
   const x = c.posM;
   const n = c.n;
   if (!(m >= 0 && m < n - 1) || !(q >= x[m] && q <= x[m + 1])) throw new RangeError(`additionEffect: position ${q} not in gap ${m}`);
-  const walkAdded = walkCostS(c, x[m], q, settings) + walkCostS(c, q, x[m + 1], settings) - walkCostS(c, x[m], x[m + 1], settings);
   const own = servedStopCost(c, x[m], q, x[m + 1], -1, settings);
   let neighbourCostS = 0;
   let neighbourBusS = 0;
@@ -112,14 +124,64 @@ export function additionEffect(prep: PreparedPattern, m: number, q: number, sett
     neighbourCostS += after.costS - before.costS;
     neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
   }
-  const rideSavedS = -(own.costS + neighbourCostS);
   return {
-    netPaxMinPerDay: (walkAdded - rideSavedS) * S_TO_MIN,
-    walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
-    rideSavedPaxMinPerDay: rideSavedS * S_TO_MIN,
+    walkJoinedM: c.walkBetweenM(x[m], x[m + 1]),
+    walkSplitLeftM: c.walkBetweenM(x[m], q),
+    walkSplitRightM: c.walkBetweenM(q, x[m + 1]),
+    rideSavedS: -(own.costS + neighbourCostS),
     runTimeSavedPerTripS: -(own.busTimePerTripS + neighbourBusS),
     ridersAffectedPerDay: own.endsPerDay,
   };
+}
+
+/** A change's effect at a walk weight, from its parts (walk costs as walkCostS weighs them). */
+function changeEffect(parts: ChangeParts, { walkSpeedMps, walkWeight }: CostSettings, sign: 1 | -1): ChangeEffect {
+  const k = walkWeight / walkSpeedMps;
+  // a removal joins two stretches into one, an addition splits one into two
+  const walkAdded = sign === 1 ? k * parts.walkJoinedM - k * parts.walkSplitLeftM - k * parts.walkSplitRightM : k * parts.walkSplitLeftM + k * parts.walkSplitRightM - k * parts.walkJoinedM;
+  return {
+    netPaxMinPerDay: (walkAdded - parts.rideSavedS) * S_TO_MIN,
+    walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
+    rideSavedPaxMinPerDay: parts.rideSavedS * S_TO_MIN,
+    runTimeSavedPerTripS: parts.runTimeSavedPerTripS,
+    ridersAffectedPerDay: parts.ridersAffectedPerDay,
+  };
+}
+
+/** Change in cost from removing model stop m (0 < m < n-1) with both neighbours kept. */
+export function removalEffect(prep: PreparedPattern, m: number, settings: CostSettings): ChangeEffect {
+  return changeEffect(removalParts(prep, m, settings), settings, 1);
+}
+
+/** Change in cost from adding a stop at position q between model stops m and m+1. */
+export function additionEffect(prep: PreparedPattern, m: number, q: number, settings: CostSettings): ChangeEffect {
+  return changeEffect(additionParts(prep, m, q, settings), settings, -1);
+}
+
+/**
+ * What analysePattern needs of a pattern that no walk weight or band changes: each intermediate stop's
+ * chance of being served and its removal's parts, each gap's addition parts (at its middle), and the
+ * optimiser's result per walk weight once asked for. Built once per pattern and shared by the base audit
+ * and its sensitivity cases.
+ */
+export interface PatternParts {
+  probability: number[]; // per model stop (1 at the ends)
+  removal: (ChangeParts | null)[]; // per model stop; null at the ends and for fixed stops
+  addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
+  optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
+}
+
+export function patternParts(prep: PreparedPattern, params: ModelParams): PatternParts {
+  const { posM, corridor } = prep;
+  const settings = costSettings(prep, params, {});
+  const n = prep.modelStops.length;
+  const probability: number[] = [];
+  const removal: (ChangeParts | null)[] = [];
+  for (let m = 0; m < n; m++) {
+    probability.push(m > 0 && m < n - 1 ? servedStopCost(corridor, posM[m - 1], posM[m], posM[m + 1], m, settings).probability : 1);
+    removal.push(m > 0 && m < n - 1 && prep.fixedReason[m] === '' ? removalParts(prep, m, settings) : null);
+  }
+  return { probability, removal, addition: [], optimised: new Map() };
 }
 
 function median(values: number[]): number {
@@ -170,7 +232,16 @@ export function analysePattern(
   feed: Feed,
   prep: PreparedPattern,
   params: ModelParams,
-  { walkWeight = params.walk_weight, bandTolerance = params.band_tolerance }: { walkWeight?: number; bandTolerance?: number } = {},
+  {
+    walkWeight = params.walk_weight,
+    bandTolerance = params.band_tolerance,
+    parts = patternParts(prep, params),
+  }: {
+    walkWeight?: number;
+    bandTolerance?: number;
+    /** The pattern's walk-weight-free parts (patternParts(prep, params)), when shared between cases. */
+    parts?: PatternParts;
+  } = {},
 ): PatternAnalysis {
   const { pattern, corridor, modelStops, posM, demand } = prep;
   const settings = costSettings(prep, params, { walkWeight });
@@ -199,10 +270,15 @@ export function analysePattern(
   const meanGapM = gapsM.length ? lengthM / gapsM.length : 0;
 
   // the optimiser, with operating cost when set, and today's cost by the same objective
-  const optSettings = costSettings(prep, params, { walkWeight, withOperatingCost: true });
-  const forced = prep.fixedReason.map((r) => r !== '');
-  const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
-  const todayCostS = servedSetCostS(corridor, [...Array(n).keys()], optSettings);
+  let optimised = parts.optimised.get(walkWeight);
+  if (!optimised) {
+    const optSettings = costSettings(prep, params, { walkWeight, withOperatingCost: true });
+    const forced = prep.fixedReason.map((r) => r !== '');
+    const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
+    optimised = { best, todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings) };
+    parts.optimised.set(walkWeight, optimised);
+  }
+  const { best, todayCostS } = optimised;
   // rounding noise of the two sums is not a loss
   const lostS = todayCostS - best.costS;
   const paxMinLostPerDay = lostS > 1e-9 * Math.max(1, todayCostS) ? lostS * S_TO_MIN : 0;
@@ -243,7 +319,7 @@ export function analysePattern(
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
     const gapAfterM = m + 1 < n ? gapsM[m] : null;
     const ends = corridor.boardPerDay[m] + corridor.alightPerDay[m];
-    const prob = m > 0 && m < n - 1 ? servedStopCost(corridor, posM[m - 1], posM[m], posM[m + 1], m, settings).probability : 1;
+    const prob = parts.probability[m];
     const catchmentM = ((gapBeforeM ?? 0) + (gapAfterM ?? 0)) / 2;
     const local = catchmentM > 0 ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, { walkSpeedMps: params.walk_speed_mps, lostTimePerStopS: prep.lostTimePerStopS * prob, walkWeight }) : null;
     const reason = prep.fixedReason[m];
@@ -253,7 +329,7 @@ export function analysePattern(
       verdict = 'fixed';
       fixedStopIdx.push(stopIdx);
     } else {
-      removal = removalEffect(prep, m, settings);
+      removal = changeEffect(parts.removal[m] as ChangeParts, settings, 1);
       const spacing = (gapBeforeM! + gapAfterM!) / 2;
       // close only when the spacing is below the band AND taking the stop out saves riders time: the band
       // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
@@ -295,7 +371,7 @@ export function analysePattern(
     let lon: number | null = null;
     if (wide) {
       wideGaps++;
-      add = additionEffect(prep, m, (posM[m] + posM[m + 1]) / 2, settings);
+      add = changeEffect((parts.addition[m] ??= additionParts(prep, m, (posM[m] + posM[m + 1]) / 2, settings)), settings, -1);
       lat = from && to ? (from.lat + to.lat) / 2 : null;
       lon = from && to ? (from.lon + to.lon) / 2 : null;
       additions.push({ netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });

@@ -37,8 +37,12 @@ export interface FeedArchive {
   has(name: string): boolean;
   /** Uncompressed size in bytes when known. */
   size(name: string): number | undefined;
-  /** Streams one table's bytes, bounded by the limits. */
-  open(name: string): Promise<Readable>;
+  /**
+   * Streams one table's bytes, bounded by the limits. `readAheadBytes` (default 4 MiB) is how far the
+   * stream may run ahead of its reader: opened early with a deep read-ahead, a big table inflates on the
+   * thread pool while this thread still parses the tables before it.
+   */
+  open(name: string, options?: { readAheadBytes?: number }): Promise<Readable>;
   /** sha256 hex of the archive file, or of the folder's .txt files in name order (name, NUL, bytes each). */
   contentHash(): Promise<string>;
   /** Releases the zip file handle and removes a downloaded temporary file. */
@@ -99,17 +103,17 @@ async function openFolder(dir: string, lim: Required<ArchiveLimits>): Promise<Fe
   const sizes = new Map<string, number>();
   for (const f of files) sizes.set(f, (await stat(join(dir, f))).size);
   let total = 0;
-  const counter = (name: string) => new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes);
+  const counter = (name: string, readAheadBytes?: number) => new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, undefined, readAheadBytes);
   return {
     kind: 'folder',
     names: () => [...files],
     has: (n) => sizes.has(n),
     size: (n) => sizes.get(n),
-    async open(name) {
+    async open(name, { readAheadBytes } = {}) {
       if (!sizes.has(name)) throw unreadable(join(dir, name), 'no such table');
       const sz = sizes.get(name)!;
       if (sz > lim.maxEntryBytes) throw tooLarge(name, `${sz} bytes exceeds the per-table cap of ${lim.maxEntryBytes}`);
-      return createReadStream(join(dir, name), { highWaterMark: 1 << 20 }).pipe(counter(name));
+      return createReadStream(join(dir, name), { highWaterMark: 1 << 20 }).pipe(counter(name, readAheadBytes));
     },
     async contentHash() {
       const h = createHash('sha256');
@@ -139,9 +143,10 @@ class ByteCap extends Transform {
     private readonly maxTotal: number,
     /** A zip entry's declared uncompressed size, checked at the end, and how to name the entry. */
     private readonly declared?: { bytes: number; file: string },
+    readAheadBytes = 4 << 20,
   ) {
     // a deep buffer lets inflating (on the thread pool) run ahead while the CSV reader parses
-    super({ readableHighWaterMark: 4 << 20, writableHighWaterMark: 1 << 20 });
+    super({ readableHighWaterMark: Math.max(4 << 20, readAheadBytes), writableHighWaterMark: 1 << 20 });
   }
   override _transform(chunk: Buffer, _enc: BufferEncoding, cb: TransformCallback): void {
     this.seen += chunk.length;
@@ -224,7 +229,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
     names: () => [...tables.keys()].sort(),
     has: (n) => tables.has(n),
     size: (n) => tables.get(n)?.uncompressedSize,
-    async open(name) {
+    async open(name, { readAheadBytes } = {}) {
       const entry = tables.get(name);
       if (!entry) throw unreadable(`${label}:${name}`, 'no such table in the archive');
       const u = entry.uncompressedSize;
@@ -243,7 +248,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
           else resolve(rs);
         });
       });
-      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, { bytes: u, file: `${label}:${name}` });
+      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, { bytes: u, file: `${label}:${name}` }, readAheadBytes);
       const fail = (err: unknown): void => {
         cap.destroy(err instanceof StopspanError ? err : unreadable(`${label}:${name}`, `corrupt or truncated zip entry (${oneLineOf(err)})`));
       };

@@ -5,7 +5,7 @@
 // be wrong (unterminated quote, NUL, over-long record, duplicate header), lenient and counted where it
 // can safely go on (padded values trimmed, invalid UTF-8 replaced, rows with too few or too many fields).
 
-import { isUtf8 } from 'node:buffer';
+import { isAscii, isUtf8 } from 'node:buffer';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 
@@ -541,7 +541,7 @@ export class CsvTableParser {
             keepGroup = (groupKey as CsvGroupKey).keep(lastKey);
             // the next records of a skipped group are passed over unsplit while they start with its key
             // (key in the first column only: the prefix test cannot find a later field)
-            this.core.skipPrefix = !keepGroup && keyColumn === 0 && lastKey !== '' ? lastKey + ',' : null;
+            this.core.skipPrefix = !keepGroup && keyColumn === 0 && lastKey !== '' ? flatString(lastKey + ',') : null;
           }
           if (!keepGroup) return;
         }
@@ -631,7 +631,19 @@ export async function readCsv(
   return { records: stats.records, paddedValues: stats.paddedValues, shortRows: stats.shortRows, longRows: stats.longRows, invalidUtf8: stats.invalidUtf8, bytes: stats.bytes };
 }
 
+/**
+ * A copy of s as one flat string. A key cut from a chunk and joined with a comma is a rope over that
+ * chunk, and startsWith with it as the argument was measured about 65 ns slower per call than with a flat
+ * copy (Manhattan's stop_times.txt, 1.17 M calls: 511 to 435 ms for the whole scan).
+ */
+function flatString(s: string): string {
+  return Buffer.from(s, 'utf8').toString('utf8');
+}
+
 function decode(bytes: Buffer, stats: CsvStats): string {
+  // ASCII text (most GTFS tables) decodes as latin1, byte for byte: three times faster than the UTF-8
+  // decoder, which then has nothing to check (measured: 75 MB in about 30 ms against about 90 ms)
+  if (isAscii(bytes)) return bytes.toString('latin1');
   const text = bytes.toString('utf8');
   if (!isUtf8(bytes)) {
     // count the replacement characters the decoder inserted, beyond any encoded in the input itself

@@ -6,3 +6,4 @@ export * from './download.js';
 export * from './calendar.js';
 export * from './frequencies.js';
 export * from './readFeed.js';
+export * from './stopTimesStore.js';

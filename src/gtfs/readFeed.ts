@@ -8,13 +8,15 @@
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
+import type { Readable } from 'node:stream';
 import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
 import { readCsv, type CsvGroupKey, type CsvRow } from './csv.js';
 import type { DownloadLimits } from './download.js';
 import { tripRunsPerDay } from './frequencies.js';
-import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
-import { FloatColumn, groupAndSort, IntColumn, TripRowBlocks, type RowBlock } from './columns.js';
+import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
+import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
+import { StopTimesStore, TripFolder } from './stopTimesStore.js';
 import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn } from './values.js';
 import { STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesLookup } from './stopTimesRows.js';
 
@@ -43,9 +45,12 @@ export async function readFeed(source: string, { date = 'auto', routes, onProgre
   }
   const { maxRecordChars, ...archiveLimits } = limits;
   const archive = await openFeed(source, { limits: archiveLimits, download, warnings, onProgress });
+  const early = new Map<string, Promise<Readable>>();
   try {
-    return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings });
+    return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings, early });
   } finally {
+    // a table opened early and never read (the reading stopped at an error before it) is let go
+    for (const p of early.values()) p.then((s) => s.destroy(), () => {});
     await archive.close();
   }
 }
@@ -56,6 +61,8 @@ interface Ctx {
   onProgress?: OnProgress;
   maxRecordChars?: number;
   rowCounts: Record<string, number>;
+  /** Tables opened ahead of their turn. */
+  early: Map<string, Promise<Readable>>;
 }
 
 type Columns<R extends string, O extends string> = Record<R, number> & Record<O, number>;
@@ -92,7 +99,9 @@ async function table<R extends string, O extends string>(
   }
   const stage = `read ${file}`;
   ctx.onProgress?.({ stage, done: 0, total, unit: 'bytes' });
-  const stream = await ctx.archive.open(file);
+  const early = ctx.early.get(file);
+  ctx.early.delete(file);
+  const stream = await (early ?? ctx.archive.open(file));
   const stats = await readCsv(stream, {
     file,
     warnings: ctx.warnings,
@@ -105,6 +114,18 @@ async function table<R extends string, O extends string>(
     groupKey,
   });
   ctx.rowCounts[file] = stats.records;
+}
+
+/** How far stop_times.txt may inflate ahead of its reader: 32 MiB. */
+const STOP_TIMES_READ_AHEAD = 32 << 20;
+
+/**
+ * A promise started ahead of its use: a rejection is held until the promise is awaited (and dropped when
+ * reading stops earlier), instead of surfacing as unhandled.
+ */
+function settled<T>(p: Promise<T>): Promise<T> {
+  p.catch(() => {});
+  return p;
 }
 
 function need(file: string, row: CsvRow, i: number, column: string): string {
@@ -122,7 +143,14 @@ function coord(file: string, row: CsvRow, i: number, column: string, limit: numb
 async function readArchive(
   archive: FeedArchive,
   source: string,
-  { date, routes: routeFilter, onProgress, maxRecordChars, warnings }: { date: string; routes?: string[]; onProgress?: OnProgress; maxRecordChars?: number; warnings: WarningSink },
+  {
+    date,
+    routes: routeFilter,
+    onProgress,
+    maxRecordChars,
+    warnings,
+    early,
+  }: { date: string; routes?: string[]; onProgress?: OnProgress; maxRecordChars?: number; warnings: WarningSink; early: Map<string, Promise<Readable>> },
 ): Promise<Feed> {
   for (const t of REQUIRED_TABLES) {
     if (!archive.has(t)) throw new StopspanError('missing-table', `required table ${t} is missing from the feed`, { file: t });
@@ -130,7 +158,17 @@ async function readArchive(
   if (!archive.has('calendar.txt') && !archive.has('calendar_dates.txt')) {
     throw new StopspanError('missing-table', 'the feed has neither calendar.txt nor calendar_dates.txt', { file: 'calendar.txt' });
   }
-  const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {} };
+  const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {}, early };
+  // stop_times.txt, by far the biggest table, starts inflating now, on the thread pool, while this thread
+  // parses the tables it depends on (measured on Manhattan: see README, Speed and memory); the read-ahead
+  // is bounded, so memory is too
+  if (archive.has('stop_times.txt')) {
+    // an error while nobody reads the stream yet is kept in the stream (its reader then throws it), not
+    // raised as an unhandled 'error' event
+    const opening = archive.open('stop_times.txt', { readAheadBytes: STOP_TIMES_READ_AHEAD }).then((s) => s.on('error', () => {}));
+    ctx.early.set('stop_times.txt', settled(opening));
+  }
+  const hashing = settled(archive.contentHash());
 
   // agency.txt [GTFS Schedule reference: agency_name and agency_timezone required; agency_id optional for one agency]
   const agencies: Agency[] = [];
@@ -283,74 +321,41 @@ async function readArchive(
   const noShape = kept.filter((t) => t.shapeId === '').length;
   if (noShape > 0) warnings.add('trip-without-shape', 'trips without a shape_id (distances fall back to stop positions)', kept.find((t) => t.shapeId === '')!.id, noShape);
 
-  // stop_times.txt, kept trips only, into blocks of typed columns, each trip's rows together
-  const st = new TripRowBlocks(kept.length);
+  // stop_times.txt, kept trips only, each trip folded into a shared profile as its run of rows ends
+  const folder = new TripFolder(kept.length);
   const F = 'stop_times.txt';
   const station = new Uint8Array(stops.length);
   for (let k = 0; k < stops.length; k++) if (stops[k].locationType === 1) station[k] = 1;
   const lookup: StopTimesLookup = { tripIdx, stopIndex, station };
   // one pass on this thread: inflating already runs beside it on the thread pool; parsing in blocks on
-  // two worker threads as well was measured slower in total and no faster in wall time on two cores
-  // rows of trips not kept are passed over by the CSV reader, a trip's run at a time
-  const reader = new StopTimesRowReader(lookup, st);
+  // two worker threads as well was measured slower in total and no faster in wall time on two cores.
+  // Rows of trips not kept are passed over by the CSV reader, a trip's run at a time.
+  const reader = new StopTimesRowReader(lookup, folder);
   await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => reader.read(row, c), { column: 'trip_id', keep: (id) => reader.startTrip(id) });
-  const atStation = reader.atStation;
-  if (atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, atStation);
-
-  const stopTimes = new Map<string, TripStopTimes>();
+  folder.finish();
+  if (reader.atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, reader.atStation);
+  if (folder.scattered) warnings.add('stop-times-not-grouped', "stop_times.txt rows are not grouped by trip: each trip's rows were gathered from the whole table (more memory)", F);
+  const stopTimes = new StopTimesStore(
+    kept.map((t) => t.id),
+    tripIdx,
+    folder.profileOfTrip,
+    folder.baseOfTrip,
+    folder.interner.profiles,
+  );
   {
-    let repeated = 0;
     let noTimes = 0;
     let noRows = 0;
-    const add = (k: number, b: RowBlock, a: number, m: number): void => {
-      // each trip's arrays are views into its block: no backing store per trip
-      const rec: TripStopTimes = {
-        stopIdx: b.stop.subarray(a, a + m),
-        seq: b.seq.subarray(a, a + m),
-        arrS: b.arr.subarray(a, a + m),
-        depS: b.dep.subarray(a, a + m),
-        shapeDist: b.dist.subarray(a, a + m),
-        timepoint: b.tp.subarray(a, a + m),
-        noService: b.ns.subarray(a, a + m),
-      };
+    for (let k = 0; k < kept.length; k++) {
+      const id = folder.profileOfTrip[k];
+      if (id < 0) {
+        noRows++;
+        continue;
+      }
       // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
-      if (rec.arrS[0] < 0 || rec.depS[m - 1] < 0) noTimes++;
-      stopTimes.set(kept[k].id, rec);
-    };
-    if (!st.scattered) {
-      // the usual layout, rows grouped by trip: sort each trip's run in place where needed
-      for (let k = 0; k < kept.length; k++) {
-        if (st.tripCount[k] === 0) {
-          noRows++;
-          continue;
-        }
-        st.sortRun(k);
-        // drop rows repeating the previous stop_sequence [GTFS Schedule reference: stop_sequence unique per trip]
-        repeated += st.dropRepeats(k);
-        add(k, st.blocks[st.tripBlock[k]], st.tripStart[k], st.tripCount[k]);
-      }
-    } else {
-      // rows of a trip spread over the table: group them, then copy each trip's rows together
-      const flat = st.flatRows();
-      const n = flat.used;
-      const { order, offsets } = groupAndSort(flat.owner, flat.seq, n, kept.length);
-      const out = new TripRowBlocks(kept.length, Math.max(1, n));
-      for (let k = 0; k < kept.length; k++) {
-        let last = -1;
-        for (let p = offsets[k]; p < offsets[k + 1]; p++) {
-          const r = order[p];
-          if (last >= 0 && flat.seq[last] === flat.seq[r]) {
-            repeated++;
-            continue;
-          }
-          out.push(k, flat.stop[r], flat.seq[r], flat.arr[r], flat.dep[r], flat.dist[r], flat.tp[r], flat.ns[r]);
-          last = r;
-        }
-        if (out.tripCount[k] === 0) noRows++;
-        else add(k, out.blocks[out.tripBlock[k]], out.tripStart[k], out.tripCount[k]);
-      }
+      const p = folder.interner.profiles[id];
+      if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
     }
-    if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
+    if (folder.repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, folder.repeated);
     if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);
     if (noRows > 0) warnings.add('trip-without-stop-times', 'kept trips with no stop_times rows were dropped', F, noRows);
   }
@@ -415,7 +420,7 @@ async function readArchive(
   if (missingShapes.length > 0) warnings.add('shape-not-found', 'shape_id used by trips but absent from shapes.txt', missingShapes[0], missingShapes.length);
 
   onProgress?.({ stage: 'hash feed' });
-  const contentHash = await archive.contentHash();
+  const contentHash = await hashing;
   return {
     source,
     date: analysisDate,

@@ -92,8 +92,11 @@ export interface Feed {
   stops: Stop[];
   stopIndex: Map<string, number>; // stop_id -> index into stops
   trips: Map<string, Trip>;
-  /** stop_times per trip; only the trips kept by the reader's tripFilter (all by default). */
-  stopTimes: Map<string, TripStopTimes>;
+  /**
+   * stop_times per kept trip (read-only). The reader gives a StopTimesStore, which holds each distinct run
+   * of rows once (see stopTimesStore.ts); any Map of TripStopTimes does as well.
+   */
+  stopTimes: ReadonlyMap<string, TripStopTimes>;
   shapes: Map<string, Shape>;
   calendar: CalendarRow[];
   calendarDates: CalendarDate[];

@@ -12,7 +12,8 @@ import { haversineM } from './geodesy.js';
 import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
 import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
 import { simplifyPath } from './simplifyPath.js';
-import { scheduledTimes } from './scheduledTimes.js';
+import { scheduledTimesOfRuns, type TimedRun } from './scheduledTimes.js';
+import { tripProfiles, type TripProfile } from '../gtfs/stopTimesStore.js';
 import { tripInstancesOnDate, type TripRuns as TripInstances } from '../gtfs/frequencies.js';
 
 export interface BuildPatternsOptions {
@@ -32,6 +33,7 @@ interface Group {
   directionId: number;
   stopIdx: Int32Array;
   tripIds: string[];
+  profiles: TripProfile[]; // per trip of tripIds, in the same order once sorted
 }
 
 /**
@@ -64,22 +66,24 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
 
   const instances = tripInstancesOnDate(feed, date);
 
-  // 1. Group trips by (route, direction, ordered stop list).
+  // 1. Group trips by (route, direction, ordered stop list), from the trips' shared profiles.
+  const profiles = tripProfiles(feed.stopTimes);
   const groups = new Map<string, Group>();
-  for (const [tripId, st] of feed.stopTimes) {
+  for (const tripId of feed.stopTimes.keys()) {
     if (!instances.has(tripId)) continue;
     const trip = feed.trips.get(tripId);
     if (!trip) continue;
     if (routeSet && !routeSet.has(trip.routeId)) continue;
-    if (st.stopIdx.length < 2) {
+    const tp = profiles.profile(tripId) as TripProfile;
+    if (tp.profile.stopIdx.length < 2) {
       warnings.add('trip-too-short', 'trip with fewer than two stop_times left out of the patterns', tripId);
       continue;
     }
-    // The stop list as its raw bytes: a compact, exact key.
-    const key = `${trip.routeId}\u0000${trip.directionId}\u0000${Buffer.from(st.stopIdx.buffer, st.stopIdx.byteOffset, st.stopIdx.byteLength).toString('latin1')}`;
+    // profiles with the same stop list share its number: a compact, exact key
+    const key = `${trip.routeId}\u0000${trip.directionId}\u0000${tp.profile.stopList}`;
     let g = groups.get(key);
     if (!g) {
-      g = { routeId: trip.routeId, directionId: trip.directionId, stopIdx: st.stopIdx, tripIds: [] };
+      g = { routeId: trip.routeId, directionId: trip.directionId, stopIdx: tp.profile.stopIdx, tripIds: [], profiles: [] };
       groups.set(key, g);
     }
     g.tripIds.push(tripId);
@@ -91,6 +95,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   // 2. Trips per day and stable ids: n by trips per day descending, ties by first trip id.
   const drafts = [...groups.values()].map((g) => {
     g.tripIds.sort(cmp);
+    g.profiles = g.tripIds.map((t) => profiles.profile(t) as TripProfile);
     let tripsPerDay = 0;
     let nominal = 0;
     for (const t of g.tripIds) {
@@ -184,8 +189,9 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     const { g } = d;
     const shapeId = shapeOf.get(d)!;
     const n = g.stopIdx.length;
-    const repTripId = g.tripIds.find((t) => feed.trips.get(t)!.shapeId === shapeId) ?? g.tripIds[0];
-    const rep = feed.stopTimes.get(repTripId)!;
+    const repAt = Math.max(0, g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId));
+    const repTripId = g.tripIds[repAt];
+    const rep = g.profiles[repAt].profile;
     const stops = Array.from(g.stopIdx, (i) => feed.stops[i]);
 
     let distanceSource: DistanceSource;
@@ -202,14 +208,17 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       const metresPerUnit = shapeMetresPerUnit.get(shapeId);
       if (unitFit && metresPerUnit) {
         let usable = true;
-        for (const t of g.tripIds) {
-          const bt = firstBacktrack(feed.stopTimes.get(t)!.shapeDist);
+        const backtrackOf = new Map<number, number>(); // per profile
+        g.tripIds.forEach((t, k) => {
+          const { profile, profileId } = g.profiles[k];
+          let bt = backtrackOf.get(profileId);
+          if (bt === undefined) backtrackOf.set(profileId, (bt = firstBacktrack(profile.shapeDist)));
           if (bt >= 0) {
             usable = false;
             backtracks.push({ patternId: d.id, tripId: t, stopIndex: bt });
             warnings.add('distance-backtrack', 'shape_dist_traveled decreases along a trip; the pattern is measured by projection instead', `${t} stop ${bt}`);
           }
-        }
+        });
         const metres = usable ? shapeDistToMetres(rep.shapeDist, metresPerUnit) : null;
         if (metres) {
           distAlongM = metres;
@@ -228,7 +237,22 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       path = stops.map((s) => [s.lon, s.lat] as [number, number]);
     }
 
-    const times = scheduledTimes(g.tripIds.map((t) => feed.stopTimes.get(t)!), distAlongM, { warnings, tripIds: g.tripIds });
+    // each distinct profile once, counted by its trips; the untimed are named trip by trip, as they run
+    const runOf = new Map<number, number>();
+    const runs: TimedRun[] = [];
+    const runOfTrip = g.profiles.map(({ profile, profileId }) => {
+      let r = runOf.get(profileId);
+      if (r === undefined) {
+        runOf.set(profileId, (r = runs.length));
+        runs.push({ arrS: profile.arrRel, depS: profile.depRel, trips: 0 });
+      }
+      runs[r].trips++;
+      return r;
+    });
+    const { times, untimed } = scheduledTimesOfRuns(runs, distAlongM);
+    g.tripIds.forEach((t, k) => {
+      if (untimed[runOfTrip[k]]) warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', t);
+    });
 
     const headCounts = new Map<string, number>();
     for (const t of g.tripIds) {

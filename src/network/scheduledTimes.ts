@@ -13,6 +13,13 @@ export interface ScheduledTimes {
   scheduledDwellS: number[];
 }
 
+/** Times of one or more trips with the same rows (seconds; -1 where blank), and how many trips they stand for. */
+export interface TimedRun {
+  arrS: ArrayLike<number>;
+  depS: ArrayLike<number>;
+  trips: number;
+}
+
 /**
  * Scheduled times of the trips of one pattern (same stops in the same order); distAlongM gives the
  * distances used to interpolate blank times. Trips without a time at the first or last stop are left
@@ -30,17 +37,35 @@ export function scheduledTimes(
       throw new RangeError(`scheduledTimes: every trip needs ${n} stop times (one per distance), got ${st.stopIdx.length}`);
     }
   }
-  const gapSamples: number[][] = Array.from({ length: n - 1 }, () => []);
-  const dwellSamples: number[][] = Array.from({ length: n }, () => []);
-  const runSamples: number[] = [];
+  const { times, untimed } = scheduledTimesOfRuns(trips.map((st) => ({ arrS: st.arrS, depS: st.depS, trips: 1 })), distAlongM);
+  untimed.forEach((u, k) => {
+    if (u) warnings?.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds?.[k]);
+  });
+  return times;
+}
+
+/**
+ * The same over runs of rows shared by several trips, each counted as often as it runs: medians equal
+ * those over the trips one by one. `untimed` marks the runs left out (no time at the first or last stop).
+ * Times may count from any origin per run: only differences are taken.
+ */
+export function scheduledTimesOfRuns(runs: TimedRun[], distAlongM: number[]): { times: ScheduledTimes; untimed: boolean[] } {
+  const n = distAlongM.length;
+  const gapSamples: WeightedSamples[] = Array.from({ length: n - 1 }, () => new WeightedSamples());
+  const dwellSamples: WeightedSamples[] = Array.from({ length: n }, () => new WeightedSamples());
+  const runSamples = new WeightedSamples();
   const interpolated = new Array<boolean>(n - 1).fill(false);
+  const untimedRuns: boolean[] = [];
   const arr = new Float64Array(n);
   const dep = new Float64Array(n);
   const filled = new Uint8Array(n);
-  trips.forEach((st, k) => {
+  for (const run of runs) {
+    if (run.arrS.length !== n || run.depS.length !== n) {
+      throw new RangeError(`scheduledTimes: every trip needs ${n} stop times (one per distance), got ${run.arrS.length}`);
+    }
     for (let i = 0; i < n; i++) {
-      const a = st.arrS[i];
-      const dd = st.depS[i];
+      const a = run.arrS[i];
+      const dd = run.depS[i];
       arr[i] = a >= 0 ? a : dd;
       dep[i] = dd >= 0 ? dd : a;
       filled[i] = 0;
@@ -65,23 +90,56 @@ export function scheduledTimes(
     for (let i = 0; i < n; i++) {
       if (arr[i] < 0) untimed = true;
     }
-    if (untimed) {
-      warnings?.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds?.[k]);
-      return;
-    }
+    untimedRuns.push(untimed);
+    if (untimed) continue;
+    const w = run.trips;
     for (let i = 0; i < n - 1; i++) {
-      gapSamples[i].push(arr[i + 1] - dep[i]);
+      gapSamples[i].add(arr[i + 1] - dep[i], w);
       if (filled[i] || filled[i + 1]) interpolated[i] = true;
     }
-    for (let i = 0; i < n; i++) dwellSamples[i].push(dep[i] - arr[i]);
-    runSamples.push(arr[n - 1] - dep[0]);
-  });
+    for (let i = 0; i < n; i++) dwellSamples[i].add(dep[i] - arr[i], w);
+    runSamples.add(arr[n - 1] - dep[0], w);
+  }
   return {
-    gapRunTimeS: gapSamples.map(median),
-    gapTimeInterpolated: interpolated,
-    runTimeS: median(runSamples),
-    scheduledDwellS: dwellSamples.map(median),
+    times: {
+      gapRunTimeS: gapSamples.map((g) => g.median()),
+      gapTimeInterpolated: interpolated,
+      runTimeS: runSamples.median(),
+      scheduledDwellS: dwellSamples.map((d) => d.median()),
+    },
+    untimed: untimedRuns,
   };
+}
+
+/** Values with counts; the median is that of the values repeated by their counts. */
+class WeightedSamples {
+  private readonly values: number[] = [];
+  private readonly counts: number[] = [];
+  private total = 0;
+
+  add(v: number, count: number): void {
+    this.values.push(v);
+    this.counts.push(count);
+    this.total += count;
+  }
+
+  median(): number {
+    if (this.total === 0) return NaN;
+    if (this.values.every((_, k) => this.counts[k] === 1)) return median(this.values);
+    const order = this.values.map((_, k) => k).sort((a, b) => this.values[a] - this.values[b]);
+    // the values at ranks (total - 1) / 2 and total / 2 of the expanded, sorted list
+    const lo = (this.total - 1) >> 1;
+    const hi = this.total >> 1;
+    let seen = 0;
+    let atLo = NaN;
+    for (const k of order) {
+      const next = seen + this.counts[k];
+      if (lo >= seen && lo < next) atLo = this.values[k];
+      if (hi >= seen && hi < next) return (atLo + this.values[k]) / 2;
+      seen = next;
+    }
+    return NaN;
+  }
 }
 
 /** Median of the values (NaN for none). */

@@ -2,7 +2,8 @@
 // interpolated by distance and marked.
 
 import { describe, it, expect } from 'vitest';
-import { median, scheduledTimes } from '../../src/network/scheduledTimes.js';
+import fc from 'fast-check';
+import { median, scheduledTimes, scheduledTimesOfRuns } from '../../src/network/scheduledTimes.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import type { TripStopTimes } from '../../src/gtfs/types.js';
 
@@ -69,5 +70,24 @@ describe('median', () => {
     expect(median([3, 1, 2])).toBe(2);
     expect(median([4, 1, 3, 2])).toBe(2.5);
     expect(median([])).toBeNaN();
+  });
+});
+
+describe('scheduledTimesOfRuns', () => {
+  it('counts a run shared by several trips as that many trips: the same medians as trip by trip', () => {
+    // reference: scheduledTimes over the trips one by one, each run repeated by its count
+    const timeArb = fc.oneof({ weight: 1, arbitrary: fc.constant(-1) }, { weight: 4, arbitrary: fc.integer({ min: 0, max: 5000 }) });
+    const runArb = fc.record({ times: fc.array(fc.tuple(timeArb, timeArb), { minLength: 3, maxLength: 3 }), trips: fc.integer({ min: 1, max: 4 }) });
+    fc.assert(
+      fc.property(fc.array(runArb, { minLength: 1, maxLength: 6 }), (runs) => {
+        const dist = [0, 250, 900];
+        const expanded = runs.flatMap((r) => Array.from({ length: r.trips }, () => trip(r.times as [number, number][])));
+        const want = scheduledTimes(expanded, dist);
+        const got = scheduledTimesOfRuns(runs.map((r) => ({ arrS: r.times.map((t) => t[0]), depS: r.times.map((t) => t[1]), trips: r.trips })), dist);
+        expect(got.times).toEqual(want);
+        expect(got.untimed.length).toBe(runs.length);
+      }),
+      { numRuns: 300, seed: 12 },
+    );
   });
 });

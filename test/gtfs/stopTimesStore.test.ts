@@ -1,0 +1,113 @@
+// Folding stop_times rows into shared profiles while they are read (src/gtfs/stopTimesStore.ts): what the
+// store gives back for each trip must be exactly that trip's rows, grouped, sorted by stop_sequence
+// (stably, ECMA-262's sort is stable [C]) and without repeated stop_sequence values, whatever the order of
+// the rows; trips whose rows differ only by a time shift must share one profile.
+
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
+import type { TripStopTimes } from '../../src/gtfs/types.js';
+
+type Row = { t: number; stop: number; seq: number; arr: number; dep: number; dist: number; tp: number; ns: number };
+
+function fold(rows: Row[], trips: number): { store: StopTimesStore; folder: TripFolder } {
+  const folder = new TripFolder(trips);
+  for (const r of rows) folder.push(r.t, r.stop, r.seq, r.arr, r.dep, r.dist, r.tp, r.ns);
+  folder.finish();
+  const ids = Array.from({ length: trips }, (_, k) => `T${k}`);
+  const store = new StopTimesStore(ids, new Map(ids.map((id, k) => [id, k])), folder.profileOfTrip, folder.baseOfTrip, folder.interner.profiles);
+  return { store, folder };
+}
+
+/** The reference: each trip's rows in arrival order, stably sorted by seq, the first of each seq kept. */
+function reference(rows: Row[], trips: number): { byTrip: Map<string, Row[]>; dropped: number } {
+  const byTrip = new Map<string, Row[]>();
+  let dropped = 0;
+  for (let t = 0; t < trips; t++) {
+    const mine = rows.filter((r) => r.t === t).sort((a, b) => a.seq - b.seq);
+    const kept = mine.filter((r, k) => k === 0 || r.seq !== mine[k - 1].seq);
+    dropped += mine.length - kept.length;
+    if (kept.length > 0) byTrip.set(`T${t}`, kept);
+  }
+  return { byTrip, dropped };
+}
+
+function plain(st: TripStopTimes): Omit<Row, 't'>[] {
+  return Array.from(st.stopIdx, (stop, q) => ({ stop, seq: st.seq[q], arr: st.arrS[q], dep: st.depS[q], dist: st.shapeDist[q], tp: st.timepoint[q], ns: st.noService[q] }));
+}
+
+const rowArb = fc.record({
+  t: fc.nat(5),
+  stop: fc.nat(8),
+  seq: fc.integer({ min: 0, max: 9 }),
+  arr: fc.oneof(fc.constant(-1), fc.integer({ min: 0, max: 100_000 })),
+  dep: fc.oneof(fc.constant(-1), fc.integer({ min: 0, max: 100_000 })),
+  dist: fc.oneof(fc.constant(NaN), fc.double({ min: 0, max: 1e5, noNaN: true })),
+  tp: fc.integer({ min: 0, max: 1 }),
+  ns: fc.integer({ min: 0, max: 1 }),
+});
+
+describe('the folded stop_times store', () => {
+  it('gives back every trip its own rows, sorted and without repeats, grouped or scattered', () => {
+    fc.assert(
+      fc.property(fc.array(rowArb, { maxLength: 80 }), fc.boolean(), (raw, grouped) => {
+        // grouped: rows sorted by trip (stably), the usual layout of stop_times.txt
+        const rows = grouped ? [...raw].sort((a, b) => a.t - b.t) : raw;
+        const { store, folder } = fold(rows, 6);
+        const want = reference(rows, 6);
+        expect(folder.repeated).toBe(want.dropped);
+        expect(store.size).toBe(want.byTrip.size);
+        expect([...store.keys()]).toEqual([...want.byTrip.keys()]);
+        for (const [id, mine] of want.byTrip) {
+          expect(plain(store.get(id)!)).toEqual(mine.map(({ t: _t, ...r }) => r));
+        }
+        const reappears = rows.some((r, i) => i > 0 && rows[i - 1].t !== r.t && rows.slice(0, i).some((u) => u.t === r.t));
+        expect(folder.scattered).toBe(reappears);
+      }),
+      { numRuns: 400, seed: 20261202 },
+    );
+  });
+
+  it('holds trips that differ only by a time shift as one profile, and tells different ones apart', () => {
+    const rows: Row[] = [];
+    const trip = (t: number, start: number, dwell = 30, lastStop = 3) => {
+      rows.push({ t, stop: 1, seq: 1, arr: start, dep: start, dist: 0, tp: 1, ns: 0 });
+      rows.push({ t, stop: 2, seq: 2, arr: start + 120, dep: start + 120 + dwell, dist: 410.5, tp: 0, ns: 0 });
+      rows.push({ t, stop: lastStop, seq: 3, arr: start + 300, dep: -1, dist: 900, tp: 1, ns: 0 });
+    };
+    trip(0, 6 * 3600);
+    trip(1, 6 * 3600 + 600);
+    trip(2, 25 * 3600); // after midnight, as GTFS allows
+    trip(3, 7 * 3600, 45); // another dwell: another profile
+    trip(4, 8 * 3600, 30, 4); // another last stop: another stop list too
+    const { store } = fold(rows, 5);
+    const p = [0, 1, 2, 3, 4].map((k) => store.profile(`T${k}`)!);
+    expect(new Set(p.map((x) => x.profileId)).size).toBe(3);
+    expect(p[1].profileId).toBe(p[0].profileId);
+    expect(p[2].profileId).toBe(p[0].profileId);
+    expect(p[3].profileId).not.toBe(p[0].profileId);
+    expect(p[3].profile.stopList).toBe(p[0].profile.stopList);
+    expect(p[4].profile.stopList).not.toBe(p[0].profile.stopList);
+    expect(p.map((x) => x.baseS)).toEqual([21600, 22200, 90000, 25200, 28800]);
+    expect([...store.get('T2')!.arrS]).toEqual([90000, 90120, 90300]);
+    expect([...store.get('T2')!.depS]).toEqual([90000, 90150, -1]);
+    expect(store.get('T9')).toBeUndefined();
+    expect(store.has('T4')).toBe(true);
+  });
+
+  it('profiles a Map built by hand the same way', () => {
+    const st = (start: number): TripStopTimes => ({
+      stopIdx: Int32Array.from([4, 5]),
+      seq: Int32Array.from([1, 2]),
+      arrS: Int32Array.from([start, start + 90]),
+      depS: Int32Array.from([start, start + 90]),
+      shapeDist: Float64Array.from([NaN, NaN]),
+      timepoint: Uint8Array.from([1, 1]),
+      noService: Uint8Array.from([0, 0]),
+    });
+    const of = tripProfiles(new Map([['a', st(100)], ['b', st(700)]]));
+    expect(of.profile('a')!.profileId).toBe(of.profile('b')!.profileId);
+    expect(of.profile('b')!.baseS).toBe(700);
+    expect([...of.profile('b')!.profile.arrRel]).toEqual([0, 90]);
+  });
+});
