@@ -9,7 +9,8 @@
 //                                                        readFeed, buildPatterns, runAudit, writeReport
 //
 // On exit the process writes one JSON object to the file named by $BENCH_RESULT (or to stdout when unset):
-// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, stageMs, stageCpuMs, exitCode, error }. wallMs counts from the start of
+// { mode, rows, wallMs, userMs, sysMs, cpuMs, maxRssMB, stageMs, stageCpuMs, heldMB, exitCode, error }; heldMB
+// (stages only) is the JavaScript heap plus buffers still in use after the last stage, once collected. wallMs counts from the start of
 // the process (performance.timeOrigin), so node's own start-up is included in every measurement alike.
 
 import fs from 'node:fs';
@@ -27,6 +28,7 @@ let rows = null;
 let error = null;
 let stageMs = null;
 let stageCpuMs = null;
+let heldMB = null;
 
 process.on('exit', (code) => {
   const ru = process.resourceUsage(); // user/system CPU in microseconds, maxRSS in kilobytes
@@ -40,6 +42,7 @@ process.on('exit', (code) => {
     maxRssMB: ru.maxRSS / 1024,
     stageMs,
     stageCpuMs,
+    heldMB,
     exitCode: code,
     error,
   };
@@ -160,6 +163,19 @@ async function stages(feedPath, out) {
   lap('runAudit');
   await writeReport(result, out, { force: true });
   lap('writeReport');
+  // what the audit holds once done, garbage collected away (the process runs with --expose-gc): the feed,
+  // its patterns and the result are all still referenced here
+  if (typeof globalThis.gc === 'function') {
+    // let the writes' buffers go first (a turn of the event loop), then collect
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    globalThis.gc();
+    // native memory (inflate state, file buffers) is released by finalizers after the first collection
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    globalThis.gc();
+    const m = process.memoryUsage();
+    heldMB = (m.heapUsed + m.external) / 2 ** 20;
+  }
+  if (!feedData || !patterns || !result) throw new Error('a stage returned nothing');
 }
 
 try {

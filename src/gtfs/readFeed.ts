@@ -128,6 +128,11 @@ function settled<T>(p: Promise<T>): Promise<T> {
   return p;
 }
 
+/** s as a string of its own, not a slice keeping a larger one alive. */
+function flatCopy(s: string): string {
+  return s.length === 0 ? '' : Buffer.from(s, 'utf8').toString('utf8');
+}
+
 function need(file: string, row: CsvRow, i: number, column: string): string {
   const v = row.get(i);
   if (v === '') throw new StopspanError('bad-value', `${column} is required but blank`, { file, line: row.line, column, value: '' });
@@ -239,9 +244,19 @@ async function readArchive(
 
   // trips.txt
   const allTrips = new Map<string, Trip>();
+  // route, service, headsign and shape repeat from trip to trip: one string each, shared, instead of one
+  // cut from the text per trip (which also keeps the whole text it was cut from alive)
+  const strings = new Map<string, string>();
+  const shared = (v: string): string => {
+    const have = strings.get(v);
+    if (have !== undefined) return have;
+    const own = flatCopy(v);
+    strings.set(own, own);
+    return own;
+  };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
-    const id = need('trips.txt', row, c.trip_id, 'trip_id');
+    const id = flatCopy(need('trips.txt', row, c.trip_id, 'trip_id'));
     const routeId = row.get(c.route_id);
     if (!routes.has(routeId)) {
       unknownRoute++;
@@ -249,7 +264,7 @@ async function readArchive(
     }
     if (allTrips.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
     const directionId = intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1);
-    allTrips.set(id, { id, routeId, serviceId: row.get(c.service_id), directionId, headsign: row.get(c.trip_headsign), shapeId: row.get(c.shape_id) });
+    allTrips.set(id, { id, routeId: shared(routeId), serviceId: shared(row.get(c.service_id)), directionId, headsign: shared(row.get(c.trip_headsign)), shapeId: shared(row.get(c.shape_id)) });
   });
   if (allTrips.size === 0 && unknownRoute > 0) {
     throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });
