@@ -18,8 +18,12 @@ export const LOCAL_NEAR_M = 150;
 const MAX_LOCAL_STOPS_IN_GAP = 15;
 const CELL_DEG = 0.002; // grid cell of the stop index, about 220 m north-south
 
-/** Per prepared pattern, per model gap: the short name (else id) of a route serving it as a local, or null. */
-export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: PreparedPattern[]): (string | null)[][] {
+/**
+ * Per prepared pattern, a function of the model gap: the short name (else id) of a route serving it as a
+ * local, or null. The stops are indexed here; each gap is searched when first asked for (the audit asks
+ * only for gaps above the band, a small share), and the answer kept.
+ */
+export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: PreparedPattern[]): ((m: number) => string | null)[] {
   const patterns = patternSet.patterns;
   const stops = feed.stops;
   // stop -> (pattern, position) pairs, passenger stops only; and a grid of the stops served
@@ -66,11 +70,9 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
   const nearEndA = new Int32Array(stops.length).fill(-1);
   const nearEndB = new Int32Array(stops.length).fill(-1);
   let gen = 0;
-  return preps.map((prep) => {
+  const search = (prep: PreparedPattern, ids: number[], m: number): string | null => {
     const p = prep.pattern;
-    const ids = prep.modelStops.map((j) => p.stopIdx[j]);
-    const out: (string | null)[] = [];
-    for (let m = 0; m + 1 < ids.length; m++) {
+    {
       gen++;
       const nearA = near(ids[m]);
       for (const a of nearA) nearEndA[a] = gen;
@@ -95,8 +97,17 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
         }
         if (by !== null) break;
       }
-      out.push(by);
+      return by;
     }
-    return out;
+  };
+  return preps.map((prep) => {
+    const ids = prep.modelStops.map((j) => prep.pattern.stopIdx[j]);
+    const known = new Map<number, string | null>();
+    return (m: number): string | null => {
+      if (!(m >= 0 && m + 1 < ids.length)) return null;
+      let by = known.get(m);
+      if (by === undefined) known.set(m, (by = search(prep, ids, m)));
+      return by;
+    };
   });
 }

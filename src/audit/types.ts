@@ -59,7 +59,7 @@ export interface GapResult {
   toStopId: string;
   gapM: number;
   wide: boolean; // above the band's upper edge, and not served by a local route (see coveredByLocal)
-  /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null. */
+  /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null; looked for only in gaps above the band. */
   coveredByLocal: string | null;
   overMaxGap: boolean; // above the max_gap_m walking policy
   addNetPaxMinPerDay: number | null; // change in total riders' time if a stop is added mid-gap (wide gaps only)

@@ -334,7 +334,7 @@ export function analysePattern(
       // close only when the spacing is below the band AND taking the stop out saves riders time: the band
       // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
       if (hasOptimum && spacing < band.lowM && removal.netPaxMinPerDay < 0) verdict = 'close';
-      else if (hasOptimum && spacing > band.highM && [m - 1, m].some((g) => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover[g] === null)) verdict = 'wide';
+      else if (hasOptimum && spacing > band.highM && [m - 1, m].some((g) => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null)) verdict = 'wide';
       removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
     }
     if (verdict === 'close') closeStops++;
@@ -362,7 +362,8 @@ export function analysePattern(
   let wideGaps = 0;
   for (let m = 0; m + 1 < n; m++) {
     const gapM = gapsM[m];
-    const coveredByLocal = prep.gapLocalCover[m] ?? null;
+    // asked only above the band, where it decides: a short gap is not wide whoever serves it
+    const coveredByLocal = hasOptimum && gapM > band.highM ? prep.gapLocalCover(m) : null;
     const wide = hasOptimum && gapM > band.highM && coveredByLocal === null;
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];

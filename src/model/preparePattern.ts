@@ -30,8 +30,8 @@ export interface PreparedPattern {
   observedShare: (number | null)[] | undefined; // per model stop
   stoppingModel: StoppingModel; // the model used on this pattern (auto resolved)
   trafficDelayS: number | null; // run time per trip the schedule holds beyond driving, stops and boarding; null unless estimated
-  /** Per model gap, a route serving it as a local (stops of its own between the ends), or null; set by the audit. */
-  gapLocalCover: (string | null)[];
+  /** For model gap m, a route serving it as a local (stops of its own between the ends), or null; set by the audit. */
+  gapLocalCover: (m: number) => string | null;
   fixedReason: FixedReason[]; // per model stop
 }
 
@@ -153,7 +153,7 @@ export function preparePattern(
     observedShare,
     stoppingModel,
     trafficDelayS,
-    gapLocalCover: modelStops.slice(1).map(() => null),
+    gapLocalCover: () => null,
     fixedReason,
   };
 }

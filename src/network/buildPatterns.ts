@@ -87,6 +87,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       groups.set(key, g);
     }
     g.tripIds.push(tripId);
+    g.profiles.push(tp);
   }
   if (groups.size === 0) {
     throw new StopspanError('empty-feed', `no trips with stop_times run on ${date}${routeSet ? ' on the routes asked for' : ''}`, { value: date });
@@ -94,8 +95,10 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
 
   // 2. Trips per day and stable ids: n by trips per day descending, ties by first trip id.
   const drafts = [...groups.values()].map((g) => {
-    g.tripIds.sort(cmp);
-    g.profiles = g.tripIds.map((t) => profiles.profile(t) as TripProfile);
+    // trips by id, their profiles alongside
+    const order = g.tripIds.map((_, k) => k).sort((a, b) => cmp(g.tripIds[a], g.tripIds[b]));
+    g.tripIds = order.map((k) => g.tripIds[k]);
+    g.profiles = order.map((k) => g.profiles[k]);
     let tripsPerDay = 0;
     let nominal = 0;
     for (const t of g.tripIds) {

@@ -113,8 +113,8 @@ export function scheduledTimesOfRuns(runs: TimedRun[], distAlongM: number[]): { 
 
 /** Values with counts; the median is that of the values repeated by their counts. */
 class WeightedSamples {
-  private readonly values: number[] = [];
-  private readonly counts: number[] = [];
+  private values: number[] = [];
+  private counts: number[] = [];
   private total = 0;
 
   add(v: number, count: number): void {
@@ -125,17 +125,31 @@ class WeightedSamples {
 
   median(): number {
     if (this.total === 0) return NaN;
-    if (this.values.every((_, k) => this.counts[k] === 1)) return median(this.values);
-    const order = this.values.map((_, k) => k).sort((a, b) => this.values[a] - this.values[b]);
+    const v = this.values;
+    const c = this.counts;
+    // insertion sort of the (value, count) pairs: a pattern has few distinct runs, and this allocates
+    // nothing (a comparator sort of an index array, allocated per call, led the pattern stage's profile)
+    for (let i = 1; i < v.length; i++) {
+      const x = v[i];
+      const w = c[i];
+      let j = i - 1;
+      while (j >= 0 && v[j] > x) {
+        v[j + 1] = v[j];
+        c[j + 1] = c[j];
+        j--;
+      }
+      v[j + 1] = x;
+      c[j + 1] = w;
+    }
     // the values at ranks (total - 1) / 2 and total / 2 of the expanded, sorted list
     const lo = (this.total - 1) >> 1;
     const hi = this.total >> 1;
     let seen = 0;
     let atLo = NaN;
-    for (const k of order) {
-      const next = seen + this.counts[k];
-      if (lo >= seen && lo < next) atLo = this.values[k];
-      if (hi >= seen && hi < next) return (atLo + this.values[k]) / 2;
+    for (let k = 0; k < v.length; k++) {
+      const next = seen + c[k];
+      if (lo >= seen && lo < next) atLo = v[k];
+      if (hi >= seen && hi < next) return hi === lo ? atLo : (atLo + v[k]) / 2;
       seen = next;
     }
     return NaN;

@@ -4,6 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Pattern } from '../../src/network/types.js';
 import type { Stop } from '../../src/gtfs/types.js';
+import type { PreparedPattern } from '../../src/model/preparePattern.js';
 import { prepareAudit } from '../../src/audit/prepareAudit.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { LOCAL_NEAR_M } from '../../src/audit/localCover.js';
@@ -43,8 +44,11 @@ function withLimited({ localTrips = 60, limitedTrips = 60, offsetNorthM = 0, rev
 
 const coverOfX = (net: ReturnType<typeof withLimited>) => {
   const { preps } = prepareAudit(net.feed, net.patterns, { params });
-  return preps.find((p) => p.pattern.id === 'X:0:1')!.gapLocalCover;
+  return gapCovers(preps.find((p) => p.pattern.id === 'X:0:1')!);
 };
+
+/** The cover of each model gap of a prepared pattern. */
+const gapCovers = (prep: PreparedPattern) => prep.modelStops.slice(1).map((_, m) => prep.gapLocalCover(m));
 
 describe('gaps served by a local', () => {
   it('finds the local behind each gap of the limited pattern, and not the other way round', () => {
@@ -52,7 +56,7 @@ describe('gaps served by a local', () => {
     expect(coverOfX(net)).toEqual(['1', '1']);
     const { preps } = prepareAudit(net.feed, net.patterns, { params });
     // the local's own gaps have no local beside them: the limited pattern skips stops, it serves none between
-    expect(preps.find((p) => p.pattern.id === 'V1:0:1')!.gapLocalCover.every((c) => c === null)).toBe(true);
+    expect(gapCovers(preps.find((p) => p.pattern.id === 'V1:0:1')!).every((c) => c === null)).toBe(true);
   });
 
   it('does not flag them wide, proposes no stop in them, and says so', () => {
