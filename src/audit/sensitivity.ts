@@ -55,7 +55,7 @@ export function runSensitivity(
   const cases: SensitivityCase[] = [];
   for (const s of settings) {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
-    const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i] }));
+    const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }));
     const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));

@@ -236,9 +236,12 @@ export function analysePattern(
     walkWeight = params.walk_weight,
     bandTolerance = params.band_tolerance,
     parts = patternParts(prep, params),
+    detail = true,
   }: {
     walkWeight?: number;
     bandTolerance?: number;
+    /** false: only the pattern's figures, changes and counts, without the per-stop and per-gap rows (stops, gaps and costCurve left empty), as the sensitivity cases need. */
+    detail?: boolean;
     /** The pattern's walk-weight-free parts (patternParts(prep, params)), when shared between cases. */
     parts?: PatternParts;
   } = {},
@@ -261,7 +264,7 @@ export function analysePattern(
   const band = hasOptimum ? bandM(opt.spacingM, bandTolerance) : { lowM: 0, highM: Infinity };
   const lawInput = { walkSpeedMps: params.walk_speed_mps, walkWeight, lostTimePerStopS: opt.effectiveLostTimeS, meanTripLengthM: prep.meanTripLengthM };
   const costCurve: CostCurvePoint[] = [];
-  if (hasOptimum) {
+  if (hasOptimum && detail) {
     for (let k = 0; k <= 30; k++) {
       const spacingM = opt.spacingM * (0.25 + (k * 2.75) / 30);
       costCurve.push({ spacingM, costPerRiderS: costPerRiderS(spacingM, lawInput) });
@@ -295,7 +298,7 @@ export function analysePattern(
     const stopIdx = pattern.stopIdx[j];
     const stop = feed.stops[stopIdx];
     const m = modelPosOf.get(j);
-    const base: StopBase = {
+    const base = (): StopBase => ({
       patternId: pattern.id,
       routeId: pattern.routeId,
       directionId: pattern.directionId,
@@ -309,11 +312,11 @@ export function analysePattern(
       demandSource: demand.demandSource,
       timepoint: pattern.timepoint[j] === true,
       offsetFromShapeM: pattern.offsetFromShapeM[j] ?? null,
-    };
+    });
     if (m === undefined) {
       // not a passenger stop: kept for geometry only
       fixedStopIdx.push(stopIdx);
-      stops.push(stopResult(base, { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail) stops.push(stopResult(base(), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -321,7 +324,7 @@ export function analysePattern(
     const ends = corridor.boardPerDay[m] + corridor.alightPerDay[m];
     const prob = parts.probability[m];
     const catchmentM = ((gapBeforeM ?? 0) + (gapAfterM ?? 0)) / 2;
-    const local = catchmentM > 0 ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, { walkSpeedMps: params.walk_speed_mps, lostTimePerStopS: prep.lostTimePerStopS * prob, walkWeight }) : null;
+    const local = detail && catchmentM > 0 ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, { walkSpeedMps: params.walk_speed_mps, lostTimePerStopS: prep.lostTimePerStopS * prob, walkWeight }) : null;
     const reason = prep.fixedReason[m];
     let verdict: Verdict = 'ok';
     let removal: ChangeEffect | null = null;
@@ -338,8 +341,9 @@ export function analysePattern(
       removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
     }
     if (verdict === 'close') closeStops++;
+    if (!detail) continue;
     stops.push(
-      stopResult(base, {
+      stopResult(base(), {
       gapBeforeM,
       gapAfterM,
       boardingsPerDay: corridor.boardPerDay[m],
@@ -377,6 +381,7 @@ export function analysePattern(
       lon = from && to ? (from.lon + to.lon) / 2 : null;
       additions.push({ netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
     }
+    if (!detail) continue;
     gaps.push({
       patternId: pattern.id,
       fromStopIndex: modelStops[m],
