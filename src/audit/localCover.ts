@@ -17,6 +17,7 @@ export const LOCAL_NEAR_M = 150;
 /** How many of the local's stops past the gap's first end are searched for its second end. */
 const MAX_LOCAL_STOPS_IN_GAP = 15;
 const CELL_DEG = 0.002; // grid cell of the stop index, about 220 m north-south
+const M_PER_DEG_LAT = 111_000; // a little under the metres per degree of latitude anywhere (110.6-111.7 km), so the pre-filter never drops a stop inside the radius
 
 /**
  * Per prepared pattern, a function of the model gap: the short name (else id) of a route serving it as a
@@ -59,9 +60,17 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
     if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) return out;
     const ci = Math.floor(st.lat / CELL_DEG);
     const cj = Math.floor(st.lon / CELL_DEG);
+    // a stop more than the radius away north-south or east-west (with a 1 % margin) is out without the
+    // great-circle formula; the formula decides the rest
+    const maxDLat = (1.01 * LOCAL_NEAR_M) / M_PER_DEG_LAT;
+    const maxDLon = maxDLat / Math.max(1e-6, Math.cos((st.lat * Math.PI) / 180));
     for (let di = -1; di <= 1; di++) {
       for (let dj = -1; dj <= 1; dj++) {
-        for (const o of grid.get(`${ci + di},${cj + dj}`) ?? []) if (o !== s && haversineM(st.lat, st.lon, stops[o].lat, stops[o].lon) <= LOCAL_NEAR_M) out.push(o);
+        for (const o of grid.get(`${ci + di},${cj + dj}`) ?? []) {
+          const q = stops[o];
+          if (o === s || Math.abs(q.lat - st.lat) > maxDLat || Math.abs(q.lon - st.lon) > maxDLon) continue;
+          if (haversineM(st.lat, st.lon, q.lat, q.lon) <= LOCAL_NEAR_M) out.push(o);
+        }
       }
     }
     return out;

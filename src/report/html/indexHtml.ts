@@ -128,8 +128,15 @@ function median(values: number[]): number {
   return v.length % 2 ? v[m] : (v[m - 1] + v[m]) / 2;
 }
 
+// one formatter per digit count: toLocaleString with options builds a new one on every call, and the page
+// formats tens of thousands of numbers (it led the page's profile on the Manhattan bus feed)
+const FORMATS = new Map<number, Intl.NumberFormat>();
+
 function fmt(v: number, digits = 0): string {
-  return Number.isFinite(v) ? v.toLocaleString('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits }) : '–';
+  if (!Number.isFinite(v)) return '–';
+  let f = FORMATS.get(digits);
+  if (!f) FORMATS.set(digits, (f = new Intl.NumberFormat('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits })));
+  return f.format(v);
 }
 
 function th(key: string, label: string, numeric = false): string {
