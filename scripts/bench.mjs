@@ -322,13 +322,14 @@ function report(results, opts) {
   const md = [
     `Measured ${date} on ${machine}; median of ${opts.runs} runs (scaling series: at least 5), each in its own process. Floor (a) = inflating stop_times.txt and counting its lines.`,
     '',
-    '| input | stop_times rows | audit wall | audit CPU | audit peak memory | floor (a) wall | CSV reader wall | audit / floor (a) |',
-    '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |',
-    ...results.map((r) =>
-      r.audit.error
-        ? `| ${r.name} | ${fmtInt(r.rows)} | n/a | n/a | n/a | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | n/a |`
-        : `| ${r.name}${star(r)} | ${fmtInt(r.rows)} | ${fmtS(r.audit.wallMs)} s | ${fmtS(r.audit.cpuMs)} s | ${fmtMB(r.audit.maxRssMB)} MB | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | ${fmtX(r.audit.wallMs / r.inflate.wallMs)} |`,
-    ),
+    '| input | stop_times rows | audit wall | audit CPU | audit peak memory | held after the audit | floor (a) wall | CSV reader wall | audit / floor (a) |',
+    '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |',
+    ...results.map((r) => {
+      const heldCell = Number.isFinite(r.stages?.heldMB) ? `${r.stages.heldMB.toFixed(1)} MB` : 'n/a';
+      return r.audit.error
+        ? `| ${r.name} | ${fmtInt(r.rows)} | n/a | n/a | n/a | ${heldCell} | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | n/a |`
+        : `| ${r.name}${star(r)} | ${fmtInt(r.rows)} | ${fmtS(r.audit.wallMs)} s | ${fmtS(r.audit.cpuMs)} s | ${fmtMB(r.audit.maxRssMB)} MB | ${heldCell} | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | ${fmtX(r.audit.wallMs / r.inflate.wallMs)} |`;
+    }),
     ...(fallback ? ['', '\\* the library stages (readFeed, buildPatterns, runAudit, writeReport) in one process, as `stopspan audit` did not run.'] : []),
   ].join('\n');
   log('');
