@@ -177,7 +177,25 @@ describe('readFeed on the Vellmoor fixture', () => {
     for (const order of [groupedReversed, interleaved]) {
       const feed = await readFeed(feedCopy({ 'stop_times.txt': [head, ...order].join('\n') + '\n' }), { date: 'all' });
       expect(plain(feed)).toEqual(plain(base));
+      // rows not grouped by trip are gathered at a cost in memory, and the reader says so
+      expect(warning(feed, 'stop-times-not-grouped') !== undefined).toBe(order === interleaved);
     }
+  });
+
+  it('passes over the rows of trips that do not run on the date, counting them but not reading them', async () => {
+    // T4 runs on Saturdays only: on a Wednesday its rows are skipped whole, so a damaged one is no error;
+    // on a Saturday the same row is read and refused
+    const text = readFileSync(join(BASIC, 'stop_times.txt'), 'utf8');
+    const damaged = text.replace(/^T4,[^,]*,/m, 'T4,99:99:99x,');
+    expect(damaged).not.toBe(text);
+    const dir = feedCopy({ 'stop_times.txt': damaged });
+    const weekday = await readFeed(dir, { date: '2026-09-09' });
+    expect(weekday.rowCounts['stop_times.txt']).toBe(text.trim().split('\n').length - 1);
+    expect(weekday.stopTimes.has('T4')).toBe(false);
+    expect(weekday.stopTimes.has('T1')).toBe(true);
+    const e = await rejected(readFeed(dir, { date: '2026-09-12' }));
+    expect(e.code).toBe('bad-value');
+    expect(e.context).toMatchObject({ file: 'stop_times.txt', column: 'arrival_time' });
   });
 
   it('counts blank direction_id and trips on a service no calendar defines', async () => {
