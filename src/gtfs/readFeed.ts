@@ -256,7 +256,7 @@ async function readArchive(
   };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
-    const id = flatCopy(need('trips.txt', row, c.trip_id, 'trip_id'));
+    const id = need('trips.txt', row, c.trip_id, 'trip_id');
     const routeId = row.get(c.route_id);
     if (!routes.has(routeId)) {
       unknownRoute++;
