@@ -1,6 +1,6 @@
-// Typed storage for the big tables: growable columns (shapes), blocks of stop_times rows kept together
-// per trip (so the Feed's per-trip arrays are views, not copies), and the grouping of rows by owner
-// (trip or shape) sorted by sequence: rows arrive in any order and are never held as one object each.
+// Typed storage for the big tables: growable columns (shapes), growable columns of stop_times rows, and
+// the grouping of rows by owner (trip or shape) sorted by sequence: rows arrive in any order and are
+// never held as one object each.
 
 /** Growable typed column. */
 export class IntColumn {
@@ -60,152 +60,75 @@ export function groupAndSort(owner: Int32Array, seq: Int32Array, n: number, owne
   return { order, offsets };
 }
 
-/** One block of stop_times rows, column by column; rows [0, used) are live. */
-export interface RowBlock {
-  owner: Int32Array;
-  stop: Int32Array;
-  seq: Int32Array;
-  arr: Int32Array;
-  dep: Int32Array;
-  dist: Float64Array;
-  tp: Uint8Array;
-  ns: Uint8Array;
-  used: number;
-}
-
-function newBlock(rows: number): RowBlock {
-  return {
-    owner: new Int32Array(rows),
-    stop: new Int32Array(rows),
-    seq: new Int32Array(rows),
-    arr: new Int32Array(rows),
-    dep: new Int32Array(rows),
-    dist: new Float64Array(rows),
-    tp: new Uint8Array(rows),
-    ns: new Uint8Array(rows),
-    used: 0,
-  };
-}
-
-/** Copies row `from` of block a to row `to` of block b, every column. */
-function copyRow(a: RowBlock, from: number, b: RowBlock, to: number): void {
-  b.owner[to] = a.owner[from];
-  b.stop[to] = a.stop[from];
-  b.seq[to] = a.seq[from];
-  b.arr[to] = a.arr[from];
-  b.dep[to] = a.dep[from];
-  b.dist[to] = a.dist[from];
-  b.tp[to] = a.tp[from];
-  b.ns[to] = a.ns[from];
-}
-
 /**
- * stop_times rows of the kept trips in fixed-size blocks of typed columns, each trip's rows together in
- * one block (a trip cut by a full block is moved whole to the next), so that the per-trip arrays of the
- * Feed can be views into the blocks: no growable column doubling and copying, no second copy per trip.
- * When a trip's rows come back after another trip's (the table is not grouped by trip), `scattered` is
- * set; the rows are all still there, in arrival order (see flatRows), for the general grouping.
+ * stop_times rows as growable typed columns, in arrival order; rows [0, used) are live. The folding
+ * reader (stopTimesStore.ts) holds one trip's rows in one, and a table not grouped by trip in another.
  */
-export class TripRowBlocks {
-  readonly blocks: RowBlock[] = [];
-  /** Per trip: its block, first row in it and row count (valid as one run unless scattered). */
-  readonly tripBlock: Int32Array;
-  readonly tripStart: Int32Array;
-  readonly tripCount: Int32Array;
-  scattered = false;
-  rows = 0;
-  private cur: RowBlock;
-  private last = -1;
+export class RowColumns {
+  owner = new Int32Array(256);
+  stop = new Int32Array(256);
+  seq = new Int32Array(256);
+  arr = new Int32Array(256);
+  dep = new Int32Array(256);
+  dist = new Float64Array(256);
+  tp = new Uint8Array(256);
+  ns = new Uint8Array(256);
+  used = 0;
 
-  constructor(
-    trips: number,
-    private readonly blockRows = 1 << 16,
-  ) {
-    this.tripBlock = new Int32Array(trips).fill(-1);
-    this.tripStart = new Int32Array(trips);
-    this.tripCount = new Int32Array(trips);
-    this.cur = newBlock(blockRows);
-    this.blocks.push(this.cur);
+  push(owner: number, stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number): void {
+    if (this.used === this.stop.length) this.grow();
+    const w = this.used++;
+    this.owner[w] = owner;
+    this.stop[w] = stop;
+    this.seq[w] = seq;
+    this.arr[w] = arr;
+    this.dep[w] = dep;
+    this.dist[w] = dist;
+    this.tp[w] = tp;
+    this.ns[w] = ns;
   }
 
-  push(t: number, stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number): void {
-    let b = this.cur;
-    if (t !== this.last) {
-      if (this.tripCount[t] > 0) this.scattered = true;
-      if (b.used === b.stop.length) b = this.next(0);
-      if (this.tripCount[t] === 0) {
-        this.tripBlock[t] = this.blocks.length - 1;
-        this.tripStart[t] = b.used;
-      }
-      this.last = t;
-    } else if (b.used === b.stop.length) {
-      b = this.next(this.scattered ? 0 : this.tripCount[t]);
-      if (!this.scattered) {
-        this.tripBlock[t] = this.blocks.length - 1;
-        this.tripStart[t] = 0;
+  /** Sorts the rows by stop_sequence (stably, arrival order among equals) and drops repeats; returns how many. */
+  sortAndDedupe(): number {
+    const m = this.used;
+    let sorted = true;
+    for (let q = 1; q < m; q++) if (this.seq[q] < this.seq[q - 1]) sorted = false;
+    if (!sorted) {
+      const order = Array.from({ length: m }, (_, q) => q).sort((x, y) => this.seq[x] - this.seq[y] || x - y);
+      for (const c of this.columns()) {
+        const copy = c.slice(0, m);
+        for (let q = 0; q < m; q++) c[q] = copy[order[q]];
       }
     }
-    const w = b.used++;
-    b.owner[w] = t;
-    b.stop[w] = stop;
-    b.seq[w] = seq;
-    b.arr[w] = arr;
-    b.dep[w] = dep;
-    b.dist[w] = dist;
-    b.tp[w] = tp;
-    b.ns[w] = ns;
-    this.tripCount[t]++;
-    this.rows++;
-  }
-
-  /** Starts a new block, moving the last `move` rows of the current one (the trip being read) into it. */
-  private next(move: number): RowBlock {
-    const old = this.cur;
-    const b = newBlock(Math.max(this.blockRows, 2 * move));
-    for (let q = 0; q < move; q++) copyRow(old, old.used - move + q, b, q);
-    old.used -= move;
-    b.used = move;
-    this.blocks.push(b);
-    this.cur = b;
-    return b;
-  }
-
-  /** Sorts the run of trip t by seq (stably) in place, if it is not sorted already. */
-  sortRun(t: number): void {
-    const b = this.blocks[this.tripBlock[t]];
-    const a = this.tripStart[t];
-    const m = this.tripCount[t];
-    let sorted = true;
-    for (let p = a + 1; p < a + m; p++) if (b.seq[p] < b.seq[p - 1]) sorted = false;
-    if (sorted) return;
-    const order = Array.from({ length: m }, (_, q) => a + q).sort((x, y) => b.seq[x] - b.seq[y] || x - y);
-    const tmp = newBlock(m);
-    for (let q = 0; q < m; q++) copyRow(b, order[q], tmp, q);
-    for (let q = 0; q < m; q++) copyRow(tmp, q, b, a + q);
-  }
-
-  /** Drops rows of trip t's sorted run repeating the previous stop_sequence; returns how many were dropped. */
-  dropRepeats(t: number): number {
-    const b = this.blocks[this.tripBlock[t]];
-    const a = this.tripStart[t];
-    const m = this.tripCount[t];
-    let w = a + 1;
-    for (let p = a + 1; p < a + m; p++) {
-      if (b.seq[p] === b.seq[w - 1]) continue;
-      if (w !== p) copyRow(b, p, b, w);
+    // [GTFS Schedule reference: stop_sequence unique per trip] the first row of a repeated value is kept
+    let w = m > 0 ? 1 : 0;
+    for (let p = 1; p < m; p++) {
+      if (this.seq[p] === this.seq[w - 1]) continue;
+      if (w !== p) for (const c of this.columns()) c[w] = c[p];
       w++;
     }
-    const dropped = m > 0 ? a + m - w : 0;
-    this.tripCount[t] = m - dropped;
-    return dropped;
+    this.used = w;
+    return m - w;
   }
 
-  /** Every live row in arrival order, as one block (for a table not grouped by trip). */
-  flatRows(): RowBlock {
-    const flat = newBlock(this.rows);
-    let w = 0;
-    for (const b of this.blocks) for (let r = 0; r < b.used; r++) copyRow(b, r, flat, w++);
-    flat.used = w;
-    return flat;
+  private columns(): (Int32Array | Float64Array | Uint8Array)[] {
+    return [this.owner, this.stop, this.seq, this.arr, this.dep, this.dist, this.tp, this.ns];
+  }
+
+  private grow(): void {
+    const n = this.stop.length * 2;
+    const g = <T extends Int32Array | Float64Array | Uint8Array>(a: T, make: (k: number) => T): T => {
+      const b = make(n);
+      b.set(a);
+      return b;
+    };
+    this.owner = g(this.owner, (k) => new Int32Array(k));
+    this.stop = g(this.stop, (k) => new Int32Array(k));
+    this.seq = g(this.seq, (k) => new Int32Array(k));
+    this.arr = g(this.arr, (k) => new Int32Array(k));
+    this.dep = g(this.dep, (k) => new Int32Array(k));
+    this.dist = g(this.dist, (k) => new Float64Array(k));
+    this.tp = g(this.tp, (k) => new Uint8Array(k));
+    this.ns = g(this.ns, (k) => new Uint8Array(k));
   }
 }

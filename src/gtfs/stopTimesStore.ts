@@ -5,7 +5,7 @@
 // demo city enlarged sixteen times holds the profiles of the original. A trip's TripStopTimes is rebuilt
 // from its profile when asked for.
 
-import { groupAndSort, TripRowBlocks } from './columns.js';
+import { groupAndSort, RowColumns } from './columns.js';
 import type { StopTimesSink } from './stopTimesRows.js';
 import type { TripStopTimes } from './types.js';
 
@@ -226,79 +226,6 @@ export function tripProfiles(stopTimes: ReadonlyMap<string, TripStopTimes>): Pic
   };
 }
 
-/** A growable set of typed columns holding the rows of the trip being read. */
-class Scratch implements RowRun {
-  stop = new Int32Array(256);
-  seq = new Int32Array(256);
-  arr = new Int32Array(256);
-  dep = new Int32Array(256);
-  dist = new Float64Array(256);
-  tp = new Uint8Array(256);
-  ns = new Uint8Array(256);
-  order: number[] = [];
-  used = 0;
-
-  push(stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number): void {
-    if (this.used === this.stop.length) this.grow();
-    const w = this.used++;
-    this.stop[w] = stop;
-    this.seq[w] = seq;
-    this.arr[w] = arr;
-    this.dep[w] = dep;
-    this.dist[w] = dist;
-    this.tp[w] = tp;
-    this.ns[w] = ns;
-  }
-
-  private grow(): void {
-    const n = this.stop.length * 2;
-    const g = <T extends Int32Array | Float64Array | Uint8Array>(a: T, make: (n: number) => T): T => {
-      const b = make(n);
-      b.set(a);
-      return b;
-    };
-    this.stop = g(this.stop, (k) => new Int32Array(k));
-    this.seq = g(this.seq, (k) => new Int32Array(k));
-    this.arr = g(this.arr, (k) => new Int32Array(k));
-    this.dep = g(this.dep, (k) => new Int32Array(k));
-    this.dist = g(this.dist, (k) => new Float64Array(k));
-    this.tp = g(this.tp, (k) => new Uint8Array(k));
-    this.ns = g(this.ns, (k) => new Uint8Array(k));
-  }
-
-  /** Sorts the rows by stop_sequence (stably, arrival order among equals) and drops repeats; returns how many. */
-  sortAndDedupe(): number {
-    const m = this.used;
-    let sorted = true;
-    for (let q = 1; q < m; q++) if (this.seq[q] < this.seq[q - 1]) sorted = false;
-    if (!sorted) {
-      const order = Array.from({ length: m }, (_, q) => q).sort((x, y) => this.seq[x] - this.seq[y] || x - y);
-      const cols = [this.stop, this.seq, this.arr, this.dep, this.dist, this.tp, this.ns];
-      for (const c of cols) {
-        const copy = c.slice(0, m);
-        for (let q = 0; q < m; q++) c[q] = copy[order[q]];
-      }
-    }
-    // [GTFS Schedule reference: stop_sequence unique per trip] the first row of a repeated value is kept
-    let w = m > 0 ? 1 : 0;
-    for (let p = 1; p < m; p++) {
-      if (this.seq[p] === this.seq[w - 1]) continue;
-      if (w !== p) {
-        this.stop[w] = this.stop[p];
-        this.seq[w] = this.seq[p];
-        this.arr[w] = this.arr[p];
-        this.dep[w] = this.dep[p];
-        this.dist[w] = this.dist[p];
-        this.tp[w] = this.tp[p];
-        this.ns[w] = this.ns[p];
-      }
-      w++;
-    }
-    this.used = w;
-    return m - w;
-  }
-}
-
 /**
  * Where stop_times rows go while read: the rows of the trip being read are kept until its run ends, then
  * sorted, cleared of repeated stop_sequence values and folded into a profile. When a trip's rows come
@@ -312,9 +239,9 @@ export class TripFolder implements StopTimesSink {
   readonly baseOfTrip: Int32Array;
   /** Rows dropped for repeating their trip's previous stop_sequence. */
   repeated = 0;
-  private readonly scratch = new Scratch();
+  private readonly scratch = new RowColumns();
   private cur = -1;
-  private spill: TripRowBlocks | null = null;
+  private spill: RowColumns | null = null;
 
   constructor(private readonly trips: number) {
     this.profileOfTrip = new Int32Array(trips).fill(-1);
@@ -330,13 +257,13 @@ export class TripFolder implements StopTimesSink {
       this.cur = t;
       if (this.profileOfTrip[t] >= 0) {
         // this trip's rows came before: from here on, hold rows whole (its own earlier ones first)
-        this.spill ??= new TripRowBlocks(this.trips);
+        this.spill ??= new RowColumns();
         this.scattered = true;
         this.unfold(t);
       }
     }
     if (this.spill) this.spill.push(t, stop, seq, arr, dep, dist, tp, ns);
-    else this.scratch.push(stop, seq, arr, dep, dist, tp, ns);
+    else this.scratch.push(t, stop, seq, arr, dep, dist, tp, ns);
   }
 
   /** Folds the last trip and any rows held whole; call once, after the last row. */
@@ -344,7 +271,7 @@ export class TripFolder implements StopTimesSink {
     this.fold();
     this.cur = -1;
     if (!this.spill) return;
-    const flat = this.spill.flatRows();
+    const flat = this.spill;
     this.spill = null;
     const { order, offsets } = groupAndSort(flat.owner, flat.seq, flat.used, this.trips);
     const s = this.scratch;
@@ -353,7 +280,7 @@ export class TripFolder implements StopTimesSink {
       s.used = 0;
       for (let p = offsets[k]; p < offsets[k + 1]; p++) {
         const r = order[p];
-        s.push(flat.stop[r], flat.seq[r], flat.arr[r], flat.dep[r], flat.dist[r], flat.tp[r], flat.ns[r]);
+        s.push(k, flat.stop[r], flat.seq[r], flat.arr[r], flat.dep[r], flat.dist[r], flat.tp[r], flat.ns[r]);
       }
       this.foldScratch(k);
     }
@@ -378,7 +305,7 @@ export class TripFolder implements StopTimesSink {
   private unfold(t: number): void {
     const p = this.interner.profiles[this.profileOfTrip[t]];
     const st = materialise(p, this.baseOfTrip[t]);
-    for (let q = 0; q < st.stopIdx.length; q++) (this.spill as TripRowBlocks).push(t, st.stopIdx[q], st.seq[q], st.arrS[q], st.depS[q], st.shapeDist[q], st.timepoint[q], st.noService[q]);
+    for (let q = 0; q < st.stopIdx.length; q++) (this.spill as RowColumns).push(t, st.stopIdx[q], st.seq[q], st.arrS[q], st.depS[q], st.shapeDist[q], st.timepoint[q], st.noService[q]);
     this.profileOfTrip[t] = -1;
   }
 }
