@@ -31,12 +31,6 @@ export function scheduledTimes(
   options: { warnings?: WarningSink; tripIds?: string[] } = {},
 ): ScheduledTimes {
   const { warnings, tripIds } = options;
-  const n = distAlongM.length;
-  for (const st of trips) {
-    if (st.stopIdx.length !== n) {
-      throw new RangeError(`scheduledTimes: every trip needs ${n} stop times (one per distance), got ${st.stopIdx.length}`);
-    }
-  }
   const { times, untimed } = scheduledTimesOfRuns(trips.map((st) => ({ arrS: st.arrS, depS: st.depS, trips: 1 })), distAlongM);
   untimed.forEach((u, k) => {
     if (u) warnings?.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds?.[k]);
