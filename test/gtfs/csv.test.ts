@@ -64,6 +64,19 @@ const CASES: Record<string, string> = {
   'CR only line breaks': 'a,b\r1,2\r3,4\r',
 };
 
+/** The bytes cut at the given offsets (taken modulo the length), in order. */
+function cutAt(bytes: Buffer, cuts: number[]): Buffer[] {
+  const points = [...new Set(cuts.map((c) => c % bytes.length))].sort((a, b) => a - b);
+  const pieces: Buffer[] = [];
+  let prev = 0;
+  for (const p of points) {
+    pieces.push(bytes.subarray(prev, p));
+    prev = p;
+  }
+  pieces.push(bytes.subarray(prev));
+  return pieces;
+}
+
 /** The records our reader hands on when it skips groups by the key column: header, then the kept rows. */
 async function oursGrouped(pieces: Array<string | Buffer>, column: string, keep: (v: string) => boolean): Promise<{ records: string[][]; lines: number[]; asked: string[]; count: number }> {
   const records: string[][] = [];
@@ -129,14 +142,7 @@ describe('the CSV reader skipping groups of rows by a key column', () => {
         const all = oracle(text);
         const want = [all[0], ...all.slice(1).filter((r) => r[0] === 'T1')];
         const bytes = Buffer.from(text, 'utf8');
-        const points = [...new Set(cuts.map((c) => c % bytes.length))].sort((a, b) => a - b);
-        const pieces: Buffer[] = [];
-        let prev = 0;
-        for (const p of points) {
-          pieces.push(bytes.subarray(prev, p));
-          prev = p;
-        }
-        pieces.push(bytes.subarray(prev));
+        const pieces = cutAt(bytes, cuts);
         const got = await oursGrouped(pieces, 'trip_id', (v) => v === 'T1');
         expect(got.records).toEqual(want);
         expect(got.count).toBe(all.length - 1);
@@ -200,14 +206,7 @@ describe('the CSV reader agrees with csv-parse', () => {
         const text = 'h1,h2,h3' + (crlf ? '\r\n' : '\n') + rows.map((r) => r.join(',')).join(crlf ? '\r\n' : '\n') + '\n';
         const want = oracle(text).filter((r) => !(r.length === 1 && r[0] === '')); // whitespace-only lines are blank lines to us
         const bytes = Buffer.from(text, 'utf8');
-        const points = [...new Set(cuts.map((c) => c % bytes.length))].sort((a, b) => a - b);
-        const pieces: Buffer[] = [];
-        let prev = 0;
-        for (const p of points) {
-          pieces.push(bytes.subarray(prev, p));
-          prev = p;
-        }
-        pieces.push(bytes.subarray(prev));
+        const pieces = cutAt(bytes, cuts);
         const got = await ours(pieces);
         expect(got.records).toEqual(want);
       }),
