@@ -64,15 +64,33 @@ export function openHistory(path: string, options: OpenHistoryOptions = {}): His
   }
   try {
     db.pragma(`busy_timeout = ${busyTimeoutMs}`);
-    db.pragma('journal_mode = WAL');
+    whileBusy(() => db.pragma('journal_mode = WAL'), busyTimeoutMs);
     db.pragma('foreign_keys = ON');
-    migrate(db, path);
+    whileBusy(() => migrate(db, path), busyTimeoutMs);
   } catch (e) {
     db.close();
     if (e instanceof StopspanError) throw e;
     throw new StopspanError('history-db', `cannot prepare the history database: ${(e as Error).message}`, { file: path });
   }
   return db;
+}
+
+/**
+ * Runs f again while SQLite says the database is busy, for up to timeoutMs. Switching a new file to WAL, or
+ * starting its first transaction, can fail busy at once, without the busy timeout's wait, while another
+ * process does the same (seen as "database is locked" from two nightly jobs starting together).
+ */
+function whileBusy<T>(f: () => T, timeoutMs: number): T {
+  const deadline = Date.now() + timeoutMs;
+  for (let waitMs = 5; ; waitMs = Math.min(2 * waitMs, 200)) {
+    try {
+      return f();
+    } catch (e) {
+      const code = (e as { code?: unknown }).code;
+      if ((code !== 'SQLITE_BUSY' && code !== 'SQLITE_LOCKED') || Date.now() >= deadline) throw e;
+      Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, waitMs); // a synchronous pause
+    }
+  }
 }
 
 function migrate(db: HistoryDb, path: string): void {
