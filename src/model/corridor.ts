@@ -5,7 +5,7 @@
 // computed from prefix integrals. The optimiser, the verdicts and the what-if engine share it, so a
 // stop's removal figure is exactly the change in the optimiser's objective.
 
-import { stopProbability } from './stopping.js';
+import { stoppingProbability } from './stopping.js';
 import type { StoppingModel } from './params.js';
 
 export interface CorridorInput {
@@ -49,6 +49,10 @@ export class Corridor {
   private readonly cumB: Float64Array; // prefix over tiles (length n + 1)
   private readonly cumA: Float64Array;
   private readonly cumM: Float64Array; // prefix of trip ends times their mean position
+  private readonly acc = new Float64Array(3); // what cumulative() found: boardings, alightings, moment
+  /** What catchmentInto() found last. */
+  catchEndsPerDay = 0;
+  catchThroughPerDay = 0;
 
   constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity }: CorridorInput) {
     const n = posM.length;
@@ -82,9 +86,19 @@ export class Corridor {
     return this.posM[this.n - 1];
   }
 
-  /** Integrals from the start to y: boardings, alightings, and trip ends times position. */
-  private cumulative(y: number): { b: number; a: number; m: number } {
-    if (y < this.lo[0]) return { b: 0, a: 0, m: 0 };
+  /**
+   * Integrals from the start to y, into `acc`: boardings, alightings, and trip ends times position. Written
+   * into a scratch array, not returned as an object: the optimiser and the verdicts ask this millions of
+   * times, and an object a call was a good share of the audit's garbage collection.
+   */
+  private cumulative(y: number): void {
+    const acc = this.acc;
+    if (y < this.lo[0]) {
+      acc[0] = 0;
+      acc[1] = 0;
+      acc[2] = 0;
+      return;
+    }
     // last tile whose lower edge is <= y
     let l = 0;
     let h = this.n - 1;
@@ -99,18 +113,19 @@ export class Corridor {
     const bt = this.boardPerDay[t] * frac;
     const at = this.alightPerDay[t] * frac;
     const upto = this.lo[t] + frac * width;
-    return {
-      b: this.cumB[t] + bt,
-      a: this.cumA[t] + at,
-      m: this.cumM[t] + ((bt + at) * (this.lo[t] + upto)) / 2,
-    };
+    acc[0] = this.cumB[t] + bt;
+    acc[1] = this.cumA[t] + at;
+    acc[2] = this.cumM[t] + ((bt + at) * (this.lo[t] + upto)) / 2;
   }
 
   /** Trip ends per day between u and v (u <= v). */
   endsBetween(u: number, v: number): number {
-    const cu = this.cumulative(u);
-    const cv = this.cumulative(v);
-    return cv.b + cv.a - cu.b - cu.a;
+    const acc = this.acc;
+    this.cumulative(u);
+    const ub = acc[0];
+    const ua = acc[1];
+    this.cumulative(v);
+    return acc[0] + acc[1] - ub - ua;
   }
 
   /** The stretch of line whose trip ends belong to existing stop j today. */
@@ -121,48 +136,72 @@ export class Corridor {
   /** Metres walked per day by the trip ends between u and v (u <= v) if all of them go to point x. */
   walkToPointM(u: number, v: number, x: number): number {
     if (!(v > u)) return 0;
+    const acc = this.acc;
     let total = 0;
     const a = Math.min(v, x);
     if (a > u) {
-      const cu = this.cumulative(u);
-      const ca = this.cumulative(a);
-      total += x * (ca.b + ca.a - cu.b - cu.a) - (ca.m - cu.m);
+      this.cumulative(u);
+      const ub = acc[0];
+      const ua = acc[1];
+      const um = acc[2];
+      this.cumulative(a);
+      total += x * (acc[0] + acc[1] - ub - ua) - (acc[2] - um);
     }
     const b = Math.max(u, x);
     if (v > b) {
-      const cb = this.cumulative(b);
-      const cv = this.cumulative(v);
-      total += cv.m - cb.m - x * (cv.b + cv.a - cb.b - cb.a);
+      this.cumulative(b);
+      const bb = acc[0];
+      const ba = acc[1];
+      const bm = acc[2];
+      this.cumulative(v);
+      total += acc[2] - bm - x * (acc[0] + acc[1] - bb - ba);
     }
     return Math.max(0, total);
   }
 
   /** Riders on board at point y (boardings minus alightings before it), per day. */
   loadAt(y: number): number {
-    const c = this.cumulative(y);
-    return Math.max(0, c.b - c.a);
+    this.cumulative(y);
+    return Math.max(0, this.acc[0] - this.acc[1]);
   }
 
   /** Metres walked per day by the trip ends between two served stops at xi <= xk, each going to the nearer. */
   walkBetweenM(xi: number, xk: number): number {
+    const acc = this.acc;
     const mid = (xi + xk) / 2;
-    const ci = this.cumulative(xi);
-    const cm = this.cumulative(mid);
-    const ck = this.cumulative(xk);
-    const left = cm.m - ci.m - xi * (cm.b + cm.a - ci.b - ci.a);
-    const right = xk * (ck.b + ck.a - cm.b - cm.a) - (ck.m - cm.m);
+    this.cumulative(xi);
+    const ib = acc[0];
+    const ia = acc[1];
+    const im = acc[2];
+    this.cumulative(mid);
+    const mb = acc[0];
+    const ma = acc[1];
+    const mm = acc[2];
+    this.cumulative(xk);
+    const left = mm - im - xi * (mb + ma - ib - ia);
+    const right = xk * (acc[0] + acc[1] - mb - ma) - (acc[2] - mm);
     return Math.max(0, left) + Math.max(0, right);
   }
 
   /** The riders of a stop served at `pos` whose neighbours served are at prev and next (null at the ends). */
   catchment(prevM: number | null, pos: number, nextM: number | null): { endsPerDay: number; throughPerDay: number } {
+    this.catchmentInto(prevM, pos, nextM);
+    return { endsPerDay: this.catchEndsPerDay, throughPerDay: this.catchThroughPerDay };
+  }
+
+  /** catchment() into the fields catchEndsPerDay and catchThroughPerDay, for the hot callers. */
+  catchmentInto(prevM: number | null, pos: number, nextM: number | null): void {
+    const acc = this.acc;
     const l = prevM === null ? this.startM : (prevM + pos) / 2;
     const r = nextM === null ? this.endM : (pos + nextM) / 2;
-    const cl = this.cumulative(l);
-    const cr = this.cumulative(r);
-    const ends = cr.b + cr.a - cl.b - cl.a;
-    const alightIn = cr.a - cl.a;
-    return { endsPerDay: ends, throughPerDay: Math.max(0, cl.b - cl.a - alightIn) };
+    this.cumulative(l);
+    const lb = acc[0];
+    const la = acc[1];
+    this.cumulative(r);
+    const ends = acc[0] + acc[1] - lb - la;
+    const alightIn = acc[1] - la;
+    this.catchEndsPerDay = ends;
+    this.catchThroughPerDay = Math.max(0, lb - la - alightIn);
   }
 }
 
@@ -176,19 +215,32 @@ export function walkCostS(corridor: Corridor, xi: number, xk: number, { walkSpee
  * p * P(lambda) * riders passing through. `existingIndex` is the stop's index in the corridor, or -1 for a new stop.
  */
 export function servedStopCost(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): ServedStop {
-  const { endsPerDay, throughPerDay } = corridor.catchment(prevM, pos, nextM);
+  corridor.catchmentInto(prevM, pos, nextM);
+  const endsPerDay = corridor.catchEndsPerDay;
+  const throughPerDay = corridor.catchThroughPerDay;
   const trips = corridor.tripsPerDay > 0 ? corridor.tripsPerDay : 1;
-  const lambda = endsPerDay / trips;
-  let observedShare: number | null = null;
-  let baseLambda: number | null = null;
-  if (existingIndex >= 0 && settings.observedShare) {
-    observedShare = settings.observedShare[existingIndex] ?? null;
-    baseLambda = (corridor.boardPerDay[existingIndex] + corridor.alightPerDay[existingIndex]) / trips;
-  }
-  const probability = stopProbability(lambda, { model: settings.stoppingModel, observedShare, baseLambda });
+  const probability = servedProbability(corridor, endsPerDay, existingIndex, settings);
   const busTimePerTripS = settings.lostTimePerStopS * probability;
   const costS = busTimePerTripS * throughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
-  return { endsPerDay, throughPerDay, lambdaPerTrip: lambda, probability, costS, busTimePerTripS };
+  return { endsPerDay, throughPerDay, lambdaPerTrip: endsPerDay / trips, probability, costS, busTimePerTripS };
+}
+
+/** servedStopCost(...).costS alone, building no object: the optimiser's inner loop asks only this. */
+export function servedStopCostS(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): number {
+  corridor.catchmentInto(prevM, pos, nextM);
+  const busTimePerTripS = settings.lostTimePerStopS * servedProbability(corridor, corridor.catchEndsPerDay, existingIndex, settings);
+  return busTimePerTripS * corridor.catchThroughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
+}
+
+/** The chance the bus serves a stop with these trip ends per day, by the settings' stopping model. */
+function servedProbability(corridor: Corridor, endsPerDay: number, existingIndex: number, settings: CostSettings): number {
+  const trips = corridor.tripsPerDay > 0 ? corridor.tripsPerDay : 1;
+  const lambda = endsPerDay / trips;
+  if (settings.stoppingModel === 'always') return 1;
+  if (settings.stoppingModel === 'poisson' || existingIndex < 0 || !settings.observedShare) return stoppingProbability(lambda, settings.stoppingModel, null, null);
+  const observedShare = settings.observedShare[existingIndex] ?? null;
+  const baseLambda = (corridor.boardPerDay[existingIndex] + corridor.alightPerDay[existingIndex]) / trips;
+  return stoppingProbability(lambda, settings.stoppingModel, observedShare, baseLambda);
 }
 
 /** Total cost (rider-seconds per day, walk + ride delay) of serving the given sorted existing stops. */
