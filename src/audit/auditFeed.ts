@@ -7,8 +7,6 @@ import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
-import { buildPatterns } from '../network/buildPatterns.js';
-import { runAudit } from './runAudit.js';
 import { StopspanError } from '../common/errors.js';
 
 export interface AuditFeedOptions {
@@ -33,7 +31,12 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
+  // The later stages load while the feed is read, not before: the module loader reads each file through
+  // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
+  const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
+  stages.catch(() => undefined); // a failure to load surfaces at the await below
   const feed = await readFeed(source, { date: date ?? 'auto', routes, onProgress });
+  const [{ buildPatterns }, { runAudit }] = await stages;
   const patterns = buildPatterns(feed, { date: feed.date ?? undefined, routes, onProgress });
   if (patterns.patterns.length === 0) {
     throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}${routes?.length ? ' for the routes asked for' : ''}`, {

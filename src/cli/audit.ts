@@ -3,7 +3,6 @@
 import type { Command } from 'commander';
 import path from 'node:path';
 import { auditFeed } from '../audit/auditFeed.js';
-import { writeReport } from '../report/writeReport.js';
 import { loadParamsFile, normalizeParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
@@ -57,6 +56,9 @@ export function registerAudit(program: Command): void {
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
       const params = mergeParams(opts.params, paramOverrides(opts));
       const progress = makeProgress(Boolean(opts.quiet));
+      // the report writers load while the feed is read (see auditFeed)
+      const report = import('../report/writeReport.js');
+      report.catch(() => undefined); // a failure to load surfaces at the await below
       try {
         const { result } = await auditFeed(feedArg, {
           date: opts.date,
@@ -68,6 +70,7 @@ export function registerAudit(program: Command): void {
           onProgress: progress.onProgress,
         });
         progress.onProgress?.({ stage: 'writing reports' });
+        const { writeReport } = await report;
         const written = await writeReport(result, outDir, { formats, units: opts.units, force: Boolean(opts.force) });
         if (opts.history) {
           // loaded only when asked for: the SQLite binding costs start-up time on every other run

@@ -2,8 +2,7 @@
 // chosen by --fail-on, and optionally one row in a history database.
 
 import type { Command } from 'commander';
-import { checkFeed, type CheckReport } from '../audit/check.js';
-import { checkText } from '../audit/checkText.js';
+import type { CheckReport } from '../audit/check.js';
 import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
 import { StopspanError } from '../common/errors.js';
 import { version } from '../version.js';
@@ -79,6 +78,8 @@ export function registerCheck(program: Command): void {
         }
         const maxExamples = numberOption('--max-examples', o.maxExamples, 0)!;
         const thresholds = thresholdsFromCli(o);
+        // the checks load when the command runs, not at every start-up of the CLI
+        const [{ checkFeed }, { checkText }] = await Promise.all([import('../audit/check.js'), import('../audit/checkText.js')]);
         const progress = makeProgress(o.quiet === true || o.json === true);
         let loaded;
         try {

@@ -2,11 +2,8 @@
 // or an HTML page in --out.
 
 import type { Command } from 'commander';
-import { compareFeeds } from '../audit/compare.js';
-import { runAudit } from '../audit/runAudit.js';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
-import { comparisonHtml, comparisonText } from '../audit/compareRender.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption, writeFiles } from './feedInput.js';
@@ -41,6 +38,8 @@ export function registerCompare(program: Command): void {
     .action((oldSource: string, newSource: string, o: CompareCliOptions) =>
       runAction(o.verbose === true, async () => {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
+        // the comparison loads when the command runs, not at every start-up of the CLI
+        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText }] = await Promise.all([import('../audit/compare.js'), import('../audit/runAudit.js'), import('../audit/compareRender.js')]);
         const progress = makeProgress(o.quiet === true || o.json === true);
         let a, b;
         try {

@@ -3,13 +3,10 @@
 
 import { mkdir, rename, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
-import { readFeed } from '../gtfs/index.js';
-import { buildPatterns } from '../network/index.js';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
-import { busiestWeekday } from '../audit/check.js';
 
 export interface LoadedFeed {
   feed: Feed;
@@ -26,6 +23,8 @@ export async function loadFeed(source: string, options: { date?: string; onProgr
   if (asked !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(asked)) {
     throw new StopspanError('bad-option', `invalid option --date: expected YYYY-MM-DD, got ${asked}`, { value: asked });
   }
+  // loaded here, not with the module: the commands that import this one register at every start-up
+  const [{ readFeed }, { buildPatterns }, { busiestWeekday }] = await Promise.all([import('../gtfs/readFeed.js'), import('../network/buildPatterns.js'), import('../audit/check.js')]);
   const feed = await readFeed(source, { date: 'all', onProgress });
   const date = asked ?? busiestWeekday(feed);
   const empty: PatternSet = { date: date ?? '', patterns: [], routesAtStop: new Map() };

@@ -3,8 +3,7 @@
 
 import { createWriteStream } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
-import http from 'node:http';
-import https from 'node:https';
+import type http from 'node:http';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { StopspanError } from '../common/errors.js';
@@ -90,9 +89,14 @@ function fail(url: string, why: string): never {
   throw new StopspanError('download-failed', `cannot download the feed: ${why}`, { file: url });
 }
 
-function request(target: string, deadline: number, original: string): Promise<http.IncomingMessage> {
+/** The http or https module, loaded on the first download: loading both costs every other run start-up time. */
+async function client(target: string): Promise<typeof http> {
+  return target.startsWith('https:') ? ((await import('node:https')).default as unknown as typeof http) : (await import('node:http')).default;
+}
+
+async function request(target: string, deadline: number, original: string): Promise<http.IncomingMessage> {
+  const mod = await client(target);
   return new Promise((resolve, reject) => {
-    const mod = target.startsWith('https:') ? https : http;
     const left = deadline - Date.now();
     if (left <= 0) return reject(new StopspanError('download-failed', 'cannot download the feed: timed out', { file: original }));
     const req = mod.get(target, { headers: { 'user-agent': 'stopspan', accept: 'application/zip, */*' } }, (res) => {
