@@ -11,7 +11,7 @@ import { bandM } from '../model/band.js';
 import { type CostSettings, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
-import { optimiseStops, type OptimiserCache, type OptimiseResult } from '../model/optimiser.js';
+import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
 import { costPerRiderS } from '../model/sqrtLaw.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import type { ModelParams } from '../model/params.js';
@@ -169,7 +169,6 @@ export interface PatternParts {
   removal: (ChangeParts | null)[]; // per model stop; null at the ends and for fixed stops
   addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
   optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
-  optimiserCache: OptimiserCache; // what the optimiser's runs at different walk weights share
   medianGapM: number | null; // filled on first use
 }
 
@@ -183,7 +182,7 @@ export function patternParts(prep: PreparedPattern, params: ModelParams): Patter
     probability.push(m > 0 && m < n - 1 ? servedStopCost(corridor, posM[m - 1], posM[m], posM[m + 1], m, settings).probability : 1);
     removal.push(m > 0 && m < n - 1 && prep.fixedReason[m] === '' ? removalParts(prep, m, settings) : null);
   }
-  return { probability, removal, addition: [], optimised: new Map(), optimiserCache: {}, medianGapM: null };
+  return { probability, removal, addition: [], optimised: new Map(), medianGapM: null };
 }
 
 function median(values: number[]): number {
@@ -279,7 +278,7 @@ export function analysePattern(
   if (!optimised) {
     const optSettings = costSettings(prep, params, { walkWeight, withOperatingCost: true });
     const forced = prep.fixedReason.map((r) => r !== '');
-    const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m, cache: parts.optimiserCache });
+    const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
     optimised = { best, todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings) };
     parts.optimised.set(walkWeight, optimised);
   }
