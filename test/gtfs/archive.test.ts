@@ -114,6 +114,42 @@ describe('openFeed on zips', () => {
     expect(e.oneLine()).not.toContain('\n');
   });
 
+  it('refuses a deflated entry marked encrypted, or whose local header points past the end of the file', async () => {
+    // central directory header: signature 0x02014b50, flags at +8, name length at +28, extra at +30,
+    // comment at +32, name at +46; bit 0 of the flags marks encryption [C, PKWARE APPNOTE 4.3.12, 4.4.4]
+    const zip = await zipFolder(BASIC);
+    const enc = readFileSync(zip);
+    const central = Buffer.from([0x50, 0x4b, 0x01, 0x02]);
+    let marked = false;
+    for (let p = enc.indexOf(central); p >= 0; p = enc.indexOf(central, p + 4)) {
+      const n = enc.readUInt16LE(p + 28);
+      if (enc.toString('latin1', p + 46, p + 46 + n) !== 'stop_times.txt') continue;
+      enc.writeUInt16LE(enc.readUInt16LE(p + 8) | 1, p + 8);
+      marked = true;
+    }
+    expect(marked).toBe(true);
+    const encrypted = join(tmp, 'encrypted.zip');
+    writeFileSync(encrypted, enc);
+    const e1 = await rejected(readFeed(encrypted));
+    expect(e1.code).toBe('feed-unreadable');
+    expect(e1.context.file).toContain('stop_times.txt');
+    expect(e1.oneLine()).toContain('encrypted');
+
+    // local file header: extra field length at +28 [C, PKWARE APPNOTE 4.3.7]; 0xffff puts the body past the end
+    const far = readFileSync(zip);
+    const local = Buffer.from([0x50, 0x4b, 0x03, 0x04]);
+    for (let p = far.indexOf(local); p >= 0; p = far.indexOf(local, p + 4)) {
+      const n = far.readUInt16LE(p + 26);
+      if (far.toString('latin1', p + 30, p + 30 + n) === 'stop_times.txt') far.writeUInt16LE(0xffff, p + 28);
+    }
+    const overflow = join(tmp, 'overflow.zip');
+    writeFileSync(overflow, far);
+    const e2 = await rejected(readFeed(overflow));
+    expect(e2.code).toBe('feed-unreadable');
+    expect(e2.context.file).toContain('stop_times.txt');
+    expect(e2.oneLine()).not.toContain('\n');
+  });
+
   it('reads stored (uncompressed) entries as it reads deflated ones', async () => {
     const zip = new yazl.ZipFile();
     for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: false });

@@ -149,7 +149,11 @@ const [path, who, other, n] = process.argv.slice(2);
 const db = openHistory(path);
 // start together: say ready, then wait for the other writer (a barrier, not a timing)
 writeFileSync(path + '.ready-' + who, '');
-while (!existsSync(path + '.ready-' + other)) Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 5);
+const until = Date.now() + 30000; // a writer whose partner failed gives up instead of waiting for ever
+while (!existsSync(path + '.ready-' + other)) {
+  if (Date.now() > until) throw new Error('the other writer never got ready');
+  Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 5);
+}
 for (let k = 0; k < Number(n); k++) {
   recordRun(db, { runDate: '2026-10-14', command: 'check', feed: { source: who, contentHash: who + k, version: 'v' },
     findings: { 'twin-stops': k, 'stop-off-path': 1 }, severities: { warning: 2 } });
