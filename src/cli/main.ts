@@ -2,10 +2,13 @@
 // The stopspan command line: composes one module per command. Commands only parse options, call the
 // library, print and set the exit code.
 
-import { Command } from 'commander';
+import type * as Commander from 'commander';
+import { requireCjs } from '../common/requireCjs.js';
 import { commands } from './commands.js';
 import { EXIT } from './shared.js';
 import { version } from '../version.js';
+
+const { Command } = requireCjs('commander') as typeof Commander;
 
 // A reader that closes early (`stopspan check ... | head`) is not an error.
 process.stdout.on('error', (e: NodeJS.ErrnoException) => {

@@ -9,11 +9,14 @@ import { readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { Readable, Transform, type TransformCallback } from 'node:stream';
 import { createInflateRaw } from 'node:zlib';
-import yauzl from 'yauzl';
+import type * as Yauzl from 'yauzl';
 import { StopspanError } from '../common/errors.js';
+import { requireCjs } from '../common/requireCjs.js';
 import type { OnProgress } from '../common/progress.js';
 import type { WarningSink } from '../common/warnings.js';
 import { downloadFeed, isUrl, type DownloadLimits } from './download.js';
+
+const yauzl = requireCjs('yauzl') as typeof Yauzl;
 
 export interface ArchiveLimits {
   /** Largest declared or actual uncompressed size of one entry, in bytes. Default 4 GiB. */
@@ -163,11 +166,11 @@ class ByteCap extends Transform {
 }
 
 interface ZipTable {
-  entry: yauzl.Entry;
+  entry: Yauzl.Entry;
   path: string;
 }
 
-function openZipFile(path: string): Promise<yauzl.ZipFile> {
+function openZipFile(path: string): Promise<Yauzl.ZipFile> {
   return new Promise((resolve, reject) => {
     yauzl.open(path, { lazyEntries: true, autoClose: false, decodeStrings: false, validateEntrySizes: true }, (err, zf) => {
       if (err || !zf) reject(err ?? new Error('no zip'));
@@ -176,10 +179,10 @@ function openZipFile(path: string): Promise<yauzl.ZipFile> {
   });
 }
 
-function listEntries(zf: yauzl.ZipFile): Promise<yauzl.Entry[]> {
+function listEntries(zf: Yauzl.ZipFile): Promise<Yauzl.Entry[]> {
   return new Promise((resolve, reject) => {
-    const out: yauzl.Entry[] = [];
-    zf.on('entry', (e: yauzl.Entry) => {
+    const out: Yauzl.Entry[] = [];
+    zf.on('entry', (e: Yauzl.Entry) => {
       out.push(e);
       zf.readEntry();
     });
@@ -190,8 +193,8 @@ function listEntries(zf: yauzl.ZipFile): Promise<yauzl.Entry[]> {
 }
 
 async function openZip(path: string, label: string, lim: Required<ArchiveLimits>, warnings?: WarningSink): Promise<FeedArchive> {
-  let zf: yauzl.ZipFile;
-  let entries: yauzl.Entry[];
+  let zf: Yauzl.ZipFile;
+  let entries: Yauzl.Entry[];
   try {
     zf = await openZipFile(path);
     entries = await listEntries(zf);
@@ -220,7 +223,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
       chosen = named.filter((t) => t.path.startsWith(prefix) && !t.path.slice(prefix.length).includes('/') && t.path.endsWith('.txt'));
     }
   }
-  const tables = new Map<string, yauzl.Entry>();
+  const tables = new Map<string, Yauzl.Entry>();
   for (const t of chosen) tables.set(t.path.slice(t.path.lastIndexOf('/') + 1), t.entry);
   let total = 0;
   let closed = false;
@@ -280,7 +283,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
  * 16 KiB at a time through two pass-through streams, and on Manhattan's stop_times.txt (9 MB deflated)
  * those 580 chunks cost the main thread more than inflating them.
  */
-async function deflatedBody(zf: yauzl.ZipFile, path: string, entry: yauzl.Entry, file: string): Promise<Readable> {
+async function deflatedBody(zf: Yauzl.ZipFile, path: string, entry: Yauzl.Entry, file: string): Promise<Readable> {
   if (entry.isEncrypted()) throw unreadable(file, 'corrupt zip entry (the entry is encrypted)');
   const start = await new Promise<number>((resolve, reject) => {
     // the local header's name and extra field lengths say where the body starts; yauzl checks it lies in the file
