@@ -38,6 +38,8 @@ export function quoteField(s: string): string {
 function formatNumber(v: number, digits: number | undefined): string {
   if (!Number.isFinite(v)) return '';
   if (digits === undefined) return String(v);
+  // an integer prints as toFixed and back would print it, without the two conversions (most cells are counts)
+  if (Number.isInteger(v)) return String(Object.is(v, -0) ? 0 : v);
   const r = Number(v.toFixed(digits)); // drops trailing zeros and turns -0 into 0 below
   return String(Object.is(r, -0) ? 0 : r);
 }

@@ -13,10 +13,8 @@ export function escapeHtml(value: unknown): string {
  * confuse the element, and U+2028/U+2029 are escaped for older parsers. JSON.parse reads it back unchanged.
  */
 export function jsonForScript(value: unknown): string {
-  return JSON.stringify(value)
-    .replace(/</g, '\\u003c')
-    .replace(/>/g, '\\u003e')
-    .replace(/&/g, '\\u0026')
-    .replace(/\u2028/g, '\\u2028')
-    .replace(/\u2029/g, '\\u2029');
+  // one pass over the page's data (most of the page) for all five characters, not one pass each
+  return JSON.stringify(value).replace(/[<>&\u2028\u2029]/g, (c) => SCRIPT_ESCAPES[c]);
 }
+
+const SCRIPT_ESCAPES: Record<string, string> = { '<': '\\u003c', '>': '\\u003e', '&': '\\u0026', '\u2028': '\\u2028', '\u2029': '\\u2029' };
