@@ -8,7 +8,7 @@
 import type { Feed } from '../gtfs/types.js';
 import type { CostCurvePoint, GapResult, PatternResult, StopResult, Verdict } from './types.js';
 import { bandM } from '../model/band.js';
-import { type CostSettings, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
+import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
 import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
@@ -72,24 +72,36 @@ export interface ChangeParts {
   ridersAffectedPerDay: number;
 }
 
-/** The walk-weight-free parts of removing model stop m (0 < m < n-1) with both neighbours kept. */
-export function removalParts(prep: PreparedPattern, m: number, settings: CostSettings): ChangeParts {
+/** Each intermediate model stop served between its neighbours as they are today (null at the ends). */
+function servedToday(prep: PreparedPattern, settings: CostSettings): (ServedStop | null)[] {
+  const c = prep.corridor;
+  const x = c.posM;
+  const out: (ServedStop | null)[] = [];
+  for (let m = 0; m < c.n; m++) out.push(m > 0 && m < c.n - 1 ? servedStopCost(c, x[m - 1], x[m], x[m + 1], m, settings) : null);
+  return out;
+}
+
+/**
+ * The walk-weight-free parts of removing model stop m (0 < m < n-1) with both neighbours kept. `today`
+ * (servedToday of the same settings) saves computing again what each stop costs as it is served now.
+ */
+export function removalParts(prep: PreparedPattern, m: number, settings: CostSettings, today: (ServedStop | null)[] = servedToday(prep, settings)): ChangeParts {
   const c = prep.corridor;
   const x = c.posM;
   const n = c.n;
   if (!(m > 0 && m < n - 1)) throw new RangeError(`removalEffect: not an intermediate stop: ${m}`);
-  const own = servedStopCost(c, x[m - 1], x[m], x[m + 1], m, settings);
+  const own = today[m] as ServedStop;
   let neighbourCostS = 0;
   let neighbourBusS = 0;
   if (m - 1 > 0) {
     const after = servedStopCost(c, x[m - 2], x[m - 1], x[m + 1], m - 1, settings);
-    const before = servedStopCost(c, x[m - 2], x[m - 1], x[m], m - 1, settings);
+    const before = today[m - 1] as ServedStop;
     neighbourCostS += after.costS - before.costS;
     neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
   }
   if (m + 1 < n - 1) {
     const after = servedStopCost(c, x[m - 1], x[m + 1], x[m + 2], m + 1, settings);
-    const before = servedStopCost(c, x[m], x[m + 1], x[m + 2], m + 1, settings);
+    const before = today[m + 1] as ServedStop;
     neighbourCostS += after.costS - before.costS;
     neighbourBusS += after.busTimePerTripS - before.busTimePerTripS;
   }
@@ -173,14 +185,14 @@ export interface PatternParts {
 }
 
 export function patternParts(prep: PreparedPattern, params: ModelParams): PatternParts {
-  const { posM, corridor } = prep;
   const settings = costSettings(prep, params, {});
   const n = prep.modelStops.length;
+  const today = servedToday(prep, settings);
   const probability: number[] = [];
   const removal: (ChangeParts | null)[] = [];
   for (let m = 0; m < n; m++) {
-    probability.push(m > 0 && m < n - 1 ? servedStopCost(corridor, posM[m - 1], posM[m], posM[m + 1], m, settings).probability : 1);
-    removal.push(m > 0 && m < n - 1 && prep.fixedReason[m] === '' ? removalParts(prep, m, settings) : null);
+    probability.push(today[m]?.probability ?? 1);
+    removal.push(m > 0 && m < n - 1 && prep.fixedReason[m] === '' ? removalParts(prep, m, settings, today) : null);
   }
   return { probability, removal, addition: [], optimised: new Map(), medianGapM: null };
 }
