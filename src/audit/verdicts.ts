@@ -182,6 +182,8 @@ export interface PatternParts {
   addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
   optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
   medianGapM: number | null; // filled on first use
+  feedStopsByModelPos?: number[]; // filled on first use
+  modelPosOf?: Map<number, number>; // pattern stop index -> model position; filled on first use
 }
 
 export function patternParts(prep: PreparedPattern, params: ModelParams): PatternParts {
@@ -298,38 +300,41 @@ export function analysePattern(
   // rounding noise of the two sums is not a loss
   const lostS = todayCostS - best.costS;
   const paxMinLostPerDay = lostS > 1e-9 * Math.max(1, todayCostS) ? lostS * S_TO_MIN : 0;
-  const keptSet = new Set(best.kept);
+  const keptSet = detail ? new Set(best.kept) : null;
 
   // stops
   const stops: StopResult[] = [];
   const removals: RemovalEffect[] = [];
-  const feedStopsByModelPos = modelStops.map((j) => pattern.stopIdx[j]);
-  const modelPosOf = new Map(modelStops.map((j, m) => [j, m]));
+  // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
+  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null;
+  // what no case changes, kept with the pattern's parts
+  const feedStopsByModelPos = (parts.feedStopsByModelPos ??= modelStops.map((j) => pattern.stopIdx[j]));
+  const modelPosOf = (parts.modelPosOf ??= new Map(modelStops.map((j, m) => [j, m])));
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
+  const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
+    patternId: pattern.id,
+    routeId: pattern.routeId,
+    directionId: pattern.directionId,
+    stopIndex: j,
+    stopId: stop?.id ?? '',
+    stopName: stop?.name ?? '',
+    stopLat: stop?.lat ?? NaN,
+    stopLon: stop?.lon ?? NaN,
+    distAlongM: pattern.distAlongM[j],
+    tripsPerDay: pattern.tripsPerDay,
+    demandSource: demand.demandSource,
+    timepoint: pattern.timepoint[j] === true,
+    offsetFromShapeM: pattern.offsetFromShapeM[j] ?? null,
+  });
   for (let j = 0; j < pattern.stopIdx.length; j++) {
     const stopIdx = pattern.stopIdx[j];
     const stop = feed.stops[stopIdx];
     const m = modelPosOf.get(j);
-    const base = (): StopBase => ({
-      patternId: pattern.id,
-      routeId: pattern.routeId,
-      directionId: pattern.directionId,
-      stopIndex: j,
-      stopId: stop?.id ?? '',
-      stopName: stop?.name ?? '',
-      stopLat: stop?.lat ?? NaN,
-      stopLon: stop?.lon ?? NaN,
-      distAlongM: pattern.distAlongM[j],
-      tripsPerDay: pattern.tripsPerDay,
-      demandSource: demand.demandSource,
-      timepoint: pattern.timepoint[j] === true,
-      offsetFromShapeM: pattern.offsetFromShapeM[j] ?? null,
-    });
     if (m === undefined) {
       // not a passenger stop: kept for geometry only
       fixedStopIdx.push(stopIdx);
-      if (detail) stops.push(stopResult(base(), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -350,13 +355,13 @@ export function analysePattern(
       // close only when the spacing is below the band AND taking the stop out saves riders time: the band
       // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
       if (hasOptimum && spacing < band.lowM && removal.netPaxMinPerDay < 0) verdict = 'close';
-      else if (hasOptimum && spacing > band.highM && [m - 1, m].some((g) => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null)) verdict = 'wide';
+      else if (hasOptimum && spacing > band.highM && (wideGap(m - 1) || wideGap(m))) verdict = 'wide';
       removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
     }
     if (verdict === 'close') closeStops++;
     if (!detail) continue;
     stops.push(
-      stopResult(base(), {
+      stopResult(baseOf(j, stop), {
       gapBeforeM,
       gapAfterM,
       boardingsPerDay: corridor.boardPerDay[m],
@@ -366,7 +371,7 @@ export function analysePattern(
       localOptimalSpacingM: local,
       verdict,
       fixedReason: reason,
-      keptByOptimiser: keptSet.has(m),
+      keptByOptimiser: keptSet !== null && keptSet.has(m),
       removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
       removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,
       }),
