@@ -5,6 +5,7 @@ import path from 'node:path';
 import { auditFeed } from '../audit/auditFeed.js';
 import { loadParamsFile, normalizeParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
+import { groupedFixed } from '../report/numberText.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
 
@@ -87,7 +88,7 @@ export function registerAudit(program: Command): void {
         process.stdout.write(
           `${result.feed.source} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
             `modelled optimum ${Math.round(h.meanOptimalSpacingM)} m (${result.demandSource} demand)\n` +
-            `${h.closeStops} close stops, ${h.wideGaps} wide gaps, ${Math.round(h.paxMinLostPerDay).toLocaleString('en')} passenger-minutes a day lost to today's spacing\n` +
+            `${h.closeStops} close stops, ${h.wideGaps} wide gaps, ${groupedFixed(Math.round(h.paxMinLostPerDay))} passenger-minutes a day lost to today's spacing\n` +
             `wrote ${written.length} files to ${outDir}${path.sep}\n`,
         );
       } finally {

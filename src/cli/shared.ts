@@ -2,6 +2,7 @@
 // progress drawer (stderr, only when a person is watching).
 
 import { isStopspanError } from '../common/errors.js';
+import { groupedFixed } from '../report/numberText.js';
 import type { OnProgress, ProgressEvent } from '../common/progress.js';
 
 export const EXIT = { clean: 0, found: 1, badInput: 2, internal: 3 } as const;
@@ -38,8 +39,8 @@ export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefin
     lastStage = ev.stage;
     let text = ev.stage;
     if (ev.done !== undefined) {
-      const d = ev.unit === 'bytes' ? `${(ev.done / 1e6).toFixed(1)} MB` : ev.done.toLocaleString('en');
-      const t = ev.total ? (ev.unit === 'bytes' ? ` / ${(ev.total / 1e6).toFixed(1)} MB` : ` / ${ev.total.toLocaleString('en')}`) : '';
+      const d = ev.unit === 'bytes' ? `${(ev.done / 1e6).toFixed(1)} MB` : groupedFixed(ev.done);
+      const t = ev.total ? (ev.unit === 'bytes' ? ` / ${(ev.total / 1e6).toFixed(1)} MB` : ` / ${groupedFixed(ev.total)}`) : '';
       text += `: ${d}${t}${ev.unit && ev.unit !== 'bytes' ? ' ' + ev.unit : ''}`;
     }
     process.stderr.write(`\r\x1b[2K${text.slice(0, Math.max(20, (process.stderr.columns || 80) - 1))}`);

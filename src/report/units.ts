@@ -2,6 +2,7 @@
 // Only renderers use it; everything inside the library stays in metres.
 
 import { StopspanError } from '../common/errors.js';
+import { groupedFixed } from './numberText.js';
 
 export type Units = 'metric' | 'imperial';
 
@@ -24,7 +25,7 @@ export function metresToMiles(m: number): number {
 /** A short distance for people, e.g. "230 m" or "755 ft". */
 export function formatShortDistance(m: number | null, units: Units): string {
   if (m === null || !Number.isFinite(m)) return '–';
-  return units === 'imperial' ? `${Math.round(metresToFeet(m)).toLocaleString('en-US')} ft` : `${Math.round(m).toLocaleString('en-US')} m`;
+  return units === 'imperial' ? `${groupedFixed(Math.round(metresToFeet(m)))} ft` : `${groupedFixed(Math.round(m))} m`;
 }
 
 /** A route-length distance for people, e.g. "12.4 km" or "7.7 mi". */

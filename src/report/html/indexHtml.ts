@@ -6,6 +6,7 @@
 import type { AuditResult, PatternResult, StopResult } from '../../audit/types.js';
 import { StopspanError } from '../../common/errors.js';
 import { CAUTIONS } from '../cautions.js';
+import { groupedFixed } from '../numberText.js';
 import { checkUnits, formatShortDistance, type Units } from '../units.js';
 import { escapeHtml as h, jsonForScript } from './escape.js';
 import { histogramSvg } from './histogramSvg.js';
@@ -128,15 +129,9 @@ function median(values: number[]): number {
   return v.length % 2 ? v[m] : (v[m - 1] + v[m]) / 2;
 }
 
-// one formatter per digit count: toLocaleString with options builds a new one on every call, and the page
-// formats tens of thousands of numbers (it led the page's profile on the Manhattan bus feed)
-const FORMATS = new Map<number, Intl.NumberFormat>();
-
+// en-US digits as Intl.NumberFormat prints them, without loading ICU's number formatting (numberText.ts)
 function fmt(v: number, digits = 0): string {
-  if (!Number.isFinite(v)) return '–';
-  let f = FORMATS.get(digits);
-  if (!f) FORMATS.set(digits, (f = new Intl.NumberFormat('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits })));
-  return f.format(v);
+  return Number.isFinite(v) ? groupedFixed(v, digits) : '–';
 }
 
 function th(key: string, label: string, numeric = false): string {
