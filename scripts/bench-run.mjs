@@ -3,6 +3,8 @@
 // work alone. scripts/bench.mjs starts this once per measurement and reads the figures it leaves behind.
 //
 //   node scripts/bench-run.mjs inflate FEED.zip          floor (a): inflate stop_times.txt, count its lines
+//   node scripts/bench-run.mjs inflate-reader FEED.zip   reference only: inflate stop_times.txt the way the audit's
+//                                                        reader does (1 MiB reads and buffers), count its lines
 //   node scripts/bench-run.mjs csv FEED.zip              floor (b): the project's CSV reader over stop_times.txt
 //   node scripts/bench-run.mjs audit FEED.zip OUT_DIR    the full `stopspan audit FEED --out OUT_DIR --force`
 //   node scripts/bench-run.mjs stages FEED.zip OUT_DIR   the library stages one after another, each timed:
@@ -89,6 +91,40 @@ async function inflateAndCount(feedPath) {
   }
   if (last !== 10) lines++; // a final line without its newline
   return lines - 1;
+}
+
+/**
+ * For reference beside floor (a): the same count, inflating as the audit's reader does. The deflated body is
+ * read straight from the file in 1 MiB pieces (its start from the local header) and inflated with 1 MiB
+ * output buffers (see openZip in src/gtfs/archive.ts). A folder feed is read as floor (a) reads it.
+ */
+async function inflateReaderWay(feedPath) {
+  if (fs.statSync(feedPath).isDirectory()) return inflateAndCount(feedPath);
+  const { createInflateRaw } = await import('node:zlib');
+  const zf = await new Promise((resolve, reject) => yauzl.open(feedPath, { lazyEntries: true, autoClose: false }, (e, z) => (e ? reject(e) : resolve(z))));
+  try {
+    const entry = await new Promise((resolve, reject) => {
+      zf.on('entry', (e) => (path.posix.basename(e.fileName) === 'stop_times.txt' ? resolve(e) : zf.readEntry()));
+      zf.on('end', () => reject(new Error(`${feedPath}: no stop_times.txt`)));
+      zf.on('error', reject);
+      zf.readEntry();
+    });
+    let body;
+    if (entry.compressionMethod === 8) {
+      const start = await new Promise((resolve, reject) => zf.readLocalFileHeader(entry, { minimal: true }, (e, h) => (e ? reject(e) : resolve(h.fileDataStart))));
+      body = fs.createReadStream(feedPath, { start, end: start + entry.compressedSize - 1, highWaterMark: 1 << 20 }).pipe(createInflateRaw({ chunkSize: 1 << 20 }));
+    } else body = await new Promise((resolve, reject) => zf.openReadStream(entry, (e, rs) => (e ? reject(e) : resolve(rs))));
+    let lines = 0;
+    let last = 10;
+    for await (const chunk of body) {
+      for (let i = chunk.indexOf(10); i !== -1; i = chunk.indexOf(10, i + 1)) lines++;
+      if (chunk.length) last = chunk[chunk.length - 1];
+    }
+    if (last !== 10) lines++;
+    return lines - 1;
+  } finally {
+    zf.close();
+  }
 }
 
 /**
@@ -179,8 +215,9 @@ async function stages(feedPath, out) {
 }
 
 try {
-  if (!feed) throw new Error('usage: bench-run.mjs inflate|csv|audit|stages FEED [OUT_DIR]');
+  if (!feed) throw new Error('usage: bench-run.mjs inflate|inflate-reader|csv|audit|stages FEED [OUT_DIR]');
   if (mode === 'inflate') rows = await inflateAndCount(feed);
+  else if (mode === 'inflate-reader') rows = await inflateReaderWay(feed);
   else if (mode === 'csv') rows = await csvReaderCount(feed);
   else if (mode === 'audit') {
     if (!outDir) throw new Error('audit needs an output folder');

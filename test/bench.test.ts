@@ -154,4 +154,13 @@ describe.skipIf(!fs.existsSync(lirr))('on a real feed', () => {
     const b = JSON.parse(execFileSync(process.execPath, [benchRun, 'inflate', r2.file], { encoding: 'utf8' }));
     expect(b.rows).toBe(2 * 22730);
   });
+
+  it('inflating the reader\'s way counts the same rows as floor (a), on the real zip and on a scaled copy', () => {
+    const c = JSON.parse(execFileSync(process.execPath, [benchRun, 'inflate-reader', lirr], { encoding: 'utf8' }));
+    expect(c.error).toBeNull();
+    expect(c.rows).toBe(22730); // the same documented count as above
+    const [r2] = runScaled(lirr, path.join(tmp, 'lirr-reader'), '2');
+    const d = JSON.parse(execFileSync(process.execPath, [benchRun, 'inflate-reader', r2.file], { encoding: 'utf8' }));
+    expect(d.rows).toBe(2 * 22730);
+  });
 });
