@@ -221,7 +221,7 @@ export function servedStopCost(corridor: Corridor, prevM: number, pos: number, n
   const trips = corridor.tripsPerDay > 0 ? corridor.tripsPerDay : 1;
   const probability = servedProbability(corridor, endsPerDay, existingIndex, settings);
   const busTimePerTripS = settings.lostTimePerStopS * probability;
-  const costS = busTimePerTripS * throughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
+  const costS = servingCostS(corridor, busTimePerTripS, throughPerDay, settings);
   return { endsPerDay, throughPerDay, lambdaPerTrip: endsPerDay / trips, probability, costS, busTimePerTripS };
 }
 
@@ -229,18 +229,24 @@ export function servedStopCost(corridor: Corridor, prevM: number, pos: number, n
 export function servedStopCostS(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): number {
   corridor.catchmentInto(prevM, pos, nextM);
   const busTimePerTripS = settings.lostTimePerStopS * servedProbability(corridor, corridor.catchEndsPerDay, existingIndex, settings);
-  return busTimePerTripS * corridor.catchThroughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
+  return servingCostS(corridor, busTimePerTripS, corridor.catchThroughPerDay, settings);
+}
+
+/** Rider-seconds per day lost to the bus's time at a stop by those riding through, plus operating cost when set. */
+function servingCostS(corridor: Corridor, busTimePerTripS: number, throughPerDay: number, settings: CostSettings): number {
+  return busTimePerTripS * throughPerDay + (settings.operatingPaxSPerBusS ?? 0) * busTimePerTripS * corridor.tripsPerDay;
 }
 
 /** The chance the bus serves a stop with these trip ends per day, by the settings' stopping model. */
 function servedProbability(corridor: Corridor, endsPerDay: number, existingIndex: number, settings: CostSettings): number {
   const trips = corridor.tripsPerDay > 0 ? corridor.tripsPerDay : 1;
-  const lambda = endsPerDay / trips;
-  if (settings.stoppingModel === 'always') return 1;
-  if (settings.stoppingModel === 'poisson' || existingIndex < 0 || !settings.observedShare) return stoppingProbability(lambda, settings.stoppingModel, null, null);
-  const observedShare = settings.observedShare[existingIndex] ?? null;
-  const baseLambda = (corridor.boardPerDay[existingIndex] + corridor.alightPerDay[existingIndex]) / trips;
-  return stoppingProbability(lambda, settings.stoppingModel, observedShare, baseLambda);
+  let observedShare: number | null = null;
+  let baseLambda: number | null = null;
+  if (existingIndex >= 0 && settings.observedShare) {
+    observedShare = settings.observedShare[existingIndex] ?? null;
+    baseLambda = (corridor.boardPerDay[existingIndex] + corridor.alightPerDay[existingIndex]) / trips;
+  }
+  return stoppingProbability(endsPerDay / trips, settings.stoppingModel, observedShare, baseLambda);
 }
 
 /** Total cost (rider-seconds per day, walk + ride delay) of serving the given sorted existing stops. */
