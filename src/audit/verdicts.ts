@@ -8,7 +8,7 @@
 import type { Feed } from '../gtfs/types.js';
 import type { CostCurvePoint, GapResult, PatternResult, StopResult, Verdict } from './types.js';
 import { bandM } from '../model/band.js';
-import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS, walkCostS } from '../model/corridor.js';
+import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
 import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
@@ -171,24 +171,28 @@ export function additionEffect(prep: PreparedPattern, m: number, q: number, sett
 }
 
 /**
- * What analysePattern needs of a pattern that no walk weight or band changes: each intermediate stop's
- * chance of being served and its removal's parts, each gap's addition parts (at its middle), and the
- * optimiser's result per walk weight once asked for. Built once per pattern and shared by the base audit
- * and its sensitivity cases.
+ * What analysePattern needs of a pattern that no walk weight or band changes: the gaps and the lookups
+ * between pattern and model positions, each intermediate stop's chance of being served and its removal's
+ * parts, each gap's addition parts (at its middle), and the optimiser's result per walk weight once asked
+ * for. Built once per pattern and shared by the base audit and its sensitivity cases.
  */
 export interface PatternParts {
   probability: number[]; // per model stop (1 at the ends)
   removal: (ChangeParts | null)[]; // per model stop; null at the ends and for fixed stops
   addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
   optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
-  medianGapM: number | null; // filled on first use
-  feedStopsByModelPos?: number[]; // filled on first use
-  modelPosOf?: Map<number, number>; // pattern stop index -> model position; filled on first use
+  gapsM: number[]; // per model gap
+  medianGapM: number;
+  feedStopsByModelPos: number[];
+  modelPosOf: Map<number, number>; // pattern stop index -> model position
 }
 
 export function patternParts(prep: PreparedPattern, params: ModelParams): PatternParts {
   const settings = costSettings(prep, params, {});
-  const n = prep.modelStops.length;
+  const { posM, modelStops, pattern } = prep;
+  const n = modelStops.length;
+  const gapsM: number[] = [];
+  for (let m = 0; m + 1 < n; m++) gapsM.push(posM[m + 1] - posM[m]);
   const today = servedToday(prep, settings);
   const probability: number[] = [];
   const removal: (ChangeParts | null)[] = [];
@@ -196,7 +200,16 @@ export function patternParts(prep: PreparedPattern, params: ModelParams): Patter
     probability.push(today[m]?.probability ?? 1);
     removal.push(m > 0 && m < n - 1 && prep.fixedReason[m] === '' ? removalParts(prep, m, settings, today) : null);
   }
-  return { probability, removal, addition: [], optimised: new Map(), medianGapM: null };
+  return {
+    probability,
+    removal,
+    addition: [],
+    optimised: new Map(),
+    gapsM,
+    medianGapM: median(gapsM),
+    feedStopsByModelPos: modelStops.map((j) => pattern.stopIdx[j]),
+    modelPosOf: new Map(modelStops.map((j, m) => [j, m])),
+  };
 }
 
 function median(values: number[]): number {
@@ -264,8 +277,7 @@ export function analysePattern(
   const { pattern, corridor, modelStops, posM, demand } = prep;
   const settings = costSettings(prep, params, { walkWeight });
   const n = modelStops.length;
-  const gapsM: number[] = [];
-  for (let m = 0; m + 1 < n; m++) gapsM.push(posM[m + 1] - posM[m]);
+  const { gapsM, feedStopsByModelPos, modelPosOf } = parts;
   const lengthM = posM[n - 1] - posM[0];
   const trips = corridor.tripsPerDay;
   const endsPerTrip = (demand.ridersPerDay + demand.alightPerDay.reduce((s, a) => s + a, 0)) / trips;
@@ -307,9 +319,6 @@ export function analysePattern(
   const removals: RemovalEffect[] = [];
   // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
   const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null;
-  // what no case changes, kept with the pattern's parts
-  const feedStopsByModelPos = (parts.feedStopsByModelPos ??= modelStops.map((j) => pattern.stopIdx[j]));
-  const modelPosOf = (parts.modelPosOf ??= new Map(modelStops.map((j, m) => [j, m])));
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
   const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
@@ -386,7 +395,7 @@ export function analysePattern(
     const gapM = gapsM[m];
     // asked only above the band, where it decides: a short gap is not wide whoever serves it
     const coveredByLocal = hasOptimum && gapM > band.highM ? prep.gapLocalCover(m) : null;
-    const wide = hasOptimum && gapM > band.highM && coveredByLocal === null;
+    const wide = hasOptimum && wideGap(m);
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];
     let add: ChangeEffect | null = null;
@@ -427,7 +436,7 @@ export function analysePattern(
     stopCount: pattern.stopIdx.length,
     lengthM: pattern.lengthM,
     tripsPerDay: pattern.tripsPerDay,
-    medianGapM: (parts.medianGapM ??= median(gapsM)),
+    medianGapM: parts.medianGapM,
     meanGapM,
     optimalSpacingM: hasOptimum ? opt.spacingM : 0,
     bandLowM: hasOptimum ? band.lowM : 0,
