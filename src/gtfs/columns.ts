@@ -91,11 +91,12 @@ export class RowColumns {
   /** Sorts the rows by stop_sequence (stably, arrival order among equals) and drops repeats; returns how many. */
   sortAndDedupe(): number {
     const m = this.used;
+    const cols = this.columns();
     let sorted = true;
     for (let q = 1; q < m; q++) if (this.seq[q] < this.seq[q - 1]) sorted = false;
     if (!sorted) {
       const order = Array.from({ length: m }, (_, q) => q).sort((x, y) => this.seq[x] - this.seq[y] || x - y);
-      for (const c of this.columns()) {
+      for (const c of cols) {
         const copy = c.slice(0, m);
         for (let q = 0; q < m; q++) c[q] = copy[order[q]];
       }
@@ -104,7 +105,7 @@ export class RowColumns {
     let w = m > 0 ? 1 : 0;
     for (let p = 1; p < m; p++) {
       if (this.seq[p] === this.seq[w - 1]) continue;
-      if (w !== p) for (const c of this.columns()) c[w] = c[p];
+      if (w !== p) for (const c of cols) c[w] = c[p];
       w++;
     }
     this.used = w;
