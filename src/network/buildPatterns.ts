@@ -12,7 +12,7 @@ import { haversineM } from './geodesy.js';
 import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
 import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
 import { simplifyPath } from './simplifyPath.js';
-import { scheduledTimesOfRuns, type TimedRun } from './scheduledTimes.js';
+import { scheduledTimesOfRuns, warnUntimedTrip, type TimedRun } from './scheduledTimes.js';
 import { tripProfiles, type TripProfile } from '../gtfs/stopTimesStore.js';
 import { tripInstancesOnDate, type TripRuns as TripInstances } from '../gtfs/frequencies.js';
 
@@ -254,7 +254,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     });
     const { times, untimed } = scheduledTimesOfRuns(runs, distAlongM);
     g.tripIds.forEach((t, k) => {
-      if (untimed[runOfTrip[k]]) warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', t);
+      if (untimed[runOfTrip[k]]) warnUntimedTrip(warnings, t);
     });
 
     const headCounts = new Map<string, number>();

@@ -33,9 +33,14 @@ export function scheduledTimes(
   const { warnings, tripIds } = options;
   const { times, untimed } = scheduledTimesOfRuns(trips.map((st) => ({ arrS: st.arrS, depS: st.depS, trips: 1 })), distAlongM);
   untimed.forEach((u, k) => {
-    if (u) warnings?.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripIds?.[k]);
+    if (u && warnings) warnUntimedTrip(warnings, tripIds?.[k]);
   });
   return times;
+}
+
+/** The warning for a trip left out of the scheduled times: no time at its first or last stop. */
+export function warnUntimedTrip(warnings: WarningSink, tripId: string | undefined): void {
+  warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripId);
 }
 
 /**
