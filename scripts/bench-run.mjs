@@ -19,6 +19,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { performance } from 'node:perf_hooks';
+import { createInflateRaw } from 'node:zlib';
 import yauzl from 'yauzl';
 
 const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -53,8 +54,13 @@ process.on('exit', (code) => {
   else process.stdout.write(text);
 });
 
-/** Opens stop_times.txt of a zip (or of a folder) as a stream of inflated bytes. */
-function openStopTimes(feedPath) {
+/**
+ * Opens stop_times.txt of a zip (or of a folder) as a stream of inflated bytes: through yauzl's own stream
+ * (zlib's 16 KiB buffers), or with `readerWay` as the audit's reader does (see openZip in
+ * src/gtfs/archive.ts): a deflated body read straight from the file in 1 MiB pieces, from the start its
+ * local header gives, and inflated with 1 MiB output buffers.
+ */
+function openStopTimes(feedPath, { readerWay = false } = {}) {
   if (fs.statSync(feedPath).isDirectory()) {
     return Promise.resolve(fs.createReadStream(path.join(feedPath, 'stop_times.txt')));
   }
@@ -65,7 +71,12 @@ function openStopTimes(feedPath) {
       zip.on('entry', (entry) => {
         if (path.posix.basename(entry.fileName) !== 'stop_times.txt') return zip.readEntry();
         found = true;
-        zip.openReadStream(entry, (e, stream) => (e ? reject(e) : resolve(stream)));
+        if (!readerWay || entry.compressionMethod !== 8) return zip.openReadStream(entry, (e, stream) => (e ? reject(e) : resolve(stream)));
+        zip.readLocalFileHeader(entry, { minimal: true }, (e, h) => {
+          if (e) return reject(e);
+          const body = fs.createReadStream(feedPath, { start: h.fileDataStart, end: h.fileDataStart + entry.compressedSize - 1, highWaterMark: 1 << 20 });
+          resolve(body.pipe(createInflateRaw({ chunkSize: 1 << 20 })));
+        });
       });
       zip.on('end', () => {
         if (!found) reject(new Error(`${feedPath}: no stop_times.txt`));
@@ -76,9 +87,8 @@ function openStopTimes(feedPath) {
   });
 }
 
-/** Floor (a): inflate stop_times.txt and count its lines; rows = lines less the header. */
-async function inflateAndCount(feedPath) {
-  const stream = await openStopTimes(feedPath);
+/** Counts a stream's lines and returns them less the header: the rows. */
+async function countRows(stream) {
   let lines = 0;
   let last = 10;
   for await (const chunk of stream) {
@@ -93,38 +103,14 @@ async function inflateAndCount(feedPath) {
   return lines - 1;
 }
 
-/**
- * For reference beside floor (a): the same count, inflating as the audit's reader does. The deflated body is
- * read straight from the file in 1 MiB pieces (its start from the local header) and inflated with 1 MiB
- * output buffers (see openZip in src/gtfs/archive.ts). A folder feed is read as floor (a) reads it.
- */
+/** Floor (a): inflate stop_times.txt and count its lines; rows = lines less the header. */
+async function inflateAndCount(feedPath) {
+  return countRows(await openStopTimes(feedPath));
+}
+
+/** For reference beside floor (a): the same count, inflating as the audit's reader does. */
 async function inflateReaderWay(feedPath) {
-  if (fs.statSync(feedPath).isDirectory()) return inflateAndCount(feedPath);
-  const { createInflateRaw } = await import('node:zlib');
-  const zf = await new Promise((resolve, reject) => yauzl.open(feedPath, { lazyEntries: true, autoClose: false }, (e, z) => (e ? reject(e) : resolve(z))));
-  try {
-    const entry = await new Promise((resolve, reject) => {
-      zf.on('entry', (e) => (path.posix.basename(e.fileName) === 'stop_times.txt' ? resolve(e) : zf.readEntry()));
-      zf.on('end', () => reject(new Error(`${feedPath}: no stop_times.txt`)));
-      zf.on('error', reject);
-      zf.readEntry();
-    });
-    let body;
-    if (entry.compressionMethod === 8) {
-      const start = await new Promise((resolve, reject) => zf.readLocalFileHeader(entry, { minimal: true }, (e, h) => (e ? reject(e) : resolve(h.fileDataStart))));
-      body = fs.createReadStream(feedPath, { start, end: start + entry.compressedSize - 1, highWaterMark: 1 << 20 }).pipe(createInflateRaw({ chunkSize: 1 << 20 }));
-    } else body = await new Promise((resolve, reject) => zf.openReadStream(entry, (e, rs) => (e ? reject(e) : resolve(rs))));
-    let lines = 0;
-    let last = 10;
-    for await (const chunk of body) {
-      for (let i = chunk.indexOf(10); i !== -1; i = chunk.indexOf(10, i + 1)) lines++;
-      if (chunk.length) last = chunk[chunk.length - 1];
-    }
-    if (last !== 10) lines++;
-    return lines - 1;
-  } finally {
-    zf.close();
-  }
+  return countRows(await openStopTimes(feedPath, { readerWay: true }));
 }
 
 /**
