@@ -35,11 +35,26 @@ export function quoteField(s: string): string {
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
-function formatNumber(v: number, digits: number | undefined): string {
+const POW10 = [1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9];
+
+/**
+ * A number cell: at most `digits` decimals, rounded as toFixed rounds and printed without trailing zeros
+ * (String(Number(v.toFixed(digits)))), -0 as 0. Most cells take a short cut with the same result: when
+ * v·10^digits is below 2^31 and not within 1e-6 of a half, rounding the product gives toFixed's integer n
+ * (the product's error is far below that margin), and n / 10^digits, one correctly rounded division of
+ * exact values, is the number nearest n·10^-digits, which is what parsing toFixed's text gives.
+ */
+export function formatNumber(v: number, digits: number | undefined): string {
   if (!Number.isFinite(v)) return '';
   if (digits === undefined) return String(v);
   // an integer prints as toFixed and back would print it, without the two conversions (most cells are counts)
   if (Number.isInteger(v)) return String(Object.is(v, -0) ? 0 : v);
+  if (digits < POW10.length) {
+    const p = POW10[digits];
+    const x = v * p;
+    const n = Math.round(x);
+    if (Math.abs(x) < 2147483648 && Math.abs(Math.abs(x - n) - 0.5) > 1e-6) return n === 0 ? '0' : String(n / p);
+  }
   const r = Number(v.toFixed(digits)); // drops trailing zeros and turns -0 into 0 below
   return String(Object.is(r, -0) ? 0 : r);
 }

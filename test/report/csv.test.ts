@@ -6,7 +6,7 @@ import { parse } from 'csv-parse/sync';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { StopResult } from '../../src/audit/types.js';
-import { candidatesCsv, guardText, patternsCsv, quoteField, renderCsv, stopsCsv } from '../../src/report/csv.js';
+import { candidatesCsv, formatNumber, guardText, patternsCsv, quoteField, renderCsv, stopsCsv } from '../../src/report/csv.js';
 import { HOSTILE_NAMES, makeSampleResult } from './sampleResult.js';
 
 const sample = makeSampleResult();
@@ -143,4 +143,31 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
   it('rejects an unknown units value with a coded error', () => {
     expect(() => stopsCsv(sample, { units: 'furlongs' as never })).toThrowError(/invalid option units: expected "metric" or "imperial", got "furlongs"/);
   });
+
+  // Reference: ECMAScript's Number.prototype.toFixed (ECMA-262, section 21.1.3.3), as the engine runs it;
+  // the cell is the number that text parses to, printed as String prints it, -0 as 0.
+  const viaToFixed = (v: number, d: number): string => {
+    const r = Number(v.toFixed(d));
+    return String(Object.is(r, -0) ? 0 : r);
+  };
+
+  it('prints number cells exactly as toFixed and back would, ties and signs included', () => {
+    const cases = [1.005, 1.015, 2.675, 0.5, 1.5, 2.5, -0.5, -2.5, -1.005, 0.05, 0.15, 1e-7, -1e-7, 0.0000005, 40.7128235, -73.9856445, 123456.75, 214748.36475, 1e15 + 0.5, 12345678901.25, 0.1 + 0.2];
+    for (const v of cases) for (const d of [0, 1, 2, 3, 6]) expect(formatNumber(v, d), `${v} to ${d}`).toBe(viaToFixed(v, d));
+    fc.assert(
+      fc.property(fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e7, max: 1e7 }), fc.constantFrom(1, 2, 3, 6), (v, d) => formatNumber(v, d) === viaToFixed(v, d)),
+      { numRuns: 20000 },
+    );
+    // values at exact halves of the last decimal, where rounding is decided by the binary value
+    fc.assert(
+      fc.property(fc.integer({ min: -2e8, max: 2e8 }), fc.constantFrom(1, 2, 3), (k, d) => {
+        const v = (k + 0.5) / 10 ** d;
+        return formatNumber(v, d) === viaToFixed(v, d);
+      }),
+      { numRuns: 20000 },
+    );
+    expect(formatNumber(-0.04, 1)).toBe('0');
+    expect(formatNumber(Number.NaN, 1)).toBe('');
+  });
 });
+
