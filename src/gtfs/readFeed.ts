@@ -242,10 +242,17 @@ async function readArchive(
     });
   }
 
-  // trips.txt
-  const allTrips = new Map<string, Trip>();
-  // route, service, headsign and shape repeat from trip to trip: one string each, shared, instead of one
-  // cut from the text per trip (which also keeps the whole text it was cut from alive)
+  // trips.txt, held as columns until the kept trips are known: on a big feed most trips do not run on
+  // the analysis date, and an object for each (alive through every collection of the read) cost more
+  // than parsing them; route, service, headsign and shape repeat from trip to trip: one string each,
+  // shared, instead of one cut from the text per trip (which also keeps the whole text it was cut from alive)
+  const tripRow = new Map<string, number>(); // trip_id -> row of the columns below
+  const tripId: string[] = [];
+  const tripRoute: string[] = [];
+  const tripService: string[] = [];
+  const tripHeadsign: string[] = [];
+  const tripShape: string[] = [];
+  const tripDirection: number[] = [];
   const strings = new Map<string, string>();
   const shared = (v: string): string => {
     const have = strings.get(v);
@@ -262,13 +269,19 @@ async function readArchive(
       unknownRoute++;
       return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
     }
-    if (allTrips.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
-    const directionId = intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1);
-    allTrips.set(id, { id, routeId: shared(routeId), serviceId: shared(row.get(c.service_id)), directionId, headsign: shared(row.get(c.trip_headsign)), shapeId: shared(row.get(c.shape_id)) });
+    if (tripRow.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
+    tripRow.set(id, tripId.length);
+    tripId.push(id);
+    tripDirection.push(intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1));
+    tripRoute.push(shared(routeId));
+    tripService.push(shared(row.get(c.service_id)));
+    tripHeadsign.push(shared(row.get(c.trip_headsign)));
+    tripShape.push(shared(row.get(c.shape_id)));
   });
-  if (allTrips.size === 0 && unknownRoute > 0) {
+  if (tripId.length === 0 && unknownRoute > 0) {
     throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });
   }
+  const tripAt = (k: number): Trip => ({ id: tripId[k], routeId: tripRoute[k], serviceId: tripService[k], directionId: tripDirection[k], headsign: tripHeadsign[k], shapeId: tripShape[k] });
 
   // frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based]
   const frequencies: Frequency[] = [];
@@ -303,25 +316,27 @@ async function readArchive(
       for (const r of hits) routeKeep.add(r.id);
     }
   }
-  const candidates = [...allTrips.values()].filter((t) => !routeKeep || routeKeep.has(t.routeId));
+  // rows of the trips of the routes asked for
+  const candidates: number[] = [];
+  for (let k = 0; k < tripId.length; k++) if (!routeKeep || routeKeep.has(tripRoute[k])) candidates.push(k);
 
   // the analysis date and the trips kept
   let analysisDate: string | null = null;
   let kept: Trip[];
   if (date === 'all') {
-    kept = candidates;
+    kept = candidates.map(tripAt);
   } else {
     if (date === 'auto') {
       const freq = tripRunsPerDay(frequencies);
       const runsPerService = new Map<string, number>();
-      for (const t of candidates) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (freq.get(t.id)?.count ?? 1));
+      for (const k of candidates) runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
       analysisDate = defaultAnalysisDate({ calendar, calendarDates }, runsPerService);
       if (!analysisDate) throw new StopspanError('empty-feed', 'no Monday-Friday date in the service range has any trip', { file: 'calendar.txt' });
     } else {
       analysisDate = date;
     }
     const on = servicesOn({ calendar, calendarDates }, analysisDate);
-    kept = candidates.filter((t) => on.has(t.serviceId));
+    kept = candidates.filter((k) => on.has(tripService[k])).map(tripAt);
     if (kept.length === 0) throw new StopspanError('empty-feed', `no trip runs on ${analysisDate}`, { value: analysisDate });
   }
   if (kept.length === 0) throw new StopspanError('empty-feed', 'the feed has no trips', { file: 'trips.txt' });
@@ -329,8 +344,8 @@ async function readArchive(
   const noDirection = kept.filter((t) => t.directionId < 0);
   if (noDirection.length > 0) warnings.add('blank-direction-id', 'trips with a blank direction_id (patterns are keyed on route and stops alone)', noDirection[0].id, noDirection.length);
   const known = new Set([...calendar.map((c) => c.serviceId), ...calendarDates.map((d) => d.serviceId)]);
-  const noService = candidates.filter((t) => !known.has(t.serviceId));
-  if (noService.length > 0) warnings.add('trip-unknown-service', 'trips whose service_id is in neither calendar.txt nor calendar_dates.txt (they never run)', noService[0].id, noService.length);
+  const noService = candidates.filter((k) => !known.has(tripService[k]));
+  if (noService.length > 0) warnings.add('trip-unknown-service', 'trips whose service_id is in neither calendar.txt nor calendar_dates.txt (they never run)', tripId[noService[0]], noService.length);
   const tripIdx = new Map<string, number>();
   kept.forEach((t, k) => tripIdx.set(t.id, k));
   const noShape = kept.filter((t) => t.shapeId === '').length;
