@@ -89,7 +89,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
       written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], { force: Boolean(opts.force) });
     }
-    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result) }));
+    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), units }));
     if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);
     return EXIT.clean;
   });

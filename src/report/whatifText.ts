@@ -4,6 +4,7 @@
 // shown as \uXXXX so it cannot move the cursor or break lines.
 
 import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../audit/whatif.js';
+import { checkUnits, metresToFeet, type Units } from './units.js';
 
 export interface WhatifTextOptions {
   feedSource?: string;
@@ -11,6 +12,8 @@ export interface WhatifTextOptions {
   labels?: Map<string, string>;
   columnsPerBlock?: number;
   width?: number;
+  /** Distances in metres (default) or feet; the figures in passenger-minutes and seconds are the same. */
+  units?: Units;
 }
 
 const safe = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
@@ -37,9 +40,12 @@ type Cell = (e: ScenarioPatternEffect | null, t: ScenarioTotals) => string;
 /** The result as terminal text (ends with a newline). */
 export function whatifText(result: ScenarioResult, options: WhatifTextOptions = {}): string {
   const { feedSource = '', labels = new Map(), columnsPerBlock = 4, width = 100 } = options;
+  const units = checkUnits(options.units ?? 'metric');
+  const unit = units === 'imperial' ? 'ft' : 'm';
+  const dist = (m: number): string => n0(units === 'imperial' ? metresToFeet(m) : m);
   const maxGapM = Number(result.params.max_gap_m?.value ?? 800);
   const t = result.totals;
-  const gap = (a: number, b: number): string => `${n0(a)} -> ${n0(b)}${b > maxGapM && b > a ? ' !' : ''}`;
+  const gap = (a: number, b: number): string => `${dist(a)} -> ${dist(b)}${b > maxGapM && b > a ? ' !' : ''}`;
   const rows: [string, Cell][] = [
     ['trips per day', (e) => (e ? n0(e.tripsPerDay) : n0(result.patterns.reduce((s, x) => s + x.tripsPerDay, 0)))],
     ['stops removed/moved/added', (e) => (e ? `${e.removedStopIds.length}/${e.movedStopIds.length}/${e.addedCount}` : '')],
@@ -51,8 +57,8 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
     ['net, pax-min/day (- = riders save)', (e) => n0((e ?? t).netPaxMinPerDay)],
     ['run time saved per trip, s', (e) => n1((e ?? t).runTimeSavedPerTripS)],
     ['vehicle-hours saved per day', (e) => n2((e ?? t).vehicleHoursPerDay)],
-    [`largest gap before -> after, m`, (e) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM)],
-    [`within ${n0(maxGapM / 2)} m of a stop, before -> after`, (e) => (e ? `${pc(e.coverageBefore)} -> ${pc(e.coverageAfter)}` : '')],
+    [`largest gap before -> after, ${unit}`, (e) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM)],
+    [`within ${dist(maxGapM / 2)} ${unit} of a stop, before -> after`, (e) => (e ? `${pc(e.coverageBefore)} -> ${pc(e.coverageAfter)}` : '')],
     ['demand', (e) => (e ? e.demandSource : '')],
   ];
   const columns: { head: string; e: ScenarioPatternEffect | null }[] = [
@@ -91,8 +97,8 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
   lines.push(`sensitivity (net pax-min/day): ${result.sensitivity.map((s) => `${s.label} ${n0(s.netPaxMinPerDay)}`).join(', ')}`);
   lines.push(
     t.overPolicyAfter > 0
-      ? `walking policy: ${t.overPolicyAfter} pattern${t.overPolicyAfter === 1 ? '' : 's'} get a gap above ${n0(maxGapM)} m that was not there before (marked !)`
-      : `walking policy: no new gap above ${n0(maxGapM)} m`,
+      ? `walking policy: ${t.overPolicyAfter} pattern${t.overPolicyAfter === 1 ? '' : 's'} get a gap above ${dist(maxGapM)} ${unit} that was not there before (marked !)`
+      : `walking policy: no new gap above ${dist(maxGapM)} ${unit}`,
   );
   if (result.warnings.length) lines.push(`${result.warnings.length} feed warning${result.warnings.length === 1 ? '' : 's'} (see --json)`);
   lines.push('');

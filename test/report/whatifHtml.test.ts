@@ -104,6 +104,25 @@ describe('whatifText', () => {
     expect(t).toContain('Title VI');
     expect(t).toContain('V1:0:1: route 1 to \\u001b[31mHarbour, removes v1-4, v1-6; moves v1-7; adds 1 stop');
   });
+
+  it('gives the distances in feet with units imperial, and the same passenger-minutes', () => {
+    const metric = whatifText(result, { feedSource: 'vellmoor.zip' });
+    const imperial = whatifText(result, { feedSource: 'vellmoor.zip', units: 'imperial' });
+    const gapRow = (text: string, unit: string): number[] => {
+      const line = text.split('\n').find((l) => l.startsWith(`largest gap before -> after, ${unit}`));
+      expect(line, `a gap row in ${unit}`).toBeDefined();
+      return [...line!.matchAll(/([\d,]+) -> ([\d,]+)/g)].flatMap((m) => [Number(m[1].replace(/,/g, '')), Number(m[2].replace(/,/g, ''))]);
+    };
+    const m = gapRow(metric, 'm');
+    const ft = gapRow(imperial, 'ft');
+    expect(ft.length).toBe(m.length);
+    // the international foot is exactly 0.3048 m (NIST SP 811, appendix B); each figure is rounded to 1
+    ft.forEach((f, i) => expect(Math.abs(f * 0.3048 - m[i])).toBeLessThanOrEqual(1));
+    expect(imperial).toMatch(/walking policy: .* \d[\d,]* ft/);
+    const net = (text: string): string | undefined => text.split('\n').find((l) => l.startsWith('net, pax-min/day'))?.replace(/ +/g, ' '); // columns widen with feet
+    expect(net(imperial)).toBe(net(metric));
+    expect(() => whatifText(result, { units: 'furlongs' as never })).toThrow(/units/);
+  });
 });
 
 describe('writeFolder', () => {
