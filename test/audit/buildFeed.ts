@@ -1,7 +1,8 @@
 // Test helper: builds a Feed and a PatternSet by hand, so the checks can be tested without the reader.
 // Patterns here are one per trip, with straight-line distances unless a shape offset is given.
 
-import type { Feed, Stop, Trip, TripStopTimes, Shape, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
+import type { Feed, Stop, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
+import { assembleFeed, type TripRows } from '../helpers/feedObject.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
 import type { FeedWarning } from '../../src/common/warnings.js';
 import { haversineM } from '../../src/network/geodesy.js';
@@ -54,59 +55,29 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
     parentStation: s.parentStation ?? '',
   }));
   const stopIndex = new Map(stops.map((s, i) => [s.id, i]));
-  const routes = new Map<string, Route>();
-  for (const r of spec.routes ?? [{ id: 'R1' }]) {
-    routes.set(r.id!, { id: r.id!, agencyId: r.agencyId ?? '', shortName: r.shortName ?? r.id!, longName: r.longName ?? '', type: r.type ?? 3 });
-  }
-  const trips = new Map<string, Trip>();
-  const stopTimes = new Map<string, TripStopTimes>();
-  for (const t of spec.trips) {
-    trips.set(t.id, {
-      id: t.id,
-      routeId: t.routeId ?? 'R1',
-      serviceId: t.serviceId ?? 'WK',
-      directionId: t.directionId ?? 0,
-      headsign: 'Vellmoor Centraal',
-      shapeId: t.shapeId ?? '',
-    });
-    const n = t.times.length;
-    stopTimes.set(t.id, {
-      stopIdx: Int32Array.from(t.times.map((x) => stopIndex.get(x[0]) ?? -1)),
-      seq: Int32Array.from(t.times.map((_, i) => i + 1)),
-      arrS: Int32Array.from(t.times.map((x) => x[1])),
-      depS: Int32Array.from(t.times.map((x) => x[2])),
-      shapeDist: Float64Array.from(t.times.map((x) => (x[3] === undefined ? NaN : x[3]))),
-      timepoint: new Uint8Array(n).fill(t.timepoint === false ? 0 : 1),
-      noService: new Uint8Array(n),
-    });
-  }
-  const shapes = new Map<string, Shape>();
-  for (const s of spec.shapes ?? []) {
-    shapes.set(s.id, {
-      id: s.id,
-      lat: Float64Array.from(s.pts.map((p) => p[0])),
-      lon: Float64Array.from(s.pts.map((p) => p[1])),
-      dist: Float64Array.from(s.dist ?? s.pts.map(() => NaN)),
-    });
-  }
-  const feed: Feed = {
+  const trips: TripRows[] = spec.trips.map((t) => ({
+    trip: { id: t.id, routeId: t.routeId ?? 'R1', serviceId: t.serviceId ?? 'WK', directionId: t.directionId ?? 0, headsign: 'Vellmoor Centraal', shapeId: t.shapeId ?? '' },
+    stopIdx: t.times.map((x) => stopIndex.get(x[0]) ?? -1),
+    seq: t.times.map((_, i) => i + 1),
+    arrS: t.times.map((x) => x[1]),
+    depS: t.times.map((x) => x[2]),
+    shapeDist: t.times.map((x) => (x[3] === undefined ? NaN : x[3])),
+    timepoint: t.times.map(() => (t.timepoint === false ? 0 : 1)),
+    noService: t.times.map(() => 0),
+  }));
+  const feed = assembleFeed({
     source: 'vellmoor-test',
     date: null,
     contentHash: 'h' + spec.stops.length,
-    agencies: [{ id: 'VT', name: 'Vellmoor Transit', timezone: 'Europe/Amsterdam' }],
-    routes,
     stops,
-    stopIndex,
+    routes: (spec.routes ?? [{ id: 'R1' }]).map((r) => ({ id: r.id!, agencyId: r.agencyId ?? '', shortName: r.shortName ?? r.id!, longName: r.longName ?? '', type: r.type ?? 3 })),
     trips,
-    stopTimes,
-    shapes,
-    calendar: spec.calendar ?? [{ serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' }],
-    calendarDates: spec.calendarDates ?? [],
-    frequencies: [],
+    shapes: (spec.shapes ?? []).map((sh) => ({ id: sh.id, lat: sh.pts.map((q) => q[0]), lon: sh.pts.map((q) => q[1]), dist: sh.dist })),
+    calendar: spec.calendar,
+    calendarDates: spec.calendarDates,
     feedInfo: { publisherName: 'Vellmoor Transit', version: spec.version ?? 'v1', startDate: '', endDate: '' },
-    warnings: spec.warnings ?? [],
-    rowCounts: {},
-  };
+    warnings: spec.warnings,
+  });
   const patterns: Pattern[] = spec.trips.map((t, k) => {
     const idx = t.times.map((x) => stopIndex.get(x[0]) ?? -1);
     const dist = [0];

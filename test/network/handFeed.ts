@@ -1,7 +1,8 @@
 // Test helper: builds small Feed objects by hand, set in the invented city of Vellmoor, so the network
 // stage can be tested without the reader. Coordinates are given in metres east and north of a centre.
 
-import type { Feed, Stop, Trip, TripStopTimes, Shape, Route, CalendarRow, CalendarDate, Frequency } from '../../src/gtfs/types.js';
+import type { Feed, Stop, CalendarRow, CalendarDate, Frequency } from '../../src/gtfs/types.js';
+import { assembleFeed, type TripRows } from '../helpers/feedObject.js';
 import { EARTH_RADIUS_M } from '../../src/network/geodesy.js';
 
 export const CENTRE = { lat: 52.0, lon: 4.9 };
@@ -51,65 +52,39 @@ export function handFeed(spec: FeedSpec): Feed {
   }));
   const stopIndex = new Map(stops.map((s, i) => [s.id, i]));
   const routeIds = spec.routes ?? [...new Set(spec.trips.map((t) => t.route ?? 'V1'))];
-  const routes = new Map<string, Route>(routeIds.map((id) => [id, { id, agencyId: 'VT', shortName: id, longName: '', type: 3 }]));
-  const trips = new Map<string, Trip>();
-  const stopTimes = new Map<string, TripStopTimes>();
-  for (const t of spec.trips) {
-    trips.set(t.id, {
-      id: t.id,
-      routeId: t.route ?? 'V1',
-      serviceId: t.service ?? 'WK',
-      directionId: t.dir ?? 0,
-      headsign: t.headsign ?? 'Vellmoor Harbour',
-      shapeId: t.shape ?? '',
-    });
-    const n = t.times.length;
-    const idx = t.times.map((s) => {
-      const i = stopIndex.get(s.stop);
-      if (i === undefined) throw new Error(`handFeed: unknown stop ${s.stop}`);
-      return i;
-    });
+  const trips: TripRows[] = spec.trips.map((t) => {
     const arr = t.times.map((s) => (s.arr === null || s.arr === undefined ? -1 : s.arr));
-    const dep = t.times.map((s, i) => (s.dep === undefined ? arr[i] : s.dep === null ? -1 : s.dep));
-    stopTimes.set(t.id, {
-      stopIdx: Int32Array.from(idx),
-      seq: Int32Array.from(t.times.map((_, i) => (i + 1) * 10)),
-      arrS: Int32Array.from(arr),
-      depS: Int32Array.from(dep),
-      shapeDist: Float64Array.from(t.times.map((s) => s.dist ?? NaN)),
-      timepoint: Uint8Array.from(arr.map((a) => (a >= 0 ? 1 : 0))),
-      noService: Uint8Array.from(t.times.map((s) => (s.noService ? 1 : 0))),
-    });
-    void n;
-  }
-  const shapes = new Map<string, Shape>();
-  for (const [id, s] of Object.entries(spec.shapes ?? {})) {
-    const pts = s.xy.map(([x, y]) => at(x, y));
-    shapes.set(id, {
-      id,
-      lat: Float64Array.from(pts.map((p) => p.lat)),
-      lon: Float64Array.from(pts.map((p) => p.lon)),
-      dist: Float64Array.from(s.dist ?? pts.map(() => NaN)),
-    });
-  }
-  return {
+    return {
+      trip: { id: t.id, routeId: t.route ?? 'V1', serviceId: t.service ?? 'WK', directionId: t.dir ?? 0, headsign: t.headsign ?? 'Vellmoor Harbour', shapeId: t.shape ?? '' },
+      stopIdx: t.times.map((s) => {
+        const i = stopIndex.get(s.stop);
+        if (i === undefined) throw new Error(`handFeed: unknown stop ${s.stop}`);
+        return i;
+      }),
+      seq: t.times.map((_, i) => (i + 1) * 10),
+      arrS: arr,
+      depS: t.times.map((s, i) => (s.dep === undefined ? arr[i] : s.dep === null ? -1 : s.dep)),
+      shapeDist: t.times.map((s) => s.dist ?? NaN),
+      timepoint: arr.map((a) => (a >= 0 ? 1 : 0)),
+      noService: t.times.map((s) => (s.noService ? 1 : 0)),
+    };
+  });
+  return assembleFeed({
     source: 'vellmoor-hand-built',
     date: spec.date === undefined ? '2026-10-14' : spec.date,
     contentHash: 'test',
-    agencies: [{ id: 'VT', name: 'Vellmoor Transit', timezone: 'Europe/Amsterdam' }],
-    routes,
     stops,
-    stopIndex,
+    routes: routeIds.map((id) => ({ id, agencyId: 'VT', shortName: id, longName: '', type: 3 })),
     trips,
-    stopTimes,
-    shapes,
-    calendar: spec.calendar ?? [{ serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' }],
-    calendarDates: spec.calendarDates ?? [],
-    frequencies: spec.frequencies ?? [],
+    shapes: Object.entries(spec.shapes ?? {}).map(([id, sh]) => {
+      const pts = sh.xy.map(([x, y]) => at(x, y));
+      return { id, lat: pts.map((q) => q.lat), lon: pts.map((q) => q.lon), dist: sh.dist };
+    }),
+    calendar: spec.calendar,
+    calendarDates: spec.calendarDates,
+    frequencies: spec.frequencies,
     feedInfo: null,
-    warnings: [],
-    rowCounts: {},
-  };
+  });
 }
 
 /** A polyline from (x0,y0) to (x1,y1) with points every stepM metres (both ends included). */

@@ -1,0 +1,75 @@
+// Test helper: assembles a Feed object (as readFeed returns it) from plain lists, for the builders that set
+// small feeds in Vellmoor by hand (test/audit/buildFeed.ts, test/network/handFeed.ts). Each builder keeps
+// its own way of describing stops and trips; what a Feed is made of is written here once.
+
+import type { CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from '../../src/gtfs/types.js';
+import type { FeedWarning } from '../../src/common/warnings.js';
+
+/** One trip's rows, a value per row (times in seconds, -1 blank; shape distances NaN when none). */
+export interface TripRows {
+  trip: Trip;
+  stopIdx: number[];
+  seq: number[];
+  arrS: number[];
+  depS: number[];
+  shapeDist: number[];
+  timepoint: number[];
+  noService: number[];
+}
+
+export interface FeedParts {
+  source: string;
+  date: string | null;
+  contentHash: string;
+  stops: Stop[];
+  routes: Route[];
+  trips: TripRows[];
+  shapes: { id: string; lat: number[]; lon: number[]; dist?: number[] }[];
+  calendar?: CalendarRow[];
+  calendarDates?: CalendarDate[];
+  frequencies?: Frequency[];
+  feedInfo: FeedInfo | null;
+  warnings?: FeedWarning[];
+}
+
+/** Weekdays of 2026 and 2027, service WK: what the hand-built feeds run on unless told otherwise. */
+export const WEEKDAYS: CalendarRow = { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' };
+
+export function assembleFeed(p: FeedParts): Feed {
+  const trips = new Map<string, Trip>();
+  const stopTimes = new Map<string, TripStopTimes>();
+  for (const t of p.trips) {
+    trips.set(t.trip.id, t.trip);
+    stopTimes.set(t.trip.id, {
+      stopIdx: Int32Array.from(t.stopIdx),
+      seq: Int32Array.from(t.seq),
+      arrS: Int32Array.from(t.arrS),
+      depS: Int32Array.from(t.depS),
+      shapeDist: Float64Array.from(t.shapeDist),
+      timepoint: Uint8Array.from(t.timepoint),
+      noService: Uint8Array.from(t.noService),
+    });
+  }
+  const shapes = new Map<string, Shape>();
+  for (const s of p.shapes) {
+    shapes.set(s.id, { id: s.id, lat: Float64Array.from(s.lat), lon: Float64Array.from(s.lon), dist: Float64Array.from(s.dist ?? s.lat.map(() => NaN)) });
+  }
+  return {
+    source: p.source,
+    date: p.date,
+    contentHash: p.contentHash,
+    agencies: [{ id: 'VT', name: 'Vellmoor Transit', timezone: 'Europe/Amsterdam' }],
+    routes: new Map(p.routes.map((r) => [r.id, r])),
+    stops: p.stops,
+    stopIndex: new Map(p.stops.map((s, i) => [s.id, i])),
+    trips,
+    stopTimes,
+    shapes,
+    calendar: p.calendar ?? [WEEKDAYS],
+    calendarDates: p.calendarDates ?? [],
+    frequencies: p.frequencies ?? [],
+    feedInfo: p.feedInfo,
+    warnings: p.warnings ?? [],
+    rowCounts: {},
+  };
+}
