@@ -14,7 +14,7 @@ export interface CsvOptions {
 
 type Cell = string | number | boolean | null;
 
-interface Column<T> {
+export interface CsvColumn<T> {
   name: string;
   kind: 'text' | 'number';
   digits?: number; // decimals for numbers; integers print as they are
@@ -59,7 +59,7 @@ export function formatNumber(v: number, digits: number | undefined): string {
   return String(Object.is(r, -0) ? 0 : r);
 }
 
-function renderCell<T>(col: Column<T>, row: T): string {
+function renderCell<T>(col: CsvColumn<T>, row: T): string {
   const v = col.get(row);
   if (v === null || v === undefined) return '';
   if (col.kind === 'number') {
@@ -71,18 +71,18 @@ function renderCell<T>(col: Column<T>, row: T): string {
 }
 
 /** Renders rows with the given columns as an RFC 4180 document. */
-export function renderCsv<T>(columns: Column<T>[], rows: readonly T[]): string {
+export function renderCsv<T>(columns: CsvColumn<T>[], rows: readonly T[]): string {
   const out: string[] = [columns.map((c) => quoteField(c.name)).join(',')];
   for (const row of rows) out.push(columns.map((c) => renderCell(c, row)).join(','));
   return out.join(CSV_EOL) + CSV_EOL;
 }
 
-const text = <T>(name: string, get: (r: T) => Cell): Column<T> => ({ name, kind: 'text', get });
-const num = <T>(name: string, get: (r: T) => Cell, digits?: number): Column<T> => ({ name, kind: 'number', get, digits });
+const text = <T>(name: string, get: (r: T) => Cell): CsvColumn<T> => ({ name, kind: 'text', get });
+const num = <T>(name: string, get: (r: T) => Cell, digits?: number): CsvColumn<T> => ({ name, kind: 'number', get, digits });
 const feet = (m: number | null): number | null => (m === null ? null : metresToFeet(m));
 
 /** Appends an *_ft column after the contract columns for each *_m column, when imperial. */
-function withImperial<T>(columns: Column<T>[], units: Units): Column<T>[] {
+function withImperial<T>(columns: CsvColumn<T>[], units: Units): CsvColumn<T>[] {
   if (units === 'metric') return columns;
   const extra = columns
     .filter((c) => c.kind === 'number' && c.name.endsWith('_m'))
@@ -90,7 +90,7 @@ function withImperial<T>(columns: Column<T>[], units: Units): Column<T>[] {
   return [...columns, ...extra];
 }
 
-export const PATTERN_COLUMNS: Column<PatternResult>[] = [
+export const PATTERN_COLUMNS: CsvColumn<PatternResult>[] = [
   text('pattern_id', (p) => p.patternId),
   text('route_id', (p) => p.routeId),
   text('route_short_name', (p) => p.routeShortName),
@@ -120,7 +120,7 @@ export const PATTERN_COLUMNS: Column<PatternResult>[] = [
   num('mean_trip_length_m', (p) => p.meanTripLengthM, 1),
 ];
 
-export const STOP_COLUMNS: Column<StopResult>[] = [
+export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
   text('pattern_id', (s) => s.patternId),
   text('route_id', (s) => s.routeId),
   num('direction_id', (s) => s.directionId),
@@ -141,7 +141,7 @@ export const STOP_COLUMNS: Column<StopResult>[] = [
 ];
 
 /** candidates.csv: the ranked network-level list; demand_source is the run's (candidates sum over patterns). */
-export function candidateColumns(demandSource: string): Column<Candidate>[] {
+export function candidateColumns(demandSource: string): CsvColumn<Candidate>[] {
   return [
     num('rank', (c) => c.rank),
     text('action', (c) => c.action),

@@ -1,8 +1,10 @@
 // GeoJSON renderers (RFC 7946) for GIS users: patterns as LineStrings drawn from their path, stops as
-// Points carrying the verdict and figures of stops.csv. Positions are [longitude, latitude] (section 3.1.1),
+// Points, each carrying the columns of patterns.csv or stops.csv (taken from their column tables, so the
+// two stay the same, as the output contract says). Positions are [longitude, latitude] (section 3.1.1),
 // rounded to 6 decimals (about 0.1 m), WGS84 implied, so no "crs" member (section 4).
 
-import type { AuditResult, PatternResult, StopResult } from '../audit/types.js';
+import type { AuditResult, StopResult } from '../audit/types.js';
+import { formatNumber, PATTERN_COLUMNS, STOP_COLUMNS, type CsvColumn } from './csv.js';
 
 export type Position = [number, number];
 
@@ -31,7 +33,6 @@ const round6 = (v: number): number => {
   const r = Math.round(v * 1e6) / 1e6;
   return Object.is(r, -0) ? 0 : r;
 };
-const round1 = (v: number | null): number | null => (v === null || !Number.isFinite(v) ? null : Math.round(v * 10) / 10);
 
 function validPosition(lon: number, lat: number): boolean {
   return Number.isFinite(lon) && Number.isFinite(lat) && lon >= -180 && lon <= 180 && lat >= -90 && lat <= 90;
@@ -50,56 +51,31 @@ function cleanLine(points: readonly Position[]): Position[] {
   return out;
 }
 
-function patternProperties(p: PatternResult): Feature<LineString>['properties'] {
-  return {
-    pattern_id: p.patternId,
-    route_id: p.routeId,
-    route_short_name: p.routeShortName,
-    direction_id: p.directionId,
-    headsign: p.headsign,
-    shape_id: p.shapeId,
-    distance_source: p.distanceSource,
-    stop_count: p.stopCount,
-    length_m: round1(p.lengthM),
-    trips_per_day: round1(p.tripsPerDay),
-    median_gap_m: round1(p.medianGapM),
-    mean_gap_m: round1(p.meanGapM),
-    optimal_spacing_m: round1(p.optimalSpacingM),
-    band_low_m: round1(p.bandLowM),
-    band_high_m: round1(p.bandHighM),
-    close_stops: p.closeStops,
-    wide_gaps: p.wideGaps,
-    optimal_stop_count: p.optimalStopCount,
-    pax_min_lost_per_day: round1(p.paxMinLostPerDay),
-    demand_source: p.demandSource,
-    lost_time_per_stop_s: round1(p.lostTimePerStopS),
-    cruise_speed_mps: round1(p.cruiseSpeedMps),
-    traffic_delay_s: round1(p.trafficDelayS),
-    stopping_model: p.stoppingModel,
-    mean_trip_length_m: round1(p.meanTripLengthM),
-  };
+type Properties = Feature<unknown>['properties'];
+
+/**
+ * A feature's properties: the columns of the matching CSV file, under the same names and with the same
+ * rounding, as JSON values (text raw: GIS tools do not run formulas; a blank number is null).
+ */
+function propertiesOf<T>(columns: readonly CsvColumn<T>[], row: T, skip: ReadonlySet<string> = new Set()): Properties {
+  const out: Properties = {};
+  for (const c of columns) {
+    if (skip.has(c.name)) continue;
+    const v = c.get(row);
+    if (c.kind === 'text') out[c.name] = v === null || v === undefined ? '' : String(v);
+    else if (typeof v === 'number') {
+      const text = formatNumber(v, c.digits);
+      out[c.name] = text === '' ? null : Number(text);
+    } else out[c.name] = v === undefined ? null : v;
+  }
+  return out;
 }
 
-function stopProperties(s: StopResult): Feature<Point>['properties'] {
-  return {
-    pattern_id: s.patternId,
-    route_id: s.routeId,
-    direction_id: s.directionId,
-    stop_index: s.stopIndex,
-    stop_id: s.stopId,
-    stop_name: s.stopName,
-    dist_along_m: round1(s.distAlongM),
-    gap_before_m: round1(s.gapBeforeM),
-    gap_after_m: round1(s.gapAfterM),
-    trips_per_day: round1(s.tripsPerDay),
-    boardings_per_day: round1(s.boardingsPerDay),
-    alightings_per_day: round1(s.alightingsPerDay),
-    verdict: s.verdict,
-    fixed_reason: s.fixedReason,
-    timepoint: s.timepoint,
-    removal_net_pax_min_per_day: round1(s.removalNetPaxMinPerDay),
-    demand_source: s.demandSource,
-  };
+// a stop's position is the geometry; the verdict's reason and the timepoint flag are for the map's legend
+const STOP_POSITION = new Set(['stop_lat', 'stop_lon']);
+
+function stopProperties(s: StopResult): Properties {
+  return { ...propertiesOf(STOP_COLUMNS, s, STOP_POSITION), fixed_reason: s.fixedReason, timepoint: s.timepoint };
 }
 
 /**
@@ -122,7 +98,7 @@ export function patternsGeoJson(result: AuditResult): FeatureCollection<LineStri
       line = cleanLine(stops.map((s) => [s.stopLon, s.stopLat] as Position));
     }
     if (line.length < 2) continue;
-    features.push({ type: 'Feature', geometry: { type: 'LineString', coordinates: line }, properties: patternProperties(p) });
+    features.push({ type: 'Feature', geometry: { type: 'LineString', coordinates: line }, properties: propertiesOf(PATTERN_COLUMNS, p) });
   }
   return { type: 'FeatureCollection', features };
 }

@@ -5,6 +5,8 @@
 import { booleanValid } from '@turf/turf';
 import { describe, expect, it } from 'vitest';
 import type { AuditResult } from '../../src/audit/types.js';
+import { parse } from 'csv-parse/sync';
+import { patternsCsv, stopsCsv } from '../../src/report/csv.js';
 import { patternsGeoJson, stopsGeoJson } from '../../src/report/geojson.js';
 import { makeSampleResult } from './sampleResult.js';
 
@@ -100,5 +102,35 @@ describe('patterns.geojson', () => {
       expect(c[0]).toBeCloseTo(stops0[i].stopLon, 6);
       expect(c[1]).toBeCloseTo(stops0[i].stopLat, 6);
     });
+  });
+});
+
+describe('GeoJSON properties and the CSV files', () => {
+  // DESIGN.md section 5: the GeoJSON files carry "the same" as patterns.csv and stops.csv. The CSV text is
+  // read back with csv-parse (an outside parser); every column but the stop position (the geometry) must
+  // be a property of the same name and value: numbers as numbers, blank as null, text unguarded.
+  const unguard = (s: string): string => (/^'[=+\-@\t\r]/.test(s) ? s.slice(1) : s);
+  const same = (csvText: string, features: { properties: Record<string, unknown> }[], skip: string[]): void => {
+    const rows = parse(csvText, { columns: true }) as Record<string, string>[];
+    expect(features.length).toBe(rows.length);
+    rows.forEach((row, i) => {
+      const props = features[i].properties;
+      for (const [name, cell] of Object.entries(row)) {
+        if (skip.includes(name)) continue;
+        expect(props, name).toHaveProperty(name);
+        const v = props[name];
+        if (typeof v === 'number') expect(v, name).toBe(Number(cell));
+        else if (v === null) expect(cell, name).toBe('');
+        else expect(v, name).toBe(unguard(cell));
+      }
+    });
+  };
+
+  it('patterns.geojson has every column of patterns.csv', () => {
+    same(patternsCsv(sample), patternsGeoJson(sample).features, []);
+  });
+
+  it('stops.geojson has every column of stops.csv but the position, which is its geometry', () => {
+    same(stopsCsv(sample), stopsGeoJson(sample).features, ['stop_lat', 'stop_lon']);
   });
 });
