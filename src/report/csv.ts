@@ -38,25 +38,30 @@ export function quoteField(s: string): string {
 const POW10 = [1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9];
 
 /**
- * A number cell: at most `digits` decimals, rounded as toFixed rounds and printed without trailing zeros
- * (String(Number(v.toFixed(digits)))), -0 as 0. Most cells take a short cut with the same result: when
- * v·10^digits is below 2^31 and not within 1e-6 of a half, rounding the product gives toFixed's integer n
- * (the product's error is far below that margin), and n / 10^digits, one correctly rounded division of
- * exact values, is the number nearest n·10^-digits, which is what parsing toFixed's text gives.
+ * The number a cell holds: v to at most `digits` decimals, rounded as toFixed rounds, -0 as 0; null when
+ * not finite. Most cells take a short cut with the same result: when v·10^digits is below 2^31 and not
+ * within 1e-6 of a half, rounding the product gives toFixed's integer n (the product's error is far below
+ * that margin), and n / 10^digits, one correctly rounded division of exact values, is the number nearest
+ * n·10^-digits, which is what parsing toFixed's text gives.
  */
-export function formatNumber(v: number, digits: number | undefined): string {
-  if (!Number.isFinite(v)) return '';
-  if (digits === undefined) return String(v);
-  // an integer prints as toFixed and back would print it, without the two conversions (most cells are counts)
-  if (Number.isInteger(v)) return String(Object.is(v, -0) ? 0 : v);
+export function cellNumber(v: number, digits: number | undefined): number | null {
+  if (!Number.isFinite(v)) return null;
+  // an integer is what toFixed and back would give (most cells are counts)
+  if (digits === undefined || Number.isInteger(v)) return Object.is(v, -0) ? 0 : v;
   if (digits < POW10.length) {
     const p = POW10[digits];
     const x = v * p;
     const n = Math.round(x);
-    if (Math.abs(x) < 2147483648 && Math.abs(Math.abs(x - n) - 0.5) > 1e-6) return n === 0 ? '0' : String(n / p);
+    if (Math.abs(x) < 2147483648 && Math.abs(Math.abs(x - n) - 0.5) > 1e-6) return n === 0 ? 0 : n / p;
   }
-  const r = Number(v.toFixed(digits)); // drops trailing zeros and turns -0 into 0 below
-  return String(Object.is(r, -0) ? 0 : r);
+  const r = Number(v.toFixed(digits));
+  return Object.is(r, -0) ? 0 : r;
+}
+
+/** A number cell's text: cellNumber printed as String prints it, '' when not finite. */
+export function formatNumber(v: number, digits: number | undefined): string {
+  const x = cellNumber(v, digits);
+  return x === null ? '' : String(x);
 }
 
 function renderCell<T>(col: CsvColumn<T>, row: T): string {
