@@ -2,6 +2,8 @@
 // The stopspan command line: composes one module per command. Commands only parse options, call the
 // library, print and set the exit code.
 
+// first, so that it applies to everything loaded after it
+import './engineTuning.js';
 import type * as Commander from 'commander';
 import { requireCjs } from '../common/requireCjs.js';
 import { commands } from './commands.js';
