@@ -394,8 +394,9 @@ export function analysePattern(
   for (let m = 0; m + 1 < n; m++) {
     const gapM = gapsM[m];
     // asked only above the band, where it decides: a short gap is not wide whoever serves it
-    const coveredByLocal = hasOptimum && gapM > band.highM ? prep.gapLocalCover(m) : null;
-    const wide = hasOptimum && wideGap(m);
+    const aboveBand = hasOptimum && gapM > band.highM;
+    const coveredByLocal = aboveBand ? prep.gapLocalCover(m) : null;
+    const wide = aboveBand && coveredByLocal === null;
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];
     let add: ChangeEffect | null = null;

@@ -42,7 +42,7 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
   // G[k][t] is the best cost with the last two kept stops preds[k][t] and k; back[k][t] indexes preds[i]
   const G: Float64Array[] = new Array(n);
   const back: Int32Array[] = new Array(n);
-  const walkMemo = (i: number, k: number) => walkCostS(corridor, pos[i], pos[k], settings);
+  const walkCost = (i: number, k: number): number => walkCostS(corridor, pos[i], pos[k], settings);
   G[0] = new Float64Array(0);
   back[0] = new Int32Array(0);
   for (let k = 1; k < n; k++) {
@@ -51,7 +51,7 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
     const bk = new Int32Array(pk.length).fill(-1);
     for (let t = 0; t < pk.length; t++) {
       const i = pk[t];
-      const w = walkMemo(i, k);
+      const w = walkCost(i, k);
       if (i === 0) {
         gk[t] = w;
         continue;

@@ -1,6 +1,7 @@
 // GeoJSON renderers (RFC 7946) for GIS users: patterns as LineStrings drawn from their path, stops as
-// Points, each carrying the columns of patterns.csv or stops.csv, as the output contract says. Positions are [longitude, latitude] (section 3.1.1),
-// rounded to 6 decimals (about 0.1 m), WGS84 implied, so no "crs" member (section 4).
+// Points, each carrying the columns of patterns.csv or stops.csv, as the output contract says. Positions
+// are [longitude, latitude] (section 3.1.1), rounded to 6 decimals (about 0.1 m), WGS84 implied, so no
+// "crs" member (section 4).
 
 import type { AuditResult, PatternResult, StopResult } from '../audit/types.js';
 import { cellNumber } from './csv.js';

@@ -4,6 +4,7 @@
 // shown as \uXXXX so it cannot move the cursor or break lines.
 
 import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../audit/whatif.js';
+import { groupedFixed } from './numberText.js';
 import { checkUnits, metresToFeet, type Units } from './units.js';
 
 export interface WhatifTextOptions {
@@ -17,7 +18,7 @@ export interface WhatifTextOptions {
 }
 
 const safe = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
-const n0 = (v: number): string => (Number.isFinite(v) ? Math.round(v).toLocaleString('en-US') : '-');
+const n0 = (v: number): string => (Number.isFinite(v) ? groupedFixed(Math.round(v)) : '-');
 const n1 = (v: number): string => (Number.isFinite(v) ? v.toFixed(1) : '-');
 const n2 = (v: number): string => (Number.isFinite(v) ? (Math.abs(v) < 0.005 ? 0 : v).toFixed(2) : '-');
 const pc = (v: number): string => (Number.isFinite(v) ? `${(v * 100).toFixed(1)}%` : '-');
