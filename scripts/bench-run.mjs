@@ -6,7 +6,7 @@
 //   node scripts/bench-run.mjs inflate-reader FEED.zip   reference only: inflate stop_times.txt the way the audit's
 //                                                        reader does (1 MiB reads and buffers), count its lines
 //   node scripts/bench-run.mjs csv FEED.zip              floor (b): the project's CSV reader over stop_times.txt
-//   node scripts/bench-run.mjs audit FEED.zip OUT_DIR    the full `stopspan audit FEED --out OUT_DIR --force`
+//   node scripts/bench-run.mjs audit FEED.zip OUT_DIR    the full `stopspan audit FEED --out OUT_DIR --force` (dist/bin)
 //   node scripts/bench-run.mjs stages FEED.zip OUT_DIR   the library stages one after another, each timed:
 //                                                        readFeed, buildPatterns, runAudit, writeReport
 //
@@ -141,11 +141,11 @@ async function countWithReader(csv, stream) {
 
 /** The full audit, exactly as a user runs it, in this process. */
 async function audit(feedPath, out) {
-  const mainPath = path.join(distDir, 'cli/main.js');
+  const mainPath = path.join(distDir, 'bin/stopspan.js'); // the bundle package.json's bin names
   if (!fs.existsSync(mainPath)) throw new Error(`${mainPath} is not built`);
   process.argv = [process.argv[0], mainPath, 'audit', feedPath, '--out', out, '--force'];
   await import(pathToFileURL(mainPath).href);
-  // main.js runs the command when imported; the figures are taken when the process exits.
+  // the command runs when imported; the figures are taken when the process exits.
 }
 
 /** The library's stages in turn, as the audit command composes them, with the time of each. */

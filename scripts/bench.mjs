@@ -27,7 +27,7 @@ const runner = path.join(repoDir, 'scripts/bench-run.mjs');
 // same time cannot change the code under measurement; with --no-build it measures dist/ as it stands.
 const benchDist = path.join(benchOut, 'dist');
 let distDir = benchDist;
-const mainJs = () => path.join(distDir, 'cli/main.js');
+const mainJs = () => path.join(distDir, 'bin/stopspan.js'); // the command as `stopspan` runs it (the bundle)
 
 /** The targets of the benchmark (issue 8). */
 const TARGETS = {
@@ -82,6 +82,9 @@ function build() {
   fs.rmSync(benchDist, { recursive: true, force: true });
   const r = spawnSync(process.execPath, [tsc, '-p', 'tsconfig.json', '--outDir', benchDist], { cwd: repoDir, encoding: 'utf8' });
   if (r.status !== 0) note(`bench: tsc reported errors (the build may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
+  // then the command's bundle, as npm run build makes it (scripts/bundle-cli.mjs)
+  const b = spawnSync(process.execPath, [path.join(repoDir, 'scripts/bundle-cli.mjs'), benchDist], { cwd: repoDir, encoding: 'utf8' });
+  if (b.status !== 0) note(`bench: bundling the command failed:\n${(b.stdout + b.stderr).split('\n').slice(0, 10).join('\n')}`);
 }
 
 /** Runs one measurement in a child process; resolves to its figures plus the wall time seen from here. */

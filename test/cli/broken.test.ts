@@ -3,7 +3,7 @@
 // and leaves no output folder; usable input writes the whole report folder and counts its warnings.
 // Before that, the corpus itself is checked against outside readers (yauzl, csv-parse, the WHATWG UTF-8
 // decoder) so each case is damaged exactly as it says. The CLI part skips, with a message, until
-// dist/cli/main.js has an audit command (npm run build).
+// the built command (dist/bin/stopspan.js) has an audit command (npm run build).
 
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
@@ -26,7 +26,7 @@ interface BrokenCase {
 const ROOT = join(import.meta.dirname, '..', '..');
 const BROKEN = join(ROOT, 'fixtures', 'broken');
 // STOPSPAN_CLI lets the harness itself be checked against a stand-in; normally the built CLI
-const CLI = process.env.STOPSPAN_CLI ?? join(ROOT, 'dist', 'cli', 'main.js');
+const CLI = process.env.STOPSPAN_CLI ?? join(ROOT, 'dist', 'bin', 'stopspan.js');
 const cases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
 // the files every audit writes (the output contract in the design notes, section 5)
 const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
@@ -210,7 +210,7 @@ describe('the broken corpus', () => {
   });
 });
 
-const skipNote = 'skipped: dist/cli/main.js has no audit command yet (run npm run build once the CLI exists)';
+const skipNote = 'skipped: dist/bin/stopspan.js has no audit command yet (run npm run build once the CLI exists)';
 if (!HAS_AUDIT) console.warn(`test/cli/broken.test.ts: ${skipNote}`);
 
 describe.skipIf(!HAS_AUDIT)(`broken feeds through the CLI${HAS_AUDIT ? '' : ` (${skipNote})`}`, () => {

@@ -26,7 +26,7 @@ const PATH = process.env.STOPSPAN_FUZZ_PATH; // fast-check's replay path, printe
 const RUNS = Number(process.env.STOPSPAN_FUZZ_RUNS ?? 50);
 const MAX_MUTATIONS = Number(process.env.STOPSPAN_FUZZ_MAX_MUTATIONS ?? 4);
 const CLI_RUNS = 4;
-const CLI = join(ROOT, 'dist', 'cli', 'main.js');
+const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 console.log(`test/fuzz/mutate-demo.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED}), ${RUNS} in-process runs, ${CLI_RUNS} CLI runs`);
 
 // ---------------------------------------------------------------------------------------------------

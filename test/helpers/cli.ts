@@ -1,9 +1,10 @@
-// Runs the built CLI (dist/cli/main.js, built once by test/globalSetup.ts) and captures what it printed.
+// Runs the built CLI as `stopspan` runs it (the bundle dist/bin/stopspan.js that package.json's bin names,
+// built once by test/globalSetup.ts) and captures what it printed.
 import { spawn } from 'node:child_process';
 import { join, resolve } from 'node:path';
 
 export const ROOT = resolve(__dirname, '../..');
-export const CLI = join(ROOT, 'dist/cli/main.js');
+export const CLI = join(ROOT, 'dist/bin/stopspan.js');
 
 export interface CliRun {
   code: number | null;

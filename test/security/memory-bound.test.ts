@@ -19,7 +19,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import yauzl from 'yauzl';
 import { ROOT } from '../fuzz/demoTables.js';
 
-const CLI = join(ROOT, 'dist', 'cli', 'main.js');
+const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const HEAP_MB = 256;
 const haveCli = existsSync(CLI);
 if (!haveCli) console.warn(`test/security/memory-bound.test.ts: skipped: ${CLI} is absent (npm run build)`);

@@ -14,7 +14,7 @@ import { ROOT, tableText } from '../fuzz/demoTables.js';
 import { AGENCY_NAME, H, HOSTILE, MINIMAL, STOP_IDS, STOP_NAMES, writeHostileFeed } from './hostileFeed.js';
 import { scanHtml, type HtmlScan } from './htmlScan.js';
 
-const CLI = join(ROOT, 'dist', 'cli', 'main.js');
+const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const work = mkdtempSync(join(tmpdir(), 'stopspan-pages-'));
 afterAll(() => rmSync(work, { recursive: true, force: true }));
 
