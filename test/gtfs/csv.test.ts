@@ -4,11 +4,13 @@
 
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
+import { Readable } from 'node:stream';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { parse as parseStream } from 'csv-parse';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
@@ -310,6 +312,61 @@ describe('the CSV reader refuses', () => {
     const e = thrown(() => parseCsv('a,b\n"x"y,2\n', { file: 't.txt' }));
     expect(e.code).toBe('csv-syntax');
     expect(e.context).toMatchObject({ file: 't.txt', line: 2, column: 'a' });
+  });
+});
+
+describe('the CSV reader over a Node stream', () => {
+  const table = 'id,name\n' + Array.from({ length: 3000 }, (_, k) => `s${k},"Stop ${k}, north"\n`).join('');
+
+  /** A Readable holding the table in `pieces` chunks, all pushed before anyone reads (a deep read-ahead). */
+  function buffered(pieces: number): Readable {
+    const r = new Readable({ read() {}, highWaterMark: 1 << 30 });
+    const b = Buffer.from(table);
+    const step = Math.ceil(b.length / pieces);
+    for (let a = 0; a < b.length; a += step) r.push(b.subarray(a, a + step));
+    r.push(null);
+    return r;
+  }
+
+  it('reads every record csv-parse reads when the whole table is already buffered, chunk by chunk', async () => {
+    const rows: string[][] = [];
+    const seen: number[] = [];
+    let header: string[] = [];
+    await readCsv(buffered(40), { file: 't.csv', onHeader: (h) => (header = h), onRow: (r) => rows.push(r.toArray()), onBytes: (n) => seen.push(n) });
+    expect([header, ...rows]).toEqual(oracle(table)); // csv-parse, the reference reader
+    expect(seen[seen.length - 1]).toBe(Buffer.byteLength(table));
+  });
+
+  it("rejects with the stream's error, whether it comes while reading or came before", async () => {
+    const late = new Readable({ read() {} });
+    late.push('id,name\ns1,a\n');
+    setTimeout(() => late.destroy(new Error('disk gone')), 5);
+    await expect(readCsv(late, { file: 't.csv', onHeader: () => {}, onRow: () => {} })).rejects.toThrow('disk gone');
+    const early = new Readable({ read() {} });
+    early.on('error', () => {});
+    early.destroy(new Error('failed first'));
+    await new Promise((r) => setImmediate(r));
+    await expect(readCsv(early, { file: 't.csv', onHeader: () => {}, onRow: () => {} })).rejects.toThrow('failed first');
+  });
+
+  it('rejects when the stream closes before its end, and stops the stream when a row is refused', async () => {
+    const cut = new Readable({ read() {} });
+    cut.push('id,name\ns1,a\n');
+    setTimeout(() => cut.destroy(), 5);
+    await expect(readCsv(cut, { file: 't.csv', onHeader: () => {}, onRow: () => {} })).rejects.toThrow(/Premature close/);
+    const src = buffered(40);
+    let rows = 0;
+    const e = await rejected(
+      readCsv(src, {
+        file: 't.csv',
+        onHeader: () => {},
+        onRow: (r) => {
+          if (++rows === 10) throw new StopspanError('bad-value', 'refused', { file: 't.csv', line: r.line });
+        },
+      }),
+    );
+    expect(e.context).toMatchObject({ file: 't.csv', line: 11 });
+    expect(src.destroyed).toBe(true);
   });
 });
 
