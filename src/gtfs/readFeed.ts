@@ -261,22 +261,42 @@ async function readArchive(
     strings.set(own, own);
     return own;
   };
+  // trips.txt is mostly sorted, so a column's value tends to be the row before's: then its shared string
+  // is reused without cutting and hashing the value again (and a route_id already checked is not checked again)
+  const sameAsBefore = (): { raw: string; value: string } => ({ raw: '\0', value: '' });
+  const lastRoute = sameAsBefore();
+  const lastService = sameAsBefore();
+  const lastHeadsign = sameAsBefore();
+  const lastShape = sameAsBefore();
+  const sharedField = (row: CsvRow, i: number, last: { raw: string; value: string }): string => {
+    if (row.equals(i, last.raw)) return last.value;
+    const v = shared(row.get(i));
+    last.raw = v;
+    last.value = v;
+    return v;
+  };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
     const id = need('trips.txt', row, c.trip_id, 'trip_id');
-    const routeId = row.get(c.route_id);
-    if (!routes.has(routeId)) {
-      unknownRoute++;
-      return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
+    let routeId = lastRoute.value;
+    if (!row.equals(c.route_id, lastRoute.raw)) {
+      routeId = row.get(c.route_id);
+      if (!routes.has(routeId)) {
+        unknownRoute++;
+        return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
+      }
+      routeId = shared(routeId);
+      lastRoute.raw = routeId;
+      lastRoute.value = routeId;
     }
     if (tripRow.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
     tripRow.set(id, tripId.length);
     tripId.push(id);
     tripDirection.push(intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1));
-    tripRoute.push(shared(routeId));
-    tripService.push(shared(row.get(c.service_id)));
-    tripHeadsign.push(shared(row.get(c.trip_headsign)));
-    tripShape.push(shared(row.get(c.shape_id)));
+    tripRoute.push(routeId);
+    tripService.push(sharedField(row, c.service_id, lastService));
+    tripHeadsign.push(sharedField(row, c.trip_headsign, lastHeadsign));
+    tripShape.push(sharedField(row, c.shape_id, lastShape));
   });
   if (tripId.length === 0 && unknownRoute > 0) {
     throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });

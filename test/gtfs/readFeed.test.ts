@@ -8,6 +8,8 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { ProgressEvent } from '../../src/common/progress.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
+import { openFeed } from '../../src/gtfs/archive.js';
+import { parse as parseStream } from 'csv-parse';
 import type { Feed } from '../../src/gtfs/types.js';
 import { BASIC, cleanupCopies, editTable, feedCopy, FIXTURES, zipFolder } from './feedCopy.js';
 import { rejected } from '../helpers/errors.js';
@@ -77,6 +79,31 @@ describe('readFeed on the Vellmoor fixture', () => {
     expect(feed.trips.has('TX')).toBe(false);
     expect(warning(feed, 'trip-unknown-route')?.count).toBe(1);
     expect(warning(feed, 'trip-without-shape')).toMatchObject({ count: 1, examples: ['T2'] });
+  });
+
+  it("checks each row's route_id and values, also when they repeat or alternate from row to row", async () => {
+    const trips = [
+      'route_id,service_id,trip_id,direction_id,shape_id,trip_headsign',
+      'R1,WK,T1,0,SH1,Harbour',
+      'NOPE,WK,TA,0,SH1,Harbour',
+      'NOPE,WK,TB,0,SH1,Harbour',
+      'R1,WK,T2,1,,Harbour',
+      'R2,EXTRA,T3,0,SH1,Old Town',
+      'R1,WK,T4,0,SH1,Harbour',
+      'R2,WK,TF,0,SH1,',
+    ].join('\n');
+    const feed = await readFeed(feedCopy({ 'trips.txt': trips + '\n' }), { date: 'all' });
+    expect(warning(feed, 'trip-unknown-route')?.count).toBe(2);
+    const got = [...feed.trips.values()].map((t) => [t.id, t.routeId, t.serviceId, t.directionId, t.shapeId, t.headsign]);
+    expect(got.sort()).toEqual(
+      [
+        ['T1', 'R1', 'WK', 0, 'SH1', 'Harbour'],
+        ['T2', 'R1', 'WK', 1, '', 'Harbour'],
+        ['T3', 'R2', 'EXTRA', 0, 'SH1', 'Old Town'],
+        ['T4', 'R1', 'WK', 0, 'SH1', 'Harbour'],
+        ['TF', 'R2', 'WK', 0, 'SH1', ''],
+      ],
+    );
   });
 
   it("with date 'all' keeps every trip and sets no date", async () => {
@@ -295,6 +322,30 @@ describe.skipIf(!HAVE_FEEDS)('readFeed on the real feeds', () => {
     // [C, shared/feeds/README.md: 8 497 trips and 989 stops served on 2026-10-14]
     expect(feed.trips.size).toBe(8497);
     expect(served(feed)).toBe(989);
+  });
+
+  it("gives every kept trip the route, service, headsign, shape and direction its trips.txt row has", async () => {
+    // csv-parse (the reference reader) over trips.txt as the oracle: the reader reuses a column's string
+    // from the row before when the value repeats, and this checks that it never carries one over wrongly
+    const file = join(FEEDS, 'nyct-bus-manhattan.zip');
+    const feed = await readFeed(file, { date: 'all' });
+    const archive = await openFeed(file);
+    const rows: Record<string, string>[] = [];
+    try {
+      const parser = (await archive.open('trips.txt')).pipe(parseStream({ bom: true, trim: true, columns: true, skip_empty_lines: true }));
+      for await (const r of parser) rows.push(r as Record<string, string>);
+    } finally {
+      await archive.close();
+    }
+    expect(rows.length).toBe(37872); // [C, shared/feeds/README.md: 37 872 trips]
+    let checked = 0;
+    for (const r of rows) {
+      const t = feed.trips.get(r.trip_id);
+      if (!t) continue;
+      expect(t, r.trip_id).toEqual({ id: r.trip_id, routeId: r.route_id, serviceId: r.service_id, directionId: r.direction_id === '' ? -1 : Number(r.direction_id), headsign: r.trip_headsign ?? '', shapeId: r.shape_id ?? '' });
+      checked++;
+    }
+    expect(checked).toBe(feed.trips.size);
   });
 
   it('chooses a weekday inside the service range by default', async () => {
