@@ -7,6 +7,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { parseAst } from 'rolldown/parseAst';
 import { afterAll, describe, expect, it } from 'vitest';
 import { CLI, ROOT } from '../helpers/cli.js';
 
@@ -15,10 +16,17 @@ const UNBUNDLED = join(ROOT, 'dist/cli/main.js');
 const tmp = mkdtempSync(join(tmpdir(), 'stopspan-bundle-'));
 afterAll(() => rmSync(tmp, { recursive: true, force: true }));
 
-/** The specifiers of a module's static and dynamic imports. */
+/** The specifiers of a module's static and dynamic imports, from its syntax tree (rolldown's parser). */
 function importsOf(code: string): string[] {
   const out: string[] = [];
-  for (const m of code.matchAll(/\bfrom\s*["']([^"']+)["']|\bimport\s*\(\s*["']([^"']+)["']\s*\)|^\s*import\s*["']([^"']+)["']/gm)) out.push(m[1] ?? m[2] ?? m[3]);
+  const visit = (node: unknown): void => {
+    if (Array.isArray(node)) return node.forEach(visit);
+    if (!node || typeof node !== 'object') return;
+    const n = node as { type?: string; source?: { type?: string; value?: unknown } };
+    if ((n.type === 'ImportDeclaration' || n.type === 'ImportExpression' || n.type === 'ExportAllDeclaration' || n.type === 'ExportNamedDeclaration') && n.source && typeof n.source.value === 'string') out.push(n.source.value);
+    for (const v of Object.values(n)) if (v && typeof v === 'object') visit(v);
+  };
+  visit(parseAst(code));
   return out;
 }
 
