@@ -673,12 +673,22 @@ function eachChunk(stream: Readable, take: (chunk: Buffer | string) => void): Pr
       if (err === undefined) resolve();
       else reject(err);
     };
+    const resume = (): void => {
+      if (!settled) stream.resume();
+    };
     const onData = (chunk: Buffer | string): void => {
       try {
         take(chunk);
       } catch (e) {
         finish(e);
         stream.destroy();
+        return;
+      }
+      // more is buffered: let the event loop turn before the next chunk, so that inflating (whose thread
+      // pool work is handed on by callbacks on this thread) goes on while this thread parses
+      if (stream.readableLength > 0) {
+        stream.pause();
+        setImmediate(resume);
       }
     };
     const onEnd = (): void => finish();

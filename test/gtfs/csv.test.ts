@@ -337,6 +337,17 @@ describe('the CSV reader over a Node stream', () => {
     expect(seen[seen.length - 1]).toBe(Buffer.byteLength(table));
   });
 
+  it('lets the event loop turn between buffered chunks (inflating is handed on by callbacks there)', async () => {
+    let rows = 0;
+    let rowsWhenLoopTurned = -1;
+    setImmediate(() => (rowsWhenLoopTurned = rows));
+    await readCsv(buffered(40), { file: 't.csv', onHeader: () => {}, onRow: () => rows++ });
+    expect(rows).toBe(3000);
+    // the immediate ran while the table was being read, not after the last chunk
+    expect(rowsWhenLoopTurned).toBeGreaterThan(0);
+    expect(rowsWhenLoopTurned).toBeLessThan(3000);
+  });
+
   it("rejects with the stream's error, whether it comes while reading or came before", async () => {
     const late = new Readable({ read() {} });
     late.push('id,name\ns1,a\n');
