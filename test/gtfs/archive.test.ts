@@ -3,13 +3,14 @@
 
 import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { crc32 } from 'node:zlib';
+import { createHash } from 'node:crypto';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import yauzl from 'yauzl';
 import yazl from 'yazl';
 import { WarningSink } from '../../src/common/warnings.js';
-import { openFeed } from '../../src/gtfs/archive.js';
+import { fileSha256, openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
 import { rejected } from '../helpers/errors.js';
@@ -197,6 +198,24 @@ describe('openFeed on zips', () => {
     expect(e3.code).toBe('feed-too-large');
     expect(e3.message).toContain(`total cap of ${smallBytes + 1000}`);
     await total.close();
+  });
+});
+
+describe('the hash of a feed file', () => {
+  it('is SHA-256, the same whether the file is hashed whole or streamed', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-hash-'));
+    const abc = join(dir, 'abc.bin');
+    writeFileSync(abc, 'abc');
+    // FIPS 180-2, appendix B.1: SHA-256("abc")
+    const ABC = 'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad';
+    expect(await fileSha256(abc)).toBe(ABC);
+    expect(await fileSha256(abc, 0)).toBe(ABC);
+    // a file of several 1 MiB pieces, streamed (limit 0) and whole
+    const big = join(dir, 'big.bin');
+    writeFileSync(big, Buffer.from(Array.from({ length: (3 << 20) + 17 }, (_, k) => (k * 131) & 255)));
+    const ref = createHash('sha256').update(readFileSync(big)).digest('hex'); // node's own hash, one shot
+    expect(await fileSha256(big, 0)).toBe(ref);
+    expect(await fileSha256(big)).toBe(ref);
   });
 });
 
