@@ -26,63 +26,62 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
   const pos = corridor.posM;
   const isForced = (j: number) => j === 0 || j === n - 1 || forced[j] === true;
 
-  // allowed predecessors of each stop, nearest first
-  const preds: number[][] = new Array(n);
-  preds[0] = [];
+  // allowed predecessors of each stop, nearest first: those of stop k are preds[predAt[k] .. predAt[k + 1]),
+  // all stops' in one array (one allocation per call, not three per stop: the optimiser runs for every
+  // pattern and walk weight, and its small arrays were 12 MB of garbage per Manhattan audit)
+  const predAt = new Int32Array(n + 1);
+  let preds = new Int32Array(Math.max(16, n * 4));
+  let used = 0;
   for (let k = 1; k < n; k++) {
-    const list: number[] = [];
+    predAt[k] = used;
     for (let i = k - 1; i >= 0; i--) {
       if (i < k - 1 && pos[k] - pos[i] > maxGapM) break;
-      list.push(i);
+      if (used === preds.length) {
+        const grown = new Int32Array(preds.length * 2);
+        grown.set(preds);
+        preds = grown;
+      }
+      preds[used++] = i;
       if (isForced(i)) break; // cannot skip over a forced stop
     }
-    preds[k] = list;
   }
+  predAt[n] = used;
 
-  // G[k][t] is the best cost with the last two kept stops preds[k][t] and k; back[k][t] indexes preds[i]
-  const G: Float64Array[] = new Array(n);
-  const back: Int32Array[] = new Array(n);
-  const walkCost = (i: number, k: number): number => walkCostS(corridor, pos[i], pos[k], settings);
-  G[0] = new Float64Array(0);
-  back[0] = new Int32Array(0);
+  // G[predAt[k] + t] is the best cost with the last two kept stops preds[predAt[k] + t] and k; back holds
+  // the t of the best choice among the predecessors of that predecessor
+  const G = new Float64Array(used).fill(Infinity);
+  const back = new Int32Array(used).fill(-1);
   for (let k = 1; k < n; k++) {
-    const pk = preds[k];
-    const gk = new Float64Array(pk.length).fill(Infinity);
-    const bk = new Int32Array(pk.length).fill(-1);
-    for (let t = 0; t < pk.length; t++) {
-      const i = pk[t];
-      const w = walkCost(i, k);
+    for (let e = predAt[k]; e < predAt[k + 1]; e++) {
+      const i = preds[e];
+      const w = walkCostS(corridor, pos[i], pos[k], settings);
       if (i === 0) {
-        gk[t] = w;
+        G[e] = w;
         continue;
       }
-      const pi = preds[i];
-      const gi = G[i];
       let best = Infinity;
       let arg = -1;
-      for (let u = 0; u < pi.length; u++) {
-        if (!(gi[u] < Infinity)) continue;
-        const c = gi[u] + servedStopCostS(corridor, pos[pi[u]], pos[i], pos[k], i, settings);
+      for (let f = predAt[i]; f < predAt[i + 1]; f++) {
+        if (!(G[f] < Infinity)) continue;
+        const c = G[f] + servedStopCostS(corridor, pos[preds[f]], pos[i], pos[k], i, settings);
         if (c < best) {
           best = c;
-          arg = u;
+          arg = f - predAt[i];
         }
       }
       if (arg >= 0) {
-        gk[t] = best + w;
-        bk[t] = arg;
+        G[e] = best + w;
+        back[e] = arg;
       }
     }
-    G[k] = gk;
-    back[k] = bk;
   }
 
   const last = n - 1;
   let bestT = -1;
   let bestCost = Infinity;
-  for (let t = 0; t < preds[last].length; t++) {
-    if (G[last][t] < bestCost) {
-      bestCost = G[last][t];
+  for (let t = 0; t < predAt[last + 1] - predAt[last]; t++) {
+    if (G[predAt[last] + t] < bestCost) {
+      bestCost = G[predAt[last] + t];
       bestT = t;
     }
   }
@@ -91,10 +90,10 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
   let k = last;
   let t = bestT;
   while (k > 0) {
-    const i = preds[k][t];
+    const i = preds[predAt[k] + t];
     kept.push(i);
     if (i === 0) break;
-    t = back[k][t];
+    t = back[predAt[k] + t];
     k = i;
   }
   kept.reverse();

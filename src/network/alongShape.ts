@@ -5,10 +5,11 @@
 // times shape points. Within the window the earliest close match wins; when nothing in the window is
 // close, the shape up to fallbackLookAheadM beyond is searched and a much closer point there is taken.
 
-import { EARTH_RADIUS_M, haversineM, nearestOnSegment } from './geodesy.js';
+import { EARTH_RADIUS_M, haversineM, nearestOnSegmentInto } from './geodesy.js';
 
 const RAD = Math.PI / 180;
 const LAT_M = EARTH_RADIUS_M * RAD; // metres per degree of latitude
+const T_OUT = new Float64Array(1); // the fraction along the segment, from nearestOnSegmentInto
 
 export interface LatLon {
   lat: number;
@@ -111,7 +112,8 @@ export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options
     for (let i = from; i < to; i++) {
       const lonM = lonScaleM[i];
       // Planar frame anchored at the segment's start point.
-      const r = nearestOnSegment(
+      const d2 = nearestOnSegmentInto(
+        T_OUT,
         (s.lon - lon[i]) * lonM,
         (s.lat - lat[i]) * LAT_M,
         0,
@@ -120,8 +122,8 @@ export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options
         (lat[i + 1] - lat[i]) * LAT_M,
         i === curSeg ? curT : 0,
       );
-      dBuf[i - from] = Math.sqrt(r.d2);
-      tBuf[i - from] = r.t;
+      dBuf[i - from] = Math.sqrt(d2);
+      tBuf[i - from] = T_OUT[0];
     }
     segmentsVisited += count;
     return count;

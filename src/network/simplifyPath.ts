@@ -1,7 +1,9 @@
 // Simplifies a shape for maps (Douglas-Peucker in a local metric frame), so reports carry a light path
 // instead of every shape point. Returns [lon, lat] pairs, as GeoJSON expects.
 
-import { localFrame, nearestOnSegment } from './geodesy.js';
+import { localFrame, nearestOnSegmentInto } from './geodesy.js';
+
+const T_OUT = new Float64Array(1); // nearestOnSegmentInto's fraction, not needed here
 
 /**
  * Keeps the points needed so that no dropped point lies farther than toleranceM from the simplified line.
@@ -38,7 +40,7 @@ export function simplifyPath(
     let worst = -1;
     let worstD2 = tol2;
     for (let i = a + 1; i < b; i++) {
-      const { d2 } = nearestOnSegment(x[i], y[i], x[a], y[a], x[b], y[b]);
+      const d2 = nearestOnSegmentInto(T_OUT, x[i], y[i], x[a], y[a], x[b], y[b]);
       if (d2 > worstD2) {
         worstD2 = d2;
         worst = i;
