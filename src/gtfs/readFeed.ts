@@ -262,32 +262,26 @@ async function readArchive(
     return own;
   };
   // trips.txt is mostly sorted, so a column's value tends to be the row before's: then its shared string
-  // is reused without cutting and hashing the value again (and a route_id already checked is not checked again)
-  const sameAsBefore = (): { raw: string; value: string } => ({ raw: '\0', value: '' });
-  const lastRoute = sameAsBefore();
-  const lastService = sameAsBefore();
-  const lastHeadsign = sameAsBefore();
-  const lastShape = sameAsBefore();
-  const sharedField = (row: CsvRow, i: number, last: { raw: string; value: string }): string => {
-    if (row.equals(i, last.raw)) return last.value;
-    const v = shared(row.get(i));
-    last.raw = v;
-    last.value = v;
-    return v;
+  // is reused without cutting and hashing the value again. '\0' starts each column: the CSV reader refuses
+  // NUL, so no value equals it.
+  const lastRoute = { v: '\0' };
+  const lastService = { v: '\0' };
+  const lastHeadsign = { v: '\0' };
+  const lastShape = { v: '\0' };
+  const sharedField = (row: CsvRow, i: number, last: { v: string }): string => {
+    if (!row.equals(i, last.v)) last.v = shared(row.get(i));
+    return last.v;
   };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
     const id = need('trips.txt', row, c.trip_id, 'trip_id');
-    let routeId = lastRoute.value;
-    if (!row.equals(c.route_id, lastRoute.raw)) {
-      routeId = row.get(c.route_id);
-      if (!routes.has(routeId)) {
-        unknownRoute++;
-        return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
-      }
-      routeId = shared(routeId);
-      lastRoute.raw = routeId;
-      lastRoute.value = routeId;
+    // a route_id is checked when it changes; an unknown one is not kept as the row before's
+    const routeBefore = lastRoute.v;
+    const routeId = sharedField(row, c.route_id, lastRoute);
+    if (routeId !== routeBefore && !routes.has(routeId)) {
+      lastRoute.v = '\0';
+      unknownRoute++;
+      return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
     }
     if (tripRow.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
     tripRow.set(id, tripId.length);
