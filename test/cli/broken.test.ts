@@ -12,6 +12,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parse } from 'csv-parse/sync';
 import yauzl from 'yauzl';
+import { CLI as BUILT_CLI } from '../helpers/cli.js';
 
 interface BrokenCase {
   name: string;
@@ -26,7 +27,7 @@ interface BrokenCase {
 const ROOT = join(import.meta.dirname, '..', '..');
 const BROKEN = join(ROOT, 'fixtures', 'broken');
 // STOPSPAN_CLI lets the harness itself be checked against a stand-in; normally the built CLI
-const CLI = process.env.STOPSPAN_CLI ?? join(ROOT, 'dist', 'bin', 'stopspan.js');
+const CLI = process.env.STOPSPAN_CLI ?? BUILT_CLI;
 const cases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
 // the files every audit writes (the output contract in the design notes, section 5)
 const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];

@@ -20,13 +20,13 @@ import { auditFeed } from '../../src/audit/auditFeed.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { isStopspanError } from '../../src/common/errors.js';
 import { ROOT, cloneTables, demoBase, writeFeedFolder, writeFeedZip, type Tables } from './demoTables.js';
+import { CLI } from '../helpers/cli.js';
 
 const SEED = process.env.STOPSPAN_FUZZ_SEED !== undefined ? Number(process.env.STOPSPAN_FUZZ_SEED) : 20261201;
 const PATH = process.env.STOPSPAN_FUZZ_PATH; // fast-check's replay path, printed with a failure
 const RUNS = Number(process.env.STOPSPAN_FUZZ_RUNS ?? 50);
 const MAX_MUTATIONS = Number(process.env.STOPSPAN_FUZZ_MAX_MUTATIONS ?? 4);
 const CLI_RUNS = 4;
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 console.log(`test/fuzz/mutate-demo.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED}), ${RUNS} in-process runs, ${CLI_RUNS} CLI runs`);
 
 // ---------------------------------------------------------------------------------------------------

@@ -11,8 +11,8 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { StopspanError } from '../../src/common/errors.js';
 import { ROOT } from '../fuzz/demoTables.js';
+import { CLI } from '../helpers/cli.js';
 
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const UNSAFE = /[\p{Cc}\p{Zl}\p{Zp}]/u; // Unicode Cc, Zl, Zp (the engine's tables, outside the project)
 // ESC sequences that retitle a window and clear a screen, a BEL, NEL (U+0085), CSI as one C1 byte, DEL,
 // and the line and paragraph separators

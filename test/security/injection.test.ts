@@ -19,8 +19,8 @@ import { writeReport } from '../../src/report/writeReport.js';
 import { ROOT } from '../fuzz/demoTables.js';
 import { AGENCY_NAME, AGENCY_URL, H, HEADSIGNS, HOSTILE, MINIMAL, ROUTE_IDS, ROUTE_SHORT, SHAPE_IDS, STOP_IDS, STOP_NAMES, writeHostileFeed } from './hostileFeed.js';
 import { jsonStrings, scanHtml, type HtmlScan } from './htmlScan.js';
+import { CLI } from '../helpers/cli.js';
 
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const CHROMIUM = '/usr/bin/chromium';
 // the output contract (design notes, section 5)
 const REPORT_FILES = ['candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json'];

@@ -18,8 +18,8 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import yauzl from 'yauzl';
 import { ROOT } from '../fuzz/demoTables.js';
+import { CLI } from '../helpers/cli.js';
 
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const HEAP_MB = 256;
 const haveCli = existsSync(CLI);
 if (!haveCli) console.warn(`test/security/memory-bound.test.ts: skipped: ${CLI} is absent (npm run build)`);

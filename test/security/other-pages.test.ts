@@ -13,8 +13,8 @@ import { parse } from 'csv-parse/sync';
 import { ROOT, tableText } from '../fuzz/demoTables.js';
 import { AGENCY_NAME, H, HOSTILE, MINIMAL, STOP_IDS, STOP_NAMES, writeHostileFeed } from './hostileFeed.js';
 import { scanHtml, type HtmlScan } from './htmlScan.js';
+import { CLI } from '../helpers/cli.js';
 
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const work = mkdtempSync(join(tmpdir(), 'stopspan-pages-'));
 afterAll(() => rmSync(work, { recursive: true, force: true }));
 

@@ -11,8 +11,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { ROOT } from '../fuzz/demoTables.js';
+import { CLI } from '../helpers/cli.js';
 
-const CLI = join(ROOT, 'dist', 'bin', 'stopspan.js');
 const UNSAFE = /\p{Cc}/u;
 const ESC_TITLE = '\u001b]0;pwned\u0007';
 const ESC_CLEAR = '\u001b[2J';
