@@ -4,7 +4,8 @@
 // Node resolves, reads and compiles every ES module of a program one by one, and for the ~60 modules of an
 // audit that start-up cost 60-80 ms of the main thread (measured on Manhattan, see README, Speed and
 // memory). Two CommonJS packages of the start-up path go in too (below); other packages and Node's own
-// modules stay outside the bundle, loaded as before. The library (dist/index.js) is not bundled. Run after tsc: `node scripts/bundle-cli.mjs [DIST]`.
+// modules stay outside the bundle, loaded as before. The library (dist/index.js) is not bundled.
+// Run after tsc: `node scripts/bundle-cli.mjs [DIST]`.
 
 import fs from 'node:fs';
 import path from 'node:path';
@@ -53,6 +54,7 @@ await build({
       load(id) {
         if (path.resolve(id) !== requireCjsFile) return null;
         // what require() gives for each: commander's exports ({ Command, ... }), yauzl's module object
+        // (a name added to BUILT_IN needs its line here, or requireCjs still requires it at run time)
         return [
           "import { createRequire } from 'node:module';",
           "import * as commander from 'commander';",

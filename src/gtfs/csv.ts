@@ -640,7 +640,7 @@ export async function readCsv(
       onBytes(parser.stats.bytes);
     }
   };
-  if (isNodeReadable(stream)) await eachChunk(stream, take);
+  if (stream instanceof Readable) await eachChunk(stream, take);
   else for await (const chunk of stream) take(chunk);
   const stats = parser.end();
   if (onBytes) onBytes(stats.bytes);
@@ -648,10 +648,6 @@ export async function readCsv(
   if (header === null) onHeader([]);
   if (warnings) reportCsvStats(warnings, file, header ?? [], stats);
   return { records: stats.records, paddedValues: stats.paddedValues, shortRows: stats.shortRows, longRows: stats.longRows, invalidUtf8: stats.invalidUtf8, bytes: stats.bytes };
-}
-
-function isNodeReadable(s: unknown): s is Readable {
-  return s instanceof Readable;
 }
 
 /**
