@@ -45,6 +45,6 @@ export function registerHistory(program: Command): void {
         }
         process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));
         return EXIT.clean;
-      }),
+      }, { json: o.json === true }),
     );
 }

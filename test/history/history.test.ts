@@ -98,7 +98,7 @@ describe('recordRun and readHistory', () => {
     recordRun(db, checkRunRow(checkFeed(feed, patterns, { today: '2026-10-14' })));
     const [r] = readHistory(db);
     expect(r.runDate).toBe('2026-10-14');
-    expect(Object.keys(r.findings)).toHaveLength(9);
+    expect(Object.keys(r.findings)).toHaveLength(11);
     // the clean Vellmoor street: one pattern, five stops, 400 m gaps [D]
     expect(r.headline).toMatchObject({ patterns: 1, stops: 5, trips: 1, analysisDate: '2026-10-14' });
     expect(r.headline.medianGapM).toBeCloseTo(400, 1);
