@@ -189,7 +189,7 @@ describe('stopspan check --history and stopspan history', () => {
     const text = await cli(['history', db]);
     expect(text.code).toBe(0);
     const lines = text.stdout.split('\n\n')[0].trim().split('\n');
-    expect(text.stdout).toMatch(/since the previous run \(2026-10-13\): new feed content\n  twin-stops \+1 \(now 1\)\n$/);
+    expect(text.stdout).toMatch(/since the previous run \(2026-10-13\): new feed content\n  stops served 5 -> 6 \(\+1\)\n  twin-stops \+1 \(now 1\)\n$/); // the twin stop is a sixth stop [D]
     expect(lines).toHaveLength(3); // header + two runs
     expect(lines[1]).toMatch(/^2026-10-13\s+check\s+clean\s+\w{8}\s+400\.0\s/); // the clean street's 400 m gaps [D]
     expect(lines[2]).toMatch(/^2026-10-14\s+check\s+twin-stops\b.*\s1$/);
