@@ -41,7 +41,7 @@ export function registerCompare(program: Command): void {
     .option('--out <dir>', 'also write compare.html, compare.json and compare-trips.csv into this folder')
     .option('--fail-on-trip-loss <pct>', 'exit 1 when a route loses more than this percentage of its trips a day (a route gone loses 100)')
     .option('--move-threshold <m>', 'a stop that moved more than this many metres counts as moved', '10')
-    .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
+    .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's Monday-Friday date with the most trips, frequencies expanded)")
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
