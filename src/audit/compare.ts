@@ -1,6 +1,7 @@
 // Comparison of two versions of a feed: stops added, removed, moved and renamed; route patterns added,
-// removed and changed (stops inserted or dropped); and the spacing picture before and after, with the
-// audit's figures and candidates when both audits are given.
+// removed and changed (stops inserted or dropped); trips a day per route and pattern where they changed
+// (a service cut is the change a nightly job exists to catch); and the spacing picture before and after,
+// with the audit's figures and candidates when both audits are given.
 
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';

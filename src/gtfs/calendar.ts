@@ -1,6 +1,7 @@
 // Which services run on a date, by the GTFS Schedule rules: a calendar.txt row runs on its weekdays from
 // start_date to end_date inclusive; calendar_dates.txt exception_type 1 adds the service on that date and
-// 2 removes it; calendar_dates may stand alone. Also the feed's service range and the default analysis date.
+// 2 removes it; calendar_dates may stand alone. Also the feed's service range and the one rule for the
+// analysis date of every command (chooseAnalysisDate; defaultAnalysisDate when nothing else is asked).
 
 import { StopspanError } from '../common/errors.js';
 import type { CalendarDate, CalendarRow, Feed } from './types.js';
