@@ -74,6 +74,17 @@ describe('recordRun and readHistory', () => {
     db.close();
   });
 
+  it('keeps one feed\'s runs with feed: its publisher, or its source when it names none', () => {
+    const db = openHistory(join(dir, 'feeds.sqlite'));
+    recordRun(db, row(0));
+    recordRun(db, row(1, { feed: { source: 'kanaal.zip', contentHash: 'k', version: 'v', publisher: '' } }));
+    recordRun(db, row(2));
+    expect(readHistory(db, { feed: 'Vellmoor Transit' }).map((r) => r.runDate)).toEqual(['2026-10-10', '2026-10-12']);
+    expect(readHistory(db, { feed: 'kanaal.zip' }).map((r) => r.runDate)).toEqual(['2026-10-11']);
+    expect(readHistory(db, { feed: 'https://vellmoor.example/gtfs.zip' })).toEqual([]); // it names a publisher
+    db.close();
+  });
+
   it('writes nothing when a run fails part-way (one transaction)', () => {
     const db = openHistory(join(dir, 'atomic.sqlite'));
     recordRun(db, row(1));
