@@ -5,6 +5,7 @@ import { haversineM } from '../network/geodesy.js';
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { StopspanError } from '../common/errors.js';
+import type { AnalysisDay } from '../gtfs/calendar.js';
 import {
   FINDINGS,
   FINDING_CODES,
@@ -44,6 +45,8 @@ export interface CheckReport {
   /** Every code, zero included: what a history row stores. */
   counts: Record<FindingCode, number>;
   bySeverity: Record<Severity, number>; // how many findings (kinds, not occurrences) at each severity
+  /** The date the pattern checks ran on and why that one (the run date's service day unless --date). */
+  analysis: AnalysisDay;
   /** The patterns checked, on their analysis date: counts and the median gap, for the history's trend. */
   network: { date: string; patterns: number; stopsServed: number; tripsPerDay: number; medianGapM: number | null };
 }
@@ -53,6 +56,8 @@ export interface CheckOptions {
   thresholds?: ThresholdOptions;
   maxExamples?: number; // per finding, default 5
   severities?: Partial<Record<FindingCode, Severity>>; // overrides of the table's defaults
+  /** How the patterns' date was chosen (chooseAnalysisDate); default: the patterns' own date, as asked for. */
+  analysis?: AnalysisDay;
 }
 
 // Reader warning codes that mean a row pointing nowhere was dropped or kept without its target.
@@ -61,6 +66,7 @@ const DANGLING_WARNING = /unknown|dangling|orphan|missing-ref|bad-ref|nowhere/i;
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
 export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOptions = {}): CheckReport {
   const { today = new Date().toISOString().slice(0, 10), thresholds: thresholdOptions, maxExamples = 5, severities = {} } = options;
+  const analysis: AnalysisDay = options.analysis ?? (patterns.date ? { date: patterns.date, basis: 'asked', because: 'the date the patterns were built for' } : { date: null, basis: 'none', because: 'no analysis date' });
   if (!/^\d{4}-\d{2}-\d{2}$/.test(today) || Number.isNaN(Date.parse(today + 'T00:00:00Z'))) {
     throw new StopspanError('bad-option', `invalid option today: expected YYYY-MM-DD, got ${today}`, { value: today });
   }
@@ -86,6 +92,10 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     if (e.examples.length < maxExamples) e.examples.push(example);
   };
 
+  if (patterns.patterns.length === 0) {
+    // a check that looked at no pattern has checked nothing: say so at error severity
+    add('no-service', { file: 'calendar.txt', ids: analysis.date ? { date: analysis.date } : {}, detail: analysis.date ? `no trip with stop_times runs on ${analysis.date} (${analysis.because})` : analysis.because });
+  }
   checkPatternGeometry(feed, patterns, t, add);
   checkTrips(feed, add);
   checkSpeeds(feed, patterns, t, add);
@@ -121,18 +131,25 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     findings,
     counts,
     bySeverity,
+    analysis,
     network: networkFigures(patterns),
   };
 }
 
 function networkFigures(set: PatternSet): CheckReport['network'] {
-  const served = new Set<number>();
   let trips = 0;
-  for (const p of set.patterns) {
-    for (const i of p.stopIdx) served.add(i);
-    trips += p.tripsPerDay;
-  }
-  return { date: set.date, patterns: set.patterns.length, stopsServed: served.size, tripsPerDay: trips, medianGapM: medianGapM(set) };
+  for (const p of set.patterns) trips += p.tripsPerDay;
+  return { date: set.date, patterns: set.patterns.length, stopsServed: passengerStopsServed(set), tripsPerDay: trips, medianGapM: medianGapM(set) };
+}
+
+/**
+ * Stops served: distinct stops where some pattern takes on or lets off riders (non-passenger timing points
+ * left out), the audit's count of stops. One definition for check, compare and the history.
+ */
+export function passengerStopsServed(set: PatternSet): number {
+  const served = new Set<number>();
+  for (const p of set.patterns) for (let i = 0; i < p.stopIdx.length; i++) if (p.passengerStop[i] !== false) served.add(p.stopIdx[i]);
+  return served.size;
 }
 
 type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
@@ -362,17 +379,21 @@ function dateToYmd(d: Date): string {
   return d.toISOString().slice(0, 10).replace(/-/g, '');
 }
 
-/** service-ending-soon: fewer than serviceMinDays days of service left after today (the GTFS best practice asks for 7). */
+/**
+ * service-ended: the last day of service is before today; service-ending-soon: fewer than serviceMinDays
+ * days of service left after today (the GTFS best practice asks for 7). A calendar with no day at all is
+ * service-ended too.
+ */
 function checkServiceEnd(serviceEnd: string | null, today: string, t: CheckThresholds, add: Add): void {
   if (serviceEnd === null) {
-    add('service-ending-soon', { file: 'calendar.txt', ids: {}, detail: 'the calendar has no day with service at all' });
+    add('service-ended', { file: 'calendar.txt', ids: {}, detail: 'the calendar has no day with service at all' });
     return;
   }
   const daysLeft = Math.round((ymdToDate(serviceEnd).getTime() - Date.parse(today + 'T00:00:00Z')) / 86_400_000);
   if (daysLeft < t.serviceMinDays) {
     const endIso = `${serviceEnd.slice(0, 4)}-${serviceEnd.slice(4, 6)}-${serviceEnd.slice(6, 8)}`;
     const what = daysLeft < 0 ? `ended ${-daysLeft} day(s) before ${today}` : `ends ${daysLeft} day(s) after ${today}`;
-    add('service-ending-soon', {
+    add(daysLeft < 0 ? 'service-ended' : 'service-ending-soon', {
       file: 'calendar.txt',
       ids: { last_service_date: serviceEnd },
       detail: `service ${what} (last day ${endIso}; at least ${t.serviceMinDays} wanted)`,
@@ -441,52 +462,6 @@ function checkReferences(feed: Feed, add: Add): void {
       w.count,
     );
   }
-}
-
-/**
- * The Monday-to-Friday date inside the feed's service range with the most trips (YYYY-MM-DD), the default
- * analysis date; null when no weekday has service. Scans at most maxDays days from the first service day.
- */
-export function busiestWeekday(feed: Pick<Feed, 'calendar' | 'calendarDates' | 'trips'>, maxDays = 400): string | null {
-  const tripsByService = new Map<string, number>();
-  for (const t of feed.trips.values()) tripsByService.set(t.serviceId, (tripsByService.get(t.serviceId) ?? 0) + 1);
-  let first = '';
-  let last = '';
-  const span = (a: string, b: string) => {
-    if (!first || a < first) first = a;
-    if (!last || b > last) last = b;
-  };
-  for (const c of feed.calendar) span(c.start, c.end);
-  for (const c of feed.calendarDates) if (c.exceptionType === 1) span(c.date, c.date);
-  if (!first) return null;
-  const byDate = new Map<string, Map<string, 1 | 2>>();
-  for (const c of feed.calendarDates) {
-    const m = byDate.get(c.date) ?? new Map<string, 1 | 2>();
-    m.set(c.serviceId, c.exceptionType);
-    byDate.set(c.date, m);
-  }
-  let best: string | null = null;
-  let bestTrips = 0;
-  let d = ymdToDate(first);
-  for (let k = 0; k < maxDays; k++, d = new Date(d.getTime() + 86_400_000)) {
-    const ymd = dateToYmd(d);
-    if (ymd > last) break;
-    const weekday = (d.getUTCDay() + 6) % 7;
-    if (weekday > 4) continue;
-    const on = new Set<string>();
-    for (const c of feed.calendar) if (c.days[weekday] && c.start <= ymd && ymd <= c.end) on.add(c.serviceId);
-    for (const [sid, ex] of byDate.get(ymd) ?? []) {
-      if (ex === 1) on.add(sid);
-      else on.delete(sid);
-    }
-    let n = 0;
-    for (const sid of on) n += tripsByService.get(sid) ?? 0;
-    if (n > bestTrips) {
-      bestTrips = n;
-      best = `${ymd.slice(0, 4)}-${ymd.slice(4, 6)}-${ymd.slice(6, 8)}`;
-    }
-  }
-  return best;
 }
 
 /** Median of the gaps between consecutive passenger stops over every pattern, metres. */

@@ -6,7 +6,14 @@ export function checkText(report: CheckReport): string {
   const lines: string[] = [];
   const f = report.feed;
   lines.push(`feed ${oneLine(f.source)}${f.version ? ` (version ${oneLine(f.version)})` : ''}, sha256 ${f.contentHash.slice(0, 12)}`);
-  lines.push(`checked against ${report.today}; service runs until ${report.serviceEnd ?? 'never'}`);
+  lines.push(`run date ${report.today}; service runs until ${report.serviceEnd ?? 'never'}`);
+  const a = report.analysis;
+  const n = report.network;
+  lines.push(
+    a.date
+      ? `patterns checked on ${a.date} (${oneLine(a.because)}): ${n.patterns} pattern(s), ${n.tripsPerDay} trips, ${n.stopsServed} stops served`
+      : `no patterns checked: ${oneLine(a.because)}`,
+  );
   lines.push('');
   if (report.findings.length === 0) {
     lines.push('no findings');

@@ -1,12 +1,14 @@
 // Comparison of two versions of a feed: stops added, removed, moved and renamed; route patterns added,
-// removed and changed (stops inserted or dropped); and the spacing picture before and after, with the
-// audit's figures and candidates when both audits are given.
+// removed and changed (stops inserted or dropped); trips a day per route and pattern where they changed
+// (a service cut is the change a nightly job exists to catch); and the spacing picture before and after,
+// with the audit's figures and candidates when both audits are given.
 
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate } from './types.js';
 import { StopspanError } from '../common/errors.js';
-import { medianGapM } from './check.js';
+import { medianGapM, passengerStopsServed } from './check.js';
+import { runsOfFrequency } from '../gtfs/frequencies.js';
 import { haversineM } from '../network/geodesy.js';
 
 export { medianGapM };
@@ -52,6 +54,33 @@ export interface PatternChange {
   /** true when the old pattern became identical to a pattern that already existed (or a new one split off one that stays). */
   merged: boolean;
 }
+/** Trips a day of one pattern before and after, when they changed (count or departure times). */
+export interface PatternTripChange {
+  routeId: string;
+  directionId: number;
+  oldPatternId: string;
+  newPatternId: string;
+  headsign: string; // the new one
+  tripsBefore: number; // a day on the analysis date, frequencies expanded
+  tripsAfter: number;
+  /** trip_ids running after and not before, and the reverse: the first listCap of each, with the full counts. */
+  tripIdsAdded: string[];
+  tripIdsAddedCount: number;
+  tripIdsRemoved: string[];
+  tripIdsRemovedCount: number;
+  /** First and last departure from the first stop, H:MM:SS; null when the times are blank. */
+  firstDeparture: { before: string | null; after: string | null };
+  lastDeparture: { before: string | null; after: string | null };
+}
+/** Trips a day of one route before and after, when they differ. */
+export interface RouteTripChange {
+  routeId: string;
+  shortName: string;
+  tripsBefore: number;
+  tripsAfter: number;
+  /** Change in percent of the trips before; null for a route that had none (new). */
+  changePct: number | null;
+}
 export interface SpacingPicture {
   patterns: number;
   stopsServed: number;
@@ -78,7 +107,10 @@ export interface Comparison {
   new: FeedIdentity;
   moveThresholdM: number;
   stops: { added: StopBrief[]; removed: StopBrief[]; moved: StopMove[]; renamed: StopRename[] };
+  /** unchanged: patterns with the same stops and the same departures (a pattern whose trips changed is listed in trips). */
   patterns: { added: PatternBrief[]; removed: PatternBrief[]; changed: PatternChange[]; unchanged: number };
+  /** Routes and patterns whose trips a day changed, biggest cuts first; trip_id lists capped at listCap. */
+  trips: { byRoute: RouteTripChange[]; byPattern: PatternTripChange[]; listCap: number };
   spacing: { before: SpacingPicture; after: SpacingPicture };
   /** Candidates that appeared or disappeared; null when the audits were not given. */
   candidates: { appeared: CandidateBrief[]; disappeared: CandidateBrief[] } | null;
@@ -91,10 +123,12 @@ export interface CompareOptions {
   audits?: { old: AuditResult; new: AuditResult };
   /** Two patterns of the same route and direction are the same pattern changed when they share at least this share of the shorter one's stops. Default 0.5. */
   minSharedShare?: number;
+  /** At most this many trip_ids listed per pattern as added or removed (the counts are always whole). Default 10. */
+  listCap?: number;
 }
 
 export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, options: CompareOptions = {}): Comparison {
-  const { moveThresholdM = 10, audits, minSharedShare = 0.5 } = options;
+  const { moveThresholdM = 10, audits, minSharedShare = 0.5, listCap = 10 } = options;
   if (!(typeof moveThresholdM === 'number' && moveThresholdM >= 0 && Number.isFinite(moveThresholdM))) {
     throw new StopspanError('bad-option', `invalid option moveThresholdM: expected a number >= 0, got ${moveThresholdM}`, {
       value: String(moveThresholdM),
@@ -105,12 +139,16 @@ export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternS
       value: String(minSharedShare),
     });
   }
+  const { patterns, pairs } = comparePatterns(oldFeed, newFeed, oldPatterns, newPatterns, minSharedShare);
+  const byPattern = patternTripChanges(oldFeed, newFeed, pairs, listCap);
+  patterns.unchanged -= byPattern.filter((x) => x.sameStops).length;
   return {
     old: identity(oldFeed),
     new: identity(newFeed),
     moveThresholdM,
     stops: compareStops(oldFeed, newFeed, moveThresholdM),
-    patterns: comparePatterns(oldFeed, newFeed, oldPatterns, newPatterns, minSharedShare),
+    patterns,
+    trips: { byRoute: routeTripChanges(oldFeed, newFeed, oldPatterns, newPatterns), byPattern: byPattern.map((x) => x.change), listCap },
     spacing: { before: spacingPicture(oldPatterns, audits?.old), after: spacingPicture(newPatterns, audits?.new) },
     candidates: audits ? compareCandidates(audits.old.candidates, audits.new.candidates) : null,
   };
@@ -200,7 +238,16 @@ export function lcsMatch(a: string[], b: string[]): { inA: boolean[]; inB: boole
   return { inA, inB, length: L[0] };
 }
 
-function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSet: PatternSet, minShare: number): Comparison['patterns'] {
+type PatternPair = { o: Keyed; n: Keyed; sameStops: boolean };
+
+function comparePatterns(
+  oldFeed: Feed,
+  newFeed: Feed,
+  oldSet: PatternSet,
+  newSet: PatternSet,
+  minShare: number,
+): { patterns: Comparison['patterns']; pairs: PatternPair[] } {
+  const matched: PatternPair[] = [];
   const oldBy = keyed(oldFeed, oldSet);
   const newBy = keyed(newFeed, newSet);
   const added: PatternBrief[] = [];
@@ -215,6 +262,10 @@ function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSe
     const oldLeft = olds.filter((x) => !newSeqs.has(x.seq));
     const newLeft = news.filter((x) => !oldSeqs.has(x.seq));
     unchanged += olds.length - oldLeft.length;
+    for (const o of olds) {
+      const nw = news.find((x) => x.seq === o.seq);
+      if (nw) matched.push({ o, n: nw, sameStops: true });
+    }
     // pair the leftovers, most shared stops first
     type Pair = { o: Keyed; n: Keyed; shared: number; share: number };
     const pairs: Pair[] = [];
@@ -246,6 +297,7 @@ function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSe
       usedO.add(pr.o);
       usedN.add(pr.n);
       changed.push(change(pr.o, pr.n, false));
+      matched.push({ o: pr.o, n: pr.n, sameStops: false });
     }
     // an old pattern that now equals one that already existed has merged into it; a new one may split off
     // a pattern that stays. Pair each with its closest counterpart among all patterns of the route.
@@ -276,19 +328,103 @@ function comparePatterns(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSe
   }
   const byRoute = <T extends { routeId: string; directionId: number }>(a: T, b: T) =>
     a.routeId < b.routeId ? -1 : a.routeId > b.routeId ? 1 : a.directionId - b.directionId;
-  return { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged };
+  return { patterns: { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged }, pairs: matched };
+}
+
+/** Departures from the first stop of each trip of a pattern, seconds, sorted; a trip with frequencies.txt rows departs at each run's start. */
+function departures(feed: Feed, p: Pattern, freqByTrip: Map<string, Feed['frequencies']>): number[] {
+  const out: number[] = [];
+  for (const id of p.tripIds) {
+    const rows = freqByTrip.get(id);
+    if (rows) {
+      for (const f of rows) for (let t = f.startS, k = runsOfFrequency(f); k > 0; k--, t += f.headwayS) out.push(t);
+      continue;
+    }
+    const st = feed.stopTimes.get(id);
+    const t = st && st.depS.length > 0 ? (st.depS[0] >= 0 ? st.depS[0] : st.arrS[0]) : -1;
+    if (t >= 0) out.push(t);
+  }
+  return out.sort((a, b) => a - b);
+}
+
+function frequenciesByTrip(feed: Feed): Map<string, Feed['frequencies']> {
+  const m = new Map<string, Feed['frequencies']>();
+  for (const f of feed.frequencies) {
+    const list = m.get(f.tripId);
+    if (list) list.push(f);
+    else m.set(f.tripId, [f]);
+  }
+  return m;
+}
+
+const clockOf = (s: number | undefined): string | null =>
+  s === undefined ? null : `${Math.floor(s / 3600)}:${String(Math.floor((s % 3600) / 60)).padStart(2, '0')}:${String(s % 60).padStart(2, '0')}`;
+
+/** The matched patterns whose trips changed: a different count of trips a day or different departure times. */
+function patternTripChanges(oldFeed: Feed, newFeed: Feed, pairs: PatternPair[], listCap: number): { change: PatternTripChange; sameStops: boolean }[] {
+  const fo = frequenciesByTrip(oldFeed);
+  const fn = frequenciesByTrip(newFeed);
+  const out: { change: PatternTripChange; sameStops: boolean }[] = [];
+  for (const { o, n, sameStops } of pairs) {
+    const before = departures(oldFeed, o.p, fo);
+    const after = departures(newFeed, n.p, fn);
+    const same = o.p.tripsPerDay === n.p.tripsPerDay && before.length === after.length && before.every((t, i) => t === after[i]);
+    if (same) continue;
+    const oldIds = new Set(o.p.tripIds);
+    const newIds = new Set(n.p.tripIds);
+    const added = n.p.tripIds.filter((id) => !oldIds.has(id));
+    const removed = o.p.tripIds.filter((id) => !newIds.has(id));
+    out.push({
+      sameStops,
+      change: {
+        routeId: n.p.routeId,
+        directionId: n.p.directionId,
+        oldPatternId: o.p.id,
+        newPatternId: n.p.id,
+        headsign: n.p.headsign,
+        tripsBefore: o.p.tripsPerDay,
+        tripsAfter: n.p.tripsPerDay,
+        tripIdsAdded: added.slice(0, listCap),
+        tripIdsAddedCount: added.length,
+        tripIdsRemoved: removed.slice(0, listCap),
+        tripIdsRemovedCount: removed.length,
+        firstDeparture: { before: clockOf(before[0]), after: clockOf(after[0]) },
+        lastDeparture: { before: clockOf(before[before.length - 1]), after: clockOf(after[after.length - 1]) },
+      },
+    });
+  }
+  out.sort((a, b) => relChange(a.change) - relChange(b.change) || (a.change.routeId < b.change.routeId ? -1 : a.change.routeId > b.change.routeId ? 1 : 0));
+  return out;
+}
+
+const relChange = (x: { tripsBefore: number; tripsAfter: number }): number => (x.tripsBefore > 0 ? (x.tripsAfter - x.tripsBefore) / x.tripsBefore : Infinity);
+
+/** Trips a day per route on each side (every pattern of the route), for the routes where they differ; biggest cuts first. */
+function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSet: PatternSet): RouteTripChange[] {
+  const sum = (set: PatternSet) => {
+    const m = new Map<string, number>();
+    for (const p of set.patterns) m.set(p.routeId, (m.get(p.routeId) ?? 0) + p.tripsPerDay);
+    return m;
+  };
+  const b = sum(oldSet);
+  const a = sum(newSet);
+  const out: RouteTripChange[] = [];
+  for (const routeId of new Set([...b.keys(), ...a.keys()])) {
+    const tripsBefore = b.get(routeId) ?? 0;
+    const tripsAfter = a.get(routeId) ?? 0;
+    if (tripsBefore === tripsAfter) continue;
+    const shortName = newFeed.routes.get(routeId)?.shortName ?? oldFeed.routes.get(routeId)?.shortName ?? '';
+    out.push({ routeId, shortName, tripsBefore, tripsAfter, changePct: tripsBefore > 0 ? ((tripsAfter - tripsBefore) / tripsBefore) * 100 : null });
+  }
+  return out.sort((x, y) => relChange(x) - relChange(y) || (x.routeId < y.routeId ? -1 : x.routeId > y.routeId ? 1 : 0));
 }
 
 function spacingPicture(set: PatternSet, audit: AuditResult | undefined): SpacingPicture {
-  const served = new Set<number>();
   let trips = 0;
-  for (const p of set.patterns) {
-    for (const i of p.stopIdx) served.add(i);
-    trips += p.tripsPerDay;
-  }
+  for (const p of set.patterns) trips += p.tripsPerDay;
   return {
     patterns: set.patterns.length,
-    stopsServed: served.size,
+    stopsServed: passengerStopsServed(set),
     tripsPerDay: trips,
     medianGapM: medianGapM(set),
     closeStops: audit ? audit.headline.closeStops : null,

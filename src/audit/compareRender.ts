@@ -1,12 +1,19 @@
-// The comparison of two feeds rendered for people: a plain-text summary for the terminal and a
-// self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped).
+// The comparison of two feeds rendered for people: a plain-text summary for the terminal, a
+// self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped), and the trips a
+// day that changed per route and pattern as CSV.
 
-import type { Comparison, SpacingPicture } from './compare.js';
+import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from './compare.js';
 import { escapeHtml as esc } from '../report/html/escape.js';
+import { renderCsv, type CsvColumn } from '../report/csv.js';
 // eslint-disable-next-line no-control-regex
 const term = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));
 const n0 = (v: number | null): string => (v === null ? '-' : Math.round(v).toString());
+/** A change in percent with its sign, or 'new' for a route that had no trips. */
+const pct = (v: number | null): string => (v === null ? 'new' : `${v > 0 ? '+' : ''}${v.toFixed(1)} %`);
+const routeName = (r: RouteTripChange): string => (r.shortName && r.shortName !== r.routeId ? `${r.routeId} (${r.shortName})` : r.routeId);
+const idList = (ids: string[], count: number): string => (count === 0 ? '' : ids.join(' ') + (count > ids.length ? ` ... (${count} in all)` : ''));
+const span = (x: PatternTripChange, side: 'before' | 'after'): string => `${x.firstDeparture[side] ?? '-'}-${x.lastDeparture[side] ?? '-'}`;
 
 const SPACING_ROWS: [string, keyof SpacingPicture, (v: number | null) => string][] = [
   ['patterns', 'patterns', n0],
@@ -35,13 +42,21 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   list(s.moved, (x) => `~ ${x.stopId}  ${x.name}  moved ${x.movedM.toFixed(1)} m`);
   list(s.renamed, (x) => `" ${x.stopId}  ${x.oldName} -> ${x.newName}`);
   const p = c.patterns;
-  out.push(`patterns: ${p.added.length} added, ${p.removed.length} removed, ${p.changed.length} changed, ${p.unchanged} unchanged`);
+  const tp = c.trips.byPattern;
+  out.push(`patterns: ${p.added.length} added, ${p.removed.length} removed, ${p.changed.length} changed, ${tp.length} with changed trips, ${p.unchanged} unchanged`);
   list(p.added, (x) => `+ ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
   list(p.removed, (x) => `- ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
   list(p.changed, (x) =>
     `~ ${x.oldPatternId} -> ${x.newPatternId}${x.merged ? ' (merged)' : ''}` +
     (x.inserted.length ? `  inserted ${x.inserted.join(' ')}` : '') +
     (x.dropped.length ? `  dropped ${x.dropped.join(' ')}` : ''),
+  );
+  out.push(`trips per day: ${c.trips.byRoute.length} route(s) changed`);
+  list(c.trips.byRoute, (r) => `${r.tripsAfter < r.tripsBefore ? '-' : '+'} route ${routeName(r)}  ${r.tripsBefore} -> ${r.tripsAfter} (${pct(r.changePct)})`);
+  list(tp, (x) =>
+    `~ ${x.oldPatternId === x.newPatternId ? x.newPatternId : `${x.oldPatternId} -> ${x.newPatternId}`}  ${x.tripsBefore} -> ${x.tripsAfter} trips, ${span(x, 'before')} -> ${span(x, 'after')}` +
+    (x.tripIdsAddedCount ? `  added ${idList(x.tripIdsAdded, x.tripIdsAddedCount)}` : '') +
+    (x.tripIdsRemovedCount ? `  removed ${idList(x.tripIdsRemoved, x.tripIdsRemovedCount)}` : ''),
   );
   out.push('');
   out.push(`${'spacing'.padEnd(22)}${'before'.padStart(12)}${'after'.padStart(12)}`);
@@ -82,6 +97,13 @@ export function comparisonHtml(c: Comparison): string {
     table(['pattern', 'headsign', 'stops', 'trips per day'], p.removed.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)])),
     `<h2>Patterns changed (${p.changed.length}; ${p.unchanged} unchanged)</h2>`,
     table(['old pattern', 'new pattern', 'inserted', 'dropped', 'merged'], p.changed.map((x) => [x.oldPatternId, x.newPatternId, x.inserted.join(' '), x.dropped.join(' '), x.merged ? 'yes' : ''])),
+    `<h2>Trips per day by route, where they changed (${c.trips.byRoute.length})</h2>`,
+    table(['route', 'short name', 'trips before', 'trips after', 'change'], c.trips.byRoute.map((r) => [r.routeId, r.shortName, String(r.tripsBefore), String(r.tripsAfter), pct(r.changePct)])),
+    `<h2>Patterns whose trips changed (${c.trips.byPattern.length})</h2>`,
+    table(
+      ['old pattern', 'new pattern', 'trips before', 'trips after', 'departures before', 'departures after', 'trip_ids added', 'trip_ids removed'],
+      c.trips.byPattern.map((x) => [x.oldPatternId, x.newPatternId, String(x.tripsBefore), String(x.tripsAfter), span(x, 'before'), span(x, 'after'), idList(x.tripIdsAdded, x.tripIdsAddedCount), idList(x.tripIdsRemoved, x.tripIdsRemovedCount)]),
+    ),
     '<h2>Spacing before and after</h2>',
     table(['', 'before', 'after'], SPACING_ROWS.map(([label, key, f]) => [label, f(c.spacing.before[key]), f(c.spacing.after[key])])),
     '<h2>Candidates</h2>',
@@ -109,4 +131,60 @@ New: ${esc(c.new.source)} (version ${esc(c.new.version || 'none')}, <code>${esc(
 ${sections.join('\n')}
 </body></html>
 `;
+}
+
+/** One row of compare-trips.csv: a route's or a pattern's trips a day before and after. */
+interface TripRow {
+  level: 'route' | 'pattern';
+  routeId: string;
+  oldPatternId: string;
+  newPatternId: string;
+  tripsBefore: number;
+  tripsAfter: number;
+  changePct: number | null;
+  added: number | null;
+  removed: number | null;
+  firstBefore: string | null;
+  firstAfter: string | null;
+  lastBefore: string | null;
+  lastAfter: string | null;
+}
+
+const TRIP_COLUMNS: CsvColumn<TripRow>[] = [
+  { name: 'level', kind: 'text', get: (r) => r.level },
+  { name: 'route_id', kind: 'text', get: (r) => r.routeId },
+  { name: 'old_pattern_id', kind: 'text', get: (r) => r.oldPatternId },
+  { name: 'new_pattern_id', kind: 'text', get: (r) => r.newPatternId },
+  { name: 'trips_before', kind: 'number', get: (r) => r.tripsBefore },
+  { name: 'trips_after', kind: 'number', get: (r) => r.tripsAfter },
+  { name: 'change_pct', kind: 'number', digits: 1, get: (r) => r.changePct },
+  { name: 'trip_ids_added', kind: 'number', get: (r) => r.added },
+  { name: 'trip_ids_removed', kind: 'number', get: (r) => r.removed },
+  { name: 'first_departure_before', kind: 'text', get: (r) => r.firstBefore },
+  { name: 'first_departure_after', kind: 'text', get: (r) => r.firstAfter },
+  { name: 'last_departure_before', kind: 'text', get: (r) => r.lastBefore },
+  { name: 'last_departure_after', kind: 'text', get: (r) => r.lastAfter },
+];
+
+/** compare-trips.csv: every route, then every pattern, whose trips a day changed. */
+export function comparisonTripsCsv(c: Comparison): string {
+  const rows: TripRow[] = [
+    ...c.trips.byRoute.map((r): TripRow => ({ level: 'route', routeId: r.routeId, oldPatternId: '', newPatternId: '', tripsBefore: r.tripsBefore, tripsAfter: r.tripsAfter, changePct: r.changePct, added: null, removed: null, firstBefore: null, firstAfter: null, lastBefore: null, lastAfter: null })),
+    ...c.trips.byPattern.map((x): TripRow => ({
+      level: 'pattern',
+      routeId: x.routeId,
+      oldPatternId: x.oldPatternId,
+      newPatternId: x.newPatternId,
+      tripsBefore: x.tripsBefore,
+      tripsAfter: x.tripsAfter,
+      changePct: x.tripsBefore > 0 ? ((x.tripsAfter - x.tripsBefore) / x.tripsBefore) * 100 : null,
+      added: x.tripIdsAddedCount,
+      removed: x.tripIdsRemovedCount,
+      firstBefore: x.firstDeparture.before,
+      firstAfter: x.firstDeparture.after,
+      lastBefore: x.lastDeparture.before,
+      lastAfter: x.lastDeparture.after,
+    })),
+  ];
+  return renderCsv(TRIP_COLUMNS, rows);
 }

@@ -20,6 +20,8 @@ export type FindingCode =
   | 'implausible-speed'
   | 'coordinate-fault'
   | 'service-ending-soon'
+  | 'service-ended'
+  | 'no-service'
   | 'dangling-reference';
 
 export interface FindingKind {
@@ -67,6 +69,16 @@ export const FINDINGS: Record<FindingCode, FindingKind> = {
   'service-ending-soon': {
     title: 'Service ending soon',
     explanation: "The feed's last day of service is less than the required number of days after the run date (GTFS best practice: at least 7, ideally 30).",
+    severity: 'error',
+  },
+  'service-ended': {
+    title: 'Service ended',
+    explanation: "The feed's last day of service is before the run date (or the calendar has no day at all); the feed is out of date.",
+    severity: 'error',
+  },
+  'no-service': {
+    title: 'No service to check',
+    explanation: 'No trip runs on the analysis date (the run date or the week after it), so no pattern could be checked.',
     severity: 'error',
   },
   'dangling-reference': {

@@ -5,6 +5,7 @@ import type { Command } from 'commander';
 import type { CheckReport } from '../audit/check.js';
 import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
 import { StopspanError } from '../common/errors.js';
+import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
 import { version } from '../version.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
@@ -59,8 +60,8 @@ export function registerCheck(program: Command): void {
     .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
     .option('--json', 'print the report as JSON on stdout')
     .option('--fail-on <severity>', 'exit 1 when a finding at or above this severity exists: error, warning, info or never', 'error')
-    .option('--date <YYYY-MM-DD>', 'analysis date for the pattern checks (default: the busiest weekday)')
-    .option('--today <YYYY-MM-DD>', 'the run date that service-ending-soon counts from (default: today, UTC)')
+    .option('--date <YYYY-MM-DD>', 'analysis date for the pattern checks (default: the run date, or the first day with service in the week after it); nothing running that day exits 2')
+    .option('--today <YYYY-MM-DD>', 'the run date: its service is checked and service-ending-soon counts from it (default: today, UTC)')
     .option('--history <file.sqlite>', 'record this run in a history database (created on first use)')
     .option('--max-examples <n>', 'examples kept per finding', '5')
     .option('--twin-stop-m <m>', 'consecutive stops closer than this are twins (default 5)')
@@ -70,7 +71,7 @@ export function registerCheck(program: Command): void {
     .option('--speed <family=min:max>', 'scheduled speed bounds in km/h per family (bus, tram, metro, rail, ferry, cable, other); repeatable', listOption, [])
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
-    .addHelpText('after', `\nFindings (code, default severity, meaning):\n${codes}\n\nExit codes: 0 clean, 1 a finding at or above --fail-on, 2 unreadable input or bad usage, 3 internal error.`)
+    .addHelpText('after', `\nFindings (code, default severity, meaning):\n${codes}\n\nThe pattern checks run on --date, else on the run date (--today), else on the first day with service in the ${NEXT_SERVICE_WINDOW_DAYS} days after it; none at all is the no-service finding.\n\nExit codes: 0 clean, 1 a finding at or above --fail-on, 2 unreadable input or bad usage (with --json, an error document on stdout too), 3 internal error.`)
     .action((source: string, o: CheckCliOptions) =>
       runAction(o.verbose === true, async () => {
         if (!FAIL_ON.includes(o.failOn as FailOn)) {
@@ -80,14 +81,15 @@ export function registerCheck(program: Command): void {
         const thresholds = thresholdsFromCli(o);
         // the checks load when the command runs, not at every start-up of the CLI
         const [{ checkFeed }, { checkText }] = await Promise.all([import('../audit/check.js'), import('../audit/checkText.js')]);
+        const today = o.today ?? new Date().toISOString().slice(0, 10);
         const progress = makeProgress(o.quiet === true || o.json === true);
         let loaded;
         try {
-          loaded = await loadFeed(source, { date: o.date, onProgress: progress.onProgress });
+          loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress });
         } finally {
           progress.done();
         }
-        const report = checkFeed(loaded.feed, loaded.patterns, { today: o.today, thresholds, maxExamples: Math.floor(maxExamples) });
+        const report = checkFeed(loaded.feed, loaded.patterns, { today, thresholds, maxExamples: Math.floor(maxExamples), analysis: loaded.analysis });
         if (o.history) {
           const { checkRunRow, openHistory, recordRun } = await import('../history/index.js'); // only when asked for
           const db = openHistory(o.history);
@@ -104,6 +106,6 @@ export function registerCheck(program: Command): void {
           process.stdout.write(checkText(report));
         }
         return code;
-      }),
+      }, { json: o.json === true }),
     );
 }

@@ -1,15 +1,26 @@
 // `stopspan compare OLD NEW`: what changed between two versions of a feed, as a terminal summary, JSON,
-// or an HTML page in --out.
+// or an HTML page and a CSV of changed trips in --out; exit 1 on a service cut beyond --fail-on-trip-loss.
 
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
+import type { Comparison } from '../audit/compare.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption, writeFiles } from './feedInput.js';
 
+/**
+ * The exit code of a comparison: 1 when some route lost more than tripLossPct percent of its trips a day
+ * (a route that no longer runs lost 100 %), else 0; never 1 without the option.
+ */
+export function compareExitCode(c: Pick<Comparison, 'trips'>, tripLossPct: number | undefined): number {
+  if (tripLossPct === undefined) return EXIT.clean;
+  return c.trips.byRoute.some((r) => r.changePct !== null && -r.changePct > tripLossPct) ? EXIT.found : EXIT.clean;
+}
+
 interface CompareCliOptions {
   json?: boolean;
+  failOnTripLoss?: string;
   out?: string;
   moveThreshold?: string;
   date?: string;
@@ -27,9 +38,10 @@ export function registerCompare(program: Command): void {
     .argument('<old>', 'the older feed: zip, folder or http(s) URL')
     .argument('<new>', 'the newer feed')
     .option('--json', 'print the comparison as JSON on stdout')
-    .option('--out <dir>', 'also write compare.html and compare.json into this folder')
+    .option('--out <dir>', 'also write compare.html, compare.json and compare-trips.csv into this folder')
+    .option('--fail-on-trip-loss <pct>', 'exit 1 when a route loses more than this percentage of its trips a day (a route gone loses 100)')
     .option('--move-threshold <m>', 'a stop that moved more than this many metres counts as moved', '10')
-    .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
+    .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's Monday-Friday date with the most trips, frequencies expanded)")
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
@@ -38,8 +50,9 @@ export function registerCompare(program: Command): void {
     .action((oldSource: string, newSource: string, o: CompareCliOptions) =>
       runAction(o.verbose === true, async () => {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
+        const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText }] = await Promise.all([import('../audit/compare.js'), import('../audit/runAudit.js'), import('../audit/compareRender.js')]);
+        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }] = await Promise.all([import('../audit/compare.js'), import('../audit/runAudit.js'), import('../audit/compareRender.js')]);
         const progress = makeProgress(o.quiet === true || o.json === true);
         let a, b;
         try {
@@ -55,13 +68,15 @@ export function registerCompare(program: Command): void {
           audits = { old: runAudit(a.feed, a.patterns, { params, ridership: o.ridership }), new: runAudit(b.feed, b.patterns, { params, ridership: o.ridership }) };
         }
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
-        const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };
+        const code = compareExitCode(c, tripLossPct);
+        const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, analysis: { old: a.analysis, new: b.analysis }, ...c, failOnTripLossPct: tripLossPct ?? null, exitCode: code };
         if (o.out) {
-          const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n' });
+          const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n', 'compare-trips.csv': comparisonTripsCsv(c) });
           if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));
-        return EXIT.clean;
-      }),
+        if (!o.json && tripLossPct !== undefined) process.stdout.write(code === EXIT.found ? `FAIL a route lost more than ${tripLossPct} % of its trips a day\n` : `no route lost more than ${tripLossPct} % of its trips a day\n`);
+        return code;
+      }, { json: o.json === true }),
     );
 }

@@ -6,33 +6,41 @@ import { join } from 'node:path';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
+import { chooseAnalysisDate, isoToGtfsDate, type AnalysisDay } from '../gtfs/calendar.js';
 import type { PatternSet } from '../network/types.js';
 
 export interface LoadedFeed {
   feed: Feed;
   patterns: PatternSet;
-  date: string | null; // the analysis date of the patterns; null when no weekday has service
+  date: string | null; // the analysis date of the patterns; null when no day qualifies
+  analysis: AnalysisDay; // the date and why it was chosen
 }
 
 /**
- * Reads every trip of a feed and builds its patterns on date (default: the busiest weekday). A feed with no
- * trips on that date still loads, with no patterns, so that check can report it.
+ * Reads every trip of a feed and builds its patterns on the date chooseAnalysisDate picks (--date, else the
+ * run date's service day when `today` is given, else the default analysis date). A feed with nothing to
+ * analyse still loads, with no patterns, so that check can report it; a --date on which nothing runs is an
+ * error, as for the audit.
  */
-export async function loadFeed(source: string, options: { date?: string; onProgress?: OnProgress } = {}): Promise<LoadedFeed> {
-  const { date: asked, onProgress } = options;
-  if (asked !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(asked)) {
-    throw new StopspanError('bad-option', `invalid option --date: expected YYYY-MM-DD, got ${asked}`, { value: asked });
-  }
+export async function loadFeed(source: string, options: { date?: string; today?: string; onProgress?: OnProgress } = {}): Promise<LoadedFeed> {
+  const { date: asked, today, onProgress } = options;
+  if (asked !== undefined) isoToGtfsDate(asked, '--date');
+  if (today !== undefined) isoToGtfsDate(today, '--today');
   // loaded here, not with the module: the commands that import this one register at every start-up
-  const [{ readFeed }, { buildPatterns }, { busiestWeekday }] = await Promise.all([import('../gtfs/readFeed.js'), import('../network/buildPatterns.js'), import('../audit/check.js')]);
+  const [{ readFeed }, { buildPatterns }, { tripRunsPerDay }] = await Promise.all([import('../gtfs/readFeed.js'), import('../network/buildPatterns.js'), import('../gtfs/frequencies.js')]);
   const feed = await readFeed(source, { date: 'all', onProgress });
-  const date = asked ?? busiestWeekday(feed);
+  // trip runs per service, frequencies expanded: the count the audit's default date uses too
+  const runs = tripRunsPerDay(feed.frequencies);
+  const runsPerService = new Map<string, number>();
+  for (const t of feed.trips.values()) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
+  const analysis = chooseAnalysisDate(feed, runsPerService, { date: asked, today });
+  const date = analysis.date;
   const empty: PatternSet = { date: date ?? '', patterns: [], routesAtStop: new Map() };
-  if (date === null) return { feed, patterns: empty, date };
+  if (date === null) return { feed, patterns: empty, date, analysis };
   try {
-    return { feed, patterns: buildPatterns(feed, { date, onProgress }), date };
+    return { feed, patterns: buildPatterns(feed, { date, onProgress }), date, analysis };
   } catch (e) {
-    if (isStopspanError(e) && e.code === 'empty-feed') return { feed, patterns: empty, date };
+    if (isStopspanError(e) && e.code === 'empty-feed' && asked === undefined) return { feed, patterns: empty, date, analysis };
     throw e;
   }
 }

@@ -11,6 +11,7 @@ interface HistoryCliOptions {
   json?: boolean;
   out?: string;
   command?: string;
+  feed?: string;
   limit?: string;
   quiet?: boolean;
   verbose?: boolean;
@@ -19,11 +20,12 @@ interface HistoryCliOptions {
 export function registerHistory(program: Command): void {
   program
     .command('history')
-    .description('The trend of runs recorded with --history: a table, JSON, or an HTML page with --out.')
+    .description('The trend of runs recorded with --history, one line per feed: a table, JSON, or an HTML page with --out.')
     .argument('<file>', 'the history database (SQLite)')
     .option('--json', 'print the runs as JSON on stdout')
     .option('--out <dir>', 'also write history.html into this folder')
     .option('--command <name>', 'only runs of this command (check, audit)')
+    .option('--feed <name>', "only runs of this feed: its publisher (feed_info.txt), or its source when it names none")
     .option('--limit <n>', 'only the newest n runs')
     .option('-q, --quiet', 'say nothing on stderr')
     .option('--verbose', 'stack traces for internal errors')
@@ -35,7 +37,7 @@ export function registerHistory(program: Command): void {
         const db = openHistory(file);
         let rows;
         try {
-          rows = readHistory(db, { command: o.command, limit: limit === undefined ? undefined : Math.floor(limit) });
+          rows = readHistory(db, { command: o.command, feed: o.feed, limit: limit === undefined ? undefined : Math.floor(limit) });
         } finally {
           db.close();
         }
@@ -45,6 +47,6 @@ export function registerHistory(program: Command): void {
         }
         process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));
         return EXIT.clean;
-      }),
+      }, { json: o.json === true }),
     );
 }

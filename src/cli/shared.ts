@@ -2,13 +2,17 @@
 // progress drawer (stderr, only when a person is watching).
 
 import { isStopspanError } from '../common/errors.js';
+import { version } from '../version.js';
 import { groupedFixed } from '../report/numberText.js';
 import type { OnProgress, ProgressEvent } from '../common/progress.js';
 
 export const EXIT = { clean: 0, found: 1, badInput: 2, internal: 3 } as const;
 
-/** Runs a command action; known failures become one line on stderr and exit 2, anything else exit 3. */
-export async function runAction(verbose: boolean, action: () => Promise<number>): Promise<void> {
+/**
+ * Runs a command action; known failures become one line on stderr and exit 2, anything else exit 3. With
+ * json, a failure also prints errorDocument on stdout, so a redirect always captures the outcome.
+ */
+export async function runAction(verbose: boolean, action: () => Promise<number>, options: { json?: boolean } = {}): Promise<void> {
   let code: number;
   try {
     code = await action();
@@ -22,8 +26,17 @@ export async function runAction(verbose: boolean, action: () => Promise<number>)
       if (verbose && err?.stack) process.stderr.write(err.stack + '\n');
       code = EXIT.internal;
     }
+    if (options.json) process.stdout.write(JSON.stringify(errorDocument(e, code), null, 2) + '\n');
   }
   process.exitCode = code;
+}
+
+/** The JSON document of a failed run: the error's code, message and where (file, line, column, value), and the exit code. */
+export function errorDocument(e: unknown, exitCode: number): { tool: { name: string; version: string }; error: Record<string, string | number>; exitCode: number } {
+  const error: Record<string, string | number> = isStopspanError(e)
+    ? { code: e.code, message: e.message, ...Object.fromEntries(Object.entries(e.context).filter(([, v]) => v !== undefined)) }
+    : { code: 'internal', message: String((e as Error)?.message ?? e) };
+  return { tool: { name: 'stopspan', version }, error, exitCode };
 }
 
 /** A progress callback that draws one updating line on a TTY and nothing otherwise (or when quiet). */

@@ -1,6 +1,7 @@
 // Which services run on a date, by the GTFS Schedule rules: a calendar.txt row runs on its weekdays from
 // start_date to end_date inclusive; calendar_dates.txt exception_type 1 adds the service on that date and
-// 2 removes it; calendar_dates may stand alone. Also the feed's service range and the default analysis date.
+// 2 removes it; calendar_dates may stand alone. Also the feed's service range and the one rule for the
+// analysis date of every command (chooseAnalysisDate; defaultAnalysisDate when nothing else is asked).
 
 import { StopspanError } from '../common/errors.js';
 import type { CalendarDate, CalendarRow, Feed } from './types.js';
@@ -98,4 +99,54 @@ export function defaultAnalysisDate(feed: CalendarTables, runsPerService: Map<st
     }
   }
   return best ? gtfsToIsoDate(best) : null;
+}
+
+/** How far after the run date `check` looks for a day with service: one week, so a weekday-only feed checked on a weekend finds the Monday (GTFS best practice: a feed covers at least the next 7 days). */
+export const NEXT_SERVICE_WINDOW_DAYS = 7;
+
+/** Why a date was analysed: asked for, the run date, the first day with service after it, the default, or none found. */
+export type DateBasis = 'asked' | 'run-date' | 'next-service-day' | 'busiest-weekday' | 'none';
+
+export interface AnalysisDay {
+  date: string | null; // YYYY-MM-DD, null when no day qualifies
+  basis: DateBasis;
+  because: string; // one line for people
+}
+
+/**
+ * The one rule for the analysis date of every command. `date` when given (a day on which nothing runs is
+ * an error, as for the audit); else, with a run date `today`, that day or the first day with service in the
+ * NEXT_SERVICE_WINDOW_DAYS after it; else the default analysis date (defaultAnalysisDate). Days count trip
+ * runs per service, frequencies expanded.
+ */
+export function chooseAnalysisDate(
+  feed: CalendarTables,
+  runsPerService: Map<string, number>,
+  options: { date?: string; today?: string; windowDays?: number } = {},
+): AnalysisDay {
+  const { date, today, windowDays = NEXT_SERVICE_WINDOW_DAYS } = options;
+  const runsOn = (ymd: string): number => {
+    let n = 0;
+    for (const s of servicesOnGtfsDate(feed.calendar, feed.calendarDates, ymd)) n += runsPerService.get(s) ?? 0;
+    return n;
+  };
+  if (date !== undefined) {
+    if (runsOn(isoToGtfsDate(date, '--date')) === 0) throw new StopspanError('empty-feed', `no trip runs on ${date}`);
+    return { date, basis: 'asked', because: 'the date asked for with --date' };
+  }
+  if (today !== undefined) {
+    const from = isoToGtfsDate(today, '--today');
+    for (let k = 0; k <= windowDays; k++) {
+      const ymd = addDays(from, k);
+      if (runsOn(ymd) === 0) continue;
+      return k === 0
+        ? { date: today, basis: 'run-date', because: `the run date ${today}` }
+        : { date: gtfsToIsoDate(ymd), basis: 'next-service-day', because: `the first day with service after the run date ${today}, on which nothing runs` };
+    }
+    return { date: null, basis: 'none', because: `nothing runs on the run date ${today} or in the ${windowDays} days after it` };
+  }
+  const best = defaultAnalysisDate(feed, runsPerService);
+  return best
+    ? { date: best, basis: 'busiest-weekday', because: "the Monday-Friday date with the most trips in the feed's service range" }
+    : { date: null, basis: 'none', because: 'no Monday-Friday date in the service range has any trip' };
 }

@@ -14,8 +14,19 @@ export interface RunRecord {
   findings: Record<string, number>;
 }
 
+/** The feed a run belongs to: its publisher, or its source when the feed names no publisher. */
+export function feedKey(r: Pick<RunRecord, 'feed'>): string {
+  return r.feed.publisher || r.feed.source;
+}
+
+/** True when the run ran the feed checks (a check, or an audit recorded with one); an audit alone has no severities to plot. */
+export function ranChecks(r: Pick<RunRecord, 'findings'>): boolean {
+  return Object.keys(r.findings).length > 0;
+}
+
 export interface ReadHistoryOptions {
   command?: string; // only runs of this command
+  feed?: string; // only runs of this feed, as feedKey names it (its publisher, else its source)
   limit?: number; // only the newest N runs (still returned oldest first)
 }
 
@@ -43,11 +54,21 @@ interface RunSqlRow {
 }
 
 export function readHistory(db: HistoryDb, options: ReadHistoryOptions = {}): RunRecord[] {
-  const { command, limit = -1 } = options;
-  const where = command ? 'WHERE command = @command' : '';
+  const { command, feed, limit = -1 } = options;
+  const conditions: string[] = [];
+  const params: Record<string, string | number> = { limit };
+  if (command) {
+    conditions.push('command = @command');
+    params.command = command;
+  }
+  if (feed) {
+    conditions.push("(publisher = @feed OR (publisher = '' AND feed_source = @feed))");
+    params.feed = feed;
+  }
+  const where = conditions.length ? `WHERE ${conditions.join(' AND ')}` : '';
   const rows = db
     .prepare(`SELECT * FROM (SELECT * FROM runs ${where} ORDER BY run_date DESC, id DESC LIMIT @limit) ORDER BY run_date, id`)
-    .all(command ? { command, limit } : { limit }) as RunSqlRow[];
+    .all(params) as RunSqlRow[];
   const counts = db.prepare('SELECT code, count FROM run_findings WHERE run_id = ? ORDER BY code');
   return rows.map((r) => ({
     id: r.id,

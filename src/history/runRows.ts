@@ -22,9 +22,12 @@ export function checkRunRow(report: CheckReport, command = 'check'): RunRow {
   };
 }
 
-/** The history row of an `audit` run; pass the check report too when the job ran both. */
+/**
+ * The history row of an `audit` run; pass the check report too when the job ran both. Its run date is the
+ * date the audit analysed (the clock time is recordedAt), so the history's time axis is the feed's dates.
+ */
 export function auditRunRow(result: AuditResult, options: { runDate?: string; check?: CheckReport; command?: string } = {}): RunRow {
-  const { runDate = result.generatedAt.slice(0, 10), check, command = 'audit' } = options;
+  const { runDate = result.date, check, command = 'audit' } = options;
   const h = result.headline;
   return {
     runDate,

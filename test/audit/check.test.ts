@@ -2,7 +2,7 @@
 // silent on the clean feed.
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { busiestWeekday, checkFeed, lastServiceDate } from '../../src/audit/check.js';
+import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/audit/check.js';
 import { haversineM } from '../../src/network/geodesy.js';
 import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
 import { buildFeed, cleanSpec, street } from './buildFeed.js';
@@ -16,7 +16,7 @@ const run = (spec = cleanSpec(), opts = {}) => {
 
 describe('the findings table', () => {
   it('gives every code a title, a one-line explanation and a severity', () => {
-    expect(FINDING_CODES).toHaveLength(9);
+    expect(FINDING_CODES).toHaveLength(11);
     for (const code of FINDING_CODES) {
       expect(FINDINGS[code].title.length).toBeGreaterThan(3);
       expect(FINDINGS[code].explanation).not.toMatch(/\n/);
@@ -219,18 +219,34 @@ describe('checkFeed', () => {
   });
 });
 
-describe('busiestWeekday', () => {
-  it('picks the weekday with the most trips, skipping weekends', () => {
+describe('dates and stops served', () => {
+  it('service-ended, not service-ending-soon, once the last day of service is before the run date', () => {
     const spec = cleanSpec();
-    spec.calendar = [
-      { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20261012', end: '20261018' },
-      { serviceId: 'WE', days: [false, false, false, false, false, true, true], start: '20261012', end: '20261018' },
-    ];
-    // 2026-10-14 is a Wednesday (ISO 8601 calendar) [C]; extra service added that day only
-    spec.calendarDates = [{ serviceId: 'X', date: '20261014', exceptionType: 1 }];
-    spec.trips.push({ id: 'T2', serviceId: 'X', times: spec.trips[0].times });
-    spec.trips.push({ id: 'T3', serviceId: 'WE', times: spec.trips[0].times }, { id: 'T4', serviceId: 'WE', times: spec.trips[0].times });
-    const { feed } = buildFeed(spec);
-    expect(busiestWeekday(feed)).toBe('2026-10-14');
+    spec.calendar = [{ serviceId: 'WK', days: [true, true, true, true, true, true, true], start: '20260101', end: '20261010' }];
+    const r = run(spec); // 2026-10-10 is 4 days before 2026-10-14
+    expect(r.counts['service-ended']).toBe(1);
+    expect(r.counts['service-ending-soon']).toBe(0);
+    expect(r.findings.find((f) => f.code === 'service-ended')!.examples[0].detail).toMatch(/ended 4 day/);
+  });
+
+  it('no-service at error severity when no pattern was checked, naming why', () => {
+    const { feed, patterns } = buildFeed(cleanSpec());
+    const none = { date: null, basis: 'none' as const, because: 'nothing runs on the run date 2026-10-17 or in the 7 days after it' };
+    const r = checkFeed(feed, { ...patterns, patterns: [] }, { today: TODAY, analysis: none });
+    expect(r.counts['no-service']).toBe(1);
+    expect(r.findings[0]).toMatchObject({ code: 'no-service', severity: 'error' });
+    expect(r.findings[0].examples[0].detail).toBe(none.because);
+    expect(r.analysis).toEqual(none);
+    expect(run().counts['no-service']).toBe(0);
+  });
+
+  it('counts passenger stops only as stops served (a timing point where nobody boards or alights is not one)', () => {
+    const { feed, patterns } = buildFeed(cleanSpec());
+    const p = patterns.patterns[0];
+    const all = p.stopIdx.length;
+    expect(passengerStopsServed(patterns)).toBe(all);
+    const timing = { ...p, passengerStop: p.passengerStop.map((_, i) => i !== 2) };
+    expect(passengerStopsServed({ ...patterns, patterns: [timing] })).toBe(all - 1);
+    expect(checkFeed(feed, { ...patterns, patterns: [timing] }, { today: TODAY }).network.stopsServed).toBe(all - 1);
   });
 });

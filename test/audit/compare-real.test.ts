@@ -12,6 +12,7 @@ import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
 import { compareFeeds } from '../../src/audit/compare.js';
 import { checkFeed } from '../../src/audit/check.js';
+import { compareExitCode } from '../../src/cli/compare.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
 const BUS = join(FEEDS, 'nyct-bus-manhattan.zip');
@@ -147,8 +148,11 @@ describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
 
       // spacing before: the README's median gap along the shape, 222.3 m [real feed fact], within 1 %
       expect(Math.abs(c.spacing.before.medianGapM! - 222.3) / 222.3).toBeLessThan(0.01);
-      expect(c.spacing.before.stopsServed).toBe(1822); // README: 1 822 stops served [real feed fact]
-      expect(c.spacing.after.stopsServed).toBe(1822 - 3);
+      // README: 1 822 stops in the day's patterns [real feed fact]; of them, stops served count passenger
+      // stops only (as the audit does), leaving out 4 where the patterns' trips neither pick up nor drop off [D]
+      expect(new Set(oldPatterns.patterns.flatMap((p) => p.stopIdx)).size).toBe(1822);
+      expect(c.spacing.before.stopsServed).toBe(1818);
+      expect(c.spacing.after.stopsServed).toBe(1818 - 3);
       // three of thousands of gaps merge: the median barely moves (it may move either way) [D]
       expect(Math.abs(c.spacing.after.medianGapM! - c.spacing.before.medianGapM!) / c.spacing.before.medianGapM!).toBeLessThan(0.01);
       expect(c.spacing.after.patterns).toBe(151);
@@ -157,6 +161,80 @@ describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
       const report = checkFeed(oldFeed, oldPatterns, { today: DATE });
       expect(report.serviceEnd).toBe('2027-01-02');
       expect(report.counts['service-ending-soon']).toBe(0);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  }, 240_000);
+});
+
+describe.skipIf(!existsSync(BUS))('compare names trips added, cancelled and cut on the Manhattan bus feed', () => {
+  it('one trip added, one cancelled and one route halved: exactly those routes and patterns, and the cut fails the run', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-compare-trips-'));
+    try {
+      const oldFeed = await readFeed(BUS, { date: 'all' });
+      const oldPatterns = buildPatterns(oldFeed, { date: DATE });
+      const routes = [...new Set(oldPatterns.patterns.map((p) => p.routeId))].sort();
+      const tripsOf = (routeId: string) => oldPatterns.patterns.filter((p) => p.routeId === routeId).flatMap((p) => p.tripIds).sort();
+      const [halved, cancelled, grown] = [routes[0], routes[1], routes[2]];
+      const drop = new Set(tripsOf(halved).filter((_, k) => k % 2 === 1)); // every second trip of the day
+      const cancelledTrip = tripsOf(cancelled)[0];
+      drop.add(cancelledTrip);
+      const copied = tripsOf(grown)[0];
+      const addedTrip = 'VELLMOOR-ADDED-1';
+
+      const files = await readZip(BUS);
+      const trips = files.get('trips.txt')!.toString('utf8').split('\n');
+      const iTrip = trips[0].split(',').indexOf('trip_id');
+      const tripLine = trips.find((l) => l.split(',')[iTrip] === copied)!;
+      const keptTrips = trips.filter((l, k) => k === 0 || l === '' || !drop.has(l.split(',')[iTrip]));
+      keptTrips.splice(1, 0, tripLine.split(',').map((x, i) => (i === iTrip ? addedTrip : x)).join(','));
+      const times = files.get('stop_times.txt')!.toString('utf8').split('\n');
+      const keptTimes = times.filter((l, k) => k === 0 || l === '' || !drop.has(l.slice(0, l.indexOf(','))));
+      // the added trip runs an hour after the one it copies (times only move; the pattern stays)
+      const later = (t: string) => {
+        const [h, m, sec] = t.trim().split(':').map(Number);
+        return `${String(h + 1).padStart(2, '0')}:${String(m).padStart(2, '0')}:${String(sec).padStart(2, '0')}`;
+      };
+      for (const l of times) {
+        if (!l.startsWith(copied + ',')) continue;
+        const cells = l.split(',');
+        cells[0] = addedTrip;
+        cells[1] = later(cells[1]);
+        cells[2] = later(cells[2]);
+        keptTimes.push(cells.join(','));
+      }
+      files.set('trips.txt', Buffer.from(keptTrips.join('\n')));
+      files.set('stop_times.txt', Buffer.from(keptTimes.join('\n') + '\n'));
+      const altered = join(dir, 'altered.zip');
+      await writeZip(altered, files);
+
+      const newFeed = await readFeed(altered, { date: 'all' });
+      const newPatterns = buildPatterns(newFeed, { date: DATE });
+      const c = compareFeeds(oldFeed, newFeed, oldPatterns, newPatterns);
+      const nHalved = tripsOf(halved).length;
+      const nCancelled = tripsOf(cancelled).length;
+      const nGrown = tripsOf(grown).length;
+      const halvedAfter = nHalved - Math.floor(nHalved / 2);
+      // the routes, biggest cut first; percentages worked out from the counts [D]
+      expect(c.trips.byRoute.map((r) => [r.routeId, r.tripsBefore, r.tripsAfter])).toEqual([
+        [halved, nHalved, halvedAfter],
+        [cancelled, nCancelled, nCancelled - 1],
+        [grown, nGrown, nGrown + 1],
+      ]);
+      expect(c.trips.byRoute[0].changePct).toBeCloseTo(((halvedAfter - nHalved) / nHalved) * 100, 9);
+      // the patterns: the cancelled and the added trip named by trip_id, the halved route's lost trips counted
+      const byPattern = c.trips.byPattern;
+      expect(byPattern.flatMap((x) => x.tripIdsAdded)).toEqual([addedTrip]);
+      expect(byPattern.some((x) => x.routeId === cancelled && x.tripIdsRemoved.includes(cancelledTrip))).toBe(true);
+      expect(byPattern.filter((x) => x.routeId === halved).reduce((n, x) => n + x.tripIdsRemovedCount, 0)).toBe(Math.floor(nHalved / 2));
+      expect(new Set(byPattern.map((x) => x.routeId))).toEqual(new Set([halved, cancelled, grown]));
+      // no stop changed, and a pattern whose trips changed is not counted unchanged
+      expect(c.patterns.changed).toEqual([]);
+      expect(c.patterns.unchanged + byPattern.length + c.patterns.removed.length).toBe(oldPatterns.patterns.length);
+      expect(c.spacing.after.tripsPerDay - c.spacing.before.tripsPerDay).toBe(-Math.floor(nHalved / 2) - 1 + 1);
+      // a nightly job failing on a route losing more than 40 % of its trips, and not on 60 %
+      expect(compareExitCode(c, 40)).toBe(1);
+      expect(compareExitCode(c, 60)).toBe(0);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }

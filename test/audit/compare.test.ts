@@ -76,6 +76,32 @@ describe('compareFeeds', () => {
     expect(c.patterns.removed).toEqual([]);
   });
 
+  it('counts trips a day with frequencies expanded, and sees a retimed trip that leaves the count unchanged', () => {
+    const a = buildFeed(twoRoutes());
+    const withFreq = (headwayS: number) => {
+      const runs = Math.ceil(3600 / headwayS); // GTFS Schedule reference: runs start at start_time + k * headway_secs before end_time [C]
+      const feed = { ...a.feed, frequencies: [{ tripId: 'T1', startS: 7 * 3600, endS: 8 * 3600, headwayS, exactTimes: 1 as const }] };
+      const patterns = { ...a.patterns, patterns: a.patterns.patterns.map((p) => (p.tripIds.includes('T1') ? { ...p, tripsPerDay: runs } : p)) };
+      return { feed, patterns };
+    };
+    const before = withFreq(600); // 6 runs, 07:00 to 07:50 [D]
+    const after = withFreq(1200); // 3 runs, 07:00 to 07:40 [D]
+    const c = compareFeeds(before.feed, after.feed, before.patterns, after.patterns);
+    expect(c.trips.byRoute).toEqual([{ routeId: 'R1', shortName: expect.any(String), tripsBefore: 6, tripsAfter: 3, changePct: -50 }]);
+    expect(c.trips.byPattern).toHaveLength(1);
+    expect(c.trips.byPattern[0]).toMatchObject({ tripsBefore: 6, tripsAfter: 3, tripIdsAddedCount: 0, tripIdsRemovedCount: 0, firstDeparture: { before: '7:00:00', after: '7:00:00' }, lastDeparture: { before: '7:50:00', after: '7:40:00' } });
+    expect(c.patterns.unchanged).toBe(1); // R2's pattern only
+
+    // the same trip leaving ten minutes later: same count, different departures
+    const spec = twoRoutes();
+    spec.trips[1].times = spec.trips[1].times.map(([id, arr, dep]) => [id, arr + 600, dep + 600] as [string, number, number]);
+    const later = buildFeed(spec);
+    const r = compareFeeds(a.feed, later.feed, a.patterns, later.patterns);
+    expect(r.trips.byRoute).toEqual([]);
+    expect(r.trips.byPattern.map((x) => [x.routeId, x.tripsBefore, x.tripsAfter, x.firstDeparture.before, x.firstDeparture.after])).toEqual([['R2', 1, 1, '8:20:00', '8:30:00']]);
+    expect(r.patterns.unchanged).toBe(1);
+  });
+
   it('lcsMatch matches the longest common subsequence', () => {
     // the classic textbook pair ABCBDAB / BDCABA has an LCS of length 4 (Cormen et al., Introduction to Algorithms, section 15.4) [C]
     expect(lcsMatch([...'ABCBDAB'], [...'BDCABA']).length).toBe(4);

@@ -2,7 +2,7 @@
 // worked out by hand beside each check, and checked against the weekdays of a calendar outside the code.
 
 import { describe, expect, it } from 'vitest';
-import { defaultAnalysisDate, serviceRange, servicesOn, weekdayOf } from '../../src/gtfs/calendar.js';
+import { chooseAnalysisDate, defaultAnalysisDate, serviceRange, servicesOn, weekdayOf } from '../../src/gtfs/calendar.js';
 import { runsOfFrequency, tripInstancesOnDate, tripRunsPerDay } from '../../src/gtfs/frequencies.js';
 import type { CalendarDate, CalendarRow, Frequency, Trip } from '../../src/gtfs/types.js';
 
@@ -92,5 +92,33 @@ describe('frequencies', () => {
         ['T1', { count: 1, nominal: 0 }],
       ]),
     );
+  });
+});
+
+describe('chooseAnalysisDate: one rule for every command', () => {
+  // weekday service through October 2026; 2026-10-14 is a Wednesday, 2026-10-17 a Saturday, 2026-10-19 a
+  // Monday [C, ECMAScript Date; any printed 2026 calendar]
+  const feed = { calendar: [cal('WK', WEEKDAYS, '20261001', '20261031')], calendarDates: [ex('WK', '20261015', 2)] };
+  const runs = new Map([['WK', 40]]);
+  it('analyses --date when something runs on it, and refuses one on which nothing runs', () => {
+    expect(chooseAnalysisDate(feed, runs, { date: '2026-10-14', today: '2026-10-01' })).toMatchObject({ date: '2026-10-14', basis: 'asked' });
+    expect(() => chooseAnalysisDate(feed, runs, { date: '2030-01-01' })).toThrow(/no trip runs on 2030-01-01/);
+    expect(() => chooseAnalysisDate(feed, runs, { date: '2026-10-15' })).toThrow(/no trip runs/); // removed by calendar_dates [C, GTFS Schedule reference, exception_type 2]
+  });
+  it("analyses the run date's service, else the first day with service in the week after it, else none", () => {
+    expect(chooseAnalysisDate(feed, runs, { today: '2026-10-14' })).toMatchObject({ date: '2026-10-14', basis: 'run-date' });
+    const sat = chooseAnalysisDate(feed, runs, { today: '2026-10-17' });
+    expect(sat).toMatchObject({ date: '2026-10-19', basis: 'next-service-day' });
+    expect(sat.because).toMatch(/after the run date 2026-10-17/);
+    expect(chooseAnalysisDate(feed, runs, { today: '2026-10-15' }).date).toBe('2026-10-16'); // the removed Thursday
+    const late = chooseAnalysisDate(feed, runs, { today: '2026-11-02' });
+    expect(late).toMatchObject({ date: null, basis: 'none' });
+    expect(late.because).toMatch(/2026-11-02 or in the 7 days after it/);
+    // a Saturday that is the service's last day: the week after it has nothing
+    expect(chooseAnalysisDate(feed, runs, { today: '2026-10-31' }).date).toBeNull();
+  });
+  it('without either, the default analysis date (frequencies expanded by the caller)', () => {
+    expect(chooseAnalysisDate(feed, runs)).toMatchObject({ date: '2026-10-01', basis: 'busiest-weekday' });
+    expect(chooseAnalysisDate({ calendar: [], calendarDates: [] }, runs)).toMatchObject({ date: null, basis: 'none' });
   });
 });

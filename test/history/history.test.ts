@@ -1,12 +1,13 @@
 // The run history: schema on first use, transactional writes, reading back, rendering, and two processes
 // writing at once without corrupting the database.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { execFileSync, spawn } from 'node:child_process';
 import Database from 'better-sqlite3';
-import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, SCHEMA_VERSION, type RunRow } from '../../src/history/index.js';
+import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, auditRunRow, lineChartSvg, seriesOf, varies, yRange, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
+import { makeSampleResult } from '../report/sampleResult.js';
 import { checkFeed } from '../../src/audit/check.js';
 import { buildFeed, cleanSpec } from '../audit/buildFeed.js';
 
@@ -73,6 +74,17 @@ describe('recordRun and readHistory', () => {
     db.close();
   });
 
+  it('keeps one feed\'s runs with feed: its publisher, or its source when it names none', () => {
+    const db = openHistory(join(dir, 'feeds.sqlite'));
+    recordRun(db, row(0));
+    recordRun(db, row(1, { feed: { source: 'kanaal.zip', contentHash: 'k', version: 'v', publisher: '' } }));
+    recordRun(db, row(2));
+    expect(readHistory(db, { feed: 'Vellmoor Transit' }).map((r) => r.runDate)).toEqual(['2026-10-10', '2026-10-12']);
+    expect(readHistory(db, { feed: 'kanaal.zip' }).map((r) => r.runDate)).toEqual(['2026-10-11']);
+    expect(readHistory(db, { feed: 'https://vellmoor.example/gtfs.zip' })).toEqual([]); // it names a publisher
+    db.close();
+  });
+
   it('writes nothing when a run fails part-way (one transaction)', () => {
     const db = openHistory(join(dir, 'atomic.sqlite'));
     recordRun(db, row(1));
@@ -98,7 +110,7 @@ describe('recordRun and readHistory', () => {
     recordRun(db, checkRunRow(checkFeed(feed, patterns, { today: '2026-10-14' })));
     const [r] = readHistory(db);
     expect(r.runDate).toBe('2026-10-14');
-    expect(Object.keys(r.findings)).toHaveLength(9);
+    expect(Object.keys(r.findings)).toHaveLength(11);
     // the clean Vellmoor street: one pattern, five stops, 400 m gaps [D]
     expect(r.headline).toMatchObject({ patterns: 1, stops: 5, trips: 1, analysisDate: '2026-10-14' });
     expect(r.headline.medianGapM).toBeCloseTo(400, 1);
@@ -122,12 +134,78 @@ describe('rendering', () => {
     expect(html).not.toContain('<script>');
     expect(html).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
     expect(html).not.toMatch(/src=|href=|@import|url\(/); // self-contained
-    expect(html.match(/<svg /g)!.length).toBe(8); // 4 headline + 2 severity + 2 finding codes
+    // the figures that change between the two runs: median gap, close stops, pax-min, warnings, twin-stops;
+    // wide gaps (2, 2), errors (0, 0) and coordinate-fault (0, 0) are flat and said in a sentence instead
+    expect(html.match(/<svg /g)!.length).toBe(5);
+    expect(html).not.toContain('aria-label="Wide gaps"');
+    expect(html).toMatch(/The same in every run: Wide gaps 2; Kinds of finding at error severity 0; Finding coordinate-fault \(count\) 0\./);
     expect(html).toContain('<polyline');
     expect(historyText(rows).split('\n')[1]).toMatch(/^2026-10-10\s+check\s+v0\s+hash0\s+300\.0\s+10\s+2\s+0\s+0\s+0\s+0$/);
     expect(historyText([])).toMatch(/no runs/);
-    expect(historyText(rows)).toMatch(/since the previous run \(2026-10-10\): new feed content\n  twin-stops \+1 \(now 1\)\n$/);
-    expect(historyText([rows[0], { ...rows[0], id: 9 }])).toMatch(/same feed content\n  no finding changed its count\n$/);
+    expect(historyText(rows)).toMatch(
+      /since the previous run \(2026-10-10\): new feed content\n  median gap m 300\.0 -> 301\.0 \(\+1\.0\)\n  close stops 10 -> 9 \(-1\)\n  pax-min lost per day 0 -> 1001 \(\+1001\)\n  twin-stops \+1 \(now 1\)\n$/,
+    );
+    expect(historyText([rows[0], { ...rows[0], id: 9 }])).toMatch(/same feed content\n  no figure and no finding changed\n$/);
+  });
+});
+
+const record = (runDate: string, extra: Partial<RunRecord> = {}): RunRecord => ({
+  id: 0,
+  recordedAt: '2026-12-03T20:00:00.000Z',
+  runDate,
+  command: 'check',
+  feed: { source: 'vellmoor.zip', contentHash: 'h', version: 'v', publisher: 'Vellmoor Transit' },
+  headline: { analysisDate: runDate, patterns: 40, stops: 1186, trips: 900, medianGapM: 300, meanOptimalSpacingM: null, closeStops: null, wideGaps: null, paxMinLostPerDay: null },
+  severities: { error: 0, warning: 0, info: 0 },
+  findings: { 'twin-stops': 0 },
+  ...extra,
+});
+const cx = (svg: string): number[] => [...svg.matchAll(/<circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => Number(m[1]));
+const cy = (svg: string): number[] => [...svg.matchAll(/<circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => Number(m[2]));
+
+describe('the history page shows change', () => {
+  it('places runs by date: a run ten days after the second sits ten times as far along as the second from the first', () => {
+    const svg = lineChartSvg({ title: 'Stops served', values: [1186, 1187, 1189] }, ['2026-10-01', '2026-10-02', '2026-10-12'], ['A', 'A', 'A']);
+    const [a, b, c] = cx(svg);
+    expect((c - a) / (b - a)).toBeCloseTo(11, 6); // 11 days against 1 day [D]
+  });
+
+  it('spans the y axis over the values, so 1 186 -> 1 189 is visible; from zero only when zero is near', () => {
+    expect(yRange([1186, 1189]).lo).toBeGreaterThan(1180);
+    expect(yRange([2, 5]).lo).toBe(0); // zero is nearer than the span (3)
+    expect(yRange([0, 3])).toMatchObject({ lo: 0 });
+    const [y1, y2] = cy(lineChartSvg({ title: 'Stops served', values: [1186, 1189] }, ['2026-10-01', '2026-10-02'], ['A', 'A']));
+    expect(y1 - y2).toBeGreaterThan(80); // most of the 118 px plot height, not 0.3 % of it
+  });
+
+  it('draws one line per feed and never joins runs of different feeds', () => {
+    const rows = [
+      record('2026-10-01'),
+      record('2026-10-02', { feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' }, headline: { ...record('x').headline, stops: 300 } }),
+      record('2026-10-03', { headline: { ...record('x').headline, stops: 1189 } }),
+      record('2026-10-04', { feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' }, headline: { ...record('x').headline, stops: 310 } }),
+    ];
+    const stops = seriesOf(rows).find((s) => s.title === 'Stops served')!;
+    const svg = lineChartSvg(stops, rows.map((r) => r.runDate), rows.map((r) => r.feed.publisher));
+    const lines = [...svg.matchAll(/<polyline points="([^"]+)"/g)].map((m) => m[1].split(' ').length);
+    expect(lines).toEqual([2, 2]);
+    expect(historyHtml(rows)).toContain('2 feeds');
+    // the diff is against the previous run of the same feed
+    expect(historyText(rows)).toMatch(/since the previous run \(2026-10-02\): same feed content\n  stops served 300 -> 310 \(\+10\)\n/);
+  });
+
+  it('does not plot audit runs as zero errors: they ran no checks', () => {
+    const rows = [record('2026-10-01', { severities: { error: 1, warning: 0, info: 0 }, findings: { 'service-ended': 1 } }), record('2026-10-02', { command: 'audit', findings: {} })];
+    const errors = seriesOf(rows).find((s) => s.title === 'Kinds of finding at error severity')!;
+    expect(errors.values).toEqual([1, null]);
+    expect(varies(errors)).toBe(false);
+    expect(historyText(rows).split('\n')[2]).toMatch(/\s-\s+-\s+-$/);
+  });
+
+  it("records an audit's run date as the date it analysed, not the clock", () => {
+    const result = makeSampleResult();
+    expect(auditRunRow(result).runDate).toBe(result.date);
+    expect(result.generatedAt.slice(0, 10)).not.toBe(result.date); // the sample's clock and date differ, so the check can fail
   });
 });
 
@@ -140,6 +218,8 @@ describe('two processes writing at once', () => {
       '--module', 'nodenext', '--moduleResolution', 'nodenext', '--target', 'es2022', '--skipLibCheck', '--types', 'node',
     ], { cwd: ROOT, stdio: 'pipe' });
     writeFileSync(join(out, 'package.json'), '{"type":"module"}');
+    // the compiled modules import better-sqlite3: resolve it from the project's own install, wherever the temporary folder sits
+    symlinkSync(join(ROOT, 'node_modules'), join(out, 'node_modules'), 'dir');
     const script = join(out, 'writer.mjs');
     writeFileSync(
       script,

@@ -1,0 +1,51 @@
+// One analysis-date rule for every command: on a hand-made Vellmoor feed where counting plain trips and
+// counting frequency-expanded runs pick different days, the audit's reader and the loader of check and
+// compare pick the same day, the one DESIGN.md section 3 describes (frequencies expanded).
+import { afterAll, describe, expect, it } from 'vitest';
+import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { ROOT, runCli } from '../helpers/cli.js';
+import { readFeed } from '../../src/gtfs/readFeed.js';
+import { loadFeed } from '../../src/cli/feedInput.js';
+
+const dir = mkdtempSync(join(tmpdir(), 'stopspan-date-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/**
+ * The clean check fixture with two services in the week of 2026-10-12 (a Monday [C, ECMAScript Date]):
+ * MON runs trips T1 and T2 on Mondays (2 plain trips), TUE runs T3 on Tuesdays, every 10 minutes from
+ * 07:00 to 08:00 (6 runs by frequencies.txt [C, GTFS Schedule reference: start_time + k * headway_secs
+ * before end_time]). Plain trips: Monday 2, Tuesday 1; runs: Monday 2, Tuesday 6 [D].
+ */
+function splitFeed(): string {
+  const feed = join(dir, 'split');
+  cpSync(join(ROOT, 'fixtures/check/clean'), feed, { recursive: true });
+  writeFileSync(join(feed, 'calendar.txt'), 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nMON,1,0,0,0,0,0,0,20261012,20261018\nTUE,0,1,0,0,0,0,0,20261012,20261018\n');
+  writeFileSync(join(feed, 'trips.txt'), 'route_id,service_id,trip_id,trip_headsign,direction_id,shape_id\nR1,MON,T1,Kanaalbrug,0,SH1\nR1,MON,T2,Kanaalbrug,0,SH1\nR1,TUE,T3,Kanaalbrug,0,SH1\n');
+  const times = readFileSync(join(feed, 'stop_times.txt'), 'utf8').trim().split('\n');
+  const t1 = times.filter((l) => l.startsWith('T1,'));
+  writeFileSync(join(feed, 'stop_times.txt'), [...times, ...t1.map((l) => l.replace(/^T1,/, 'T3,'))].join('\n') + '\n');
+  writeFileSync(join(feed, 'frequencies.txt'), 'trip_id,start_time,end_time,headway_secs,exact_times\nT3,07:00:00,08:00:00,600,1\n');
+  return feed;
+}
+
+describe('the default analysis date', () => {
+  it('is the same for the audit and for check/compare: the weekday with the most runs, frequencies expanded', async () => {
+    const feed = splitFeed();
+    const audit = await readFeed(feed, { date: 'auto' });
+    const loaded = await loadFeed(feed);
+    expect(audit.date).toBe('2026-10-13'); // Tuesday: 6 runs against Monday's 2 [D]
+    expect(loaded.date).toBe(audit.date);
+    expect(loaded.analysis.basis).toBe('busiest-weekday');
+    expect(loaded.patterns.patterns[0].tripsPerDay).toBe(6);
+    // and through the built command: compare's dates and the audit's summary.json agree
+    const cmp = await runCli(['compare', feed, feed, '--no-audit', '--json']);
+    expect(cmp.code).toBe(0);
+    expect(JSON.parse(cmp.stdout).dates).toEqual({ old: '2026-10-13', new: '2026-10-13' });
+    const out = join(dir, 'audit-out');
+    const a = await runCli(['audit', feed, '--out', out, '--quiet']);
+    expect(a.code).toBe(0);
+    expect(JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8')).date).toBe('2026-10-13');
+  });
+});
