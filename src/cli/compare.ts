@@ -6,7 +6,7 @@ import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
-import { loadFeed, numberOption, writeFiles } from './feedInput.js';
+import { loadFeed, numberOption } from './feedInput.js';
 
 interface CompareCliOptions {
   json?: boolean;
@@ -16,6 +16,7 @@ interface CompareCliOptions {
   ridership?: string;
   params?: string;
   audit: boolean;
+  force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -32,6 +33,7 @@ export function registerCompare(program: Command): void {
     .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's busiest weekday)")
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
+    .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
@@ -39,7 +41,14 @@ export function registerCompare(program: Command): void {
       runAction(o.verbose === true, async () => {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText }] = await Promise.all([import('../audit/compare.js'), import('../audit/runAudit.js'), import('../audit/compareRender.js')]);
+        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText }, { checkOutFolder, writeFolder }] = await Promise.all([
+          import('../audit/compare.js'),
+          import('../audit/runAudit.js'),
+          import('../audit/compareRender.js'),
+          import('../report/writeFolder.js'),
+        ]);
+        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params] };
+        if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
         const progress = makeProgress(o.quiet === true || o.json === true);
         let a, b;
         try {
@@ -57,7 +66,7 @@ export function registerCompare(program: Command): void {
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };
         if (o.out) {
-          const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n' });
+          const written = await writeFolder(o.out, [['compare.html', () => comparisonHtml(c)], ['compare.json', JSON.stringify(doc, null, 2) + '\n']], outOptions);
           if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));

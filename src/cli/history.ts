@@ -5,13 +5,14 @@ import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, runAction } from './shared.js';
-import { numberOption, writeFiles } from './feedInput.js';
+import { numberOption } from './feedInput.js';
 
 interface HistoryCliOptions {
   json?: boolean;
   out?: string;
   command?: string;
   limit?: string;
+  force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -25,12 +26,16 @@ export function registerHistory(program: Command): void {
     .option('--out <dir>', 'also write history.html into this folder')
     .option('--command <name>', 'only runs of this command (check, audit)')
     .option('--limit <n>', 'only the newest n runs')
+    .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('-q, --quiet', 'say nothing on stderr')
     .option('--verbose', 'stack traces for internal errors')
     .action((file: string, o: HistoryCliOptions) =>
       runAction(o.verbose === true, async () => {
         const limit = numberOption('--limit', o.limit, 1);
         if (!existsSync(file)) throw new StopspanError('history-db', 'no such history database', { file });
+        const { checkOutFolder, writeFolder } = await import('../report/writeFolder.js');
+        const outOptions = { force: o.force === true, inputs: [file] };
+        if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
         const { historyHtml, historyText, openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
         const db = openHistory(file);
         let rows;
@@ -40,7 +45,7 @@ export function registerHistory(program: Command): void {
           db.close();
         }
         if (o.out) {
-          const written = await writeFiles(o.out, { 'history.html': historyHtml(rows) });
+          const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
           if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));
