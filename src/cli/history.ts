@@ -37,7 +37,7 @@ export function registerHistory(program: Command): void {
         const outOptions = { force: o.force === true, inputs: [file] };
         if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
         const { historyHtml, historyText, openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
-        const db = openHistory(file);
+        const db = openHistory(file, { readOnly: true }); // reading changes nothing in the file
         let rows;
         try {
           rows = readHistory(db, { command: o.command, limit: limit === undefined ? undefined : Math.floor(limit) });

@@ -34,7 +34,7 @@ function tempName(target: string, kind: 'tmp' | 'old'): string {
 }
 
 function refuse(outDir: string, why: string): never {
-  throw new StopspanError('bad-output', `cannot write the output folder ${outDir}: ${why}`, { file: outDir });
+  throw new StopspanError('bad-output', `cannot use this as the output folder: ${why}`, { file: outDir });
 }
 
 function errno(e: unknown): string {
@@ -170,7 +170,7 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
     }
     if (why !== null) refuse(outDir, why);
     if (!force) {
-      throw new StopspanError('output-exists', `output folder ${outDir} already exists; choose another folder or pass --force to replace it`, { file: outDir });
+      throw new StopspanError('output-exists', 'the output folder already exists; choose another folder or pass --force to replace it', { file: outDir });
     }
   }
   // the nearest folder that exists on the way up must be a folder this run can write in

@@ -68,7 +68,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     for (const force of [false, true]) {
       const e = await rejected(writeFolder(out, [['index.html', 'x']], { force }));
       expect(e.code).toBe('bad-output');
-      expect(e.oneLine()).toBe(`${out}: cannot write the output folder ${out}: it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`);
+      expect(e.oneLine()).toBe(`${out}: cannot use this as the output folder: it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`);
     }
     expect(snapshot(work)).toEqual(before);
   });
@@ -106,7 +106,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     for (const force of [false, true]) {
       const e = await rejected(writeFolder(file, [['a.csv', '']], { force }));
       expect(e.code).toBe('bad-output');
-      expect(e.message).toMatch(/feed\.zip: it is a file, not a folder/);
+      expect(e.oneLine()).toMatch(/feed\.zip: cannot use this as the output folder: it is a file, not a folder/);
     }
     expect((await rejected(writeFolder(join(file, 'sub'), [['a.csv', '']], { force: true }))).message).toMatch(/feed\.zip is not a folder|a part of the path is a file/);
     expect(readFileSync(file, 'utf8')).toBe('PK');
@@ -115,12 +115,12 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
   it('a symbolic link, dangling or to a previous output', async () => {
     const dangling = join(work, 'dangling');
     symlinkSync(join(work, 'nowhere'), dangling);
-    expect((await rejected(writeFolder(dangling, [['a.csv', '']], { force: true }))).message).toMatch(/dangling: it is a symbolic link/);
+    expect((await rejected(writeFolder(dangling, [['a.csv', '']], { force: true }))).oneLine()).toMatch(/dangling: cannot use this as the output folder: it is a symbolic link/);
     const report = join(work, 'report');
     await writeFolder(report, [['a.csv', 'old']]);
     const link = join(work, 'link');
     symlinkSync(report, link);
-    expect((await rejected(writeFolder(link, [['a.csv', 'new']], { force: true }))).message).toMatch(/link: it is a symbolic link/);
+    expect((await rejected(writeFolder(link, [['a.csv', 'new']], { force: true }))).oneLine()).toMatch(/link: cannot use this as the output folder: it is a symbolic link/);
     expect(readFileSync(join(report, 'a.csv'), 'utf8')).toBe('old');
     expect((await rejected(writeFolder(join(dangling, 'sub'), [['a.csv', '']]))).message).toMatch(/dangling is a symbolic link to nothing/);
   });
@@ -130,7 +130,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     await writeFolder(out, [['feed.zip', 'PK'], ['a.csv', '']]);
     const before = snapshot(work);
     const e = await rejected(writeFolder(out, [['a.csv', '']], { force: true, inputs: [join(out, 'feed.zip'), undefined] }));
-    expect(e.message).toMatch(/report: it holds the input .*feed\.zip/);
+    expect(e.oneLine()).toMatch(/report: cannot use this as the output folder: it holds the input .*report\/feed\.zip/);
     expect((await rejected(writeFolder(out, [['a.csv', '']], { force: true, inputs: [out] }))).message).toMatch(/it holds the input/);
     expect(snapshot(work)).toEqual(before);
     // a URL is not a path: it never matches
@@ -142,7 +142,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     for (const p of ['.', '..', here, dirname(here)]) {
       const e = await rejected(checkOutFolder(p, { force: true }));
       expect(e.code).toBe('bad-output');
-      expect(e.message).toBe(`cannot write the output folder ${p}: it is the working folder or a folder above it`);
+      expect(e.oneLine()).toBe(`${p}: cannot use this as the output folder: it is the working folder or a folder above it`);
     }
     expect((await rejected(checkOutFolder('/', { force: true }))).message).toMatch(/it is the root folder/);
     // a home folder that even looks like a previous output is refused
@@ -161,7 +161,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
   it('a place that cannot be written, before any work: under /proc, a read-only parent', async () => {
     const e = await rejected(checkOutFolder('/proc/stopspan-report'));
     expect(e.code).toBe('bad-output');
-    expect(e.message).toMatch(/^cannot write the output folder \/proc\/stopspan-report: cannot write in \/proc: /);
+    expect(e.oneLine()).toMatch(/^\/proc\/stopspan-report: cannot use this as the output folder: cannot write in \/proc: /);
     expect(existsSync('/proc/stopspan-report')).toBe(false);
   });
 

@@ -77,7 +77,7 @@ describe('writeReport', () => {
     for (const force of [false, true]) {
       const e = await caught(writeReport(sample, out, { force }));
       expect(e.code).toBe('bad-output');
-      expect(e.oneLine()).toMatch(/existing: cannot write the output folder .*existing: it exists and is not a stopspan output folder/);
+      expect(e.oneLine()).toMatch(/existing: cannot use this as the output folder: it exists and is not a stopspan output folder/);
     }
     expect(await readdir(out)).toEqual(['notes.txt']);
     expect(await readFile(join(out, 'notes.txt'), 'utf8')).toBe('keep me');
