@@ -25,10 +25,11 @@ export interface WriteFolderOptions {
   inputs?: (string | undefined)[];
 }
 
-/** `.NAME.tmp-PID-TIME-RANDOM` (being written) and `.NAME.old-PID-TIME-RANDOM` (a previous output moved aside). */
-const TEMP_NAME = /^\.(.+)\.(tmp|old)-(\d+)-[a-z0-9]+-[a-z0-9]+$/;
+/** `.NAME.tmp-PID-TIME-RANDOM` (being written), `.NAME.old-PID-TIME-RANDOM` (a previous output moved aside) and
+ * `.NAME.probe-PID-TIME-RANDOM` (the empty folder that proves the place can be written). */
+const TEMP_NAME = /^\.(.+)\.(tmp|old|probe)-(\d+)-[a-z0-9]+-[a-z0-9]+$/;
 
-function tempName(target: string, kind: 'tmp' | 'old'): string {
+function tempName(target: string, kind: 'tmp' | 'old' | 'probe'): string {
   const suffix = `${process.pid}-${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 8).padEnd(6, '0')}`;
   return join(dirname(target), `.${basename(target)}.${kind}-${suffix}`);
 }
@@ -191,7 +192,7 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
     parent = dirname(parent);
   }
   await sweepStaleTemp(parent);
-  const probe = join(parent, basename(tempName(target, 'tmp')));
+  const probe = join(parent, basename(tempName(target, 'probe')));
   try {
     await mkdir(probe);
   } catch (e) {
