@@ -161,7 +161,9 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
     if (real === (await realOrSelf(homedir()))) refuse(outDir, 'it is the home folder');
     for (const input of inputs) {
       if (!input || /^https?:\/\//i.test(input)) continue;
-      if (isInside(await realOrSelf(input), real)) refuse(outDir, `it holds the input ${input}`);
+      // the input itself, and (when it is a link) where it points
+      const places = [join(await realOrSelf(dirname(resolve(input))), basename(resolve(input))), await realOrSelf(input)];
+      if (places.some((p) => isInside(p, real))) refuse(outDir, `it holds the input ${input}`);
     }
     let why: string | null;
     try {

@@ -133,6 +133,16 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     expect(e.oneLine()).toMatch(/report: cannot use this as the output folder: it holds the input .*report\/feed\.zip/);
     expect((await rejected(writeFolder(out, [['a.csv', '']], { force: true, inputs: [out] }))).message).toMatch(/it holds the input/);
     expect(snapshot(work)).toEqual(before);
+    // a link inside the folder that points to the feed elsewhere is an input too
+    const elsewhere = join(work, 'feeds');
+    mkdirSync(elsewhere);
+    writeFileSync(join(elsewhere, 'gtfs.zip'), 'PK');
+    const linked = join(work, 'linked');
+    await writeFolder(linked, [['a.csv', '']]);
+    symlinkSync(join(elsewhere, 'gtfs.zip'), join(linked, 'gtfs.zip'));
+    writeFileSync(join(linked, REPORT_MARKER), JSON.stringify({ writtenBy: 'stopspan', files: ['a.csv', 'gtfs.zip'] }));
+    expect((await rejected(writeFolder(linked, [['a.csv', '']], { force: true, inputs: [join(linked, 'gtfs.zip')] }))).message).toMatch(/it holds the input/);
+    expect(readFileSync(join(linked, 'gtfs.zip'), 'utf8')).toBe('PK');
     // a URL is not a path: it never matches
     await writeFolder(out, [['a.csv', 'new']], { force: true, inputs: ['https://data.vellmoor.example/gtfs.zip'] });
   });
