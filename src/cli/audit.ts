@@ -56,6 +56,14 @@ export function registerAudit(program: Command): void {
       }
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
       const params = mergeParams(opts.params, paramOverrides(opts));
+      const force = Boolean(opts.force);
+      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history];
+      // where the report goes and the history it joins are checked before the feed is read, so a run that
+      // cannot save its work fails at once instead of after the whole audit
+      await (await import('../report/writeFolder.js')).checkOutFolder(outDir, { force, inputs });
+      // loaded only when asked for: the SQLite binding costs start-up time on every other run
+      const history = opts.history ? await import('../history/index.js') : undefined;
+      const db = history && opts.history ? history.openHistory(opts.history) : undefined;
       const progress = makeProgress(Boolean(opts.quiet));
       // the report writers load while the feed is read (see auditFeed)
       const report = import('../report/writeReport.js');
@@ -72,17 +80,8 @@ export function registerAudit(program: Command): void {
         });
         progress.onProgress?.({ stage: 'writing reports' });
         const { writeReport } = await report;
-        const written = await writeReport(result, outDir, { formats, units: opts.units, force: Boolean(opts.force) });
-        if (opts.history) {
-          // loaded only when asked for: the SQLite binding costs start-up time on every other run
-          const { auditRunRow, openHistory, recordRun } = await import('../history/index.js');
-          const db = openHistory(opts.history);
-          try {
-            recordRun(db, auditRunRow(result));
-          } finally {
-            db.close();
-          }
-        }
+        const written = await writeReport(result, outDir, { formats, units: opts.units, force, inputs });
+        if (history && db) history.recordRun(db, history.auditRunRow(result));
         progress.done();
         const h = result.headline;
         process.stdout.write(
@@ -93,6 +92,7 @@ export function registerAudit(program: Command): void {
         );
       } finally {
         progress.done();
+        db?.close();
       }
       return EXIT.clean;
     });

@@ -82,22 +82,22 @@ export function registerCheck(program: Command): void {
         // the checks load when the command runs, not at every start-up of the CLI
         const [{ checkFeed }, { checkText }] = await Promise.all([import('../audit/check.js'), import('../audit/checkText.js')]);
         const today = o.today ?? new Date().toISOString().slice(0, 10);
-        const progress = makeProgress(o.quiet === true || o.json === true);
+        // the history is opened (and checked to be this tool's) before the feed is read: a bad one fails at once
+        const history = o.history ? await import('../history/index.js') : undefined; // only when asked for
+        const db = history && o.history ? history.openHistory(o.history) : undefined;
+        let report;
         let loaded;
         try {
-          loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress });
-        } finally {
-          progress.done();
-        }
-        const report = checkFeed(loaded.feed, loaded.patterns, { today, thresholds, maxExamples: Math.floor(maxExamples), analysis: loaded.analysis });
-        if (o.history) {
-          const { checkRunRow, openHistory, recordRun } = await import('../history/index.js'); // only when asked for
-          const db = openHistory(o.history);
+          const progress = makeProgress(o.quiet === true || o.json === true);
           try {
-            recordRun(db, checkRunRow(report));
+            loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress });
           } finally {
-            db.close();
+            progress.done();
           }
+          report = checkFeed(loaded.feed, loaded.patterns, { today, thresholds, maxExamples: Math.floor(maxExamples), analysis: loaded.analysis });
+          if (history && db) history.recordRun(db, history.checkRunRow(report));
+        } finally {
+          db?.close();
         }
         const code = checkExitCode(report, o.failOn as FailOn);
         if (o.json) {

@@ -7,7 +7,7 @@ import type { AuditResult } from '../audit/types.js';
 import type { Comparison } from '../audit/compare.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
-import { loadFeed, numberOption, writeFiles } from './feedInput.js';
+import { loadFeed, numberOption } from './feedInput.js';
 
 /**
  * The exit code of a comparison: 1 when some route lost more than tripLossPct percent of its trips a day
@@ -27,6 +27,7 @@ interface CompareCliOptions {
   ridership?: string;
   params?: string;
   audit: boolean;
+  force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -44,6 +45,7 @@ export function registerCompare(program: Command): void {
     .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's Monday-Friday date with the most trips, frequencies expanded)")
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
+    .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
@@ -52,7 +54,14 @@ export function registerCompare(program: Command): void {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }] = await Promise.all([import('../audit/compare.js'), import('../audit/runAudit.js'), import('../audit/compareRender.js')]);
+        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+          import('../audit/compare.js'),
+          import('../audit/runAudit.js'),
+          import('../audit/compareRender.js'),
+          import('../report/writeFolder.js'),
+        ]);
+        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params] };
+        if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
         const progress = makeProgress(o.quiet === true || o.json === true);
         let a, b;
         try {
@@ -71,7 +80,11 @@ export function registerCompare(program: Command): void {
         const code = compareExitCode(c, tripLossPct);
         const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, analysis: { old: a.analysis, new: b.analysis }, ...c, failOnTripLossPct: tripLossPct ?? null, exitCode: code };
         if (o.out) {
-          const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n', 'compare-trips.csv': comparisonTripsCsv(c) });
+          const written = await writeFolder(
+            o.out,
+            [['compare.html', () => comparisonHtml(c)], ['compare.json', JSON.stringify(doc, null, 2) + '\n'], ['compare-trips.csv', () => comparisonTripsCsv(c)]],
+            outOptions,
+          );
           if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));

@@ -1,8 +1,6 @@
 // What the check and compare commands share: reading a feed and building its patterns for a date,
-// parsing numeric options into coded errors, and writing an output folder's files atomically.
+// parsing numeric options into coded errors. (Output folders are written by src/report/writeFolder.ts.)
 
-import { mkdir, rename, writeFile } from 'node:fs/promises';
-import { join } from 'node:path';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
@@ -53,22 +51,4 @@ export function numberOption(name: string, raw: string | undefined, min = 0): nu
     throw new StopspanError('bad-option', `invalid option ${name}: expected a number >= ${min}, got ${raw}`, { value: raw });
   }
   return v;
-}
-
-/** Writes files into dir (created when missing), each through a temporary name and a rename. */
-export async function writeFiles(dir: string, files: Record<string, string>): Promise<string[]> {
-  try {
-    await mkdir(dir, { recursive: true });
-    const written: string[] = [];
-    for (const [name, text] of Object.entries(files)) {
-      const path = join(dir, name);
-      const tmp = `${path}.tmp-${process.pid}`;
-      await writeFile(tmp, text);
-      await rename(tmp, path);
-      written.push(path);
-    }
-    return written;
-  } catch (e) {
-    throw new StopspanError('bad-option', `cannot write the output folder: ${(e as Error).message}`, { file: dir });
-  }
 }

@@ -5,7 +5,7 @@ import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, runAction } from './shared.js';
-import { numberOption, writeFiles } from './feedInput.js';
+import { numberOption } from './feedInput.js';
 
 interface HistoryCliOptions {
   json?: boolean;
@@ -13,6 +13,7 @@ interface HistoryCliOptions {
   command?: string;
   feed?: string;
   limit?: string;
+  force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -27,14 +28,18 @@ export function registerHistory(program: Command): void {
     .option('--command <name>', 'only runs of this command (check, audit)')
     .option('--feed <name>', "only runs of this feed: its publisher (feed_info.txt), or its source when it names none")
     .option('--limit <n>', 'only the newest n runs')
+    .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('-q, --quiet', 'say nothing on stderr')
     .option('--verbose', 'stack traces for internal errors')
     .action((file: string, o: HistoryCliOptions) =>
       runAction(o.verbose === true, async () => {
         const limit = numberOption('--limit', o.limit, 1);
         if (!existsSync(file)) throw new StopspanError('history-db', 'no such history database', { file });
+        const { checkOutFolder, writeFolder } = await import('../report/writeFolder.js');
+        const outOptions = { force: o.force === true, inputs: [file] };
+        if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
         const { historyHtml, historyText, openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
-        const db = openHistory(file);
+        const db = openHistory(file, { readOnly: true }); // reading changes nothing in the file
         let rows;
         try {
           rows = readHistory(db, { command: o.command, feed: o.feed, limit: limit === undefined ? undefined : Math.floor(limit) });
@@ -42,7 +47,7 @@ export function registerHistory(program: Command): void {
           db.close();
         }
         if (o.out) {
-          const written = await writeFiles(o.out, { 'history.html': historyHtml(rows) });
+          const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
           if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));

@@ -6,6 +6,7 @@
 import './engineTuning.js';
 import type * as Commander from 'commander';
 import { requireCjs } from '../common/requireCjs.js';
+import { runInterruptUndo, watchInterruptUndo } from '../common/interrupts.js';
 import { commands } from './commands.js';
 import { EXIT } from './shared.js';
 import { version } from '../version.js';
@@ -16,6 +17,26 @@ const { Command } = requireCjs('commander') as typeof Commander;
 process.stdout.on('error', (e: NodeJS.ErrnoException) => {
   if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
   throw e;
+});
+
+// Ctrl-C (SIGINT) or a kill (SIGTERM) while this run has a temporary folder or a download on disk: undo
+// what it started and exit 128 + the signal's number, as a shell reports a killed command. The handlers are
+// installed only while there is something to undo, so at every other moment (a long computation included)
+// the signal ends the run at once, as Node does by default.
+const SIGNAL_EXIT = { SIGINT: 130, SIGTERM: 143 } as const;
+function onSignal(signal: keyof typeof SIGNAL_EXIT): void {
+  runInterruptUndo();
+  process.stderr.write(`\ninterrupted (${signal}): removed this run's temporary files\n`);
+  process.exit(SIGNAL_EXIT[signal]);
+}
+let handling = false;
+watchInterruptUndo((count) => {
+  if ((count > 0) === handling) return;
+  handling = count > 0;
+  for (const signal of Object.keys(SIGNAL_EXIT) as (keyof typeof SIGNAL_EXIT)[]) {
+    if (handling) process.on(signal, onSignal);
+    else process.off(signal, onSignal);
+  }
 });
 
 const program = new Command();

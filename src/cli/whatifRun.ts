@@ -10,7 +10,7 @@ import type { PatternSet } from '../network/types.js';
 import { whatifHtml } from '../report/whatifHtml.js';
 import { checkUnits } from '../report/units.js';
 import { whatifText } from '../report/whatifText.js';
-import { writeFolder } from '../report/writeFolder.js';
+import { checkOutFolder, writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
@@ -65,6 +65,8 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
     }
     const params = mergeParams(opts.params, paramOverrides(opts));
+    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params] };
+    if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
     const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
     let feed: Feed;
     let patterns: PatternSet;
@@ -87,7 +89,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
       const { whatifStrips } = await import('../report/whatifStrips.js');
       const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
-      written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], { force: Boolean(opts.force) });
+      written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], outOptions);
     }
     process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), units }));
     if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);

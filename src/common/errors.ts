@@ -16,6 +16,7 @@ export type ErrorCode =
   | 'bad-scenario' // a what-if scenario is malformed or names unknown items
   | 'bad-realtime' // a realtime archive cannot be used at all
   | 'output-exists' // the output folder exists and --force was not given
+  | 'bad-output' // the output folder cannot be written there, or is not a previous output this tool may replace
   | 'history-db'; // the history database cannot be opened or written
 
 export interface ErrorContext {

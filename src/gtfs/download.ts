@@ -1,12 +1,15 @@
 // Fetches a feed from an http(s) URL into a private temporary file, bounded in redirects, time and size,
-// and checks that the body starts like a zip archive before anyone opens it. The caller removes the file.
+// and checks that the body starts like a zip archive before anyone opens it. The caller removes the file;
+// an interrupt removes it too (common/interrupts.ts), and a folder left by a run that was killed outright
+// (its pid no longer alive) is removed by the next download.
 
-import { createWriteStream } from 'node:fs';
-import { mkdtemp, rm } from 'node:fs/promises';
+import { createWriteStream, rmSync } from 'node:fs';
+import { mkdtemp, readdir, rm } from 'node:fs/promises';
 import type http from 'node:http';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { StopspanError } from '../common/errors.js';
+import { pidAlive, undoOnInterrupt } from '../common/interrupts.js';
 import type { OnProgress } from '../common/progress.js';
 
 export interface DownloadLimits {
@@ -48,10 +51,13 @@ export async function downloadFeed(
   if (!(timeoutMs > 0)) throw new StopspanError('bad-option', 'invalid option timeoutMs: expected > 0', { value: String(timeoutMs) });
   if (!(maxBytes > 0)) throw new StopspanError('bad-option', 'invalid option maxBytes: expected > 0', { value: String(maxBytes) });
 
-  const dir = await mkdtemp(join(tmpdir(), 'stopspan-dl-'));
+  await sweepStaleDownloads();
+  const dir = await mkdtemp(join(tmpdir(), `${DOWNLOAD_PREFIX}${process.pid}-`));
   const path = join(dir, 'feed.zip');
+  const forget = undoOnInterrupt(() => rmSync(dir, { recursive: true, force: true }));
   const cleanup = async (): Promise<void> => {
     await rm(dir, { recursive: true, force: true });
+    forget();
   };
   const deadline = Date.now() + timeoutMs;
   try {
@@ -83,6 +89,37 @@ export async function downloadFeed(
     await cleanup();
     throw e;
   }
+}
+
+/** Download folders are `stopspan-dl-PID-XXXXXX` in the system's temporary folder. */
+const DOWNLOAD_PREFIX = 'stopspan-dl-';
+const DOWNLOAD_DIR = /^stopspan-dl-(\d+)-[A-Za-z0-9]{6}$/;
+
+/**
+ * Removes download folders of this tool whose run is over (its pid no longer alive): a run killed outright
+ * (SIGKILL, power loss) leaves up to maxBytes behind. Never throws. Returns the folders removed.
+ */
+export async function sweepStaleDownloads(parent = tmpdir()): Promise<string[]> {
+  const removed: string[] = [];
+  let entries;
+  try {
+    entries = await readdir(parent, { withFileTypes: true });
+  } catch {
+    return removed;
+  }
+  for (const entry of entries) {
+    const m = DOWNLOAD_DIR.exec(entry.name);
+    if (!m || !entry.isDirectory() || pidAlive(Number(m[1]))) continue;
+    try {
+      const inside = await readdir(join(parent, entry.name), { withFileTypes: true });
+      if (!inside.every((f) => f.isFile() && f.name === 'feed.zip')) continue; // not what a download leaves
+      await rm(join(parent, entry.name), { recursive: true, force: true });
+      removed.push(join(parent, entry.name));
+    } catch {
+      // gone already, or not ours to touch
+    }
+  }
+  return removed;
 }
 
 function fail(url: string, why: string): never {

@@ -1,5 +1,6 @@
 // Opens (and on first use creates) the SQLite history of nightly runs: a versioned schema applied by an
-// ordered list of migrations, WAL journal and a busy timeout so two jobs can write at once.
+// ordered list of migrations, WAL journal and a busy timeout so two jobs can write at once. A database that
+// is not this tool's is refused before anything in it changes; a reading command opens it read-only.
 
 import Database from 'better-sqlite3';
 import { StopspanError } from '../common/errors.js';
@@ -43,11 +44,22 @@ export const SCHEMA_VERSION = MIGRATIONS.length;
 
 export interface OpenHistoryOptions {
   busyTimeoutMs?: number; // how long a writer waits for another's lock, default 10 000 ms
+  readOnly?: boolean; // only to read: the file must exist and hold a history; nothing in it changes
 }
 
-/** Opens the database at path, creating the file and the schema when needed. Throws history-db on failure. */
+/** The schema marker: SQLite's application_id header field, set in every history this tool creates or opens to write. */
+export const HISTORY_APPLICATION_ID = 0x53545350; // "STSP"
+
+/** The tables a history holds; a database without the marker is taken as this tool's only if it holds all of them. */
+const HISTORY_TABLES = ['schema_version', 'runs', 'run_findings'];
+
+/**
+ * Opens the database at path, creating the file and the schema when needed (read-only with readOnly: then
+ * the file must exist). Throws history-db on failure, and for a database that is not a history of this tool
+ * (another program's tables, without the schema marker), before changing anything in it.
+ */
 export function openHistory(path: string, options: OpenHistoryOptions = {}): HistoryDb {
-  const { busyTimeoutMs = 10_000 } = options;
+  const { busyTimeoutMs = 10_000, readOnly = false } = options;
   if (typeof path !== 'string' || path === '') {
     throw new StopspanError('bad-option', `invalid option history: expected a file path, got ${JSON.stringify(path)}`, { value: String(path) });
   }
@@ -58,12 +70,18 @@ export function openHistory(path: string, options: OpenHistoryOptions = {}): His
   }
   let db: HistoryDb;
   try {
-    db = new Database(path);
+    db = new Database(path, readOnly ? { readonly: true, fileMustExist: true } : {});
   } catch (e) {
     throw new StopspanError('history-db', `cannot open the history database: ${(e as Error).message}`, { file: path });
   }
   try {
     db.pragma(`busy_timeout = ${busyTimeoutMs}`);
+    const empty = whileBusy(() => checkIsHistory(db, path), busyTimeoutMs);
+    if (readOnly) {
+      if (empty) throw new StopspanError('history-db', 'the history database is empty: no run has been recorded in it', { file: path });
+      checkVersion(db, path, true);
+      return db;
+    }
     whileBusy(() => db.pragma('journal_mode = WAL'), busyTimeoutMs);
     db.pragma('foreign_keys = ON');
     whileBusy(() => migrate(db, path), busyTimeoutMs);
@@ -93,21 +111,50 @@ function whileBusy<T>(f: () => T, timeoutMs: number): T {
   }
 }
 
+/**
+ * Throws history-db unless the database is empty or a history of this tool: marked with
+ * HISTORY_APPLICATION_ID, or (histories written before the marker) holding every history table. Returns
+ * whether it is empty. Reads only.
+ */
+function checkIsHistory(db: HistoryDb, path: string): boolean {
+  const appId = Number(db.pragma('application_id', { simple: true }));
+  const names = (db.prepare("SELECT name FROM sqlite_master WHERE name NOT LIKE 'sqlite_%'").all() as { name: string }[]).map((r) => r.name);
+  if (appId === HISTORY_APPLICATION_ID) return false;
+  if (appId === 0 && names.length === 0) return true;
+  if (appId === 0 && HISTORY_TABLES.every((t) => names.includes(t))) return false;
+  const what = appId !== 0 ? `another program's (application id ${appId})` : `another program's (it holds ${names.slice(0, 3).join(', ')}${names.length > 3 ? ', …' : ''})`;
+  throw new StopspanError('history-db', `not a stopspan history database: it is ${what}; give a new file or one stopspan wrote`, { file: path });
+}
+
+/** Throws history-db when the schema is newer than this stopspan's, or (to read only) older: that needs a write to migrate. */
+function checkVersion(db: HistoryDb, path: string, readOnly: boolean): number {
+  const row = db.prepare('SELECT version FROM schema_version').get() as { version: number } | undefined;
+  const current = row?.version ?? 0;
+  if (current > SCHEMA_VERSION) {
+    throw new StopspanError(
+      'history-db',
+      `the history database has schema version ${current}, newer than this stopspan knows (${SCHEMA_VERSION}); upgrade stopspan`,
+      { file: path, value: String(current) },
+    );
+  }
+  if (readOnly && current < SCHEMA_VERSION) {
+    throw new StopspanError('history-db', `the history database has schema version ${current}, older than this stopspan's (${SCHEMA_VERSION}); record a run in it to upgrade it`, {
+      file: path,
+      value: String(current),
+    });
+  }
+  return current;
+}
+
 function migrate(db: HistoryDb, path: string): void {
   // IMMEDIATE: two processes creating the same new file take turns instead of both migrating
   db.transaction(() => {
     db.exec('CREATE TABLE IF NOT EXISTS schema_version (version INTEGER NOT NULL)');
     const row = db.prepare('SELECT version FROM schema_version').get() as { version: number } | undefined;
-    const current = row?.version ?? 0;
-    if (current > SCHEMA_VERSION) {
-      throw new StopspanError(
-        'history-db',
-        `the history database has schema version ${current}, newer than this stopspan knows (${SCHEMA_VERSION}); upgrade stopspan`,
-        { file: path, value: String(current) },
-      );
-    }
+    const current = checkVersion(db, path, false);
     for (let v = current; v < SCHEMA_VERSION; v++) db.exec(MIGRATIONS[v]);
     if (!row) db.prepare('INSERT INTO schema_version (version) VALUES (?)').run(SCHEMA_VERSION);
     else if (current !== SCHEMA_VERSION) db.prepare('UPDATE schema_version SET version = ?').run(SCHEMA_VERSION);
+    if (Number(db.pragma('application_id', { simple: true })) !== HISTORY_APPLICATION_ID) db.pragma(`application_id = ${HISTORY_APPLICATION_ID}`);
   }).immediate();
 }

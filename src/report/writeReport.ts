@@ -17,6 +17,8 @@ export interface WriteReportOptions {
   formats?: ReportFormat[];
   units?: Units;
   force?: boolean;
+  /** What the run read (feed, ridership, ...): a folder holding one is never replaced. */
+  inputs?: (string | undefined)[];
 }
 
 /** Which files each format writes, and how to render them. */
@@ -36,11 +38,11 @@ const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => str
 
 /**
  * Renders the chosen formats and writes them into outDir. Returns the paths written (inside outDir).
- * Throws StopspanError 'output-exists' when outDir exists and force is not set; 'bad-option' for an
- * unknown format or units.
+ * Throws StopspanError 'output-exists' when outDir exists and force is not set, 'bad-output' when it may
+ * not be replaced or cannot be written (see writeFolder); 'bad-option' for an unknown format or units.
  */
 export async function writeReport(result: AuditResult, outDir: string, options: WriteReportOptions = {}): Promise<string[]> {
-  const { formats = [...REPORT_FORMATS], units = 'metric', force = false } = options;
+  const { formats = [...REPORT_FORMATS], units = 'metric', force = false, inputs } = options;
   checkUnits(units);
   if (!Array.isArray(formats) || formats.length === 0) {
     throw new StopspanError('bad-option', `invalid option formats: expected one or more of ${REPORT_FORMATS.join(', ')}, got none`, { value: String(formats) });
@@ -52,5 +54,5 @@ export async function writeReport(result: AuditResult, outDir: string, options: 
   }
   const wanted = REPORT_FORMATS.filter((f) => formats.includes(f)); // fixed order, no duplicates
   const files: [string, () => string][] = wanted.flatMap((f) => FILES[f].map(([name, render]) => [name, () => render(result, units)] as [string, () => string]));
-  return writeFolder(outDir, files, { force });
+  return writeFolder(outDir, files, { force, inputs });
 }

@@ -7,6 +7,7 @@ import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import Database from 'better-sqlite3';
 import { ROOT, runCli } from '../helpers/cli.js';
+import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 
 const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
 const RIDERSHIP = join(ROOT, 'fixtures/demo/ridership.csv');
@@ -30,7 +31,7 @@ describe('stopspan audit', () => {
     const out = join(dir, 'full');
     const r = await runCli(['audit', DEMO, '--ridership', RIDERSHIP, '--out', out, '--quiet']);
     expect(r.code, r.stderr).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(['candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
     expect(r.stdout).toMatch(/patterns, \d+ stops, median gap \d+ m/);
     expect(r.stderr).toBe(''); // not a TTY: no progress drawn
     const summary = JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
@@ -42,7 +43,7 @@ describe('stopspan audit', () => {
     expect(stops.length).toBe(total);
   });
 
-  it('refuses to replace an existing folder without --force, and leaves it untouched', async () => {
+  it('refuses to replace an existing folder without --force, or with a file of someone else in it, and leaves it untouched', async () => {
     const out = join(dir, 'exists');
     const first = await runCli(['audit', DEMO, '--out', out, '--format', 'json', '-q']);
     expect(first.code, first.stderr).toBe(0);
@@ -51,9 +52,14 @@ describe('stopspan audit', () => {
     expect(second.code).toBe(2);
     expect(oneErrorLine(second.stderr)).toMatch(/--force|exists/);
     expect(readFileSync(join(out, 'mine.txt'), 'utf8')).toBe('keep me');
+    const refused = await runCli(['audit', DEMO, '--out', out, '--format', 'csv', '--force', '-q']);
+    expect(refused.code).toBe(2);
+    expect(oneErrorLine(refused.stderr)).toMatch(/it holds mine\.txt, which stopspan did not write there/);
+    expect(readFileSync(join(out, 'mine.txt'), 'utf8')).toBe('keep me');
+    rmSync(join(out, 'mine.txt'));
     const forced = await runCli(['audit', DEMO, '--out', out, '--format', 'csv', '--force', '-q']);
     expect(forced.code, forced.stderr).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(['candidates.csv', 'patterns.csv', 'stops.csv']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'patterns.csv', 'stops.csv']);
   });
 
   it('rejects bad options with one line naming the option and exit 2, writing nothing', async () => {

@@ -8,6 +8,7 @@ import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { ROOT, runCli } from '../helpers/cli.js';
+import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import geodesicPkg from 'geographiclib-geodesic';
 import { CAUTIONS } from '../../src/audit/cautions.js';
@@ -139,7 +140,7 @@ describe('stopspan whatif on the demo feed', () => {
     const out = join(dir, 'market');
     const r = await cli([DEMO, '--scenario', join(FIX, 'market-street.json'), '--out', out, '--quiet']);
     expect(r.code).toBe(0);
-    expect(readdirSync(out).sort()).toEqual(['index.html', 'scenario.json']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'index.html', 'scenario.json']);
     const html = readFileSync(join(out, 'index.html'), 'utf8');
     expect(html).toMatch(/^<!doctype html>/);
     expect(html).toContain('Market St / Gorse Hill Rd (MKT-05-a): removed');

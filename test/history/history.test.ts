@@ -1,12 +1,13 @@
 // The run history: schema on first use, transactional writes, reading back, rendering, and two processes
 // writing at once without corrupting the database.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { execFileSync, spawn } from 'node:child_process';
 import Database from 'better-sqlite3';
 import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, auditRunRow, lineChartSvg, seriesOf, varies, yRange, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
+import { HISTORY_APPLICATION_ID } from '../../src/history/openHistory.js';
 import { makeSampleResult } from '../report/sampleResult.js';
 import { checkFeed } from '../../src/audit/check.js';
 import { buildFeed, cleanSpec } from '../audit/buildFeed.js';
@@ -48,6 +49,42 @@ describe('openHistory', () => {
     raw.prepare('UPDATE schema_version SET version = 99').run();
     raw.close();
     expect(() => openHistory(path)).toThrow(/schema version 99/);
+  });
+
+  it("refuses another program's database, for writing or reading, before changing anything in it", () => {
+    const path = join(dir, 'depots.sqlite');
+    const other = new Database(path);
+    other.exec("CREATE TABLE depots (name TEXT); INSERT INTO depots VALUES ('Vellmoor North')");
+    other.close();
+    const bytes = readFileSync(path);
+    for (const readOnly of [false, true]) {
+      expect(() => openHistory(path, { readOnly })).toThrow(expect.objectContaining({ code: 'history-db', message: expect.stringMatching(/not a stopspan history database: it is another program's \(it holds depots\)/) }));
+    }
+    expect(readFileSync(path).equals(bytes)).toBe(true);
+    expect(existsSync(path + '-wal')).toBe(false);
+    const marked = new Database(join(dir, 'marked.sqlite'));
+    marked.pragma('application_id = 1234');
+    marked.close();
+    expect(() => openHistory(join(dir, 'marked.sqlite'))).toThrow(/another program's \(application id 1234\)/);
+  });
+
+  it('marks what it creates, takes an unmarked history it wrote before, and opens one read-only to read', () => {
+    const path = join(dir, 'marker.sqlite');
+    openHistory(path).close();
+    const raw = new Database(path);
+    expect(raw.pragma('application_id', { simple: true })).toBe(HISTORY_APPLICATION_ID);
+    raw.pragma('application_id = 0'); // as histories written before the marker are
+    raw.close();
+    const ro = openHistory(path, { readOnly: true });
+    expect(ro.readonly).toBe(true);
+    expect(readHistory(ro)).toEqual([]);
+    ro.close();
+    openHistory(path).close(); // opening to write marks it
+    const again = new Database(path, { readonly: true });
+    expect(again.pragma('application_id', { simple: true })).toBe(HISTORY_APPLICATION_ID);
+    again.close();
+    expect(() => openHistory(join(dir, 'absent.sqlite'), { readOnly: true })).toThrow(expect.objectContaining({ code: 'history-db' }));
+    expect(existsSync(join(dir, 'absent.sqlite'))).toBe(false);
   });
 
   it('names the file when it cannot be opened', () => {

@@ -12,7 +12,7 @@ import { CAUTIONS as REPORT_CAUTIONS } from '../../src/report/cautions.js';
 import { whatifHtml } from '../../src/report/whatifHtml.js';
 import { whatifStrips } from '../../src/report/whatifStrips.js';
 import { whatifText } from '../../src/report/whatifText.js';
-import { writeFolder } from '../../src/report/writeFolder.js';
+import { REPORT_MARKER, writeFolder } from '../../src/report/writeFolder.js';
 import { handmadeNetwork } from '../audit/handmade.js';
 import { scanHtml } from '../security/htmlScan.js';
 
@@ -131,11 +131,11 @@ describe('writeFolder', () => {
     dirs.push(root);
     const out = join(root, 'scenario');
     await writeFolder(out, [['index.html', html], ['scenario.json', '{}\n']]);
-    expect(readdirSync(out).sort()).toEqual(['index.html', 'scenario.json']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'index.html', 'scenario.json']);
     await expect(writeFolder(out, [['index.html', 'x']])).rejects.toMatchObject({ code: 'output-exists' });
     expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe(html);
     await writeFolder(out, [['index.html', 'second']], { force: true });
-    expect(readdirSync(out)).toEqual(['index.html']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'index.html']);
     expect(readdirSync(root)).toEqual(['scenario']); // no temporary folder left behind
     await expect(writeFolder(join(root, 'x'), [['../escape.html', 'x']])).rejects.toMatchObject({ code: 'bad-option' });
     expect(existsSync(join(root, 'escape.html'))).toBe(false);

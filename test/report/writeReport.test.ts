@@ -12,6 +12,7 @@ import { candidatesCsv, patternsCsv, stopsCsv } from '../../src/report/csv.js';
 import { indexHtml } from '../../src/report/html/indexHtml.js';
 import { summaryJson } from '../../src/report/summaryJson.js';
 import { writeReport } from '../../src/report/writeReport.js';
+import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 import { makeSampleResult } from './sampleResult.js';
 
 const sample = makeSampleResult();
@@ -40,7 +41,7 @@ describe('writeReport', () => {
     const paths = await writeReport(sample, out);
     const names = ['index.html', 'patterns.csv', 'stops.csv', 'candidates.csv', 'patterns.geojson', 'stops.geojson', 'summary.json'];
     expect(paths).toEqual(names.map((n) => join(out, n)));
-    expect((await readdir(out)).sort()).toEqual([...names].sort());
+    expect((await readdir(out)).sort()).toEqual([...names, REPORT_MARKER].sort());
     expect(await readFile(join(out, 'stops.csv'), 'utf8')).toBe(stopsCsv(sample));
     expect(await readFile(join(out, 'patterns.csv'), 'utf8')).toBe(patternsCsv(sample));
     expect(await readFile(join(out, 'candidates.csv'), 'utf8')).toBe(candidatesCsv(sample));
@@ -53,28 +54,41 @@ describe('writeReport', () => {
   it('writes only the chosen formats, with imperial columns when asked', async () => {
     const out = join(work, 'csv-only');
     await writeReport(sample, out, { formats: ['csv'], units: 'imperial' });
-    expect((await readdir(out)).sort()).toEqual(['candidates.csv', 'patterns.csv', 'stops.csv']);
+    expect((await readdir(out)).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'patterns.csv', 'stops.csv'].sort());
     expect((await readFile(join(out, 'stops.csv'), 'utf8')).split('\r\n')[0]).toMatch(/,gap_after_ft$/);
   });
 
-  it('refuses an existing folder without force and leaves it untouched', async () => {
+  it('refuses an existing report without force and leaves it untouched', async () => {
+    const out = join(work, 'existing');
+    await writeReport(sample, out, { formats: ['json'] });
+    const before = await readFile(join(out, 'summary.json'), 'utf8');
+    const e = await caught(writeReport(sample, out, { formats: ['csv'] }));
+    expect(e.code).toBe('output-exists');
+    expect(e.message).toMatch(/already exists; choose another folder or pass --force/);
+    expect((await readdir(out)).sort()).toEqual([REPORT_MARKER, 'summary.json']);
+    expect(await readFile(join(out, 'summary.json'), 'utf8')).toBe(before);
+    expect(await readdir(work)).toEqual(['existing']);
+  });
+
+  it('refuses a folder that is not a previous report, even with force, and leaves it untouched', async () => {
     const out = join(work, 'existing');
     await mkdir(out);
     await writeFile(join(out, 'notes.txt'), 'keep me');
-    const e = await caught(writeReport(sample, out));
-    expect(e.code).toBe('output-exists');
-    expect(e.message).toMatch(/already exists; choose another folder or pass --force/);
+    for (const force of [false, true]) {
+      const e = await caught(writeReport(sample, out, { force }));
+      expect(e.code).toBe('bad-output');
+      expect(e.oneLine()).toMatch(/existing: cannot use this as the output folder: it exists and is not a stopspan output folder/);
+    }
     expect(await readdir(out)).toEqual(['notes.txt']);
     expect(await readFile(join(out, 'notes.txt'), 'utf8')).toBe('keep me');
     expect(await readdir(work)).toEqual(['existing']);
   });
 
-  it('replaces an existing folder with force', async () => {
+  it('replaces a previous report with force', async () => {
     const out = join(work, 'existing');
-    await mkdir(out);
-    await writeFile(join(out, 'notes.txt'), 'old report');
+    await writeReport(sample, out, { formats: ['csv'] });
     await writeReport(sample, out, { force: true, formats: ['json'] });
-    expect(await readdir(out)).toEqual(['summary.json']);
+    expect((await readdir(out)).sort()).toEqual([REPORT_MARKER, 'summary.json']);
     expect(await readdir(work)).toEqual(['existing']);
   });
 

@@ -20,10 +20,11 @@ import { ROOT } from '../fuzz/demoTables.js';
 import { AGENCY_NAME, AGENCY_URL, H, HEADSIGNS, HOSTILE, MINIMAL, ROUTE_IDS, ROUTE_SHORT, SHAPE_IDS, STOP_IDS, STOP_NAMES, writeHostileFeed } from './hostileFeed.js';
 import { jsonStrings, scanHtml, type HtmlScan } from './htmlScan.js';
 import { CLI } from '../helpers/cli.js';
+import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 // the output contract (design notes, section 5)
-const REPORT_FILES = ['candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json'];
+const REPORT_FILES = [REPORT_MARKER, 'candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json'];
 // the CSV text columns (design notes, section 5); every other column is numeric
 const TEXT_COLUMNS: Record<string, string[]> = {
   'stops.csv': ['pattern_id', 'route_id', 'stop_id', 'stop_name', 'verdict', 'demand_source'],
