@@ -399,7 +399,8 @@ async function readArchive(
       const p = folder.interner.profiles[id];
       if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
     }
-    if (folder.repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, folder.repeated);
+    const repeated = folder.repeated + reader.repeated;
+    if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
     if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);
     if (noRows > 0) warnings.add('trip-without-stop-times', 'kept trips with no stop_times rows were dropped', F, noRows);
   }

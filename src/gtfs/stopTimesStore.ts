@@ -5,8 +5,9 @@
 // demo city enlarged sixteen times holds the profiles of the original. A trip's TripStopTimes is rebuilt
 // from its profile when asked for.
 
+import { StopspanError } from '../common/errors.js';
 import { groupAndSort, RowColumns } from './columns.js';
-import type { StopTimesSink } from './stopTimesRows.js';
+import { MAX_STOPS_PER_TRIP, STOP_TIMES_FILE, type StopTimesSink } from './stopTimesRows.js';
 import type { TripStopTimes } from './types.js';
 
 /** One distinct run of stop_times rows; times are seconds after the trip's start time, -1 where blank. */
@@ -295,6 +296,10 @@ export class TripFolder implements StopTimesSink {
     const s = this.scratch;
     if (s.used === 0) return;
     this.repeated += s.sortAndDedupe();
+    // the reader caps each run of a trip's rows; a trip gathered from several runs is held to the same cap
+    if (s.used > MAX_STOPS_PER_TRIP) {
+      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, { file: STOP_TIMES_FILE, column: 'trip_id' });
+    }
     const { profileId, baseS } = this.interner.intern(s, 0, s.used);
     this.profileOfTrip[t] = profileId;
     this.baseOfTrip[t] = baseS;
