@@ -7,6 +7,14 @@ import type { OnProgress, ProgressEvent } from '../common/progress.js';
 
 export const EXIT = { clean: 0, found: 1, badInput: 2, internal: 3 } as const;
 
+/**
+ * Whether an exception is the engine refusing an allocation (a string, array or buffer past what it can
+ * hold): input beyond every cap the reader checks, so it is reported as too large, not as a bug.
+ */
+export function isAllocationFailure(e: unknown): boolean {
+  return e instanceof RangeError && /^(Invalid (string|array|typed array) length|Array buffer allocation failed)/.test(e.message);
+}
+
 /** Runs a command action; known failures become one line on stderr and exit 2, anything else exit 3. */
 export async function runAction(verbose: boolean, action: () => Promise<number>): Promise<void> {
   let code: number;
@@ -15,6 +23,9 @@ export async function runAction(verbose: boolean, action: () => Promise<number>)
   } catch (e) {
     if (isStopspanError(e)) {
       process.stderr.write(`error: ${e.oneLine()}\n`);
+      code = EXIT.badInput;
+    } else if (isAllocationFailure(e)) {
+      process.stderr.write(`error: the input is too large to hold in memory (feed-too-large: ${(e as Error).message})\n`);
       code = EXIT.badInput;
     } else {
       const err = e as Error;
