@@ -6,7 +6,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { readCsv } from '../../src/gtfs/csv.js';
-import { StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
+import { PROFILE_CAPS, StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
 import { MAX_STOPS_PER_TRIP, STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesColumns } from '../../src/gtfs/stopTimesRows.js';
 import { rejected } from '../helpers/errors.js';
 import type { TripStopTimes } from '../../src/gtfs/types.js';
@@ -176,5 +176,47 @@ describe('the stop_times row reader on floods of rows', () => {
     // one row fewer is read
     const ok = await readThrough([text.slice(0, text.lastIndexOf('LONG'))], ['LONG']);
     expect(ok.handed).toBe(MAX_STOPS_PER_TRIP);
+  });
+});
+
+describe('the caps on folded stop_times', () => {
+  const refused = (f: () => void) => {
+    try {
+      f();
+    } catch (e) {
+      return e as { code?: string; message?: string };
+    }
+    return {};
+  };
+
+  it(`refuses more than ${PROFILE_CAPS.stopLists} distinct stop lists, and holds that many`, () => {
+    const n = PROFILE_CAPS.stopLists;
+    const fill = (folder: TripFolder, lists: number) => {
+      for (let t = 0; t < lists; t++) {
+        folder.push(t, t, 1, 3600, 3600, NaN, 1, 0);
+        folder.push(t, t + 1, 2, 3660, 3660, NaN, 1, 0);
+      }
+      folder.finish();
+    };
+    const ok = new TripFolder(n);
+    fill(ok, n);
+    expect(ok.interner.profiles).toHaveLength(n);
+    const e = refused(() => fill(new TripFolder(n + 1), n + 1));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.message).toContain('stop lists');
+  });
+
+  it(`refuses more than ${PROFILE_CAPS.profiles} distinct runs of rows`, () => {
+    // one stop list, every trip with its own running time: a new profile each
+    const folder = new TripFolder(PROFILE_CAPS.profiles + 1);
+    const e = refused(() => {
+      for (let t = 0; t <= PROFILE_CAPS.profiles; t++) {
+        folder.push(t, 0, 1, 0, 0, NaN, 1, 0);
+        folder.push(t, 1, 2, 60 + t, 60 + t, NaN, 1, 0);
+      }
+      folder.finish();
+    });
+    expect(e.code).toBe('feed-too-large');
+    expect(folder.interner.profiles).toHaveLength(PROFILE_CAPS.profiles);
   });
 });
