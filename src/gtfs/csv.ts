@@ -451,7 +451,7 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
 }
 
 /** Turns a table's counts into warnings: padded values, stray quotes, ragged rows, invalid UTF-8. */
-function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
+export function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
   const replacedAt = stats.replacedAt;
   if (stats.paddedValues > 0) {
     const msg = 'values padded with spaces were trimmed';
