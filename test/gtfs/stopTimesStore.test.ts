@@ -125,7 +125,8 @@ async function readThrough(pieces: Iterable<string>, tripIds: string[]): Promise
       folder.push(t, stop, seq, arr, dep, dist, tp, ns);
     },
   };
-  const reader = new StopTimesRowReader({ tripIdx: new Map(tripIds.map((t, k) => [t, k])), stopIndex: new Map([['S1', 0], ['S2', 1]]), station: new Uint8Array(2) }, sink);
+  const stopIndex = new Map(Array.from({ length: 9 }, (_, k) => [`S${k + 1}`, k] as [string, number]));
+  const reader = new StopTimesRowReader({ tripIdx: new Map(tripIds.map((t, k) => [t, k])), stopIndex, station: new Uint8Array(9) }, sink);
   let cols = {} as StopTimesColumns;
   await readCsv(pieces, {
     file: 'stop_times.txt',
@@ -155,6 +156,27 @@ describe('the stop_times row reader on floods of rows', () => {
     const p = folder.interner.profiles[folder.profileOfTrip[0]];
     expect(Array.from(p.stopIdx)).toEqual([0, 1]);
     expect(Array.from(p.depRel)).toEqual([0, 300]);
+  });
+
+  it('folds random tables with floods of repeated rows as the rows without the repeats (seeded)', async () => {
+    const hms = (x: number) => `${String(Math.floor(x / 3600)).padStart(2, '0')}:${String(Math.floor(x / 60) % 60).padStart(2, '0')}:${String(x % 60).padStart(2, '0')}`;
+    const floodRow = fc.record({ t: fc.nat(3), stop: fc.nat(8), seq: fc.integer({ min: 0, max: 6 }), arr: fc.integer({ min: 0, max: 90_000 }), times: fc.oneof(fc.constant(1), fc.integer({ min: 2, max: 400 })) });
+    await fc.assert(
+      fc.asyncProperty(fc.array(floodRow, { maxLength: 30 }), fc.boolean(), async (raw, grouped) => {
+        const runs = grouped ? [...raw].sort((a, b) => a.t - b.t) : raw;
+        const rows: Row[] = runs.flatMap((r) => Array.from({ length: r.times }, () => ({ t: r.t, stop: r.stop, seq: r.seq, arr: r.arr, dep: r.arr, dist: NaN, tp: 1, ns: 0 })));
+        const text = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n' + rows.map((r) => `T${r.t},${hms(r.arr)},${hms(r.arr)},S${r.stop + 1},${r.seq}\n`).join('');
+        const ids = ['T0', 'T1', 'T2', 'T3'];
+        const { folder, reader, handed } = await readThrough([text], ids);
+        const want = reference(rows, 4);
+        expect(reader.repeated + folder.repeated).toBe(want.dropped);
+        expect(handed).toBeLessThanOrEqual(runs.length); // a flood reaches the folder as one row
+        const store = new StopTimesStore(ids, new Map(ids.map((id, k) => [id, k])), folder.profileOfTrip, folder.baseOfTrip, folder.interner.profiles);
+        expect([...store.keys()].sort()).toEqual([...want.byTrip.keys()].map((k) => `T${k.slice(1)}`).sort());
+        for (const [id, mine] of want.byTrip) expect(plain(store.get(id)!)).toEqual(mine.map(({ t: _t, ...r }) => r));
+      }),
+      { numRuns: 200, seed: 20261203 },
+    );
   });
 
   it('keeps the first row of a repeated stop_sequence whether repeats are adjacent or not, as sorting did', async () => {
