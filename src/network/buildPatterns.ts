@@ -319,7 +319,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
 function tooManyPatterns(date: string, narrowed: boolean): StopspanError {
   return new StopspanError(
     'feed-too-large',
-    `the trips running on ${date} form more than ${MAX_PATTERNS} route patterns or ${MAX_PATTERN_STOPS} pattern stops, the caps of one run${narrowed ? '' : ' (choose some routes with --routes)'}`,
+    `the trips running on ${date} form more than ${MAX_PATTERNS} route patterns or ${MAX_PATTERN_STOPS} pattern stops, the caps of one run${narrowed ? '' : ' (audit takes part of a feed with --routes)'}`,
     { value: date },
   );
 }
