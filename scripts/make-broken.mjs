@@ -45,13 +45,17 @@ function minimalFeed() {
 // ---------------------------------------------------------------------------------------------------
 // Writers
 
-/** A zip of the given entries (name -> string or Buffer), in the given order, with fixed timestamps. */
-function zipBuffer(entries) {
+/**
+ * A zip of the given entries (name -> string or Buffer, or a list of [name, body] pairs, which may repeat
+ * a name), in the given order, with fixed timestamps; the entries named in `stored` are not compressed.
+ */
+function zipBuffer(entries, stored = new Set()) {
   return new Promise((res, rej) => {
     const zip = new yazl.ZipFile();
-    for (const [name, body] of Object.entries(entries)) {
+    for (const [name, body] of Array.isArray(entries) ? entries : Object.entries(entries)) {
       const buf = Buffer.isBuffer(body) ? body : Buffer.from(body, 'utf8');
-      zip.addBuffer(buf, name, { mtime: ZIP_MTIME, mode: 0o100644, compress: true, compressionLevel: 9 });
+      const deflate = !stored.has(name);
+      zip.addBuffer(buf, name, { mtime: ZIP_MTIME, mode: 0o100644, compress: deflate, compressionLevel: deflate ? 9 : 0 });
     }
     zip.end();
     const chunks = [];
@@ -95,16 +99,26 @@ function declareSize(buf, name, size) {
  */
 function zipBombBuffer(chunks) {
   const zeros = Buffer.alloc(16 * 1024 * 1024);
-  const block = zlib.deflateRawSync(zeros, { level: 9, finishFlush: zlib.constants.Z_FULL_FLUSH });
-  const final = zlib.deflateRawSync(Buffer.alloc(0));
   let crc = 0;
   for (let k = 0; k < chunks; k++) crc = zlib.crc32(zeros, crc);
-  const bomb = { name: 'stop_times.txt', crc, size: zeros.length * chunks, data: Buffer.concat([...Array(chunks).fill(block), final]) };
+  return craftedZip({ name: 'stop_times.txt', head: Buffer.alloc(0), body: zeros, times: chunks, crc, size: zeros.length * chunks });
+}
+
+/**
+ * The minimal feed without stop_times.txt, plus a hand-made stop_times.txt entry: `head`, then `body`
+ * repeated `times` times, each deflated once as a fully flushed block, declaring `size` and `crc` in its
+ * headers (which may lie: that is the point of some cases).
+ */
+function craftedZip({ name, head, body, times, crc, size }) {
+  const flushed = (b) => zlib.deflateRawSync(b, { level: 9, finishFlush: zlib.constants.Z_FULL_FLUSH });
+  const block = flushed(body);
+  const final = zlib.deflateRawSync(Buffer.alloc(0));
+  const bomb = { name, crc, size, data: Buffer.concat([flushed(head), ...Array(times).fill(block), final]) };
   const feed = minimalFeed();
-  delete feed['stop_times.txt'];
-  const entries = Object.entries(feed).map(([name, text]) => {
+  delete feed[name];
+  const entries = Object.entries(feed).map(([n, text]) => {
     const raw = Buffer.from(text, 'utf8');
-    return { name, crc: zlib.crc32(raw), size: raw.length, data: zlib.deflateRawSync(raw) };
+    return { name: n, crc: zlib.crc32(raw), size: raw.length, data: zlib.deflateRawSync(raw) };
   });
   entries.push(bomb);
   const parts = [];
@@ -141,6 +155,13 @@ function zipBombBuffer(chunks) {
   eocd.writeUInt32LE(cdBuf.length, 12);
   eocd.writeUInt32LE(offset, 16);
   return Buffer.concat([...parts, cdBuf, eocd]);
+}
+
+/** Writes a feed as a folder: the minimal feed's tables, with the given ones replaced. */
+function writeFolder(dir, tables) {
+  rmSync(dir, { recursive: true, force: true });
+  mkdirSync(dir, { recursive: true });
+  for (const [name, text] of Object.entries({ ...minimalFeed(), ...tables })) writeFileSync(join(dir, name), text);
 }
 
 // ---------------------------------------------------------------------------------------------------
@@ -187,6 +208,15 @@ async function committedCases() {
     add({ name: 'parent-path-entry', path: 'parent-path-entry.zip', bytes: renameInZip(zip, 'xx/stops.txt', '../stops.txt'), exit: 2, words: ['stops.txt'], why: 'stops.txt is stored as ../stops.txt: refuse the entry (never write it anywhere); without it the feed lacks stops' });
     const zip2 = await zipBuffer(without(feed, 'trips.txt', { _trips_txt: feed['trips.txt'] }));
     add({ name: 'absolute-path-entry', path: 'absolute-path-entry.zip', bytes: renameInZip(zip2, '_trips_txt', '/trips.txt'), exit: 2, words: ['trips.txt'], why: 'trips.txt is stored as /trips.txt: refuse the absolute path; without it the feed lacks trips' });
+  }
+  {
+    // stop_times.txt stored (not deflated), so one byte can be changed without breaking the deflate stream
+    const bytes = await zipBuffer(base, new Set(['stop_times.txt']));
+    const at = bytes.indexOf('M1-1,07:01:00') + 'M1-1,07:01:0'.length;
+    bytes[at] = '9'.charCodeAt(0); // 07:01:00 -> 07:01:09: still a time, but not the one written
+    add({ name: 'crc-mismatch', path: 'crc-mismatch.zip', bytes, exit: 2, words: ['stop_times.txt', 'CRC-32'], why: 'one digit of a time in stop_times.txt changed after zipping: the CRC-32 in the headers no longer matches; refuse instead of reading a wrong time' });
+    const twice = await zipBuffer([...Object.entries(base), ['stops.txt', 'stop_id,stop_name,stop_lat,stop_lon\nS1,Elsewhere,45.1,10.1\n']]);
+    add({ name: 'entry-twice', path: 'entry-twice.zip', bytes: twice, exit: 2, words: ['stops.txt', 'two entries'], why: 'the archive holds two entries named stops.txt: which one is meant is unknowable (zip readers differ), so refuse naming it' });
   }
   {
     const nested = Object.fromEntries(Object.entries(base).map(([k, v]) => [`vellmoor-gtfs/${k}`, v]));
@@ -289,7 +319,91 @@ export async function makeLargeCases(outDir) {
     writeFileSync(join(outDir, 'zip-bomb.zip'), zipBombBuffer(238));
     cases.push({ name: 'zip-bomb', path: 'zip-bomb.zip', exit: 2, words: ['stop_times.txt'], why: 'stop_times.txt inflates to 4.0 GB of zeros (238 x 16 MiB) from about 4 MB: refuse by size or ratio', large: true });
   }
+  cases.push(...(await floodCases(outDir)));
   writeFileSync(join(outDir, 'cases-large.json'), JSON.stringify(cases, null, 2) + '\n');
+  return cases;
+}
+
+/**
+ * Floods of rows, patterns, entries and bytes, each a few MB on disk or written as a folder at test time,
+ * and each with the time (s) and peak memory (MB) its run must stay within. Folders where a zip would be
+ * refused by the compression-ratio cap before the case is reached.
+ */
+async function floodCases(outDir) {
+  const cases = [];
+  const base = minimalFeed();
+  const stHead = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n';
+  const bounds = { maxSeconds: 30, maxMB: 1000 };
+  {
+    // one row of trip M1-1 repeated four million times, inside the trip's own run
+    const lines = base['stop_times.txt'].split('\n');
+    const flood = Buffer.alloc(lines[1].length * 4_000_000 + 4_000_000, `${lines[1]}\n`);
+    writeFolder(join(outDir, 'row-flood'), { 'stop_times.txt': Buffer.concat([Buffer.from(lines.slice(0, 2).join('\n') + '\n'), flood, Buffer.from(lines.slice(2).join('\n'))]) });
+    cases.push({ name: 'row-flood', path: 'row-flood', exit: 0, words: [], warning: true, large: true, ...bounds, maxMB: 250, why: 'a row of stop_times.txt repeated 4 million times in its trip: drop the repeats as they come and count them' });
+  }
+  {
+    // stop_times.txt declares 1 000 bytes and inflates to 1.8 GB of valid rows
+    const row = 'M1-1,07:00:00,07:00:00,S1,1\n';
+    const body = Buffer.from(row.repeat(Math.floor((16 << 20) / row.length)));
+    writeFileSync(join(outDir, 'small-declared.zip'), craftedZip({ name: 'stop_times.txt', head: Buffer.from(stHead), body, times: 110, crc: 0, size: 1000 }));
+    cases.push({ name: 'small-declared', path: 'small-declared.zip', exit: 2, words: ['stop_times.txt', 'declares'], large: true, ...bounds, maxMB: 300, why: 'stop_times.txt declares 1 000 bytes but inflates to 1.8 GB: refuse as soon as it passes its declared size' });
+  }
+  {
+    const entries = [...Object.entries(base)];
+    for (let k = 0; k < 20_000; k++) entries.push([`empty/${k}`, '']);
+    writeFileSync(join(outDir, 'many-entries.zip'), await zipBuffer(entries, new Set(entries.slice(7).map((e) => e[0]))));
+    cases.push({ name: 'many-entries', path: 'many-entries.zip', exit: 2, words: ['many-entries.zip', 'entries'], large: true, ...bounds, maxMB: 300, why: 'the archive lists 20 007 entries, over the cap of 10 000: refuse before listing them' });
+  }
+  const twoStopTrips = (n) => {
+    // stops on a grid 50 m apart, one two-stop trip for each ordered pair: each trip its own pattern
+    const side = Math.ceil(Math.sqrt(n)) + 1;
+    const stops = ['stop_id,stop_name,stop_lat,stop_lon'];
+    for (let k = 0; k < side; k++) stops.push(`G${k},Grid ${k},${(45 + (k % 200) * 0.00045).toFixed(6)},${(10 + Math.floor(k / 200) * 0.00064).toFixed(6)}`);
+    const trips = ['route_id,service_id,trip_id'];
+    const st = [stHead.trimEnd()];
+    let t = 0;
+    for (let a = 0; a < side && t < n; a++) {
+      for (let b = 0; b < side && t < n; b++) {
+        if (a === b) continue;
+        trips.push(`M1,WKDY,G${t}`);
+        st.push(`G${t},08:00:00,08:00:00,G${a},1`, `G${t},08:02:00,08:02:00,G${b},2`);
+        t++;
+      }
+    }
+    return { 'stops.txt': stops.join('\n') + '\n', 'trips.txt': trips.join('\n') + '\n', 'stop_times.txt': st.join('\n') + '\n' };
+  };
+  {
+    const { shapes, ...rest } = { ...base, ...twoStopTrips(20_000), shapes: undefined };
+    writeFileSync(join(outDir, 'pattern-flood.zip'), await zipBuffer(rest));
+    cases.push({ name: 'pattern-flood', path: 'pattern-flood.zip', exit: 2, words: ['route patterns'], large: true, ...bounds, why: '20 000 two-stop trips, each its own route pattern, from a small zip: over the cap of 10 000 patterns' });
+  }
+  {
+    writeFolder(join(outDir, 'trip-flood'), { ...twoStopTrips(1_000_000), 'shapes.txt': '' });
+    cases.push({ name: 'trip-flood', path: 'trip-flood', exit: 2, words: ['stop_times.txt', 'stop lists'], large: true, ...bounds, why: 'a million two-stop trips, each with its own stop list: refused while stop_times.txt is read' });
+  }
+  {
+    const n = 300_000;
+    const stops = ['stop_id,stop_name,stop_lat,stop_lon'];
+    const st = [stHead.trimEnd()];
+    for (let k = 0; k < n; k++) {
+      stops.push(`L${k},Long ${k},${(45 + (k % 1000) * 0.0005).toFixed(6)},${(10 + Math.floor(k / 1000) * 0.0007).toFixed(6)}`);
+      st.push(`LONG,${k === 0 ? '07:00:00' : ''},${k === 0 ? '07:00:00' : ''},L${k},${k + 1}`);
+    }
+    writeFolder(join(outDir, 'long-trip'), { 'stops.txt': stops.join('\n') + '\n', 'trips.txt': 'route_id,service_id,trip_id\nM1,WKDY,LONG\n', 'stop_times.txt': st.join('\n') + '\n', 'shapes.txt': '' });
+    cases.push({ name: 'long-trip', path: 'long-trip', exit: 2, words: ['stop_times.txt', 'trip_id', 'LONG'], large: true, ...bounds, why: 'one trip of 300 000 stops: over the cap of stops per trip' });
+  }
+  {
+    const name = 'Vellmoor '.repeat(100_000); // 900 KB
+    const stops = base['stops.txt'] + Array.from({ length: 20 }, (_, k) => `X${k},${name},45.03,10.04`).join('\n') + '\n';
+    writeFolder(join(outDir, 'long-names'), { 'stops.txt': stops });
+    cases.push({ name: 'long-names', path: 'long-names', exit: 2, words: ['stops.txt', 'stop_name'], large: true, ...bounds, why: 'stop names of 900 KB each: over the cap on a value' });
+  }
+  {
+    const pts = ['shape_id,shape_pt_lat,shape_pt_lon,shape_pt_sequence'];
+    for (let k = 0; k < 250_000; k++) pts.push(`SH1,${(45.02 + k * 1e-7).toFixed(7)},${(10.03 + k * 1e-7).toFixed(7)},${k + 1}`);
+    writeFolder(join(outDir, 'long-shape'), { 'shapes.txt': pts.join('\n') + '\n' });
+    cases.push({ name: 'long-shape', path: 'long-shape', exit: 2, words: ['shapes.txt', 'SH1'], large: true, ...bounds, why: 'shape SH1 has 250 000 points: over the cap of points per shape' });
+  }
   return cases;
 }
 

@@ -8,7 +8,7 @@ import type * as Commander from 'commander';
 import { requireCjs } from '../common/requireCjs.js';
 import { runInterruptUndo, watchInterruptUndo } from '../common/interrupts.js';
 import { commands } from './commands.js';
-import { EXIT } from './shared.js';
+import { EXIT, isAllocationFailure } from './shared.js';
 import { version } from '../version.js';
 
 const { Command } = requireCjs('commander') as typeof Commander;
@@ -55,6 +55,11 @@ program.parseAsync(process.argv).catch((e: { code?: string; exitCode?: number })
   if (e && typeof e.code === 'string' && e.code.startsWith('commander.')) {
     const ok = e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help';
     process.exitCode = ok ? EXIT.clean : EXIT.badInput;
+    return;
+  }
+  if (isAllocationFailure(e)) {
+    process.stderr.write(`error: the input is too large to hold in memory (feed-too-large: ${(e as Error).message})\n`);
+    process.exitCode = EXIT.badInput;
     return;
   }
   process.stderr.write(`internal error (this is a bug): ${String((e as Error)?.message ?? e)}\n`);

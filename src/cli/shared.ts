@@ -9,6 +9,14 @@ import type { OnProgress, ProgressEvent } from '../common/progress.js';
 export const EXIT = { clean: 0, found: 1, badInput: 2, internal: 3 } as const;
 
 /**
+ * Whether an exception is the engine refusing an allocation (a string, array or buffer past what it can
+ * hold): input beyond every cap the reader checks, so it is reported as too large, not as a bug.
+ */
+export function isAllocationFailure(e: unknown): boolean {
+  return e instanceof RangeError && /^(Invalid (string|array|typed array) length|Array buffer allocation failed)/.test(e.message);
+}
+
+/**
  * Runs a command action; known failures become one line on stderr and exit 2, anything else exit 3. With
  * json, a failure also prints errorDocument on stdout, so a redirect always captures the outcome.
  */
@@ -19,6 +27,9 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
   } catch (e) {
     if (isStopspanError(e)) {
       process.stderr.write(`error: ${e.oneLine()}\n`);
+      code = EXIT.badInput;
+    } else if (isAllocationFailure(e)) {
+      process.stderr.write(`error: the input is too large to hold in memory (feed-too-large: ${(e as Error).message})\n`);
       code = EXIT.badInput;
     } else {
       const err = e as Error;
@@ -35,7 +46,7 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
 export function errorDocument(e: unknown, exitCode: number): { tool: { name: string; version: string }; error: Record<string, string | number>; exitCode: number } {
   const error: Record<string, string | number> = isStopspanError(e)
     ? { code: e.code, message: e.message, ...Object.fromEntries(Object.entries(e.context).filter(([, v]) => v !== undefined)) }
-    : { code: 'internal', message: String((e as Error)?.message ?? e) };
+    : { code: isAllocationFailure(e) ? 'feed-too-large' : 'internal', message: String((e as Error)?.message ?? e) };
   return { tool: { name: 'stopspan', version }, error, exitCode };
 }
 

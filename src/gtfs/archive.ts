@@ -1,14 +1,16 @@
 // Opens a feed as a set of named tables, from a .zip (read lazily with yauzl), a folder of .txt files, or
 // an http(s) URL (downloaded to a temporary file first). Every entry is bounded: absurd declared sizes or
 // compression ratios are refused up front, and inflated bytes are counted while streaming because a
-// declared size can lie. Archive paths are never written to disk; unsafe ones are skipped and counted.
+// declared size can lie: an entry is refused as soon as it inflates past its declared size, and its
+// CRC-32 is checked at its end. Archive paths are never written to disk; unsafe ones
+// are skipped and counted; an archive of more entries than any feed has, or naming a table twice, is refused.
 
 import { createHash, webcrypto } from 'node:crypto';
 import { createReadStream } from 'node:fs';
 import { readdir, readFile, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { Readable, Transform, type TransformCallback } from 'node:stream';
-import { createInflateRaw } from 'node:zlib';
+import { crc32, createInflateRaw } from 'node:zlib';
 import type * as Yauzl from 'yauzl';
 import { StopspanError } from '../common/errors.js';
 import { requireCjs } from '../common/requireCjs.js';
@@ -21,17 +23,26 @@ const yauzl = requireCjs('yauzl') as typeof Yauzl;
 export interface ArchiveLimits {
   /** Largest declared or actual uncompressed size of one entry, in bytes. Default 4 GiB. */
   maxEntryBytes?: number;
-  /** Largest declared uncompressed/compressed ratio of one entry (entries over 1 MiB only). Default 1000. */
+  /**
+   * Largest uncompressed/compressed ratio of one entry, declared (entries over 1 MiB only; an entry
+   * cannot inflate past its declared size). Default 1000.
+   */
   maxRatio?: number;
   /** Largest total of inflated bytes over all entries read from one archive. Default 16 GiB. */
   maxTotalBytes?: number;
+  /** Most entries (files and folders) a zip may list. Default 10 000; a feed has a few dozen. */
+  maxEntries?: number;
 }
 
 export const DEFAULT_ARCHIVE_LIMITS: Required<ArchiveLimits> = {
   maxEntryBytes: 4 * 1024 ** 3,
   maxRatio: 1000,
   maxTotalBytes: 16 * 1024 ** 3,
+  maxEntries: 10_000,
 };
+
+/** Inflated bytes of an entry before its actual compression ratio is held to the cap: 1 MiB. */
+const RATIO_FROM_BYTES = 1024 * 1024;
 
 export interface FeedArchive {
   kind: 'zip' | 'folder';
@@ -135,17 +146,30 @@ function tooLarge(name: string, why: string): StopspanError {
   return new StopspanError('feed-too-large', `zip entry too large: ${why}`, { file: name });
 }
 
-/** Counts bytes through a stream and fails once an entry or the archive total passes its cap. */
+/** What a zip entry's directory says of it, checked while it inflates, and how to name the entry. */
+interface DeclaredEntry {
+  file: string;
+  /** Uncompressed size. */
+  bytes: number;
+  /** CRC-32 of the uncompressed bytes. */
+  crc: number;
+}
+
+/**
+ * Counts bytes through a stream and fails once an entry or the archive total passes its cap; for a zip
+ * entry also as soon as it inflates past its declared size, and at its end when its size or CRC-32
+ * differs from the declared ones.
+ */
 class ByteCap extends Transform {
   private seen = 0;
+  private crc = 0;
   constructor(
     private readonly name: string,
     private readonly maxEntry: number,
     private readonly total: () => number,
     private readonly addTotal: (n: number) => void,
     private readonly maxTotal: number,
-    /** A zip entry's declared uncompressed size, checked at the end, and how to name the entry. */
-    private readonly declared?: { bytes: number; file: string },
+    private readonly declared?: DeclaredEntry,
     readAheadBytes = 4 << 20,
   ) {
     // a deep buffer lets inflating (on the thread pool) run ahead while the CSV reader parses
@@ -156,11 +180,21 @@ class ByteCap extends Transform {
     this.addTotal(chunk.length);
     if (this.seen > this.maxEntry) return cb(tooLarge(this.name, `inflated past the per-entry cap of ${this.maxEntry} bytes`));
     if (this.total() > this.maxTotal) return cb(tooLarge(this.name, `archive inflated past the total cap of ${this.maxTotal} bytes`));
+    const d = this.declared;
+    if (d) {
+      // a lying header is caught here, not after gigabytes: the reader downstream holds what it was given
+      // (so the ratio checked up front on the declared size also holds for the bytes inflated: a small
+      // declared size cannot let a large entry through)
+      if (this.seen > d.bytes) return cb(unreadable(d.file, `corrupt zip entry (inflates past the ${d.bytes} bytes it declares)`));
+      this.crc = crc32(chunk, this.crc);
+    }
     cb(null, chunk);
   }
   override _flush(cb: TransformCallback): void {
     const d = this.declared;
     if (d && this.seen !== d.bytes) return cb(unreadable(d.file, `corrupt or truncated zip entry (${this.seen} bytes inflated, ${d.bytes} declared)`));
+    // [PKWARE APPNOTE 4.4.7: the CRC-32 of the uncompressed data]
+    if (d && this.crc >>> 0 !== d.crc >>> 0) return cb(unreadable(d.file, 'corrupt zip entry (CRC-32 of the inflated bytes differs from the one recorded)'));
     cb();
   }
 }
@@ -197,8 +231,18 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
   let entries: Yauzl.Entry[];
   try {
     zf = await openZipFile(path);
+  } catch (e) {
+    throw unreadable(label, `not a readable zip archive (${oneLineOf(e)})`);
+  }
+  // the count comes from the end record, before any entry is listed: a flood of entries costs nothing
+  if (zf.entryCount > lim.maxEntries) {
+    zf.close();
+    throw new StopspanError('feed-too-large', `the archive lists ${zf.entryCount} entries, over the cap of ${lim.maxEntries}`, { file: label });
+  }
+  try {
     entries = await listEntries(zf);
   } catch (e) {
+    zf.close();
     throw unreadable(label, `not a readable zip archive (${oneLineOf(e)})`);
   }
   // decode names ourselves so an unsafe name skips that entry instead of failing the whole archive
@@ -224,7 +268,15 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
     }
   }
   const tables = new Map<string, Yauzl.Entry>();
-  for (const t of chosen) tables.set(t.path.slice(t.path.lastIndexOf('/') + 1), t.entry);
+  for (const t of chosen) {
+    const base = t.path.slice(t.path.lastIndexOf('/') + 1);
+    // two entries of one name: which one the publisher meant is unknowable (readers differ on it)
+    if (tables.has(base)) {
+      zf.close();
+      throw unreadable(`${label}:${t.path}`, 'the archive holds two entries of this name');
+    }
+    tables.set(base, t.entry);
+  }
   let total = 0;
   let closed = false;
   return {
@@ -238,8 +290,8 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
       const u = entry.uncompressedSize;
       const c = entry.compressedSize;
       if (u > lim.maxEntryBytes) throw tooLarge(name, `declared size ${u} bytes exceeds the per-entry cap of ${lim.maxEntryBytes}`);
-      if (u > 1024 * 1024 && c > 0 && u / c > lim.maxRatio) throw tooLarge(name, `compression ratio ${Math.round(u / c)} exceeds the cap of ${lim.maxRatio}`);
-      if (u > 1024 * 1024 && c === 0) throw tooLarge(name, `declares ${u} bytes from an empty compressed body`);
+      if (u > RATIO_FROM_BYTES && c > 0 && u / c > lim.maxRatio) throw tooLarge(name, `compression ratio ${Math.round(u / c)} exceeds the cap of ${lim.maxRatio}`);
+      if (u > RATIO_FROM_BYTES && c === 0) throw tooLarge(name, `declares ${u} bytes from an empty compressed body`);
       // a deflated entry is read raw and inflated here, with an output buffer of 1 MiB instead of zlib's
       // 16 KiB: each buffer is a round trip between the thread pool and this thread, and with small ones
       // those round trips, not inflating, set the pace (measured on a 75 MB stop_times.txt: inflating and
@@ -251,7 +303,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
           else resolve(rs);
         });
       });
-      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, { bytes: u, file: `${label}:${name}` }, readAheadBytes);
+      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, { bytes: u, file: `${label}:${name}`, crc: entry.crc32 }, readAheadBytes);
       const fail = (err: unknown): void => {
         cap.destroy(err instanceof StopspanError ? err : unreadable(`${label}:${name}`, `corrupt or truncated zip entry (${oneLineOf(err)})`));
       };

@@ -16,6 +16,13 @@ const PIECE_BYTES = 64 * 1024;
 /** Longest record accepted, in characters (UTF-16 code units; equal to bytes for ASCII text): 1 MiB. */
 export const DEFAULT_MAX_RECORD_CHARS = 1024 * 1024;
 
+/**
+ * Longest field value handed out, in characters: 64 KiB. The longest real GTFS values are descriptions
+ * and URLs of a few hundred characters; a stop name of hundreds of kilobytes, repeated over a table, would
+ * make every string built from the names (reports, maps) too long to hold. Refused as too large.
+ */
+export const MAX_FIELD_CHARS = 64 * 1024;
+
 export interface CsvStats {
   records: number; // data records, header excluded
   paddedValues: number; // values with spaces or tabs around them (trimmed)
@@ -36,14 +43,25 @@ export class CsvRow {
   /** @internal */ starts: number[] = [];
   /** @internal */ ends: number[] = [];
   /** @internal */ quoted: (string | undefined)[] = [];
+  /** @internal for messages: the table, and its column names once known */ file = '';
+  /** @internal */ names: string[] | null = null;
 
-  /** The field's value ('' for a missing field). */
+  /** The field's value ('' for a missing field); a value over MAX_FIELD_CHARS is refused. */
   get(i: number): string {
     if (i >= this.count || i < 0) return '';
     const s = this.starts[i];
-    if (s < 0) return this.quoted[i] as string;
+    if (s < 0) {
+      const q = this.quoted[i] as string;
+      if (q.length > MAX_FIELD_CHARS) this.tooLong(i);
+      return q;
+    }
     const e = this.ends[i];
+    if (e - s > MAX_FIELD_CHARS) this.tooLong(i);
     return s === e ? '' : this.text.slice(s, e);
+  }
+
+  private tooLong(i: number): never {
+    throw new StopspanError('feed-too-large', `value longer than the cap of ${MAX_FIELD_CHARS} characters`, { file: this.file, line: this.line, column: this.names?.[i] ?? String(i + 1) });
   }
 
   /** Whether the field's value is exactly `value`. */
@@ -92,7 +110,12 @@ export class CsvCore {
   strayQuotes = 0;
   readonly strayExamples: Array<{ line: number; field: number }> = [];
   /** Column names for error messages, once the header is known. */
-  names: string[] | null = null;
+  get names(): string[] | null {
+    return this.row.names;
+  }
+  set names(h: string[] | null) {
+    this.row.names = h;
+  }
   /**
    * Set by the table parser while the rows of a group to be skipped come in (null otherwise): a plain
    * record whose first field is exactly this key is passed over without being split or handed on. The
@@ -108,7 +131,9 @@ export class CsvCore {
     private readonly file: string,
     private readonly sink: (row: CsvRow) => void,
     private readonly maxRecordChars = DEFAULT_MAX_RECORD_CHARS,
-  ) {}
+  ) {
+    this.row.file = file;
+  }
 
   push(text: string): void {
     if (!this.started) {
@@ -451,7 +476,7 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
 }
 
 /** Turns a table's counts into warnings: padded values, stray quotes, ragged rows, invalid UTF-8. */
-function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
+export function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
   const replacedAt = stats.replacedAt;
   if (stats.paddedValues > 0) {
     const msg = 'values padded with spaces were trimmed';

@@ -34,6 +34,13 @@ export interface ReadFeedOptions {
 
 const REQUIRED_TABLES = ['agency.txt', 'routes.txt', 'trips.txt', 'stop_times.txt', 'stops.txt'];
 
+/**
+ * Caps on the shapes read (only those of the day's trips are held, about 65 bytes a point while read):
+ * the longest real shapes have a few thousand points (3 097 on the Long Island Rail Road feed), and whole
+ * networks' shapes.txt about 150 000 rows (the New York subway's).
+ */
+export const SHAPE_CAPS = { pointsPerShape: 200_000, points: 4_000_000 } as const;
+
 /** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
 export async function readFeed(source: string, { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {}): Promise<Feed> {
   if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
@@ -399,7 +406,8 @@ async function readArchive(
       const p = folder.interner.profiles[id];
       if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
     }
-    if (folder.repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, folder.repeated);
+    const repeated = folder.repeated + reader.repeated;
+    if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
     if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);
     if (noRows > 0) warnings.add('trip-without-stop-times', 'kept trips with no stop_times rows were dropped', F, noRows);
   }
@@ -424,9 +432,14 @@ async function readArchive(
     const lat = new FloatColumn(1 << 14);
     const lon = new FloatColumn(1 << 14);
     const dist = new FloatColumn(1 << 14);
+    const pointsOf = new Int32Array(shapeIds.length);
     await table(ctx, S, ['shape_id', 'shape_pt_lat', 'shape_pt_lon', 'shape_pt_sequence'], ['shape_dist_traveled'], (row, c) => {
       const g = wanted.get(row.get(c.shape_id));
       if (g === undefined) return;
+      if (++pointsOf[g] > SHAPE_CAPS.pointsPerShape || owner.length >= SHAPE_CAPS.points) {
+        const what = pointsOf[g] > SHAPE_CAPS.pointsPerShape ? `a shape has more than ${SHAPE_CAPS.pointsPerShape} points` : `the shapes in use have more than ${SHAPE_CAPS.points} points`;
+        throw new StopspanError('feed-too-large', `${what}, the cap`, { file: S, line: row.line, column: 'shape_id', value: shapeIds[g] });
+      }
       const seq = fieldUint(row, c.shape_pt_sequence);
       if (seq < 0) bad(S, row, c.shape_pt_sequence, 'shape_pt_sequence', 'a non-negative integer');
       const la = coord(S, row, c.shape_pt_lat, 'shape_pt_lat', 90);

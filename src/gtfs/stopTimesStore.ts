@@ -5,8 +5,9 @@
 // demo city enlarged sixteen times holds the profiles of the original. A trip's TripStopTimes is rebuilt
 // from its profile when asked for.
 
+import { StopspanError } from '../common/errors.js';
 import { groupAndSort, RowColumns } from './columns.js';
-import type { StopTimesSink } from './stopTimesRows.js';
+import { MAX_STOPS_PER_TRIP, STOP_TIMES_FILE, type StopTimesSink } from './stopTimesRows.js';
 import type { TripStopTimes } from './types.js';
 
 /** One distinct run of stop_times rows; times are seconds after the trip's start time, -1 where blank. */
@@ -51,9 +52,24 @@ function sameDist(x: number, y: number): boolean {
   return x === y || (x !== x && y !== y); // NaN (blank) equals NaN
 }
 
+/**
+ * Caps on what the folded stop_times hold, so a feed of a million distinct trips is refused before its
+ * profiles fill memory (each costs about a kilobyte besides its rows). Manhattan's buses on a weekday:
+ * 2 295 profiles, 151 stop lists; a whole city's network is several times that.
+ */
+export const PROFILE_CAPS = {
+  /** Distinct runs of rows (profiles). */
+  profiles: 100_000,
+  /** Rows summed over the profiles. */
+  rows: 4_000_000,
+  /** Distinct ordered stop lists (every one is at least one route pattern). */
+  stopLists: 50_000,
+} as const;
+
 /** Finds or adds the profile of a trip's rows; the rows are sorted by stop_sequence and free of repeats. */
 export class ProfileInterner {
   readonly profiles: StopTimesProfile[] = [];
+  private rowsHeld = 0;
   private readonly byHash = new Map<number, number[]>();
   private readonly stopLists = new Map<number, { stops: Int32Array; id: number }[]>();
   private stopListCount = 0;
@@ -99,6 +115,10 @@ export class ProfileInterner {
   }
 
   private add(r: RowRun, a: number, m: number, base: number, stopsHash: number): number {
+    this.rowsHeld += m;
+    if (this.profiles.length >= PROFILE_CAPS.profiles || this.rowsHeld > PROFILE_CAPS.rows) {
+      throw tooMany(`${PROFILE_CAPS.profiles} distinct runs of stop_times rows or ${PROFILE_CAPS.rows} rows in them`);
+    }
     const p: StopTimesProfile = {
       stopIdx: new Int32Array(m),
       seq: new Int32Array(m),
@@ -127,12 +147,17 @@ export class ProfileInterner {
       p.stopIdx = same.stops;
       p.stopList = same.id;
     } else {
+      if (this.stopListCount >= PROFILE_CAPS.stopLists) throw tooMany(`${PROFILE_CAPS.stopLists} distinct stop lists`);
       p.stopList = this.stopListCount++;
       lists.push({ stops: p.stopIdx, id: p.stopList });
     }
     this.profiles.push(p);
     return this.profiles.length - 1;
   }
+}
+
+function tooMany(what: string): StopspanError {
+  return new StopspanError('feed-too-large', `the trips of the day have more than ${what}, the cap`, { file: STOP_TIMES_FILE });
 }
 
 /** The trip's rows rebuilt from its profile. */
@@ -295,6 +320,10 @@ export class TripFolder implements StopTimesSink {
     const s = this.scratch;
     if (s.used === 0) return;
     this.repeated += s.sortAndDedupe();
+    // the reader caps each run of a trip's rows; a trip gathered from several runs is held to the same cap
+    if (s.used > MAX_STOPS_PER_TRIP) {
+      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, { file: STOP_TIMES_FILE, column: 'trip_id' });
+    }
     const { profileId, baseS } = this.interner.intern(s, 0, s.used);
     this.profileOfTrip[t] = profileId;
     this.baseOfTrip[t] = baseS;

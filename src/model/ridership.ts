@@ -3,13 +3,15 @@
 // Strict where numbers would otherwise be wrong: a missing column, a count that is not a number of 0 or
 // more, or a duplicated row (same stop, route and direction, or a stop given both with and without a
 // route) is an error naming file, line, column and value. Rows naming stops or routes the feed does not
-// have are skipped and counted as warnings (counter exports often cover more than one feed).
+// have are skipped and counted as warnings (counter exports often cover more than one feed), before the
+// duplicate checks, so only the rows kept are remembered. The file is read in pieces, never whole, and
+// refused past MAX_RIDERSHIP_ROWS data rows.
 
-import { readFileSync } from 'node:fs';
+import { closeSync, openSync, readSync } from 'node:fs';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
-import { parseCsv } from '../gtfs/csv.js';
+import { CsvTableParser, reportCsvStats, type CsvRow } from '../gtfs/csv.js';
 
 export interface RidershipRow {
   stopIdx: number; // index into Feed.stops
@@ -28,6 +30,13 @@ export interface Ridership {
 
 const REQUIRED = ['stop_id', 'boardings', 'alightings'] as const;
 
+/**
+ * Most data rows a ridership file may have: 1 000 000. One row per stop, route and direction of a whole
+ * city's bus network is a few tens of thousands (New York's buses: about 16 000 stops); several feeds'
+ * worth stays well under this, and past it the file is refused before it fills memory.
+ */
+export const MAX_RIDERSHIP_ROWS = 1_000_000;
+
 function count(text: string, file: string, line: number, column: string): number {
   const v = text.trim();
   const n = v === '' ? NaN : Number(v);
@@ -37,72 +46,123 @@ function count(text: string, file: string, line: number, column: string): number
   return n;
 }
 
-/** Parses ridership CSV text against a feed. */
-export function parseRidership(text: string, feed: Feed, { file, warnings }: { file: string; warnings: WarningSink }): Ridership {
-  const csv = parseCsv(text, { file, warnings });
-  const col = new Map(csv.header.map((h, i) => [h.trim().toLowerCase(), i]));
-  for (const name of REQUIRED) {
-    if (!col.has(name)) {
-      throw new StopspanError('bad-ridership', `ridership file lacks the required column ${name} (needs ${REQUIRED.join(', ')}; route_id and direction_id optional)`, { file, line: 1, column: name });
-    }
+/** Reads ridership rows as they are parsed: checks each, keeps the usable ones. */
+class RidershipReader {
+  readonly rows: RidershipRow[] = [];
+  readonly parser: CsvTableParser;
+  private records = 0;
+  private iStop = 0;
+  private iB = 0;
+  private iA = 0;
+  private iRoute: number | undefined;
+  private iDir: number | undefined;
+  private readonly seen = new Map<string, number>(); // key -> line
+  private readonly stopScope = new Map<string, 'all' | 'route'>();
+
+  constructor(
+    private readonly feed: Feed,
+    private readonly file: string,
+    private readonly warnings: WarningSink,
+  ) {
+    this.parser = new CsvTableParser(file, (row) => this.row(row), { onHeader: (h) => this.header(h) });
   }
-  if (csv.rows.length === 0) throw new StopspanError('bad-ridership', 'ridership file has no data rows', { file, line: 2 });
-  const iStop = col.get('stop_id')!;
-  const iB = col.get('boardings')!;
-  const iA = col.get('alightings')!;
-  const iRoute = col.get('route_id');
-  const iDir = col.get('direction_id');
-  const seen = new Map<string, number>(); // key -> line
-  const stopScope = new Map<string, 'all' | 'route'>();
-  const rows: RidershipRow[] = [];
-  for (let r = 0; r < csv.rows.length; r++) {
-    const f = csv.rows[r];
-    const line = csv.lines[r];
-    const stopId = f[iStop].trim();
-    if (stopId === '') throw new StopspanError('bad-ridership', 'blank stop_id', { file, line, column: 'stop_id', value: f[iStop] });
-    const boardingsPerDay = count(f[iB], file, line, 'boardings');
-    const alightingsPerDay = count(f[iA], file, line, 'alightings');
-    const routeRaw = iRoute === undefined ? '' : f[iRoute].trim();
-    const dirRaw = iDir === undefined ? '' : f[iDir].trim();
+
+  private header(header: string[]): void {
+    const file = this.file;
+    const col = new Map(header.map((h, i) => [h.trim().toLowerCase(), i]));
+    for (const name of REQUIRED) {
+      if (!col.has(name)) {
+        throw new StopspanError('bad-ridership', `ridership file lacks the required column ${name} (needs ${REQUIRED.join(', ')}; route_id and direction_id optional)`, { file, line: 1, column: name });
+      }
+    }
+    this.iStop = col.get('stop_id')!;
+    this.iB = col.get('boardings')!;
+    this.iA = col.get('alightings')!;
+    this.iRoute = col.get('route_id');
+    this.iDir = col.get('direction_id');
+  }
+
+  private row(f: CsvRow): void {
+    const { file, feed, warnings } = this;
+    const line = f.line;
+    if (++this.records > MAX_RIDERSHIP_ROWS) {
+      throw new StopspanError('feed-too-large', `ridership file has more than ${MAX_RIDERSHIP_ROWS} data rows, the cap`, { file, line });
+    }
+    const stopId = f.get(this.iStop).trim();
+    if (stopId === '') throw new StopspanError('bad-ridership', 'blank stop_id', { file, line, column: 'stop_id', value: f.get(this.iStop) });
+    const boardingsPerDay = count(f.get(this.iB), file, line, 'boardings');
+    const alightingsPerDay = count(f.get(this.iA), file, line, 'alightings');
+    const routeRaw = this.iRoute === undefined ? '' : f.get(this.iRoute).trim();
+    const dirRaw = this.iDir === undefined ? '' : f.get(this.iDir).trim();
     let directionId: number | null = null;
     if (dirRaw !== '') {
       if (dirRaw !== '0' && dirRaw !== '1') throw new StopspanError('bad-ridership', 'invalid direction_id: expected 0, 1 or blank', { file, line, column: 'direction_id', value: dirRaw });
       directionId = Number(dirRaw);
     }
     const routeId = routeRaw === '' ? null : routeRaw;
-    const key = `${stopId}\u0000${routeId ?? ''}\u0000${directionId ?? ''}`;
-    const dupLine = seen.get(key);
-    if (dupLine !== undefined) {
-      throw new StopspanError('bad-ridership', `duplicate ridership row for stop ${stopId}${routeId ? ` route ${routeId}` : ''}${directionId !== null ? ` direction ${directionId}` : ''} (first on line ${dupLine}); combine the rows`, { file, line, column: 'stop_id', value: stopId });
-    }
-    seen.set(key, line);
-    const scope = routeId === null && directionId === null ? 'all' : 'route';
-    const prior = stopScope.get(stopId);
-    if (prior !== undefined && prior !== scope) {
-      throw new StopspanError('bad-ridership', `stop ${stopId} is given both for all routes and per route; the counts would be double`, { file, line, column: 'route_id', value: routeRaw });
-    }
-    stopScope.set(stopId, scope);
     const stopIdx = feed.stopIndex.get(stopId);
     if (stopIdx === undefined) {
       warnings.add('ridership-unknown-stop', 'ridership rows naming a stop_id the feed does not have were skipped', `${file}:${line} ${stopId}`);
-      continue;
+      return;
     }
     if (routeId !== null && !feed.routes.has(routeId)) {
       warnings.add('ridership-unknown-route', 'ridership rows naming a route_id the feed does not have were skipped', `${file}:${line} ${routeId}`);
-      continue;
+      return;
     }
-    rows.push({ stopIdx, stopId, routeId, directionId, boardingsPerDay, alightingsPerDay, line });
+    const key = `${stopId}\u0000${routeId ?? ''}\u0000${directionId ?? ''}`;
+    const dupLine = this.seen.get(key);
+    if (dupLine !== undefined) {
+      throw new StopspanError('bad-ridership', `duplicate ridership row for stop ${stopId}${routeId ? ` route ${routeId}` : ''}${directionId !== null ? ` direction ${directionId}` : ''} (first on line ${dupLine}); combine the rows`, { file, line, column: 'stop_id', value: stopId });
+    }
+    this.seen.set(key, line);
+    const scope = routeId === null && directionId === null ? 'all' : 'route';
+    const prior = this.stopScope.get(stopId);
+    if (prior !== undefined && prior !== scope) {
+      throw new StopspanError('bad-ridership', `stop ${stopId} is given both for all routes and per route; the counts would be double`, { file, line, column: 'route_id', value: routeRaw });
+    }
+    this.stopScope.set(stopId, scope);
+    this.rows.push({ stopIdx, stopId, routeId, directionId, boardingsPerDay, alightingsPerDay, line });
   }
-  return { file, rows };
+
+  finish(): Ridership {
+    const stats = this.parser.end();
+    if (this.parser.columns === null) this.header([]);
+    reportCsvStats(this.warnings, this.file, this.parser.columns ?? [], stats);
+    if (this.records === 0) throw new StopspanError('bad-ridership', 'ridership file has no data rows', { file: this.file, line: 2 });
+    return { file: this.file, rows: this.rows };
+  }
 }
 
-/** Reads and parses a ridership file. */
+/** Parses ridership CSV text against a feed. */
+export function parseRidership(text: string, feed: Feed, { file, warnings }: { file: string; warnings: WarningSink }): Ridership {
+  const r = new RidershipReader(feed, file, warnings);
+  r.parser.push(text);
+  return r.finish();
+}
+
+/** Reads and parses a ridership file, 1 MiB at a time. */
 export function loadRidership(path: string, feed: Feed, { warnings }: { warnings: WarningSink }): Ridership {
-  let text: string;
+  const r = new RidershipReader(feed, path, warnings);
+  let fd: number;
   try {
-    text = readFileSync(path, 'utf8');
+    fd = openSync(path, 'r');
   } catch (e) {
     throw new StopspanError('bad-ridership', `cannot read ridership file: ${(e as Error).message}`, { file: path });
   }
-  return parseRidership(text, feed, { file: path, warnings });
+  try {
+    const buf = Buffer.alloc(1 << 20);
+    for (;;) {
+      let n: number;
+      try {
+        n = readSync(fd, buf, 0, buf.length, null);
+      } catch (e) {
+        throw new StopspanError('bad-ridership', `cannot read ridership file: ${(e as Error).message}`, { file: path });
+      }
+      if (n === 0) break;
+      r.parser.push(buf.subarray(0, n));
+    }
+  } finally {
+    closeSync(fd);
+  }
+  return r.finish();
 }

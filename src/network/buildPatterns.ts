@@ -16,6 +16,19 @@ import { scheduledTimesOfRuns, warnUntimedTrip, type TimedRun } from './schedule
 import { tripProfiles, type TripProfile } from '../gtfs/stopTimesStore.js';
 import { tripInstancesOnDate, type TripRuns as TripInstances } from '../gtfs/frequencies.js';
 
+/**
+ * Most route patterns one run measures: 10 000. A whole city's bus network has a few hundred to about a
+ * thousand (Manhattan's buses: 151 on a weekday); every pattern costs tens of kilobytes and a millisecond
+ * or two in the audit, so past this a feed is refused as too large before memory runs out.
+ */
+export const MAX_PATTERNS = 10_000;
+
+/**
+ * Most stops summed over the patterns of one run: 100 000 (Manhattan's buses: 5 110), each costing a few
+ * kilobytes downstream.
+ */
+export const MAX_PATTERN_STOPS = 100_000;
+
 export interface BuildPatternsOptions {
   /** Analysis date YYYY-MM-DD; defaults to feed.date. */
   date?: string;
@@ -69,6 +82,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   // 1. Group trips by (route, direction, ordered stop list), from the trips' shared profiles.
   const profiles = tripProfiles(feed.stopTimes);
   const groups = new Map<string, Group>();
+  let patternStops = 0;
   for (const tripId of feed.stopTimes.keys()) {
     if (!instances.has(tripId)) continue;
     const trip = feed.trips.get(tripId);
@@ -83,6 +97,8 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     const key = `${trip.routeId}\u0000${trip.directionId}\u0000${tp.profile.stopList}`;
     let g = groups.get(key);
     if (!g) {
+      patternStops += tp.profile.stopIdx.length;
+      if (groups.size >= MAX_PATTERNS || patternStops > MAX_PATTERN_STOPS) throw tooManyPatterns(date, routeSet !== null);
       g = { routeId: trip.routeId, directionId: trip.directionId, stopIdx: tp.profile.stopIdx, tripIds: [], profiles: [] };
       groups.set(key, g);
     }
@@ -298,6 +314,14 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   const set: PatternSet = { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
   if (!givenSink) set.warnings = warnings.list();
   return set;
+}
+
+function tooManyPatterns(date: string, narrowed: boolean): StopspanError {
+  return new StopspanError(
+    'feed-too-large',
+    `the trips running on ${date} form more than ${MAX_PATTERNS} route patterns or ${MAX_PATTERN_STOPS} pattern stops, the caps of one run${narrowed ? '' : ' (audit takes part of a feed with --routes)'}`,
+    { value: date },
+  );
 }
 
 /** Most frequent key; ties go to the smallest key so the choice is stable. '' for an empty map. */

@@ -12,6 +12,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parse } from 'csv-parse/sync';
 import yauzl from 'yauzl';
+import { crc32 } from 'node:zlib';
 import { CLI as BUILT_CLI } from '../helpers/cli.js';
 
 interface BrokenCase {
@@ -22,13 +23,16 @@ interface BrokenCase {
   why: string;
   warning?: boolean;
   large?: boolean;
+  /** For the large cases: the time and peak memory (resident set) a run must stay within. */
+  maxSeconds?: number;
+  maxMB?: number;
 }
 
 const ROOT = join(import.meta.dirname, '..', '..');
 const BROKEN = join(ROOT, 'fixtures', 'broken');
 // STOPSPAN_CLI lets the harness itself be checked against a stand-in; normally the built CLI
 const CLI = process.env.STOPSPAN_CLI ?? BUILT_CLI;
-const cases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
+const committedCases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
 // the files every audit writes (the output contract in the design notes, section 5)
 const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
 
@@ -39,16 +43,22 @@ function cliHasAudit(): boolean {
 }
 const HAS_AUDIT = cliHasAudit();
 
-let tmp = '';
+// the large cases are generated here, when the tests are collected, so that every one of them is a test
+const tmp = mkdtempSync(join(tmpdir(), 'stopspan-broken-'));
+const made = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], { encoding: 'utf8' });
+if (made.status !== 0) throw new Error(`make-broken --large failed: ${made.stderr}`);
+const largeCases: BrokenCase[] = JSON.parse(readFileSync(join(tmp, 'large', 'cases-large.json'), 'utf8'));
+// the committed list names the first large cases; the generated list holds them all, with their bounds
+const cases: BrokenCase[] = [...committedCases.filter((c) => !largeCases.some((l) => l.name === c.name)), ...largeCases];
 const casePath = (c: BrokenCase) => join(c.large ? join(tmp, 'large') : BROKEN, c.path);
+// GNU time gives the peak resident set of the run; without it the memory bound is not checked
+const GNU_TIME = existsSync('/usr/bin/time') ? '/usr/bin/time' : null;
 
 beforeAll(() => {
-  tmp = mkdtempSync(join(tmpdir(), 'stopspan-broken-'));
-  const r = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], { encoding: 'utf8' });
-  expect(r.status, r.stderr).toBe(0);
+  expect(largeCases.length).toBeGreaterThan(2);
 });
 afterAll(() => {
-  if (tmp) rmSync(tmp, { recursive: true, force: true });
+  rmSync(tmp, { recursive: true, force: true });
 });
 
 type ZipOpen = { zip: yauzl.ZipFile; entries: yauzl.Entry[] } | { error: Error };
@@ -147,6 +157,20 @@ describe('the broken corpus', () => {
     expect(entry!.uncompressedSize / entry!.compressedSize).toBeGreaterThan(900); // deflate tops out near 1032:1 (common practice figure)
   });
 
+  it('has a changed byte that only the CRC-32 gives away, and a table named twice, as yauzl and zlib read them', async () => {
+    // zlib's crc32 of the inflated stop_times.txt against the value its central directory records [C, PKWARE APPNOTE 4.4.7]
+    const path = join(BROKEN, 'crc-mismatch.zip');
+    const opened = await openZip(path);
+    const entry = 'entries' in opened ? opened.entries.find((e) => e.fileName === 'stop_times.txt') : undefined;
+    const bytes = await readEntry(path, 'stop_times.txt');
+    expect(bytes.toString('latin1')).toContain('M1-1,07:01:09'); // still a valid time
+    expect(crc32(bytes)).not.toBe(entry!.crc32);
+    const minimal = readFileSync(join(BROKEN, 'minimal', 'stop_times.txt'));
+    expect(crc32(minimal)).toBe(entry!.crc32);
+    const twice = await openZip(join(BROKEN, 'entry-twice.zip'));
+    expect('entries' in twice && twice.entries.filter((e) => e.fileName === 'stops.txt').length).toBe(2);
+  });
+
   it('has the zip bomb inflating to zeros as declared (first 16 MB checked)', async () => {
     const path = join(tmp, 'large', 'zip-bomb.zip');
     const firstBytes = await new Promise<{ n: number; nonZero: boolean }>((res, rej) => {
@@ -217,8 +241,22 @@ if (!HAS_AUDIT) console.warn(`test/cli/broken.test.ts: ${skipNote}`);
 describe.skipIf(!HAS_AUDIT)(`broken feeds through the CLI${HAS_AUDIT ? '' : ` (${skipNote})`}`, () => {
   it.each(cases.map((c) => [c.name, c] as const))('%s', (_n, c) => {
     const out = join(tmp, `out-${c.name}`);
-    const r = spawnSync(process.execPath, [CLI, 'audit', casePath(c), '--out', out], { encoding: 'utf8', timeout: 110_000 });
+    const args = [CLI, 'audit', casePath(c), '--out', out];
+    const measured = c.maxMB !== undefined && GNU_TIME !== null;
+    const started = Date.now();
+    const r = measured
+      ? spawnSync(GNU_TIME as string, ['-f', 'peak-kb %M', process.execPath, ...args], { encoding: 'utf8', timeout: 110_000 })
+      : spawnSync(process.execPath, args, { encoding: 'utf8', timeout: 110_000 });
+    const seconds = (Date.now() - started) / 1000;
     expect(r.signal, `${c.name} was killed (hung or too slow)`).toBeNull();
+    if (measured) {
+      const m = /peak-kb (\d+)\n?$/.exec(r.stderr);
+      expect(m, r.stderr).not.toBeNull();
+      const peakMB = Number(m![1]) / 1024;
+      r.stderr = r.stderr.slice(0, m!.index).replace(/Command exited with non-zero status \d+\n$/, '');
+      expect(peakMB, `${c.name} peak memory`).toBeLessThan(c.maxMB as number);
+    }
+    if (c.maxSeconds !== undefined) expect(seconds, `${c.name} seconds`).toBeLessThan(c.maxSeconds);
     expect(r.stderr, 'no stack trace').not.toMatch(/^\s+at /m);
     expect(r.status, `${c.name}: ${c.why}\nstderr: ${r.stderr}`).toBe(c.exit);
     if (c.exit === 2) {

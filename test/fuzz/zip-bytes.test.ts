@@ -5,15 +5,17 @@
 // StopspanError; a crash, an uncaught stream error or a hang is a bug. Seeded like mutate-demo.test.ts:
 // STOPSPAN_FUZZ_SEED=<n> replays, STOPSPAN_FUZZ_RUNS=<n> widens the search.
 
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fc from 'fast-check';
+import yazl from 'yazl';
 import { parse } from 'csv-parse/sync';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { isStopspanError } from '../../src/common/errors.js';
+import { openFeed } from '../../src/gtfs/archive.js';
 import { ROOT } from './demoTables.js';
 
 const SEED = process.env.STOPSPAN_FUZZ_SEED !== undefined ? Number(process.env.STOPSPAN_FUZZ_SEED) : 20261201;
@@ -108,5 +110,52 @@ describe('the minimal zip with damaged bytes', () => {
       { seed: SEED, numRuns: RUNS, path: process.env.STOPSPAN_FUZZ_PATH, endOnFailure: true },
     );
     expect(tally.ok + tally.refused).toBeGreaterThan(0);
+  });
+});
+
+/** The minimal feed zipped with stop_times.txt stored, and where that entry's bytes lie in the file. */
+async function storedStopTimes(): Promise<{ zip: Buffer; start: number; length: number }> {
+  const dir = join(ROOT, 'fixtures', 'broken', 'minimal');
+  const zip = new yazl.ZipFile();
+  for (const f of readdirSync(dir).sort()) zip.addBuffer(readFileSync(join(dir, f)), f, { compress: f !== 'stop_times.txt', mtime: new Date(Date.UTC(2026, 10, 1)) });
+  zip.end();
+  const chunks: Buffer[] = [];
+  for await (const c of zip.outputStream) chunks.push(c as Buffer);
+  const buf = Buffer.concat(chunks);
+  const text = readFileSync(join(dir, 'stop_times.txt'));
+  const start = buf.indexOf(text);
+  return { zip: buf, start, length: text.length };
+}
+
+describe('the minimal zip with bytes of a stored table changed', () => {
+  it(`is refused as corrupt whenever up to 4 adjacent bytes of the table differ (seed ${SEED}, ${RUNS} runs)`, async () => {
+    const { zip, start, length } = await storedStopTimes();
+    expect(start).toBeGreaterThan(0);
+    // CRC-32 detects every burst of errors up to 32 bits long, so any such change must be caught [M: a
+    // property of every degree-32 CRC polynomial, common practice in zip and Ethernet checks]
+    await fc.assert(
+      fc.asyncProperty(fc.nat({ max: length - 4 }), fc.array(fc.integer({ min: 1, max: 255 }), { minLength: 1, maxLength: 4 }), async (at, xors) => {
+        const b = Buffer.from(zip);
+        xors.forEach((x, i) => (b[start + at + i] ^= x));
+        const path = join(work, `stored-${k++}.zip`);
+        writeFileSync(path, b);
+        const archive = await openFeed(path);
+        try {
+          let failed: unknown = null;
+          try {
+            for await (const chunk of await archive.open('stop_times.txt')) void chunk;
+          } catch (e) {
+            failed = e;
+          }
+          if (!isStopspanError(failed) || failed.code !== 'feed-unreadable' || !failed.message.includes('CRC-32')) {
+            throw new Error(`changed bytes at ${at} (${JSON.stringify(xors)}) were not refused by the CRC-32: ${String(failed)}`);
+          }
+        } finally {
+          await archive.close();
+          rmSync(path, { force: true });
+        }
+      }),
+      { seed: SEED, numRuns: RUNS, endOnFailure: true },
+    );
   });
 });

@@ -201,6 +201,84 @@ describe('openFeed on zips', () => {
   });
 });
 
+describe('openFeed on zips that lie or are damaged', () => {
+  /** A zip of the basic feed with stop_times.txt stored (not deflated), so its bytes can be edited in place. */
+  async function storedZip(): Promise<Buffer> {
+    const zip = new yazl.ZipFile();
+    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: f !== 'stop_times.txt' });
+    zip.end();
+    const chunks: Buffer[] = [];
+    for await (const c of zip.outputStream) chunks.push(c as Buffer);
+    return Buffer.concat(chunks);
+  }
+
+  it('refuses an entry whose CRC-32 does not match, naming it: one flipped digit is not read as a time', async () => {
+    const buf = await storedZip();
+    const text = readFileSync(join(BASIC, 'stop_times.txt'), 'latin1');
+    const m = /\d\d:\d\d:\d\d/.exec(text.split('\n')[1])!;
+    const at = buf.indexOf(text.slice(0, 200), 0, 'latin1') + text.indexOf('\n') + 1 + m.index + 1;
+    expect(at).toBeGreaterThan(100);
+    buf[at] = buf[at] === 0x30 ? 0x31 : 0x30; // one digit of the first time, still a valid time
+    const e = await refusedOnStopTimes(buf, 'flipped.zip');
+    expect(e.message).toContain('CRC-32');
+  });
+
+  it('refuses an entry as soon as it inflates past a small declared size, not at its end', async () => {
+    const big = Buffer.alloc(24 * 1024 * 1024, 'abcdefghij\n'); // 24 MiB, about 1000:1 deflated
+    const zip = await zipFolder(BASIC, { extra: { 'big.txt': big } });
+    const buf = readFileSync(zip);
+    // uncompressed size: local header +22, central header +24 [C, PKWARE APPNOTE 4.3.7 and 4.3.12]
+    for (const p of headersNaming(buf, 'local', 'big.txt')) buf.writeUInt32LE(1000, p + 22);
+    for (const p of headersNaming(buf, 'central', 'big.txt')) buf.writeUInt32LE(1000, p + 24);
+    const path = join(tmp, 'small-declared.zip');
+    writeFileSync(path, buf);
+    const archive = await openFeed(path);
+    let seen = 0;
+    const e = await rejected(
+      (async () => {
+        for await (const c of await archive.open('big.txt')) seen += (c as Buffer).length;
+      })(),
+    );
+    await archive.close();
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.context.file).toContain('big.txt');
+    expect(e.message).toContain('declares');
+    expect(seen).toBeLessThanOrEqual(1000); // nothing past the declared size reached the reader
+  });
+
+  it('refuses two entries of one table name, naming it', async () => {
+    const zip = new yazl.ZipFile();
+    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f);
+    zip.addBuffer(Buffer.from('stop_id,stop_name,stop_lat,stop_lon\nX,Elsewhere,0,0\n'), 'stops.txt');
+    zip.end();
+    const chunks: Buffer[] = [];
+    for await (const c of zip.outputStream) chunks.push(c as Buffer);
+    const path = join(tmp, 'twice.zip');
+    writeFileSync(path, Buffer.concat(chunks));
+    const e = await rejected(openFeed(path));
+    expect(e.code).toBe('feed-unreadable');
+    expect(e.context.file).toContain('stops.txt');
+    expect(e.message).toContain('two entries');
+  });
+
+  it('refuses an archive listing more entries than the cap before listing them', async () => {
+    const zip = new yazl.ZipFile();
+    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f);
+    for (let k = 0; k < 12_000; k++) zip.addBuffer(Buffer.alloc(0), `e/${k}`, { compress: false });
+    zip.end();
+    const chunks: Buffer[] = [];
+    for await (const c of zip.outputStream) chunks.push(c as Buffer);
+    const path = join(tmp, 'many.zip');
+    writeFileSync(path, Buffer.concat(chunks));
+    const e = await rejected(openFeed(path));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.message).toContain('10000');
+    const w = await openFeed(path, { limits: { maxEntries: 20_000 } });
+    expect(w.has('stops.txt')).toBe(true);
+    await w.close();
+  });
+});
+
 describe('the hash of a feed file', () => {
   it('is SHA-256, the same whether the file is hashed whole or streamed', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'stopspan-hash-'));

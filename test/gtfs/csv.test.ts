@@ -13,7 +13,7 @@ import { describe, expect, it } from 'vitest';
 import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
-import { parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
+import { MAX_FIELD_CHARS, parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
 import { thrown, rejected } from '../helpers/errors.js';
 
 // csv-parse options that state the same rules: BOM dropped, values trimmed outside quotes, blank lines
@@ -434,5 +434,19 @@ describe.skipIf(!HAVE_FEEDS)('the CSV reader agrees with csv-parse on every tabl
     } finally {
       await archive.close();
     }
+  });
+});
+
+describe('the CSV reader caps a value', () => {
+  it(`refusing one of more than ${MAX_FIELD_CHARS} characters, quoted or not, naming file, line and column`, () => {
+    const over = 'n'.repeat(MAX_FIELD_CHARS + 1);
+    for (const field of [over, `"${over}"`]) {
+      const e = thrown(() => parseCsv(`stop_id,stop_name\nS1,Mill Lane\nS2,${field}\n`, { file: 'stops.txt' }));
+      expect(e.code).toBe('feed-too-large');
+      expect(e.context).toMatchObject({ file: 'stops.txt', line: 3, column: 'stop_name' });
+      expect(e.oneLine().length).toBeLessThan(200);
+    }
+    const at = 'n'.repeat(MAX_FIELD_CHARS);
+    expect(parseCsv(`stop_id,stop_name\nS1,${at}\n`, { file: 'stops.txt' }).rows[0][1]).toBe(at);
   });
 });

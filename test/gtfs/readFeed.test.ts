@@ -7,7 +7,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { ProgressEvent } from '../../src/common/progress.js';
-import { readFeed } from '../../src/gtfs/readFeed.js';
+import { readFeed, SHAPE_CAPS } from '../../src/gtfs/readFeed.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { parse as parseStream } from 'csv-parse';
 import type { Feed } from '../../src/gtfs/types.js';
@@ -354,5 +354,22 @@ describe.skipIf(!HAVE_FEEDS)('readFeed on the real feeds', () => {
     expect(feed.date! >= '2026-09-08' && feed.date! <= '2027-01-02').toBe(true);
     expect([1, 2, 3, 4, 5]).toContain(new Date(`${feed.date}T12:00:00Z`).getUTCDay());
     expect(feed.trips.size).toBeGreaterThanOrEqual(8575); // the busiest weekday has at least as many as 2026-10-14
+  });
+});
+
+describe('readFeed caps on shapes', () => {
+  it(`refuses a shape of more than ${SHAPE_CAPS.pointsPerShape} points as too large, naming it, and reads one of that many`, async () => {
+    const pts = (n: number) => {
+      const lines = ['shape_id,shape_pt_lat,shape_pt_lon,shape_pt_sequence'];
+      for (let k = 0; k < n; k++) lines.push(`SH1,${(52.5 + k * 1e-7).toFixed(7)},13.4,${k + 1}`);
+      return lines.join('\n') + '\n';
+    };
+    const e = await rejected(readFeed(feedCopy({ 'shapes.txt': pts(SHAPE_CAPS.pointsPerShape + 1) })));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.context.file).toBe('shapes.txt');
+    expect(e.context.line).toBe(SHAPE_CAPS.pointsPerShape + 2);
+    expect(e.oneLine()).toContain('SH1');
+    const feed = await readFeed(feedCopy({ 'shapes.txt': pts(SHAPE_CAPS.pointsPerShape) }));
+    expect(feed.shapes.get('SH1')!.lat.length).toBe(SHAPE_CAPS.pointsPerShape);
   });
 });

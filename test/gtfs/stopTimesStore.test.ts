@@ -5,7 +5,10 @@
 
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
+import { readCsv } from '../../src/gtfs/csv.js';
+import { PROFILE_CAPS, StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
+import { MAX_STOPS_PER_TRIP, STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesColumns } from '../../src/gtfs/stopTimesRows.js';
+import { rejected } from '../helpers/errors.js';
 import type { TripStopTimes } from '../../src/gtfs/types.js';
 
 type Row = { t: number; stop: number; seq: number; arr: number; dep: number; dist: number; tp: number; ns: number };
@@ -109,5 +112,133 @@ describe('the folded stop_times store', () => {
     expect(of.profile('a')!.profileId).toBe(of.profile('b')!.profileId);
     expect(of.profile('b')!.baseS).toBe(700);
     expect([...of.profile('b')!.profile.arrRel]).toEqual([0, 90]);
+  });
+});
+
+/** Reads stop_times text (given in pieces) through the row reader into a folder; counts the rows handed on. */
+async function readThrough(pieces: Iterable<string>, tripIds: string[]): Promise<{ folder: TripFolder; reader: StopTimesRowReader; handed: number }> {
+  const folder = new TripFolder(tripIds.length);
+  let handed = 0;
+  const sink = {
+    push(t: number, stop: number, seq: number, arr: number, dep: number, dist: number, tp: number, ns: number) {
+      handed++;
+      folder.push(t, stop, seq, arr, dep, dist, tp, ns);
+    },
+  };
+  const stopIndex = new Map(Array.from({ length: 9 }, (_, k) => [`S${k + 1}`, k] as [string, number]));
+  const reader = new StopTimesRowReader({ tripIdx: new Map(tripIds.map((t, k) => [t, k])), stopIndex, station: new Uint8Array(9) }, sink);
+  let cols = {} as StopTimesColumns;
+  await readCsv(pieces, {
+    file: 'stop_times.txt',
+    onHeader: (h) => {
+      cols = Object.fromEntries([...STOP_TIMES_REQUIRED, ...STOP_TIMES_OPTIONAL].map((c) => [c, h.indexOf(c)])) as StopTimesColumns;
+    },
+    onRow: (row) => reader.read(row, cols),
+    groupKey: { column: 'trip_id', keep: (id) => reader.startTrip(id) },
+  });
+  folder.finish();
+  return { folder, reader, handed };
+}
+
+describe('the stop_times row reader on floods of rows', () => {
+  it('drops a row repeated millions of times as it comes, counting it, so nothing grows with the flood', async () => {
+    const row = 'T1,08:00:00,08:00:00,S1,1\n';
+    const piece = row.repeat(Math.floor((1 << 20) / row.length)); // about 40 000 rows a piece
+    function* pieces() {
+      yield 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n';
+      for (let k = 0; k < 75; k++) yield piece; // about 3 million rows
+      yield 'T1,08:05:00,08:05:00,S2,2\n';
+    }
+    const n = 75 * (piece.length / row.length);
+    const { folder, reader, handed } = await readThrough(pieces(), ['T1']);
+    expect(handed).toBe(2); // the first row of the repeated value and the next stop, nothing else held
+    expect(reader.repeated + folder.repeated).toBe(n - 1);
+    const p = folder.interner.profiles[folder.profileOfTrip[0]];
+    expect(Array.from(p.stopIdx)).toEqual([0, 1]);
+    expect(Array.from(p.depRel)).toEqual([0, 300]);
+  });
+
+  it('folds random tables with floods of repeated rows as the rows without the repeats (seeded)', async () => {
+    const hms = (x: number) => `${String(Math.floor(x / 3600)).padStart(2, '0')}:${String(Math.floor(x / 60) % 60).padStart(2, '0')}:${String(x % 60).padStart(2, '0')}`;
+    const floodRow = fc.record({ t: fc.nat(3), stop: fc.nat(8), seq: fc.integer({ min: 0, max: 6 }), arr: fc.integer({ min: 0, max: 90_000 }), times: fc.oneof(fc.constant(1), fc.integer({ min: 2, max: 400 })) });
+    await fc.assert(
+      fc.asyncProperty(fc.array(floodRow, { maxLength: 30 }), fc.boolean(), async (raw, grouped) => {
+        const runs = grouped ? [...raw].sort((a, b) => a.t - b.t) : raw;
+        const rows: Row[] = runs.flatMap((r) => Array.from({ length: r.times }, () => ({ t: r.t, stop: r.stop, seq: r.seq, arr: r.arr, dep: r.arr, dist: NaN, tp: 1, ns: 0 })));
+        const text = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n' + rows.map((r) => `T${r.t},${hms(r.arr)},${hms(r.arr)},S${r.stop + 1},${r.seq}\n`).join('');
+        const ids = ['T0', 'T1', 'T2', 'T3'];
+        const { folder, reader, handed } = await readThrough([text], ids);
+        const want = reference(rows, 4);
+        expect(reader.repeated + folder.repeated).toBe(want.dropped);
+        expect(handed).toBeLessThanOrEqual(runs.length); // a flood reaches the folder as one row
+        const store = new StopTimesStore(ids, new Map(ids.map((id, k) => [id, k])), folder.profileOfTrip, folder.baseOfTrip, folder.interner.profiles);
+        expect([...store.keys()].sort()).toEqual([...want.byTrip.keys()].map((k) => `T${k.slice(1)}`).sort());
+        for (const [id, mine] of want.byTrip) expect(plain(store.get(id)!)).toEqual(mine.map(({ t: _t, ...r }) => r));
+      }),
+      { numRuns: 200, seed: 20261203 },
+    );
+  });
+
+  it('keeps the first row of a repeated stop_sequence whether repeats are adjacent or not, as sorting did', async () => {
+    const text = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nT1,08:00:00,08:00:00,S1,1\nT1,09:00:00,09:00:00,S2,1\nT1,08:05:00,08:05:00,S2,2\nT1,10:00:00,10:00:00,S1,1\n';
+    const { folder, reader } = await readThrough([text], ['T1']);
+    expect(reader.repeated + folder.repeated).toBe(2);
+    const p = folder.interner.profiles[folder.profileOfTrip[0]];
+    expect(Array.from(p.stopIdx)).toEqual([0, 1]);
+    expect(folder.baseOfTrip[0]).toBe(8 * 3600);
+  });
+
+  it('refuses a trip of more rows than the cap as too large, naming the line and trip', async () => {
+    const rows = Array.from({ length: MAX_STOPS_PER_TRIP + 1 }, (_, k) => `LONG,,,S${1 + (k % 2)},${k + 1}`);
+    const text = `trip_id,arrival_time,departure_time,stop_id,stop_sequence\n${rows.join('\n')}\n`;
+    const e = await rejected(readThrough([text], ['LONG']));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.context.line).toBe(MAX_STOPS_PER_TRIP + 2);
+    expect(e.oneLine()).toContain('LONG');
+    // one row fewer is read
+    const ok = await readThrough([text.slice(0, text.lastIndexOf('LONG'))], ['LONG']);
+    expect(ok.handed).toBe(MAX_STOPS_PER_TRIP);
+  });
+});
+
+describe('the caps on folded stop_times', () => {
+  const refused = (f: () => void) => {
+    try {
+      f();
+    } catch (e) {
+      return e as { code?: string; message?: string };
+    }
+    return {};
+  };
+
+  it(`refuses more than ${PROFILE_CAPS.stopLists} distinct stop lists, and holds that many`, () => {
+    const n = PROFILE_CAPS.stopLists;
+    const fill = (folder: TripFolder, lists: number) => {
+      for (let t = 0; t < lists; t++) {
+        folder.push(t, t, 1, 3600, 3600, NaN, 1, 0);
+        folder.push(t, t + 1, 2, 3660, 3660, NaN, 1, 0);
+      }
+      folder.finish();
+    };
+    const ok = new TripFolder(n);
+    fill(ok, n);
+    expect(ok.interner.profiles).toHaveLength(n);
+    const e = refused(() => fill(new TripFolder(n + 1), n + 1));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.message).toContain('stop lists');
+  });
+
+  it(`refuses more than ${PROFILE_CAPS.profiles} distinct runs of rows`, () => {
+    // one stop list, every trip with its own running time: a new profile each
+    const folder = new TripFolder(PROFILE_CAPS.profiles + 1);
+    const e = refused(() => {
+      for (let t = 0; t <= PROFILE_CAPS.profiles; t++) {
+        folder.push(t, 0, 1, 0, 0, NaN, 1, 0);
+        folder.push(t, 1, 2, 60 + t, 60 + t, NaN, 1, 0);
+      }
+      folder.finish();
+    });
+    expect(e.code).toBe('feed-too-large');
+    expect(folder.interner.profiles).toHaveLength(PROFILE_CAPS.profiles);
   });
 });

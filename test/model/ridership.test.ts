@@ -4,7 +4,10 @@ import { describe, expect, it } from 'vitest';
 import { parse as csvParse } from 'csv-parse/sync';
 import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
-import { parseRidership } from '../../src/model/ridership.js';
+import { closeSync, mkdtempSync, openSync, rmSync, statSync, truncateSync, writeSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { loadRidership, MAX_RIDERSHIP_ROWS, parseRidership } from '../../src/model/ridership.js';
 import { ridershipDemand } from '../../src/model/demand.js';
 import { handmadeNetwork } from '../audit/handmade.js';
 
@@ -84,5 +87,31 @@ describe('ridershipDemand', () => {
     expect(v1.alightPerDay[11]).toBeCloseTo(100, 9);
     expect(v1.meanTripLengthM).toBeCloseTo(1700, 9);
     expect(w.list().map((x) => x.code).sort()).toEqual(['ridership-stop-missing', 'ridership-unbalanced']);
+  });
+});
+
+describe('loadRidership on a large file', () => {
+  it(`reads a file in pieces and refuses one of more than ${MAX_RIDERSHIP_ROWS} data rows as too large`, () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-ridership-'));
+    try {
+      // rows of stops the feed lacks: skipped and counted, nothing about them remembered
+      const row = 'elsewhere,V1,1,1\n';
+      const path = join(dir, 'r.csv');
+      const fd = openSync(path, 'w');
+      writeSync(fd, 'stop_id,route_id,boardings,alightings\nv1-0,V1,3,1\n');
+      const block = row.repeat(100_000);
+      for (let k = 0; k < MAX_RIDERSHIP_ROWS / 100_000; k++) writeSync(fd, block);
+      closeSync(fd);
+      const w = new WarningSink();
+      expect(() => loadRidership(path, feed, { warnings: w })).toThrow(/more than 1000000 data rows/);
+      // one row fewer reads, the unknown stops counted
+      truncateSync(path, statSync(path).size - row.length);
+      const w2 = new WarningSink();
+      const r = loadRidership(path, feed, { warnings: w2 });
+      expect(r.rows).toHaveLength(1);
+      expect(w2.list().find((x) => x.code === 'ridership-unknown-stop')?.count).toBe(MAX_RIDERSHIP_ROWS - 1);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

@@ -2,7 +2,7 @@
 // the order of preference for distances, non-passenger stops, run times and interpolated times.
 
 import { describe, it, expect } from 'vitest';
-import { buildPatterns } from '../../src/network/buildPatterns.js';
+import { buildPatterns, MAX_PATTERN_STOPS, MAX_PATTERNS } from '../../src/network/buildPatterns.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { StopspanError } from '../../src/common/errors.js';
 import { haversineM } from '../../src/network/geodesy.js';
@@ -300,5 +300,53 @@ describe('buildPatterns: options and errors', () => {
     const events: number[] = [];
     buildPatterns(feed, { onProgress: (e) => events.push(e.done!) });
     expect(events).toEqual([2]);
+  });
+});
+
+describe('buildPatterns: caps on patterns', () => {
+  // a grid of stops 50 m apart and two-stop trips between distinct pairs: each trip its own pattern
+  function twoStopFeed(trips: number) {
+    const side = Math.ceil(Math.sqrt(trips)) + 1;
+    const stops: Record<string, [number, number]> = {};
+    for (let k = 0; k < side; k++) stops[`P${k}`] = [(k % 40) * 50, Math.floor(k / 40) * 50];
+    const specs: TripSpec[] = [];
+    for (let a = 0; a < side && specs.length < trips; a++) {
+      for (let b = 0; b < side && specs.length < trips; b++) {
+        if (a !== b) specs.push({ id: `t${specs.length}`, times: [{ stop: `P${a}`, arr: 3600 }, { stop: `P${b}`, arr: 3720 }] });
+      }
+    }
+    return handFeed({ stops, trips: specs });
+  }
+
+  it(`refuses more than ${MAX_PATTERNS} patterns as too large, and measures that many`, () => {
+    const over = twoStopFeed(MAX_PATTERNS + 1);
+    let e: unknown;
+    try {
+      buildPatterns(over);
+    } catch (x) {
+      e = x;
+    }
+    expect(e).toBeInstanceOf(StopspanError);
+    expect((e as StopspanError).code).toBe('feed-too-large');
+    expect((e as StopspanError).message).toContain('--routes');
+    expect(buildPatterns(twoStopFeed(MAX_PATTERNS)).patterns).toHaveLength(MAX_PATTERNS);
+  });
+
+  it(`refuses more than ${MAX_PATTERN_STOPS} stops over all patterns`, () => {
+    // eleven trips of 10 000 stops (the cap per trip), each its own pattern: 110 000 pattern stops
+    const stops: Record<string, [number, number]> = {};
+    for (let k = 0; k < 10_011; k++) stops[`Q${k}`] = [k * 100, 0];
+    const specs: TripSpec[] = Array.from({ length: 11 }, (_, j) => ({
+      id: `long${j}`,
+      times: Array.from({ length: 10_000 }, (_, q) => ({ stop: `Q${q + j}`, arr: q === 0 ? 3600 : q === 9_999 ? 3600 + 20_000 : null })),
+    }));
+    let e: unknown;
+    try {
+      buildPatterns(handFeed({ stops, trips: specs }));
+    } catch (x) {
+      e = x;
+    }
+    expect((e as StopspanError).code).toBe('feed-too-large');
+    expect((e as StopspanError).message).toContain(String(MAX_PATTERN_STOPS));
   });
 });
