@@ -4,9 +4,17 @@
 // so the walk and ride cost of ANY set of served stops (existing ones removed, new ones added) can be
 // computed from prefix integrals. The optimiser, the verdicts and the what-if engine share it, so a
 // stop's removal figure is exactly the change in the optimiser's objective.
+//
+// Riders passing a served stop are those with their origin before its catchment and their destination
+// after it. With assumed demand the pair model behind the counts gives that number exactly (its kernel is
+// a product of a term of the origin and one of the destination, so two decayed prefix sums hold it).
+// Counts from a ridership file hold only boardings and alightings, not who rides where: there riders on
+// board are taken to be alike, so those alighting inside a catchment come from the riders already on
+// board and those boarding inside it in proportion to their numbers.
 
 import { stoppingProbability } from './stopping.js';
 import type { StoppingModel } from './params.js';
+import type { PairModel } from './demand.js';
 
 export interface CorridorInput {
   posM: number[]; // distance along the pattern of each (passenger) stop, non-decreasing
@@ -16,6 +24,8 @@ export interface CorridorInput {
   /** Riders come from at most this far from their stop (default: no limit); a long gap, such as a bridge,
    * then holds no trip ends in its middle. */
   catchmentHalfMaxM?: number;
+  /** The pair model the counts were built from (assumed demand), for exact counts of riders passing a stop. */
+  pairs?: PairModel;
 }
 
 export interface CostSettings {
@@ -50,11 +60,14 @@ export class Corridor {
   private readonly cumA: Float64Array;
   private readonly cumM: Float64Array; // prefix of trip ends times their mean position
   private readonly acc = new Float64Array(3); // what cumulative() found: boardings, alightings, moment
+  private readonly pairs: PairModel | null;
+  private readonly fwd: Float64Array | null = null; // pairs: sum over tiles i < t of len_i e^{-(x_t - x_i)/decay}
+  private readonly bwd: Float64Array | null = null; // pairs: sum over tiles j > t of len_j e^{-(x_j - x_t)/decay}
   /** What catchmentInto() found last. */
   catchEndsPerDay = 0;
   catchThroughPerDay = 0;
 
-  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity }: CorridorInput) {
+  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity, pairs }: CorridorInput) {
     const n = posM.length;
     if (n < 2) throw new RangeError(`Corridor: expected at least 2 stops, got ${n}`);
     if (boardPerDay.length !== n || alightPerDay.length !== n) throw new RangeError('Corridor: demand arrays must match the stops');
@@ -77,6 +90,45 @@ export class Corridor {
       this.cumA[j + 1] = this.cumA[j] + alightPerDay[j];
       this.cumM[j + 1] = this.cumM[j] + (e * (this.lo[j] + this.hi[j])) / 2;
     }
+    this.pairs = pairs ?? null;
+    if (pairs) {
+      const fwd = new Float64Array(n);
+      const bwd = new Float64Array(n);
+      const decay = (d: number) => (Number.isFinite(pairs.decayM) ? Math.exp(-d / pairs.decayM) : 1);
+      for (let t = 1; t < n; t++) fwd[t] = decay(posM[t] - posM[t - 1]) * (fwd[t - 1] + this.hi[t - 1] - this.lo[t - 1]);
+      for (let t = n - 2; t >= 0; t--) bwd[t] = decay(posM[t + 1] - posM[t]) * (bwd[t + 1] + this.hi[t + 1] - this.lo[t + 1]);
+      this.fwd = fwd;
+      this.bwd = bwd;
+    }
+  }
+
+  /** The last tile whose lower edge is <= y, or -1. */
+  private tileAt(y: number): number {
+    if (y < this.lo[0]) return -1;
+    let l = 0;
+    let h = this.n - 1;
+    while (l < h) {
+      const mid = (l + h + 1) >> 1;
+      if (this.lo[mid] <= y) l = mid;
+      else h = mid - 1;
+    }
+    return l;
+  }
+
+  /** Pair model: riders per day with their origin before l and their destination after r (l <= r). */
+  private pairsAcross(l: number, r: number): number {
+    const { decayM, perM2 } = this.pairs!;
+    const fwd = this.fwd!;
+    const bwd = this.bwd!;
+    const tl = this.tileAt(l);
+    if (tl < 0) return 0;
+    const tr = Math.max(tl, this.tileAt(r));
+    const a = Math.min(Math.max(l - this.lo[tl], 0), this.hi[tl] - this.lo[tl]); // the part of tile tl before l
+    const b = Math.min(Math.max(this.hi[tr] - r, 0), this.hi[tr] - this.lo[tr]); // the part of tile tr after r
+    // riders within one tile ride nowhere: a pair needs two tiles
+    if (tl === tr) return perM2 * (fwd[tl] * (bwd[tl] + b) + a * bwd[tl]);
+    const between = Number.isFinite(decayM) ? Math.exp(-(this.posM[tr] - this.posM[tl]) / decayM) : 1;
+    return perM2 * (fwd[tl] + a) * (bwd[tr] + b) * between;
   }
 
   get startM(): number {
@@ -199,9 +251,40 @@ export class Corridor {
     const la = acc[1];
     this.cumulative(r);
     const ends = acc[0] + acc[1] - lb - la;
-    const alightIn = acc[1] - la;
     this.catchEndsPerDay = ends;
-    this.catchThroughPerDay = Math.max(0, lb - la - alightIn);
+    if (this.pairs) {
+      this.catchThroughPerDay = this.pairsAcross(l, r);
+      return;
+    }
+    this.catchThroughPerDay = this.onBoardPassing(l, r, Math.max(0, lb - la));
+  }
+
+  /**
+   * Counts only: of the riders on board at l, those still on board at r. Tile by tile (the part of each
+   * inside [l, r]), those alighting come from everyone on board then, the riders on board at l in
+   * proportion to their share; riders boarding in a tile alight in a later one. A catchment of one whole
+   * tile (a stop served between its own neighbours) gives on board minus alighting, as it must.
+   */
+  private onBoardPassing(l: number, r: number, onBoardAtL: number): number {
+    const t0 = Math.max(0, this.tileAt(l));
+    const t1 = this.tileAt(r);
+    let cohort = onBoardAtL;
+    let carried = onBoardAtL;
+    for (let t = t0; t <= t1 && cohort > 0; t++) {
+      const part = this.fracAt(t, r) - this.fracAt(t, l);
+      if (!(part > 0)) continue;
+      const alight = this.alightPerDay[t] * part;
+      if (carried > 0) cohort -= Math.min(cohort, (alight * cohort) / carried);
+      carried = Math.max(0, carried - alight) + this.boardPerDay[t] * part;
+    }
+    return Math.max(0, cohort);
+  }
+
+  /** The share of tile t's trip ends before y. */
+  private fracAt(t: number, y: number): number {
+    const width = this.hi[t] - this.lo[t];
+    if (width > 1e-9) return Math.min(1, Math.max(0, (y - this.lo[t]) / width));
+    return y >= this.lo[t] ? 1 : 0;
   }
 }
 
