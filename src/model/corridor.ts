@@ -6,15 +6,14 @@
 // stop's removal figure is exactly the change in the optimiser's objective.
 //
 // Riders passing a served stop are those with their origin before its catchment and their destination
-// after it. With assumed demand the pair model behind the counts gives that number exactly (its kernel is
-// a product of a term of the origin and one of the destination, so two decayed prefix sums hold it).
-// Counts from a ridership file hold only boardings and alightings, not who rides where: there riders on
-// board are taken to be alike, so those alighting inside a catchment come from the riders already on
-// board and those boarding inside it in proportion to their numbers.
+// after it. Boardings and alightings do not say who rides where, so riders on board are taken to be alike:
+// those alighting inside a catchment that spans several of today's stops come from the riders already on
+// board and those boarding inside it in proportion to their numbers. That rule is exact when the counts
+// come from trips whose lengths have no memory (exponential or uniform pairs, as the assumed ones: a test
+// checks it against an enumeration of pairs); for counts from real riders it is an approximation.
 
 import { stoppingProbability } from './stopping.js';
 import type { StoppingModel } from './params.js';
-import type { PairModel } from './demand.js';
 
 export interface CorridorInput {
   posM: number[]; // distance along the pattern of each (passenger) stop, non-decreasing
@@ -24,8 +23,6 @@ export interface CorridorInput {
   /** Riders come from at most this far from their stop (default: no limit); a long gap, such as a bridge,
    * then holds no trip ends in its middle. */
   catchmentHalfMaxM?: number;
-  /** The pair model the counts were built from (assumed demand), for exact counts of riders passing a stop. */
-  pairs?: PairModel;
 }
 
 export interface CostSettings {
@@ -60,14 +57,11 @@ export class Corridor {
   private readonly cumA: Float64Array;
   private readonly cumM: Float64Array; // prefix of trip ends times their mean position
   private readonly acc = new Float64Array(3); // what cumulative() found: boardings, alightings, moment
-  private readonly pairs: PairModel | null;
-  private readonly fwd: Float64Array | null = null; // pairs: sum over tiles i < t of len_i e^{-(x_t - x_i)/decay}
-  private readonly bwd: Float64Array | null = null; // pairs: sum over tiles j > t of len_j e^{-(x_j - x_t)/decay}
   /** What catchmentInto() found last. */
   catchEndsPerDay = 0;
   catchThroughPerDay = 0;
 
-  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity, pairs }: CorridorInput) {
+  constructor({ posM, boardPerDay, alightPerDay, tripsPerDay, catchmentHalfMaxM = Infinity }: CorridorInput) {
     const n = posM.length;
     if (n < 2) throw new RangeError(`Corridor: expected at least 2 stops, got ${n}`);
     if (boardPerDay.length !== n || alightPerDay.length !== n) throw new RangeError('Corridor: demand arrays must match the stops');
@@ -90,16 +84,6 @@ export class Corridor {
       this.cumA[j + 1] = this.cumA[j] + alightPerDay[j];
       this.cumM[j + 1] = this.cumM[j] + (e * (this.lo[j] + this.hi[j])) / 2;
     }
-    this.pairs = pairs ?? null;
-    if (pairs) {
-      const fwd = new Float64Array(n);
-      const bwd = new Float64Array(n);
-      const decay = (d: number) => (Number.isFinite(pairs.decayM) ? Math.exp(-d / pairs.decayM) : 1);
-      for (let t = 1; t < n; t++) fwd[t] = decay(posM[t] - posM[t - 1]) * (fwd[t - 1] + this.hi[t - 1] - this.lo[t - 1]);
-      for (let t = n - 2; t >= 0; t--) bwd[t] = decay(posM[t + 1] - posM[t]) * (bwd[t + 1] + this.hi[t + 1] - this.lo[t + 1]);
-      this.fwd = fwd;
-      this.bwd = bwd;
-    }
   }
 
   /** The last tile whose lower edge is <= y, or -1. */
@@ -113,22 +97,6 @@ export class Corridor {
       else h = mid - 1;
     }
     return l;
-  }
-
-  /** Pair model: riders per day with their origin before l and their destination after r (l <= r). */
-  private pairsAcross(l: number, r: number): number {
-    const { decayM, perM2 } = this.pairs!;
-    const fwd = this.fwd!;
-    const bwd = this.bwd!;
-    const tl = this.tileAt(l);
-    if (tl < 0) return 0;
-    const tr = Math.max(tl, this.tileAt(r));
-    const a = Math.min(Math.max(l - this.lo[tl], 0), this.hi[tl] - this.lo[tl]); // the part of tile tl before l
-    const b = Math.min(Math.max(this.hi[tr] - r, 0), this.hi[tr] - this.lo[tr]); // the part of tile tr after r
-    // riders within one tile ride nowhere: a pair needs two tiles
-    if (tl === tr) return perM2 * (fwd[tl] * (bwd[tl] + b) + a * bwd[tl]);
-    const between = Number.isFinite(decayM) ? Math.exp(-(this.posM[tr] - this.posM[tl]) / decayM) : 1;
-    return perM2 * (fwd[tl] + a) * (bwd[tr] + b) * between;
   }
 
   get startM(): number {
@@ -151,15 +119,7 @@ export class Corridor {
       acc[2] = 0;
       return;
     }
-    // last tile whose lower edge is <= y
-    let l = 0;
-    let h = this.n - 1;
-    while (l < h) {
-      const mid = (l + h + 1) >> 1;
-      if (this.lo[mid] <= y) l = mid;
-      else h = mid - 1;
-    }
-    const t = l;
+    const t = this.tileAt(y);
     const width = this.hi[t] - this.lo[t];
     const frac = width > 1e-9 ? Math.min(1, Math.max(0, (y - this.lo[t]) / width)) : 1;
     const bt = this.boardPerDay[t] * frac;
@@ -252,15 +212,11 @@ export class Corridor {
     this.cumulative(r);
     const ends = acc[0] + acc[1] - lb - la;
     this.catchEndsPerDay = ends;
-    if (this.pairs) {
-      this.catchThroughPerDay = this.pairsAcross(l, r);
-      return;
-    }
     this.catchThroughPerDay = this.onBoardPassing(l, r, Math.max(0, lb - la));
   }
 
   /**
-   * Counts only: of the riders on board at l, those still on board at r. Tile by tile (the part of each
+   * Of the riders on board at l, those still on board at r. Tile by tile (the part of each
    * inside [l, r]), those alighting come from everyone on board then, the riders on board at l in
    * proportion to their share; riders boarding in a tile alight in a later one. A catchment of one whole
    * tile (a stop served between its own neighbours) gives on board minus alighting, as it must.

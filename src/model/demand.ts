@@ -8,9 +8,9 @@
 // and says so. Trip lengths then do not grow with the route.
 //
 // The exponential is chosen for what it makes exact and cheap: riders on board at a point have the same
-// remaining trip length wherever they boarded (it has no memory), and the number of riders between any two
-// stretches of line is a product of two sums, so the corridor counts the riders passing a stop exactly in
-// O(log n) (Corridor's pairs).
+// remaining trip length wherever they boarded (it has no memory), so the corridor's rule for riders
+// passing a stop (riders on board taken alike) is exact on these counts, and the sums behind them take
+// O(n) per pattern.
 
 import type { WarningSink } from '../common/warnings.js';
 import type { DemandSource } from '../audit/types.js';
@@ -57,7 +57,7 @@ export interface PatternDemand {
   meanTripLengthM: number; // of the load profile: passenger-metres over boardings
   ridersPerDay: number;
   demandSource: DemandSource;
-  /** Assumed demand only: the pair model behind the counts (the corridor counts riders passing a stop from it). */
+  /** Assumed demand only: the trips behind the counts (what the corridor's rule for riders passing a stop takes them to be). */
   pairs?: PairModel;
   /** Assumed demand only: the mean trip asked for, and whether the pattern is too short to hold it. */
   askedTripLengthM?: number;

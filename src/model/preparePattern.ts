@@ -61,7 +61,7 @@ export function preparePattern(
   const routeType = route?.type ?? 3;
   const demand = demandOf(modelStops, posM);
   const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
-  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2, pairs: demand.pairs });
+  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2 });
   if (demand.tooShortForTrip) {
     warnings.add(
       'pattern-short-for-trip',

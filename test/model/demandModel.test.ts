@@ -89,13 +89,14 @@ describe('riders passing a stop, the objective and removals against an exact enu
         if (meanTripM > 1e6) expect(decay).toBe(Infinity);
         const kernel = (dist: number) => (Number.isFinite(decay) ? Math.exp(-dist / decay) : 1);
         const e = enumerate(n, d.ridersPerDay, kernel);
-        const c = new Corridor({ posM, boardPerDay: d.boardPerDay, alightPerDay: d.alightPerDay, tripsPerDay: trips, pairs: d.pairs });
-        // riders passing each served stop, for random served sets (catchments over several of today's stops)
+        const c = new Corridor({ posM, boardPerDay: d.boardPerDay, alightPerDay: d.alightPerDay, tripsPerDay: trips });
+        // riders passing each served stop, for random served sets (catchments over several of today's stops):
+        // the corridor sees boardings and alightings alone and takes riders on board to be alike, which is
+        // exact for trip lengths without memory
         const served = randomServed(n, rand);
         for (const [s, want] of e.through(served)) {
           const t = served.indexOf(s);
-          const got = c.catchment(posM[served[t - 1]], posM[s], posM[served[t + 1]]).throughPerDay;
-          expect(got).toBeCloseTo(want, 6);
+          expect(c.catchment(posM[served[t - 1]], posM[s], posM[served[t + 1]]).throughPerDay).toBeCloseTo(want, 6);
         }
         // the optimiser's objective, for the same set
         expect(servedSetCostS(c, served, always)).toBeCloseTo(e.cost(served, always), 4);
@@ -110,7 +111,7 @@ describe('riders passing a stop, the objective and removals against an exact enu
     });
   }
 
-  it('counts, without pairs: a stop served between its own neighbours passes those on board less those alighting', () => {
+  it('a stop served between its own neighbours passes those on board less those alighting', () => {
     const posM = [0, 100, 200, 300, 400];
     const c = new Corridor({ posM, boardPerDay: [40, 30, 20, 10, 0], alightPerDay: [0, 10, 20, 30, 40], tripsPerDay: 10 });
     // on board arriving at stop 2: 40 + 30 - 10 = 60; 20 alight there
