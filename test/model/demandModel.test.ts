@@ -2,6 +2,9 @@
 // an exact enumeration of origin-destination pairs on small corridors (riders passing each served stop,
 // the optimiser's objective, each removal's net), the square-root law on a long uniform corridor, and the
 // cited mean bus trip length.
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { Corridor, servedSetCostS, type CostSettings } from '../../src/model/corridor.js';
 import { assumedDemand, typicalTripLengthM } from '../../src/model/demand.js';
@@ -158,6 +161,30 @@ describe('the square-root law on a long uniform corridor', () => {
       return runAudit(feed, patterns, { params: { mean_trip_length_m: 3000, cruise_speed_mps: 11.176, stopping_model: 'always' } }).patterns.find((x) => x.patternId === 'V1:0:1')!;
     };
     expect(at(20).optimalSpacingM / at(10).optimalSpacingM).toBeCloseTo(1, 3);
+  });
+});
+
+describe('a ridership file and mean_trip_length_m', () => {
+  it('takes trip lengths from the counts, says the parameter was not used, and keeps the optimum to the load profile', () => {
+    const distM = Array.from({ length: 21 }, (_, k) => k * 150);
+    const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 40, sharedAt: 10 });
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-trips-'));
+    try {
+      const file = join(dir, 'ridership.csv');
+      // every rider of V1 boards at the first stop and alights at the last: a mean trip of 3 km
+      const rows = ['stop_id,route_id,boardings,alightings', 'v1-0,V1,400,0', 'v1-20,V1,0,400'];
+      for (let k = 1; k < 20; k++) rows.push(`v1-${k},V1,0,0`);
+      writeFileSync(file, rows.join('\n') + '\n');
+      const params = { mean_trip_length_m: 500, stopping_model: 'always', cruise_speed_mps: 11.176 };
+      const r = runAudit(feed, patterns, { params, ridership: file, generatedAt: '2026-10-14T00:00:00Z' });
+      const p = r.patterns.find((x) => x.patternId === 'V1:0:1')!;
+      expect(p.meanTripLengthM).toBeCloseTo(3000, 6);
+      expect(r.warnings.find((w) => w.code === 'mean-trip-from-counts')?.count).toBe(1);
+      // [C] the square-root law with the load profile's mean trip, every stop served
+      expect(p.optimalSpacingM).toBeCloseTo(Math.sqrt((2 * 1.2 * p.lostTimePerStopS * 3000) / 2), 6);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
 
