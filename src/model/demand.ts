@@ -117,19 +117,28 @@ export function assumedDemand(
   const longest = meanOf(Infinity);
   const tooShortForTrip = longest < meanTripM * 0.99;
   if (longest > meanTripM && meanTripM > 0) {
-    // the mean grows with the decay (an exponential family): bisect on its logarithm
-    let lo = Math.log(meanTripM / 1000);
-    let hi = Math.log(meanTripM * 1000);
-    while (meanOf(Math.exp(hi)) < meanTripM && hi < 700) hi += 5;
-    for (let it = 0; it < 80 && hi - lo > 1e-9; it++) {
-      const mid = (lo + hi) / 2;
-      if (meanOf(Math.exp(mid)) < meanTripM) lo = mid;
-      else hi = mid;
+    // the mean grows with the decay (an exponential family): bisect on its logarithm. The decay stays at
+    // least a fiftieth of the longest gap between neighbouring stops, so no neighbours' riders vanish in
+    // underflow; where even that decay gives trips longer than asked (stops too far apart for such short
+    // trips), it is used: the shortest trips the pattern holds.
+    let maxGapM = 0;
+    for (let j = 1; j < n; j++) maxGapM = Math.max(maxGapM, posM[j] - posM[j - 1]);
+    const lowest = Math.max(meanTripM / 1000, maxGapM / 50);
+    if (meanOf(lowest) >= meanTripM) decayM = lowest;
+    else {
+      let lo = Math.log(lowest);
+      let hi = Math.log(Math.max(meanTripM, lowest) * 1000);
+      while (meanOf(Math.exp(hi)) < meanTripM && hi < 700) hi += 5;
+      for (let it = 0; it < 80 && hi - lo > 1e-9; it++) {
+        const mid = (lo + hi) / 2;
+        if (meanOf(Math.exp(mid)) < meanTripM) lo = mid;
+        else hi = mid;
+      }
+      decayM = Math.exp((lo + hi) / 2);
     }
-    decayM = Math.exp((lo + hi) / 2);
   }
   const { weight } = pairSums(posM, len, decayM);
-  const c = weight > 0 ? riders / weight : 0;
+  const c = weight > 0 && Number.isFinite(riders / weight) ? riders / weight : 0;
   // boardings: c len_i sum_{j>i} len_j K; alightings: c len_j sum_{i<j} len_i K
   const boardPerDay: number[] = new Array(n).fill(0);
   const alightPerDay: number[] = new Array(n).fill(0);

@@ -164,6 +164,19 @@ describe('the square-root law on a long uniform corridor', () => {
   });
 });
 
+describe('assumed demand where stops are far apart for the trips asked', () => {
+  it('keeps every rider: the shortest trips the pattern holds, never none or infinitely many', () => {
+    for (const [posM, meanTripM] of [[[0, 44_215], 39_000], [[0, 5000, 12_000], 3000], [[0, 50, 30_000, 30_050], 200]] as const) {
+      const d = assumedDemand('far', [...posM], 10, { boardingsPerTripKm: 3, catchmentHalfMaxM: 400, meanTripM });
+      const D = posM[posM.length - 1] - posM[0];
+      expect(d.ridersPerDay).toBeCloseTo(3 * (D / 1000) * 10, 6);
+      expect(Number.isFinite(d.meanTripLengthM)).toBe(true);
+      expect(d.meanTripLengthM).toBeGreaterThan(0);
+      for (const x of [...d.boardPerDay, ...d.alightPerDay]) expect(Number.isFinite(x) && x >= 0).toBe(true);
+    }
+  });
+});
+
 describe('a ridership file and mean_trip_length_m', () => {
   it('takes trip lengths from the counts, says the parameter was not used, and keeps the optimum to the load profile', () => {
     const distM = Array.from({ length: 21 }, (_, k) => k * 150);
