@@ -7,7 +7,7 @@ import { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
-import { assumedDemand, ridershipDemand, type PatternDemand } from '../model/demand.js';
+import { assumedDemand, ridershipDemand, typicalTripLengthM, type PatternDemand } from '../model/demand.js';
 import { normalizeParams, type ModelParams, type NormalizedParams } from '../model/params.js';
 import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
 import { loadRidership } from '../model/ridership.js';
@@ -53,6 +53,9 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   if (ridership !== undefined) {
     const rows = loadRidership(ridership, feed, { warnings });
     observedDemand = ridershipDemand(rows, layouts.filter((l) => l.modelStops.length >= 2), { warnings });
+    if (params.mean_trip_length_m !== null) {
+      warnings.add('mean-trip-from-counts', `mean_trip_length_m ${params.mean_trip_length_m} m not used: with a ridership file every pattern's trip lengths come from its counts (its load profile)`);
+    }
   }
 
   const keepSet = new Set(keep);
@@ -65,7 +68,11 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
       pattern,
       (modelStops, posM) =>
         observedDemand?.get(pattern.id) ??
-        assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km, catchmentHalfMaxM: params.max_gap_m / 2 }),
+        assumedDemand(pattern.id, posM, pattern.tripsPerDay, {
+          boardingsPerTripKm: params.assumed_boardings_per_trip_km,
+          catchmentHalfMaxM: params.max_gap_m / 2,
+          meanTripM: params.mean_trip_length_m ?? typicalTripLengthM(feed.routes.get(pattern.routeId)?.type ?? 3),
+        }),
       params,
       { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
     );

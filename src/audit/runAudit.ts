@@ -11,6 +11,7 @@ import type { AuditResult, Headline } from './types.js';
 import { paramsReport } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
+import { typicalTripLengthM } from '../model/demand.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
@@ -127,15 +128,15 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   if (params.mean_trip_length_m === null) {
     overrides.mean_trip_length_m = {
       value: null,
-      source: ridership !== undefined ? 'observed' : 'D',
-      note: `${ridership !== undefined ? 'from the ridership load profile' : 'a third of each pattern length (uniform origins and destinations)'}: median ${Math.round(median(trips))} m`,
+      source: ridership !== undefined ? 'observed' : 'S',
+      note: `${ridership !== undefined ? 'from the ridership load profile' : `typical for the route type (bus ${Math.round(typicalTripLengthM(3))} m), truncated by each pattern's ends`}: median ${Math.round(median(trips))} m`,
     };
   }
 
   const demandSource = ridership !== undefined ? 'observed' : 'assumed';
   const assumptions: string[] = [
     demandSource === 'assumed'
-      ? `No ridership file: demand is assumed uniform along each pattern at ${params.assumed_boardings_per_trip_km} boardings per trip per km, with a mean trip of a third of the pattern length; every figure from it is marked demand_source=assumed.`
+      ? `No ridership file: demand is assumed at ${params.assumed_boardings_per_trip_km} boardings per trip per km, trip ends spread evenly along each pattern, riders' trip lengths exponential with a mean of ${params.mean_trip_length_m !== null ? `${params.mean_trip_length_m} m (as set)` : `the route type's typical trip (bus ${Math.round(typicalTripLengthM(3))} m, US national passenger-miles over unlinked trips)`}, truncated by the pattern's ends (a pattern too short for that mean holds what fits, counted in the warnings); every figure from it is marked demand_source=assumed.`
       : `Demand comes from the ridership file ${ridership}; a stop's counts are split between the patterns serving it by trips per day.`,
     params.cruise_speed_mps === null
       ? `Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (${BOARDING_TIME_PER_PAX_S} s per boarding, Levinson 1983), or the route type's typical cruise speed (bus ${cruiseSpeedBoundsMps(3).typicalMps.toFixed(1)} m/s, 25 mph) when the schedule is slower than that; the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.`

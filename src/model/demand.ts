@@ -1,56 +1,163 @@
 // Each pattern's demand: boardings and alightings per day at its (passenger) stops, the load on board
-// departing each stop, and the mean in-vehicle trip length. From a ridership file, or assumed: origins
-// and destinations uniform along the pattern with origin before destination (boardings per metre fall
-// linearly from the start, alightings rise linearly, the mean trip is a third of the length).
+// departing each stop, and the mean in-vehicle trip length. From a ridership file, or assumed: trip ends
+// spread evenly along the pattern, each origin before its destination, and riders' trip lengths following
+// an exponential distribution whose mean is a typical figure for the route type (or the user's
+// mean_trip_length_m), truncated by the pattern's ends: a pattern holds only the trips that fit on it, and
+// the distribution's scale is solved so the trips that fit have the mean asked for. A pattern too short
+// for that mean holds what fits (origins and destinations uniform, a mean of about a third of its length),
+// and says so. Trip lengths then do not grow with the route.
+//
+// The exponential is chosen for what it makes exact and cheap: riders on board at a point have the same
+// remaining trip length wherever they boarded (it has no memory), so the corridor's rule for riders
+// passing a stop (riders on board taken alike) is exact on these counts, and the sums behind them take
+// O(n) per pattern.
 
 import type { WarningSink } from '../common/warnings.js';
 import type { DemandSource } from '../audit/types.js';
 import type { Pattern } from '../network/types.js';
 import type { Ridership } from './ridership.js';
+import { speedFamily } from '../gtfs/routeTypes.js';
+
+const MILE_M = 1609.344;
+
+/**
+ * The typical mean in-vehicle trip length (one boarding to its alighting, an unlinked trip) by the family of
+ * the GTFS route_type: US national passenger-miles over unlinked trips by mode, 2011. Passenger-miles
+ * [S, US BTS National Transportation Statistics table 1-40, as quoted in BTS "Passenger Travel" table 2-1:
+ * motor bus 19 883, heavy rail 17 317, light rail 2 198, commuter rail 11 314, ferry boat 389 million];
+ * unlinked trips [M, APTA Public Transportation Fact Book, from memory: bus about 5 250, heavy rail about
+ * 3 700, light rail about 460, commuter rail about 465, ferry about 78 million].
+ */
+export function typicalTripLengthM(routeType: number): number {
+  switch (speedFamily(routeType)) {
+    case 'bus': return 3.8 * MILE_M; // 19 883 / 5 250 = 3.79 mi, 6.1 km
+    case 'tram': return 4.8 * MILE_M; // 2 198 / 460
+    case 'metro': return 4.7 * MILE_M; // 17 317 / 3 700
+    case 'rail': return 24.3 * MILE_M; // 11 314 / 465
+    case 'ferry': return 5.0 * MILE_M; // 389 / 78
+    default: return 3.8 * MILE_M; // cable cars, funiculars and the rest: the bus figure
+  }
+}
+
+/**
+ * Riders between two stretches of a pattern: for stops i < j (catchment lengths len_i, len_j, positions
+ * x_i, x_j) perM2 * len_i * len_j * exp(-(x_j - x_i) / decayM) riders a day, spread evenly over the two
+ * catchments; decayM Infinity for origins and destinations uniform.
+ */
+export interface PairModel {
+  decayM: number;
+  perM2: number;
+}
 
 export interface PatternDemand {
   patternId: string;
   boardPerDay: number[]; // per model stop
   alightPerDay: number[];
   loadDepartingPerDay: number[];
-  meanTripLengthM: number;
+  meanTripLengthM: number; // of the load profile: passenger-metres over boardings
   ridersPerDay: number;
   demandSource: DemandSource;
+  /** Assumed demand only: the trips behind the counts (what the corridor's rule for riders passing a stop takes them to be). */
+  pairs?: PairModel;
+  /** Assumed demand only: the mean trip asked for, and whether the pattern is too short to hold it. */
+  askedTripLengthM?: number;
+  tooShortForTrip?: boolean;
+}
+
+/** Each stop's catchment length: midpoint to midpoint, at most catchmentHalfMaxM either side. */
+export function catchmentLengths(posM: number[], catchmentHalfMaxM: number): number[] {
+  const n = posM.length;
+  return posM.map(
+    (x, j) => (j === n - 1 ? x : Math.min((x + posM[j + 1]) / 2, x + catchmentHalfMaxM)) - (j === 0 ? x : Math.max((posM[j - 1] + x) / 2, x - catchmentHalfMaxM)),
+  );
+}
+
+/** For stops i < j weighted len_i * len_j * exp(-(x_j - x_i)/decay): the sum of weights and of weights times x_j - x_i. O(n). */
+function pairSums(posM: number[], len: number[], decayM: number): { weight: number; moment: number } {
+  const n = posM.length;
+  let G = 0; // sum over j > i of len_j e^{-(x_j - x_i)/decay}
+  let H = 0; // the same times (x_j - x_i)
+  let weight = 0;
+  let moment = 0;
+  for (let i = n - 2; i >= 0; i--) {
+    const d = posM[i + 1] - posM[i];
+    const e = Number.isFinite(decayM) ? Math.exp(-d / decayM) : 1;
+    H = e * (H + d * G + len[i + 1] * d);
+    G = e * (G + len[i + 1]);
+    weight += len[i] * G;
+    moment += len[i] * H;
+  }
+  return { weight, moment };
 }
 
 /**
- * Assumed uniform demand on a pattern whose model stops sit at `posM`. Trip ends are uniform along the
- * line and origins precede destinations; discretised to stops, riders from stop i to stop j > i number in
- * proportion to the two catchment lengths, so a stop's boardings and alightings are always consistent
- * (nobody alights before boarding, the load never goes negative). Catchments reach at most
- * catchmentHalfMaxM from a stop, so a long gap holds no riders in its middle. Mean trip length reported as D/3.
+ * Assumed demand on a pattern whose model stops sit at `posM`: boardingsPerTripKm riders per trip and km,
+ * trip ends spread evenly over the stops' catchments (midpoint to midpoint, at most catchmentHalfMaxM from a
+ * stop, so a long gap holds no riders in its middle), riders from stop i to stop j > i in proportion to the
+ * two catchment lengths times exp(-(x_j - x_i)/decay), the decay solved so the mean trip is meanTripM.
+ * Boardings and alightings are always consistent (nobody alights before boarding, the load never goes
+ * negative). Where even uniform pairs (the longest mean this family holds, about a third of the length)
+ * fall short of meanTripM by more than 1 %, uniform pairs are used and tooShortForTrip is set.
  */
 export function assumedDemand(
   patternId: string,
   posM: number[],
   tripsPerDay: number,
-  { boardingsPerTripKm, catchmentHalfMaxM = Infinity }: { boardingsPerTripKm: number; catchmentHalfMaxM?: number },
+  { boardingsPerTripKm, catchmentHalfMaxM = Infinity, meanTripM = typicalTripLengthM(3) }: { boardingsPerTripKm: number; catchmentHalfMaxM?: number; meanTripM?: number },
 ): PatternDemand {
   const n = posM.length;
   const D = posM[n - 1] - posM[0];
   const riders = boardingsPerTripKm * (D / 1000) * tripsPerDay;
-  const len = posM.map(
-    (x, j) => (j === n - 1 ? x : Math.min((x + posM[j + 1]) / 2, x + catchmentHalfMaxM)) - (j === 0 ? x : Math.max((posM[j - 1] + x) / 2, x - catchmentHalfMaxM)),
-  );
-  const after: number[] = new Array(n).fill(0); // catchment length of the stops after j
-  for (let j = n - 2; j >= 0; j--) after[j] = after[j + 1] + len[j + 1];
-  let pairs = 0;
-  for (let j = 0; j < n; j++) pairs += len[j] * after[j];
-  const c = pairs > 0 ? riders / pairs : 0;
-  const boardPerDay = len.map((l, j) => c * l * after[j]);
-  const alightPerDay: number[] = new Array(n).fill(0);
-  let before = 0;
-  for (let j = 0; j < n; j++) {
-    alightPerDay[j] = c * len[j] * before;
-    before += len[j];
+  const len = catchmentLengths(posM, catchmentHalfMaxM);
+  const meanOf = (decayM: number): number => {
+    const { weight, moment } = pairSums(posM, len, decayM);
+    return weight > 0 ? moment / weight : 0;
+  };
+  let decayM = Infinity;
+  const longest = meanOf(Infinity);
+  const tooShortForTrip = longest < meanTripM * 0.99;
+  if (longest > meanTripM && meanTripM > 0) {
+    // the mean grows with the decay (an exponential family): bisect on its logarithm. The decay stays at
+    // least a fiftieth of the longest gap between neighbouring stops, so no neighbours' riders vanish in
+    // underflow; where even that decay gives trips longer than asked (stops too far apart for such short
+    // trips), it is used: the shortest trips the pattern holds.
+    let maxGapM = 0;
+    for (let j = 1; j < n; j++) maxGapM = Math.max(maxGapM, posM[j] - posM[j - 1]);
+    const lowest = Math.max(meanTripM / 1000, maxGapM / 50);
+    if (meanOf(lowest) >= meanTripM) decayM = lowest;
+    else {
+      let lo = Math.log(lowest);
+      let hi = Math.log(Math.max(meanTripM, lowest) * 1000);
+      while (meanOf(Math.exp(hi)) < meanTripM && hi < 700) hi += 5;
+      for (let it = 0; it < 80 && hi - lo > 1e-9; it++) {
+        const mid = (lo + hi) / 2;
+        if (meanOf(Math.exp(mid)) < meanTripM) lo = mid;
+        else hi = mid;
+      }
+      decayM = Math.exp((lo + hi) / 2);
+    }
   }
-  const out = finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', D / 3);
-  out.meanTripLengthM = D / 3;
+  const { weight } = pairSums(posM, len, decayM);
+  const c = weight > 0 && Number.isFinite(riders / weight) ? riders / weight : 0;
+  // boardings: c len_i sum_{j>i} len_j K; alightings: c len_j sum_{i<j} len_i K
+  const boardPerDay: number[] = new Array(n).fill(0);
+  const alightPerDay: number[] = new Array(n).fill(0);
+  let G = 0;
+  for (let i = n - 2; i >= 0; i--) {
+    const e = Number.isFinite(decayM) ? Math.exp(-(posM[i + 1] - posM[i]) / decayM) : 1;
+    G = e * (G + len[i + 1]);
+    boardPerDay[i] = c * len[i] * G;
+  }
+  let F = 0;
+  for (let j = 1; j < n; j++) {
+    const e = Number.isFinite(decayM) ? Math.exp(-(posM[j] - posM[j - 1]) / decayM) : 1;
+    F = e * (F + len[j - 1]);
+    alightPerDay[j] = c * len[j] * F;
+  }
+  const out = finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', Math.min(meanTripM, D / 3));
+  out.pairs = { decayM, perM2: c };
+  out.askedTripLengthM = meanTripM;
+  out.tooShortForTrip = tooShortForTrip;
   return out;
 }
 

@@ -18,7 +18,7 @@ export interface ModelParams {
   decel_mps2: number;
   reentry_delay_s: number;
   cruise_speed_mps: number | null; // null: estimated per pattern from the schedule
-  mean_trip_length_m: number | null; // null: from ridership, else a third of the pattern length
+  mean_trip_length_m: number | null; // null: from ridership, else typical for the route type (typicalTripLengthM)
   band_tolerance: number;
   max_gap_m: number;
   stopping_model: StoppingModelParam;
@@ -51,7 +51,7 @@ export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
   decel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   reentry_delay_s: { default: 2, source: 'M', kind: 'nonnegative', note: 'assumption: wait to re-enter traffic, chosen within 0-3 s' },
   cruise_speed_mps: { default: null, source: 'estimated', kind: 'positive-or-null', note: 'estimated per pattern: the slowest cruise that keeps to the schedule, or the typical speed of the route type (bus 25 mph, from memory) when the schedule is slower, the rest taken as traffic delay' },
-  mean_trip_length_m: { default: null, source: 'D', kind: 'positive-or-null', note: 'from the ridership load profile, else a third of the pattern length (uniform origins and destinations)' },
+  mean_trip_length_m: { default: null, source: 'S', kind: 'positive-or-null', note: 'mean in-vehicle trip: from the ridership load profile, else typical for the route type (bus 3.8 mi, 6.1 km: US national passenger-miles over unlinked trips, BTS passenger-miles, trips from memory), trip lengths exponential, truncated by the pattern\'s ends' },
   band_tolerance: { default: 0.05, source: 'D', kind: 'fraction', note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal' },
   max_gap_m: { default: 800, source: 'M', kind: 'positive', note: 'common practice walking policy (about half a mile between stops); from memory' },
   stopping_model: { default: 'auto', source: 'D', kind: 'stopping', note: 'auto: observed stop shares where realtime data covers a pattern, Poisson P = 1 - exp(-lambda) where demand comes from a ridership file, always (every stop served) where demand is assumed, since a chance of skipping a stop is only as good as the counts behind it' },

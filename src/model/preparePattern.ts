@@ -62,6 +62,13 @@ export function preparePattern(
   const demand = demandOf(modelStops, posM);
   const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
   const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2 });
+  if (demand.tooShortForTrip) {
+    warnings.add(
+      'pattern-short-for-trip',
+      'patterns too short to hold the mean trip length asked for (typical for the route type, or mean_trip_length_m): riders\' trips were spread over what fits, origins and destinations uniform, a mean of about a third of the pattern',
+      `${pattern.id} ${Math.round(demand.meanTripLengthM)} m of ${Math.round(demand.askedTripLengthM ?? 0)} m`,
+    );
+  }
 
   // auto: observed shares where realtime data has them, Poisson on counted demand, every stop on assumed demand
   let stoppingModel: StoppingModel;
@@ -119,7 +126,8 @@ export function preparePattern(
     lostTime = observed.lostTimePerStopS;
     lostTimeSource = 'observed';
   }
-  const meanTripLengthM = params.mean_trip_length_m ?? demand.meanTripLengthM;
+  // the mean trip of the load profile every figure is computed from (the one asked for, where it fits)
+  const meanTripLengthM = demand.meanTripLengthM;
 
   // stops that must stay
   const fixedReason: FixedReason[] = modelStops.map(() => '');
