@@ -56,6 +56,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   }
 
   const keepSet = new Set(keep);
+  const given = new Set(np.given);
   const preps: PreparedPattern[] = [];
   patterns.patterns.forEach((pattern, i) => {
     onProgress?.({ stage: 'model', done: i, total: patterns.patterns.length, unit: 'patterns' });
@@ -67,7 +68,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
         observedDemand?.get(pattern.id) ??
         assumedDemand(pattern.id, posM, pattern.tripsPerDay, { boardingsPerTripKm: params.assumed_boardings_per_trip_km, catchmentHalfMaxM: params.max_gap_m / 2 }),
       params,
-      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
+      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers, given },
     );
     if (prep) preps.push(prep);
   });

@@ -62,6 +62,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
   const parts = preps.map((p) => patternParts(p, params));
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
+  // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
+  analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   for (const a of analyses) {
     const family = speedFamily(a.result.routeType);
@@ -166,5 +168,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,
+    observed: observed
+      ? { source: observed.source, snapshotsRead: observed.snapshotsRead, snapshotsSkipped: observed.snapshotsSkipped, tripsMatched: observed.tripsMatched, tripsUnmatched: observed.tripsUnmatched }
+      : null,
   };
 }

@@ -5,7 +5,7 @@ export interface ObservedPattern {
   patternId: string;
   tripsObserved: number; // trip instances matched to this pattern
   meanDwellS: number | null; // observed dwell at stops where the bus stopped
-  lostTimePerStopS: number | null; // dwell fixed part + braking/accelerating, explaining observed run times
+  lostTimePerStopS: number | null; // dwellFixedS + stopLossS when both were observed (the model takes the two parts separately)
   cruiseSpeedMps: number | null;
   /** Share of observed trips that stopped at each stop of the pattern (index = stop position), null where too few data. */
   stopShare: (number | null)[];

@@ -110,13 +110,14 @@ describe('runAudit', () => {
       snapshotsSkipped: 0,
       tripsMatched: 5,
       tripsUnmatched: 0,
-      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
+      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, dwellFixedS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
       warnings: [],
     };
     const o = runAudit(feed, patterns, { params: {}, observed });
     const p = o.patterns.find((x) => x.patternId === v1.id)!;
     expect(p).toMatchObject({ lostTimeSource: 'observed', lostTimePerStopS: 17.5, cruiseSpeedMps: 7, cruiseSpeedSource: 'observed' });
     expect(o.lostTimeSource).toBe('observed');
+    expect(p.observed).toEqual({ tripsObserved: 5, dwellS: 12, doorTimeS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: 0.5, lostTimeParts: ['door_time', 'stop_loss'] });
     const mid = o.stops.find((s) => s.patternId === v1.id && s.stopIndex === 3)!;
     expect(mid.stopProbability).toBeCloseTo(0.5, 9);
   });
