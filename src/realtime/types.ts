@@ -15,10 +15,10 @@ export interface ObservedPattern {
   stopDwellS?: (number | null)[];
   /** Optional: trips with a stopped/passed verdict per stop (the denominators of stopShare). */
   stopsObserved?: number[];
-  /** Optional: the fixed part of dwell (a low quantile of observed dwells, standing for door time), seconds. */
-  dwellFixedS?: number | null;
-  /** Optional: braking + accelerating + re-entry loss per served stop fitted from run times, seconds. */
-  stopLossS?: number | null;
+  /** The fixed part of dwell (a low quantile of observed dwells, standing for door time), seconds; null where too few dwells. */
+  dwellFixedS: number | null;
+  /** Braking + accelerating + re-entry loss per served stop fitted from run times, seconds; null when the fit failed or was rejected. */
+  stopLossS: number | null;
   /** Optional: how many (trip, gap) run times the cruise-speed fit used. */
   gapsFitted?: number;
 }
