@@ -216,6 +216,12 @@ describe('runAudit with observed data beside set values and the schedule', () =>
     expect(r.patterns.find((x) => x.patternId === v1.id)!.observed?.stopShare).toBeCloseTo(0.5, 9);
   });
 
+  it('falls back, for stopping_model=observed without an archive, to the rule without one, and says so', () => {
+    const r = runAudit(feed, patterns, { params: { stopping_model: 'observed' } });
+    expect(r.patterns.every((p) => p.stoppingModel === 'always')).toBe(true); // demand assumed
+    expect(r.warnings.find((w) => w.code === 'no-observed-stopping')?.message).toMatch(/every stop served \(demand assumed\)/);
+  });
+
   it('takes the typical speed for a schedule faster than any plausible speed explains, warns naming the pattern, and check agrees', () => {
     // 6 km with 54 stops served in 10 minutes: no cruise speed up to 25 m/s keeps to it
     const fast = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80, runTimeS: 600 });
