@@ -64,7 +64,7 @@ export function serviceDayOriginS(date, timeZone) {
  *   lat, lon, distM, schedArrS, schedDepS, noService }] }] }  (times in seconds of the service day)
  * options: { windowStartS, windowEndS (seconds of the service day), pollS, routeParams(routeId) ->
  *   { cruiseSpeedMps, dwellS, accelMps2, decelMps2, reentryS }, lambda(stopId), seed, gzipEvery,
- *   differential, noTripVehicleEvery, futureStops, keepPastS, runNoiseS }
+ *   differential, noTripVehicleEvery, futureStops, keepPastS, runNoiseS, dwellJitterS (dwell is dwellS +- this, default 3) }
  * Returns the truth: per route the parameters, per trip instance the simulated events.
  */
 export function simulateArchive(network, options, write) {
@@ -83,6 +83,7 @@ export function simulateArchive(network, options, write) {
     runNoiseS = 2,
     shuffle = true,
     keepEvents = true,
+    dwellJitterS = 3,
   } = options;
   const rand = prng(seed);
   const originS = serviceDayOriginS(network.date, network.timeZone);
@@ -112,7 +113,7 @@ export function simulateArchive(network, options, write) {
       t += Math.max(1, Math.round(runS));
       arr[i] = t;
       stops[i] = s;
-      if (s && !terminal) t += Math.round(rp.dwellS + (rand() * 6 - 3));
+      if (s && !terminal) t += Math.round(rp.dwellS + (rand() * 2 - 1) * dwellJitterS);
       dep[i] = t;
       if (!terminal && !st[i].noService) {
         const c = served.get(st[i].stopId) ?? [0, 0];

@@ -3,7 +3,9 @@
 
 import { haversineM } from '../network/geodesy.js';
 import type { Feed, Stop } from '../gtfs/types.js';
-import type { PatternSet } from '../network/types.js';
+import type { Pattern, PatternSet } from '../network/types.js';
+import { cruiseSpeedBoundsMps, estimateCruiseSpeed } from '../model/cruiseSpeed.js';
+import { defaultParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
 import {
@@ -305,7 +307,48 @@ function checkSpeeds(feed: Feed, patterns: PatternSet, t: CheckThresholds, add: 
         spanM = 0;
       }
     }
+    if (!flagged) checkWholeRunTime(feed, p, fam, add);
   }
+}
+
+/**
+ * implausible-speed over a whole pattern: a run time shorter than any plausible cruise speed explains
+ * once the bus brakes, opens its doors and pulls away at its stops and riders board. The same test the
+ * audit applies before it falls back to the route type's typical cruise speed (estimateCruiseSpeed), with
+ * the audit's defaults: every intermediate stop served, the default door time, rates and re-entry delay,
+ * and the assumed boardings per trip-km.
+ */
+function checkWholeRunTime(feed: Feed, p: Pattern, fam: string, add: Add): void {
+  const route = feed.routes.get(p.routeId);
+  let first = 0;
+  let last = p.stopIdx.length - 1;
+  while (first < last && p.passengerStop[first] === false) first++;
+  while (last > first && p.passengerStop[last] === false) last--;
+  const lengthM = p.distAlongM[last] - p.distAlongM[first];
+  if (!(p.runTimeS > 0) || !(lengthM > 0) || !route) return;
+  let inner = 0;
+  for (let i = first + 1; i < last; i++) if (p.passengerStop[i] !== false) inner++;
+  const d = defaultParams();
+  const est = estimateCruiseSpeed({
+    runTimeS: p.runTimeS,
+    lengthM,
+    expectedStopsServed: inner,
+    boardingsPerTrip: d.assumed_boardings_per_trip_km * (lengthM / 1000),
+    doorTimeS: d.door_time_s,
+    reentryDelayS: d.reentry_delay_s,
+    accelMps2: d.accel_mps2,
+    decelMps2: d.decel_mps2,
+    routeType: route.type,
+  });
+  if (est.basis !== 'implausible') return;
+  const { maxMps } = cruiseSpeedBoundsMps(route.type);
+  const a = feed.stops[p.stopIdx[first]];
+  const b = feed.stops[p.stopIdx[last]];
+  add('implausible-speed', {
+    file: 'stop_times.txt',
+    ids: { pattern: p.id, trip_id: p.tripIds[0] ?? '', from_stop_id: a?.id ?? '', to_stop_id: b?.id ?? '' },
+    detail: `pattern ${p.id} (${fam}): ${fmt(lengthM, 0)} m with ${inner} stops between in ${p.runTimeS} s is faster than any cruise speed up to ${fmt(maxMps * 3.6)} km/h explains once the bus stops and riders board (model defaults)`,
+  });
 }
 
 /** coordinate-fault: zero, out of range or far from the feed's median stop position. */

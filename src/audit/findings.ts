@@ -58,7 +58,7 @@ export const FINDINGS: Record<FindingCode, FindingKind> = {
   },
   'implausible-speed': {
     title: 'Implausible scheduled speed',
-    explanation: "The scheduled speed between timed stops is faster or slower than the route type allows.",
+    explanation: "The scheduled speed between timed stops is faster or slower than the route type allows, or a pattern's whole run time is shorter than any plausible cruise speed explains once the bus stops and riders board.",
     severity: 'warning',
   },
   'coordinate-fault': {

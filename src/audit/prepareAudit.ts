@@ -59,6 +59,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   }
 
   const keepSet = new Set(keep);
+  const given = new Set(np.given);
   const preps: PreparedPattern[] = [];
   patterns.patterns.forEach((pattern, i) => {
     onProgress?.({ stage: 'model', done: i, total: patterns.patterns.length, unit: 'patterns' });
@@ -74,7 +75,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
           meanTripM: params.mean_trip_length_m ?? typicalTripLengthM(feed.routes.get(pattern.routeId)?.type ?? 3),
         }),
       params,
-      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers },
+      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers, given },
     );
     if (prep) preps.push(prep);
   });

@@ -44,7 +44,7 @@ function stoppingAssumption(param: string, used: string[]): string {
   const parts: string[] = [];
   if (models.has('always')) parts.push(param === 'always' ? 'The bus is assumed to stop at every stop (as set).' : 'Where demand is assumed, the bus is assumed to stop at every stop: a chance of skipping a stop is only as good as the counts behind it.');
   if (models.has('poisson')) parts.push('A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat).');
-  if (models.has('observed')) parts.push('Where realtime data covers a pattern, the observed share of trips stopping at each stop is used.');
+  if (models.has('observed')) parts.push('Where realtime data covers a pattern, the observed share of trips stopping at each stop is used; a stop without one is served on assumed demand and follows Poisson on counted demand, as without the archive.');
   return parts.join(' ') || 'No pattern was modelled.';
 }
 
@@ -63,6 +63,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
   const parts = preps.map((p) => patternParts(p, params));
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
+  // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
+  analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   for (const a of analyses) {
     const family = speedFamily(a.result.routeType);
@@ -139,7 +141,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       ? `No ridership file: demand is assumed at ${params.assumed_boardings_per_trip_km} boardings per trip per km, trip ends spread evenly along each pattern, riders' trip lengths exponential with a mean of ${params.mean_trip_length_m !== null ? `${params.mean_trip_length_m} m (as set)` : `the route type's typical trip (bus ${Math.round(typicalTripLengthM(3))} m, US national passenger-miles over unlinked trips)`}, truncated by the pattern's ends (a pattern too short for that mean holds what fits, counted in the warnings); every figure from it is marked demand_source=assumed.`
       : `Demand comes from the ridership file ${ridership}; a stop's counts are split between the patterns serving it by trips per day.`,
     params.cruise_speed_mps === null
-      ? `Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (${BOARDING_TIME_PER_PAX_S} s per boarding, Levinson 1983), or the route type's typical cruise speed (bus ${cruiseSpeedBoundsMps(3).typicalMps.toFixed(1)} m/s, 25 mph) when the schedule is slower than that; the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.`
+      ? `Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (${BOARDING_TIME_PER_PAX_S} s per boarding, Levinson 1983), or the route type's typical cruise speed (bus ${cruiseSpeedBoundsMps(3).typicalMps.toFixed(1)} m/s, 25 mph) when the schedule is slower than that, or faster than any plausible speed explains (warning schedule-too-fast); the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.`
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
@@ -167,5 +169,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,
+    observed: observed
+      ? { source: observed.source, snapshotsRead: observed.snapshotsRead, snapshotsSkipped: observed.snapshotsSkipped, tripsMatched: observed.tripsMatched, tripsUnmatched: observed.tripsUnmatched }
+      : null,
   };
 }

@@ -12,7 +12,20 @@ import type { StoppingModel } from '../model/params.js';
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
 export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'keep';
 export type DemandSource = 'observed' | 'assumed'; // observed = from a ridership file
-export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive
+export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive, in part or whole
+/** The parts of the lost time per stop that came from a realtime archive. */
+export type ObservedLostTimePart = 'door_time' | 'stop_loss';
+
+/** What a realtime archive said about one pattern, whether or not each value was used (null: not observed). */
+export interface ObservedFigures {
+  tripsObserved: number;
+  dwellS: number | null; // mean observed dwell where the bus stopped, boarding included
+  doorTimeS: number | null; // the fixed part of dwell (a low quantile of the observed dwells)
+  stopLossS: number | null; // braking + accelerating + re-entry per stop served, fitted from run times
+  cruiseSpeedMps: number | null; // fitted with the stop loss
+  stopShare: number | null; // mean observed share of trips stopping, over intermediate stops with a share
+  lostTimeParts: ObservedLostTimePart[]; // which observed parts the lost time per stop uses
+}
 export type SourceLabel = 'C' | 'S' | 'M' | 'D' | 'user' | 'estimated' | 'observed';
 
 export interface ParamValue {
@@ -108,6 +121,8 @@ export interface PatternResult {
   currentCostPerRiderS: number; // at today's mean gap on the curve
   optimalCostPerRiderS: number;
   path: [number, number][]; // lon, lat
+  /** What a realtime archive said about the pattern; absent or null without one covering it. */
+  observed?: ObservedFigures | null;
 }
 
 export interface SensitivityCase {
@@ -166,4 +181,6 @@ export interface AuditResult {
   sensitivity: SensitivityCase[];
   warnings: FeedWarning[];
   assumptions: string[]; // plain sentences shown in every report
+  /** The realtime archive read, if any (its per-pattern figures are on the patterns). */
+  observed?: { source: string; snapshotsRead: number; snapshotsSkipped: number; tripsMatched: number; tripsUnmatched: number } | null;
 }

@@ -7,7 +7,10 @@
 // accelerating). V is that speed or the route type's typical cruise speed, whichever is higher; when the
 // typical speed is used, the rest of the run time is reported as traffic delay. Folding a congested
 // schedule into a slow cruise instead would shrink the braking-and-accelerating loss, and so the optimal
-// spacing, exactly where traffic is worst.
+// spacing, exactly where traffic is worst. A schedule faster than any plausible V explains (no root, or a
+// root above the route type's highest plausible speed) is implausible: V is then the typical speed, never
+// the highest, since the highest would make the loss per stop as large as possible where the schedule
+// says the bus loses little.
 
 import { speedFamily } from '../gtfs/routeTypes.js';
 
@@ -48,8 +51,8 @@ export interface CruiseSpeedEstimate {
   cruiseSpeedMps: number;
   /** The slowest cruise that keeps to the schedule with no traffic delay (NaN when the schedule is too tight to be explained). */
   solvedMps: number;
-  /** schedule: V from the schedule; typical: the route type's typical speed, the schedule being slower; ceiling: capped at the highest plausible speed. */
-  basis: 'schedule' | 'typical' | 'ceiling';
+  /** schedule: V from the schedule; typical: the route type's typical speed, the schedule being slower; implausible: the schedule is faster than any plausible V explains, so the typical speed is used. */
+  basis: 'schedule' | 'typical' | 'implausible';
   /** Run time per trip not explained by driving at V, the stops served and boarding: signals and congestion (s, >= 0). */
   trafficDelayS: number;
 }
@@ -65,7 +68,7 @@ export function estimateCruiseSpeed({ runTimeS, lengthM, expectedStopsServed, bo
   const disc = available * available - 4 * qa * lengthM;
   let solved = NaN;
   if (available > 0 && disc >= 0) solved = (2 * lengthM) / (available + Math.sqrt(disc)); // smaller root, stable form
-  if (!Number.isFinite(solved) || solved > maxMps) return { cruiseSpeedMps: maxMps, solvedMps: solved, basis: 'ceiling', trafficDelayS: 0 };
+  if (!Number.isFinite(solved) || solved > maxMps) return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'implausible', trafficDelayS: 0 };
   if (solved >= typicalMps) return { cruiseSpeedMps: solved, solvedMps: solved, basis: 'schedule', trafficDelayS: 0 };
   const explained = lengthM / typicalMps + fixed + qa * typicalMps;
   return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'typical', trafficDelayS: Math.max(0, runTimeS - explained) };

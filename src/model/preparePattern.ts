@@ -5,14 +5,12 @@
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { FixedReason, LostTimeSource, SourceLabel } from '../audit/types.js';
+import type { FixedReason, LostTimeSource, ObservedFigures, SourceLabel } from '../audit/types.js';
 import type { ObservedPattern } from '../realtime/types.js';
 import { Corridor, type CostSettings } from './corridor.js';
 import type { PatternDemand } from './demand.js';
-import { estimateCruiseSpeed, cruiseSpeedBoundsMps } from './cruiseSpeed.js';
-import { lostTimePerStopS } from './lostTime.js';
-import type { ModelParams, StoppingModel } from './params.js';
-import { stopProbability } from './stopping.js';
+import { chooseRunningInputs, chooseStopping, expectedStopsServed } from './observedInputs.js';
+import type { ModelParams, ParamName, StoppingModel } from './params.js';
 
 export interface PreparedPattern {
   pattern: Pattern;
@@ -30,6 +28,7 @@ export interface PreparedPattern {
   observedShare: (number | null)[] | undefined; // per model stop
   stoppingModel: StoppingModel; // the model used on this pattern (auto resolved)
   trafficDelayS: number | null; // run time per trip the schedule holds beyond driving, stops and boarding; null unless estimated
+  observedFigures: ObservedFigures | null; // what a realtime archive said about the pattern, used or not
   /** For model gap m, a route serving it as a local (stops of its own between the ends), or null; set by the audit. */
   gapLocalCover: (m: number) => string | null;
   fixedReason: FixedReason[]; // per model stop
@@ -48,7 +47,7 @@ export function preparePattern(
   pattern: Pattern,
   demandOf: (modelStops: number[], posM: number[]) => PatternDemand,
   params: ModelParams,
-  { keep = new Set<string>(), observed, warnings, forceTransfers = true }: { keep?: Set<string>; observed?: ObservedPattern; warnings: WarningSink; forceTransfers?: boolean },
+  { keep = new Set<string>(), observed, warnings, forceTransfers = true, given = new Set<ParamName>() }: { keep?: Set<string>; observed?: ObservedPattern; warnings: WarningSink; forceTransfers?: boolean; given?: ReadonlySet<ParamName> },
 ): PreparedPattern | null {
   const modelStops: number[] = [];
   for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
@@ -70,62 +69,20 @@ export function preparePattern(
     );
   }
 
-  // auto: observed shares where realtime data has them, Poisson on counted demand, every stop on assumed demand
-  let stoppingModel: StoppingModel;
-  let observedShare: (number | null)[] | undefined;
-  if (observed && observed.stopShare.some((x) => x !== null) && (params.stopping_model === 'auto' || params.stopping_model === 'observed')) {
-    observedShare = modelStops.map((j) => observed.stopShare[j] ?? null);
-    stoppingModel = 'observed';
-  } else if (params.stopping_model === 'observed') {
-    warnings.add('no-observed-stopping', 'stopping_model=observed but no observed stop shares for the pattern: Poisson used', pattern.id);
-    stoppingModel = 'poisson';
-  } else if (params.stopping_model === 'auto') {
-    stoppingModel = demand.demandSource === 'assumed' ? 'always' : 'poisson';
-  } else {
-    stoppingModel = params.stopping_model;
-  }
-  // expected intermediate stops served today, for the cruise speed estimate
-  let expectedStops = 0;
-  for (let m = 1; m + 1 < modelStops.length; m++) {
-    const lambda = (demand.boardPerDay[m] + demand.alightPerDay[m]) / trips;
-    expectedStops += stopProbability(lambda, { model: stoppingModel, observedShare: observedShare?.[m] ?? null, baseLambda: lambda });
-  }
-  const kin = { doorTimeS: params.door_time_s, accelMps2: params.accel_mps2, decelMps2: params.decel_mps2, reentryDelayS: params.reentry_delay_s };
-  let cruiseSpeedMps: number;
-  let cruiseSpeedSource: SourceLabel;
-  let trafficDelayS: number | null = null;
-  if (observed?.cruiseSpeedMps != null && observed.cruiseSpeedMps > 0) {
-    cruiseSpeedMps = observed.cruiseSpeedMps;
-    cruiseSpeedSource = 'observed';
-  } else if (params.cruise_speed_mps !== null) {
-    cruiseSpeedMps = params.cruise_speed_mps;
-    cruiseSpeedSource = 'user';
-  } else {
-    const est = estimateCruiseSpeed({
-      runTimeS: pattern.runTimeS,
-      lengthM: posM[posM.length - 1] - posM[0],
-      expectedStopsServed: expectedStops,
-      boardingsPerTrip: demand.ridersPerDay / trips,
-      ...kin,
-      routeType,
-    });
-    cruiseSpeedMps = est.cruiseSpeedMps;
-    cruiseSpeedSource = 'estimated';
-    trafficDelayS = est.trafficDelayS;
-    if (est.basis === 'ceiling') {
-      warnings.add(
-        'cruise-speed-capped',
-        `patterns whose schedule is too fast to explain below the highest plausible cruise speed for the route type: capped (bus ${cruiseSpeedBoundsMps(3).maxMps} m/s)`,
-        `${pattern.id} solved ${Number.isFinite(est.solvedMps) ? est.solvedMps.toFixed(1) : 'none'} m/s, used ${est.cruiseSpeedMps}`,
-      );
-    }
-  }
-  let lostTime = lostTimePerStopS(cruiseSpeedMps, kin);
-  let lostTimeSource: LostTimeSource = 'default';
-  if (observed?.lostTimePerStopS != null && observed.lostTimePerStopS > 0) {
-    lostTime = observed.lostTimePerStopS;
-    lostTimeSource = 'observed';
-  }
+  // stopping, door time, cruise speed and loss per stop: set by the user, observed, or default (observedInputs.ts)
+  const stopping = chooseStopping(params, demand, modelStops, observed, pattern.id, warnings);
+  const { stoppingModel, observedShare } = stopping;
+  const run = chooseRunningInputs(
+    params,
+    given,
+    pattern,
+    { lengthM: posM[posM.length - 1] - posM[0], routeType, expectedStopsServed: expectedStopsServed(demand, trips, stopping), boardingsPerTrip: demand.ridersPerDay / trips, modelStops },
+    observed,
+    warnings,
+  );
+  const { cruiseSpeedMps, cruiseSpeedSource, trafficDelayS, lostTimeSource, observedFigures } = run;
+  const lostTime = run.lostTimePerStopS;
+
   // the mean trip of the load profile every figure is computed from (the one asked for, where it fits)
   const meanTripLengthM = demand.meanTripLengthM;
 
@@ -161,6 +118,7 @@ export function preparePattern(
     observedShare,
     stoppingModel,
     trafficDelayS,
+    observedFigures,
     gapLocalCover: () => null,
     fixedReason,
   };

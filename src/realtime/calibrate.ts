@@ -408,17 +408,26 @@ export async function observeArchive(
     const agg = aggs.get(p.id);
     if (!agg) continue;
     const allDwells = agg.dwells.flat();
-    const fit = agg.fit.solve();
-    if (!fit && agg.fit.count > 0) {
-      warnings.add('realtime-fit-failed', 'observed run times do not determine cruise speed and stop loss; left unset', p.id);
+    const solved = agg.fit.solve();
+    if (!solved && agg.fit.count > 0) {
+      warnings.add('realtime-fit-failed', 'observed run times do not determine cruise speed and stop loss (the observed dwell and door time are still used); left unset', p.id);
+    }
+    // a fit whose stop loss is negative (buses quicker over gaps where they stop) explains nothing: both
+    // its cruise speed and its stop loss are dropped, not the loss alone
+    const fit = solved && solved.lossPerStopS >= 0 ? solved : null;
+    if (solved && !fit) {
+      warnings.add(
+        'realtime-fit-rejected',
+        'observed run times fit with a negative loss per stop served: the fit is rejected whole, cruise speed and stop loss left unset (the observed dwell and door time are still used)',
+        `${p.id}: ${solved.cruiseSpeedMps.toFixed(2)} m/s, ${solved.lossPerStopS.toFixed(2)} s`,
+      );
     }
     const dwellFixedS = allDwells.length >= minTrips ? quantile(allDwells, dwellFixedQuantile) : null;
-    const lossOk = fit && fit.lossPerStopS >= 0;
     byPattern.set(p.id, {
       patternId: p.id,
       tripsObserved: agg.trips,
       meanDwellS: allDwells.length >= minTrips ? allDwells.reduce((s, x) => s + x, 0) / allDwells.length : null,
-      lostTimePerStopS: dwellFixedS !== null && lossOk ? dwellFixedS + fit.lossPerStopS : null,
+      lostTimePerStopS: dwellFixedS !== null && fit ? dwellFixedS + fit.lossPerStopS : null,
       cruiseSpeedMps: fit ? fit.cruiseSpeedMps : null,
       // a share is left unset where more than a tenth of the passing trips could not be told apart
       stopShare: agg.observed.map((o, i) => {
@@ -433,7 +442,7 @@ export async function observeArchive(
       stopDwellS: agg.dwells.map((d) => (d.length >= minTrips ? median(d) : null)),
       stopsObserved: agg.observed,
       dwellFixedS,
-      stopLossS: lossOk ? fit.lossPerStopS : null,
+      stopLossS: fit ? fit.lossPerStopS : null,
       gapsFitted: agg.fit.count,
     });
   }

@@ -5,7 +5,7 @@ export interface ObservedPattern {
   patternId: string;
   tripsObserved: number; // trip instances matched to this pattern
   meanDwellS: number | null; // observed dwell at stops where the bus stopped
-  lostTimePerStopS: number | null; // dwell fixed part + braking/accelerating, explaining observed run times
+  lostTimePerStopS: number | null; // dwellFixedS + stopLossS when both were observed (the model takes the two parts separately)
   cruiseSpeedMps: number | null;
   /** Share of observed trips that stopped at each stop of the pattern (index = stop position), null where too few data. */
   stopShare: (number | null)[];
@@ -15,10 +15,10 @@ export interface ObservedPattern {
   stopDwellS?: (number | null)[];
   /** Optional: trips with a stopped/passed verdict per stop (the denominators of stopShare). */
   stopsObserved?: number[];
-  /** Optional: the fixed part of dwell (a low quantile of observed dwells, standing for door time), seconds. */
-  dwellFixedS?: number | null;
-  /** Optional: braking + accelerating + re-entry loss per served stop fitted from run times, seconds. */
-  stopLossS?: number | null;
+  /** The fixed part of dwell (a low quantile of observed dwells, standing for door time), seconds; null where too few dwells. */
+  dwellFixedS: number | null;
+  /** Braking + accelerating + re-entry loss per served stop fitted from run times, seconds; null when the fit failed or was rejected. */
+  stopLossS: number | null;
   /** Optional: how many (trip, gap) run times the cruise-speed fit used. */
   gapsFitted?: number;
 }

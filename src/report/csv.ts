@@ -123,6 +123,14 @@ export const PATTERN_COLUMNS: CsvColumn<PatternResult>[] = [
   num('traffic_delay_s', (p) => p.trafficDelayS, 1),
   text('stopping_model', (p) => p.stoppingModel),
   num('mean_trip_length_m', (p) => p.meanTripLengthM, 1),
+  // what a realtime archive said about the pattern (empty without one), whether or not a set value won
+  num('observed_trips', (p) => p.observed?.tripsObserved ?? null),
+  num('observed_dwell_s', (p) => p.observed?.dwellS ?? null, 1),
+  num('observed_door_time_s', (p) => p.observed?.doorTimeS ?? null, 1),
+  num('observed_stop_loss_s', (p) => p.observed?.stopLossS ?? null, 2),
+  num('observed_cruise_speed_mps', (p) => p.observed?.cruiseSpeedMps ?? null, 2),
+  num('observed_stop_share', (p) => p.observed?.stopShare ?? null, 3),
+  text('lost_time_observed_parts', (p) => p.observed?.lostTimeParts.join('+') ?? ''),
 ];
 
 export const STOP_COLUMNS: CsvColumn<StopResult>[] = [

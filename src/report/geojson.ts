@@ -88,6 +88,13 @@ function patternProperties(p: PatternResult): Feature<LineString>['properties'] 
     traffic_delay_s: r1(p.trafficDelayS),
     stopping_model: p.stoppingModel,
     mean_trip_length_m: r1(p.meanTripLengthM),
+    observed_trips: p.observed?.tripsObserved ?? null,
+    observed_dwell_s: r1(p.observed?.dwellS ?? null),
+    observed_door_time_s: r1(p.observed?.doorTimeS ?? null),
+    observed_stop_loss_s: r2(p.observed?.stopLossS ?? null),
+    observed_cruise_speed_mps: r2(p.observed?.cruiseSpeedMps ?? null),
+    observed_stop_share: p.observed?.stopShare == null ? null : cellNumber(p.observed.stopShare, 3),
+    lost_time_observed_parts: p.observed?.lostTimeParts.join('+') ?? '',
   };
 }
 

@@ -1,5 +1,6 @@
 // summary.json: the run in one small machine-readable document (feed, date, counts, headline figures,
-// parameters with their sources, warnings, sensitivity, assumptions, cautions), snake_case keys,
+// parameters with their sources, warnings, sensitivity, assumptions, cautions, and what a realtime archive
+// said per pattern), snake_case keys,
 // documented by schema/summary.schema.json. Built as an object and written with JSON.stringify.
 
 import type { AuditResult } from '../audit/types.js';
@@ -10,6 +11,8 @@ export const TOP_CANDIDATES_IN_SUMMARY = 10;
 
 const r1 = (v: number): number => (Number.isFinite(v) ? Math.round(v * 10) / 10 : 0);
 const r3 = (v: number): number => (Number.isFinite(v) ? Math.round(v * 1000) / 1000 : 0);
+/** Rounded to 1/scale, null kept (not observed). */
+const rn = (v: number | null, scale: number): number | null => (v !== null && Number.isFinite(v) ? Math.round(v * scale) / scale : null);
 
 export function summaryObject(result: AuditResult): Record<string, unknown> {
   const stopRows = result.stops.length;
@@ -73,6 +76,31 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
     warnings: result.warnings.map((w) => ({ code: w.code, message: w.message, count: w.count, examples: [...w.examples] })),
     assumptions: [...result.assumptions],
     cautions: [...CAUTIONS],
+    observed: result.observed
+      ? {
+          source: result.observed.source,
+          snapshots_read: result.observed.snapshotsRead,
+          snapshots_skipped: result.observed.snapshotsSkipped,
+          trips_matched: result.observed.tripsMatched,
+          trips_unmatched: result.observed.tripsUnmatched,
+          patterns: result.patterns.flatMap((p) => {
+            const o = p.observed;
+            if (!o) return [];
+            return [
+              {
+                pattern_id: p.patternId,
+                trips_observed: o.tripsObserved,
+                dwell_s: rn(o.dwellS, 10),
+                door_time_s: rn(o.doorTimeS, 10),
+                stop_loss_s: rn(o.stopLossS, 100),
+                cruise_speed_mps: rn(o.cruiseSpeedMps, 100),
+                stop_share: rn(o.stopShare, 1000),
+                lost_time_observed_parts: [...o.lostTimeParts],
+              },
+            ];
+          }),
+        }
+      : null,
   };
 }
 

@@ -132,12 +132,29 @@ describe('checkFeed', () => {
     const spec = cleanSpec();
     spec.routes = [{ id: 'R1', type: 2 }];
     spec.trips[0].times = spec.trips[0].times.map(([id, , , s], k) => [id, 28800 + 5 * k, 28800 + 5 * k, s]);
+    // no span between timed stops is flagged; the whole run, 1 600 m with three stops in 20 s, still is (see below)
+    const r = run(spec);
+    expect(r.counts['implausible-speed']).toBe(1);
+    expect(r.findings.find((f) => f.code === 'implausible-speed')!.examples[0].detail).toMatch(/^pattern \S+ \(rail\): 1600 m with 3 stops between in 20 s/);
+  });
+
+  it('implausible-speed: a whole run faster than any plausible speed explains once the bus stops, as the audit judges it', () => {
+    // 1 600 m with three stops between in 90 s: 64 km/h between timed stops, under the 100 km/h bound, but
+    // with 5 s door time, 2 s re-entry and 1.22 m/s2 braking and accelerating at each stop no cruise speed
+    // up to 25 m/s keeps to it (the shortest run time, at the best V, is about 180 s) [D]
+    const spec = cleanSpec();
+    spec.trips[0].times = spec.trips[0].times.map(([id, , , s], k) => [id, 28800 + Math.round(22.5 * k), 28800 + Math.round(22.5 * k), s]);
+    const r = run(spec);
+    expect(r.counts['implausible-speed']).toBe(1);
+    expect(r.findings[0].examples[0].detail).toMatch(/stops between in 90 s is faster than any cruise speed up to 90\.0 km\/h/);
+    // at 60 s a gap (240 s in all) it is plausible
+    spec.trips[0].times = spec.trips[0].times.map(([id, , , s], k) => [id, 28800 + 60 * k, 28800 + 60 * k, s]);
     expect(run(spec).counts['implausible-speed']).toBe(0);
   });
 
   it('implausible-speed: minute-rounded schedules with zero-time gaps are merged, not flagged', () => {
     const spec = cleanSpec();
-    const mins = [0, 0, 1, 1, 2]; // 1 600 m in 120 s = 48 km/h overall
+    const mins = [0, 0, 2, 2, 4]; // 1 600 m in 240 s = 24 km/h overall
     spec.trips[0].times = spec.trips[0].times.map(([id, , , s], k) => [id, 28800 + 60 * mins[k], 28800 + 60 * mins[k], s]);
     expect(run(spec).counts['implausible-speed']).toBe(0);
   });

@@ -70,6 +70,14 @@ describe.skipIf(!have)('runAudit on nyct-bus-manhattan.zip', () => {
     expect(r.patterns.filter((p) => p.trafficDelayS! > 0).length).toBeGreaterThan(r.patterns.length / 2);
   });
 
+  it('models no pattern cruising above the plausible bus speed from its schedule alone', () => {
+    // a schedule no plausible speed explains takes the typical 25 mph, never the 25 m/s ceiling
+    for (const p of r.patterns) expect(p.cruiseSpeedMps).toBeLessThanOrEqual(25);
+    const tooFast = r.warnings.find((w) => w.code === 'schedule-too-fast')?.count ?? 0;
+    expect(r.patterns.filter((p) => p.cruiseSpeedMps > 11.18).length).toBe(0);
+    expect(tooFast).toBe(0); // measured: none of the 151 patterns on 2026-10-14
+  });
+
   it('ranks candidates and never removes a fixed stop', () => {
     const fixed = new Set(r.stops.filter((s) => s.verdict === 'fixed').map((s) => s.stopId));
     for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay);

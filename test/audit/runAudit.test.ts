@@ -9,6 +9,9 @@ import { runAudit } from '../../src/audit/runAudit.js';
 import { bandRatios } from '../../src/model/band.js';
 import type { ObservedData } from '../../src/realtime/types.js';
 import { handmadeNetwork } from './handmade.js';
+import { checkFeed } from '../../src/audit/check.js';
+import { brakingAcceleratingS } from '../../src/model/lostTime.js';
+import type { ObservedPattern } from '../../src/realtime/types.js';
 
 // stops about 110 m apart over 6 km (mean trip 2 km): the square-root optimum at 25 mph is about 184 m
 const closeSpacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));
@@ -110,13 +113,14 @@ describe('runAudit', () => {
       snapshotsSkipped: 0,
       tripsMatched: 5,
       tripsUnmatched: 0,
-      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
+      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, dwellFixedS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
       warnings: [],
     };
     const o = runAudit(feed, patterns, { params: {}, observed });
     const p = o.patterns.find((x) => x.patternId === v1.id)!;
     expect(p).toMatchObject({ lostTimeSource: 'observed', lostTimePerStopS: 17.5, cruiseSpeedMps: 7, cruiseSpeedSource: 'observed' });
     expect(o.lostTimeSource).toBe('observed');
+    expect(p.observed).toEqual({ tripsObserved: 5, dwellS: 12, doorTimeS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: 0.5, lostTimeParts: ['door_time', 'stop_loss'] });
     const mid = o.stops.find((s) => s.patternId === v1.id && s.stopIndex === 3)!;
     expect(mid.stopProbability).toBeCloseTo(0.5, 9);
   });
@@ -166,5 +170,77 @@ describe('runAudit', () => {
     expect(forced.patterns.every((p) => p.stoppingModel === 'poisson')).toBe(true);
     expect(forced.params.stopping_model.source).toBe('user');
     expect(assumed.params.stopping_model.note).toMatch(/always on \d+/);
+  });
+});
+
+describe('runAudit with observed data beside set values and the schedule', () => {
+  const { feed, patterns } = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80 });
+  const v1 = patterns.patterns[0];
+  const archive = (o: Partial<ObservedPattern>): ObservedData => ({
+    source: 'rt.zip',
+    snapshotsRead: 10,
+    snapshotsSkipped: 0,
+    tripsMatched: 5,
+    tripsUnmatched: 0,
+    byPattern: new Map([
+      [v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 14, lostTimePerStopS: 19, dwellFixedS: 9, stopLossS: 10, cruiseSpeedMps: 8, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null), ...o }],
+    ]),
+    warnings: [],
+  });
+
+  it('lets a value set explicitly win over an observed one, with a warning naming both', () => {
+    const r = runAudit(feed, patterns, { params: { cruise_speed_mps: 10, door_time_s: 4 }, observed: archive({}) });
+    const p = r.patterns.find((x) => x.patternId === v1.id)!;
+    expect(p).toMatchObject({ cruiseSpeedMps: 10, cruiseSpeedSource: 'user' });
+    // the set speed carries its own braking and accelerating, not the loss fitted with the observed speed
+    expect(p.lostTimePerStopS).toBeCloseTo(4 + brakingAcceleratingS(10, { accelMps2: 1.22, decelMps2: 1.22 }) + 2, 9);
+    expect(p.lostTimeSource).toBe('default');
+    expect(p.observed).toMatchObject({ doorTimeS: 9, stopLossS: 10, cruiseSpeedMps: 8, lostTimeParts: [] });
+    const w = (code: string) => r.warnings.find((x) => x.code === code);
+    expect(w('observed-overridden-cruise-speed-mps')?.message).toMatch(/cruise_speed_mps set explicitly \(10 m\/s\)/);
+    expect(w('observed-overridden-cruise-speed-mps')?.examples).toEqual([`${v1.id}: set 10 m/s, observed 8 m/s`]);
+    expect(w('observed-overridden-door-time-s')?.examples).toEqual([`${v1.id}: set 4 s, observed 9 s`]);
+    expect(w('observed-overridden-stop-loss')?.examples[0]).toMatch(new RegExp(`^${v1.id}: set [\\d.]+ s, observed 10 s$`));
+    // without set values the observed ones are used, both parts
+    const o = runAudit(feed, patterns, { observed: archive({}) }).patterns.find((x) => x.patternId === v1.id)!;
+    expect(o).toMatchObject({ cruiseSpeedMps: 8, cruiseSpeedSource: 'observed', lostTimePerStopS: 19, lostTimeSource: 'observed' });
+    expect(o.observed?.lostTimeParts).toEqual(['door_time', 'stop_loss']);
+  });
+
+  it('serves a stop without an observed share on assumed demand, as every stop is without an archive', () => {
+    const shares = v1.stopIdx.map((_, j) => (j === 3 ? null : 0.5));
+    const r = runAudit(feed, patterns, { observed: archive({ stopShare: shares }) });
+    const stop = (j: number) => r.stops.find((s) => s.patternId === v1.id && s.stopIndex === j)!;
+    expect(stop(3).stopProbability).toBe(1);
+    expect(stop(4).stopProbability).toBeCloseTo(0.5, 9);
+    expect(r.patterns.find((x) => x.patternId === v1.id)!.observed?.stopShare).toBeCloseTo(0.5, 9);
+  });
+
+  it('falls back, for stopping_model=observed without an archive, to the rule without one, and says so', () => {
+    const r = runAudit(feed, patterns, { params: { stopping_model: 'observed' } });
+    expect(r.patterns.every((p) => p.stoppingModel === 'always')).toBe(true); // demand assumed
+    expect(r.warnings.find((w) => w.code === 'no-observed-stopping')?.message).toMatch(/every stop served \(demand assumed\)/);
+  });
+
+  it('takes the typical speed for a schedule faster than any plausible speed explains, warns naming the pattern, and check agrees', () => {
+    // 6 km with 54 stops served in 10 minutes: no cruise speed up to 25 m/s keeps to it
+    const fast = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80, runTimeS: 600 });
+    const r = runAudit(fast.feed, fast.patterns, {});
+    const p = r.patterns.find((x) => x.patternId === v1.id)!;
+    expect(p.cruiseSpeedSource).toBe('estimated');
+    expect(p.cruiseSpeedMps).toBeCloseTo(11.176, 3); // 25 mph, not the 25 m/s ceiling
+    // [S] HCM 2010 transit delay expression, via the design notes: 9.17 s braking and accelerating at
+    // 25 mph with a = d = 4.0 ft/s2 (the default 1.22 m/s2 is that rate rounded, so within 0.05 s);
+    // [C] Levinson 1983 (TRR 915): 5 s fixed dwell; re-entry 2 s assumed
+    expect(p.lostTimePerStopS).toBeCloseTo(5 + 9.17 + 2, 1);
+    const w = r.warnings.find((x) => x.code === 'schedule-too-fast');
+    expect(w?.count).toBe(1);
+    expect(w?.examples[0]).toMatch(new RegExp(`^${v1.id}: no cruise speed keeps to it, highest plausible 25, used 11.18$`));
+    const c = checkFeed(fast.feed, fast.patterns, { today: '2026-10-14' });
+    expect(c.counts['implausible-speed']).toBe(1);
+    expect(c.findings.find((f) => f.code === 'implausible-speed')!.examples[0].ids.pattern).toBe(v1.id);
+    // the ordinary schedule (4 m/s overall) is neither
+    expect(runAudit(feed, patterns, {}).warnings.some((x) => x.code === 'schedule-too-fast')).toBe(false);
+    expect(checkFeed(feed, patterns, { today: '2026-10-14' }).counts['implausible-speed']).toBe(0);
   });
 });

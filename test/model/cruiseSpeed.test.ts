@@ -47,16 +47,27 @@ describe('estimateCruiseSpeed', () => {
     expect(lostTimePerStopS(slow.cruiseSpeedMps, { doorTimeS: 0, reentryDelayS: 0, accelMps2: 1.22, decelMps2: 1.22 })).toBeCloseTo(9.17, 1);
   });
 
-  it('caps a schedule too tight to be explained at the top of the range', () => {
-    const est = estimateCruiseSpeed({ runTimeS: 100, lengthM: 8000, expectedStopsServed: 30, boardingsPerTrip: 40, ...kin, routeType: 3 });
-    expect(est.basis).toBe('ceiling');
-    expect(est.cruiseSpeedMps).toBe(25);
+  it('takes the typical speed, never the highest, for a schedule faster than any plausible speed explains', () => {
+    const { typicalMps, maxMps } = cruiseSpeedBoundsMps(3);
+    // no root at all: too little time even to drive the length
+    const none = estimateCruiseSpeed({ runTimeS: 100, lengthM: 8000, expectedStopsServed: 30, boardingsPerTrip: 40, ...kin, routeType: 3 });
+    expect(none.basis).toBe('implausible');
+    expect(Number.isNaN(none.solvedMps)).toBe(true);
+    expect(none.cruiseSpeedMps).toBe(typicalMps);
+    expect(none.trafficDelayS).toBe(0);
+    // a root, but above the highest plausible bus speed (a schedule built for 27 m/s)
+    const T = scheduleS(27, 8000, 10, 0);
+    const fast = estimateCruiseSpeed({ runTimeS: T, lengthM: 8000, expectedStopsServed: 10, boardingsPerTrip: 0, ...kin, routeType: 3 });
+    expect(fast.solvedMps).toBeCloseTo(27, 6);
+    expect(fast.basis).toBe('implausible');
+    expect(fast.cruiseSpeedMps).toBe(typicalMps);
+    expect(fast.cruiseSpeedMps).toBeLessThan(maxMps);
   });
 
   it('uses the bounds of the route type, extended types included', () => {
     const T = scheduleS(30, 40000, 5, 0);
     expect(estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 2 }).cruiseSpeedMps).toBeCloseTo(30, 9);
-    expect(estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 700 }).basis).toBe('ceiling');
+    expect(estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 700 }).basis).toBe('implausible');
     expect(cruiseSpeedBoundsMps(704)).toEqual(cruiseSpeedBoundsMps(3));
   });
 });

@@ -15,7 +15,8 @@ const sample = makeSampleResult();
 const PATTERN_HEADER =
   'pattern_id,route_id,route_short_name,direction_id,headsign,shape_id,distance_source,stop_count,length_m,trips_per_day,median_gap_m,mean_gap_m,optimal_spacing_m,band_low_m,band_high_m,close_stops,wide_gaps,optimal_stop_count,pax_min_lost_per_day,demand_source' +
   // the contract's columns first, then the figures behind each pattern's optimum
-  ',lost_time_per_stop_s,lost_time_source,cruise_speed_mps,cruise_speed_source,traffic_delay_s,stopping_model,mean_trip_length_m';
+  ',lost_time_per_stop_s,lost_time_source,cruise_speed_mps,cruise_speed_source,traffic_delay_s,stopping_model,mean_trip_length_m' +
+  ',observed_trips,observed_dwell_s,observed_door_time_s,observed_stop_loss_s,observed_cruise_speed_mps,observed_stop_share,lost_time_observed_parts';
 const STOP_HEADER =
   'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,removal_net_pax_min_per_day,demand_source';
 

@@ -34,6 +34,18 @@ describe('summary.json', () => {
     expect(ok).toBe(true);
   });
 
+  it('validates with a realtime archive read, each pattern saying what it observed, and not with a share above 1', () => {
+    const withArchive = makeSampleResult();
+    withArchive.observed = { source: 'rt.zip', snapshotsRead: 40, snapshotsSkipped: 1, tripsMatched: 12, tripsUnmatched: 0 };
+    withArchive.patterns[0].observed = { tripsObserved: 12, dwellS: 20, doorTimeS: 20, stopLossS: null, cruiseSpeedMps: null, stopShare: 0.75, lostTimeParts: ['door_time'] };
+    const doc = JSON.parse(summaryJson(withArchive));
+    expect(doc.observed.patterns).toHaveLength(1);
+    expect(validate(doc)).toBe(true);
+    expect(JSON.parse(summaryJson(sample)).observed).toBeNull();
+    doc.observed.patterns[0].stop_share = 1.5;
+    expect(validate(doc)).toBe(false);
+  });
+
   it('fails validation when a field is missing, misspelt or out of its range', () => {
     const base = JSON.parse(summaryJson(sample));
     const broken = [
