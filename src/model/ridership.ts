@@ -5,6 +5,7 @@
 // route) is an error naming file, line, column and value. Rows naming stops or routes the feed does not
 // have are skipped and counted as warnings (counter exports often cover more than one feed).
 
+import { parseDecimal } from '../common/decimal.js';
 import { readFileSync } from 'node:fs';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
@@ -29,9 +30,8 @@ export interface Ridership {
 const REQUIRED = ['stop_id', 'boardings', 'alightings'] as const;
 
 function count(text: string, file: string, line: number, column: string): number {
-  const v = text.trim();
-  const n = v === '' ? NaN : Number(v);
-  if (!Number.isFinite(n) || n < 0) {
+  const n = parseDecimal(text);
+  if (n === null || n < 0) {
     throw new StopspanError('bad-ridership', `invalid ${column}: expected a number of 0 or more per day`, { file, line, column, value: text });
   }
   return n;
