@@ -8,11 +8,11 @@
  * isolates, zero-width spaces and joiners, the byte-order mark, soft hyphen, tag characters), the line and
  * paragraph separators (Zl, Zp) and lone surrogate halves (Cs).
  */
-const UNSEEN = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}\p{Cs}]/gu;
+export const UNSEEN_CHARS = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}\p{Cs}]/gu;
 
 /** `s` with each unseen character shown as \uXXXX (\u{XXXXX} beyond the BMP); other text, non-ASCII letters included, as it was. */
 export function terminalText(s: string): string {
-  return s.replace(UNSEEN, (c) => {
+  return s.replace(UNSEEN_CHARS, (c) => {
     const cp = c.codePointAt(0) as number;
     return cp > 0xffff ? `\\u{${cp.toString(16)}}` : `\\u${cp.toString(16).padStart(4, '0')}`;
   });

@@ -4,13 +4,14 @@
 // visible) and points at the one that is nearly the name asked for.
 
 import { StopspanError } from '../common/errors.js';
+import { UNSEEN_CHARS } from '../common/terminalText.js';
 
 /** Names listed in the message at most; the rest are counted. */
 const SHOWN_NAMES = 12;
 
-/** A name as a person reads it: without unseen characters (Unicode Cc, Cf, Z*) and in lower case. */
+/** A name as a person reads it: without unseen characters (terminalText's), without spaces, in lower case. */
 function seenAs(name: string): string {
-  return name.replace(/[\p{Cc}\p{Cf}\p{Z}]/gu, '').toLowerCase();
+  return name.replace(UNSEEN_CHARS, '').replace(/\s+/g, '').toLowerCase();
 }
 
 /** Levenshtein distance, stopping early above `max` (returns max + 1 then). */
@@ -32,13 +33,16 @@ function editDistance(a: string, b: string, max: number): number {
 
 /** The header name that is nearly `column`, and how it differs; null when none is close. */
 export function nearColumn(header: readonly string[], column: string): { name: string; how: string } | null {
-  for (const h of header) if (h !== column && seenAs(h) === column) return { name: h, how: /[\p{Cc}\p{Cf}\p{Z}]/u.test(h) ? 'differs by unseen characters' : 'differs in case' };
+  for (const h of header) {
+    if (h === column || seenAs(h) !== column) continue;
+    return { name: h, how: h.replace(UNSEEN_CHARS, '') !== h ? 'by unseen characters' : h.toLowerCase() === column ? 'in case' : 'by spaces' };
+  }
   let best: { name: string; d: number } | null = null;
   for (const h of header) {
     const d = editDistance(seenAs(h), column, 2);
     if (d <= 2 && (best === null || d < best.d)) best = { name: h, d };
   }
-  return best && column.length >= 5 ? { name: best.name, how: `is ${best.d} letter${best.d === 1 ? '' : 's'} off` } : null;
+  return best && column.length >= 5 ? { name: best.name, how: `by ${best.d} letter${best.d === 1 ? '' : 's'}` } : null;
 }
 
 /** 'missing-column' for `column` of `file`, naming the header's names and the near match if any. */
@@ -48,6 +52,6 @@ export function missingColumn(file: string, header: readonly string[], column: s
   const more = names.length > SHOWN_NAMES ? ` and ${names.length - SHOWN_NAMES} more` : '';
   const seen = names.length === 0 ? 'the header is empty' : `the header has ${listed.join(', ')}${more}`;
   const near = nearColumn(names, column);
-  const hint = near ? `; ${JSON.stringify(near.name)} ${near.how} from ${column}` : '';
+  const hint = near ? `; ${JSON.stringify(near.name)} differs from ${column} ${near.how}` : '';
   return new StopspanError('missing-column', `required column ${column} is missing${why}: ${seen}${hint}`, { file, line: 1, column });
 }
