@@ -31,27 +31,32 @@ function editDistance(a: string, b: string, max: number): number {
   return prev[b.length];
 }
 
-/** The header name that is nearly `column`, and how it differs; null when none is close. */
-export function nearColumn(header: readonly string[], column: string): { name: string; how: string } | null {
+/**
+ * The header name that is nearly `column`, and how it differs; null when none is close. Names in `known`
+ * (the table's other columns, such as stop_lat beside a missing stop_lon) are columns in their own right,
+ * never a slip for this one.
+ */
+export function nearColumn(header: readonly string[], column: string, known: ReadonlySet<string> = new Set()): { name: string; how: string } | null {
   for (const h of header) {
     if (h === column || seenAs(h) !== column) continue;
     return { name: h, how: h.replace(UNSEEN_CHARS, '') !== h ? 'by unseen characters' : h.toLowerCase() === column ? 'in case' : 'by spaces' };
   }
   let best: { name: string; d: number } | null = null;
   for (const h of header) {
+    if (known.has(h)) continue;
     const d = editDistance(seenAs(h), column, 2);
     if (d <= 2 && (best === null || d < best.d)) best = { name: h, d };
   }
   return best && column.length >= 5 ? { name: best.name, how: `by ${best.d} letter${best.d === 1 ? '' : 's'}` } : null;
 }
 
-/** 'missing-column' for `column` of `file`, naming the header's names and the near match if any. */
-export function missingColumn(file: string, header: readonly string[], column: string, why = ''): StopspanError {
+/** 'missing-column' for `column` of `file`, naming the header's names and the near match if any (`known`: see nearColumn). */
+export function missingColumn(file: string, header: readonly string[], column: string, { why = '', known = new Set<string>() }: { why?: string; known?: ReadonlySet<string> } = {}): StopspanError {
   const names = header.filter((h) => h !== '');
   const listed = names.slice(0, SHOWN_NAMES).map((h) => JSON.stringify(h));
   const more = names.length > SHOWN_NAMES ? ` and ${names.length - SHOWN_NAMES} more` : '';
   const seen = names.length === 0 ? 'the header is empty' : `the header has ${listed.join(', ')}${more}`;
-  const near = nearColumn(names, column);
+  const near = nearColumn(names, column, known);
   const hint = near ? `; ${JSON.stringify(near.name)} differs from ${column} ${near.how}` : '';
   return new StopspanError('missing-column', `required column ${column} is missing${why}: ${seen}${hint}`, { file, line: 1, column });
 }

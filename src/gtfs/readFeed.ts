@@ -74,7 +74,7 @@ function columnIndex<R extends string, O extends string>(file: string, header: s
   const c: Record<string, number> = {};
   for (const r of required) {
     const i = at.get(r);
-    if (i === undefined) throw missingColumn(file, header, r);
+    if (i === undefined) throw missingColumn(file, header, r, { known: new Set<string>([...required, ...optional]) });
     c[r] = i;
   }
   for (const o of optional) c[o] = at.get(o) ?? -1;
@@ -204,11 +204,12 @@ async function readArchive(
   // stops.txt
   const stops: Stop[] = [];
   const stopIndex = new Map<string, number>();
+  const STOPS_COLUMNS = new Set(['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station']);
   await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c, stopsHeader) => {
     const id = need('stops.txt', row, c.stop_id, 'stop_id');
     const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
     if (locationType <= 2 && (c.stop_lat < 0 || c.stop_lon < 0)) {
-      throw missingColumn('stops.txt', stopsHeader, c.stop_lat < 0 ? 'stop_lat' : 'stop_lon', ' (stops need coordinates)');
+      throw missingColumn('stops.txt', stopsHeader, c.stop_lat < 0 ? 'stop_lat' : 'stop_lon', { why: ' (stops need coordinates)', known: STOPS_COLUMNS });
     }
     const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
     const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
@@ -238,6 +239,7 @@ async function readArchive(
       });
       const start = checkDate(row.get(c.start_date)) ?? bad('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
       const end = checkDate(row.get(c.end_date)) ?? bad('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
+      if (end < start) warnings.add('calendar-end-before-start', 'calendar.txt rows whose end_date is before their start_date (the service runs on no date they cover)', `calendar.txt:${row.line}`);
       calendar.push({ serviceId: need('calendar.txt', row, c.service_id, 'service_id'), days, start, end });
     });
   }

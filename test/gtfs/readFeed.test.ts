@@ -270,6 +270,11 @@ describe('readFeed refuses', () => {
     );
     const typo = await rejected(readFeed(feedCopy({ 'stops.txt': stops.replace('\u200bstop_id', 'stopid') })));
     expect(typo.message).toContain('"stopid" differs from stop_id by 1 letter');
+    // a column of the table in its own right is never offered as a slip: stop_lat beside a missing stop_lon
+    const noLon = readFileSync(join(BASIC, 'stops.txt'), 'utf8').replace(',stop_lon,', ',lon_of_stop,');
+    const lon = await rejected(readFeed(feedCopy({ 'stops.txt': noLon })));
+    expect(lon).toMatchObject({ code: 'missing-column', context: { column: 'stop_lon' } });
+    expect(lon.message).not.toContain('differs');
   });
 
   it('times past the bound of 168 hours, which 32-bit columns could not hold at 596 524 hours', async () => {
