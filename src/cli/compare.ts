@@ -1,6 +1,7 @@
 // `stopspan compare OLD NEW`: what changed between two versions of a feed, as a terminal summary, JSON,
 // or an HTML page in --out.
 
+import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
@@ -58,7 +59,7 @@ export function registerCompare(program: Command): void {
         const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, ...c };
         if (o.out) {
           const written = await writeFiles(o.out, { 'compare.html': comparisonHtml(c), 'compare.json': JSON.stringify(doc, null, 2) + '\n' });
-          if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
+          if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));
         return EXIT.clean;
