@@ -329,6 +329,16 @@ describe('buildPatterns: shapes with no length and stops that cannot be where th
     expect(w).toMatchObject({ count: 1, examples: ['C'] });
   });
 
+  it('on a northbound shape, where the pole is nearest its far end: the stops after it keep their places', () => {
+    // projected, a stop at the pole lands on the shape's northern end and the forward search pulls every
+    // later stop there (gaps 900, 0, 0, ... before this rule)
+    const north: Record<string, [number, number]> = { A: [6, 0], B: [6, 300], C: [6, 600], D: [6, 900], E: [6, 1200] };
+    const feed = handFeed({ stops: north, shapes: { SH1: { xy: line(0, 0, 0, 1200) } }, trips: [run('n1', ['A', 'B', 'C', 'D', 'E'], 0)] });
+    feed.stops[feed.stopIndex.get('B')!].lat = 90;
+    const p = buildPatterns(feed).patterns[0];
+    expect(p.distAlongM.map((d) => Math.round(d))).toEqual([0, 300, 600, 900, 1200]);
+  });
+
   it('does the same without a shape: the great-circle distances skip the faulty stop', () => {
     const feed = handFeed({ stops: STOPS, trips: [run('p2', ['A', 'B', 'C', 'D', 'E'], 0, { shape: '' })] });
     feed.stops[feed.stopIndex.get('B')!].lat = -89.5;
