@@ -181,8 +181,8 @@ function withTable(name, fn) {
 }
 
 // ---------------------------------------------------------------------------------------------------
-// The cases. exit: 2 unusable input (one-line error naming `words`), 0 usable (warning: a counted warning
-// is expected in summary.json).
+// The cases. exit: 2 unusable input (one-line error naming `words`), 0 usable (warning: the code of the
+// counted warning expected in summary.json).
 
 async function committedCases() {
   const base = minimalFeed();
@@ -230,14 +230,14 @@ async function committedCases() {
   };
   const t = minimalFeed();
   await table('empty-table', 'stops.txt', '', 2, ['stops.txt'], 'stops.txt has zero bytes: no header, no stops');
-  await table('empty-optional-table', 'shapes.txt', '', 0, [], 'shapes.txt (optional) has zero bytes: fall back to straight lines and say so', { warning: true });
+  await table('empty-optional-table', 'shapes.txt', '', 0, [], 'shapes.txt (optional) has zero bytes: fall back to straight lines and say so', { warning: 'empty-table' });
   await table('header-only', 'stop_times.txt', 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n', 2, ['stop_times.txt'], 'stop_times.txt has a header and no rows: no trip has stops');
   await table('duplicate-header', 'stops.txt', t['stops.txt'].replace('stop_id,stop_name,stop_lat,stop_lon', 'stop_id,stop_name,stop_lat,stop_lon,stop_name').split('\n').map((l, i) => (i === 0 || l === '' ? l : l + ',Again')).join('\n'), 2, ['stops.txt', 'stop_name'], 'stops.txt names the column stop_name twice: which one is meant is unknowable');
   {
     const feed = minimalFeed();
     const text = Buffer.concat([Buffer.from(feed['stops.txt'].split('\n').slice(0, 2).join('\n') + '\n'), Buffer.from('S2,Caf'), Buffer.from([0xe9]), Buffer.from(' Corner,45.020000,10.033200\n'), Buffer.from(feed['stops.txt'].split('\n').slice(3).join('\n'))]);
     feed['stops.txt'] = text;
-    add({ name: 'non-utf8', path: 'non-utf8.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'a Latin-1 byte (0xE9) in a stop name: GTFS text is UTF-8; the name is damaged but the feed is usable, so replace the byte (U+FFFD) and count it with its place' });
+    add({ name: 'non-utf8', path: 'non-utf8.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'invalid-utf8', why: 'a Latin-1 byte (0xE9) in a stop name: GTFS text is UTF-8; the name is damaged but the feed is usable, so replace the byte (U+FFFD) and count it with its place' });
   }
   await table('unterminated-quote', 'trips.txt', 'route_id,service_id,trip_id,direction_id,shape_id,trip_headsign\nM1,WKDY,M1-1,0,SH1,"Mill Lane\nM1,WKDY,M1-2,0,SH1,Mill Lane\nM2,WKDY,M2-1,0,SH2,Ferry Street\nM2,WKDY,M2-2,0,SH2,Ferry Street\n', 2, ['trips.txt', 'trip_headsign'], 'a quote opened in trip_headsign on line 2 never closes');
   {
@@ -250,31 +250,31 @@ async function committedCases() {
   await table('lat-out-of-range', 'stops.txt', setLine(t['stops.txt'], 3, 'S2,Mill Ln / Stop 2,95.020000,10.033200'), 2, ['stops.txt', 'stop_lat'], 'stop_lat 95: latitude lies in [-90, 90]');
   await table('lon-nan', 'stops.txt', setLine(t['stops.txt'], 4, 'S3,Mill Ln / Stop 3,45.020000,NaN'), 2, ['stops.txt', 'stop_lon'], 'stop_lon NaN');
   await table('sequence-not-numeric', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S3,third'), 2, ['stop_times.txt', 'stop_sequence'], 'stop_sequence "third"');
-  await table('sequence-repeated', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S3,2'), 0, [], 'trip M1-1 gives stop_sequence 2 twice: the order of its stops is unknowable; leave that trip out (or at least the repeated row), count it, audit the rest', { warning: true });
-  await table('trips-missing-route', 'trips.txt', t['trips.txt'].replace(/^M2,/gm, 'M9,'), 0, [], 'the M2 trips name route M9, which does not exist: skip them, count it, audit M1', { warning: true });
+  await table('sequence-repeated', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S3,2'), 0, [], 'trip M1-1 gives stop_sequence 2 twice: the order of its stops is unknowable; leave that trip out (or at least the repeated row), count it, audit the rest', { warning: 'repeated-stop-sequence' });
+  await table('trips-missing-route', 'trips.txt', t['trips.txt'].replace(/^M2,/gm, 'M9,'), 0, [], 'the M2 trips name route M9, which does not exist: skip them, count it, audit M1', { warning: 'trip-unknown-route' });
   await table('all-trips-missing-route', 'trips.txt', t['trips.txt'].replace(/^M[12],/gm, 'MX,'), 2, ['trips.txt', 'route_id'], 'every trip names route MX, which does not exist: nothing is left');
   {
     const feed = minimalFeed();
     feed['shapes.txt'] = feed['shapes.txt'].split('\n').filter((l) => !/^SH2,/.test(l) || /,1$/.test(l)).join('\n');
-    add({ name: 'shape-one-point', path: 'shape-one-point.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'shape SH2 has a single point: no path; use straight lines for M2 and say so' });
+    add({ name: 'shape-one-point', path: 'shape-one-point.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'pattern-without-shape', why: 'shape SH2 has a single point: no path; use straight lines for M2 and say so' });
   }
   {
     const feed = minimalFeed();
     feed['shapes.txt'] = feed['shapes.txt'].split('\n').map((l) => (/^SH2,/.test(l) ? l.replace(/^SH2,[^,]+,[^,]+,/, 'SH2,45.021000,10.029000,') : l)).join('\n');
-    add({ name: 'shape-zero-length', path: 'shape-zero-length.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'shape SH2 has four points all at one place: zero length; use straight lines for M2 and say so' });
+    add({ name: 'shape-zero-length', path: 'shape-zero-length.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'shape-zero-length', why: 'shape SH2 has four points all at one place: zero length; use straight lines for M2 and say so' });
   }
   {
     const feed = minimalFeed();
     feed['trips.txt'] += 'M2,WKDY,M2-3,0,SH2\n';
     feed['stop_times.txt'] += 'M2-3,09:10:00,09:10:00,T1,1\n';
-    add({ name: 'one-stop-pattern', path: 'one-stop-pattern.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'trip M2-3 serves a single stop: a pattern with no gap; skip it, count it' });
+    add({ name: 'one-stop-pattern', path: 'one-stop-pattern.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'trip-too-short', why: 'trip M2-3 serves a single stop: a pattern with no gap; skip it, count it' });
   }
   await table('calendar-never-runs', 'calendar.txt', 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWKDY,0,0,0,0,0,0,0,20261102,20270331\n', 2, ['calendar.txt'], 'the only service runs on no day of the week and calendar_dates adds none: no trip ever runs');
   {
     const feed = minimalFeed();
     feed['calendar.txt'] += 'NEVER,1,1,1,1,1,0,0,20270331,20261102\n';
     feed['trips.txt'] = feed['trips.txt'].replace('M2,WKDY,M2-2', 'M2,NEVER,M2-2');
-    add({ name: 'one-service-never-runs', path: 'one-service-never-runs.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: true, why: 'service NEVER ends before it starts: trip M2-2 never runs; the rest is usable' });
+    add({ name: 'one-service-never-runs', path: 'one-service-never-runs.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'calendar-end-before-start', why: 'service NEVER ends before it starts: trip M2-2 never runs; the rest is usable' });
   }
 
   // missing pieces, and two valid oddities a reader must take in its stride
@@ -286,7 +286,34 @@ async function committedCases() {
     for (const k of Object.keys(feed)) feed[k] = '\ufeff' + feed[k].replace(/\n/g, '\r\n');
     add({ name: 'bom-crlf', path: 'bom-crlf.zip', bytes: await zipBuffer(feed), exit: 0, words: [], why: 'every table starts with a UTF-8 byte-order mark and ends lines with CRLF: valid, read as usual' });
   }
-  await table('padded-values', 'stops.txt', t['stops.txt'].split('\n').map((l, i) => (i === 0 || l === '' ? l : l.replace(/,(45\.\d+),(10\.\d+)$/, ', $1 ,  $2'))).join('\n'), 0, [], 'stop_lat and stop_lon padded with spaces, as some real feeds are: trim them and count it', { warning: true });
+  await table('padded-values', 'stops.txt', t['stops.txt'].split('\n').map((l, i) => (i === 0 || l === '' ? l : l.replace(/,(45\.\d+),(10\.\d+)$/, ', $1 ,  $2'))).join('\n'), 0, [], 'stop_lat and stop_lon padded with spaces, as some real feeds are: trim them and count it', { warning: 'padded-values' });
+
+  // values that would read as something else, and messages that must say what they saw
+  await table('quoted-blank-coordinate', 'stops.txt', setLine(t['stops.txt'], 3, 'S2,Mill Ln / Stop 2," ",10.033200'), 2, ['stops.txt:3', 'stop_lat', '" "'], 'stop_lat is a quoted space: a value that is not a number, not 0 (a stop on the equator)');
+  await table('hex-coordinate', 'stops.txt', setLine(t['stops.txt'], 3, 'S2,Mill Ln / Stop 2,0x2D,10.033200'), 2, ['stops.txt:3', 'stop_lat', '0x2D'], 'stop_lat 0x2D: GTFS numbers are decimal; JavaScript would read 45');
+  await table('binary-coordinate', 'stops.txt', setLine(t['stops.txt'], 3, 'S2,Mill Ln / Stop 2,45.020000,0b1010'), 2, ['stops.txt:3', 'stop_lon', '0b1010'], 'stop_lon 0b1010: GTFS numbers are decimal; JavaScript would read 10');
+  await table('time-overflow', 'stop_times.txt', setLine(t['stop_times.txt'], 3, 'M1-1,596524:00:00,596524:00:00,S2,2'), 2, ['stop_times.txt:3', 'arrival_time', '596524:00:00', '168:00:00'], 'arrival_time 596524:00:00 is 2^31 seconds and more: past the bound of 168 hours');
+  {
+    const feed = minimalFeed();
+    feed['stops.txt'] = feed['stops.txt'].replace(/^T2,([^,]+),[^,]+,/m, 'T2,$1,89.999000,');
+    add({ name: 'stop-at-pole', path: 'stop-at-pole.zip', bytes: await zipBuffer(feed), exit: 0, words: [], warning: 'stop-coordinate-fault', why: 'stop T2 of the northbound M2 is typed at the North Pole: projected, it would land at the end of the shape and pull the stops after it there; keep it out of the distances (between its neighbours) and count it' });
+  }
+  {
+    const feed = minimalFeed();
+    feed['trips.txt'] = feed['trips.txt'].replace('trip_id,direction_id,shape_id', 'trip_id,direction_id,shape_id,trip_headsign').replace(/(SH[12])\n/g, '$1,x\n').replace('M1,WKDY,M1-2,0,SH1,x', 'M1,WKDY,M1-2,0,SH1,"Mill\nLa\u0000ne"');
+    add({ name: 'nul-in-quoted-lines', path: 'nul-in-quoted-lines.zip', bytes: await zipBuffer(feed), exit: 2, words: ['trips.txt:4', 'trip_headsign'], why: 'a NUL on the second line of a quoted trip_headsign that starts on line 3' });
+  }
+  {
+    const feed = minimalFeed();
+    feed['routes.txt'] = Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(feed['routes.txt'], 'utf16le')]);
+    add({ name: 'utf16-bom', path: 'utf16-bom.zip', bytes: await zipBuffer(feed), exit: 2, words: ['routes.txt', 'UTF-16', 'UTF-8'], why: 'routes.txt is UTF-16 with a byte-order mark (FF FE): GTFS files are UTF-8' });
+    const feed2 = minimalFeed();
+    feed2['routes.txt'] = Buffer.from(feed2['routes.txt'], 'utf16le').swap16();
+    add({ name: 'utf16-no-bom', path: 'utf16-no-bom.zip', bytes: await zipBuffer(feed2), exit: 2, words: ['routes.txt', 'UTF-16', 'UTF-8'], why: 'routes.txt is big-endian UTF-16 without a byte-order mark: a NUL before every character' });
+  }
+  await table('invisible-header', 'stops.txt', t['stops.txt'].replace(/^stop_id/, '\u200bstop_id'), 2, ['stops.txt', 'stop_id', '\\u200bstop_id', 'unseen'], 'a zero-width space before stop_id in the header: show the names seen, escaped, and the near match');
+  await table('rlo-in-stop-id', 'stop_times.txt', setLine(t['stop_times.txt'], 4, 'M1-1,07:02:00,07:02:00,S\u202e3,3'), 2, ['stop_times.txt:4', 'stop_id', 'S\\u202e3'], 'stop_times names stop S<RIGHT-TO-LEFT OVERRIDE>3, not in stops.txt: the error shows the override escaped, not applied');
+  await table('bom-only-optional-table', 'shapes.txt', '\ufeff', 0, [], 'shapes.txt (optional) holds only a UTF-8 byte-order mark: read as absent, as a zero-byte table is, and say so', { warning: 'empty-table' });
   return { base, baseZip, cases };
 }
 

@@ -2,6 +2,7 @@
 // and returns counts and a few examples per finding, for people and for nightly jobs' exit codes.
 
 import { haversineM } from '../network/geodesy.js';
+import { coordinateFault } from '../gtfs/coordinateFault.js';
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import { cruiseSpeedBoundsMps, estimateCruiseSpeed } from '../model/cruiseSpeed.js';
@@ -351,16 +352,13 @@ function checkWholeRunTime(feed: Feed, p: Pattern, fam: string, add: Add): void 
   });
 }
 
-/** coordinate-fault: zero, out of range or far from the feed's median stop position. */
+/** coordinate-fault: the coordinateFault rule (not numbers, out of range, zero, near a pole), or far from the feed's median stop position. */
 function checkCoordinates(feed: Feed, t: CheckThresholds, add: Add): void {
   const located = (s: Stop) => !((s.locationType === 3 || s.locationType === 4) && Number.isNaN(s.lat) && Number.isNaN(s.lon));
   const valid: Stop[] = [];
   for (const s of feed.stops) {
     if (!located(s)) continue;
-    let fault = '';
-    if (!Number.isFinite(s.lat) || !Number.isFinite(s.lon)) fault = 'missing or not a number';
-    else if (Math.abs(s.lat) > 90 || Math.abs(s.lon) > 180) fault = 'out of range';
-    else if (s.lat === 0 || s.lon === 0) fault = 'zero';
+    const fault = coordinateFault(s.lat, s.lon);
     if (fault) {
       add('coordinate-fault', { file: 'stops.txt', ids: { stop_id: s.id }, detail: `stop ${s.id} at (${s.lat}, ${s.lon}): ${fault}` });
     } else {

@@ -1,5 +1,6 @@
 // The check report as plain text for people: one block per finding, most severe first, then a summary line.
 
+import { terminalText as oneLine } from '../common/terminalText.js';
 import type { CheckReport } from './check.js';
 
 export function checkText(report: CheckReport): string {
@@ -27,10 +28,4 @@ export function checkText(report: CheckReport): string {
   lines.push('');
   lines.push(`${s.error} error, ${s.warning} warning, ${s.info} info finding(s)`);
   return lines.join('\n') + '\n';
-}
-
-/** Feed text is shown on one line with control characters escaped, so a feed cannot redraw the terminal. */
-function oneLine(s: string): string {
-  // eslint-disable-next-line no-control-regex
-  return s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }

@@ -5,8 +5,7 @@
 import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from './compare.js';
 import { escapeHtml as esc } from '../report/html/escape.js';
 import { renderCsv, type CsvColumn } from '../report/csv.js';
-// eslint-disable-next-line no-control-regex
-const term = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+import { terminalText as term } from '../common/terminalText.js';
 const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));
 const n0 = (v: number | null): string => (v === null ? '-' : Math.round(v).toString());
 /** A change in percent with its sign, or 'new' for a route that had no trips. */

@@ -63,7 +63,7 @@ export const FINDINGS: Record<FindingCode, FindingKind> = {
   },
   'coordinate-fault': {
     title: 'Coordinate fault',
-    explanation: "A stop's coordinates are zero, out of range, or far away from the rest of the feed.",
+    explanation: "A stop's coordinates are zero, out of range, near a pole, or far away from the rest of the feed.",
     severity: 'error',
   },
   'service-ending-soon': {

@@ -6,6 +6,7 @@
 // A scenario is checked whole before anything is computed: an unknown or ambiguous stop, a terminal, a
 // coordinate far from the named route, or an unknown key is a 'bad-scenario' error naming the item.
 
+import { parseDecimal } from '../common/decimal.js';
 import { readJsonFile } from '../common/readJsonFile.js';
 import { StopspanError } from '../common/errors.js';
 import type { FeedWarning } from '../common/warnings.js';
@@ -82,7 +83,7 @@ function isObject(x: unknown): x is Record<string, unknown> {
 }
 
 function num(x: unknown, what: string, file?: string): number {
-  const n = typeof x === 'string' && x.trim() !== '' ? Number(x) : x;
+  const n = typeof x === 'string' ? (parseDecimal(x) ?? x) : x;
   if (typeof n !== 'number' || !Number.isFinite(n)) throw bad(`invalid ${what}: expected a number`, String(x), file);
   return n;
 }

@@ -1,6 +1,7 @@
 // `stopspan audit FEED`: the whole audit, written as reports into a folder.
 
 import type { Command } from 'commander';
+import { terminalText } from '../common/terminalText.js';
 import path from 'node:path';
 import { auditFeed } from '../audit/auditFeed.js';
 import { loadParamsFile, normalizeParams } from '../model/params.js';
@@ -85,10 +86,10 @@ export function registerAudit(program: Command): void {
         progress.done();
         const h = result.headline;
         process.stdout.write(
-          `${result.feed.source} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
+          `${terminalText(result.feed.source)} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
             `modelled optimum ${Math.round(h.meanOptimalSpacingM)} m (${result.demandSource} demand)\n` +
             `${h.closeStops} close stops, ${h.wideGaps} wide gaps, ${groupedFixed(Math.round(h.paxMinLostPerDay))} passenger-minutes a day lost to today's spacing\n` +
-            `wrote ${written.length} files to ${outDir}${path.sep}\n`,
+            `wrote ${written.length} files to ${terminalText(outDir)}${path.sep}\n`,
         );
       } finally {
         progress.done();

@@ -1,6 +1,7 @@
 // `stopspan compare OLD NEW`: what changed between two versions of a feed, as a terminal summary, JSON,
 // or an HTML page and a CSV of changed trips in --out; exit 1 on a service cut beyond --fail-on-trip-loss.
 
+import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
@@ -85,7 +86,7 @@ export function registerCompare(program: Command): void {
             [['compare.html', () => comparisonHtml(c)], ['compare.json', JSON.stringify(doc, null, 2) + '\n'], ['compare-trips.csv', () => comparisonTripsCsv(c)]],
             outOptions,
           );
-          if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
+          if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(doc, null, 2) + '\n' : comparisonText(c));
         if (!o.json && tripLossPct !== undefined) process.stdout.write(code === EXIT.found ? `FAIL a route lost more than ${tripLossPct} % of its trips a day\n` : `no route lost more than ${tripLossPct} % of its trips a day\n`);

@@ -1,6 +1,7 @@
 // What the check and compare commands share: reading a feed and building its patterns for a date,
 // parsing numeric options into coded errors. (Output folders are written by src/report/writeFolder.ts.)
 
+import { parseDecimal } from '../common/decimal.js';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
@@ -46,8 +47,8 @@ export async function loadFeed(source: string, options: { date?: string; today?:
 /** Parses a numeric option value, or throws bad-option naming the option. */
 export function numberOption(name: string, raw: string | undefined, min = 0): number | undefined {
   if (raw === undefined) return undefined;
-  const v = Number(raw);
-  if (raw.trim() === '' || !Number.isFinite(v) || v < min) {
+  const v = parseDecimal(raw);
+  if (v === null || v < min) {
     throw new StopspanError('bad-option', `invalid option ${name}: expected a number >= ${min}, got ${raw}`, { value: raw });
   }
   return v;

@@ -1,6 +1,7 @@
 // `stopspan history FILE.sqlite`: the trend of recorded runs, as a table, JSON, or an HTML page with
 // inline SVG charts in --out.
 
+import { terminalText } from '../common/terminalText.js';
 import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
 import { StopspanError } from '../common/errors.js';
@@ -48,7 +49,7 @@ export function registerHistory(program: Command): void {
         }
         if (o.out) {
           const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
-          if (!o.quiet) process.stderr.write(`wrote ${written.join(', ')}\n`);
+          if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
         }
         process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));
         return EXIT.clean;

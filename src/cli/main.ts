@@ -7,6 +7,7 @@ import './engineTuning.js';
 import type * as Commander from 'commander';
 import { requireCjs } from '../common/requireCjs.js';
 import { runInterruptUndo, watchInterruptUndo } from '../common/interrupts.js';
+import { terminalText } from '../common/terminalText.js';
 import { commands } from './commands.js';
 import { EXIT, isAllocationFailure } from './shared.js';
 import { version } from '../version.js';
@@ -62,6 +63,6 @@ program.parseAsync(process.argv).catch((e: { code?: string; exitCode?: number })
     process.exitCode = EXIT.badInput;
     return;
   }
-  process.stderr.write(`internal error (this is a bug): ${String((e as Error)?.message ?? e)}\n`);
+  process.stderr.write(`internal error (this is a bug): ${terminalText(String((e as Error)?.message ?? e))}\n`);
   process.exitCode = EXIT.internal;
 });

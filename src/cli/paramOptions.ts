@@ -1,6 +1,7 @@
 // Single-option overrides of model parameters, shared by audit and whatif. Each maps to a key of the
 // parameters file (DESIGN.md section 4); the model validates the values.
 
+import { parseDecimal } from '../common/decimal.js';
 import type { Command } from 'commander';
 
 const OPTIONS: { flag: string; key: string; help: string; numeric: boolean }[] = [
@@ -24,7 +25,7 @@ export function paramOverrides(opts: Record<string, unknown>): Record<string, un
     const attr = o.flag.replace(/^--/, '').replace(/ .*$/, '').replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
     const v = opts[attr];
     if (v === undefined) continue;
-    out[o.key] = o.numeric && typeof v === 'string' && v.trim() !== '' && Number.isFinite(Number(v)) ? Number(v) : v;
+    out[o.key] = o.numeric && typeof v === 'string' ? (parseDecimal(v) ?? v) : v;
   }
   return out;
 }

@@ -3,6 +3,7 @@
 
 import { isStopspanError } from '../common/errors.js';
 import { version } from '../version.js';
+import { terminalText } from '../common/terminalText.js';
 import { groupedFixed } from '../report/numberText.js';
 import type { OnProgress, ProgressEvent } from '../common/progress.js';
 
@@ -33,7 +34,7 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
       code = EXIT.badInput;
     } else {
       const err = e as Error;
-      process.stderr.write(`internal error (this is a bug): ${err?.message ?? String(e)}\n`);
+      process.stderr.write(`internal error (this is a bug): ${terminalText(String(err?.message ?? e))}\n`);
       if (verbose && err?.stack) process.stderr.write(err.stack + '\n');
       code = EXIT.internal;
     }

@@ -1,6 +1,7 @@
 // The work of `stopspan whatif`, loaded when the command runs (src/cli/whatif.ts registers its options):
 // the scenario checked whole, the feed read, the proposal weighed, the table, JSON or page written.
 
+import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
 import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
@@ -92,7 +93,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], outOptions);
     }
     process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), units }));
-    if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${opts.out}\n`);
+    if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${terminalText(String(opts.out))}\n`);
     return EXIT.clean;
   });
 }

@@ -1,6 +1,8 @@
 // One error class for every known failure, with a closed set of codes and where it happened.
 // The CLI turns it into one line and exit code 2; anything else is a bug (exit 3).
 
+import { terminalText } from './terminalText.js';
+
 export type ErrorCode =
   | 'feed-unreadable' // the archive or folder cannot be opened (corrupt zip, not a zip, no such path)
   | 'feed-too-large' // a zip entry or the whole archive exceeds the inflation caps
@@ -36,7 +38,7 @@ export class StopspanError extends Error {
     this.context = context;
   }
 
-  /** One line for people: "file:line column: message (got value)". Values are clipped and control characters shown escaped. */
+  /** One line for people: "file:line column: message (got value)". Values are clipped; unseen characters shown escaped (terminalText). */
   oneLine(): string {
     const { file, line, column, value } = this.context;
     let where = '';
@@ -44,14 +46,8 @@ export class StopspanError extends Error {
     if (line !== undefined) where += `${where ? ':' : 'line '}${line}`;
     if (column) where += `${where ? ' ' : ''}column ${column}`;
     const got = value !== undefined ? ` (got ${JSON.stringify(clip(value, 60))})` : '';
-    return escapeControls(`${where ? where + ': ' : ''}${this.message.replace(/[\r\n]+/g, ' ')}${got}`);
+    return terminalText(`${where ? where + ': ' : ''}${this.message.replace(/[\r\n]+/g, ' ')}${got}`);
   }
-}
-
-/** Shows C0 and C1 control characters, DEL and the Unicode line and paragraph separators as \uXXXX, so a
- * line built from feed text can neither break into several lines nor send escape sequences to a terminal. */
-function escapeControls(s: string): string {
-  return s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }
 
 function clip(s: string, n: number): string {

@@ -105,6 +105,7 @@ export class CsvCore {
   private nextQuote = -1; // index of the next '"' in the text being scanned (its length when none; -1 unknown)
   private nextCr = -1; // the same for '\r'
   private skipEnd = 0; // after plain() returned -3: the index after the skipped record's line break
+  private head = ''; // the table's first characters, to tell UTF-16 text from a stray NUL
   paddedValues = 0;
   readonly paddedExamples: Array<{ line: number; field: number }> = [];
   strayQuotes = 0;
@@ -139,6 +140,7 @@ export class CsvCore {
     if (!this.started) {
       if (text.length === 0) return;
       this.started = true;
+      this.head = text.slice(0, 64);
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
     }
     const nul = text.indexOf('\0');
@@ -183,17 +185,36 @@ export class CsvCore {
   }
 
   private failNul(text: string, at: number): never {
+    if (looksUtf16(this.head)) throw new StopspanError('csv-syntax', UTF16_MESSAGE, { file: this.file, line: 1 });
+    // the lines before the NUL's were parsed, so `rest` starts at the start of the record holding it (which
+    // may be a quoted field spanning lines): walk that record as the scanner does, to the NUL's physical
+    // line and its field
     const buf = this.rest + text;
     const pos = this.rest.length + at;
     let line = this.line;
-    for (let p = buf.indexOf('\n'); p >= 0 && p < pos; p = buf.indexOf('\n', p + 1)) line++;
-    // the field: commas outside quotes between the start of the physical line and the NUL
     let field = 0;
     let inQuotes = false;
-    for (let p = buf.lastIndexOf('\n', pos) + 1; p < pos; p++) {
+    let fieldStart = true; // only a quote at the start of a field opens one; later ones are literal
+    for (let p = 0; p < pos; p++) {
       const c = buf.charCodeAt(p);
-      if (c === QUOTE) inQuotes = !inQuotes;
-      else if (c === COMMA && !inQuotes) field++;
+      if (inQuotes) {
+        if (c === QUOTE) {
+          if (p + 1 < pos && buf.charCodeAt(p + 1) === QUOTE) p++;
+          else inQuotes = false;
+        } else if (c === LF || (c === CR && buf.charCodeAt(p + 1) !== LF)) line++;
+      } else if (c === QUOTE && fieldStart) {
+        inQuotes = true;
+        fieldStart = false;
+      } else if (c === COMMA) {
+        field++;
+        fieldStart = true;
+      } else if (c === LF || (c === CR && buf.charCodeAt(p + 1) !== LF)) {
+        line++;
+        field = 0;
+        fieldStart = true;
+      } else if (c !== SPACE && c !== TAB && c !== CR) {
+        fieldStart = false;
+      }
     }
     throw new StopspanError('csv-syntax', 'NUL byte in the CSV text', { file: this.file, line, column: this.columnName(field), value: '\0' });
   }
@@ -426,6 +447,30 @@ export class CsvCore {
   }
 }
 
+const UTF16_MESSAGE = 'the file is UTF-16; GTFS files must be UTF-8';
+
+/**
+ * Whether a table's first characters are UTF-16 text read as bytes: ASCII in UTF-16 puts a NUL beside every
+ * character, so one parity of positions is (nearly) all NUL and the other (nearly) none. A byte-order
+ * mark read as text (U+FEFF, or FF FE / FE FF decoded as two U+FFFD) is passed over first.
+ */
+export function looksUtf16(head: string): boolean {
+  let s = head;
+  if (s.charCodeAt(0) === 0xfeff) s = s.slice(1);
+  else if (s.startsWith('\ufffd\ufffd') || s.startsWith('\u00ff\u00fe') || s.startsWith('\u00fe\u00ff')) s = s.slice(2);
+  const n = s.length - (s.length % 2);
+  if (n < 4) return false;
+  const nul = [0, 0];
+  for (let k = 0; k < n; k++) if (s.charCodeAt(k) === 0) nul[k % 2]++;
+  const half = n / 2;
+  return (nul[0] >= 0.8 * half && nul[1] <= 0.2 * half) || (nul[1] >= 0.8 * half && nul[0] <= 0.2 * half);
+}
+
+/** Whether bytes start with a UTF-16 byte-order mark (FF FE little-endian, FE FF big-endian). */
+function hasUtf16Bom(b: Buffer): boolean {
+  return b.length >= 2 && ((b[0] === 0xff && b[1] === 0xfe) || (b[0] === 0xfe && b[1] === 0xff));
+}
+
 function checkHeader(header: string[], file: string): void {
   const seen = new Set<string>();
   for (const h of header) {
@@ -604,6 +649,7 @@ export class CsvTableParser {
 
   private pushPiece(piece: Buffer): void {
     let bytes = piece;
+    if (this.stats.bytes === 0 && hasUtf16Bom(bytes)) throw new StopspanError('csv-syntax', UTF16_MESSAGE, { file: this.file, line: 1 });
     this.stats.bytes += bytes.length;
     if (this.carry) {
       bytes = Buffer.concat([this.carry, bytes]);

@@ -16,8 +16,9 @@ import type { DownloadLimits } from './download.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
+import { missingColumn } from './missingColumn.js';
 import { StopTimesStore, TripFolder } from './stopTimesStore.js';
-import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn } from './values.js';
+import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn, TIME_EXPECTED } from './values.js';
 import { STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesLookup } from './stopTimesRows.js';
 
 export interface ReadFeedOptions {
@@ -80,7 +81,7 @@ function columnIndex<R extends string, O extends string>(file: string, header: s
   const c: Record<string, number> = {};
   for (const r of required) {
     const i = at.get(r);
-    if (i === undefined) throw new StopspanError('missing-column', `required column ${r} is missing`, { file, line: 1, column: r });
+    if (i === undefined) throw missingColumn(file, header, r, { known: new Set<string>([...required, ...optional]) });
     c[r] = i;
   }
   for (const o of optional) c[o] = at.get(o) ?? -1;
@@ -92,18 +93,21 @@ async function table<R extends string, O extends string>(
   ctx: Ctx,
   file: string,
   required: readonly R[],
-  optional: readonly O[],
-  onRow: (row: CsvRow, col: Columns<R, O>) => void,
+  optionalColumns: readonly O[],
+  onRow: (row: CsvRow, col: Columns<R, O>, header: string[]) => void,
   groupKey?: CsvGroupKey,
 ): Promise<void> {
   let col = {} as Columns<R, O>;
+  let head: string[] = [];
   const total = ctx.archive.size(file);
-  if (total === 0 && !REQUIRED_TABLES.includes(file)) {
-    // an optional table of zero bytes reads as absent
-    ctx.warnings.add('empty-table', 'optional tables of zero bytes were read as absent', file);
+  const optional = !REQUIRED_TABLES.includes(file);
+  // an optional table with no header (zero bytes, or only a byte-order mark or blank lines) reads as absent
+  const absent = (): void => {
+    ctx.warnings.add('empty-table', 'optional tables with no header (zero bytes, or only a byte-order mark or blank lines) were read as absent', file);
     ctx.rowCounts[file] = 0;
-    return;
-  }
+  };
+  if (total === 0 && optional) return absent();
+  let noHeader = false;
   const stage = `read ${file}`;
   ctx.onProgress?.({ stage, done: 0, total, unit: 'bytes' });
   const early = ctx.early.get(file);
@@ -115,11 +119,17 @@ async function table<R extends string, O extends string>(
     maxRecordChars: ctx.maxRecordChars,
     onBytes: (done) => ctx.onProgress?.({ stage, done, total, unit: 'bytes' }),
     onHeader(header) {
-      col = columnIndex(file, header, required, optional);
+      if (header.length === 0 && optional) {
+        noHeader = true;
+        return;
+      }
+      head = header;
+      col = columnIndex(file, header, required, optionalColumns);
     },
-    onRow: (row) => onRow(row, col),
+    onRow: (row) => onRow(row, col, head),
     groupKey,
   });
+  if (noHeader) return absent();
   ctx.rowCounts[file] = stats.records;
 }
 
@@ -201,12 +211,12 @@ async function readArchive(
   // stops.txt
   const stops: Stop[] = [];
   const stopIndex = new Map<string, number>();
-  await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c) => {
+  const STOPS_COLUMNS = new Set(['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station']);
+  await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c, stopsHeader) => {
     const id = need('stops.txt', row, c.stop_id, 'stop_id');
     const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
     if (locationType <= 2 && (c.stop_lat < 0 || c.stop_lon < 0)) {
-      const column = c.stop_lat < 0 ? 'stop_lat' : 'stop_lon';
-      throw new StopspanError('missing-column', `required column ${column} is missing (stops need coordinates)`, { file: 'stops.txt', line: 1, column });
+      throw missingColumn('stops.txt', stopsHeader, c.stop_lat < 0 ? 'stop_lat' : 'stop_lon', { why: ' (stops need coordinates)', known: STOPS_COLUMNS });
     }
     const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
     const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
@@ -236,6 +246,7 @@ async function readArchive(
       });
       const start = checkDate(row.get(c.start_date)) ?? bad('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
       const end = checkDate(row.get(c.end_date)) ?? bad('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
+      if (end < start) warnings.add('calendar-end-before-start', 'calendar.txt rows whose end_date is before their start_date (the service runs on no date they cover)', `calendar.txt:${row.line}`);
       calendar.push({ serviceId: need('calendar.txt', row, c.service_id, 'service_id'), days, start, end });
     });
   }
@@ -309,9 +320,9 @@ async function readArchive(
   if (archive.has('frequencies.txt')) {
     await table(ctx, 'frequencies.txt', ['trip_id', 'start_time', 'end_time', 'headway_secs'], ['exact_times'], (row, c) => {
       const startS = fieldTimeS(row, c.start_time);
-      if (startS < 0) bad('frequencies.txt', row, c.start_time, 'start_time', 'a time H:MM:SS');
+      if (startS < 0) bad('frequencies.txt', row, c.start_time, 'start_time', TIME_EXPECTED);
       const endS = fieldTimeS(row, c.end_time);
-      if (endS < 0) bad('frequencies.txt', row, c.end_time, 'end_time', 'a time H:MM:SS');
+      if (endS < 0) bad('frequencies.txt', row, c.end_time, 'end_time', TIME_EXPECTED);
       const headwayS = intIn('frequencies.txt', row, c.headway_secs, 'headway_secs', 1, 1e9, -1);
       if (headwayS < 0) bad('frequencies.txt', row, c.headway_secs, 'headway_secs', 'a positive integer');
       const exactTimes = intIn('frequencies.txt', row, c.exact_times, 'exact_times', 0, 1, 0) as 0 | 1;

@@ -4,7 +4,7 @@
 
 import { StopspanError } from '../common/errors.js';
 import type { CsvRow } from './csv.js';
-import { badField, BLANK, fieldNumber, fieldTimeS, fieldUint, intField, MALFORMED } from './values.js';
+import { badField, BLANK, fieldNumber, fieldTimeS, fieldUint, intField, MALFORMED, TIME_EXPECTED } from './values.js';
 
 export const STOP_TIMES_FILE = 'stop_times.txt';
 export const STOP_TIMES_REQUIRED = ['trip_id', 'stop_id', 'stop_sequence'] as const;
@@ -69,9 +69,9 @@ export class StopTimesRowReader {
     const seq = fieldUint(row, c.stop_sequence);
     if (seq < 0) badField(F, row, c.stop_sequence, 'stop_sequence', 'a non-negative integer');
     let arr = c.arrival_time < 0 ? BLANK : fieldTimeS(row, c.arrival_time);
-    if (arr === MALFORMED) badField(F, row, c.arrival_time, 'arrival_time', 'a time H:MM:SS');
+    if (arr === MALFORMED) badField(F, row, c.arrival_time, 'arrival_time', TIME_EXPECTED);
     let dep = c.departure_time < 0 ? BLANK : fieldTimeS(row, c.departure_time);
-    if (dep === MALFORMED) badField(F, row, c.departure_time, 'departure_time', 'a time H:MM:SS');
+    if (dep === MALFORMED) badField(F, row, c.departure_time, 'departure_time', TIME_EXPECTED);
     // [GTFS Schedule reference: when only one of arrival_time and departure_time is given, they are the same]
     if (arr < 0 && dep >= 0) arr = dep;
     else if (dep < 0 && arr >= 0) dep = arr;

@@ -1,7 +1,10 @@
 // Typed values read straight from a CSV row's characters (GTFS times, integers) or from its field strings
 // (decimals, dates), so the big tables need no string per numeric field. Each returns a sentinel for
-// "blank" and for "malformed"; the table readers turn malformed values into 'bad-value' errors.
+// "blank" and for "malformed"; the table readers turn malformed values into 'bad-value' errors. Numbers
+// are decimal as GTFS writes them (parseDecimal), never hexadecimal, binary or octal as JavaScript's
+// Number() would read them.
 
+import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { CsvRow } from './csv.js';
 
@@ -9,8 +12,19 @@ export const BLANK = -1;
 export const MALFORMED = -2;
 
 /**
- * GTFS time "H:MM:SS" or "HH:MM:SS" (hours unbounded, may pass 24) in seconds after midnight of the service
- * day; BLANK when empty, MALFORMED when not a time (minutes and seconds must be 00-59).
+ * The latest time of day accepted, in hours after midnight of the service day: 168 (seven days). GTFS lets
+ * a trip run past 24:00:00 into the next days; no timetable runs a week on one service day, and the bound
+ * keeps every time (and a trip's span) far inside the 32-bit columns that hold them.
+ */
+export const MAX_TIME_HOURS = 168;
+
+/** What a time field must be, for 'bad-value' messages. */
+export const TIME_EXPECTED = `a time H:MM:SS from 0:00:00 to ${MAX_TIME_HOURS}:00:00`;
+
+/**
+ * GTFS time "H:MM:SS" or "HH:MM:SS" (hours may pass 24, up to MAX_TIME_HOURS) in seconds after midnight
+ * of the service day; BLANK when empty, MALFORMED when not a time (minutes and seconds must be 00-59) or later
+ * than MAX_TIME_HOURS.
  */
 export function fieldTimeS(row: CsvRow, i: number): number {
   if (row.isBlank(i)) return BLANK;
@@ -37,7 +51,8 @@ export function timeOfString(t: string, a: number, e: number): number {
   const s1 = t.charCodeAt(k + 4) - 48;
   const s2 = t.charCodeAt(k + 5) - 48;
   if (m1 < 0 || m1 > 5 || m2 < 0 || m2 > 9 || s1 < 0 || s1 > 5 || s2 < 0 || s2 > 9) return MALFORMED;
-  return h * 3600 + (m1 * 10 + m2) * 60 + s1 * 10 + s2;
+  const v = h * 3600 + (m1 * 10 + m2) * 60 + s1 * 10 + s2;
+  return v > MAX_TIME_HOURS * 3600 ? MALFORMED : v;
 }
 
 /** A non-negative decimal integer of at most 9 digits; BLANK when empty, MALFORMED otherwise. */
@@ -57,11 +72,13 @@ export function fieldUint(row: CsvRow, i: number): number {
   return v;
 }
 
-/** A finite decimal number; NaN when blank, MALFORMED-as-null when not a number. */
+/**
+ * A finite decimal number (parseDecimal); NaN when blank, null when not a number. A quoted value of spaces
+ * is not blank: it is a value that is not a number (null), never 0.
+ */
 export function fieldNumber(row: CsvRow, i: number): number | null {
   if (row.isBlank(i)) return Number.NaN;
-  const v = Number(row.get(i));
-  return Number.isFinite(v) ? v : null;
+  return parseDecimal(row.get(i));
 }
 
 /** A GTFS date YYYYMMDD that exists on the calendar, as given; null when malformed. */

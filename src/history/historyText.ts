@@ -1,12 +1,9 @@
 // The history as a plain-text table for the terminal: one line per run, newest last.
 
 import { feedKey, ranChecks, type RunRecord } from './readHistory.js';
+import { terminalText as shown } from '../common/terminalText.js';
 
 const num = (v: number | null, digits = 0): string => (v === null ? '-' : v.toFixed(digits));
-
-/** Feed text shown with control characters and line separators escaped, so a feed cannot redraw the terminal. */
-// eslint-disable-next-line no-control-regex
-const shown = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 
 export function historyText(rows: RunRecord[]): string {
   if (rows.length === 0) return 'no runs recorded yet\n';

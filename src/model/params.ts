@@ -2,6 +2,7 @@
 // its source label and a short note, so reports can say where every number came from. Options from the
 // CLI and from a --params file both pass through normalizeParams; unknown keys and bad values are refused.
 
+import { parseDecimal } from '../common/decimal.js';
 import { readJsonFile } from '../common/readJsonFile.js';
 import { StopspanError } from '../common/errors.js';
 import type { ParamsReport, SourceLabel } from '../audit/types.js';
@@ -78,7 +79,7 @@ function bad(name: string, expected: string, got: unknown, file?: string): Stops
 function check(name: ParamName, raw: unknown, file?: string): number | string | null {
   const spec = PARAM_SPECS[name];
   // numbers may come from the command line as strings
-  const num = typeof raw === 'string' && raw.trim() !== '' && /^[-+0-9.eE]+$/.test(raw.trim()) ? Number(raw) : raw;
+  const num = typeof raw === 'string' ? (parseDecimal(raw) ?? raw) : raw;
   switch (spec.kind) {
     case 'stopping':
       if (raw === 'auto' || raw === 'always' || raw === 'poisson' || raw === 'observed') return raw;

@@ -8,6 +8,7 @@
 // refused past MAX_RIDERSHIP_ROWS data rows.
 
 import { closeSync, openSync, readSync } from 'node:fs';
+import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
@@ -38,9 +39,8 @@ const REQUIRED = ['stop_id', 'boardings', 'alightings'] as const;
 export const MAX_RIDERSHIP_ROWS = 1_000_000;
 
 function count(text: string, file: string, line: number, column: string): number {
-  const v = text.trim();
-  const n = v === '' ? NaN : Number(v);
-  if (!Number.isFinite(n) || n < 0) {
+  const n = parseDecimal(text);
+  if (n === null || n < 0) {
     throw new StopspanError('bad-ridership', `invalid ${column}: expected a number of 0 or more per day`, { file, line, column, value: text });
   }
   return n;

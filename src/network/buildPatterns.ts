@@ -9,6 +9,7 @@ import { WarningSink } from '../common/warnings.js';
 import { StopspanError } from '../common/errors.js';
 import type { DistanceSource, Pattern, PatternSet, DistanceBacktrack } from './types.js';
 import { haversineM } from './geodesy.js';
+import { coordinateFault } from '../gtfs/coordinateFault.js';
 import { prepareShape, projectAlongShape, type PreparedShape } from './alongShape.js';
 import { distRange, firstBacktrack, inferShapeDistUnit, shapeDistToMetres } from './shapeDistUnit.js';
 import { simplifyPath } from './simplifyPath.js';
@@ -142,6 +143,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   // 3. Representative shapes, and the unit of shape_dist_traveled over the shapes in use.
   const shapeOf = new Map<(typeof drafts)[number], string>();
   const prepared = new Map<string, PreparedShape>();
+  const flatShapes = new Set<string>();
   for (const d of drafts) {
     const counts = new Map<string, number>();
     for (const t of d.g.tripIds) {
@@ -155,9 +157,17 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     }
     const shapeId = mostCommon(counts);
     shapeOf.set(d, shapeId);
-    if (shapeId !== '' && !prepared.has(shapeId)) {
+    if (shapeId !== '' && !prepared.has(shapeId) && !flatShapes.has(shapeId)) {
       const s = feed.shapes.get(shapeId)!;
-      if (s.lat.length >= 2) prepared.set(shapeId, prepareShape(s));
+      if (s.lat.length >= 2) {
+        const ps = prepareShape(s);
+        // a shape under a metre long (every point at one place) has no path to measure along
+        if (ps.lengthM >= MIN_SHAPE_LENGTH_M) prepared.set(shapeId, ps);
+        else {
+          flatShapes.add(shapeId);
+          warnings.add('shape-zero-length', 'shapes whose points all lie at one place (no length); straight lines used', shapeId);
+        }
+      }
     }
   }
   const unitSamples: { distRange: number; lengthM: number }[] = [];
@@ -203,6 +213,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   const backtracks: DistanceBacktrack[] = [];
   const routesAtStop = new Map<number, Set<string>>();
   let projectionFallbacks = 0;
+  const faultyStops = new Set<number>(); // stop indices with a coordinate fault
   let done = 0;
   for (const d of drafts) {
     const { g } = d;
@@ -211,7 +222,15 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     const repAt = Math.max(0, g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId));
     const repTripId = g.tripIds[repAt];
     const rep = g.profiles[repAt].profile;
-    const stops = Array.from(g.stopIdx, (i) => feed.stops[i]);
+    const allStops = Array.from(g.stopIdx, (i) => feed.stops[i]);
+    // stops whose coordinates cannot be a stop's are measured around: the others are measured, and each
+    // faulty one placed between its neighbours by order (see placeBetween)
+    const good: number[] = [];
+    allStops.forEach((s, i) => {
+      if (coordinateFault(s.lat, s.lon) === '') good.push(i);
+      else faultyStops.add(g.stopIdx[i]);
+    });
+    const stops = good.length === n ? allStops : good.map((i) => allStops[i]);
 
     let distanceSource: DistanceSource;
     let distAlongM: number[];
@@ -223,6 +242,10 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       projectionFallbacks += proj.fallbacks;
       offsetFromShapeM = proj.offsetM;
       distAlongM = proj.distAlongM.map((v) => v - proj.distAlongM[0]);
+      if (good.length < n) {
+        distAlongM = placeBetween(distAlongM, good, n);
+        offsetFromShapeM = spreadOffsets(proj.offsetM, good, n);
+      }
       distanceSource = 'shape_projection';
       const metresPerUnit = shapeMetresPerUnit.get(shapeId);
       if (unitFit && metresPerUnit) {
@@ -251,7 +274,8 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       distanceSource = 'great_circle';
       warnings.add('pattern-without-shape', 'pattern without a usable shape; distances are straight lines between stops', d.id);
       distAlongM = [0];
-      for (let i = 1; i < n; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
+      for (let i = 1; i < stops.length; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
+      if (good.length < n) distAlongM = placeBetween(distAlongM, good, n);
       offsetFromShapeM = new Array(n).fill(null);
       path = stops.map((s) => [s.lon, s.lat] as [number, number]);
     }
@@ -308,6 +332,12 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     done++;
     if (onProgress && (done % 50 === 0 || done === drafts.length)) onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
   }
+  if (faultyStops.size > 0) {
+    const ids = [...faultyStops].map((k) => feed.stops[k].id);
+    const msg = 'stops whose coordinates are zero, out of range or near a pole; left out of distances (placed between their neighbours)';
+    warnings.add('stop-coordinate-fault', msg, ids[0], ids.length);
+    for (const id of ids.slice(1, 5)) warnings.add('stop-coordinate-fault', msg, id, 0);
+  }
   if (projectionFallbacks > 0) {
     warnings.add('projection-fallback', 'stops with no close match on their shape near the previous stop; the rest of the shape was searched', undefined, projectionFallbacks);
   }
@@ -351,4 +381,36 @@ function finiteEnds(dist: ArrayLike<number>): [number, number] {
 
 function cmp(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
+}
+
+/** Shapes shorter than this are taken as having no path (every point at one place). */
+const MIN_SHAPE_LENGTH_M = 1;
+
+/**
+ * Distances for all n stops of a pattern from those of the measured ones (`good`, their indices in order):
+ * a stop left out is placed between the measured stops around it, in proportion to its place in the order
+ * (at the nearest measured stop when it lies before the first or after the last; all at 0 when none is
+ * measured).
+ */
+function placeBetween(measured: number[], good: number[], n: number): number[] {
+  const out = new Array<number>(n);
+  if (good.length === 0) return out.fill(0);
+  good.forEach((i, k) => (out[i] = measured[k]));
+  for (let k = 0; k <= good.length; k++) {
+    const a = k > 0 ? good[k - 1] : -1; // the measured stop before the run of left-out ones (-1: none)
+    const b = k < good.length ? good[k] : n; // and after it (n: none)
+    for (let i = a + 1; i < b; i++) {
+      if (a < 0) out[i] = out[b];
+      else if (b >= n) out[i] = out[a];
+      else out[i] = out[a] + ((out[b] - out[a]) * (i - a)) / (b - a);
+    }
+  }
+  return out;
+}
+
+/** Offsets from the shape for all n stops: the measured ones' own, null for a stop left out. */
+function spreadOffsets(measured: number[], good: number[], n: number): (number | null)[] {
+  const out = new Array<number | null>(n).fill(null);
+  good.forEach((i, k) => (out[i] = measured[k]));
+  return out;
 }

@@ -1,6 +1,7 @@
 // Service-day arithmetic for matching realtime trips to the schedule: whether a service runs on a
 // date (calendar + calendar_dates), and the POSIX second that GTFS times of a service day count from.
 
+import { timeOfString } from '../gtfs/values.js';
 import type { CalendarDate, CalendarRow } from '../gtfs/types.js';
 
 /** True when serviceId runs on date (YYYYMMDD): calendar_dates type 1 adds, type 2 removes, end_date inclusive. */
@@ -72,9 +73,9 @@ export function addDays(date: string, n: number): string {
   return new Date(t).toISOString().slice(0, 10).replace(/-/g, '');
 }
 
-/** Parse a GTFS time "H:MM:SS" (hours may pass 24) to seconds, or null when malformed. */
+/** Parse a GTFS time "H:MM:SS" (hours may pass 24, up to the feed reader's bound) to seconds, or null when malformed: the feed reader's rule. */
 export function parseGtfsTime(s: string): number | null {
-  const m = /^(\d{1,3}):([0-5]\d):([0-5]\d)$/.exec(s.trim());
-  if (!m) return null;
-  return Number(m[1]) * 3600 + Number(m[2]) * 60 + Number(m[3]);
+  const t = s.trim();
+  const v = timeOfString(t, 0, t.length);
+  return v < 0 ? null : v;
 }

@@ -1,8 +1,9 @@
 // The what-if result as plain text for a terminal: one table of figures with a column per affected
 // pattern and a total column (wrapped into blocks when there are many patterns), the sensitivity line,
-// the largest gaps against the walking policy, and the cautions. Feed text has its control characters
-// shown as \uXXXX so it cannot move the cursor or break lines.
+// the largest gaps against the walking policy, and the cautions. Feed text goes through terminalText, so it
+// cannot move the cursor, break lines or reorder them.
 
+import { terminalText as safe } from '../common/terminalText.js';
 import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../audit/whatif.js';
 import { groupedFixed } from './numberText.js';
 import { checkUnits, metresToFeet, type Units } from './units.js';
@@ -17,7 +18,6 @@ export interface WhatifTextOptions {
   units?: Units;
 }
 
-const safe = (s: string): string => s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 const n0 = (v: number): string => (Number.isFinite(v) ? groupedFixed(Math.round(v)) : '-');
 const n1 = (v: number): string => (Number.isFinite(v) ? v.toFixed(1) : '-');
 const n2 = (v: number): string => (Number.isFinite(v) ? (Math.abs(v) < 0.005 ? 0 : v).toFixed(2) : '-');

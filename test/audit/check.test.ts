@@ -1,5 +1,6 @@
 // checkFeed on hand-built Vellmoor feeds: every finding fires on a feed built to trigger it and stays
 // silent on the clean feed.
+import { coordinateFault } from '../../src/gtfs/coordinateFault.js';
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
 import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/audit/check.js';
@@ -171,6 +172,19 @@ describe('checkFeed', () => {
     const ok = cleanSpec();
     ok.stops.push({ id: 'NEAR', lat: 52.415, lon: 4.9 });
     expect(run(ok).counts['coordinate-fault']).toBe(0);
+  });
+
+  it('coordinate-fault: a stop within five degrees of a pole, by the rule the pattern builder also uses', () => {
+    const spec = cleanSpec();
+    spec.stops.push({ id: 'POLE', lat: 89.99, lon: 4.9 });
+    spec.stops.push({ id: 'SOUTH', lat: -85.5, lon: 4.9 });
+    const r = run(spec);
+    expect(r.counts['coordinate-fault']).toBe(2);
+    const details = r.findings[0].examples.map((e) => e.detail);
+    expect(details.every((d) => d.endsWith('near a pole')), JSON.stringify(details)).toBe(true);
+    expect(coordinateFault(89.99, 4.9)).toBe('near a pole');
+    // the northernmost bus towns lie below 79 degrees (Longyearbyen, 78.2 N [M]): not a fault
+    expect(coordinateFault(78.22, 15.65)).toBe('');
   });
 
   it('service-ending-soon: fewer than 7 days left, per the GTFS best practice', () => {

@@ -315,6 +315,41 @@ describe('the CSV reader refuses', () => {
   });
 });
 
+describe('the CSV reader says where and what, whatever the text', () => {
+  // a quoted trip_headsign spanning lines 2-4, with a NUL on its third line; csv-parse (an outside reader)
+  // agrees that the record starts on line 2 and that the field is the third
+  const text = 'trip_id,route_id,trip_headsign,shape_id\nT1,R1,"Harbour\nvia ""Mill""\nand Qu\0ay",SH1\nT2,R1,x,SH1\n';
+
+  it('a NUL inside a quoted field spanning lines: its own line and its field, whole or in pieces', async () => {
+    // csv-parse reads the headsign as the third field, starting on line 2 with two line breaks before "Quay": line 4 [D]
+    expect((parse(text.replace('\0', ''), { columns: true }) as Record<string, string>[])[0].trip_headsign).toBe('Harbour\nvia "Mill"\nand Quay');
+    const e = thrown(() => parseCsv(text, { file: 'trips.txt' }));
+    expect(e.context).toMatchObject({ file: 'trips.txt', line: 4, column: 'trip_headsign' });
+    for (const cut of [30, 45, 50, 60]) {
+      const e2 = await rejected(ours([text.slice(0, cut), text.slice(cut)], 'trips.txt'));
+      expect(e2.context, `cut at ${cut}`).toMatchObject({ file: 'trips.txt', line: 4, column: 'trip_headsign' });
+    }
+    // a NUL after a quoted field that holds a doubled quote and a comma: the field after it
+    const e3 = thrown(() => parseCsv('a,b,c\n1,"x"",\ny",3\0\n', { file: 'f.txt' }));
+    expect(e3.context).toMatchObject({ line: 3, column: 'c' });
+  });
+
+  it('UTF-16 text, with a byte-order mark or without: "UTF-16", not a NUL byte', async () => {
+    const table = 'stop_id,stop_name\nS1,Harbour\n';
+    const le = Buffer.from(table, 'utf16le'); // [C] Node's Buffer encodes UTF-16LE; the BOMs are the Unicode standard's FF FE / FE FF
+    const be = Buffer.from(le).swap16();
+    for (const bytes of [Buffer.concat([Buffer.from([0xff, 0xfe]), le]), Buffer.concat([Buffer.from([0xfe, 0xff]), be]), le, be]) {
+      const e = await rejected(ours([bytes], 'stops.txt'));
+      expect(e.code).toBe('csv-syntax');
+      expect(e.oneLine()).toBe('stops.txt:1: the file is UTF-16; GTFS files must be UTF-8');
+    }
+    // decoded already (a data file read as UTF-8 text)
+    expect(thrown(() => parseCsv(le.toString('utf8'), { file: 'r.csv' })).message).toContain('UTF-16');
+    // a stray NUL in UTF-8 text is still a NUL byte
+    expect(thrown(() => parseCsv('a,b\n1,2\0\n', { file: 'r.csv' })).message).toBe('NUL byte in the CSV text');
+  });
+});
+
 describe('the CSV reader over a Node stream', () => {
   const table = 'id,name\n' + Array.from({ length: 3000 }, (_, k) => `s${k},"Stop ${k}, north"\n`).join('');
 

@@ -257,7 +257,61 @@ describe('readFeed refuses', () => {
     const e = await rejected(readFeed(feedCopy({ 'trips.txt': 'route_id,service_id,headsign\nR1,WK,x\n' })));
     expect(e.code).toBe('missing-column');
     expect(e.context).toMatchObject({ file: 'trips.txt', column: 'trip_id' });
-    expect(e.oneLine()).toBe('trips.txt:1 column trip_id: required column trip_id is missing');
+    expect(e.oneLine()).toBe('trips.txt:1 column trip_id: required column trip_id is missing: the header has "route_id", "service_id", "headsign"');
+  });
+
+  it('a header whose name carries an unseen character: shows the names it saw, escaped, and the near match', async () => {
+    const stops = readFileSync(join(BASIC, 'stops.txt'), 'utf8').replace(/^stop_id/, '\u200bstop_id');
+    const e = await rejected(readFeed(feedCopy({ 'stops.txt': stops })));
+    expect(e).toMatchObject({ code: 'missing-column', context: { file: 'stops.txt', line: 1, column: 'stop_id' } });
+    expect(e.oneLine()).toBe(
+      'stops.txt:1 column stop_id: required column stop_id is missing: the header has "\\u200bstop_id", "stop_code", "stop_name", "stop_lat", ' +
+        '"stop_lon", "location_type", "parent_station"; "\\u200bstop_id" differs from stop_id by unseen characters',
+    );
+    const typo = await rejected(readFeed(feedCopy({ 'stops.txt': stops.replace('\u200bstop_id', 'stopid') })));
+    expect(typo.message).toContain('"stopid" differs from stop_id by 1 letter');
+    // a column of the table in its own right is never offered as a slip: stop_lat beside a missing stop_lon
+    const noLon = readFileSync(join(BASIC, 'stops.txt'), 'utf8').replace(',stop_lon,', ',lon_of_stop,');
+    const lon = await rejected(readFeed(feedCopy({ 'stops.txt': noLon })));
+    expect(lon).toMatchObject({ code: 'missing-column', context: { column: 'stop_lon' } });
+    expect(lon.message).not.toContain('differs');
+  });
+
+  it('times past the bound of 168 hours, which 32-bit columns could not hold at 596 524 hours', async () => {
+    // 596 524 h = 2 147 486 400 s > 2^31 - 1 = 2 147 483 647 [D]
+    for (const bad of ['596524:00:00', '168:00:01', '999999:59:59']) {
+      const e = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 4, (l) => l.replace('08:00:00,08:00:00', `${bad},08:00:00`)) })));
+      expect(e.code, bad).toBe('bad-value');
+      expect(e.context).toEqual({ file: 'stop_times.txt', line: 4, column: 'arrival_time', value: bad });
+      expect(e.message).toContain('168:00:00');
+    }
+    const freq = await rejected(readFeed(feedCopy({ 'frequencies.txt': editTable('frequencies.txt', 2, (l) => l.replace('08:00:00', '600000:00:00')) })));
+    expect(freq).toMatchObject({ code: 'bad-value', context: { file: 'frequencies.txt', line: 2, column: 'end_time', value: '600000:00:00' } });
+  });
+
+  it('numbers that are not decimal, and a quoted blank coordinate, instead of reading 10 or 0', async () => {
+    for (const bad of ['0x34', '0b110100', '0o64', 'Infinity']) {
+      const e = await rejected(readFeed(feedCopy({ 'stops.txt': editTable('stops.txt', 5, (l) => l.replace('52.5060', bad)) })));
+      expect(e, bad).toMatchObject({ code: 'bad-value', context: { file: 'stops.txt', line: 5, column: 'stop_lat', value: bad } });
+    }
+    for (const blank of ['" "', '"\t"']) {
+      const e = await rejected(readFeed(feedCopy({ 'stops.txt': editTable('stops.txt', 5, (l) => l.replace('52.5060', blank)) })));
+      expect(e, blank).toMatchObject({ code: 'bad-value', context: { file: 'stops.txt', line: 5, column: 'stop_lat' } });
+    }
+    const dist = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 2, (l) => l.replace('1200.5', '0x4B0')) })));
+    expect(dist).toMatchObject({ code: 'bad-value', context: { file: 'stop_times.txt', line: 2, column: 'shape_dist_traveled', value: '0x4B0' } });
+  });
+});
+
+describe('readFeed reads an optional table with no header as absent, however it is empty', () => {
+  it('zero bytes, a UTF-8 byte-order mark alone, or blank lines: the same counted warning', async () => {
+    for (const body of ['', '\ufeff', '\ufeff\r\n\r\n']) {
+      const feed = await readFeed(feedCopy({ 'frequencies.txt': body }));
+      expect(feed.frequencies, JSON.stringify(body)).toEqual([]);
+      expect(warning(feed, 'empty-table'), JSON.stringify(body)).toMatchObject({ count: 1, examples: ['frequencies.txt'] });
+    }
+    // a required table is not optional: a lone byte-order mark is still a missing column
+    expect((await rejected(readFeed(feedCopy({ 'stops.txt': '\ufeff' })))).code).toBe('missing-column');
   });
 
   it('malformed times, naming file, line, column and value', async () => {

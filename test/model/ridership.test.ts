@@ -46,6 +46,13 @@ describe('parseRidership', () => {
     expect(err('stop_id,boardings,alightings\nv1-0,3,lots\n').context).toMatchObject({ line: 2, column: 'alightings', value: 'lots' });
     expect(err('stop_id,boardings,alightings\nv1-0,,1\n').context).toMatchObject({ line: 2, column: 'boardings' });
   });
+  it('errors on counts that are not decimal, which Number() would read as 10', () => {
+    // [C] GTFS Schedule reference, Field Types: numbers are decimal; ECMA-262 StringToNumber reads 0x0A as 10
+    for (const v of ['0x0A', '0b1010', '0o12', '" "', 'Infinity']) {
+      const e = err(`stop_id,boardings,alightings\nv1-0,${v},1\n`);
+      expect(e.context, v).toMatchObject({ file: 'r.csv', line: 2, column: 'boardings' });
+    }
+  });
   it('errors on duplicated rows and on a stop given both with and without a route', () => {
     const d = err('stop_id,boardings,alightings\nv1-0,3,1\nv1-0,3,1\n');
     expect(d.message).toMatch(/duplicate ridership row for stop v1-0 \(first on line 2\)/);

@@ -350,3 +350,56 @@ describe('buildPatterns: caps on patterns', () => {
     expect((e as StopspanError).message).toContain(String(MAX_PATTERN_STOPS));
   });
 });
+
+describe('buildPatterns: shapes with no length and stops that cannot be where they say', () => {
+  it('measures straight lines for a shape whose points all lie at one place, and says so by name', () => {
+    const flat = { xy: [[600, 0], [600, 0], [600, 0], [600, 0]] as [number, number][] };
+    const feed = handFeed({ stops: STOPS, shapes: { SH1: flat }, trips: [run('z1', ['A', 'C', 'E'], 0)] });
+    const warnings = new WarningSink();
+    const p = buildPatterns(feed, { warnings }).patterns[0];
+    expect(p.distanceSource).toBe('great_circle');
+    // A to E is 1200 m east along the street [D: handFeed places stops by metres east of the centre]
+    expect(p.lengthM).toBeCloseTo(1200, -1);
+    const w = warnings.list().find((x) => x.code === 'shape-zero-length');
+    expect(w?.count).toBe(1);
+    expect(w?.examples).toEqual(['SH1']);
+  });
+
+  it('leaves a stop at a pole out of the distances, places it between its neighbours and counts it', () => {
+    const feed = handFeed({ stops: STOPS, shapes: { SH1: SHAPE }, trips: [run('p1', ['A', 'B', 'C', 'D', 'E'], 0)] });
+    const c = feed.stops[feed.stopIndex.get('C')!];
+    c.lat = 89.99; // a stop typed at the North Pole
+    const warnings = new WarningSink();
+    const p = buildPatterns(feed, { warnings }).patterns[0];
+    expect(p.distAlongM.map((d) => Math.round(d))).toEqual([0, 300, 600, 900, 1200]);
+    expect(p.offsetFromShapeM[2]).toBeNull();
+    const w = warnings.list().find((x) => x.code === 'stop-coordinate-fault');
+    expect(w).toMatchObject({ count: 1, examples: ['C'] });
+  });
+
+  it('on a northbound shape, where the pole is nearest its far end: the stops after it keep their places', () => {
+    // projected, a stop at the pole lands on the shape's northern end and the forward search pulls every
+    // later stop there (gaps 900, 0, 0, ... before this rule)
+    const north: Record<string, [number, number]> = { A: [6, 0], B: [6, 300], C: [6, 600], D: [6, 900], E: [6, 1200] };
+    const feed = handFeed({ stops: north, shapes: { SH1: { xy: line(0, 0, 0, 1200) } }, trips: [run('n1', ['A', 'B', 'C', 'D', 'E'], 0)] });
+    feed.stops[feed.stopIndex.get('B')!].lat = 90;
+    const p = buildPatterns(feed).patterns[0];
+    expect(p.distAlongM.map((d) => Math.round(d))).toEqual([0, 300, 600, 900, 1200]);
+  });
+
+  it('does the same without a shape: the great-circle distances skip the faulty stop', () => {
+    const feed = handFeed({ stops: STOPS, trips: [run('p2', ['A', 'B', 'C', 'D', 'E'], 0, { shape: '' })] });
+    feed.stops[feed.stopIndex.get('B')!].lat = -89.5;
+    feed.stops[feed.stopIndex.get('D')!].lon = 0; // a placeholder zero
+    const warnings = new WarningSink();
+    const p = buildPatterns(feed, { warnings }).patterns[0];
+    const s = (id: string) => feed.stops[feed.stopIndex.get(id)!];
+    const ac = haversineM(s('A').lat, s('A').lon, s('C').lat, s('C').lon);
+    const ce = haversineM(s('C').lat, s('C').lon, s('E').lat, s('E').lon);
+    expect(p.distAlongM[2]).toBeCloseTo(ac, 6);
+    expect(p.distAlongM[4]).toBeCloseTo(ac + ce, 6);
+    expect(p.distAlongM[1]).toBeCloseTo(ac / 2, 6); // halfway, by order
+    expect(p.path).toHaveLength(3);
+    expect(warnings.list().find((x) => x.code === 'stop-coordinate-fault')?.count).toBe(2);
+  });
+});

@@ -39,5 +39,9 @@ describe('date and time helpers', () => {
     expect(addDays('20261101', -1)).toBe('20261031');
     expect(parseGtfsTime('25:10:05')).toBe(25 * 3600 + 605);
     expect(parseGtfsTime('8:61:00')).toBe(null);
+    // the feed reader's bound of 168 hours, and its digits-only hours
+    expect(parseGtfsTime('168:00:00')).toBe(168 * 3600);
+    expect(parseGtfsTime('500:00:00')).toBe(null); // past 168 h (the old pattern took up to 999 h)
+    expect(parseGtfsTime('+8:00:00')).toBe(null);
   });
 });

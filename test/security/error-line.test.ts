@@ -13,10 +13,10 @@ import { StopspanError } from '../../src/common/errors.js';
 import { ROOT } from '../fuzz/demoTables.js';
 import { CLI } from '../helpers/cli.js';
 
-const UNSAFE = /[\p{Cc}\p{Zl}\p{Zp}]/u; // Unicode Cc, Zl, Zp (the engine's tables, outside the project)
+const UNSAFE = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}]/u; // Unicode Cc, Cf, Zl, Zp (the engine's tables, outside the project)
 // ESC sequences that retitle a window and clear a screen, a BEL, NEL (U+0085), CSI as one C1 byte, DEL,
-// and the line and paragraph separators
-const NASTY = '\u001b]0;pwned\u0007\u001b[2JS9\u0085\u009b31m\u007f\u2028X\u2029Y';
+// the line and paragraph separators, and the right-to-left override and a zero-width space (Cf)
+const NASTY = '\u001b]0;pwned\u0007\u001b[2JS9\u0085\u009b31m\u007f\u2028X\u2029Y\u202eZ\u200b';
 
 const made: string[] = [];
 afterAll(() => {
@@ -31,6 +31,7 @@ describe('the one-line error', () => {
     expect(line).toContain('\\u001b]0;pwned\\u0007'); // shown, not dropped: a person can still see what was there
     expect(line).toContain('\\u0085');
     expect(line).toContain('\\u2028');
+    expect(line).toContain('\\u202e'); // [C] Unicode Character Database: U+202E RIGHT-TO-LEFT OVERRIDE is Cf
     expect(line.startsWith(`feed\\u001b]0;pwned`)).toBe(true);
   });
 
