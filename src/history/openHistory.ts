@@ -1,8 +1,9 @@
 // Opens (and on first use creates) the SQLite history of nightly runs: a versioned schema applied by an
 // ordered list of migrations, WAL journal and a busy timeout so two jobs can write at once.
 
-import Database from 'better-sqlite3';
+import type Database from 'better-sqlite3';
 import { StopspanError } from '../common/errors.js';
+import { loadSqlite } from './loadSqlite.js';
 
 export type HistoryDb = Database.Database;
 
@@ -56,9 +57,10 @@ export function openHistory(path: string, options: OpenHistoryOptions = {}): His
       value: String(busyTimeoutMs),
     });
   }
+  const Sqlite = loadSqlite(path);
   let db: HistoryDb;
   try {
-    db = new Database(path);
+    db = new Sqlite(path);
   } catch (e) {
     throw new StopspanError('history-db', `cannot open the history database: ${(e as Error).message}`, { file: path });
   }
