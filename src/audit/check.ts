@@ -5,6 +5,7 @@ import { haversineM } from '../network/geodesy.js';
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { StopspanError } from '../common/errors.js';
+import { median } from '../common/median.js';
 import {
   FINDINGS,
   FINDING_CODES,
@@ -321,12 +322,6 @@ function checkCoordinates(feed: Feed, t: CheckThresholds, add: Add): void {
       });
     }
   });
-}
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 /** The last YYYYMMDD on which any service runs (calendar weekdays minus removals, plus additions). */
