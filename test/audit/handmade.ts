@@ -16,7 +16,15 @@ export interface Handmade {
 }
 
 /** V1: stops at `distM` along an east-west street; V2: a north-south route through V1's stop `sharedAt`. */
-export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700], tripsPerDay = 60, runTimeS, timepoints = [] as number[], sharedAt = 5 } = {}): Handmade {
+export interface HandmadeOptions {
+  distM?: number[];
+  tripsPerDay?: number;
+  runTimeS?: number; // V1's whole run, seconds (default: its length at 4 m/s)
+  timepoints?: number[];
+  sharedAt?: number;
+}
+
+export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700], tripsPerDay = 60, runTimeS, timepoints = [], sharedAt = 5 }: HandmadeOptions = {}): Handmade {
   const stops: Stop[] = distM.map((d, j) => stopAt(`v1-${j}`, `Vellmoor Street ${j}`, d));
   const v2 = [stopAt('v2-n', 'North Gate', distM[sharedAt], 600), stopAt('v2-s', 'South Gate', distM[sharedAt], -600)];
   stops.push(...v2);

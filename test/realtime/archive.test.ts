@@ -46,7 +46,7 @@ beforeAll(async () => {
   const zip = new yazl.ZipFile();
   for (const [name, b] of [...files].reverse()) zip.addBuffer(b, `snapshots/${name}`);
   zip.end();
-  await new Promise((res, rej) => zip.outputStream.pipe(createWriteStream(zipPath)).on('close', res).on('error', rej));
+  await new Promise<void>((res, rej) => zip.outputStream.pipe(createWriteStream(zipPath)).on('close', () => res()).on('error', rej));
 });
 
 afterAll(() => {
