@@ -7,8 +7,7 @@ import { createHash } from 'node:crypto';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import yauzl from 'yauzl';
-import yazl from 'yazl';
+import { writeZip, zipDirectory } from '../helpers/zip.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { fileSha256, openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
@@ -149,13 +148,8 @@ describe('openFeed on zips', () => {
   });
 
   it('reads stored (uncompressed) entries as it reads deflated ones', async () => {
-    const zip = new yazl.ZipFile();
-    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: false });
-    zip.end();
-    const chunks: Buffer[] = [];
-    for await (const c of zip.outputStream) chunks.push(c as Buffer);
     const stored = join(tmp, 'stored.zip');
-    writeFileSync(stored, Buffer.concat(chunks));
+    await writeZip(stored, readdirSync(BASIC).filter((n) => n.endsWith('.txt')).map((f) => [f, readFileSync(join(BASIC, f))] as const), { compress: false });
     const a = await readFeed(stored);
     const b = await readFeed(await zipFolder(BASIC));
     expect(a.rowCounts).toEqual(b.rowCounts);
@@ -250,18 +244,7 @@ describe.skipIf(!HAVE_FEEDS)('inflating the real feeds', () => {
     // the CRC-32 of each entry's uncompressed bytes, as the writer of the zip computed it, read from the
     // central directory by yauzl and recomputed with zlib's crc32 [C, PKWARE APPNOTE 4.4.7]
     const path = join(FEEDS, 'lirr-rail.zip');
-    const want = await new Promise<Map<string, { crc: number; size: number }>>((resolve, reject) => {
-      const m = new Map<string, { crc: number; size: number }>();
-      yauzl.open(path, { lazyEntries: true }, (err, zf) => {
-        if (err || !zf) return reject(err);
-        zf.on('entry', (e: yauzl.Entry) => {
-          m.set(e.fileName, { crc: e.crc32, size: e.uncompressedSize });
-          zf.readEntry();
-        });
-        zf.on('end', () => resolve(m));
-        zf.readEntry();
-      });
-    });
+    const want = new Map([...(await zipDirectory(path))].map(([name, r]) => [name, { crc: r.crc32, size: r.uncompressedSize }]));
     const archive = await openFeed(path);
     try {
       expect(archive.names().length).toBeGreaterThan(5);
