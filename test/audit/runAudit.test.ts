@@ -8,7 +8,7 @@ import { StopspanError } from '../../src/common/errors.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { bandRatios } from '../../src/model/band.js';
 import type { ObservedData } from '../../src/realtime/types.js';
-import { handmadeNetwork } from './handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 // stops about 110 m apart over 6 km (mean trip 2 km): the square-root optimum at 25 mph is about 184 m
 const closeSpacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));

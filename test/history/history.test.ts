@@ -9,7 +9,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import Database from 'better-sqlite3';
 import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, SCHEMA_VERSION, type RunRow } from '../../src/history/index.js';
 import { checkFeed } from '../../src/audit/check.js';
-import { buildFeed, cleanSpec } from '../audit/buildFeed.js';
+import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
 import { ROOT } from '../helpers/cli.js'; // builds dist/ when it is older than the sources
 
 let dir: string;

@@ -6,7 +6,7 @@ import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { parseRidership } from '../../src/model/ridership.js';
 import { ridershipDemand } from '../../src/model/demand.js';
-import { handmadeNetwork } from '../audit/handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 const { feed, patterns } = handmadeNetwork();
 

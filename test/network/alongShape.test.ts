@@ -5,7 +5,7 @@ import { describe, it, expect } from 'vitest';
 import { lineString, point } from '@turf/helpers';
 import { nearestPointOnLine } from '@turf/nearest-point-on-line';
 import { prepareShape, projectAlongShape } from '../../src/network/alongShape.js';
-import { at, line } from './handFeed.js';
+import { at, line } from '../helpers/handFeed.js';
 
 function shapeOf(xy: [number, number][]) {
   const pts = xy.map(([x, y]) => at(x, y));

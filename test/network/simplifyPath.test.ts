@@ -6,7 +6,7 @@ import { lineString } from '@turf/helpers';
 import { pointToLineDistance } from '@turf/point-to-line-distance';
 import fc from 'fast-check';
 import { simplifyPath } from '../../src/network/simplifyPath.js';
-import { at } from './handFeed.js';
+import { at } from '../helpers/handFeed.js';
 
 function path(xy: [number, number][]) {
   const pts = xy.map(([x, y]) => at(x, y));

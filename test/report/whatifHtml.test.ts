@@ -14,7 +14,7 @@ import { whatifStrips } from '../../src/report/whatifStrips.js';
 import { whatifText } from '../../src/report/whatifText.js';
 import { nearestOnStopLine } from '../../src/network/nearestOnStopLine.js';
 import { writeFolder } from '../../src/report/writeFolder.js';
-import { handmadeNetwork } from '../audit/handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 import { scanHtml } from '../security/htmlScan.js';
 
 const NASTY = '<img src=x onerror=alert(1)> "Quay" & </script><script>alert(2)</script>';
