@@ -18,7 +18,11 @@ export function loadSqlite(file?: string): SqliteBinding {
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     if (code !== 'MODULE_NOT_FOUND' && code !== 'ERR_DLOPEN_FAILED') throw e;
-    throw new StopspanError('history-db', 'the run history needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12', { file });
+    throw new StopspanError(
+      'history-db',
+      'the run history needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12',
+      { file },
+    );
   }
   return binding;
 }

@@ -19,7 +19,7 @@ describe('median', () => {
     expect(median([], 0)).toBe(0);
   });
 
-  it('does not reorder the caller\'s list', () => {
+  it("does not reorder the caller's list", () => {
     const xs = [3, 1, 2];
     median(xs);
     expect(xs).toEqual([3, 1, 2]);

@@ -3,7 +3,18 @@
 // handFeed.ts, handmade.ts and realtimeNetwork.ts beside this file). Each builder keeps its own way of
 // describing stops and trips; what a Feed and a Pattern are made of is written here once.
 
-import type { CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from '../../src/gtfs/types.js';
+import type {
+  CalendarDate,
+  CalendarRow,
+  Feed,
+  FeedInfo,
+  Frequency,
+  Route,
+  Shape,
+  Stop,
+  Trip,
+  TripStopTimes,
+} from '../../src/gtfs/types.js';
 import type { FeedWarning } from '../../src/common/warnings.js';
 import type { Agency } from '../../src/gtfs/types.js';
 import type { Pattern } from '../../src/network/types.js';
@@ -37,7 +48,12 @@ export interface FeedParts {
 }
 
 /** Weekdays of 2026 and 2027, service WK: what the hand-built feeds run on unless told otherwise. */
-export const WEEKDAYS: CalendarRow = { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' };
+export const WEEKDAYS: CalendarRow = {
+  serviceId: 'WK',
+  days: [true, true, true, true, true, false, false],
+  start: '20260101',
+  end: '20271231',
+};
 
 export function assembleFeed(p: FeedParts): Feed {
   const trips = new Map<string, Trip>();
@@ -56,7 +72,12 @@ export function assembleFeed(p: FeedParts): Feed {
   }
   const shapes = new Map<string, Shape>();
   for (const s of p.shapes) {
-    shapes.set(s.id, { id: s.id, lat: Float64Array.from(s.lat), lon: Float64Array.from(s.lon), dist: Float64Array.from(s.dist ?? s.lat.map(() => NaN)) });
+    shapes.set(s.id, {
+      id: s.id,
+      lat: Float64Array.from(s.lat),
+      lon: Float64Array.from(s.lon),
+      dist: Float64Array.from(s.dist ?? s.lat.map(() => NaN)),
+    });
   }
   return {
     source: p.source,

@@ -8,7 +8,10 @@ import yazl from 'yazl';
 /** The modification time written into every entry (2026-11-01 UTC). */
 export const ZIP_MTIME = new Date(Date.UTC(2026, 10, 1));
 
-function eachEntry(path: string, onEntry: (zip: yauzl.ZipFile, entry: yauzl.Entry, next: () => void, fail: (e: unknown) => void) => void): Promise<void> {
+function eachEntry(
+  path: string,
+  onEntry: (zip: yauzl.ZipFile, entry: yauzl.Entry, next: () => void, fail: (e: unknown) => void) => void,
+): Promise<void> {
   return new Promise((ok, fail) => {
     yauzl.open(path, { lazyEntries: true }, (err, zip) => {
       if (err || !zip) return fail(err ?? new Error(`cannot open ${path}`));
