@@ -8,7 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import yazl from 'yazl';
+import { writeZip } from './helpers/zip.js';
 import { parse } from 'csv-parse/sync';
 import { readZip, shiftTime } from '../scripts/make-scaled.mjs';
 
@@ -30,15 +30,6 @@ function table(entries: Entry[], name: string): string[][] {
 function runScaled(input: string, outDir: string, scales: string): { scale: number; file: string; stopTimesRows: number }[] {
   const out = execFileSync(process.execPath, [makeScaled, '--in', input, '--out', outDir, '--scales', scales], { encoding: 'utf8' });
   return out.trim().split('\n').map((l) => JSON.parse(l));
-}
-
-function writeZip(file: string, files: Record<string, string>): Promise<void> {
-  const zip = new yazl.ZipFile();
-  for (const [name, text] of Object.entries(files)) zip.addBuffer(Buffer.from(text), name);
-  zip.end();
-  return new Promise((resolve, reject) => {
-    zip.outputStream.pipe(fs.createWriteStream(file)).on('close', () => resolve()).on('error', reject);
-  });
 }
 
 let tmp: string;

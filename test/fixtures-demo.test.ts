@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parse } from 'csv-parse/sync';
-import yauzl from 'yauzl';
+import { readZip } from './helpers/zip.js';
 import geodesicPkg from 'geographiclib-geodesic';
 
 type Row = Record<string, string>;
@@ -19,29 +19,6 @@ const DEMO = join(ROOT, 'fixtures', 'demo');
 const WGS84 = geodesicPkg.Geodesic.WGS84;
 // Karney's geodesic on the WGS84 ellipsoid (geographiclib-geodesic), the outside reference for lengths
 const geoM = (a: [number, number], b: [number, number]) => WGS84.Inverse(a[0], a[1], b[0], b[1]).s12 as number;
-
-function readZip(path: string): Promise<Map<string, Buffer>> {
-  return new Promise((res, rej) => {
-    yauzl.open(path, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return rej(err);
-      const out = new Map<string, Buffer>();
-      zip.on('entry', (entry: yauzl.Entry) => {
-        zip.openReadStream(entry, (e2, stream) => {
-          if (e2 || !stream) return rej(e2);
-          const chunks: Buffer[] = [];
-          stream.on('data', (c: Buffer) => chunks.push(c));
-          stream.on('end', () => {
-            out.set(entry.fileName, Buffer.concat(chunks));
-            zip.readEntry();
-          });
-        });
-      });
-      zip.on('end', () => res(out));
-      zip.on('error', rej);
-      zip.readEntry();
-    });
-  });
-}
 
 /** Parses every table with csv-parse in strict mode: a ragged row, a bad quote or a duplicate header throws. */
 function parseTables(entries: Map<string, Buffer>): Tables {

@@ -9,6 +9,7 @@ import { cruiseSpeedBoundsMps, estimateCruiseSpeed } from '../model/cruiseSpeed.
 import { defaultParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
+import { median } from '../common/median.js';
 import {
   FINDINGS,
   FINDING_CODES,
@@ -379,12 +380,6 @@ function checkCoordinates(feed: Feed, t: CheckThresholds, add: Add): void {
       });
     }
   });
-}
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 /** The last YYYYMMDD on which any service runs (calendar weekdays minus removals, plus additions). */

@@ -12,6 +12,7 @@ import { paramsReport } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
 import { typicalTripLengthM } from '../model/demand.js';
+import { median } from '../common/median.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
@@ -46,13 +47,6 @@ function stoppingAssumption(param: string, used: string[]): string {
   if (models.has('poisson')) parts.push('A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat).');
   if (models.has('observed')) parts.push('Where realtime data covers a pattern, the observed share of trips stopping at each stop is used; a stop without one is served on assumed demand and follows Poisson on counted demand, as without the archive.');
   return parts.join(' ') || 'No pattern was modelled.';
-}
-
-function median(values: number[]): number {
-  if (values.length === 0) return 0;
-  const s = Float64Array.from(values).sort();
-  const mid = s.length >> 1;
-  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
@@ -99,7 +93,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     patterns: analyses.length,
     stops: served.size,
     trips: analyses.reduce((n, a) => n + a.result.tripsPerDay, 0),
-    medianGapM: median(allGaps),
+    medianGapM: median(allGaps, 0),
     meanOptimalSpacingM: meanOptimalSpacingM(analyses),
     closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
     wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
@@ -116,7 +110,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     overrides.cruise_speed_mps = {
       value: null,
       source: sources.has('observed') ? 'observed' : 'estimated',
-      note: `${sources.has('observed') ? 'observed where realtime data covers a pattern, else ' : ''}estimated per pattern from the schedule: median ${median(speeds).toFixed(1)} m/s (range ${Math.min(...speeds).toFixed(1)}-${Math.max(...speeds).toFixed(1)})`,
+      note: `${sources.has('observed') ? 'observed where realtime data covers a pattern, else ' : ''}estimated per pattern from the schedule: median ${median(speeds, 0).toFixed(1)} m/s (range ${Math.min(...speeds).toFixed(1)}-${Math.max(...speeds).toFixed(1)})`,
     };
   }
   if (params.stopping_model === 'auto') {
@@ -131,7 +125,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     overrides.mean_trip_length_m = {
       value: null,
       source: ridership !== undefined ? 'observed' : 'S',
-      note: `${ridership !== undefined ? 'from the ridership load profile' : `typical for the route type (bus ${Math.round(typicalTripLengthM(3))} m), truncated by each pattern's ends`}: median ${Math.round(median(trips))} m`,
+      note: `${ridership !== undefined ? 'from the ridership load profile' : `typical for the route type (bus ${Math.round(typicalTripLengthM(3))} m), truncated by each pattern's ends`}: median ${Math.round(median(trips, 0))} m`,
     };
   }
 

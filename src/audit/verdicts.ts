@@ -15,6 +15,7 @@ import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
 import { costPerRiderS } from '../model/sqrtLaw.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import type { ModelParams } from '../model/params.js';
+import { median } from '../common/median.js';
 
 /** The effect of one change on one pattern, in rider-seconds per day and bus seconds per trip. */
 export interface ChangeEffect {
@@ -206,17 +207,10 @@ export function patternParts(prep: PreparedPattern, params: ModelParams): Patter
     addition: [],
     optimised: new Map(),
     gapsM,
-    medianGapM: median(gapsM),
+    medianGapM: median(gapsM, 0),
     feedStopsByModelPos: modelStops.map((j) => pattern.stopIdx[j]),
     modelPosOf: new Map(modelStops.map((j, m) => [j, m])),
   };
-}
-
-function median(values: number[]): number {
-  if (values.length === 0) return 0;
-  const s = [...values].sort((a, b) => a - b);
-  const mid = s.length >> 1;
-  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
 }
 
 type StopBase = Pick<StopResult, 'patternId' | 'routeId' | 'directionId' | 'stopIndex' | 'stopId' | 'stopName' | 'stopLat' | 'stopLon' | 'distAlongM' | 'tripsPerDay' | 'demandSource' | 'timepoint' | 'offsetFromShapeM'>;

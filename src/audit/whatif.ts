@@ -12,6 +12,7 @@ import { StopspanError } from '../common/errors.js';
 import type { FeedWarning } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
+import { nearestOnStopLine } from '../network/nearestOnStopLine.js';
 import type { DemandSource, ParamsReport } from './types.js';
 import { type Corridor, type CostSettings, servedStopCost } from '../model/corridor.js';
 import { paramsReport, type ModelParams } from '../model/params.js';
@@ -171,26 +172,8 @@ function resolveStop(feed: Feed, ref: string, where: string): number {
 
 /** Nearest point of a pattern's line of stops to (lat, lon): distance along and offset, metres. */
 function project(feed: Feed, prep: PreparedPattern, lat: number, lon: number): { posM: number; offsetM: number } {
-  const { modelStops, posM, pattern } = prep;
-  const R = 6_371_008.8;
-  const k = Math.cos((lat * Math.PI) / 180);
-  const toXY = (la: number, lo: number) => [((lo - lon) * Math.PI * R * k) / 180, ((la - lat) * Math.PI * R) / 180];
-  let best = { posM: posM[0], offsetM: Infinity };
-  for (let m = 0; m + 1 < modelStops.length; m++) {
-    const a = feed.stops[pattern.stopIdx[modelStops[m]]];
-    const b = feed.stops[pattern.stopIdx[modelStops[m + 1]]];
-    const [ax, ay] = toXY(a.lat, a.lon);
-    const [bx, by] = toXY(b.lat, b.lon);
-    const dx = bx - ax;
-    const dy = by - ay;
-    const len2 = dx * dx + dy * dy;
-    const t = len2 > 0 ? Math.min(1, Math.max(0, -(ax * dx + ay * dy) / len2)) : 0;
-    const px = ax + t * dx;
-    const py = ay + t * dy;
-    const d = Math.hypot(px, py);
-    if (d < best.offsetM) best = { posM: posM[m] + t * (posM[m + 1] - posM[m]), offsetM: d };
-  }
-  return best;
+  const stops = prep.modelStops.map((j) => feed.stops[prep.pattern.stopIdx[j]]);
+  return nearestOnStopLine(stops.map((s) => s.lat), stops.map((s) => s.lon), prep.posM, lat, lon);
 }
 
 interface Served {

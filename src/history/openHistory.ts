@@ -2,8 +2,9 @@
 // ordered list of migrations, WAL journal and a busy timeout so two jobs can write at once. A database that
 // is not this tool's is refused before anything in it changes; a reading command opens it read-only.
 
-import Database from 'better-sqlite3';
+import type Database from 'better-sqlite3';
 import { StopspanError } from '../common/errors.js';
+import { loadSqlite } from './loadSqlite.js';
 
 export type HistoryDb = Database.Database;
 
@@ -68,9 +69,10 @@ export function openHistory(path: string, options: OpenHistoryOptions = {}): His
       value: String(busyTimeoutMs),
     });
   }
+  const Sqlite = loadSqlite(path);
   let db: HistoryDb;
   try {
-    db = new Database(path, readOnly ? { readonly: true, fileMustExist: true } : {});
+    db = new Sqlite(path, readOnly ? { readonly: true, fileMustExist: true } : {});
   } catch (e) {
     throw new StopspanError('history-db', `cannot open the history database: ${(e as Error).message}`, { file: path });
   }

@@ -166,10 +166,3 @@ class WeightedMedian {
   }
 }
 
-/** Median of the values (NaN for none). */
-export function median(xs: number[]): number {
-  if (xs.length === 0) return NaN;
-  const s = Float64Array.from(xs).sort();
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-}

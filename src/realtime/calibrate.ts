@@ -4,6 +4,7 @@
 
 import GtfsRealtimeBindings from 'gtfs-realtime-bindings';
 import { StopspanError } from '../common/errors.js';
+import { median } from '../common/median.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
 import type { Feed, Frequency, TripStopTimes } from '../gtfs/types.js';
@@ -48,12 +49,6 @@ interface Instance {
   state: TripInstanceState;
   sched: TripSchedule;
   originS: number;
-}
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 function quantile(xs: number[], q: number): number {

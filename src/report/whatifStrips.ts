@@ -1,11 +1,11 @@
 // The stops of each pattern a scenario touches, before and after, laid out by distance along the route,
 // for the what-if page's strip diagrams. The engine reports figures, not layouts; this places removed,
 // moved and added stops again from the scenario (added and moved points snapped to the pattern's line of
-// stops with turf), so the page can draw what the figures describe.
+// stops by nearestOnStopLine, as the engine places them), so the page can draw what the figures describe.
 
-import { distance, lineString, nearestPointOnLine, point } from '@turf/turf';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet, Pattern } from '../network/types.js';
+import { nearestOnStopLine } from '../network/nearestOnStopLine.js';
 import { SNAP_LIMIT_M, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
 
 export type StripChange = 'kept' | 'removed' | 'moved' | 'added';
@@ -28,15 +28,8 @@ export interface WhatifStrip {
 
 /** Distance along the pattern of the point of its line of stops nearest to (lat, lon), and the offset, metres. */
 function snap(feed: Feed, pattern: Pattern, model: number[], lat: number, lon: number): { posM: number; offsetM: number } {
-  if (model.length < 2) return { posM: 0, offsetM: Infinity };
-  const coords = model.map((j) => [feed.stops[pattern.stopIdx[j]].lon, feed.stops[pattern.stopIdx[j]].lat]);
-  const hit = nearestPointOnLine(lineString(coords), point([lon, lat]), { units: 'meters' });
-  const k = Math.min(hit.properties.segmentIndex ?? 0, model.length - 2);
-  const segM = distance(coords[k], coords[k + 1], { units: 'meters' });
-  const t = segM > 0 ? Math.min(1, Math.max(0, (hit.properties.segmentDistance ?? 0) / segM)) : 0;
-  const a = pattern.distAlongM[model[k]];
-  const b = pattern.distAlongM[model[k + 1]];
-  return { posM: a + t * (b - a), offsetM: hit.properties.pointDistance ?? hit.properties.dist ?? Infinity };
+  const stops = model.map((j) => feed.stops[pattern.stopIdx[j]]);
+  return nearestOnStopLine(stops.map((s) => s.lat), stops.map((s) => s.lon), model.map((j) => pattern.distAlongM[j]), lat, lon);
 }
 
 function stopMatches(feed: Feed, stopIdx: number, ref: string): boolean {

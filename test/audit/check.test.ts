@@ -6,7 +6,7 @@ import geodesicPkg from 'geographiclib-geodesic';
 import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/audit/check.js';
 import { haversineM } from '../../src/network/geodesy.js';
 import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
-import { buildFeed, cleanSpec, street } from './buildFeed.js';
+import { buildFeed, cleanSpec, street } from '../helpers/buildFeed.js';
 import { StopspanError } from '../../src/common/errors.js';
 
 const TODAY = '2026-10-14';

@@ -1,11 +1,10 @@
 // compareFeeds on the real Manhattan bus feed against a copy altered here (three stops removed from
 // stops.txt and stop_times.txt, one moved 50 m, one renamed): it reports exactly those changes.
 import { describe, expect, it } from 'vitest';
-import { existsSync, mkdtempSync, rmSync, createWriteStream } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import yauzl from 'yauzl';
-import yazl from 'yazl';
+import { readZip, writeZip } from '../helpers/zip.js';
 import { parse } from 'csv-parse/sync';
 import geodesicPkg from 'geographiclib-geodesic';
 import { readFeed } from '../../src/gtfs/index.js';
@@ -19,39 +18,6 @@ const BUS = join(FEEDS, 'nyct-bus-manhattan.zip');
 const SUBWAY = join(FEEDS, 'nyct-subway.zip');
 const DATE = '2026-10-14'; // the date of the feeds' README facts, a Wednesday
 const Geodesic = (geodesicPkg as any).Geodesic;
-
-function readZip(path: string): Promise<Map<string, Buffer>> {
-  return new Promise((ok, fail) => {
-    yauzl.open(path, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return fail(err);
-      const out = new Map<string, Buffer>();
-      zip.on('entry', (e: yauzl.Entry) => {
-        zip.openReadStream(e, (err2, s) => {
-          if (err2 || !s) return fail(err2);
-          const parts: Buffer[] = [];
-          s.on('data', (d: Buffer) => parts.push(d));
-          s.on('end', () => {
-            out.set(e.fileName, Buffer.concat(parts));
-            zip.readEntry();
-          });
-        });
-      });
-      zip.on('end', () => ok(out));
-      zip.on('error', fail);
-      zip.readEntry();
-    });
-  });
-}
-
-function writeZip(path: string, files: Map<string, Buffer>): Promise<void> {
-  return new Promise((ok, fail) => {
-    const z = new yazl.ZipFile();
-    for (const [name, buf] of files) z.addBuffer(buf, name);
-    z.end();
-    const ws = createWriteStream(path);
-    z.outputStream.pipe(ws).on('close', () => ok()).on('error', fail);
-  });
-}
 
 describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
   it('reports exactly three stops removed, one moved 50 m and one renamed', async () => {

@@ -9,7 +9,7 @@ import { prepareAudit } from '../../src/audit/prepareAudit.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { LOCAL_NEAR_M } from '../../src/audit/localCover.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import { handmadeNetwork } from './handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 const LOCAL_AT = [0, 200, 400, 600, 800, 1000, 1200, 1400, 1600, 1800, 2000, 2200];
 const LIMITED_AT = [0, 5, 11]; // local stop positions where the limited pattern calls (1000 m gaps, then 1200 m)

@@ -4,7 +4,7 @@ import { checkFeed } from '../../src/audit/check.js';
 import { checkText } from '../../src/audit/checkText.js';
 import { compareFeeds } from '../../src/audit/compare.js';
 import { comparisonHtml, comparisonText } from '../../src/audit/compareRender.js';
-import { buildFeed, cleanSpec } from './buildFeed.js';
+import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
 
 describe('renderers', () => {
   const hostile = '<img src=x onerror=alert(1)>\u001b[2J';

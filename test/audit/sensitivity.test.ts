@@ -5,7 +5,7 @@ import { buildCandidates } from '../../src/audit/candidates.js';
 import { prepareAudit } from '../../src/audit/prepareAudit.js';
 import { runSensitivity, sensitivitySettings } from '../../src/audit/sensitivity.js';
 import { analysePattern } from '../../src/audit/verdicts.js';
-import { handmadeNetwork } from './handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 // stops about 110 m apart over 6 km, some nudged off the grid, so there are close stops and candidates
 const spacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));

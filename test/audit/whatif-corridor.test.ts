@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import { evaluateScenario } from '../../src/audit/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
-import { handmadeNetwork } from './handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 // stops every 200 m, except that the stop at index 5 sits 100 m after its left neighbour and 300 m before its right one
 const distM = [0, 200, 400, 600, 800, 900, 1200, 1400, 1600, 1800, 2000, 2200];

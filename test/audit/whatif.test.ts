@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import { evaluateScenario, parseScenario, scenarioFromOptions } from '../../src/audit/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
-import { handmadeNetwork } from './handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 import { thrown } from '../helpers/errors.js';
 
 const even = Array.from({ length: 16 }, (_, j) => j * 200); // 3 km, stops every 200 m

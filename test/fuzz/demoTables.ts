@@ -4,10 +4,9 @@
 // project's own reader, so the fuzz input does not depend on the code under test.
 
 import { mkdirSync, writeFileSync } from 'node:fs';
-import yazl from 'yazl';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
-import yauzl from 'yauzl';
+import { readZip, writeZip } from '../helpers/zip.js';
 
 export const ROOT = join(import.meta.dirname, '..', '..');
 export const DEMO_ZIP = join(ROOT, 'fixtures', 'demo', 'demo-feed.zip');
@@ -19,32 +18,6 @@ export interface Table {
   raw?: Set<string>; // "row:col" (row -1 = header) of cells to write unquoted, so they can break the CSV
 }
 export type Tables = Record<string, Table>;
-
-/** Reads every .txt entry of a zip into memory with yauzl. */
-export function readZipTexts(path: string): Promise<Record<string, string>> {
-  return new Promise((res, rej) => {
-    yauzl.open(path, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return rej(err ?? new Error(`cannot open ${path}`));
-      const out: Record<string, string> = {};
-      zip.on('entry', (e: yauzl.Entry) => {
-        if (!e.fileName.endsWith('.txt')) return zip.readEntry();
-        zip.openReadStream(e, (e2, s) => {
-          if (e2 || !s) return rej(e2);
-          const chunks: Buffer[] = [];
-          s.on('data', (c: Buffer) => chunks.push(c));
-          s.on('end', () => {
-            out[e.fileName] = Buffer.concat(chunks).toString('utf8');
-            zip.readEntry();
-          });
-          s.on('error', rej);
-        });
-      });
-      zip.on('end', () => res(out));
-      zip.on('error', rej);
-      zip.readEntry();
-    });
-  });
-}
 
 function toTable(text: string): Table {
   const grid = parse(text, { bom: true, relax_column_count: false }) as string[][];
@@ -63,7 +36,7 @@ const col = (t: Table, name: string): number => {
  * shapes those trips use. Calendars, agency and feed_info are kept whole.
  */
 export async function demoBase(): Promise<Tables> {
-  const texts = await readZipTexts(DEMO_ZIP);
+  const texts = Object.fromEntries([...(await readZip(DEMO_ZIP, (n) => n.endsWith('.txt')))].map(([n, b]) => [n, b.toString('utf8')]));
   const all: Tables = {};
   for (const [name, text] of Object.entries(texts)) all[name] = toTable(text);
   const keepRoutes = new Set(['R1', 'R40', 'R41']);
@@ -116,17 +89,6 @@ export function writeFeedFolder(t: Tables, dir: string): void {
 }
 
 /** Writes the tables as a zip (yazl, fixed timestamps), the form agencies publish. */
-export function writeFeedZip(t: Tables, path: string): Promise<void> {
-  return new Promise((res, rej) => {
-    const zip = new yazl.ZipFile();
-    for (const [name, tab] of Object.entries(t)) zip.addBuffer(Buffer.from(tableText(tab), 'utf8'), name, { mtime: new Date(Date.UTC(2026, 10, 1)) });
-    zip.end();
-    const chunks: Buffer[] = [];
-    zip.outputStream.on('data', (c: Buffer) => chunks.push(c));
-    zip.outputStream.on('end', () => {
-      writeFileSync(path, Buffer.concat(chunks));
-      res();
-    });
-    zip.outputStream.on('error', rej);
-  });
+export async function writeFeedZip(t: Tables, path: string): Promise<void> {
+  await writeZip(path, Object.entries(t).map(([name, tab]) => [name, tableText(tab)] as const));
 }

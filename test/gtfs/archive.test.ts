@@ -7,8 +7,7 @@ import { createHash } from 'node:crypto';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import yauzl from 'yauzl';
-import yazl from 'yazl';
+import { writeZip, zipBytes, zipDirectory } from '../helpers/zip.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { fileSha256, openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
@@ -149,13 +148,8 @@ describe('openFeed on zips', () => {
   });
 
   it('reads stored (uncompressed) entries as it reads deflated ones', async () => {
-    const zip = new yazl.ZipFile();
-    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: false });
-    zip.end();
-    const chunks: Buffer[] = [];
-    for await (const c of zip.outputStream) chunks.push(c as Buffer);
     const stored = join(tmp, 'stored.zip');
-    writeFileSync(stored, Buffer.concat(chunks));
+    await writeZip(stored, readdirSync(BASIC).filter((n) => n.endsWith('.txt')).map((f) => [f, readFileSync(join(BASIC, f))] as const), { compress: false });
     const a = await readFeed(stored);
     const b = await readFeed(await zipFolder(BASIC));
     expect(a.rowCounts).toEqual(b.rowCounts);
@@ -202,14 +196,12 @@ describe('openFeed on zips', () => {
 });
 
 describe('openFeed on zips that lie or are damaged', () => {
+  /** The basic feed's tables as name and bytes, in folder order. */
+  const basicTables = (): [string, Buffer][] => readdirSync(BASIC).filter((n) => n.endsWith('.txt')).map((f) => [f, readFileSync(join(BASIC, f))]);
+
   /** A zip of the basic feed with stop_times.txt stored (not deflated), so its bytes can be edited in place. */
   async function storedZip(): Promise<Buffer> {
-    const zip = new yazl.ZipFile();
-    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f, { compress: f !== 'stop_times.txt' });
-    zip.end();
-    const chunks: Buffer[] = [];
-    for await (const c of zip.outputStream) chunks.push(c as Buffer);
-    return Buffer.concat(chunks);
+    return zipBytes(basicTables(), { compress: false });
   }
 
   it('refuses an entry whose CRC-32 does not match, naming it: one flipped digit is not read as a time', async () => {
@@ -247,14 +239,8 @@ describe('openFeed on zips that lie or are damaged', () => {
   });
 
   it('refuses two entries of one table name, naming it', async () => {
-    const zip = new yazl.ZipFile();
-    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f);
-    zip.addBuffer(Buffer.from('stop_id,stop_name,stop_lat,stop_lon\nX,Elsewhere,0,0\n'), 'stops.txt');
-    zip.end();
-    const chunks: Buffer[] = [];
-    for await (const c of zip.outputStream) chunks.push(c as Buffer);
     const path = join(tmp, 'twice.zip');
-    writeFileSync(path, Buffer.concat(chunks));
+    await writeZip(path, [...basicTables(), ['stops.txt', 'stop_id,stop_name,stop_lat,stop_lon\nX,Elsewhere,0,0\n']]);
     const e = await rejected(openFeed(path));
     expect(e.code).toBe('feed-unreadable');
     expect(e.context.file).toContain('stops.txt');
@@ -262,14 +248,9 @@ describe('openFeed on zips that lie or are damaged', () => {
   });
 
   it('refuses an archive listing more entries than the cap before listing them', async () => {
-    const zip = new yazl.ZipFile();
-    for (const f of readdirSync(BASIC).filter((n) => n.endsWith('.txt'))) zip.addBuffer(readFileSync(join(BASIC, f)), f);
-    for (let k = 0; k < 12_000; k++) zip.addBuffer(Buffer.alloc(0), `e/${k}`, { compress: false });
-    zip.end();
-    const chunks: Buffer[] = [];
-    for await (const c of zip.outputStream) chunks.push(c as Buffer);
     const path = join(tmp, 'many.zip');
-    writeFileSync(path, Buffer.concat(chunks));
+    const empties: [string, Buffer][] = Array.from({ length: 12_000 }, (_, k) => [`e/${k}`, Buffer.alloc(0)]);
+    await writeZip(path, [...basicTables(), ...empties], { compress: false });
     const e = await rejected(openFeed(path));
     expect(e.code).toBe('feed-too-large');
     expect(e.message).toContain('10000');
@@ -328,18 +309,7 @@ describe.skipIf(!HAVE_FEEDS)('inflating the real feeds', () => {
     // the CRC-32 of each entry's uncompressed bytes, as the writer of the zip computed it, read from the
     // central directory by yauzl and recomputed with zlib's crc32 [C, PKWARE APPNOTE 4.4.7]
     const path = join(FEEDS, 'lirr-rail.zip');
-    const want = await new Promise<Map<string, { crc: number; size: number }>>((resolve, reject) => {
-      const m = new Map<string, { crc: number; size: number }>();
-      yauzl.open(path, { lazyEntries: true }, (err, zf) => {
-        if (err || !zf) return reject(err);
-        zf.on('entry', (e: yauzl.Entry) => {
-          m.set(e.fileName, { crc: e.crc32, size: e.uncompressedSize });
-          zf.readEntry();
-        });
-        zf.on('end', () => resolve(m));
-        zf.readEntry();
-      });
-    });
+    const want = new Map([...(await zipDirectory(path))].map(([name, r]) => [name, { crc: r.crc32, size: r.uncompressedSize }]));
     const archive = await openFeed(path);
     try {
       expect(archive.names().length).toBeGreaterThan(5);

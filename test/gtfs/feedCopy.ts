@@ -4,7 +4,7 @@
 import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import yazl from 'yazl';
+import { writeZip } from '../helpers/zip.js';
 
 export const FIXTURES = join(import.meta.dirname, '..', '..', 'fixtures', 'gtfs');
 export const BASIC = join(FIXTURES, 'vellmoor-basic');
@@ -35,13 +35,8 @@ export function editTable(name: string, line: number, edit: (old: string) => str
 export async function zipFolder(dir: string, { prefix = '', extra = {} }: { prefix?: string; extra?: Record<string, Buffer | string> } = {}): Promise<string> {
   const out = join(mkdtempSync(join(tmpdir(), 'stopspan-zip-')), 'feed.zip');
   made.push(out.slice(0, out.lastIndexOf('/')));
-  const zip = new yazl.ZipFile();
-  for (const f of readdirSync(dir).filter((n) => n.endsWith('.txt')).sort()) zip.addBuffer(readFileSync(join(dir, f)), prefix + f);
-  for (const [name, body] of Object.entries(extra)) zip.addBuffer(Buffer.isBuffer(body) ? body : Buffer.from(body), name);
-  zip.end();
-  const chunks: Buffer[] = [];
-  for await (const c of zip.outputStream) chunks.push(c as Buffer);
-  writeFileSync(out, Buffer.concat(chunks));
+  const files: [string, Buffer | string][] = readdirSync(dir).filter((n) => n.endsWith('.txt')).sort().map((f) => [prefix + f, readFileSync(join(dir, f))]);
+  await writeZip(out, [...files, ...Object.entries(extra)]);
   return out;
 }
 

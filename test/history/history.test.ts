@@ -1,18 +1,19 @@
 // The run history: schema on first use, transactional writes, reading back, rendering, and two processes
 // writing at once without corrupting the database.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
-import { execFileSync, spawn } from 'node:child_process';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { spawn, spawnSync } from 'node:child_process';
 import Database from 'better-sqlite3';
 import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, auditRunRow, lineChartSvg, seriesOf, varies, yRange, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
 import { HISTORY_APPLICATION_ID } from '../../src/history/openHistory.js';
 import { makeSampleResult } from '../report/sampleResult.js';
 import { checkFeed } from '../../src/audit/check.js';
-import { buildFeed, cleanSpec } from '../audit/buildFeed.js';
+import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
+import { ROOT } from '../helpers/cli.js'; // builds dist/ when it is older than the sources
 
-const ROOT = resolve(__dirname, '../..');
 let dir: string;
 beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), 'stopspan-history-'));
@@ -248,20 +249,13 @@ describe('the history page shows change', () => {
 
 describe('two processes writing at once', () => {
   it('keeps every row and passes integrity_check', async () => {
-    const out = join(dir, 'build');
-    // compile the history module (and what it imports) for plain node children
-    execFileSync(join(ROOT, 'node_modules/.bin/tsc'), [
-      join(ROOT, 'src/history/index.ts'), '--outDir', out, '--rootDir', join(ROOT, 'src'),
-      '--module', 'nodenext', '--moduleResolution', 'nodenext', '--target', 'es2022', '--skipLibCheck', '--types', 'node',
-    ], { cwd: ROOT, stdio: 'pipe' });
-    writeFileSync(join(out, 'package.json'), '{"type":"module"}');
-    // the compiled modules import better-sqlite3: resolve it from the project's own install, wherever the temporary folder sits
-    symlinkSync(join(ROOT, 'node_modules'), join(out, 'node_modules'), 'dir');
-    const script = join(out, 'writer.mjs');
+    // the children load the built library (dist/), which resolves better-sqlite3 from the project's node_modules
+    const library = pathToFileURL(join(ROOT, 'dist/history/index.js')).href;
+    const script = join(dir, 'writer.mjs');
     writeFileSync(
       script,
       `import { existsSync, writeFileSync } from 'node:fs';
-import { openHistory, recordRun } from './history/index.js';
+import { openHistory, recordRun } from '${library}';
 const [path, who, other, n] = process.argv.slice(2);
 const db = openHistory(path);
 // start together: say ready, then wait for the other writer (a barrier, not a timing)
@@ -298,4 +292,22 @@ db.close();
     expect(db.prepare('SELECT COUNT(*) AS n FROM run_findings').get()).toEqual({ n: 4 * N });
     db.close();
   }, 60_000);
+});
+
+describe('without the optional SQLite binding', () => {
+  it('says in one line how to install it, exit 2, and every other command still loads', () => {
+    // a copy of the built command where better-sqlite3 cannot be resolved (no node_modules above it)
+    const copy = join(dir, 'no-sqlite');
+    cpSync(join(ROOT, 'dist'), join(copy, 'dist'), { recursive: true });
+    writeFileSync(join(copy, 'package.json'), '{"type":"module"}');
+    const db = join(copy, 'runs.sqlite');
+    writeFileSync(db, '');
+    const bin = join(copy, 'dist/bin/stopspan.js');
+    const r = spawnSync(process.execPath, [bin, 'history', db], { cwd: copy, encoding: 'utf8', env: { ...process.env, NO_COLOR: '1' } });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toBe(`error: ${db}: the run history needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12\n`);
+    const v = spawnSync(process.execPath, [bin, '--version'], { cwd: copy, encoding: 'utf8' });
+    expect(v.status).toBe(0);
+    expect(v.stdout).toMatch(/^\d+\.\d+\.\d+/);
+  });
 });

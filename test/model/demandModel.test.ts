@@ -11,7 +11,7 @@ import { assumedDemand, typicalTripLengthM } from '../../src/model/demand.js';
 import { removalEffect } from '../../src/audit/verdicts.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import type { PreparedPattern } from '../../src/model/preparePattern.js';
-import { handmadeNetwork } from '../audit/handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 // @ts-expect-error: a plain ES module of the generators, without type declarations
 import { prng as rng } from '../../scripts/lib/seeded.mjs';
 

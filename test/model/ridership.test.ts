@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadRidership, MAX_RIDERSHIP_ROWS, parseRidership } from '../../src/model/ridership.js';
 import { ridershipDemand } from '../../src/model/demand.js';
-import { handmadeNetwork } from '../audit/handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 
 const { feed, patterns } = handmadeNetwork();
 

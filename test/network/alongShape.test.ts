@@ -2,9 +2,10 @@
 // stop backwards, and the work stays about the shape's length.
 
 import { describe, it, expect } from 'vitest';
-import * as turf from '@turf/turf';
+import { lineString, point } from '@turf/helpers';
+import { nearestPointOnLine } from '@turf/nearest-point-on-line';
 import { prepareShape, projectAlongShape } from '../../src/network/alongShape.js';
-import { at, line } from './handFeed.js';
+import { at, line } from '../helpers/handFeed.js';
 
 function shapeOf(xy: [number, number][]) {
   const pts = xy.map(([x, y]) => at(x, y));
@@ -139,12 +140,12 @@ describe('projectAlongShape', () => {
       return [x, 80 * Math.sin(x / 300) + 10];
     });
     const r = projectAlongShape(shape, stopsAt(stopXY));
-    // Reference: @turf/turf nearestPointOnLine (searches the whole line; `location` in km along the line,
+    // Reference: @turf/nearest-point-on-line (searches the whole line; `location` in km along the line,
     // haversine on the same 6 371 008.8 m sphere).
-    const lineGeo = turf.lineString(xy.map(([x, y]) => [at(x, y).lon, at(x, y).lat]));
+    const lineGeo = lineString(xy.map(([x, y]) => [at(x, y).lon, at(x, y).lat]));
     stopXY.forEach(([x, y], k) => {
       const p = at(x, y);
-      const ref = turf.nearestPointOnLine(lineGeo, turf.point([p.lon, p.lat]), { units: 'kilometers' });
+      const ref = nearestPointOnLine(lineGeo, point([p.lon, p.lat]), { units: 'kilometers' });
       expect(Math.abs(r.distAlongM[k] - ref.properties.location * 1000)).toBeLessThan(1);
       expect(Math.abs(r.offsetM[k] - ref.properties.dist * 1000)).toBeLessThan(0.5);
     });

@@ -6,7 +6,7 @@ import { buildPatterns, MAX_PATTERN_STOPS, MAX_PATTERNS } from '../../src/networ
 import { WarningSink } from '../../src/common/warnings.js';
 import { StopspanError } from '../../src/common/errors.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import { handFeed, line, type TripSpec } from './handFeed.js';
+import { handFeed, line, type TripSpec } from '../helpers/handFeed.js';
 
 // Five stops along an east-west street, 300 m apart, 6 m north of the shape.
 const STOPS: Record<string, [number, number]> = { A: [0, 6], B: [300, 6], C: [600, 6], D: [900, 6], E: [1200, 6] };

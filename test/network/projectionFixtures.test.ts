@@ -7,7 +7,7 @@ import { describe, it, expect } from 'vitest';
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { prepareShape, projectAlongShape } from '../../src/network/alongShape.js';
-import { at, line } from './handFeed.js';
+import { at, line } from '../helpers/handFeed.js';
 
 const DIR = resolve(__dirname, '../../fixtures/network');
 const REGENERATE = process.env.STOPSPAN_REGENERATE === '1';

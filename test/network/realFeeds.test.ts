@@ -8,7 +8,9 @@ import { join, resolve } from 'node:path';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { buildPatterns } from '../../src/network/buildPatterns.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import * as turf from '@turf/turf';
+import { lineString } from '@turf/helpers';
+import { distance } from '@turf/distance';
+import { nearestPointOnLine } from '@turf/nearest-point-on-line';
 import type { Feed, Shape, TripStopTimes } from '../../src/gtfs/types.js';
 import type { PatternSet } from '../../src/network/types.js';
 
@@ -83,7 +85,7 @@ for (const c of cases) {
     });
 
     it.runIf(c.file === 'nyct-bus-manhattan.zip')('infers miles when shape_dist_traveled is written in miles, and keeps the median', () => {
-      // shape_dist_traveled in miles computed by a reference library: @turf/turf length along each shape
+      // shape_dist_traveled in miles computed by a reference library: @turf/distance length along each shape
       // point and nearestPointOnLine location of each stop (whole-line search), in miles.
       const shapes = new Map<string, Shape>();
       for (const p of set.patterns) {
@@ -91,15 +93,15 @@ for (const c of cases) {
         const sh = feed.shapes.get(p.shapeId)!;
         const dist = new Float64Array(sh.lat.length);
         for (let i = 1; i < dist.length; i++) {
-          dist[i] = dist[i - 1] + turf.distance([sh.lon[i - 1], sh.lat[i - 1]], [sh.lon[i], sh.lat[i]], { units: 'miles' });
+          dist[i] = dist[i - 1] + distance([sh.lon[i - 1], sh.lat[i - 1]], [sh.lon[i], sh.lat[i]], { units: 'miles' });
         }
         shapes.set(p.shapeId, { ...sh, dist });
       }
       const stopTimes = new Map<string, TripStopTimes>();
       for (const p of set.patterns) {
         const sh = feed.shapes.get(p.shapeId)!;
-        const geo = turf.lineString(Array.from(sh.lat, (la, i) => [sh.lon[i], la]));
-        const d = Float64Array.from(p.stopIdx, (k) => turf.nearestPointOnLine(geo, [feed.stops[k].lon, feed.stops[k].lat], { units: 'miles' }).properties.location);
+        const geo = lineString(Array.from(sh.lat, (la, i) => [sh.lon[i], la]));
+        const d = Float64Array.from(p.stopIdx, (k) => nearestPointOnLine(geo, [feed.stops[k].lon, feed.stops[k].lat], { units: 'miles' }).properties.location);
         for (const t of p.tripIds) stopTimes.set(t, { ...feed.stopTimes.get(t)!, shapeDist: d });
       }
       const mi = buildPatterns({ ...feed, shapes, stopTimes });

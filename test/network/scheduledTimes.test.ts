@@ -3,7 +3,7 @@
 
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
-import { median, scheduledTimes, scheduledTimesOfRuns } from '../../src/network/scheduledTimes.js';
+import { scheduledTimes, scheduledTimesOfRuns } from '../../src/network/scheduledTimes.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import type { TripStopTimes } from '../../src/gtfs/types.js';
 
@@ -62,14 +62,6 @@ describe('scheduledTimes', () => {
 
   it('rejects trips whose length differs from the distances', () => {
     expect(() => scheduledTimes([trip([[0, 0]])], [0, 100])).toThrow(/2 stop times/);
-  });
-});
-
-describe('median', () => {
-  it('is the middle value, or the mean of the two middle ones', () => {
-    expect(median([3, 1, 2])).toBe(2);
-    expect(median([4, 1, 3, 2])).toBe(2.5);
-    expect(median([])).toBeNaN();
   });
 });
 

@@ -2,10 +2,11 @@
 // point, ends are kept, and straight runs collapse.
 
 import { describe, it, expect } from 'vitest';
-import * as turf from '@turf/turf';
+import { lineString } from '@turf/helpers';
+import { pointToLineDistance } from '@turf/point-to-line-distance';
 import fc from 'fast-check';
 import { simplifyPath } from '../../src/network/simplifyPath.js';
-import { at } from './handFeed.js';
+import { at } from '../helpers/handFeed.js';
 
 function path(xy: [number, number][]) {
   const pts = xy.map(([x, y]) => at(x, y));
@@ -28,7 +29,7 @@ describe('simplifyPath', () => {
   });
 
   it('leaves every dropped point within the tolerance of the simplified line (turf as the judge)', () => {
-    // Reference: @turf/turf pointToLineDistance (metres on its sphere), on random wiggly paths.
+    // Reference: @turf/point-to-line-distance (metres on its sphere), on random wiggly paths.
     fc.assert(
       fc.property(fc.array(fc.tuple(fc.integer({ min: -30, max: 30 }), fc.integer({ min: 5, max: 60 })), { minLength: 3, maxLength: 40 }), (steps) => {
         let x = 0;
@@ -38,9 +39,9 @@ describe('simplifyPath', () => {
         const out = simplifyPath(p.lat, p.lon, { toleranceM: 5 });
         expect(out[0]).toEqual([p.lon[0], p.lat[0]]);
         expect(out[out.length - 1]).toEqual([p.lon[xy.length - 1], p.lat[xy.length - 1]]);
-        const simple = turf.lineString(out);
+        const simple = lineString(out);
         for (let i = 0; i < xy.length; i++) {
-          expect(turf.pointToLineDistance([p.lon[i], p.lat[i]], simple, { units: 'meters' })).toBeLessThan(5.05);
+          expect(pointToLineDistance([p.lon[i], p.lat[i]], simple, { units: 'meters' })).toBeLessThan(5.05);
         }
       }),
       { numRuns: 60, seed: 7 },

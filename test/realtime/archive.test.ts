@@ -1,12 +1,12 @@
 // readArchive: order by header.timestamp, gzip by magic bytes, folder and zip alike, and every bad file
 // counted and skipped. Snapshots are encoded with the published gtfs-realtime-bindings.
 
-import { mkdtempSync, rmSync, writeFileSync, createWriteStream } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import yazl from 'yazl';
+import { writeZip } from '../helpers/zip.js';
 import GtfsRealtimeBindings from 'gtfs-realtime-bindings';
 import { readArchive, scanHeader, type ArchiveStats } from '../../src/realtime/index.js';
 import { WarningSink } from '../../src/common/warnings.js';
@@ -43,10 +43,7 @@ beforeAll(async () => {
   );
   for (const [name, b] of files) writeFileSync(join(dir, name), b);
   zipPath = join(dir, '..', `${dir.split('/').pop()}.zip`);
-  const zip = new yazl.ZipFile();
-  for (const [name, b] of [...files].reverse()) zip.addBuffer(b, `snapshots/${name}`);
-  zip.end();
-  await new Promise((res, rej) => zip.outputStream.pipe(createWriteStream(zipPath)).on('close', res).on('error', rej));
+  await writeZip(zipPath, [...files].reverse().map(([name, b]) => [`snapshots/${name}`, b] as const));
 });
 
 afterAll(() => {

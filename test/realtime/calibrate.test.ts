@@ -10,7 +10,7 @@ import { observeArchive, serviceDayOriginS, type ObservedData } from '../../src/
 import { WarningSink } from '../../src/common/warnings.js';
 // @ts-expect-error the generator is a plain ES module without type declarations
 import { simulateArchive } from '../../scripts/make-demo-realtime.mjs';
-import { buildNetwork } from './helpers.js';
+import { buildNetwork } from '../helpers/realtimeNetwork.js';
 
 const ROUTE = {
   N1: { cruiseSpeedMps: 9, dwellS: 16, accelMps2: 1.0, decelMps2: 1.25, reentryS: 2 },

@@ -14,7 +14,7 @@ import { patternsCsv } from '../../src/report/csv.js';
 import { summaryObject } from '../../src/report/summaryJson.js';
 // @ts-expect-error the generator is a plain ES module without type declarations
 import { simulateArchive } from '../../scripts/make-demo-realtime.mjs';
-import { buildNetwork } from './helpers.js';
+import { buildNetwork } from '../helpers/realtimeNetwork.js';
 
 const dirs: string[] = [];
 afterAll(() => {

@@ -21,7 +21,9 @@ function roundTrip(updates: GtfsRealtimeBindings.transit_realtime.TripUpdate.ISt
     entity: [{ id: 'e1', tripUpdate: { trip: { tripId: 'T1', startDate: '20261104' }, stopTimeUpdate: updates } }],
   });
   const bytes = rt.FeedMessage.encode(msg).finish();
-  return rt.FeedMessage.decode(bytes).entity[0].tripUpdate!.stopTimeUpdate;
+  const decoded = rt.FeedMessage.decode(bytes).entity[0].tripUpdate?.stopTimeUpdate;
+  if (!decoded) throw new Error('the round trip lost the stop_time_updates');
+  return decoded;
 }
 
 describe('resolveStopTimeUpdates', () => {

@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
 import { parse } from 'csv-parse/sync';
-import yauzl from 'yauzl';
+import { readZipEntry } from '../helpers/zip.js';
 import geodesicPkg from 'geographiclib-geodesic';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditFeed } from '../../src/audit/auditFeed.js';
@@ -19,28 +19,6 @@ const FEED = new URL('../../fixtures/demo/demo-feed.zip', import.meta.url).pathn
 const RIDERSHIP = new URL('../../fixtures/demo/ridership.csv', import.meta.url).pathname;
 const haveDemo = existsSync(FEED) && existsSync(RIDERSHIP);
 if (!haveDemo) console.warn('demo report test skipped: fixtures/demo is absent');
-
-function readZipEntry(zipPath: string, name: string): Promise<string> {
-  return new Promise((resolvePromise, reject) => {
-    yauzl.open(zipPath, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return reject(err);
-      zip.on('entry', (entry: yauzl.Entry) => {
-        if (entry.fileName !== name) return zip.readEntry();
-        zip.openReadStream(entry, (e2, stream) => {
-          if (e2 || !stream) return reject(e2);
-          const chunks: Buffer[] = [];
-          stream.on('data', (c: Buffer) => chunks.push(c));
-          stream.on('end', () => {
-            zip.close();
-            resolvePromise(Buffer.concat(chunks).toString('utf8'));
-          });
-        });
-      });
-      zip.on('end', () => reject(new Error(`${name} not in ${zipPath}`)));
-      zip.readEntry();
-    });
-  });
-}
 
 describe.skipIf(!haveDemo)('the demo feed report folder', () => {
   let work: string;
@@ -81,7 +59,7 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
   });
 
   it("places every stop of stops.geojson at the feed's own stops.txt coordinates, lon then lat", async () => {
-    const stopsTxt = parse(await readZipEntry(FEED, 'stops.txt'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
+    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
     const byId = new Map(stopsTxt.map((s) => [s.stop_id, [Number(s.stop_lon), Number(s.stop_lat)]]));
     const gj = JSON.parse(await readFile(join(out, 'stops.geojson'), 'utf8'));
     expect(gj.features.length).toBe(result.stops.length);
@@ -108,7 +86,7 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
     // each leaves its neighbours at most a few blocks apart: the straight-line gap between them, measured with
     // geographiclib (Karney's WGS84 geodesic) from the feed's own stops.txt, stays under 400 m, the
     // quarter-mile local-bus spacing many agencies use (common practice, from memory)
-    const stopsTxt = parse(await readZipEntry(FEED, 'stops.txt'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
+    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
     const ll = new Map(stopsTxt.map((s) => [s.stop_id, [Number(s.stop_lat), Number(s.stop_lon)]]));
     let measured = 0;
     for (const c of removals.filter((x) => /^(MKT|CAT)-/.test(x.stopId))) {

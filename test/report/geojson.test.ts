@@ -2,7 +2,7 @@
 // positions [longitude, latitude] within WGS84 ranges, LineStrings of two or more positions, no "crs"
 // member; coordinates equal the input stops; turf's validity check as an outside reference.
 
-import { booleanValid } from '@turf/turf';
+import { booleanValid } from '@turf/boolean-valid';
 import { describe, expect, it } from 'vitest';
 import type { AuditResult } from '../../src/audit/types.js';
 import { parse } from 'csv-parse/sync';

@@ -143,6 +143,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
         toStopId: '',
         gapM: after,
         wide,
+        coveredByLocal: null,
         overMaxGap: after > 700,
         addNetPaxMinPerDay: wide ? -Math.round(after / 9) : null,
         addMidLat: wide ? lat2 : null,

@@ -12,8 +12,9 @@ import { CAUTIONS as REPORT_CAUTIONS } from '../../src/report/cautions.js';
 import { whatifHtml } from '../../src/report/whatifHtml.js';
 import { whatifStrips } from '../../src/report/whatifStrips.js';
 import { whatifText } from '../../src/report/whatifText.js';
+import { nearestOnStopLine } from '../../src/network/nearestOnStopLine.js';
 import { REPORT_MARKER, writeFolder } from '../../src/report/writeFolder.js';
-import { handmadeNetwork } from '../audit/handmade.js';
+import { handmadeNetwork } from '../helpers/handmade.js';
 import { scanHtml } from '../security/htmlScan.js';
 
 const NASTY = '<img src=x onerror=alert(1)> "Quay" & </script><script>alert(2)</script>';
@@ -50,6 +51,17 @@ describe('whatifStrips', () => {
     // 0.001 degree of longitude at 52.1 N: 111 320 * cos(52.1 deg) / 1000 = 68.4 m (equirectangular, [D])
     expect(moved.posM - 1750).toBeCloseTo((111_320 * Math.cos((52.1 * Math.PI) / 180)) / 1000, 0);
     for (let i = 1; i < s.after.length; i++) expect(s.after[i].posM).toBeGreaterThanOrEqual(s.after[i - 1].posM);
+  });
+
+  it('places the added and moved stops where the engine weighs them: one snapping for both (nearestOnStopLine)', () => {
+    const pattern = patterns.patterns.find((p) => p.id === 'V1:0:1')!;
+    const model = pattern.stopIdx.map((_, j) => j).filter((j) => pattern.passengerStop[j] !== false);
+    const stops = model.map((j) => feed.stops[pattern.stopIdx[j]]);
+    const at = (lat: number, lon: number) =>
+      nearestOnStopLine(stops.map((x) => x.lat), stops.map((x) => x.lon), model.map((j) => pattern.distAlongM[j]), lat, lon).posM;
+    const s = strips[0];
+    expect(s.after.find((x) => x.change === 'added')!.posM).toBe(at(scenario.add[0].lat, scenario.add[0].lon));
+    expect(s.after.find((x) => x.change === 'moved')!.posM).toBe(at(scenario.move[0].lat, scenario.move[0].lon));
   });
 });
 

@@ -5,6 +5,7 @@
 
 import type { AuditResult, PatternResult, StopResult } from '../../audit/types.js';
 import { StopspanError } from '../../common/errors.js';
+import { median } from '../../common/median.js';
 import { CAUTIONS } from '../cautions.js';
 import { groupedFixed } from '../numberText.js';
 import { checkUnits, formatShortDistance, type Units } from '../units.js';
@@ -122,13 +123,6 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
   return { units, assumed: result.demandSource === 'assumed', patterns, candidates };
 }
 
-function median(values: number[]): number {
-  const v = values.filter(Number.isFinite).sort((a, b) => a - b);
-  if (v.length === 0) return 0;
-  const m = v.length >> 1;
-  return v.length % 2 ? v[m] : (v[m - 1] + v[m]) / 2;
-}
-
 // en-US digits as Intl.NumberFormat prints them, without loading ICU's number formatting (numberText.ts)
 function fmt(v: number, digits = 0): string {
   return Number.isFinite(v) ? groupedFixed(v, digits) : '–';
@@ -151,8 +145,8 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
     ? '<span class="badge assumed">assumed demand</span>'
     : '<span class="badge observed">observed demand</span>';
   const assumedNote = assumed ? ' <span class="badge assumed">assumed</span>' : '';
-  const bandLow = median(result.patterns.map((p) => p.bandLowM));
-  const bandHigh = median(result.patterns.map((p) => p.bandHighM));
+  const bandLow = median(result.patterns.map((p) => p.bandLowM).filter(Number.isFinite), 0);
+  const bandHigh = median(result.patterns.map((p) => p.bandHighM).filter(Number.isFinite), 0);
   const hist = histogramSvg(
     { gapsM: result.gaps.map((g) => g.gapM), bandLowM: bandLow, bandHighM: bandHigh, optimalM: hl.meanOptimalSpacingM, medianGapM: hl.medianGapM },
     units,

@@ -2,7 +2,7 @@
 // Patterns here are one per trip, with straight-line distances unless a shape offset is given.
 
 import type { Feed, Stop, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
-import { assembleFeed, type TripRows } from '../helpers/feedObject.js';
+import { assembleFeed, handPattern, type TripRows } from './feedObject.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
 import type { FeedWarning } from '../../src/common/warnings.js';
 import { haversineM } from '../../src/network/geodesy.js';
@@ -87,28 +87,22 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
       dist.push(dist[i - 1] + haversineM(a.lat, a.lon, b.lat, b.lon));
     }
     const gapRunTimeS = t.times.slice(1).map((x, i) => x[1] - t.times[i][2]);
-    return {
+    return handPattern({
       id: `${t.routeId ?? 'R1'}:${t.directionId ?? 0}:${k + 1}`,
       routeId: t.routeId ?? 'R1',
       directionId: t.directionId ?? 0,
       headsign: 'Vellmoor Centraal',
       shapeId: t.shapeId ?? '',
       tripIds: [t.id],
-      tripsPerDay: 1,
-      nominalFrequencyTrips: 0,
       stopIdx: idx,
       distAlongM: dist,
       offsetFromShapeM: t.times.map((x) => (t.shapeId ? spec.offsets?.[x[0]] ?? 0 : null)),
       distanceSource: t.shapeId ? 'shape_projection' : 'great_circle',
-      lengthM: dist[dist.length - 1],
-      passengerStop: idx.map(() => true),
       timepoint: idx.map(() => t.timepoint !== false),
       gapRunTimeS,
-      gapTimeInterpolated: gapRunTimeS.map(() => false),
       runTimeS: t.times[t.times.length - 1][1] - t.times[0][2],
       scheduledDwellS: t.times.map((x) => x[2] - x[1]),
-      path: [],
-    };
+    });
   });
   const routesAtStop = new Map<number, Set<string>>();
   for (const p of patterns) for (const i of p.stopIdx) (routesAtStop.get(i) ?? routesAtStop.set(i, new Set()).get(i)!).add(p.routeId);

@@ -2,6 +2,7 @@
 // one street (stops at the given distances), route V2 crossing it at one shared stop.
 import type { Feed, Stop } from '../../src/gtfs/types.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
+import { assembleFeed, handPattern } from './feedObject.js';
 
 const LAT0 = 52.1;
 const M_PER_DEG_LAT = 111_320;
@@ -16,58 +17,49 @@ export interface Handmade {
 }
 
 /** V1: stops at `distM` along an east-west street; V2: a north-south route through V1's stop `sharedAt`. */
-export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700], tripsPerDay = 60, runTimeS, timepoints = [] as number[], sharedAt = 5 } = {}): Handmade {
+export interface HandmadeOptions {
+  distM?: number[];
+  tripsPerDay?: number;
+  runTimeS?: number; // V1's whole run, seconds (default: its length at 4 m/s)
+  timepoints?: number[];
+  sharedAt?: number;
+}
+
+export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700], tripsPerDay = 60, runTimeS, timepoints = [], sharedAt = 5 }: HandmadeOptions = {}): Handmade {
   const stops: Stop[] = distM.map((d, j) => stopAt(`v1-${j}`, `Vellmoor Street ${j}`, d));
   const v2 = [stopAt('v2-n', 'North Gate', distM[sharedAt], 600), stopAt('v2-s', 'South Gate', distM[sharedAt], -600)];
   stops.push(...v2);
   const stopIndex = new Map(stops.map((s, i) => [s.id, i]));
   const n = distM.length;
-  const mk = (id: string, routeId: string, stopIdx: number[], d: number[], trips: number, rt: number): Pattern => ({
-    id,
-    routeId,
-    directionId: 0,
-    headsign: routeId === 'V1' ? 'Harbour' : 'South Gate',
-    shapeId: '',
-    tripIds: Array.from({ length: trips }, (_, k) => `${id}-t${k}`),
-    tripsPerDay: trips,
-    nominalFrequencyTrips: 0,
-    stopIdx,
-    distAlongM: d,
-    offsetFromShapeM: d.map(() => null),
-    distanceSource: 'great_circle',
-    lengthM: d[d.length - 1],
-    passengerStop: d.map(() => true),
-    timepoint: d.map((_, j) => routeId === 'V1' && timepoints.includes(j)),
-    gapRunTimeS: d.slice(1).map((x, j) => ((x - d[j]) / d[d.length - 1]) * rt),
-    gapTimeInterpolated: d.slice(1).map(() => false),
-    runTimeS: rt,
-    scheduledDwellS: d.map(() => 0),
-    path: [],
-  });
+  const mk = (id: string, routeId: string, stopIdx: number[], d: number[], trips: number, rt: number): Pattern =>
+    handPattern({
+      id,
+      routeId,
+      headsign: routeId === 'V1' ? 'Harbour' : 'South Gate',
+      tripIds: Array.from({ length: trips }, (_, k) => `${id}-t${k}`),
+      stopIdx,
+      distAlongM: d,
+      timepoint: d.map((_, j) => routeId === 'V1' && timepoints.includes(j)),
+      gapRunTimeS: d.slice(1).map((x, j) => ((x - d[j]) / d[d.length - 1]) * rt),
+      runTimeS: rt,
+    });
   const v1 = mk('V1:0:1', 'V1', distM.map((_, j) => j), distM, tripsPerDay, runTimeS ?? distM[n - 1] / 4);
   const v2p = mk('V2:0:1', 'V2', [stopIndex.get('v2-n')!, sharedAt, stopIndex.get('v2-s')!], [0, 600, 1200], 20, 300);
   const routesAtStop = new Map<number, Set<string>>();
   for (const p of [v1, v2p]) for (const s of p.stopIdx) (routesAtStop.get(s) ?? routesAtStop.set(s, new Set()).get(s)!).add(p.routeId);
-  const feed: Feed = {
+  const feed: Feed = assembleFeed({
     source: 'vellmoor-handmade',
     date: '2026-10-14',
     contentHash: '0'.repeat(64),
-    agencies: [{ id: 'VT', name: 'Vellmoor Transit', timezone: 'Europe/Amsterdam' }],
-    routes: new Map([
-      ['V1', { id: 'V1', agencyId: 'VT', shortName: '1', longName: 'Harbour line', type: 3 }],
-      ['V2', { id: 'V2', agencyId: 'VT', shortName: '2', longName: 'Gate line', type: 3 }],
-    ]),
+    routes: [
+      { id: 'V1', agencyId: 'VT', shortName: '1', longName: 'Harbour line', type: 3 },
+      { id: 'V2', agencyId: 'VT', shortName: '2', longName: 'Gate line', type: 3 },
+    ],
     stops,
-    stopIndex,
-    trips: new Map(),
-    stopTimes: new Map(),
-    shapes: new Map(),
+    trips: [],
+    shapes: [],
     calendar: [],
-    calendarDates: [],
-    frequencies: [],
     feedInfo: { publisherName: 'Vellmoor Transit', version: 'hand-1', startDate: '20260901', endDate: '20261231' },
-    warnings: [],
-    rowCounts: {},
-  };
+  });
   return { feed, patterns: { date: '2026-10-14', patterns: [v1, v2p], routesAtStop } };
 }

@@ -1,8 +1,9 @@
 // Hand-built static inputs for the realtime tests: a small invented Vellmoor network as a Feed and a
 // PatternSet (the contract types), and the same network in the shape the demo generator simulates.
 
-import type { Feed, Frequency, Stop, Trip, TripStopTimes } from '../../src/gtfs/types.js';
+import type { Feed, Frequency, Route, Stop } from '../../src/gtfs/types.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
+import { assembleFeed, handPattern, type TripRows } from './feedObject.js';
 
 export interface LineSpec {
   routeId: string;
@@ -30,14 +31,13 @@ export function hms(s: number): string {
 export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date = '20261104' } = {}): TestNetwork {
   const stops: Stop[] = [];
   const stopIndex = new Map<string, number>();
-  const trips = new Map<string, Trip>();
-  const stopTimes = new Map<string, TripStopTimes>();
+  const trips: TripRows[] = [];
   const frequencies: Frequency[] = [];
-  const routes = new Map();
+  const routes: Route[] = [];
   const patterns: Pattern[] = [];
   const simTrips: unknown[] = [];
   lines.forEach((line, li) => {
-    routes.set(line.routeId, { id: line.routeId, agencyId: 'VTA', shortName: line.routeId, longName: `Vellmoor ${line.routeId}`, type: 3 });
+    routes.push({ id: line.routeId, agencyId: 'VTA', shortName: line.routeId, longName: `Vellmoor ${line.routeId}`, type: 3 });
     const n = line.gapsM.length + 1;
     const dist = [0];
     for (const g of line.gapsM) dist.push(dist[dist.length - 1] + g);
@@ -63,15 +63,15 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
     starts.forEach((s0, k) => {
       const tripId = `${line.routeId}-T${String(k + 1).padStart(3, '0')}`;
       tripIds.push(tripId);
-      trips.set(tripId, { id: tripId, routeId: line.routeId, serviceId: 'WKDY', directionId: 0, headsign: 'North', shapeId: '' });
-      stopTimes.set(tripId, {
-        stopIdx: Int32Array.from(idx),
-        seq: Int32Array.from(idx.map((_, i) => (i + 1) * 10)), // not consecutive, as GTFS allows
-        arrS: Int32Array.from(rel.arr.map((x) => x + s0)),
-        depS: Int32Array.from(rel.dep.map((x) => x + s0)),
-        shapeDist: new Float64Array(n).fill(NaN),
-        timepoint: new Uint8Array(n).fill(1),
-        noService: new Uint8Array(n),
+      trips.push({
+        trip: { id: tripId, routeId: line.routeId, serviceId: 'WKDY', directionId: 0, headsign: 'North', shapeId: '' },
+        stopIdx: idx,
+        seq: idx.map((_, i) => (i + 1) * 10), // not consecutive, as GTFS allows
+        arrS: rel.arr.map((x) => x + s0),
+        depS: rel.dep.map((x) => x + s0),
+        shapeDist: idx.map(() => NaN),
+        timepoint: idx.map(() => 1),
+        noService: idx.map(() => 0),
       });
       const instanceStarts = line.frequency
         ? Array.from({ length: Math.ceil((line.frequency.endS - line.frequency.startS) / line.frequency.headwayS) }, (_, j) => line.frequency!.startS + j * line.frequency!.headwayS)
@@ -95,47 +95,35 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
       }
     });
     if (line.frequency) frequencies.push({ tripId: tripIds[0], startS: line.frequency.startS, endS: line.frequency.endS, headwayS: line.frequency.headwayS, exactTimes: 1 });
-    patterns.push({
-      id: `${line.routeId}:0:1`,
-      routeId: line.routeId,
-      directionId: 0,
-      headsign: 'North',
-      shapeId: '',
-      tripIds,
-      tripsPerDay: simTrips.length,
-      nominalFrequencyTrips: 0,
-      stopIdx: idx,
-      distAlongM: dist,
-      offsetFromShapeM: idx.map(() => null),
-      distanceSource: 'great_circle',
-      lengthM: dist[n - 1],
-      passengerStop: idx.map(() => true),
-      timepoint: idx.map(() => true),
-      gapRunTimeS: line.gapsM.map((g) => Math.round(g / 7)),
-      gapTimeInterpolated: line.gapsM.map(() => false),
-      runTimeS: rel.arr[n - 1],
-      scheduledDwellS: idx.map((_, i) => (i > 0 && i < n - 1 ? 20 : 0)),
-      path: [],
-    });
+    patterns.push(
+      handPattern({
+        id: `${line.routeId}:0:1`,
+        routeId: line.routeId,
+        headsign: 'North',
+        tripIds,
+        tripsPerDay: simTrips.length,
+        stopIdx: idx,
+        distAlongM: dist,
+        timepoint: idx.map(() => true),
+        gapRunTimeS: line.gapsM.map((g) => Math.round(g / 7)),
+        runTimeS: rel.arr[n - 1],
+        scheduledDwellS: idx.map((_, i) => (i > 0 && i < n - 1 ? 20 : 0)),
+      }),
+    );
   });
-  const feed: Feed = {
+  const feed: Feed = assembleFeed({
     source: 'vellmoor-test',
     date: null,
     contentHash: '',
     agencies: [{ id: 'VTA', name: 'Vellmoor Transit Authority', timezone: timeZone }],
     routes,
     stops,
-    stopIndex,
     trips,
-    stopTimes,
-    shapes: new Map(),
+    shapes: [],
     calendar: [{ serviceId: 'WKDY', days: [true, true, true, true, true, false, false], start: '20261102', end: '20270331' }],
-    calendarDates: [],
     frequencies,
     feedInfo: null,
-    warnings: [],
-    rowCounts: {},
-  };
+  });
   const routesAtStop = new Map<number, Set<string>>();
   for (const p of patterns) for (const s of p.stopIdx) routesAtStop.set(s, new Set([p.id]));
   return { feed, patterns: { date: `${date.slice(0, 4)}-${date.slice(4, 6)}-${date.slice(6)}`, patterns, routesAtStop }, sim: { timeZone, date, trips: simTrips } };

@@ -2,7 +2,7 @@
 // stage can be tested without the reader. Coordinates are given in metres east and north of a centre.
 
 import type { Feed, Stop, CalendarRow, CalendarDate, Frequency } from '../../src/gtfs/types.js';
-import { assembleFeed, type TripRows } from '../helpers/feedObject.js';
+import { assembleFeed, type TripRows } from './feedObject.js';
 import { EARTH_RADIUS_M } from '../../src/network/geodesy.js';
 
 export const CENTRE = { lat: 52.0, lon: 4.9 };
