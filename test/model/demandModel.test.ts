@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { Corridor, servedSetCostS, type CostSettings } from '../../src/model/corridor.js';
-import { assumedDemand, typicalTripLengthM } from '../../src/model/demand.js';
+import { assumedDemand, NATIONAL_MEAN_TRIP_MI, typicalTripLengthM } from '../../src/model/demand.js';
 import { removalEffect } from '../../src/audit/verdicts.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import type { PreparedPattern } from '../../src/model/preparePattern.js';
@@ -202,13 +202,16 @@ describe('a ridership file and mean_trip_length_m', () => {
 });
 
 describe('the typical bus trip', () => {
-  it('is US national motor-bus passenger-miles over unlinked trips', () => {
+  it('is about 2 miles on city buses, below the national motor-bus mean that suburban services lift', () => {
+    // [M] city local buses: passenger-miles over unlinked trips about 1.8-2.5 mi (from memory)
+    expect(typicalTripLengthM(3) / 1609.344).toBeGreaterThanOrEqual(1.8);
+    expect(typicalTripLengthM(3) / 1609.344).toBeLessThanOrEqual(2.5);
     // [S] passenger-miles 19 883 million (2011, motor bus), US BTS National Transportation Statistics
     // table 1-40 as quoted in BTS "Passenger Travel" table 2-1; [M] unlinked bus trips about 5 250 million
-    // that year (APTA Public Transportation Fact Book, from memory)
-    const miles = 19_883 / 5_250;
-    expect(typicalTripLengthM(3) / 1609.344).toBeCloseTo(miles, 1);
-    expect(typicalTripLengthM(3)).toBeGreaterThan(6000);
-    expect(typicalTripLengthM(3)).toBeLessThan(6200);
+    // that year (APTA Public Transportation Fact Book, from memory): 3.79 mi
+    expect(NATIONAL_MEAN_TRIP_MI.bus).toBeCloseTo(3.79, 2);
+    expect(typicalTripLengthM(3) / 1609.344).toBeLessThan(NATIONAL_MEAN_TRIP_MI.bus);
+    // other modes keep the national figure: heavy rail 17 317 / 3 700 [S]+[M]
+    expect(typicalTripLengthM(1) / 1609.344).toBeCloseTo(17_317 / 3_700, 6);
   });
 });
