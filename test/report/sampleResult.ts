@@ -282,6 +282,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: 14.5,
       vehicleHoursPerDay: (14.5 * s.tripsPerDay) / 3600,
       robust: (s.stopIndex % 3) !== 0,
+      evidence: '',
     }));
   const stopById = new Map(stops.map((s) => [s.stopId, s]));
   const additions: Candidate[] = gaps
@@ -302,6 +303,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: -16,
       vehicleHoursPerDay: -0.4,
       robust: true,
+      evidence: '2 stops of route <b>&amp; within a 400 m walk',
     }));
   const candidates = [...removals, ...additions]
     .filter((c) => c.netPaxMinPerDay < 0)
@@ -343,6 +345,9 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
     stops,
     gaps,
     candidates,
+    reviewGaps: [
+      { fromStopId: 'X1', toStopId: 'X2', name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: 1650, routeIds: ['R1'], patternIds: ['R1:0:1'], reason: 'long-straight-empty', detail: '1.6 km straight with no stop of any route within a 400 m walk of its middle' },
+    ],
     sensitivity: [
       { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 },
       { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: 0.05, meanOptimalSpacingM: 439, closeStops: 38, wideGaps: 8, paxMinLostPerDay: 7100, candidatesKept: 10 },
