@@ -8,6 +8,7 @@ import type { Pattern } from '../../src/network/types.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { additionEvidence, buildStopIndex, FAST_STRETCH_MPS, WALK_REACH_M } from '../../src/audit/additionEvidence.js';
 import { assembleFeed, handPattern } from '../helpers/feedObject.js';
+import { CAUTIONS } from '../../src/audit/cautions.js';
 
 const LAT0 = 52.1;
 const M_PER_DEG_LAT = 111_320;
@@ -109,5 +110,12 @@ describe('the evidence rule for additions', () => {
     const review = r.reviewGaps.filter((x) => x.fromStopId === 'm5');
     expect(review.map((x) => x.reason)).toEqual(['fast-stretch']);
     expect(review[0].detail).toContain('72 km/h');
+  });
+
+  it('cautions the reader about additions beside the removals, and states the rule among the assumptions', () => {
+    const r = corridor([1000, 1250, 1450, 1650, 1900]);
+    expect(CAUTIONS.filter((c) => c.startsWith('Before any stop is added'))).toEqual(['Before any stop is added: a site check that a bus can pull in and stop there safely, and that people can reach it on foot.']);
+    expect(r.assumptions).toContain(CAUTIONS.find((c) => c.startsWith('Before any stop is added')));
+    expect(r.assumptions.some((a) => a.startsWith('A stop is proposed in a wide gap only with evidence') && a.includes('400 m walk') && a.includes('50 km/h'))).toBe(true);
   });
 });
