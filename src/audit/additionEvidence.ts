@@ -123,7 +123,7 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
   }
   if (witnesses.length >= MIN_WITNESS_STOPS) {
     const rs = [...routes].sort();
-    return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a ${WALK_RADIUS_M} m walk` };
+    return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site` };
   }
   const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;
   if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM) return { ok: false, reason: 'long-straight-empty', text: `${(site.gapM / 1000).toFixed(1)} km straight with no stop of another route within a ${WALK_RADIUS_M} m walk of its middle` };

@@ -70,7 +70,7 @@ describe.skipIf(!have)('additions on nyct-bus-manhattan.zip without a land-use l
     const adds = r.candidates.filter((c) => c.action === 'add').slice(0, 25);
     expect(adds.length).toBe(25);
     expect(adds.map((c) => [c.stopName, place(c.lat, c.lon)]).filter(([, p]) => p !== '')).toEqual([]);
-    for (const c of adds) expect(c.evidence).toMatch(/^\d+ stops? of routes? .+ within a 400 m walk$/);
+    for (const c of adds) expect(c.evidence).toMatch(/^\d+ stops? of routes? .+ within a walk of the site$/);
   });
 
   it('lists those gaps for review, with their length and reason and no passenger-minute figure', () => {

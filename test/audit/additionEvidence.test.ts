@@ -90,7 +90,7 @@ describe('the evidence rule for additions', () => {
     const index = buildStopIndex(feed, [[0, 'M'], [1, 'M'], [2, 'C'], [3, 'C'], [4, 'C'], [5, 'C'], [6, 'C']]);
     const mid = stopAt('mid', 1450);
     const ev = additionEvidence(feed, index, { lat: mid.lat, lon: mid.lon, fromStopIdx: 0, toStopIdx: 1, gapM: 1400, scheduledS: 280, ownRoutes: new Set(['M']) });
-    expect(ev).toEqual({ ok: true, witnessStops: 3, witnessRoutes: ['C'], text: '3 stops of route C within a 400 m walk' });
+    expect(ev).toEqual({ ok: true, witnessStops: 3, witnessRoutes: ['C'], text: '3 stops of route C within a walk of the site' });
     // the gap's own route's stops witness nothing
     expect(additionEvidence(feed, index, { lat: mid.lat, lon: mid.lon, fromStopIdx: 0, toStopIdx: 1, gapM: 1400, scheduledS: 280, ownRoutes: new Set(['M', 'C']) }).ok).toBe(false);
   });

@@ -303,7 +303,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: -16,
       vehicleHoursPerDay: -0.4,
       robust: true,
-      evidence: '2 stops of route <b>&amp; within a 400 m walk',
+      evidence: '2 stops of route <b>&amp; within a walk of the site',
     }));
   const candidates = [...removals, ...additions]
     .filter((c) => c.netPaxMinPerDay < 0)
