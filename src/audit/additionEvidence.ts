@@ -50,7 +50,8 @@ export interface GapSite {
   ownRoutes: Set<string>;
 }
 
-export type Evidence = { ok: true; witnessStops: number; witnessRoutes: string[]; text: string } | { ok: false; reason: ReviewReason; text: string };
+export type Evidence =
+  { ok: true; witnessStops: number; witnessRoutes: string[]; text: string } | { ok: false; reason: ReviewReason; text: string };
 
 const CELL_DEG = 0.002; // about 220 m north-south
 const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter drops nothing inside the reach
@@ -106,7 +107,8 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
   const to = feed.stops[site.toStopIdx];
   if (site.scheduledS !== null && site.scheduledS > 0) {
     const mps = site.gapM / site.scheduledS;
-    if (mps > FAST_STRETCH_MPS) return { ok: false, reason: 'fast-stretch', text: `scheduled at ${(mps * 3.6).toFixed(0)} km/h, faster than a local bus on streets` };
+    if (mps > FAST_STRETCH_MPS)
+      return { ok: false, reason: 'fast-stretch', text: `scheduled at ${(mps * 3.6).toFixed(0)} km/h, faster than a local bus on streets` };
   }
   const witnesses: number[] = [];
   const routes = new Set<string>();
@@ -123,9 +125,23 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
   }
   if (witnesses.length >= MIN_WITNESS_STOPS) {
     const rs = [...routes].sort();
-    return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site` };
+    return {
+      ok: true,
+      witnessStops: witnesses.length,
+      witnessRoutes: rs,
+      text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`,
+    };
   }
   const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;
-  if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM) return { ok: false, reason: 'long-straight-empty', text: `${(site.gapM / 1000).toFixed(1)} km straight with no stop of another route within a ${WALK_RADIUS_M} m walk of its middle` };
-  return { ok: false, reason: 'no-stop-near', text: `no stop of another route within a ${WALK_RADIUS_M} m walk of its middle, away from the gap's ends` };
+  if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM)
+    return {
+      ok: false,
+      reason: 'long-straight-empty',
+      text: `${(site.gapM / 1000).toFixed(1)} km straight with no stop of another route within a ${WALK_RADIUS_M} m walk of its middle`,
+    };
+  return {
+    ok: false,
+    reason: 'no-stop-near',
+    text: `no stop of another route within a ${WALK_RADIUS_M} m walk of its middle, away from the gap's ends`,
+  };
 }

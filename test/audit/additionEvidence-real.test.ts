@@ -33,7 +33,10 @@ function insidePark(lat: number, lon: number): number {
   let least = Infinity;
   for (let i = 0; i < 4; i++) {
     const [a, b] = [PARK[i], PARK[(i + 1) % 4]];
-    const x1 = frame.x(a[1]), y1 = frame.y(a[0]), x2 = frame.x(b[1]), y2 = frame.y(b[0]);
+    const x1 = frame.x(a[1]),
+      y1 = frame.y(a[0]),
+      x2 = frame.x(b[1]),
+      y2 = frame.y(b[0]);
     least = Math.min(least, ((x2 - x1) * (y - y1) - (y2 - y1) * (x - x1)) / Math.hypot(x2 - x1, y2 - y1));
   }
   return least;

@@ -31,12 +31,28 @@ function corridor(crossEastM: number[], gapSpeedMps = 5) {
   stops.push(...cross);
   const gapRunTimeS = MAIN_M.slice(1).map((x, j) => (x - MAIN_M[j]) / (j === 5 ? gapSpeedMps : 5));
   const trips = (id: string, n: number) => Array.from({ length: n }, (_, k) => `${id}-${k}`);
-  const main: Pattern = handPattern({ id: 'M:0:1', routeId: 'M', tripIds: trips('M', 80), stopIdx: MAIN_M.map((_, j) => j), distAlongM: MAIN_M, gapRunTimeS });
+  const main: Pattern = handPattern({
+    id: 'M:0:1',
+    routeId: 'M',
+    tripIds: trips('M', 80),
+    stopIdx: MAIN_M.map((_, j) => j),
+    distAlongM: MAIN_M,
+    gapRunTimeS,
+  });
   const patterns: Pattern[] = [main];
   if (cross.length >= 2) {
     const idx = cross.map((_, k) => MAIN_M.length + k);
     const along = crossEastM.map((e) => e - crossEastM[0]);
-    patterns.push(handPattern({ id: 'C:0:1', routeId: 'C', tripIds: trips('C', 30), stopIdx: idx, distAlongM: along, gapRunTimeS: along.slice(1).map((x, j) => (x - along[j]) / 5) }));
+    patterns.push(
+      handPattern({
+        id: 'C:0:1',
+        routeId: 'C',
+        tripIds: trips('C', 30),
+        stopIdx: idx,
+        distAlongM: along,
+        gapRunTimeS: along.slice(1).map((x, j) => (x - along[j]) / 5),
+      }),
+    );
   }
   const routesAtStop = new Map<number, Set<string>>();
   for (const p of patterns) for (const s of p.stopIdx) (routesAtStop.get(s) ?? routesAtStop.set(s, new Set()).get(s)!).add(p.routeId);
@@ -54,7 +70,11 @@ function corridor(crossEastM: number[], gapSpeedMps = 5) {
     calendar: [],
     feedInfo: { publisherName: 'Vellmoor Transit', version: 'hand-1', startDate: '20260901', endDate: '20261231' },
   });
-  return runAudit(feed, { date: '2026-10-14', patterns, routesAtStop }, { generatedAt: '2026-10-14T00:00:00Z', forceTransfers: false, params: { cruise_speed_mps: 11.176 } });
+  return runAudit(
+    feed,
+    { date: '2026-10-14', patterns, routesAtStop },
+    { generatedAt: '2026-10-14T00:00:00Z', forceTransfers: false, params: { cruise_speed_mps: 11.176 } },
+  );
 }
 
 const inGap = (lat: number, lon: number) => {
@@ -86,16 +106,44 @@ describe('the evidence rule for additions', () => {
     expect(r.reviewGaps.filter((x) => x.fromStopId === 'm5')).toEqual([]);
     // within the reach (308 m straight line) of the middle at 1450 m: the stops at 1250, 1450 and 1650 m (80 m off the street)
     expect(WALK_REACH_M).toBeCloseTo(400 / 1.3, 6);
-    const feed = { stops: [stopAt('a', 750), stopAt('b', 2150), ...[1000, 1250, 1450, 1650, 1900].map((e, k) => stopAt(`c${k}`, e, 80))] } as unknown as Feed;
-    const index = buildStopIndex(feed, [[0, 'M'], [1, 'M'], [2, 'C'], [3, 'C'], [4, 'C'], [5, 'C'], [6, 'C']]);
+    const feed = {
+      stops: [stopAt('a', 750), stopAt('b', 2150), ...[1000, 1250, 1450, 1650, 1900].map((e, k) => stopAt(`c${k}`, e, 80))],
+    } as unknown as Feed;
+    const index = buildStopIndex(feed, [
+      [0, 'M'],
+      [1, 'M'],
+      [2, 'C'],
+      [3, 'C'],
+      [4, 'C'],
+      [5, 'C'],
+      [6, 'C'],
+    ]);
     const mid = stopAt('mid', 1450);
-    const ev = additionEvidence(feed, index, { lat: mid.lat, lon: mid.lon, fromStopIdx: 0, toStopIdx: 1, gapM: 1400, scheduledS: 280, ownRoutes: new Set(['M']) });
+    const ev = additionEvidence(feed, index, {
+      lat: mid.lat,
+      lon: mid.lon,
+      fromStopIdx: 0,
+      toStopIdx: 1,
+      gapM: 1400,
+      scheduledS: 280,
+      ownRoutes: new Set(['M']),
+    });
     expect(ev).toEqual({ ok: true, witnessStops: 3, witnessRoutes: ['C'], text: '3 stops of route C within a walk of the site' });
     // the gap's own route's stops witness nothing
-    expect(additionEvidence(feed, index, { lat: mid.lat, lon: mid.lon, fromStopIdx: 0, toStopIdx: 1, gapM: 1400, scheduledS: 280, ownRoutes: new Set(['M', 'C']) }).ok).toBe(false);
+    expect(
+      additionEvidence(feed, index, {
+        lat: mid.lat,
+        lon: mid.lon,
+        fromStopIdx: 0,
+        toStopIdx: 1,
+        gapM: 1400,
+        scheduledS: 280,
+        ownRoutes: new Set(['M', 'C']),
+      }).ok,
+    ).toBe(false);
   });
 
-  it('counts no stop standing by the gap\'s ends as evidence for its middle', () => {
+  it("counts no stop standing by the gap's ends as evidence for its middle", () => {
     // route C's stops beside the gap's two ends only
     const r = corridor([700, 2200]);
     expect(r.candidates.filter((c) => c.action === 'add' && inGap(c.lat, c.lon))).toEqual([]);
@@ -114,8 +162,14 @@ describe('the evidence rule for additions', () => {
 
   it('cautions the reader about additions beside the removals, and states the rule among the assumptions', () => {
     const r = corridor([1000, 1250, 1450, 1650, 1900]);
-    expect(CAUTIONS.filter((c) => c.startsWith('Before any stop is added'))).toEqual(['Before any stop is added: a site check that a bus can pull in and stop there safely, and that people can reach it on foot.']);
+    expect(CAUTIONS.filter((c) => c.startsWith('Before any stop is added'))).toEqual([
+      'Before any stop is added: a site check that a bus can pull in and stop there safely, and that people can reach it on foot.',
+    ]);
     expect(r.assumptions).toContain(CAUTIONS.find((c) => c.startsWith('Before any stop is added')));
-    expect(r.assumptions.some((a) => a.startsWith('A stop is proposed in a wide gap only with evidence') && a.includes('400 m walk') && a.includes('50 km/h'))).toBe(true);
+    expect(
+      r.assumptions.some(
+        (a) => a.startsWith('A stop is proposed in a wide gap only with evidence') && a.includes('400 m walk') && a.includes('50 km/h'),
+      ),
+    ).toBe(true);
   });
 });
