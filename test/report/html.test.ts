@@ -124,4 +124,13 @@ describe('additions and removals on the page', () => {
     expect(review).toContain('<td>between &lt;Quay&gt; &amp; &quot;Bridge&quot;</td>');
     expect(review).toContain('a long straight run with no stop of another route');
   });
+
+  it('marks the gap listed for review as an empty stretch in the page data, the other wide gaps not', () => {
+    const g = sample.reviewGaps[0];
+    expect(g).toBeDefined();
+    const data = JSON.parse(html.slice(html.indexOf('>', dataStart) + 1, html.indexOf('</script>', dataStart))) as { patterns: { id: string; gaps: [number, number, number][] }[] };
+    const marks = data.patterns.flatMap((p) => p.gaps.map((x) => [p.id, x[2]] as [string, number]));
+    expect(marks.filter(([, m]) => m === 2)).toEqual([[g.patternIds[0], 2]]);
+    expect(marks.filter(([, m]) => m === 1).length).toBeGreaterThan(0);
+  });
 });

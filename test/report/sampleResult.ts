@@ -346,7 +346,11 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
     gaps,
     candidates,
     reviewGaps: [
-      { fromStopId: 'X1', toStopId: 'X2', name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: 1650, routeIds: ['R1'], patternIds: ['R1:0:1'], reason: 'long-straight-empty', detail: '1.6 km straight with no stop of any route within a 400 m walk of its middle' },
+      // the last wide gap, as if nobody were near its middle
+      ...gaps
+        .filter((g) => g.wide)
+        .slice(-1)
+        .map((g) => ({ fromStopId: g.fromStopId, toStopId: g.toStopId, name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: g.gapM, routeIds: [stopById.get(g.fromStopId)?.routeId ?? ''], patternIds: [g.patternId], reason: 'long-straight-empty' as const, detail: '1.6 km straight with no stop of another route within a 400 m walk of its middle' })),
     ],
     sensitivity: [
       { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 },

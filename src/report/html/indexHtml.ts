@@ -52,11 +52,13 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) stopsBy.set(s.patternId, (l = []));
     l.push(s);
   }
+  // a wide gap is 1, or 2 where it is listed for review (no evidence anyone is there: an empty stretch)
+  const underReview = new Set(result.reviewGaps.flatMap((g) => g.patternIds.map((id) => `${id}\n${g.fromStopId}\n${g.toStopId}`)));
   const wideBy = new Map<string, [number, number, number][]>();
   for (const g of result.gaps) {
     let l = wideBy.get(g.patternId);
     if (!l) wideBy.set(g.patternId, (l = []));
-    if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, 1]);
+    if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, underReview.has(`${g.patternId}\n${g.fromStopId}\n${g.toStopId}`) ? 2 : 1]);
   }
   const routeName = new Map<string, string>();
   for (const p of result.patterns) if (!routeName.has(p.routeId)) routeName.set(p.routeId, p.routeShortName || p.routeId);
