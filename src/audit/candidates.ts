@@ -5,11 +5,14 @@
 // together with a removal already proposed next to it, is not proposed.
 
 import type { Feed } from '../gtfs/types.js';
-import type { Candidate } from './types.js';
+import type { Candidate, ReviewGap } from './types.js';
 import type { AdditionEffect, PatternAnalysis, RemovalEffect } from './verdicts.js';
+import { additionEvidence, buildStopIndex } from './additionEvidence.js';
 
 export interface CandidateOptions {
   maxGapM: number;
+  /** Filled with the wide gaps that have no evidence for a stop (see additionEvidence.ts), longest first. */
+  reviewGaps?: ReviewGap[];
 }
 
 interface Group<T> {
@@ -29,7 +32,7 @@ export function candidateKey(c: Pick<Candidate, 'action' | 'stopId' | 'lat' | 'l
   return c.action === 'remove' ? `remove:${c.stopId}` : `add:${c.lat.toFixed(6)},${c.lon.toFixed(6)}`;
 }
 
-export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM }: CandidateOptions): Candidate[] {
+export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps }: CandidateOptions): Candidate[] {
   const fixed = new Set<number>();
   for (const a of analyses) for (const s of a.fixedStopIdx) fixed.add(s);
   const byPattern = new Map(analyses.map((a) => [a.result.patternId, a]));
@@ -89,12 +92,31 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
       g.net += e.netPaxMinPerDay;
     }
   }
+  // an addition stands on evidence that people are there and a bus can stop there; a gap without it is
+  // listed for review with its length and reason, with no passenger-minute figure
+  const stopIndex = addGroups.size ? buildStopIndex(feed, servedStops(analyses)) : null;
+  const review: ReviewGap[] = [];
   for (const g of addGroups.values()) {
-    if (!(g.net < 0)) continue;
     const e0 = g.effects[0];
     const from = feed.stops[e0.fromStopIdx];
     const to = feed.stops[e0.toStopIdx];
-    out.push(toCandidate('add', '', `between ${from?.name ?? '?'} and ${to?.name ?? '?'}`, e0.lat, e0.lon, g.effects));
+    const name = `between ${from?.name ?? '?'} and ${to?.name ?? '?'}`;
+    // the fastest schedule over the gap speaks for the stretch: an express run is what a bridge allows
+    let scheduledS: number | null = null;
+    for (const e of g.effects) if (e.scheduledS !== null && e.scheduledS > 0 && (scheduledS === null || e.scheduledS < scheduledS)) scheduledS = e.scheduledS;
+    const ev = additionEvidence(feed, stopIndex!, { lat: e0.lat, lon: e0.lon, fromStopIdx: e0.fromStopIdx, toStopIdx: e0.toStopIdx, gapM: e0.gapM, scheduledS, ownRoutes: new Set(g.effects.map((e) => e.routeId)) });
+    if (!ev.ok) {
+      review.push({ fromStopId: from?.id ?? '', toStopId: to?.id ?? '', name, lat: e0.lat, lon: e0.lon, gapM: e0.gapM, routeIds: [...new Set(g.effects.map((e) => e.routeId))].sort(), patternIds: g.effects.map((e) => e.patternId), reason: ev.reason, detail: ev.text });
+      continue;
+    }
+    if (!(g.net < 0)) continue;
+    const c = toCandidate('add', '', name, e0.lat, e0.lon, g.effects);
+    c.evidence = ev.text;
+    out.push(c);
+  }
+  if (reviewGaps) {
+    review.sort((x, y) => y.gapM - x.gapM || x.name.localeCompare(y.name));
+    reviewGaps.push(...review);
   }
 
   out.sort((x, y) => x.netPaxMinPerDay - y.netPaxMinPerDay || (x.stopId + x.stopName).localeCompare(y.stopId + y.stopName));
@@ -121,5 +143,11 @@ function toCandidate(action: 'remove' | 'add', stopId: string, stopName: string,
     runTimeSavedPerTripS: trips > 0 ? busSPerDay / trips : 0,
     vehicleHoursPerDay: busSPerDay / 3600,
     robust: false,
+    evidence: '',
   };
+}
+
+/** (feed stop, route) for every passenger stop the audited patterns serve. */
+function* servedStops(analyses: PatternAnalysis[]): Iterable<[number, string]> {
+  for (const a of analyses) for (const s of a.feedStopsByModelPos) yield [s, a.result.routeId];
 }

@@ -9,6 +9,7 @@ export const CAUTIONS: readonly string[] = Object.freeze([
   'attention to older and disabled riders, for whom a longer walk weighs more;',
   'an equity review where one is required (for example Title VI service-equity analysis in the US);',
   'and public engagement with the riders and neighbours affected.',
+  'Before any stop is added: a site check that a bus can pull in and stop there safely, and that people can reach it on foot.',
   'Local policy and licensed professional judgement decide.',
   'Every figure computed from assumed demand is labelled as assumed.',
 ]);

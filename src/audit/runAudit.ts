@@ -7,7 +7,8 @@ import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import { version } from '../version.js';
-import type { AuditResult, Headline } from './types.js';
+import type { AuditResult, Headline, ReviewGap } from './types.js';
+import { FAST_STRETCH_MPS, WALK_DETOUR, WALK_RADIUS_M } from './additionEvidence.js';
 import { paramsReport } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
@@ -59,7 +60,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
-  const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+  const reviewGaps: ReviewGap[] = [];
+  const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps });
   for (const a of analyses) {
     const family = speedFamily(a.result.routeType);
     if (family !== 'bus' && family !== 'tram') {
@@ -140,6 +142,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
     `A gap that another route serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
+    `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there: a stop of any route within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
@@ -160,6 +163,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     stops: analyses.flatMap((a) => a.stops),
     gaps: analyses.flatMap((a) => a.gaps),
     candidates,
+    reviewGaps,
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,

@@ -152,6 +152,22 @@ export interface Candidate {
   runTimeSavedPerTripS: number; // weighted over patterns by trips
   vehicleHoursPerDay: number; // saved (positive) or added (negative)
   robust: boolean; // still a saving under every sensitivity case
+  /** What an addition stands on (witness stops near the site); '' for a removal. */
+  evidence: string;
+}
+
+/** A wide gap where no stop is proposed for want of evidence that people are there: length and reason, no passenger-minute figure. */
+export interface ReviewGap {
+  fromStopId: string;
+  toStopId: string;
+  name: string; // 'between A and B'
+  lat: number; // the middle of the gap
+  lon: number;
+  gapM: number;
+  routeIds: string[];
+  patternIds: string[];
+  reason: 'fast-stretch' | 'long-straight-empty' | 'no-stop-near';
+  detail: string; // the reason in words
 }
 
 export interface Headline {
@@ -178,6 +194,8 @@ export interface AuditResult {
   stops: StopResult[];
   gaps: GapResult[];
   candidates: Candidate[];
+  /** Wide gaps without evidence for a stop, longest first. */
+  reviewGaps: ReviewGap[];
   sensitivity: SensitivityCase[];
   warnings: FeedWarning[];
   assumptions: string[]; // plain sentences shown in every report

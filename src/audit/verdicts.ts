@@ -44,6 +44,8 @@ export interface AdditionEffect extends ChangeEffect {
   lat: number;
   lon: number;
   gapM: number;
+  /** Scheduled seconds between the gap's ends (median trip, dwell at skipped stops included); null when unknown. */
+  scheduledS: number | null;
 }
 
 export interface PatternAnalysis {
@@ -401,7 +403,12 @@ export function analysePattern(
       add = changeEffect((parts.addition[m] ??= additionParts(prep, m, (posM[m] + posM[m + 1]) / 2, settings)), settings, -1);
       lat = from && to ? (from.lat + to.lat) / 2 : null;
       lon = from && to ? (from.lon + to.lon) / 2 : null;
-      additions.push({ netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
+      let scheduledS: number | null = 0;
+      for (let j = modelStops[m]; j < modelStops[m + 1]; j++) {
+        const t = pattern.gapRunTimeS[j] + (j > modelStops[m] ? (pattern.scheduledDwellS[j] ?? 0) : 0);
+        scheduledS = Number.isFinite(t) && scheduledS !== null ? scheduledS + t : null;
+      }
+      additions.push({ scheduledS, netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
     }
     if (!detail) continue;
     gaps.push({

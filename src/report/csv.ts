@@ -172,6 +172,7 @@ export function candidateColumns(demandSource: string): CsvColumn<Candidate>[] {
     num('vehicle_hours_per_day', (c) => c.vehicleHoursPerDay, 3),
     text('robust', (c) => (c.robust ? 'yes' : 'no')),
     text('demand_source', () => demandSource),
+    text('evidence', (c) => c.evidence),
   ];
 }
 

@@ -40,6 +40,7 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       stop_rows: stopRows,
       gaps: result.gaps.length,
       candidates: result.candidates.length,
+      review_gaps: result.reviewGaps.length,
       warnings: result.warnings.length,
     },
     headline: {
@@ -61,6 +62,18 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       run_time_saved_per_trip_s: r1(c.runTimeSavedPerTripS),
       vehicle_hours_per_day: r3(c.vehicleHoursPerDay),
       robust: c.robust,
+      evidence: c.evidence,
+    })),
+    review_gaps: result.reviewGaps.map((g) => ({
+      from_stop_id: g.fromStopId,
+      to_stop_id: g.toStopId,
+      name: g.name,
+      lat: Math.round(g.lat * 1e6) / 1e6,
+      lon: Math.round(g.lon * 1e6) / 1e6,
+      gap_m: r1(g.gapM),
+      route_ids: [...g.routeIds],
+      reason: g.reason,
+      detail: g.detail,
     })),
     parameters,
     sensitivity: result.sensitivity.map((s) => ({

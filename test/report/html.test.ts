@@ -106,3 +106,31 @@ describe('index.html', () => {
     for (const c of CAUTIONS) expect(text).toContain(escapeHtml(c));
   });
 });
+
+describe('additions and removals on the page', () => {
+  it('ranks removals and additions in separate lists, each addition with its evidence, and lists the gaps to review', () => {
+    const removeAt = html.indexOf('<h4>Stops to remove</h4>');
+    const addAt = html.indexOf('<h4>Stops to add</h4>');
+    expect(removeAt).toBeGreaterThan(0);
+    expect(addAt).toBeGreaterThan(removeAt);
+    const removals = html.slice(removeAt, addAt);
+    const additions = html.slice(addAt, html.indexOf('</section>', addAt));
+    expect(removals).toContain('<li>Remove ');
+    expect(removals).not.toContain('Add a stop');
+    expect(additions).toContain('<li>Add a stop ');
+    expect(additions).not.toContain('<li>Remove ');
+    expect(additions).toContain('(evidence: 2 stops of route &lt;b&gt;&amp;amp; within a walk of the site)');
+    const review = html.slice(html.indexOf('<h3>Wide gaps to review</h3>'));
+    expect(review).toContain('<td>between &lt;Quay&gt; &amp; &quot;Bridge&quot;</td>');
+    expect(review).toContain('a long straight run with no stop of another route');
+  });
+
+  it('marks the gap listed for review as an empty stretch in the page data, the other wide gaps not', () => {
+    const g = sample.reviewGaps[0];
+    expect(g).toBeDefined();
+    const data = JSON.parse(html.slice(html.indexOf('>', dataStart) + 1, html.indexOf('</script>', dataStart))) as { patterns: { id: string; gaps: [number, number, number][] }[] };
+    const marks = data.patterns.flatMap((p) => p.gaps.map((x) => [p.id, x[2]] as [string, number]));
+    expect(marks.filter(([, m]) => m === 2)).toEqual([[g.patternIds[0], 2]]);
+    expect(marks.filter(([, m]) => m === 1).length).toBeGreaterThan(0);
+  });
+});

@@ -282,6 +282,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: 14.5,
       vehicleHoursPerDay: (14.5 * s.tripsPerDay) / 3600,
       robust: (s.stopIndex % 3) !== 0,
+      evidence: '',
     }));
   const stopById = new Map(stops.map((s) => [s.stopId, s]));
   const additions: Candidate[] = gaps
@@ -302,6 +303,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: -16,
       vehicleHoursPerDay: -0.4,
       robust: true,
+      evidence: '2 stops of route <b>&amp; within a walk of the site',
     }));
   const candidates = [...removals, ...additions]
     .filter((c) => c.netPaxMinPerDay < 0)
@@ -343,6 +345,13 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
     stops,
     gaps,
     candidates,
+    reviewGaps: [
+      // the last wide gap, as if nobody were near its middle
+      ...gaps
+        .filter((g) => g.wide)
+        .slice(-1)
+        .map((g) => ({ fromStopId: g.fromStopId, toStopId: g.toStopId, name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: g.gapM, routeIds: [stopById.get(g.fromStopId)?.routeId ?? ''], patternIds: [g.patternId], reason: 'long-straight-empty' as const, detail: '1.6 km straight with no stop of another route within a 400 m walk of its middle' })),
+    ],
     sensitivity: [
       { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 },
       { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: 0.05, meanOptimalSpacingM: 439, closeStops: 38, wideGaps: 8, paxMinLostPerDay: 7100, candidatesKept: 10 },

@@ -145,10 +145,11 @@ describe('a feed full of hostile text', () => {
 
   it('CSV: text cells beginning with = + - @ are guarded, numeric cells (negative ones too) stay numbers; csv-parse reads back the exact strings', () => {
     let guarded = 0;
-    let negatives = 0;
     for (const [file, textCols] of Object.entries(TEXT_COLUMNS)) {
       const rows = csvRows(out, file);
-      expect(rows.length, file).toBeGreaterThan(0);
+      // the hostile feed's wide gaps have no other route's stop near their middle: no addition, so no candidate row (they are listed for review in summary.json)
+      if (file === 'candidates.csv') expect(rows).toEqual([]);
+      else expect(rows.length, file).toBeGreaterThan(0);
       for (const row of rows) {
         for (const [col, cell] of Object.entries(row)) {
           if (textCols.includes(col)) {
@@ -156,13 +157,13 @@ describe('a feed full of hostile text', () => {
             if (cell !== unguard(cell)) guarded++;
           } else {
             expect(cell === '' || /^-?\d+(\.\d+)?$/.test(cell), `${file} ${col} ${JSON.stringify(cell)} is a number`).toBe(true);
-            if (cell.startsWith('-') && Number(cell) < 0) negatives++;
           }
         }
       }
     }
     expect(guarded).toBeGreaterThan(5);
-    expect(negatives).toBeGreaterThan(0); // the "add" candidates lose passenger-minutes: net figures below zero
+    // a negative number left unguarded is checked on the sample report in test/report/csv.test.ts: this feed's
+    // negative figures were its additions, which it no longer has (no evidence)
     const stops = csvRows(out, 'stops.csv');
     const byId = new Map(Object.entries(STOP_IDS).map(([k, v]) => [v, STOP_NAMES[k]]));
     expect(new Set(stops.map((s) => unguard(s.stop_id)))).toEqual(new Set(Object.values(STOP_IDS)));
@@ -187,7 +188,18 @@ describe('a feed full of hostile text', () => {
     for (const c of summary.top_candidates) {
       expect(names.some((n) => c.stop_name.includes(n)), c.stop_name).toBe(true); // "between X and Y"
     }
-    expect(strings).not.toContain(AGENCY_URL); // the URL is not echoed anywhere
+    // the URL is not echoed anywhere (the same text is also stop T4's stop_id, which the gaps for review name)
+    const echoed: string[] = [];
+    const walk = (v: unknown, key: string): void => {
+      if (typeof v === 'string') {
+        if (v === AGENCY_URL) echoed.push(key);
+      } else if (Array.isArray(v)) v.forEach((x) => walk(x, key));
+      else if (v && typeof v === 'object') for (const [k, x] of Object.entries(v)) walk(x, k);
+    };
+    walk(summary, '');
+    expect(echoed.filter((k) => !k.endsWith('stop_id'))).toEqual([]);
+    for (const g of summary.review_gaps) expect(names.some((n) => g.name.includes(n)), g.name).toBe(true);
+    expect(summary.review_gaps.length).toBeGreaterThan(0);
   });
 
   it('GeoJSON properties hold the exact strings', () => {

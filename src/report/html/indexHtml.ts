@@ -52,11 +52,13 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) stopsBy.set(s.patternId, (l = []));
     l.push(s);
   }
+  // a wide gap is 1, or 2 where it is listed for review (no evidence anyone is there: an empty stretch)
+  const underReview = new Set(result.reviewGaps.flatMap((g) => g.patternIds.map((id) => `${id}\n${g.fromStopId}\n${g.toStopId}`)));
   const wideBy = new Map<string, [number, number, number][]>();
   for (const g of result.gaps) {
     let l = wideBy.get(g.patternId);
     if (!l) wideBy.set(g.patternId, (l = []));
-    if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, 1]);
+    if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, underReview.has(`${g.patternId}\n${g.fromStopId}\n${g.toStopId}`) ? 2 : 1]);
   }
   const routeName = new Map<string, string>();
   for (const p of result.patterns) if (!routeName.has(p.routeId)) routeName.set(p.routeId, p.routeShortName || p.routeId);
@@ -123,6 +125,13 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
   return { units, assumed: result.demandSource === 'assumed', patterns, candidates };
 }
 
+// why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)
+const REVIEW_REASON: Record<AuditResult['reviewGaps'][number]['reason'], string> = {
+  'fast-stretch': 'the schedule runs it faster than a local bus on streets (a bridge or an expressway)',
+  'long-straight-empty': 'a long straight run with no stop of another route within a short walk of its middle',
+  'no-stop-near': "no stop of another route within a short walk of its middle, away from the gap's ends",
+};
+
 // en-US digits as Intl.NumberFormat prints them, without loading ICU's number formatting (numberText.ts)
 function fmt(v: number, digits = 0): string {
   return Number.isFinite(v) ? groupedFixed(v, digits) : '–';
@@ -153,15 +162,23 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   );
   const belowBand = result.gaps.filter((g) => g.gapM < bandLow).length;
   const aboveBand = result.gaps.filter((g) => g.gapM > bandHigh).length;
-  const top = result.candidates.slice(0, 5);
-  const topList = top.length
-    ? `<ol class="top-cands">${top
-        .map(
-          (c) =>
-            `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}</li>`,
-        )
-        .join('')}</ol>`
-    : '<p class="note">No stop change saves riders time under these parameters.</p>';
+  // removals and additions are different decisions: each has its own ranked list
+  const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
+  const topItem = (c: AuditResult['candidates'][number]): string =>
+    `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}${c.evidence ? ` <span class="note">(evidence: ${h(c.evidence)})</span>` : ''}</li>`;
+  const topRemovals = topOf('remove');
+  const topAdditions = topOf('add');
+  const topList =
+    topRemovals.length || topAdditions.length
+      ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
+        `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
+      : '<p class="note">No stop change saves riders time under these parameters.</p>';
+  const reviewShown = result.reviewGaps.slice(0, 50);
+  const reviewGaps = result.reviewGaps.length
+    ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
+        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
+        .join('')}</tbody></table></div>`
+    : '';
   const params = Object.entries(result.params)
     .map(
       ([name, p]) =>
@@ -249,7 +266,7 @@ ${hist}
 </div>
 <p class="note" id="cand-count" aria-live="polite"></p>
 <div class="table-wrap"><table id="cand-table"><thead><tr>${th('rank', 'rank', true)}${th('action', 'action')}${th('stop', 'stop')}${th('routes', 'routes')}${th('net', `net ${paxHeader}`, true)}${th('riders', 'riders affected/day', true)}${th('rt', 'run time saved/trip (s)', true)}${th('vh', 'vehicle-hours saved/day', true)}${th('robust', 'robust')}</tr></thead><tbody></tbody></table></div>
-</section>
+${reviewGaps ? `<h3>Wide gaps to review</h3>\n${reviewGaps}\n` : ''}</section>
 
 <section id="patterns" aria-labelledby="pat-h">
 <h2 id="pat-h">Patterns</h2>

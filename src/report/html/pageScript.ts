@@ -79,6 +79,12 @@ export const PAGE_SCRIPT = String.raw`
     sp2.appendChild(s2);
     sp2.appendChild(document.createTextNode(' wide gap (above the band), labelled W'));
     box.appendChild(sp2);
+    var s3 = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
+    s3.appendChild(sv('line', { 'class': 'gap-empty', x1: 1, x2: 25, y1: 6, y2: 6 }));
+    var sp3 = el('span');
+    sp3.appendChild(s3);
+    sp3.appendChild(document.createTextNode(' empty stretch: a wide gap with no sign anyone is there, listed for review, labelled E'));
+    box.appendChild(sp3);
     return box;
   }
   function stopTitle(p, s) {
@@ -114,11 +120,13 @@ export const PAGE_SCRIPT = String.raw`
     p.gaps.forEach(function (g) {
       if (!g[2] || !p.stops[g[0]]) return;
       var a = p.stops[g[0]][5], b = a + g[1];
-      s.appendChild(sv('line', { 'class': 'gap-wide', x1: x(a), x2: x(b), y1: y, y2: y }));
-      var mid = (x(a) + x(b)) / 2, full = 'W ' + len(g[1]), fullW = full.length * 6.2;
-      var text = x(b) - x(a) >= fullW && mid - fullW / 2 > labelEnd + 4 ? full : mid - 5 > labelEnd + 2 ? 'W' : '';
+      // an empty stretch (no evidence anyone is there: listed for review, no stop proposed) is drawn apart
+      var empty = g[2] === 2;
+      s.appendChild(sv('line', { 'class': empty ? 'gap-empty' : 'gap-wide', x1: x(a), x2: x(b), y1: y, y2: y }));
+      var mid = (x(a) + x(b)) / 2, full = (empty ? 'E ' : 'W ') + len(g[1]), fullW = full.length * 6.2;
+      var text = x(b) - x(a) >= fullW && mid - fullW / 2 > labelEnd + 4 ? full : mid - 5 > labelEnd + 2 ? (empty ? 'E' : 'W') : '';
       if (!text) return;
-      var w = text === 'W' ? 10 : fullW;
+      var w = text.length === 1 ? 10 : fullW;
       labelEnd = mid + w / 2;
       s.appendChild(sv('text', { x: mid, y: y - 16, 'text-anchor': 'middle', 'class': 'marker-label' }, text));
     });

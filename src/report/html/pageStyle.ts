@@ -43,6 +43,7 @@ svg text { font-family:inherit; fill:var(--ink); }
 .route-line { fill:none; stroke:#8c9aa0; stroke-width:2.5; stroke-linejoin:round; stroke-linecap:round; }
 .strip-line { stroke:#8c9aa0; stroke-width:3; }
 .gap-wide { stroke:var(--wide); stroke-width:7; stroke-opacity:.55; }
+.gap-empty { stroke:var(--wide); stroke-width:7; stroke-opacity:.3; stroke-dasharray:6 4; }
 .mk-close { fill:var(--close); }
 .mk-wide { fill:var(--wide); }
 .mk-ok { fill:#fff; stroke:var(--ok); stroke-width:2; }

@@ -1,0 +1,147 @@
+// The evidence rule for additions. A proposed stop in a wide gap is a claim that people are there and that
+// a bus can stop there. Without a land-use layer the audit's only witnesses are the networks it reads: a
+// stop of any route near the proposed site (other than the gap's own ends) says the street is walked to;
+// a schedule that runs the stretch faster than a local bus on streets, or a long straight run with no stop
+// of any route near its middle, says it is a bridge, an expressway, an airfield or a park. A gap without
+// evidence is not an addition: it is listed as a wide gap to review, with its length and the reason, and
+// no passenger-minute figure. The rule and its thresholds are design choices of this tool [D]:
+//   - walking distance: 400 m walked [M, common practice: a quarter mile / 400 m is the usual bus-stop
+//     catchment] at a detour factor of 1.3 [M, common practice for street grids: network distance is about
+//     1.2-1.4 times the straight line], so a straight line of about 308 m;
+//   - a witness stop must stand in the middle of the gap: at most half as far from the site as from either
+//     end, so the stops clustered at the ends (the gap's own, the other direction's, a crossing route's at
+//     the same corner, a parallel street's along a park's edge) say nothing about the middle; and it must serve a route other than the gap's own, whose stops say where that route
+//     runs (a loop round an island of institutions), not that people are there;
+//   - a stretch scheduled faster than 50 km/h on average is not a street a local bus stops on: a bus that
+//     stops at both ends cannot average an urban 50 km/h limit once braking and accelerating are counted [D];
+//   - a run of at least 1 km whose stops' straight line is within 5 % of the distance along is "long and
+//     straight" (named so in the reason; it fails on the witness rule like any other).
+
+import type { Feed } from '../gtfs/types.js';
+import { haversineM } from '../network/geodesy.js';
+
+/** Walk distance a rider accepts to a stop, metres [M, common practice]. */
+export const WALK_RADIUS_M = 400;
+/** Walked distance over straight-line distance on a street grid [M, common practice]. */
+export const WALK_DETOUR = 1.3;
+/** The straight-line reach of a walk of WALK_RADIUS_M. */
+export const WALK_REACH_M = WALK_RADIUS_M / WALK_DETOUR;
+/** Scheduled speed over a gap above which it is not a street a local bus stops on, m/s (50 km/h) [D]. */
+export const FAST_STRETCH_MPS = 50 / 3.6;
+/** A gap at least this long whose ends' straight line is this close to its length is long and straight. */
+export const STRAIGHT_MIN_M = 1000;
+export const STRAIGHT_RATIO = 0.95;
+/** A witness stands at most this share as far from the site as from either end of the gap. */
+export const WITNESS_END_RATIO = 0.7;
+/** How many witness stops an addition needs. */
+export const MIN_WITNESS_STOPS = 1;
+
+export type ReviewReason = 'fast-stretch' | 'long-straight-empty' | 'no-stop-near';
+
+export interface GapSite {
+  lat: number;
+  lon: number;
+  fromStopIdx: number;
+  toStopIdx: number;
+  gapM: number;
+  /** Scheduled seconds over the gap (median trip), or null when the schedule does not say. */
+  scheduledS: number | null;
+  /** The routes whose gap this is: their own stops witness where they run, not where people are. */
+  ownRoutes: Set<string>;
+}
+
+export type Evidence =
+  { ok: true; witnessStops: number; witnessRoutes: string[]; text: string } | { ok: false; reason: ReviewReason; text: string };
+
+const CELL_DEG = 0.002; // about 220 m north-south
+const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter drops nothing inside the reach
+
+/** A grid of the stops served on the analysis date, with the routes serving each. */
+export interface StopIndex {
+  cells: Map<string, number[]>;
+  routesAt: Map<number, Set<string>>;
+}
+
+export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>): StopIndex {
+  const cells = new Map<string, number[]>();
+  const routesAt = new Map<number, Set<string>>();
+  for (const [s, routeId] of served) {
+    let r = routesAt.get(s);
+    if (!r) {
+      routesAt.set(s, (r = new Set()));
+      const st = feed.stops[s];
+      if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) continue;
+      const key = `${Math.floor(st.lat / CELL_DEG)},${Math.floor(st.lon / CELL_DEG)}`;
+      let c = cells.get(key);
+      if (!c) cells.set(key, (c = []));
+      c.push(s);
+    }
+    r.add(routeId);
+  }
+  return { cells, routesAt };
+}
+
+/** Stops of the index within reachM of a point (straight line), in index order. */
+export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number, reachM: number): number[] {
+  const out: number[] = [];
+  const dLat = reachM / M_PER_DEG_LAT;
+  const dLon = reachM / (M_PER_DEG_LAT * Math.max(0.01, Math.cos((Math.abs(lat) + dLat) * (Math.PI / 180))));
+  const i0 = Math.floor((lat - dLat) / CELL_DEG);
+  const i1 = Math.floor((lat + dLat) / CELL_DEG);
+  const j0 = Math.floor((lon - dLon) / CELL_DEG);
+  const j1 = Math.floor((lon + dLon) / CELL_DEG);
+  for (let i = i0; i <= i1; i++) {
+    for (let j = j0; j <= j1; j++) {
+      for (const s of index.cells.get(`${i},${j}`) ?? []) {
+        const st = feed.stops[s];
+        if (haversineM(lat, lon, st.lat, st.lon) <= reachM) out.push(s);
+      }
+    }
+  }
+  return out.sort((a, b) => a - b);
+}
+
+/** The evidence for a stop at a gap's site, or the reason it is a gap to review. */
+export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): Evidence {
+  const from = feed.stops[site.fromStopIdx];
+  const to = feed.stops[site.toStopIdx];
+  if (site.scheduledS !== null && site.scheduledS > 0) {
+    const mps = site.gapM / site.scheduledS;
+    if (mps > FAST_STRETCH_MPS)
+      return { ok: false, reason: 'fast-stretch', text: `scheduled at ${(mps * 3.6).toFixed(0)} km/h, faster than a local bus on streets` };
+  }
+  const witnesses: number[] = [];
+  const routes = new Set<string>();
+  for (const s of stopsNear(feed, index, site.lat, site.lon, WALK_REACH_M)) {
+    if (s === site.fromStopIdx || s === site.toStopIdx) continue;
+    const st = feed.stops[s];
+    const dSite = haversineM(site.lat, site.lon, st.lat, st.lon);
+    if (from && !(dSite <= WITNESS_END_RATIO * haversineM(from.lat, from.lon, st.lat, st.lon))) continue;
+    if (to && !(dSite <= WITNESS_END_RATIO * haversineM(to.lat, to.lon, st.lat, st.lon))) continue;
+    const others = [...(index.routesAt.get(s) ?? [])].filter((r) => !site.ownRoutes.has(r));
+    if (others.length === 0) continue;
+    witnesses.push(s);
+    for (const r of others) routes.add(r);
+  }
+  if (witnesses.length >= MIN_WITNESS_STOPS) {
+    const rs = [...routes].sort();
+    return {
+      ok: true,
+      witnessStops: witnesses.length,
+      witnessRoutes: rs,
+      text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`,
+    };
+  }
+  const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;
+  if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM)
+    return {
+      ok: false,
+      reason: 'long-straight-empty',
+      text: `${(site.gapM / 1000).toFixed(1)} km straight with no stop of another route within a ${WALK_RADIUS_M} m walk of its middle`,
+    };
+  return {
+    ok: false,
+    reason: 'no-stop-near',
+    text: `no stop of another route within a ${WALK_RADIUS_M} m walk of its middle, away from the gap's ends`,
+  };
+}
