@@ -7,6 +7,8 @@ import { candidatesCsv, patternsCsv, stopsCsv } from './csv.js';
 import { patternsGeoJson, stopsGeoJson } from './geojson.js';
 import { indexHtml } from './html/indexHtml.js';
 import { summaryJson } from './summaryJson.js';
+
+export { summaryJson };
 import { checkUnits, type Units } from './units.js';
 import { writeFolder } from './writeFolder.js';
 
