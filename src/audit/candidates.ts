@@ -75,7 +75,7 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   const out: Candidate[] = [];
   for (const [stopIdx, g] of accepted) {
     const stop = feed.stops[stopIdx];
-    out.push(toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects));
+    out.push(toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, { fromStopId: '', toStopId: '', gapM: null }));
   }
 
   // additions, one decision per pair of stops around a wide gap
@@ -94,7 +94,13 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
     const e0 = g.effects[0];
     const from = feed.stops[e0.fromStopIdx];
     const to = feed.stops[e0.toStopIdx];
-    out.push(toCandidate('add', '', `between ${from?.name ?? '?'} and ${to?.name ?? '?'}`, e0.lat, e0.lon, g.effects));
+    out.push(
+      toCandidate('add', '', `between ${from?.name ?? '?'} and ${to?.name ?? '?'}`, e0.lat, e0.lon, g.effects, {
+        fromStopId: from?.id ?? '',
+        toStopId: to?.id ?? '',
+        gapM: e0.gapM,
+      }),
+    );
   }
 
   out.sort((x, y) => x.netPaxMinPerDay - y.netPaxMinPerDay || (x.stopId + x.stopName).localeCompare(y.stopId + y.stopName));
@@ -102,7 +108,15 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   return out;
 }
 
-function toCandidate(action: 'remove' | 'add', stopId: string, stopName: string, lat: number, lon: number, effects: (RemovalEffect | AdditionEffect)[]): Candidate {
+function toCandidate(
+  action: 'remove' | 'add',
+  stopId: string,
+  stopName: string,
+  lat: number,
+  lon: number,
+  effects: (RemovalEffect | AdditionEffect)[],
+  between: Pick<Candidate, 'fromStopId' | 'toStopId' | 'gapM'>,
+): Candidate {
   const trips = sum(effects, (e) => e.tripsPerDay);
   const busSPerDay = sum(effects, (e) => e.runTimeSavedPerTripS * e.tripsPerDay);
   return {
@@ -121,5 +135,6 @@ function toCandidate(action: 'remove' | 'add', stopId: string, stopName: string,
     runTimeSavedPerTripS: trips > 0 ? busSPerDay / trips : 0,
     vehicleHoursPerDay: busSPerDay / 3600,
     robust: false,
+    ...between,
   };
 }

@@ -282,6 +282,9 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: 14.5,
       vehicleHoursPerDay: (14.5 * s.tripsPerDay) / 3600,
       robust: (s.stopIndex % 3) !== 0,
+      fromStopId: '',
+      toStopId: '',
+      gapM: null,
     }));
   const stopById = new Map(stops.map((s) => [s.stopId, s]));
   const additions: Candidate[] = gaps
@@ -302,6 +305,9 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       runTimeSavedPerTripS: -16,
       vehicleHoursPerDay: -0.4,
       robust: true,
+      fromStopId: g.fromStopId,
+      toStopId: g.toStopId,
+      gapM: g.gapM,
     }));
   const candidates = [...removals, ...additions]
     .filter((c) => c.netPaxMinPerDay < 0)
