@@ -204,6 +204,7 @@ export const PAGE_SCRIPT = String.raw`
     body.appendChild(info);
     body.appendChild(legend());
     body.appendChild(stopTable(p));
+    scrollRegions(body);
   }
 
   // the same stops as a table, for reading without the diagram (and for screen readers)
@@ -426,10 +427,35 @@ export const PAGE_SCRIPT = String.raw`
     });
   }
 
+  // Every box that scrolls on its own (tables, strip diagrams, charts on a phone) is a named region a
+  // keyboard can reach: tabindex 0 lets arrow keys scroll it, the label names it for screen readers.
+  function scrollRegions(root) {
+    Array.prototype.forEach.call(root.querySelectorAll('.table-wrap, .strip-wrap, .chart-scroll'), function (w) {
+      if (w.hasAttribute('tabindex')) return;
+      var sec = w.closest('details.pattern, section');
+      var head = sec ? sec.querySelector('summary, h2') : null;
+      var what = w.classList.contains('table-wrap') ? 'Table' : 'Chart';
+      w.setAttribute('tabindex', '0');
+      w.setAttribute('role', 'region');
+      w.setAttribute('aria-label', what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '') + ' (scrolls)');
+    });
+  }
+  (function chartScroll() {
+    var hist = document.querySelector('#gaps svg.chart');
+    if (hist) {
+      var box = el('div', { 'class': 'chart-scroll' });
+      hist.parentNode.insertBefore(box, hist);
+      box.appendChild(hist);
+    }
+    var curve = document.getElementById('curve-host');
+    if (curve) curve.classList.add('chart-scroll');
+  })();
+
   buildCurveChooser();
   buildCandidates();
   buildPatterns();
   buildPatternSections();
+  scrollRegions(document);
   document.documentElement.setAttribute('data-ready', '1');
 })();
 `;
