@@ -16,6 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import { PAGE_STYLE } from '../../src/report/html/pageStyle.js';
 import { writeReport } from '../../src/report/writeReport.js';
+import { makeSampleResult } from './sampleResult.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 const FEED = new URL('../../fixtures/demo/demo-feed.zip', import.meta.url).pathname;
@@ -172,5 +173,32 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
       expect(found.filter((v) => v.impact === 'serious' || v.impact === 'critical'), `at ${width} px`).toEqual([]);
       await page.close();
     }
+  });
+
+  it('shows a long candidate table 400 rows at a time with "show more", and a row links to its pattern, opened and drawn', async () => {
+    const sample = makeSampleResult();
+    const base = sample.candidates;
+    const many = Array.from({ length: 950 }, (_, i) => ({ ...base[i % base.length], rank: i + 1, stopName: `stop ${i + 1}` }));
+    await writeReport({ ...sample, candidates: many }, join(work, 'many'), { formats: ['html'] });
+    const page = await browser.newPage();
+    await page.goto(pathToFileURL(join(work, 'many', 'index.html')).href);
+    await page.waitForSelector('html[data-ready="1"]');
+    const rows = () => page.$$eval('#cand-table tbody tr', (r) => r.length);
+    expect(await rows()).toBe(400);
+    const more = page.locator('#candidates button.show-more');
+    expect(await more.textContent()).toBe('Show 400 more (550 not shown)');
+    await more.click();
+    expect(await rows()).toBe(800);
+    await more.click();
+    expect(await rows()).toBe(950);
+    expect(await more.isHidden()).toBe(true);
+    const first = many[0].patternIds[0];
+    await page.locator('#cand-table tbody tr').first().locator('a.pat-link').click();
+    const opened = await page.evaluate((id) => {
+      const d = document.getElementById('p-' + id) as HTMLDetailsElement;
+      return { open: d.open, maps: d.querySelectorAll('svg.chart.map').length, focused: document.activeElement === d.querySelector('summary') };
+    }, first);
+    expect(opened).toEqual({ open: true, maps: 1, focused: true });
+    await page.close();
   });
 });

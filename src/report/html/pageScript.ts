@@ -314,6 +314,11 @@ export const PAGE_SCRIPT = String.raw`
     var count = document.getElementById(cfg.countId);
     var state = { key: cfg.defaultKey, dir: cfg.defaultDir };
     var ths = table.querySelectorAll('thead th');
+    // a long table shows cfg.limit rows at a time; "show more" adds as many again (nothing is cut off)
+    var limit = cfg.limit;
+    var more = el('button', { type: 'button', 'class': 'show-more' });
+    table.parentNode.parentNode.insertBefore(more, table.parentNode.nextSibling);
+    more.addEventListener('click', function () { limit += cfg.limit; render(); });
     function render() {
       var rows = cfg.rows.filter(cfg.filter);
       var col = cfg.columns.filter(function (c) { return c.key === state.key; })[0];
@@ -324,7 +329,7 @@ export const PAGE_SCRIPT = String.raw`
         return state.dir === 'asc' ? r : -r;
       });
       tbody.textContent = '';
-      var shown = rows.slice(0, cfg.limit);
+      var shown = rows.slice(0, limit);
       shown.forEach(function (r) {
         var tr = el('tr');
         cfg.columns.forEach(function (c) {
@@ -336,6 +341,9 @@ export const PAGE_SCRIPT = String.raw`
         tbody.appendChild(tr);
       });
       count.textContent = 'Showing ' + shown.length + ' of ' + rows.length + ' matching (' + cfg.rows.length + ' in all).';
+      var rest = rows.length - shown.length;
+      more.hidden = rest <= 0;
+      more.textContent = 'Show ' + Math.min(cfg.limit, rest) + ' more (' + rest + ' not shown)';
       for (var i = 0; i < ths.length; i++) {
         var k = ths[i].getAttribute('data-key');
         if (k === state.key) ths[i].setAttribute('aria-sort', state.dir === 'asc' ? 'ascending' : 'descending');
@@ -356,6 +364,19 @@ export const PAGE_SCRIPT = String.raw`
       inp.addEventListener(inp.tagName === 'INPUT' && inp.type !== 'checkbox' ? 'input' : 'change', render);
     });
     render();
+  }
+  // a link to a pattern's section that opens it (drawing its map) and brings it into view
+  function patternLink(id, text) {
+    var a = el('a', { href: '#p-' + id, 'class': 'pat-link' }, text);
+    a.addEventListener('click', function (ev) {
+      var d = document.getElementById('p-' + id);
+      if (!d) return;
+      ev.preventDefault();
+      d.open = true;
+      d.scrollIntoView();
+      d.querySelector('summary').focus();
+    });
+    return a;
   }
   function fillRouteSelect(id, routes) {
     var sel = document.getElementById(id);
@@ -385,7 +406,10 @@ export const PAGE_SCRIPT = String.raw`
       columns: [
         { key: 'rank', num: true, value: function (c) { return c.rank; } },
         { key: 'action', value: function (c) { return c.action; } },
-        { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); } },
+        { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); }, cell: function (c, td) {
+          td.textContent = c.name + (c.id ? ' (' + c.id + ')' : '') + ' ';
+          if (c.pats && c.pats.length) td.appendChild(patternLink(c.pats[0], c.pats.length > 1 ? 'pattern (1 of ' + c.pats.length + ')' : 'pattern'));
+        } },
         { key: 'routes', value: function (c) { return c.routeNames.join(', '); } },
         { key: 'net', num: true, value: function (c) { return c.net; }, cell: function (c, td) { td.className = 'num ' + (c.net < 0 ? 'neg' : 'pos'); return signed(c.net, 1); } },
         { key: 'riders', num: true, value: function (c) { return c.riders; }, cell: function (c) { return num(c.riders); } },

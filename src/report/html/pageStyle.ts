@@ -89,6 +89,9 @@ footer { color:var(--muted); font-size:12.5px; border-top:1px solid var(--rule);
 select, input[type=search] { max-width:100%; }
 .controls label { max-width:100%; }
 .chart-scroll { overflow-x:auto; }
+button.show-more { font:inherit; font-size:13.5px; margin:6px 0; padding:4px 10px; border:1px solid #b9b5ac; border-radius:4px; background:#fff; color:var(--ink); cursor:pointer; }
+button.show-more:focus-visible { outline:3px solid #f0b400; outline-offset:2px; }
+a.pat-link { font-size:12.5px; white-space:nowrap; }
 .table-wrap:focus-visible, .strip-wrap:focus-visible, .chart-scroll:focus-visible { outline:3px solid #f0b400; outline-offset:2px; }
 @media (max-width:700px) {
   header.top { padding:12px 14px 10px; }
@@ -114,7 +117,7 @@ select, input[type=search] { max-width:100%; }
   section { margin:10pt 0; }
   h2 { font-size:12.5pt; break-after:avoid; }
   h3 { break-after:avoid; }
-  .controls, #cand-count, #pat-count, .legend, details.stop-list, input, select, button::after { display:none !important; }
+  .controls, #cand-count, #pat-count, .legend, details.stop-list, input, select, button.show-more, a.pat-link, button::after { display:none !important; }
   th button { all:unset; font-weight:600; }
   /* the first page: headline cards, top candidates and the cautions; everything else starts on page 2 */
   .cards { grid-template-columns:repeat(4, 1fr); gap:5pt; }
