@@ -78,7 +78,7 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   const out: Candidate[] = [];
   for (const [stopIdx, g] of accepted) {
     const stop = feed.stops[stopIdx];
-    out.push(toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects));
+    out.push(toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, { fromStopId: '', toStopId: '', gapM: null }));
   }
 
   // additions, one decision per pair of stops around a wide gap
@@ -110,7 +110,7 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
       continue;
     }
     if (!(g.net < 0)) continue;
-    const c = toCandidate('add', '', name, e0.lat, e0.lon, g.effects);
+    const c = toCandidate('add', '', name, e0.lat, e0.lon, g.effects, { fromStopId: from?.id ?? '', toStopId: to?.id ?? '', gapM: e0.gapM });
     c.evidence = ev.text;
     out.push(c);
   }
@@ -124,7 +124,15 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   return out;
 }
 
-function toCandidate(action: 'remove' | 'add', stopId: string, stopName: string, lat: number, lon: number, effects: (RemovalEffect | AdditionEffect)[]): Candidate {
+function toCandidate(
+  action: 'remove' | 'add',
+  stopId: string,
+  stopName: string,
+  lat: number,
+  lon: number,
+  effects: (RemovalEffect | AdditionEffect)[],
+  between: Pick<Candidate, 'fromStopId' | 'toStopId' | 'gapM'>,
+): Candidate {
   const trips = sum(effects, (e) => e.tripsPerDay);
   const busSPerDay = sum(effects, (e) => e.runTimeSavedPerTripS * e.tripsPerDay);
   return {
@@ -144,6 +152,7 @@ function toCandidate(action: 'remove' | 'add', stopId: string, stopName: string,
     vehicleHoursPerDay: busSPerDay / 3600,
     robust: false,
     evidence: '',
+    ...between,
   };
 }
 

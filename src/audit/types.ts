@@ -152,6 +152,11 @@ export interface Candidate {
   runTimeSavedPerTripS: number; // weighted over patterns by trips
   vehicleHoursPerDay: number; // saved (positive) or added (negative)
   robust: boolean; // still a saving under every sensitivity case
+  /** For an addition, the stop_ids of the two stops whose gap it fills, in the direction of travel; '' for a removal. */
+  fromStopId: string;
+  toStopId: string;
+  /** For an addition, the gap it fills along the pattern (the first pattern's), metres; null for a removal. */
+  gapM: number | null;
   /** What an addition stands on (witness stops near the site); '' for a removal. */
   evidence: string;
 }

@@ -25,6 +25,7 @@ interface AuditOpts {
   units: string;
   force?: boolean;
   history?: string;
+  json?: boolean;
   quiet?: boolean;
   verbose?: boolean;
   [k: string]: unknown;
@@ -46,6 +47,7 @@ export function registerAudit(program: Command): void {
     .option('--units <system>', 'units people read: metric or imperial', 'metric')
     .option('--force', 'replace the output folder if it exists')
     .option('--history <file.sqlite>', 'append this run to a history database')
+    .option('--json', 'print summary.json (schema/summary.schema.json) on stdout instead of the text summary; the reports are still written')
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors');
   addParamOptions(cmd);
@@ -65,7 +67,7 @@ export function registerAudit(program: Command): void {
       // loaded only when asked for: the SQLite binding costs start-up time on every other run
       const history = opts.history ? await import('../history/index.js') : undefined;
       const db = history && opts.history ? history.openHistory(opts.history) : undefined;
-      const progress = makeProgress(Boolean(opts.quiet));
+      const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
       // the report writers load while the feed is read (see auditFeed)
       const report = import('../report/writeReport.js');
       report.catch(() => undefined); // a failure to load surfaces at the await below
@@ -84,6 +86,10 @@ export function registerAudit(program: Command): void {
         const written = await writeReport(result, outDir, { formats, units: opts.units, force, inputs });
         if (history && db) history.recordRun(db, history.auditRunRow(result));
         progress.done();
+        if (opts.json) {
+          process.stdout.write((await report).summaryJson(result));
+          return EXIT.clean;
+        }
         const h = result.headline;
         process.stdout.write(
           `${terminalText(result.feed.source)} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
@@ -96,7 +102,7 @@ export function registerAudit(program: Command): void {
         db?.close();
       }
       return EXIT.clean;
-    });
+    }, { json: Boolean(opts.json) });
   });
 }
 

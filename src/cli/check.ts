@@ -6,7 +6,7 @@ import type { CheckReport } from '../audit/check.js';
 import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
 import { StopspanError } from '../common/errors.js';
 import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
-import { version } from '../version.js';
+import { checkDocument } from '../report/jsonDocuments.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
 
@@ -101,7 +101,7 @@ export function registerCheck(program: Command): void {
         }
         const code = checkExitCode(report, o.failOn as FailOn);
         if (o.json) {
-          process.stdout.write(JSON.stringify({ tool: { name: 'stopspan', version }, analysisDate: loaded.date, ...report, failOn: o.failOn, exitCode: code }, null, 2) + '\n');
+          process.stdout.write(JSON.stringify(checkDocument(report, loaded.date, o.failOn, code), null, 2) + '\n');
         } else {
           process.stdout.write(checkText(report));
         }

@@ -6,7 +6,7 @@ import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
 import type { Comparison } from '../audit/compare.js';
-import { version } from '../version.js';
+import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
 
@@ -79,7 +79,7 @@ export function registerCompare(program: Command): void {
         }
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const code = compareExitCode(c, tripLossPct);
-        const doc = { tool: { name: 'stopspan', version }, dates: { old: a.date, new: b.date }, analysis: { old: a.analysis, new: b.analysis }, ...c, failOnTripLossPct: tripLossPct ?? null, exitCode: code };
+        const doc = compareDocument(c, { old: a.date, new: b.date }, { old: a.analysis, new: b.analysis }, tripLossPct ?? null, code);
         if (o.out) {
           const written = await writeFolder(
             o.out,

@@ -7,6 +7,7 @@ import type { Command } from 'commander';
 import { StopspanError } from '../common/errors.js';
 import { EXIT, runAction } from './shared.js';
 import { numberOption } from './feedInput.js';
+import { historyDocument } from '../report/jsonDocuments.js';
 
 interface HistoryCliOptions {
   json?: boolean;
@@ -51,7 +52,7 @@ export function registerHistory(program: Command): void {
           const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
           if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
         }
-        process.stdout.write(o.json ? JSON.stringify(rows, null, 2) + '\n' : historyText(rows));
+        process.stdout.write(o.json ? JSON.stringify(historyDocument(rows), null, 2) + '\n' : historyText(rows));
         return EXIT.clean;
       }, { json: o.json === true }),
     );

@@ -2,7 +2,7 @@
 // progress drawer (stderr, only when a person is watching).
 
 import { isStopspanError } from '../common/errors.js';
-import { version } from '../version.js';
+import { errorJsonDocument } from '../report/jsonDocuments.js';
 import { terminalText } from '../common/terminalText.js';
 import { groupedFixed } from '../report/numberText.js';
 import type { OnProgress, ProgressEvent } from '../common/progress.js';
@@ -44,11 +44,11 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
 }
 
 /** The JSON document of a failed run: the error's code, message and where (file, line, column, value), and the exit code. */
-export function errorDocument(e: unknown, exitCode: number): { tool: { name: string; version: string }; error: Record<string, string | number>; exitCode: number } {
+export function errorDocument(e: unknown, exitCode: number): Record<string, unknown> {
   const error: Record<string, string | number> = isStopspanError(e)
     ? { code: e.code, message: e.message, ...Object.fromEntries(Object.entries(e.context).filter(([, v]) => v !== undefined)) }
     : { code: isAllocationFailure(e) ? 'feed-too-large' : 'internal', message: String((e as Error)?.message ?? e) };
-  return { tool: { name: 'stopspan', version }, error, exitCode };
+  return errorJsonDocument(error, exitCode);
 }
 
 /** A progress callback that draws one updating line on a TTY and nothing otherwise (or when quiet). */

@@ -172,6 +172,10 @@ export function candidateColumns(demandSource: string): CsvColumn<Candidate>[] {
     num('vehicle_hours_per_day', (c) => c.vehicleHoursPerDay, 3),
     text('robust', (c) => (c.robust ? 'yes' : 'no')),
     text('demand_source', () => demandSource),
+    // appended after the first layout: for an addition, the two stops whose gap it fills and that gap
+    text('from_stop_id', (c) => c.fromStopId),
+    text('to_stop_id', (c) => c.toStopId),
+    num('gap_m', (c) => c.gapM, 1),
     text('evidence', (c) => c.evidence),
   ];
 }

@@ -1,10 +1,12 @@
 // GeoJSON renderers (RFC 7946) for GIS users: patterns as LineStrings drawn from their path, stops as
-// Points, each carrying the columns of patterns.csv or stops.csv, as the output contract says. Positions
+// Points, each carrying the columns of patterns.csv or stops.csv, as the output contract says; the
+// candidates as Points (a removal at its stop, an addition at its site) with the columns of
+// candidates.csv, and one Point per stop (stop_points.geojson) with the routes and patterns serving it. Positions
 // are [longitude, latitude] (section 3.1.1), rounded to 6 decimals (about 0.1 m), WGS84 implied, so no
 // "crs" member (section 4).
 
 import type { AuditResult, PatternResult, StopResult } from '../audit/types.js';
-import { cellNumber } from './csv.js';
+import { candidateColumns, cellNumber } from './csv.js';
 
 export type Position = [number, number];
 
@@ -155,6 +157,69 @@ export function stopsGeoJson(result: AuditResult): FeatureCollection<Point> {
       type: 'Feature',
       geometry: { type: 'Point', coordinates: [round6(s.stopLon), round6(s.stopLat)] },
       properties: stopProperties(s),
+    });
+  }
+  return { type: 'FeatureCollection', features };
+}
+
+/**
+ * candidates.geojson: one Point per row of candidates.csv, a removal at its stop, an addition at the site
+ * proposed (with from_stop_id, to_stop_id and gap_m naming the gap it fills). The properties are the CSV
+ * columns, same names and rounding, as JSON values (a blank number null); the position is the geometry.
+ */
+export function candidatesGeoJson(result: AuditResult): FeatureCollection<Point> {
+  const columns = candidateColumns(result.demandSource).filter((c) => c.name !== 'stop_lat' && c.name !== 'stop_lon');
+  const features: Feature<Point>[] = [];
+  for (const c of result.candidates) {
+    if (!validPosition(c.lon, c.lat)) continue;
+    const properties: Feature<Point>['properties'] = {};
+    for (const col of columns) {
+      const v = col.get(c);
+      properties[col.name] = col.kind === 'number' ? (typeof v === 'number' ? cellNumber(v, col.digits) : null) : v === null ? '' : String(v);
+    }
+    features.push({ type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties });
+  }
+  return { type: 'FeatureCollection', features };
+}
+
+/**
+ * stop_points.geojson: one Point per stop served (stops.geojson has one per stop of each pattern), with
+ * the routes and patterns that serve it (sorted, joined by ";"), their trips a day summed, on how many of
+ * them its spacing is close, why it is fixed (the first pattern's reason, empty when on none), and the rank
+ * of its removal in candidates.csv (null when it is not proposed).
+ */
+export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point> {
+  interface Acc { first: StopResult; routes: Set<string>; patterns: Set<string>; trips: number; close: number; fixedReason: string }
+  const byStop = new Map<string, Acc>();
+  for (const s of result.stops) {
+    let a = byStop.get(s.stopId);
+    if (!a) byStop.set(s.stopId, (a = { first: s, routes: new Set(), patterns: new Set(), trips: 0, close: 0, fixedReason: '' }));
+    a.routes.add(s.routeId);
+    a.patterns.add(s.patternId);
+    a.trips += s.tripsPerDay;
+    if (s.verdict === 'close') a.close++;
+    if (!a.fixedReason && s.fixedReason) a.fixedReason = String(s.fixedReason);
+  }
+  const removalRank = new Map<string, number>();
+  for (const c of result.candidates) if (c.action === 'remove' && !removalRank.has(c.stopId)) removalRank.set(c.stopId, c.rank);
+  const features: Feature<Point>[] = [];
+  for (const [stopId, a] of byStop) {
+    const s = a.first;
+    if (!validPosition(s.stopLon, s.stopLat)) continue;
+    features.push({
+      type: 'Feature',
+      geometry: { type: 'Point', coordinates: [round6(s.stopLon), round6(s.stopLat)] },
+      properties: {
+        stop_id: stopId,
+        stop_name: s.stopName,
+        route_ids: [...a.routes].sort().join(';'),
+        pattern_ids: [...a.patterns].sort().join(';'),
+        patterns: a.patterns.size,
+        trips_per_day: r1(a.trips),
+        close_on_patterns: a.close,
+        fixed_reason: a.fixedReason,
+        removal_rank: removalRank.get(stopId) ?? null,
+      },
     });
   }
   return { type: 'FeatureCollection', features };

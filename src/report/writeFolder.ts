@@ -145,6 +145,10 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
   if (typeof outDir !== 'string' || outDir.trim() === '') {
     throw new StopspanError('bad-option', 'invalid option out: expected a folder path, got an empty string', { value: String(outDir) });
   }
+  // "-" reads as "standard output" in most tools; a folder of that name would surprise, so it is refused
+  if (outDir === '-') {
+    throw new StopspanError('bad-option', 'invalid option --out: "-" is not a folder; for the summary on standard output use --json', { value: outDir });
+  }
   const target = resolve(outDir);
   if (dirname(target) === target) refuse(outDir, 'it is the root folder');
   let st;

@@ -4,9 +4,11 @@
 import type { AuditResult } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
 import { candidatesCsv, patternsCsv, stopsCsv } from './csv.js';
-import { patternsGeoJson, stopsGeoJson } from './geojson.js';
+import { candidatesGeoJson, patternsGeoJson, stopPointsGeoJson, stopsGeoJson } from './geojson.js';
 import { indexHtml } from './html/indexHtml.js';
 import { summaryJson } from './summaryJson.js';
+
+export { summaryJson };
 import { checkUnits, type Units } from './units.js';
 import { writeFolder } from './writeFolder.js';
 
@@ -32,6 +34,8 @@ const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => str
   geojson: [
     ['patterns.geojson', (r) => JSON.stringify(patternsGeoJson(r)) + '\n'],
     ['stops.geojson', (r) => JSON.stringify(stopsGeoJson(r)) + '\n'],
+    ['stop_points.geojson', (r) => JSON.stringify(stopPointsGeoJson(r)) + '\n'],
+    ['candidates.geojson', (r) => JSON.stringify(candidatesGeoJson(r)) + '\n'],
   ],
   html: [['index.html', (r, units) => indexHtml(r, { units })]],
 };

@@ -31,7 +31,7 @@ describe('stopspan audit', () => {
     const out = join(dir, 'full');
     const r = await runCli(['audit', DEMO, '--ridership', RIDERSHIP, '--out', out, '--quiet']);
     expect(r.code, r.stderr).toBe(0);
-    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'index.html', 'patterns.csv', 'patterns.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
     expect(r.stdout).toMatch(/patterns, \d+ stops, median gap \d+ m/);
     expect(r.stderr).toBe(''); // not a TTY: no progress drawn
     const summary = JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
@@ -127,7 +127,7 @@ describe('stopspan compare with a ridership file', () => {
     expect(counted.code, counted.stderr).toBe(0);
     const a = JSON.parse(assumed.stdout).spacing.before;
     const c = JSON.parse(counted.stdout).spacing.before;
-    expect(c.medianGapM).toBeCloseTo(a.medianGapM, 6); // geometry does not depend on demand
-    expect(c.paxMinLostPerDay).not.toBeCloseTo(a.paxMinLostPerDay, 0);
+    expect(c.median_gap_m).toBeCloseTo(a.median_gap_m, 6); // geometry does not depend on demand
+    expect(c.pax_min_lost_per_day).not.toBeCloseTo(a.pax_min_lost_per_day, 0);
   });
 });

@@ -35,7 +35,7 @@ const BROKEN = join(ROOT, 'fixtures', 'broken');
 const CLI = process.env.STOPSPAN_CLI ?? BUILT_CLI;
 const committedCases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
 // the files every audit writes (the output contract in the design notes, section 5)
-const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'summary.json', 'index.html'];
+const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'stop_points.geojson', 'candidates.geojson', 'summary.json', 'index.html'];
 
 function cliHasAudit(): boolean {
   if (!existsSync(CLI)) return false;

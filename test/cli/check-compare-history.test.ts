@@ -79,8 +79,8 @@ describe('stopspan check', () => {
     expect(doc.tool.name).toBe('stopspan');
     expect(doc.counts['service-ending-soon']).toBe(1);
     expect(doc.findings[0]).toMatchObject({ code: 'service-ending-soon', severity: 'error', count: 1 });
-    expect(doc.serviceEnd).toBe('2026-10-19');
-    expect(doc.exitCode).toBe(1);
+    expect(doc.service_end).toBe('2026-10-19');
+    expect(doc.exit_code).toBe(1);
   });
 
   it('exits 2 with one line on stderr for unreadable input and bad options', async () => {
@@ -130,7 +130,7 @@ describe('stopspan check', () => {
     expect(sat.code).toBe(0);
     expect(sat.stdout).toContain('patterns checked on 2026-09-14 (the first day with service after the run date 2026-09-12, on which nothing runs)');
     const j = JSON.parse((await cli(['check', join(FIX, 'clean'), '--today', '2026-09-12', '--json'])).stdout);
-    expect(j.analysisDate).toBe('2026-09-14');
+    expect(j.analysis_date).toBe('2026-09-14');
     expect(j.analysis).toMatchObject({ date: '2026-09-14', basis: 'next-service-day' });
     expect(j.network.date).toBe('2026-09-14');
     const asked = JSON.parse((await cli(['check', join(FIX, 'clean'), '--today', TODAY, '--date', '2026-10-20', '--json'])).stdout);
@@ -160,7 +160,7 @@ describe('stopspan check', () => {
       expect(r.code).toBe(2);
       expect(r.stderr).toMatch(/^error: .+\n$/);
       const doc = JSON.parse(r.stdout);
-      expect(doc.exitCode).toBe(2);
+      expect(doc.exit_code).toBe(2);
       expect(typeof doc.error.code).toBe('string');
       expect(r.stderr).toContain(doc.error.message);
     }
@@ -194,7 +194,7 @@ describe('stopspan check --history and stopspan history', () => {
     expect(lines[1]).toMatch(/^2026-10-13\s+check\s+clean\s+\w{8}\s+400\.0\s/); // the clean street's 400 m gaps [D]
     expect(lines[2]).toMatch(/^2026-10-14\s+check\s+twin-stops\b.*\s1$/);
     const json = JSON.parse((await cli(['history', db, '--json'])).stdout);
-    expect(json.map((r: { findings: Record<string, number> }) => r.findings['twin-stops'])).toEqual([0, 1]);
+    expect(json.runs.map((r: { findings: Record<string, number> }) => r.findings['twin-stops'])).toEqual([0, 1]);
     const out = join(dir, 'history-page');
     const page = await cli(['history', db, '--out', out]);
     expect(page.code).toBe(0);
@@ -224,10 +224,10 @@ describe('stopspan compare', () => {
     const html = readFileSync(join(out, 'compare.html'), 'utf8');
     expect(html).toContain('Stops added (1)');
     const doc = JSON.parse(readFileSync(join(out, 'compare.json'), 'utf8'));
-    expect(doc.stops.added.map((s: { stopId: string }) => s.stopId)).toEqual(['S2b']);
+    expect(doc.stops.added.map((s: { stop_id: string }) => s.stop_id)).toEqual(['S2b']);
     const j = JSON.parse((await cli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json', '--move-threshold', '50'])).stdout);
-    expect(j.stops.moved.map((s: { stopId: string }) => s.stopId)).toEqual(['S3']);
-    expect(j.stops.moved[0].movedM).toBeCloseTo(300, 0);
+    expect(j.stops.moved.map((s: { stop_id: string }) => s.stop_id)).toEqual(['S3']);
+    expect(j.stops.moved[0].moved_m).toBeCloseTo(300, 0);
   });
 
   it('lists trips a day per route and pattern: an added trip and a cut, and fails on the cut only when asked', async () => {
@@ -252,9 +252,9 @@ describe('stopspan compare', () => {
     const cut = await cli(['compare', base, fewer, '--no-audit', '--json', '--fail-on-trip-loss', '40']);
     expect(cut.code).toBe(1);
     const doc = JSON.parse(cut.stdout);
-    expect(doc.trips.byRoute).toEqual([{ routeId: 'R1', shortName: '1', tripsBefore: 2, tripsAfter: 1, changePct: -50 }]);
-    expect(doc.trips.byPattern[0]).toMatchObject({ oldPatternId: 'R1:0:1', tripsBefore: 2, tripsAfter: 1, tripIdsRemoved: ['T2'], tripIdsRemovedCount: 1, tripIdsAddedCount: 0 });
-    expect(doc.exitCode).toBe(1);
+    expect(doc.trips.by_route).toEqual([{ route_id: 'R1', short_name: '1', trips_before: 2, trips_after: 1, change_pct: -50 }]);
+    expect(doc.trips.by_pattern[0]).toMatchObject({ old_pattern_id: 'R1:0:1', trips_before: 2, trips_after: 1, trip_ids_removed: ['T2'], trip_ids_removed_count: 1, trip_ids_added_count: 0 });
+    expect(doc.exit_code).toBe(1);
     expect((await cli(['compare', base, fewer, '--no-audit', '--fail-on-trip-loss', '60'])).code).toBe(0);
     expect((await cli(['compare', base, fewer, '--no-audit'])).code).toBe(0);
     const text = await cli(['compare', base, fewer, '--no-audit', '--fail-on-trip-loss', '40']);

@@ -185,7 +185,7 @@ describe('history, a reading command, changes nothing in the database', () => {
     const before = snapshot(work);
     const r = await run(['history', 'h.sqlite', '--json']);
     expect(r.code).toBe(0);
-    expect(JSON.parse(r.stdout)).toHaveLength(1);
+    expect(JSON.parse(r.stdout).runs).toHaveLength(1);
     const after = snapshot(work);
     expect(after['/h.sqlite']).toBe(before['/h.sqlite']);
   });

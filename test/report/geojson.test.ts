@@ -6,8 +6,8 @@ import { booleanValid } from '@turf/boolean-valid';
 import { describe, expect, it } from 'vitest';
 import type { AuditResult } from '../../src/audit/types.js';
 import { parse } from 'csv-parse/sync';
-import { patternsCsv, stopsCsv } from '../../src/report/csv.js';
-import { patternsGeoJson, stopsGeoJson } from '../../src/report/geojson.js';
+import { candidatesCsv, patternsCsv, stopsCsv } from '../../src/report/csv.js';
+import { candidatesGeoJson, patternsGeoJson, stopsGeoJson } from '../../src/report/geojson.js';
 import { makeSampleResult } from './sampleResult.js';
 
 const sample = makeSampleResult();
@@ -132,5 +132,10 @@ describe('GeoJSON properties and the CSV files', () => {
 
   it('stops.geojson has every column of stops.csv but the position, which is its geometry', () => {
     same(stopsCsv(sample), stopsGeoJson(sample).features, ['stop_lat', 'stop_lon']);
+  });
+
+  it('candidates.geojson has every column of candidates.csv but the position, which is its geometry', () => {
+    expect(sample.candidates.some((c) => c.action === 'add') && sample.candidates.some((c) => c.action === 'remove')).toBe(true);
+    same(candidatesCsv(sample), candidatesGeoJson(sample).features, ['stop_lat', 'stop_lon']);
   });
 });

@@ -283,6 +283,9 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       vehicleHoursPerDay: (14.5 * s.tripsPerDay) / 3600,
       robust: (s.stopIndex % 3) !== 0,
       evidence: '',
+      fromStopId: '',
+      toStopId: '',
+      gapM: null,
     }));
   const stopById = new Map(stops.map((s) => [s.stopId, s]));
   const additions: Candidate[] = gaps
@@ -304,6 +307,9 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       vehicleHoursPerDay: -0.4,
       robust: true,
       evidence: '2 stops of route <b>&amp; within a walk of the site',
+      fromStopId: g.fromStopId,
+      toStopId: g.toStopId,
+      gapM: g.gapM,
     }));
   const candidates = [...removals, ...additions]
     .filter((c) => c.netPaxMinPerDay < 0)

@@ -121,6 +121,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     rt: r1(c.runTimeSavedPerTripS),
     vh: Math.round(c.vehicleHoursPerDay * 1000) / 1000,
     robust: c.robust,
+    pats: c.patternIds, // the stop list of each, to link a row to its pattern's section
   }));
   return { units, assumed: result.demandSource === 'assumed', patterns, candidates };
 }

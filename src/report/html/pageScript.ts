@@ -212,6 +212,7 @@ export const PAGE_SCRIPT = String.raw`
     body.appendChild(info);
     body.appendChild(legend());
     body.appendChild(stopTable(p));
+    scrollRegions(body);
   }
 
   // the same stops as a table, for reading without the diagram (and for screen readers)
@@ -321,6 +322,11 @@ export const PAGE_SCRIPT = String.raw`
     var count = document.getElementById(cfg.countId);
     var state = { key: cfg.defaultKey, dir: cfg.defaultDir };
     var ths = table.querySelectorAll('thead th');
+    // a long table shows cfg.limit rows at a time; "show more" adds as many again (nothing is cut off)
+    var limit = cfg.limit;
+    var more = el('button', { type: 'button', 'class': 'show-more' });
+    table.parentNode.parentNode.insertBefore(more, table.parentNode.nextSibling);
+    more.addEventListener('click', function () { limit += cfg.limit; render(); });
     function render() {
       var rows = cfg.rows.filter(cfg.filter);
       var col = cfg.columns.filter(function (c) { return c.key === state.key; })[0];
@@ -331,7 +337,7 @@ export const PAGE_SCRIPT = String.raw`
         return state.dir === 'asc' ? r : -r;
       });
       tbody.textContent = '';
-      var shown = rows.slice(0, cfg.limit);
+      var shown = rows.slice(0, limit);
       shown.forEach(function (r) {
         var tr = el('tr');
         cfg.columns.forEach(function (c) {
@@ -343,6 +349,9 @@ export const PAGE_SCRIPT = String.raw`
         tbody.appendChild(tr);
       });
       count.textContent = 'Showing ' + shown.length + ' of ' + rows.length + ' matching (' + cfg.rows.length + ' in all).';
+      var rest = rows.length - shown.length;
+      more.hidden = rest <= 0;
+      more.textContent = 'Show ' + Math.min(cfg.limit, rest) + ' more (' + rest + ' not shown)';
       for (var i = 0; i < ths.length; i++) {
         var k = ths[i].getAttribute('data-key');
         if (k === state.key) ths[i].setAttribute('aria-sort', state.dir === 'asc' ? 'ascending' : 'descending');
@@ -363,6 +372,19 @@ export const PAGE_SCRIPT = String.raw`
       inp.addEventListener(inp.tagName === 'INPUT' && inp.type !== 'checkbox' ? 'input' : 'change', render);
     });
     render();
+  }
+  // a link to a pattern's section that opens it (drawing its map) and brings it into view
+  function patternLink(id, text) {
+    var a = el('a', { href: '#p-' + id, 'class': 'pat-link' }, text);
+    a.addEventListener('click', function (ev) {
+      var d = document.getElementById('p-' + id);
+      if (!d) return;
+      ev.preventDefault();
+      d.open = true;
+      d.scrollIntoView();
+      d.querySelector('summary').focus();
+    });
+    return a;
   }
   function fillRouteSelect(id, routes) {
     var sel = document.getElementById(id);
@@ -392,7 +414,10 @@ export const PAGE_SCRIPT = String.raw`
       columns: [
         { key: 'rank', num: true, value: function (c) { return c.rank; } },
         { key: 'action', value: function (c) { return c.action; } },
-        { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); } },
+        { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); }, cell: function (c, td) {
+          td.textContent = c.name + (c.id ? ' (' + c.id + ')' : '') + ' ';
+          if (c.pats && c.pats.length) td.appendChild(patternLink(c.pats[0], c.pats.length > 1 ? 'pattern (1 of ' + c.pats.length + ')' : 'pattern'));
+        } },
         { key: 'routes', value: function (c) { return c.routeNames.join(', '); } },
         { key: 'net', num: true, value: function (c) { return c.net; }, cell: function (c, td) { td.className = 'num ' + (c.net < 0 ? 'neg' : 'pos'); return signed(c.net, 1); } },
         { key: 'riders', num: true, value: function (c) { return c.riders; }, cell: function (c) { return num(c.riders); } },
@@ -434,10 +459,35 @@ export const PAGE_SCRIPT = String.raw`
     });
   }
 
+  // Every box that scrolls on its own (tables, strip diagrams, charts on a phone) is a named region a
+  // keyboard can reach: tabindex 0 lets arrow keys scroll it, the label names it for screen readers.
+  function scrollRegions(root) {
+    Array.prototype.forEach.call(root.querySelectorAll('.table-wrap, .strip-wrap, .chart-scroll'), function (w) {
+      if (w.hasAttribute('tabindex')) return;
+      var sec = w.closest('details.pattern, section');
+      var head = sec ? sec.querySelector('summary, h2') : null;
+      var what = w.classList.contains('table-wrap') ? 'Table' : 'Chart';
+      w.setAttribute('tabindex', '0');
+      w.setAttribute('role', 'region');
+      w.setAttribute('aria-label', what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '') + ' (scrolls)');
+    });
+  }
+  (function chartScroll() {
+    var hist = document.querySelector('#gaps svg.chart');
+    if (hist) {
+      var box = el('div', { 'class': 'chart-scroll' });
+      hist.parentNode.insertBefore(box, hist);
+      box.appendChild(hist);
+    }
+    var curve = document.getElementById('curve-host');
+    if (curve) curve.classList.add('chart-scroll');
+  })();
+
   buildCurveChooser();
   buildCandidates();
   buildPatterns();
   buildPatternSections();
+  scrollRegions(document);
   document.documentElement.setAttribute('data-ready', '1');
 })();
 `;

@@ -1,4 +1,8 @@
-// The page's inline stylesheet: calm, legible, printable; system fonts only (no network).
+// The page's inline stylesheet: calm, legible, printable; system fonts only (no network). On a phone
+// (down to 375 px) the page never scrolls sideways: tables, strips and charts scroll inside their own
+// box, and chart labels keep at least 10 px. Printed, it opens with one page for a meeting (headline,
+// top candidates, cautions), then the charts and tables wrapped to the page, controls left out, and
+// the pattern maps that were open.
 
 export const PAGE_STYLE = `
 :root { --ink:#1e2a31; --muted:#5b6870; --paper:#fbfaf7; --card:#ffffff; --rule:#d9d6cf;
@@ -83,5 +87,64 @@ details.stop-list .table-wrap { max-height:420px; }
 .kv dd { margin:0; }
 code { font-size:12.5px; background:#f1efe9; padding:0 3px; border-radius:3px; }
 footer { color:var(--muted); font-size:12.5px; border-top:1px solid var(--rule); padding-top:10px; margin-top:30px; }
-@media print { .controls, .table-wrap { max-height:none; } details.pattern { break-inside:avoid; } }
+select, input[type=search] { max-width:100%; }
+.controls label { max-width:100%; }
+.chart-scroll { overflow-x:auto; }
+button.show-more { font:inherit; font-size:13.5px; margin:6px 0; padding:4px 10px; border:1px solid #b9b5ac; border-radius:4px; background:#fff; color:var(--ink); cursor:pointer; }
+button.show-more:focus-visible { outline:3px solid #f0b400; outline-offset:2px; }
+a.pat-link { font-size:12.5px; white-space:nowrap; }
+.table-wrap:focus-visible, .strip-wrap:focus-visible, .chart-scroll:focus-visible { outline:3px solid #f0b400; outline-offset:2px; }
+@media (max-width:700px) {
+  header.top { padding:12px 14px 10px; }
+  header.top p { overflow-wrap:anywhere; }
+  main { padding:12px 12px 40px; }
+  .cards { grid-template-columns:1fr 1fr; }
+  .card .v { font-size:18px; }
+  .pat-grid > * { min-width:0; }
+  .kv { grid-template-columns:1fr; }
+  code { overflow-wrap:anywhere; }
+  /* charts keep a readable width and scroll in their box; labels 14 units x (640 / 760) = 11.8 px */
+  .chart-scroll > svg.chart { min-width:640px; }
+  .strip-wrap > svg.chart.strip { width:auto; height:auto; } /* its own size (width and height attributes), scrolled in its box */
+  svg.chart:not(.strip) .tick, svg.chart:not(.strip) .axis-label, svg.chart:not(.strip) .marker-label, svg.chart:not(.strip) .band-label { font-size:14px; }
+}
+@media print {
+  @page { size:A4; margin:12mm 11mm; }
+  body { background:#fff; font-size:10pt; line-height:1.35; }
+  header.top { background:none; color:var(--ink); padding:0 0 4pt; border-bottom:1.5pt solid var(--ink); }
+  header.top h1 { font-size:15pt; }
+  header.top p, header.top code { color:var(--muted); background:none; font-size:8.5pt; }
+  main { max-width:none; padding:0; }
+  section { margin:10pt 0; }
+  h2 { font-size:12.5pt; break-after:avoid; }
+  h3 { break-after:avoid; }
+  .controls, #cand-count, #pat-count, .legend, details.stop-list, input, select, button.show-more, a.pat-link, button::after { display:none !important; }
+  th button { all:unset; font-weight:600; }
+  /* the first page: headline cards, top candidates and the cautions; everything else starts on page 2 */
+  .cards { grid-template-columns:repeat(4, 1fr); gap:5pt; }
+  .card { padding:4pt 6pt; break-inside:avoid; }
+  .card .v { font-size:12.5pt; }
+  .card .s, .card .k { font-size:7.5pt; }
+  .card .s { overflow-wrap:anywhere; }
+  ol.top-cands { font-size:9.5pt; }
+  .cautions { break-inside:avoid; font-size:9pt; padding:5pt 10pt; }
+  #gaps { break-before:page; }
+  svg.chart { max-width:100%; break-inside:avoid; }
+  .chart-scroll, .strip-wrap, .table-wrap { overflow:visible !important; max-height:none !important; border:none; }
+  .strip-wrap svg.chart.strip { width:100% !important; height:auto !important; }
+  /* tables wrap to the page width instead of running off its right edge */
+  table { table-layout:auto; width:100%; font-size:8pt; }
+  th, td { padding:2pt 4pt; overflow-wrap:anywhere; word-break:break-word; }
+  thead { display:table-header-group; }
+  thead th { position:static; }
+  tr { break-inside:avoid; }
+  /* long tables print their first rows, as sorted on screen; the CSV files hold every row */
+  #cand-table tbody tr:nth-child(n+41), #pat-table tbody tr:nth-child(n+41) { display:none; }
+  #candidates .table-wrap::after, #patterns .table-wrap::after { content:"Printed: at most the first 40 rows, in the order shown on screen; candidates.csv and patterns.csv hold every row."; display:block; font-size:8pt; color:var(--muted); margin-top:3pt; }
+  /* pattern sections: only those opened (their map and strip diagram drawn) are printed */
+  details.pattern:not([open]) { display:none; }
+  details.pattern { break-inside:avoid; border:none; }
+  .pat-grid { grid-template-columns:55% 1fr; }
+  a { color:inherit; text-decoration:none; }
+}
 `;
