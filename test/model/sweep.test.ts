@@ -26,7 +26,13 @@ function positions(rand: () => number, n: number): number[] {
 function corridorOf(rand: () => number, n: number): Corridor {
   const posM = positions(rand, n);
   const demand = assumedDemand('P', posM, 60, { boardingsPerTripKm: 2 + rand() * 4, catchmentHalfMaxM: 400 });
-  return new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: 60, catchmentHalfMaxM: 400 });
+  return new Corridor({
+    posM,
+    boardPerDay: demand.boardPerDay,
+    alightPerDay: demand.alightPerDay,
+    tripsPerDay: 60,
+    catchmentHalfMaxM: 400,
+  });
 }
 
 /** The backward form of the optimiser's recurrence, G(i,k) = W(i,k) + min_h [G(h,i) + S(h,i,k)], each catchment afresh. */
@@ -54,16 +60,16 @@ function backwardOptimum(c: Corridor, s: CostSettings, maxGapM: number, forced: 
       preds[i].forEach((h, f) => {
         if (!(G[i][f] < Infinity)) return;
         const v = G[i][f] + servedStopCostS(c, pos[h], pos[i], pos[k], i, s);
-        if (v < best) (best = v), (arg = f);
+        if (v < best) ((best = v), (arg = f));
       });
-      if (arg >= 0) (G[k][e] = best + w), (back[k][e] = arg);
+      if (arg >= 0) ((G[k][e] = best + w), (back[k][e] = arg));
     });
   }
   const last = n - 1;
   let t = G[last].reduce((b, g, e) => (g < G[last][b] ? e : b), 0);
   const costS = G[last][t];
   const kept = [last];
-  for (let k = last; k > 0; ) {
+  for (let k = last; k > 0;) {
     const i = preds[k][t];
     kept.push(i);
     t = back[k][t];
@@ -102,7 +108,12 @@ describe('forward optimiser', () => {
     const models = ['always', 'poisson'] as const;
     for (let run = 0; run < 40; run++) {
       const c = corridorOf(rand, 2 + Math.floor(rand() * 120));
-      const s: CostSettings = { walkSpeedMps: 1.3, walkWeight: 1 + rand() * 2, lostTimePerStopS: 10 + rand() * 30, stoppingModel: models[run % 2] };
+      const s: CostSettings = {
+        walkSpeedMps: 1.3,
+        walkWeight: 1 + rand() * 2,
+        lostTimePerStopS: 10 + rand() * 30,
+        stoppingModel: models[run % 2],
+      };
       const forced = Array.from({ length: c.n }, () => rand() < 0.05);
       const maxGapM = rand() < 0.3 ? Infinity : 400 + rand() * 800;
       const got = optimiseStops(c, s, { forced, maxGapM });
