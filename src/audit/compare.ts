@@ -3,7 +3,7 @@
 // (a service cut is the change a nightly job exists to catch); and the spacing picture before and after,
 // with the audit's figures and candidates when both audits are given.
 
-import type { Feed, Stop } from '../gtfs/types.js';
+import type { Feed, Stop, TripStopTimes } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate } from './types.js';
 import { StopspanError } from '../common/errors.js';
@@ -329,6 +329,32 @@ function comparePatterns(
   const byRoute = <T extends { routeId: string; directionId: number }>(a: T, b: T) =>
     a.routeId < b.routeId ? -1 : a.routeId > b.routeId ? 1 : a.directionId - b.directionId;
   return { patterns: { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged }, pairs: matched };
+}
+
+/**
+ * What compareFeeds reads of a feed, and no more: the feed with its stop_times cut to each pattern trip's
+ * first departure, its trips and shapes dropped (the patterns name their trips). The trips leaving at one time share one row, which holds that
+ * time alone (its other fields are those of the first such trip; the comparison reads only the time). The
+ * compare command holds the older feed so while it reads the newer one, instead of two whole feeds at once.
+ */
+export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
+  const firstRow = new Map<number, TripStopTimes>();
+  const stopTimes = new Map<string, TripStopTimes>();
+  for (const p of patterns.patterns) {
+    for (const id of p.tripIds) {
+      const st = feed.stopTimes.get(id);
+      if (!st || st.depS.length === 0) continue;
+      const t = st.depS[0] >= 0 ? st.depS[0] : st.arrS[0];
+      let row = firstRow.get(t);
+      if (!row) {
+        const one = Int32Array.of(t);
+        row = { stopIdx: Int32Array.of(st.stopIdx[0]), seq: Int32Array.of(0), arrS: one, depS: one, shapeDist: Float64Array.of(NaN), timepoint: Uint8Array.of(1), noService: Uint8Array.of(0) };
+        firstRow.set(t, row);
+      }
+      stopTimes.set(id, row);
+    }
+  }
+  return { ...feed, stopTimes, shapes: new Map(), trips: new Map() };
 }
 
 /** Departures from the first stop of each trip of a pattern, seconds, sorted; a trip with frequencies.txt rows departs at each run's start. */

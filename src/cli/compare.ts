@@ -55,7 +55,7 @@ export function registerCompare(program: Command): void {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ compareFeeds }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+        const [{ compareFeeds, comparedPart }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
           import('../audit/compare.js'),
           import('../audit/runAudit.js'),
           import('../audit/compareRender.js'),
@@ -64,19 +64,21 @@ export function registerCompare(program: Command): void {
         const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params] };
         if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
         const progress = makeProgress(o.quiet === true || o.json === true);
+        // the same parameters and ridership file on both sides, so the figures differ only by the feeds
+        const params = o.audit ? mergeParams(o.params, {}) : undefined;
         let a, b;
+        let oldAudit: AuditResult | undefined;
         try {
           a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
+          // the older feed is audited, then cut to what the comparison reads, before the newer one is read
+          if (params && a.patterns.patterns.length > 0) oldAudit = runAudit(a.feed, a.patterns, { params, ridership: o.ridership });
+          a = { ...a, feed: comparedPart(a.feed, a.patterns) };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
         } finally {
           progress.done();
         }
         let audits: { old: AuditResult; new: AuditResult } | undefined;
-        if (o.audit && a.patterns.patterns.length > 0 && b.patterns.patterns.length > 0) {
-          // the same parameters and ridership file on both sides, so the figures differ only by the feeds
-          const params = mergeParams(o.params, {});
-          audits = { old: runAudit(a.feed, a.patterns, { params, ridership: o.ridership }), new: runAudit(b.feed, b.patterns, { params, ridership: o.ridership }) };
-        }
+        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: runAudit(b.feed, b.patterns, { params, ridership: o.ridership }) };
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const code = compareExitCode(c, tripLossPct);
         const doc = compareDocument(c, { old: a.date, new: b.date }, { old: a.analysis, new: b.analysis }, tripLossPct ?? null, code);

@@ -57,6 +57,7 @@ export class Corridor {
   private readonly cumA: Float64Array;
   private readonly cumM: Float64Array; // prefix of trip ends times their mean position
   private readonly acc = new Float64Array(3); // what cumulative() found: boardings, alightings, moment
+  private accTile = -1; // and the tile it was in (tileAt)
   /** What catchmentInto() found last. */
   catchEndsPerDay = 0;
   catchThroughPerDay = 0;
@@ -112,14 +113,20 @@ export class Corridor {
    * times, and an object a call was a good share of the audit's garbage collection.
    */
   private cumulative(y: number): void {
-    const acc = this.acc;
     if (y < this.lo[0]) {
-      acc[0] = 0;
-      acc[1] = 0;
-      acc[2] = 0;
+      this.accTile = -1;
+      this.acc[0] = 0;
+      this.acc[1] = 0;
+      this.acc[2] = 0;
       return;
     }
-    const t = this.tileAt(y);
+    this.cumulativeIn(y, this.tileAt(y));
+  }
+
+  /** cumulative(y) where t = tileAt(y) is known. */
+  private cumulativeIn(y: number, t: number): void {
+    const acc = this.acc;
+    this.accTile = t;
     const width = this.hi[t] - this.lo[t];
     const frac = width > 1e-9 ? Math.min(1, Math.max(0, (y - this.lo[t]) / width)) : 1;
     const bt = this.boardPerDay[t] * frac;
@@ -128,6 +135,25 @@ export class Corridor {
     acc[0] = this.cumB[t] + bt;
     acc[1] = this.cumA[t] + at;
     acc[2] = this.cumM[t] + ((bt + at) * (this.lo[t] + upto)) / 2;
+  }
+
+  /** tileAt(y) for a y at or past tile `from`'s lower edge: a galloping search forward from it, a step or two for the sweep's next neighbour. */
+  private tileFrom(y: number, from: number): number {
+    const lo = this.lo;
+    const last = this.n - 1;
+    let l = from;
+    let step = 1;
+    while (l + step <= last && lo[l + step] <= y) {
+      l += step;
+      step *= 2;
+    }
+    let h = Math.min(last, l + step - 1);
+    while (l < h) {
+      const mid = (l + h + 1) >> 1;
+      if (lo[mid] <= y) l = mid;
+      else h = mid - 1;
+    }
+    return l;
   }
 
   /** Trip ends per day between u and v (u <= v). */
@@ -215,6 +241,77 @@ export class Corridor {
     this.catchThroughPerDay = this.onBoardPassing(l, r, Math.max(0, lb - la));
   }
 
+  // The state of a sweep (sweepFrom, sweepTo): the left edge of the catchment, what cumulative() found
+  // there, and the riders carried through the whole tiles from the first one in it up to sweepTile.
+  private sweepL = 0;
+  private sweepLb = 0;
+  private sweepLa = 0;
+  private sweepTile = 0; // the first tile not yet carried through
+  private sweepRTile = 0; // the tile of the right edge last asked
+  private sweepCohort = 0;
+  private sweepCarried = 0;
+
+  /**
+   * Starts a sweep of catchments with one left neighbour and one stop, for sweepTo() to end at right
+   * neighbours further and further along. The optimiser asks the riders of a stop for every right
+   * neighbour in its window; a catchment spans up to a window of tiles, so answering each afresh made the
+   * audit's time grow with the cube of the window (stops a few metres apart: minutes a pattern). A sweep
+   * carries the riders through each tile once, doing the same arithmetic in the same order, so its answers
+   * are those of catchmentInto exactly.
+   */
+  sweepFrom(prevM: number, pos: number): void {
+    const acc = this.acc;
+    const l = (prevM + pos) / 2;
+    this.cumulative(l);
+    this.sweepL = l;
+    this.sweepLb = acc[0];
+    this.sweepLa = acc[1];
+    this.sweepTile = Math.max(0, this.accTile);
+    this.sweepRTile = this.sweepTile;
+    this.sweepCohort = Math.max(0, acc[0] - acc[1]);
+    this.sweepCarried = this.sweepCohort;
+  }
+
+  /**
+   * catchmentInto(prevM, pos, nextM) for the prevM and pos of the last sweepFrom(), into the same fields;
+   * nextM must not be less than in the call before it since that sweepFrom().
+   */
+  sweepTo(pos: number, nextM: number): void {
+    const acc = this.acc;
+    const l = this.sweepL;
+    const r = (pos + nextM) / 2;
+    // r's tile: at or past the last one's (r never falls), found from it
+    if (r < this.lo[0]) this.cumulative(r);
+    else this.cumulativeIn(r, this.tileFrom(r, Math.max(0, this.sweepRTile)));
+    const t1 = this.accTile; // tileAt(r)
+    this.sweepRTile = t1;
+    this.catchEndsPerDay = acc[0] + acc[1] - this.sweepLb - this.sweepLa;
+    // the tiles before r's own lie whole inside [l, r] for this r and every later one: carry through them once
+    let cohort = this.sweepCohort;
+    let carried = this.sweepCarried;
+    let t = this.sweepTile;
+    for (; t < t1 && cohort > 0; t++) {
+      const part = 1 - this.fracAt(t, l);
+      if (!(part > 0)) continue;
+      const alight = this.alightPerDay[t] * part;
+      if (carried > 0) cohort -= Math.min(cohort, (alight * cohort) / carried);
+      carried = Math.max(0, carried - alight) + this.boardPerDay[t] * part;
+    }
+    if (t < t1) t = t1; // the cohort ran out: no later tile changes the answer
+    this.sweepTile = t;
+    this.sweepCohort = cohort;
+    this.sweepCarried = carried;
+    // r's own tile, in part
+    if (t1 === t && cohort > 0) {
+      const part = this.fracAt(t1, r) - this.fracAt(t1, l);
+      if (part > 0) {
+        const alight = this.alightPerDay[t1] * part;
+        if (carried > 0) cohort -= Math.min(cohort, (alight * cohort) / carried);
+      }
+    }
+    this.catchThroughPerDay = Math.max(0, cohort);
+  }
+
   /**
    * Of the riders on board at l, those still on board at r. Tile by tile (the part of each
    * inside [l, r]), those alighting come from everyone on board then, the riders on board at l in
@@ -264,9 +361,14 @@ export function servedStopCost(corridor: Corridor, prevM: number, pos: number, n
   return { endsPerDay, throughPerDay, lambdaPerTrip: endsPerDay / trips, probability, costS, busTimePerTripS };
 }
 
-/** servedStopCost(...).costS alone, building no object: the optimiser's inner loop asks only this. */
+/** servedStopCost(...).costS alone, building no object. */
 export function servedStopCostS(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): number {
   corridor.catchmentInto(prevM, pos, nextM);
+  return caughtStopCostS(corridor, existingIndex, settings);
+}
+
+/** servedStopCostS for the catchment the corridor found last (catchmentInto or sweepTo): the optimiser's inner loop. */
+export function caughtStopCostS(corridor: Corridor, existingIndex: number, settings: CostSettings): number {
   const busTimePerTripS = settings.lostTimePerStopS * servedProbability(corridor, corridor.catchEndsPerDay, existingIndex, settings);
   return servingCostS(corridor, busTimePerTripS, corridor.catchThroughPerDay, settings);
 }

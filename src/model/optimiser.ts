@@ -9,7 +9,7 @@
 // most that count whatever the spacing. Without the count bound, stops at one point or a metre apart made
 // the window the whole trip and the audit cubic in a trip's stops (2 000 such stops: minutes).
 
-import { type Corridor, type CostSettings, servedStopCostS, walkCostS } from './corridor.js';
+import { type Corridor, type CostSettings, caughtStopCostS, walkCostS } from './corridor.js';
 
 /**
  * The most stops a kept gap may skip over, less one: a kept stop's predecessor is at most this many stops
@@ -62,30 +62,36 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
   predAt[n] = used;
 
   // G[predAt[k] + t] is the best cost with the last two kept stops preds[predAt[k] + t] and k; back holds
-  // the t of the best choice among the predecessors of that predecessor
+  // the t of the best choice among the predecessors of that predecessor. Worked forwards: once the edges
+  // into stop i are final, each of them (h, i) offers itself to every edge (i, k) out of i, k rising, so
+  // the riders of stop i between h and k are one sweep over k (Corridor.sweepTo) rather than a catchment
+  // afresh for each k. Every edge (i, k) hears its offers in the order of i's predecessors, nearest
+  // first, and takes only a strictly better one: the choice of the backward form min_h, tie for tie.
   const G = new Float64Array(used).fill(Infinity);
   const back = new Int32Array(used).fill(-1);
-  for (let k = 1; k < n; k++) {
-    for (let e = predAt[k]; e < predAt[k + 1]; e++) {
-      const i = preds[e];
-      const w = walkCostS(corridor, pos[i], pos[k], settings);
-      if (i === 0) {
-        G[e] = w;
-        continue;
-      }
-      let best = Infinity;
-      let arg = -1;
-      for (let f = predAt[i]; f < predAt[i + 1]; f++) {
-        if (!(G[f] < Infinity)) continue;
-        const c = G[f] + servedStopCostS(corridor, pos[preds[f]], pos[i], pos[k], i, settings);
-        if (c < best) {
-          best = c;
-          arg = f - predAt[i];
+  const best = new Float64Array(used).fill(Infinity);
+  for (let i = 1; i < n; i++) {
+    // the edges into i are final: their cost is the best offer plus the walk between the two stops
+    for (let e = predAt[i]; e < predAt[i + 1]; e++) {
+      const h = preds[e];
+      const w = walkCostS(corridor, pos[h], pos[i], settings);
+      if (h === 0) G[e] = w;
+      else if (back[e] >= 0) G[e] = best[e] + w;
+    }
+    if (i === n - 1) break;
+    for (let f = predAt[i]; f < predAt[i + 1]; f++) {
+      if (!(G[f] < Infinity)) continue;
+      corridor.sweepFrom(pos[preds[f]], pos[i]);
+      // the edges (i, k) out of i: i is the predecessor k - 1 - i places back, while k's window reaches it
+      for (let k = i + 1; k < n; k++) {
+        const e = predAt[k] + (k - 1 - i);
+        if (e >= predAt[k + 1]) break;
+        corridor.sweepTo(pos[i], pos[k]);
+        const c = G[f] + caughtStopCostS(corridor, i, settings);
+        if (c < best[e]) {
+          best[e] = c;
+          back[e] = f - predAt[i];
         }
-      }
-      if (arg >= 0) {
-        G[e] = best + w;
-        back[e] = arg;
       }
     }
   }

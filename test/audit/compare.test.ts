@@ -1,6 +1,6 @@
 // compareFeeds on hand-built Vellmoor feeds: stop and pattern changes, spacing before and after.
 import { describe, expect, it } from 'vitest';
-import { compareFeeds, lcsMatch, medianGapM } from '../../src/audit/compare.js';
+import { comparedPart, compareFeeds, lcsMatch, medianGapM } from '../../src/audit/compare.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from '../helpers/buildFeed.js';
 import type { AuditResult, Candidate } from '../../src/audit/types.js';
 
@@ -138,5 +138,24 @@ describe('compareFeeds', () => {
   it('rejects a negative move threshold', () => {
     const a = buildFeed(cleanSpec());
     expect(() => compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { moveThresholdM: -5 })).toThrow(/moveThresholdM/);
+  });
+});
+
+describe('comparedPart', () => {
+  it('compares as the whole older feed does, holding one first row per departure time and no trips or shapes', () => {
+    const a = buildFeed(twoRoutes());
+    const spec = twoRoutes();
+    // R1 gains a trip later in the day, R2's trip leaves a minute later, with its stops the same
+    spec.trips.push({ ...spec.trips[0], id: 'T1b', times: spec.trips[0].times.map(([s, arr, dep]) => [s, arr + 3600, dep + 3600] as [string, number, number]) });
+    spec.trips[1].times = spec.trips[1].times.map(([s, arr, dep]) => [s, arr + 60, dep + 60] as [string, number, number]);
+    const b = buildFeed(spec);
+    const whole = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);
+    const part = comparedPart(a.feed, a.patterns);
+    expect(compareFeeds(part, b.feed, a.patterns, b.patterns)).toEqual(whole);
+    expect(whole.trips.byPattern.length).toBeGreaterThan(0); // the check above compares trip changes
+    expect(part.trips.size).toBe(0);
+    expect(part.shapes.size).toBe(0);
+    expect([...part.stopTimes.values()].every((st) => st.depS.length === 1)).toBe(true);
+    expect(part.stopTimes.size).toBe(a.patterns.patterns.reduce((n, p) => n + p.tripIds.length, 0));
   });
 });
