@@ -29,6 +29,8 @@ export interface RunAuditOptions {
   onProgress?: OnProgress;
   /** Treat stops served by other routes as fixed (default true). */
   forceTransfers?: boolean;
+  /** Route ids to report (null or absent: all). Every figure is still computed on the whole network. */
+  reportRoutes?: ReadonlySet<string> | null;
   /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
   generatedAt?: string;
 }
@@ -50,7 +52,7 @@ function stoppingAssumption(param: string, used: string[]): string {
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString() } = options;
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null } = options;
   const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers });
 
   onProgress?.({ stage: 'verdicts' });
@@ -60,7 +62,10 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
-  for (const a of analyses) {
+  // what is reported: the routes asked for; everything above was computed on the whole network
+  const shownRoute = (routeId: string) => reportRoutes === null || reportRoutes.has(routeId);
+  const shown = analyses.filter((a) => shownRoute(a.result.routeId));
+  for (const a of shown) {
     const family = speedFamily(a.result.routeType);
     if (family !== 'bus' && family !== 'tram') {
       warnings.add(
@@ -81,23 +86,26 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   onProgress?.({ stage: 'sensitivity' });
   const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+  // a candidate is reported when it touches a route asked for, with its figures over every route it touches
+  const shownCandidates = reportRoutes === null ? candidates : candidates.filter((c) => c.routeIds.some(shownRoute));
+  shownCandidates.forEach((c, i) => (c.rank = i + 1));
 
   // headline
   const allGaps: number[] = [];
   const served = new Set<number>();
-  for (const a of analyses) {
+  for (const a of shown) {
     for (let m = 0; m + 1 < a.modelPosM.length; m++) allGaps.push(a.modelPosM[m + 1] - a.modelPosM[m]);
     for (const s of a.result.patternId ? a.feedStopsByModelPos : []) served.add(s);
   }
   const headline: Headline = {
-    patterns: analyses.length,
+    patterns: shown.length,
     stops: served.size,
-    trips: analyses.reduce((n, a) => n + a.result.tripsPerDay, 0),
+    trips: shown.reduce((n, a) => n + a.result.tripsPerDay, 0),
     medianGapM: median(allGaps, 0),
-    meanOptimalSpacingM: meanOptimalSpacingM(analyses),
-    closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
-    wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
-    paxMinLostPerDay: analyses.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+    meanOptimalSpacingM: meanOptimalSpacingM(shown),
+    closeStops: shown.reduce((n, a) => n + a.result.closeStops, 0),
+    wideGaps: shown.reduce((n, a) => n + a.result.wideGaps, 0),
+    paxMinLostPerDay: shown.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
   };
 
   // parameters with what was actually used where a value is per pattern
@@ -144,6 +152,9 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
+    ...(reportRoutes === null
+      ? []
+      : [`Reported: ${shown.length} of ${analyses.length} patterns (the routes asked for); every figure, transfer, trunk and local is computed on the whole network, so a route's verdicts are the same whichever routes are reported, and a candidate touching a reported route is shown with its effect on every route it touches.`]),
     ...CAUTIONS,
   ];
 
@@ -156,10 +167,10 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     lostTimeSource: anyObservedLost ? 'observed' : 'default',
     params: paramsReport(np, overrides),
     headline,
-    patterns: analyses.map((a) => a.result),
-    stops: analyses.flatMap((a) => a.stops),
-    gaps: analyses.flatMap((a) => a.gaps),
-    candidates,
+    patterns: shown.map((a) => a.result),
+    stops: shown.flatMap((a) => a.stops),
+    gaps: shown.flatMap((a) => a.gaps),
+    candidates: shownCandidates,
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,

@@ -17,6 +17,8 @@ interface AuditOpts {
   date?: string;
   out?: string;
   routes?: string[];
+  excludeRoutes?: string[];
+  routeTypes?: string[];
   params?: string;
   ridership?: string;
   observed?: string;
@@ -37,7 +39,9 @@ export function registerAudit(program: Command): void {
     .argument('<feed>', 'GTFS feed: a .zip file, a folder of .txt files, or an http(s) URL')
     .option('--date <YYYY-MM-DD>', 'analysis date (default: the weekday in the feed with the most trips)')
     .option('--out <dir>', 'output folder (default: reports/<feed name>)')
-    .option('--routes <ids>', 'only these route_ids (comma-separated)', listOption)
+    .option('--routes <ids>', 'report only these route_ids or short names (comma-separated); the whole network is still modelled', listOption)
+    .option('--exclude-routes <ids>', 'do not report these route_ids or short names (comma-separated)', listOption)
+    .option('--route-types <types>', 'report only routes of these types: GTFS route_type numbers or bus, tram, metro, rail, ferry, cable, other (comma-separated)', listOption)
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
@@ -73,6 +77,8 @@ export function registerAudit(program: Command): void {
         const { result } = await auditFeed(feedArg, {
           date: opts.date,
           routes: opts.routes,
+          excludeRoutes: opts.excludeRoutes,
+          routeTypes: opts.routeTypes,
           params,
           ridership: opts.ridership,
           observed: opts.observed,
