@@ -16,6 +16,7 @@ import { median } from '../common/median.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
+import { TRUNK_WINDOW } from './transfers.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
@@ -27,7 +28,7 @@ export interface RunAuditOptions {
   keep?: string[]; // stop_ids that must stay
   observed?: ObservedData;
   onProgress?: OnProgress;
-  /** Treat stops served by other routes as fixed (default true). */
+  /** Keep the network's transfer points (routes crossing, meeting or parting) as fixed (default true). */
   forceTransfers?: boolean;
   /** Route ids to report (null or absent: all). Every figure is still computed on the whole network. */
   reportRoutes?: ReadonlySet<string> | null;
@@ -149,7 +150,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
     `A gap that another route serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
-    `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
     ...(reportRoutes === null

@@ -10,7 +10,8 @@ import type { DistanceSource } from '../network/types.js';
 import type { StoppingModel } from '../model/params.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
-export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'keep';
+/** Why a stop is never proposed for removal: a pattern's end, a timepoint, a transfer point (routes cross, meet or part), another mode's station within walking distance (--context), or the keep-list. */
+export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'station' | 'keep';
 export type DemandSource = 'observed' | 'assumed'; // observed = from a ridership file
 export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive, in part or whole
 /** The parts of the lost time per stop that came from a realtime archive. */
@@ -57,6 +58,7 @@ export interface StopResult {
   localOptimalSpacingM: number | null; // s*(x) for uneven demand; null where undefined (no demand)
   verdict: Verdict;
   fixedReason: FixedReason;
+  fixedNote: string; // the routes or the station behind a transfer or station reason, else ''
   keptByOptimiser: boolean;
   removalNetPaxMinPerDay: number | null; // null for fixed stops
   removalRunTimeSavedS: number | null; // per trip

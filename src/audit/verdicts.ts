@@ -241,6 +241,7 @@ function stopResult(b: StopBase, x: Omit<StopResult, keyof StopBase>): StopResul
     localOptimalSpacingM: x.localOptimalSpacingM,
     verdict: x.verdict,
     fixedReason: x.fixedReason,
+    fixedNote: x.fixedNote,
     keptByOptimiser: x.keptByOptimiser,
     removalNetPaxMinPerDay: x.removalNetPaxMinPerDay,
     removalRunTimeSavedS: x.removalRunTimeSavedS,
@@ -337,7 +338,7 @@ export function analysePattern(
     if (m === undefined) {
       // not a passenger stop: kept for geometry only
       fixedStopIdx.push(stopIdx);
-      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -374,6 +375,7 @@ export function analysePattern(
       localOptimalSpacingM: local,
       verdict,
       fixedReason: reason,
+      fixedNote: prep.fixedNote[m],
       keptByOptimiser: keptSet !== null && keptSet.has(m),
       removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
       removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,

@@ -125,6 +125,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
       localOptimalSpacingM: optimal * (0.8 + ((i * 3) % 5) / 10),
       verdict,
       fixedReason,
+      fixedNote: '',
       keptByOptimiser: verdict !== 'close',
       removalNetPaxMinPerDay: removal,
       removalRunTimeSavedS: removal === null ? null : 14.5,
