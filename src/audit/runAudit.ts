@@ -79,7 +79,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(
         'gap-served-by-local',
-        'gaps above the band that another route serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
+        'gaps above the band that another route or pattern serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
         `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`,
       );
     }
@@ -148,7 +148,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
-    `A gap that another route serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
+    `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
