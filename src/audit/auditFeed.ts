@@ -9,6 +9,9 @@ import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
+import { WarningSink } from '../common/warnings.js';
+import { contextLabel, readContextFeed, type ContextFeed } from '../gtfs/readContext.js';
+import { stopsNearStations } from './contextStations.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
@@ -19,6 +22,7 @@ export interface AuditFeedOptions {
   ridership?: string; // path of a ridership CSV
   observed?: string; // path of a GTFS-Realtime archive (zip or folder)
   keep?: string[]; // stop ids the optimiser must keep
+  context?: string[]; // other feeds (zip, folder or URL) whose stations make nearby stops transfer points
   onProgress?: OnProgress;
 }
 
@@ -30,7 +34,7 @@ export interface AuditFeedOutput {
 }
 
 export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
-  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress } = options;
+  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [] } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
@@ -49,8 +53,20 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
       file: 'trips.txt',
     });
   }
+  // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
+  const contexts: ContextFeed[] = [];
+  const contextWarnings = new WarningSink();
+  const labels = new Set<string>();
+  for (const source of context) {
+    let label = contextLabel(source);
+    for (let k = 2; labels.has(label); k++) label = `${contextLabel(source)}-${k}`;
+    labels.add(label);
+    contexts.push(await readContextFeed(source, { date: feed.date ?? undefined, warnings: contextWarnings, label }));
+  }
+  feed.warnings.push(...contextWarnings.list());
+  const stations = stopsNearStations(feed, patterns, contexts);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes });
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations });
   return { feed, patterns, observed, result };
 }

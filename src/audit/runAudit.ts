@@ -17,6 +17,7 @@ import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { TRUNK_WINDOW } from './transfers.js';
+import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
@@ -30,6 +31,8 @@ export interface RunAuditOptions {
   onProgress?: OnProgress;
   /** Keep the network's transfer points (routes crossing, meeting or parting) as fixed (default true). */
   forceTransfers?: boolean;
+  /** Stops within walking distance of another mode's station (stop index -> note), kept as transfer points. */
+  stations?: ReadonlyMap<number, string>;
   /** Route ids to report (null or absent: all). Every figure is still computed on the whole network. */
   reportRoutes?: ReadonlySet<string> | null;
   /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
@@ -53,8 +56,8 @@ function stoppingAssumption(param: string, used: string[]): string {
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null } = options;
-  const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers });
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations } = options;
+  const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations });
 
   onProgress?.({ stage: 'verdicts' });
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
@@ -151,6 +154,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
     `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',

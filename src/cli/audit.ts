@@ -23,6 +23,7 @@ interface AuditOpts {
   ridership?: string;
   observed?: string;
   keep?: string[];
+  context?: string[];
   format?: string[];
   units: string;
   force?: boolean;
@@ -45,6 +46,7 @@ export function registerAudit(program: Command): void {
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
+    .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations make bus stops within 150 m transfer points', (v: string, prev: string[] = []) => prev.concat(v))
     .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
     .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: all)`, listOption)
     .option('--units <system>', 'units people read: metric or imperial', 'metric')
@@ -62,7 +64,7 @@ export function registerAudit(program: Command): void {
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
       const params = mergeParams(opts.params, paramOverrides(opts));
       const force = Boolean(opts.force);
-      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history];
+      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history, ...(opts.context ?? [])];
       // where the report goes and the history it joins are checked before the feed is read, so a run that
       // cannot save its work fails at once instead of after the whole audit
       await (await import('../report/writeFolder.js')).checkOutFolder(outDir, { force, inputs });
@@ -83,6 +85,7 @@ export function registerAudit(program: Command): void {
           ridership: opts.ridership,
           observed: opts.observed,
           keep: opts.keep,
+          context: opts.context,
           onProgress: progress.onProgress,
         });
         progress.onProgress?.({ stage: 'writing reports' });
