@@ -13,6 +13,7 @@ import { preparePattern, type PreparedPattern } from '../model/preparePattern.js
 import { loadRidership } from '../model/ridership.js';
 import { localCoverByGap } from './localCover.js';
 import { transferPoints } from './transfers.js';
+import { expressStretches } from './expressStretch.js';
 
 export interface PrepareAuditOptions {
   params?: unknown;
@@ -86,5 +87,6 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   });
   if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
   localCoverByGap(feed, patterns, preps).forEach((cover, i) => (preps[i].gapLocalCover = cover));
+  for (const p of preps) p.expressGap = expressStretches(p);
   return { np, params, preps, warnings };
 }

@@ -17,6 +17,7 @@ import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { TRUNK_WINDOW } from './transfers.js';
+import { EXPRESS_STRETCH_M } from './expressStretch.js';
 import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
@@ -79,6 +80,13 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       );
     }
     for (const g of a.gaps) {
+      if (g.expressStretch && a.result.optimalSpacingM > 0 && g.gapM > a.result.bandHighM) {
+        warnings.add(
+          'express-stretch',
+          `gaps above the band run non-stop at express speed (${EXPRESS_STRETCH_M} m or more at the route type's typical cruise speed or faster), or on a route typed express or coach: left out of the spacing verdicts, not flagged wide, no stop proposed`,
+          `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`,
+        );
+      }
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(
         'gap-served-by-local',
@@ -155,6 +163,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
+    `A gap of ${EXPRESS_STRETCH_M} m or more that the schedule runs at the route type's typical cruise speed or faster (an express or commuter run no local makes), and every gap of a route typed express or coach (route_type 702, 200-299), is left out of the spacing verdicts: not flagged wide, no stop proposed (warning express-stretch).`,
     `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',

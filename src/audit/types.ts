@@ -76,6 +76,8 @@ export interface GapResult {
   wide: boolean; // above the band's upper edge, and not served by a local route (see coveredByLocal)
   /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null; looked for only in gaps above the band. */
   coveredByLocal: string | null;
+  /** A non-stop run of 2 km or more at express speed, or a gap of an express route type: not judged wide. */
+  expressStretch: boolean;
   overMaxGap: boolean; // above the max_gap_m walking policy
   addNetPaxMinPerDay: number | null; // change in total riders' time if a stop is added mid-gap (wide gaps only)
   addMidLat: number | null;

@@ -313,7 +313,7 @@ export function analysePattern(
   const stops: StopResult[] = [];
   const removals: RemovalEffect[] = [];
   // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
-  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null;
+  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
   const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
@@ -391,8 +391,9 @@ export function analysePattern(
     const gapM = gapsM[m];
     // asked only above the band, where it decides: a short gap is not wide whoever serves it
     const aboveBand = hasOptimum && gapM > band.highM;
-    const coveredByLocal = aboveBand ? prep.gapLocalCover(m) : null;
-    const wide = aboveBand && coveredByLocal === null;
+    const expressStretch = prep.expressGap[m] === true;
+    const coveredByLocal = aboveBand && !expressStretch ? prep.gapLocalCover(m) : null;
+    const wide = aboveBand && !expressStretch && coveredByLocal === null;
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];
     let add: ChangeEffect | null = null;
@@ -414,6 +415,7 @@ export function analysePattern(
       gapM,
       wide,
       coveredByLocal,
+      expressStretch,
       overMaxGap: gapM > params.max_gap_m,
       addNetPaxMinPerDay: add ? add.netPaxMinPerDay : null,
       addMidLat: lat,

@@ -31,6 +31,8 @@ export interface PreparedPattern {
   observedFigures: ObservedFigures | null; // what a realtime archive said about the pattern, used or not
   /** For model gap m, a route serving it as a local (stops of its own between the ends), or null; set by the audit. */
   gapLocalCover: (m: number) => string | null;
+  /** Per model gap: an express stretch (long and run at express speed, or on an express route type); set by the audit. */
+  expressGap: boolean[];
   fixedReason: FixedReason[]; // per model stop
   fixedNote: string[]; // per model stop: the routes or station behind a transfer or station reason, else ''
 }
@@ -137,6 +139,7 @@ export function preparePattern(
     trafficDelayS,
     observedFigures,
     gapLocalCover: () => null,
+    expressGap: [],
     fixedReason,
     fixedNote,
   };

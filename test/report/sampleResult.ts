@@ -145,6 +145,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
         gapM: after,
         wide,
         coveredByLocal: null,
+        expressStretch: false,
         overMaxGap: after > 700,
         addNetPaxMinPerDay: wide ? -Math.round(after / 9) : null,
         addMidLat: wide ? lat2 : null,
