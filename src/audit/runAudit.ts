@@ -96,7 +96,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     }
   }
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts, reported: shownRoute });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
   // a candidate is reported when it touches a route asked for, with its figures over every route it touches
   const shownCandidates = reportRoutes === null ? candidates : candidates.filter((c) => c.routeIds.some(shownRoute));

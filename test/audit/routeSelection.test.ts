@@ -44,6 +44,19 @@ describe('route selection', () => {
       expect(only.headline.patterns).toBe(1);
       expect(rowsOf(only, id)).toEqual(rowsOf(full, id));
     }
+  });
+
+  it('counts the reported routes in the sensitivity cases, like the headline', () => {
+    // V1 with stops 100 m apart, dense enough to lose riders' time in every case
+    const { feed, patterns } = handmadeNetwork({ distM: Array.from({ length: 31 }, (_, k) => 100 * k), sharedAt: 15 });
+    const full = runAudit(feed, patterns, { params, generatedAt: 'x' });
+    const [r1, r2] = ['V1', 'V2'].map((id) => runAudit(feed, patterns, { params, generatedAt: 'x', reportRoutes: new Set([id]) }));
+    // the two routes' cases add up to the full run's
+    full.sensitivity.forEach((c, k) => {
+      expect(c.paxMinLostPerDay).toBeGreaterThan(0);
+      expect(r1.sensitivity[k].paxMinLostPerDay + r2.sensitivity[k].paxMinLostPerDay).toBeCloseTo(c.paxMinLostPerDay, 6);
+      expect(r1.sensitivity[k].closeStops + r2.sensitivity[k].closeStops).toBe(c.closeStops);
+    });
     // V2's middle stop is V1's too: fixed (with its reason) in V2's report as in the full run
     const v2 = runAudit(feed, patterns, { params, generatedAt: 'x', reportRoutes: new Set(['V2']) });
     expect(v2.stops[1].verdict).toBe('fixed');
