@@ -8,14 +8,21 @@ import type { ObservedData } from '../realtime/types.js';
 import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { StopspanError } from '../common/errors.js';
+import { selectedRoutes } from './routeSelection.js';
+import { WarningSink } from '../common/warnings.js';
+import { contextLabel, readContextFeed, type ContextFeed } from '../gtfs/readContext.js';
+import { stopsNearStations } from './contextStations.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
-  routes?: string[];
+  routes?: string[]; // routes reported (the whole network is still read and modelled)
+  excludeRoutes?: string[]; // routes not reported
+  routeTypes?: string[]; // route types reported (route_type numbers or families: bus, tram, metro, rail, ...)
   params?: unknown; // a parameters object (from --params and single options), normalised by the model
   ridership?: string; // path of a ridership CSV
   observed?: string; // path of a GTFS-Realtime archive (zip or folder)
   keep?: string[]; // stop ids the optimiser must keep
+  context?: string[]; // other feeds (zip, folder or URL) whose stations make nearby stops transfer points
   onProgress?: OnProgress;
 }
 
@@ -27,7 +34,7 @@ export interface AuditFeedOutput {
 }
 
 export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
-  const { date, routes, params, ridership, observed: observedPath, keep, onProgress } = options;
+  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [] } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
@@ -35,16 +42,31 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
   const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
   stages.catch(() => undefined); // a failure to load surfaces at the await below
-  const feed = await readFeed(source, { date: date ?? 'auto', routes, onProgress });
+  // the whole feed is read and modelled whatever is reported: transfers, trunks and locals are other
+  // routes' stops, so a route's figures must not depend on which others were asked for
+  const feed = await readFeed(source, { date: date ?? 'auto', onProgress });
+  const reportRoutes = selectedRoutes(feed, { routes, excludeRoutes, routeTypes });
   const [{ buildPatterns }, { runAudit }] = await stages;
-  const patterns = buildPatterns(feed, { date: feed.date ?? undefined, routes, onProgress });
-  if (patterns.patterns.length === 0) {
-    throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}${routes?.length ? ' for the routes asked for' : ''}`, {
+  const patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress });
+  if (patterns.patterns.length === 0 || (reportRoutes !== null && !patterns.patterns.some((p) => reportRoutes.has(p.routeId)))) {
+    throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}${reportRoutes !== null ? ' for the routes asked for' : ''}`, {
       file: 'trips.txt',
     });
   }
+  // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
+  const contexts: ContextFeed[] = [];
+  const contextWarnings = new WarningSink();
+  const labels = new Set<string>();
+  for (const source of context) {
+    let label = contextLabel(source);
+    for (let k = 2; labels.has(label); k++) label = `${contextLabel(source)}-${k}`;
+    labels.add(label);
+    contexts.push(await readContextFeed(source, { date: feed.date ?? undefined, warnings: contextWarnings, label }));
+  }
+  feed.warnings.push(...contextWarnings.list());
+  const stations = stopsNearStations(feed, patterns, contexts);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress });
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations });
   return { feed, patterns, observed, result };
 }

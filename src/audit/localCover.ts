@@ -1,4 +1,5 @@
-// Gaps of a limited-stop pattern that another route serves as a local: the other route calls near both
+// Gaps of a limited-stop pattern that another pattern serves as a local (another route's, or a local of the
+// same route_id and direction): the other pattern calls near both
 // ends of the gap (within 150 m: limited-stop services often have stops of their own a few metres from the
 // local's), in order, with at least one stop between them, and runs at least a quarter as many trips a day.
 // Riders between those ends already have a stop on the local, so a long gap there is the limited service's
@@ -91,14 +92,15 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
         const list = at.get(a) ?? [];
         for (let k = 0; k < list.length && by === null; k += 2) {
           const q = patterns[list[k]];
-          if (q.routeId === p.routeId || q.tripsPerDay < LOCAL_MIN_TRIP_SHARE * p.tripsPerDay) continue;
+          // any other pattern, of another route or of the same route (a limited variant under its local's route_id)
+          if (q === p || q.tripsPerDay < LOCAL_MIN_TRIP_SHARE * p.tripsPerDay) continue;
           const i = list[k + 1];
           let between = 0;
           for (let j = i + 1; j < q.stopIdx.length && j <= i + MAX_LOCAL_STOPS_IN_GAP; j++) {
             if (q.passengerStop[j] === false) continue;
             const sj = q.stopIdx[j];
             if (nearEndB[sj] === gen) {
-              if (between > 0) by = feed.routes.get(q.routeId)?.shortName || q.routeId;
+              if (between > 0) by = q.routeId === p.routeId ? `${feed.routes.get(q.routeId)?.shortName || q.routeId} (pattern ${q.id})` : feed.routes.get(q.routeId)?.shortName || q.routeId;
               break;
             }
             if (nearEndA[sj] !== gen) between++;

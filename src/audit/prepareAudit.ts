@@ -12,6 +12,8 @@ import { normalizeParams, type ModelParams, type NormalizedParams } from '../mod
 import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
 import { loadRidership } from '../model/ridership.js';
 import { localCoverByGap } from './localCover.js';
+import { transferPoints } from './transfers.js';
+import { expressStretches } from './expressStretch.js';
 
 export interface PrepareAuditOptions {
   params?: unknown;
@@ -19,7 +21,10 @@ export interface PrepareAuditOptions {
   keep?: string[];
   observed?: ObservedData;
   onProgress?: OnProgress;
+  /** Keep the network's transfer points (routes crossing, meeting or parting) as fixed (default true). */
   forceTransfers?: boolean;
+  /** Stops within walking distance of another mode's station (stop index -> note naming it), from --context. */
+  stations?: ReadonlyMap<number, string>;
 }
 
 export interface PreparedAudit {
@@ -33,7 +38,7 @@ function isNormalized(x: unknown): x is NormalizedParams {
   return typeof x === 'object' && x !== null && 'values' in x && 'given' in x && Array.isArray((x as NormalizedParams).given);
 }
 
-export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true }: PrepareAuditOptions = {}): PreparedAudit {
+export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations }: PrepareAuditOptions = {}): PreparedAudit {
   const np = isNormalized(rawParams) ? rawParams : normalizeParams(rawParams);
   const params = np.values;
   if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string')) throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
@@ -59,6 +64,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   }
 
   const keepSet = new Set(keep);
+  const transfers = forceTransfers ? transferPoints(feed, patterns) : new Map<number, string>();
   const given = new Set(np.given);
   const preps: PreparedPattern[] = [];
   patterns.patterns.forEach((pattern, i) => {
@@ -75,11 +81,12 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
           meanTripM: params.mean_trip_length_m ?? typicalTripLengthM(feed.routes.get(pattern.routeId)?.type ?? 3),
         }),
       params,
-      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, forceTransfers, given },
+      { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, transfers, stations, given },
     );
     if (prep) preps.push(prep);
   });
   if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
   localCoverByGap(feed, patterns, preps).forEach((cover, i) => (preps[i].gapLocalCover = cover));
+  for (const p of preps) p.expressGap = expressStretches(p);
   return { np, params, preps, warnings };
 }

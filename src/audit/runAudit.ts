@@ -17,6 +17,9 @@ import { median } from '../common/median.js';
 import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
+import { TRUNK_WINDOW } from './transfers.js';
+import { EXPRESS_STRETCH_M } from './expressStretch.js';
+import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
@@ -28,8 +31,12 @@ export interface RunAuditOptions {
   keep?: string[]; // stop_ids that must stay
   observed?: ObservedData;
   onProgress?: OnProgress;
-  /** Treat stops served by other routes as fixed (default true). */
+  /** Keep the network's transfer points (routes crossing, meeting or parting) as fixed (default true). */
   forceTransfers?: boolean;
+  /** Stops within walking distance of another mode's station (stop index -> note), kept as transfer points. */
+  stations?: ReadonlyMap<number, string>;
+  /** Route ids to report (null or absent: all). Every figure is still computed on the whole network. */
+  reportRoutes?: ReadonlySet<string> | null;
   /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
   generatedAt?: string;
 }
@@ -51,8 +58,8 @@ function stoppingAssumption(param: string, used: string[]): string {
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString() } = options;
-  const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers });
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations } = options;
+  const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations });
 
   onProgress?.({ stage: 'verdicts' });
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
@@ -62,7 +69,10 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const reviewGaps: ReviewGap[] = [];
   const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps });
-  for (const a of analyses) {
+  // what is reported: the routes asked for; everything above was computed on the whole network
+  const shownRoute = (routeId: string) => reportRoutes === null || reportRoutes.has(routeId);
+  const shown = analyses.filter((a) => shownRoute(a.result.routeId));
+  for (const a of shown) {
     const family = speedFamily(a.result.routeType);
     if (family !== 'bus' && family !== 'tram') {
       warnings.add(
@@ -72,34 +82,44 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       );
     }
     for (const g of a.gaps) {
+      if (g.expressStretch && a.result.optimalSpacingM > 0 && g.gapM > a.result.bandHighM) {
+        warnings.add(
+          'express-stretch',
+          `gaps above the band run non-stop at express speed (${EXPRESS_STRETCH_M} m or more at the route type's typical cruise speed or faster), or on a route typed express or coach: left out of the spacing verdicts, not flagged wide, no stop proposed`,
+          `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`,
+        );
+      }
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(
         'gap-served-by-local',
-        'gaps above the band that another route serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
+        'gaps above the band that another route or pattern serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
         `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`,
       );
     }
   }
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts, reported: shownRoute });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+  // a candidate is reported when it touches a route asked for, with its figures over every route it touches
+  const shownCandidates = reportRoutes === null ? candidates : candidates.filter((c) => c.routeIds.some(shownRoute));
+  shownCandidates.forEach((c, i) => (c.rank = i + 1));
 
   // headline
   const allGaps: number[] = [];
   const served = new Set<number>();
-  for (const a of analyses) {
+  for (const a of shown) {
     for (let m = 0; m + 1 < a.modelPosM.length; m++) allGaps.push(a.modelPosM[m + 1] - a.modelPosM[m]);
     for (const s of a.result.patternId ? a.feedStopsByModelPos : []) served.add(s);
   }
   const headline: Headline = {
-    patterns: analyses.length,
+    patterns: shown.length,
     stops: served.size,
-    trips: analyses.reduce((n, a) => n + a.result.tripsPerDay, 0),
+    trips: shown.reduce((n, a) => n + a.result.tripsPerDay, 0),
     medianGapM: median(allGaps, 0),
-    meanOptimalSpacingM: meanOptimalSpacingM(analyses),
-    closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
-    wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
-    paxMinLostPerDay: analyses.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+    meanOptimalSpacingM: meanOptimalSpacingM(shown),
+    closeStops: shown.reduce((n, a) => n + a.result.closeStops, 0),
+    wideGaps: shown.reduce((n, a) => n + a.result.wideGaps, 0),
+    paxMinLostPerDay: shown.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
   };
 
   // parameters with what was actually used where a value is per pattern
@@ -141,12 +161,18 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
-    `A gap that another route serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
+    `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there: a stop of any route within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
-    `Terminals, the keep-list${forceTransfers ? ', stops served by other routes (transfers)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
+    ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
+    `A gap of ${EXPRESS_STRETCH_M} m or more that the schedule runs at the route type's typical cruise speed or faster (an express or commuter run no local makes), and every gap of a route typed express or coach (route_type 702, 200-299), is left out of the spacing verdicts: not flagged wide, no stop proposed (warning express-stretch).`,
+    `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
     'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
+    ...(reportRoutes === null
+      ? []
+      : [`Reported: ${shown.length} of ${analyses.length} patterns (the routes asked for); every figure, transfer, trunk and local is computed on the whole network, so a route's verdicts are the same whichever routes are reported, and a candidate touching a reported route is shown with its effect on every route it touches.`]),
     ...CAUTIONS,
   ];
 
@@ -159,11 +185,11 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     lostTimeSource: anyObservedLost ? 'observed' : 'default',
     params: paramsReport(np, overrides),
     headline,
-    patterns: analyses.map((a) => a.result),
-    stops: analyses.flatMap((a) => a.stops),
-    gaps: analyses.flatMap((a) => a.gaps),
-    candidates,
-    reviewGaps,
+    patterns: shown.map((a) => a.result),
+    stops: shown.flatMap((a) => a.stops),
+    gaps: shown.flatMap((a) => a.gaps),
+    candidates: shownCandidates,
+    reviewGaps: reviewGaps.filter((g) => g.routeIds.some(shownRoute)),
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,

@@ -42,7 +42,10 @@ export function runSensitivity(
     settings = sensitivitySettings(params),
     baseAnalyses,
     parts = preps.map((p) => patternParts(p, params)),
+    reported = () => true,
   }: {
+    /** The routes a report shows (--routes and the other filters): the case figures count their patterns and candidates only; every figure is still computed on the whole network. */
+    reported?: (routeId: string) => boolean;
     settings?: SensitivitySetting[];
     /** The base audit's analysePattern results for preps (at params' own settings), from which baseCandidates were built. */
     baseAnalyses?: PatternAnalysis[];
@@ -50,7 +53,7 @@ export function runSensitivity(
     parts?: PatternParts[];
   } = {},
 ): { cases: SensitivityCase[]; robustKeys: Set<string> } {
-  const top = baseCandidates.slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
+  const top = baseCandidates.filter((c) => c.routeIds.some(reported)).slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
   let robustKeys = new Set(baseCandidates.map(candidateKey));
   const cases: SensitivityCase[] = [];
   for (const s of settings) {
@@ -59,14 +62,15 @@ export function runSensitivity(
     const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));
+    const shown = analyses.filter((a) => reported(a.result.routeId));
     cases.push({
       label: s.label,
       walkWeight: s.walkWeight,
       bandTolerance: s.bandTolerance,
-      meanOptimalSpacingM: meanOptimalSpacingM(analyses),
-      closeStops: analyses.reduce((n, a) => n + a.result.closeStops, 0),
-      wideGaps: analyses.reduce((n, a) => n + a.result.wideGaps, 0),
-      paxMinLostPerDay: analyses.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+      meanOptimalSpacingM: meanOptimalSpacingM(shown),
+      closeStops: shown.reduce((n, a) => n + a.result.closeStops, 0),
+      wideGaps: shown.reduce((n, a) => n + a.result.wideGaps, 0),
+      paxMinLostPerDay: shown.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
       candidatesKept: top.filter((k) => keys.has(k)).length,
     });
   }

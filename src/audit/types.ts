@@ -10,7 +10,8 @@ import type { DistanceSource } from '../network/types.js';
 import type { StoppingModel } from '../model/params.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
-export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'keep';
+/** Why a stop is never proposed for removal: a pattern's end, a timepoint, a transfer point (routes cross, meet or part), another mode's station within walking distance (--context), or the keep-list. */
+export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'station' | 'keep';
 export type DemandSource = 'observed' | 'assumed'; // observed = from a ridership file
 export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive, in part or whole
 /** The parts of the lost time per stop that came from a realtime archive. */
@@ -57,6 +58,7 @@ export interface StopResult {
   localOptimalSpacingM: number | null; // s*(x) for uneven demand; null where undefined (no demand)
   verdict: Verdict;
   fixedReason: FixedReason;
+  fixedNote: string; // the routes or the station behind a transfer or station reason, else ''
   keptByOptimiser: boolean;
   removalNetPaxMinPerDay: number | null; // null for fixed stops
   removalRunTimeSavedS: number | null; // per trip
@@ -74,6 +76,8 @@ export interface GapResult {
   wide: boolean; // above the band's upper edge, and not served by a local route (see coveredByLocal)
   /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null; looked for only in gaps above the band. */
   coveredByLocal: string | null;
+  /** A non-stop run of 2 km or more at express speed, or a gap of an express route type: not judged wide. */
+  expressStretch: boolean;
   overMaxGap: boolean; // above the max_gap_m walking policy
   addNetPaxMinPerDay: number | null; // change in total riders' time if a stop is added mid-gap (wide gaps only)
   addMidLat: number | null;

@@ -243,6 +243,7 @@ function stopResult(b: StopBase, x: Omit<StopResult, keyof StopBase>): StopResul
     localOptimalSpacingM: x.localOptimalSpacingM,
     verdict: x.verdict,
     fixedReason: x.fixedReason,
+    fixedNote: x.fixedNote,
     keptByOptimiser: x.keptByOptimiser,
     removalNetPaxMinPerDay: x.removalNetPaxMinPerDay,
     removalRunTimeSavedS: x.removalRunTimeSavedS,
@@ -314,7 +315,7 @@ export function analysePattern(
   const stops: StopResult[] = [];
   const removals: RemovalEffect[] = [];
   // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
-  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.gapLocalCover(g) === null;
+  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
   const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
@@ -339,7 +340,7 @@ export function analysePattern(
     if (m === undefined) {
       // not a passenger stop: kept for geometry only
       fixedStopIdx.push(stopIdx);
-      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -376,6 +377,7 @@ export function analysePattern(
       localOptimalSpacingM: local,
       verdict,
       fixedReason: reason,
+      fixedNote: prep.fixedNote[m],
       keptByOptimiser: keptSet !== null && keptSet.has(m),
       removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
       removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,
@@ -391,8 +393,9 @@ export function analysePattern(
     const gapM = gapsM[m];
     // asked only above the band, where it decides: a short gap is not wide whoever serves it
     const aboveBand = hasOptimum && gapM > band.highM;
-    const coveredByLocal = aboveBand ? prep.gapLocalCover(m) : null;
-    const wide = aboveBand && coveredByLocal === null;
+    const expressStretch = prep.expressGap[m] === true;
+    const coveredByLocal = aboveBand && !expressStretch ? prep.gapLocalCover(m) : null;
+    const wide = aboveBand && !expressStretch && coveredByLocal === null;
     const from = feed.stops[feedStopsByModelPos[m]];
     const to = feed.stops[feedStopsByModelPos[m + 1]];
     let add: ChangeEffect | null = null;
@@ -419,6 +422,7 @@ export function analysePattern(
       gapM,
       wide,
       coveredByLocal,
+      expressStretch,
       overMaxGap: gapM > params.max_gap_m,
       addNetPaxMinPerDay: add ? add.netPaxMinPerDay : null,
       addMidLat: lat,

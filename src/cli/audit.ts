@@ -17,10 +17,13 @@ interface AuditOpts {
   date?: string;
   out?: string;
   routes?: string[];
+  excludeRoutes?: string[];
+  routeTypes?: string[];
   params?: string;
   ridership?: string;
   observed?: string;
   keep?: string[];
+  context?: string[];
   format?: string[];
   units: string;
   force?: boolean;
@@ -38,10 +41,13 @@ export function registerAudit(program: Command): void {
     .argument('<feed>', 'GTFS feed: a .zip file, a folder of .txt files, or an http(s) URL')
     .option('--date <YYYY-MM-DD>', 'analysis date (default: the weekday in the feed with the most trips)')
     .option('--out <dir>', 'output folder (default: reports/<feed name>)')
-    .option('--routes <ids>', 'only these route_ids (comma-separated)', listOption)
+    .option('--routes <ids>', 'report only these route_ids or short names (comma-separated); the whole network is still modelled', listOption)
+    .option('--exclude-routes <ids>', 'do not report these route_ids or short names (comma-separated)', listOption)
+    .option('--route-types <types>', 'report only routes of these types: GTFS route_type numbers or bus, tram, metro, rail, ferry, cable, other (comma-separated)', listOption)
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
+    .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations make bus stops within 150 m transfer points', (v: string, prev: string[] = []) => prev.concat(v))
     .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
     .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: all)`, listOption)
     .option('--units <system>', 'units people read: metric or imperial', 'metric')
@@ -60,7 +66,7 @@ export function registerAudit(program: Command): void {
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
       const params = mergeParams(opts.params, paramOverrides(opts));
       const force = Boolean(opts.force);
-      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history];
+      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history, ...(opts.context ?? [])];
       // where the report goes and the history it joins are checked before the feed is read, so a run that
       // cannot save its work fails at once instead of after the whole audit
       await (await import('../report/writeFolder.js')).checkOutFolder(outDir, { force, inputs });
@@ -75,10 +81,13 @@ export function registerAudit(program: Command): void {
         const { result } = await auditFeed(feedArg, {
           date: opts.date,
           routes: opts.routes,
+          excludeRoutes: opts.excludeRoutes,
+          routeTypes: opts.routeTypes,
           params,
           ridership: opts.ridership,
           observed: opts.observed,
           keep: opts.keep,
+          context: opts.context,
           onProgress: progress.onProgress,
         });
         progress.onProgress?.({ stage: 'writing reports' });

@@ -31,14 +31,10 @@ export interface PreparedPattern {
   observedFigures: ObservedFigures | null; // what a realtime archive said about the pattern, used or not
   /** For model gap m, a route serving it as a local (stops of its own between the ends), or null; set by the audit. */
   gapLocalCover: (m: number) => string | null;
+  /** Per model gap: an express stretch (long and run at express speed, or on an express route type); set by the audit. */
+  expressGap: boolean[];
   fixedReason: FixedReason[]; // per model stop
-}
-
-/** Is a stop served by another route too? `routesAtStop` may hold route ids or pattern ids. */
-function servedByOtherRoute(routes: Set<string> | undefined, routeId: string): boolean {
-  if (!routes) return false;
-  for (const r of routes) if (r !== routeId && !r.startsWith(`${routeId}:`)) return true;
-  return false;
+  fixedNote: string[]; // per model stop: the routes or station behind a transfer or station reason, else ''
 }
 
 export function preparePattern(
@@ -47,7 +43,23 @@ export function preparePattern(
   pattern: Pattern,
   demandOf: (modelStops: number[], posM: number[]) => PatternDemand,
   params: ModelParams,
-  { keep = new Set<string>(), observed, warnings, forceTransfers = true, given = new Set<ParamName>() }: { keep?: Set<string>; observed?: ObservedPattern; warnings: WarningSink; forceTransfers?: boolean; given?: ReadonlySet<ParamName> },
+  {
+    keep = new Set<string>(),
+    observed,
+    warnings,
+    transfers = new Map(),
+    stations = new Map(),
+    given = new Set<ParamName>(),
+  }: {
+    keep?: Set<string>;
+    observed?: ObservedPattern;
+    warnings: WarningSink;
+    /** Transfer points of the network (stop index -> note), from transferPoints; none: no stop is kept as a transfer. */
+    transfers?: ReadonlyMap<number, string>;
+    /** Stops within walking distance of another mode's station (stop index -> note naming it). */
+    stations?: ReadonlyMap<number, string>;
+    given?: ReadonlySet<ParamName>;
+  },
 ): PreparedPattern | null {
   const modelStops: number[] = [];
   for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
@@ -88,6 +100,7 @@ export function preparePattern(
 
   // stops that must stay
   const fixedReason: FixedReason[] = modelStops.map(() => '');
+  const fixedNote: string[] = modelStops.map(() => '');
   const n = modelStops.length;
   let timepoints = 0;
   for (let m = 1; m + 1 < n; m++) if (pattern.timepoint[modelStops[m]]) timepoints++;
@@ -100,7 +113,13 @@ export function preparePattern(
     if (m === 0 || m === n - 1) fixedReason[m] = 'terminal';
     else if (keep.has(stopId)) fixedReason[m] = 'keep';
     else if (timepointsInformative && pattern.timepoint[j]) fixedReason[m] = 'timepoint';
-    else if (forceTransfers && servedByOtherRoute(patternSet.routesAtStop.get(stopIdx), pattern.routeId)) fixedReason[m] = 'transfer';
+    else if (stations.has(stopIdx)) {
+      fixedReason[m] = 'station';
+      fixedNote[m] = stations.get(stopIdx)!;
+    } else if (transfers.has(stopIdx)) {
+      fixedReason[m] = 'transfer';
+      fixedNote[m] = transfers.get(stopIdx)!;
+    }
   }
   return {
     pattern,
@@ -120,7 +139,9 @@ export function preparePattern(
     trafficDelayS,
     observedFigures,
     gapLocalCover: () => null,
+    expressGap: [],
     fixedReason,
+    fixedNote,
   };
 }
 

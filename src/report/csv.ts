@@ -149,6 +149,8 @@ export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
   num('boardings_per_day', (s) => s.boardingsPerDay, 1),
   num('alightings_per_day', (s) => s.alightingsPerDay, 1),
   text('verdict', (s) => s.verdict),
+  text('fixed_reason', (s) => s.fixedReason),
+  text('fixed_note', (s) => s.fixedNote),
   num('removal_net_pax_min_per_day', (s) => s.removalNetPaxMinPerDay, 1),
   text('demand_source', (s) => s.demandSource),
 ];

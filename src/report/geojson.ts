@@ -115,10 +115,11 @@ function stopProperties(s: StopResult): Feature<Point>['properties'] {
     boardings_per_day: r1(s.boardingsPerDay),
     alightings_per_day: r1(s.alightingsPerDay),
     verdict: s.verdict,
+    fixed_reason: s.fixedReason,
+    fixed_note: s.fixedNote,
     removal_net_pax_min_per_day: r1(s.removalNetPaxMinPerDay),
     demand_source: s.demandSource,
     // beyond stops.csv, for a map's legend; a stop's position is the geometry
-    fixed_reason: s.fixedReason,
     timepoint: s.timepoint,
   };
 }

@@ -84,3 +84,20 @@ describe('gaps served by a local', () => {
     expect(r.patterns.find((p) => p.patternId === 'X:0:1')!.wideGaps).toBe(2);
   });
 });
+
+describe('a limited variant under its local\'s route_id', () => {
+  it('is judged against that local: its long gaps are covered, not wide, and get no proposed stop', () => {
+    const net = withLimited();
+    // the limited pattern X:0:1 moved under route V1, as a feed with one route_id for both services has it
+    const x = net.patterns.patterns.find((p) => p.id === 'X:0:1')!;
+    x.routeId = 'V1';
+    x.id = 'V1:0:2';
+    const r = runAudit(net.feed, net.patterns, { params });
+    const gaps = r.gaps.filter((g) => g.patternId === 'V1:0:2');
+    expect(gaps.length).toBe(2);
+    expect(gaps.every((g) => g.coveredByLocal === '1 (pattern V1:0:1)' && !g.wide)).toBe(true);
+    expect(r.candidates.some((c) => c.action === 'add' && c.patternIds.includes('V1:0:2'))).toBe(false);
+    // and the local's gaps are not covered by its limited variant, which serves no stop between them
+    expect(r.gaps.filter((g) => g.patternId === 'V1:0:1').every((g) => g.coveredByLocal === null)).toBe(true);
+  });
+});

@@ -91,7 +91,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
       curCost: r1(p.currentCostPerRiderS),
       optCost: r1(p.optimalCostPerRiderS),
       path: thin(p.path, maxPathPoints),
-      // [index, stop_id, name, lat, lon, dist, verdict letter, fixed reason, timepoint, removal net, boardings, alightings]
+      // [index, stop_id, name, lat, lon, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
       stops: stops.map((s, i) => [
         i,
         s.stopId,
@@ -100,7 +100,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
         r5(s.stopLon),
         r1(s.distAlongM),
         VERDICT_LETTER[s.verdict],
-        s.fixedReason,
+        s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
         s.timepoint ? 1 : 0,
         r1(s.removalNetPaxMinPerDay),
         r1(s.boardingsPerDay),

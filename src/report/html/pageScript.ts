@@ -65,7 +65,7 @@ export const PAGE_SCRIPT = String.raw`
   }
   function legend() {
     var box = el('div', { 'class': 'legend' });
-    [['C', 'close stop (below the band): triangle'], ['W', 'next to a wide gap: diamond'], ['O', 'within the band: open circle'], ['F', 'fixed (terminal, timepoint, transfer or kept): square']].forEach(function (it) {
+    [['C', 'close stop (below the band): triangle'], ['W', 'next to a wide gap: diamond'], ['O', 'within the band: open circle'], ['F', 'fixed (terminal, timepoint, transfer point, station nearby or kept): square']].forEach(function (it) {
       var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
       s.appendChild(marker(it[0], 8, 8, 6));
       var span = el('span');

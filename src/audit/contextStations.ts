@@ -1,0 +1,56 @@
+// Stops of the audited network within walking distance of a station of another feed given as context
+// (--context): each is a transfer point to that mode and is kept, its note naming the nearest station and
+// the distance. The radius, 150 m, is a design choice of this tool [D]: about two minutes' walk at the
+// model's walking speed, the same reach as a local's stop counting as serving a limited-stop gap.
+
+import type { Feed } from '../gtfs/types.js';
+import type { PatternSet } from '../network/types.js';
+import type { ContextFeed } from '../gtfs/readContext.js';
+import { haversineM } from '../network/geodesy.js';
+
+/** A stop within this distance of a context station is a transfer point to it. */
+export const CONTEXT_STATION_RADIUS_M = 150;
+const CELL_DEG = 0.002; // grid cell, about 220 m north-south: the radius never reaches past the next cell
+const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter never drops a station inside the radius
+
+/** Stop index -> note ("station 59 St (nyct-subway), 60 m") for every served stop near a context station. */
+export function stopsNearStations(feed: Feed, patterns: PatternSet, contexts: ContextFeed[], radiusM = CONTEXT_STATION_RADIUS_M): Map<number, string> {
+  const out = new Map<number, string>();
+  if (contexts.length === 0) return out;
+  const cell = (lat: number, lon: number) => `${Math.floor(lat / CELL_DEG)},${Math.floor(lon / CELL_DEG)}`;
+  const grid = new Map<string, { name: string; label: string; lat: number; lon: number }[]>();
+  for (const c of contexts) {
+    for (const s of c.stations) {
+      const key = cell(s.lat, s.lon);
+      let list = grid.get(key);
+      if (!list) grid.set(key, (list = []));
+      list.push({ name: s.name, label: c.label, lat: s.lat, lon: s.lon });
+    }
+  }
+  const reach = Math.ceil(radiusM / (CELL_DEG * M_PER_DEG_LAT * 0.5)); // cells to search each way (longitude cells shrink with latitude)
+  const seen = new Set<number>();
+  for (const p of patterns.patterns) {
+    for (const s of p.stopIdx) {
+      if (seen.has(s)) continue;
+      seen.add(s);
+      const st = feed.stops[s];
+      if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) continue;
+      const ci = Math.floor(st.lat / CELL_DEG);
+      const cj = Math.floor(st.lon / CELL_DEG);
+      const maxDLat = (1.01 * radiusM) / M_PER_DEG_LAT;
+      const maxDLon = maxDLat / Math.max(1e-6, Math.cos((st.lat * Math.PI) / 180));
+      let best: { d: number; name: string; label: string } | null = null;
+      for (let di = -reach; di <= reach; di++) {
+        for (let dj = -reach; dj <= reach; dj++) {
+          for (const q of grid.get(`${ci + di},${cj + dj}`) ?? []) {
+            if (Math.abs(q.lat - st.lat) > maxDLat || Math.abs(q.lon - st.lon) > maxDLon) continue;
+            const d = haversineM(st.lat, st.lon, q.lat, q.lon);
+            if (d <= radiusM && (best === null || d < best.d)) best = { d, name: q.name, label: q.label };
+          }
+        }
+      }
+      if (best) out.set(s, `station ${best.name} (${best.label}), ${Math.round(best.d)} m`);
+    }
+  }
+  return out;
+}

@@ -1,0 +1,115 @@
+// Another feed read as context beside the one audited (a subway or regional rail beside a bus feed): only
+// its stations and whether it runs on the analysis date. Reads stops.txt, calendar.txt and
+// calendar_dates.txt with the project's archive and CSV readers, and nothing else (stop_times.txt, the
+// bulk of a feed, is never opened), so a context feed costs a few milliseconds. Its ids are namespaced by
+// the feed's label ("nyct-subway:631"), so they never collide with the audited feed's or another context's.
+
+import path from 'node:path';
+import { StopspanError, isStopspanError } from '../common/errors.js';
+import type { WarningSink } from '../common/warnings.js';
+import { openFeed, type FeedArchive } from './archive.js';
+import { readCsv, type CsvRow } from './csv.js';
+import { servicesOn } from './calendar.js';
+import { badField, checkDate, fieldNumber, intField } from './values.js';
+import { missingColumn } from './missingColumn.js';
+import type { CalendarDate, CalendarRow } from './types.js';
+
+export interface ContextStation {
+  id: string; // namespaced: "<feed label>:<stop_id>"
+  name: string;
+  lat: number;
+  lon: number;
+}
+
+export interface ContextFeed {
+  source: string;
+  label: string;
+  stations: ContextStation[];
+  /** Services running on the date asked for (null when no date was given). */
+  servicesOnDate: number | null;
+}
+
+const DAYS = ['monday', 'tuesday', 'wednesday', 'thursday', 'friday', 'saturday', 'sunday'] as const;
+
+/** The label of a context feed: its file or folder name without .zip, or the URL's last part. */
+export function contextLabel(source: string): string {
+  const base = path.basename(source.replace(/[?#].*$/, '').replace(/\/+$/, '')) || 'context';
+  return base.replace(/\.zip$/i, '');
+}
+
+async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink): Promise<void> {
+  let c: Record<string, number> = {};
+  await readCsv(await archive.open(file), {
+    file,
+    warnings,
+    onHeader(header) {
+      const at = new Map(header.map((h, i) => [h, i]));
+      c = {};
+      for (const r of required) {
+        const i = at.get(r);
+        if (i === undefined) throw missingColumn(file, header, r, { known: new Set([...required, ...optional]) });
+        c[r] = i;
+      }
+      for (const o of optional) c[o] = at.get(o) ?? -1;
+    },
+    onRow: (row) => onRow(row, c),
+  });
+}
+
+/**
+ * A context feed's stations (stops.txt rows with location_type 1, and stops or platforms with no parent
+ * station), and the count of its services running on `date` (YYYY-MM-DD) when given. An error names the
+ * context feed: "context feed <source>: ...".
+ */
+export async function readContextFeed(source: string, { date, warnings, label = contextLabel(source) }: { date?: string; warnings: WarningSink; label?: string }): Promise<ContextFeed> {
+  let archive: FeedArchive | null = null;
+  try {
+    archive = await openFeed(source, { warnings });
+    if (!archive.has('stops.txt')) throw new StopspanError('missing-table', 'stops.txt is missing', { file: 'stops.txt' });
+    const stations: ContextStation[] = [];
+    await readTable(archive, 'stops.txt', ['stop_id', 'stop_lat', 'stop_lon'], ['stop_name', 'location_type', 'parent_station'], (row, c) => {
+      const type = intField('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
+      const parent = c.parent_station >= 0 ? row.get(c.parent_station) : '';
+      if (!(type === 1 || (type === 0 && parent === ''))) return;
+      const lat = fieldNumber(row, c.stop_lat);
+      const lon = fieldNumber(row, c.stop_lon);
+      if (lat === null || lon === null || !Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180 || (lat === 0 && lon === 0)) {
+        warnings.add('context-station-no-position', 'context feed stations without a usable position were left out', `${label} stops.txt:${row.line}`);
+        return;
+      }
+      const id = row.get(c.stop_id);
+      stations.push({ id: `${label}:${id}`, name: c.stop_name >= 0 ? row.get(c.stop_name) || id : id, lat, lon });
+    }, warnings);
+    let servicesOnDate: number | null = null;
+    if (date !== undefined) {
+      const calendar: CalendarRow[] = [];
+      const calendarDates: CalendarDate[] = [];
+      if (archive.has('calendar.txt')) {
+        await readTable(archive, 'calendar.txt', ['service_id', ...DAYS, 'start_date', 'end_date'], [], (row, c) => {
+          const days = DAYS.map((d) => intField('calendar.txt', row, c[d], d, 0, 1, 0) === 1) as CalendarRow['days'];
+          const start = checkDate(row.get(c.start_date)) ?? badField('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
+          const end = checkDate(row.get(c.end_date)) ?? badField('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
+          calendar.push({ serviceId: row.get(c.service_id), days, start, end });
+        }, warnings);
+      }
+      if (archive.has('calendar_dates.txt')) {
+        await readTable(archive, 'calendar_dates.txt', ['service_id', 'date', 'exception_type'], [], (row, c) => {
+          const d = checkDate(row.get(c.date)) ?? badField('calendar_dates.txt', row, c.date, 'date', 'a date YYYYMMDD');
+          const e = intField('calendar_dates.txt', row, c.exception_type, 'exception_type', 1, 2, 1);
+          calendarDates.push({ serviceId: row.get(c.service_id), date: d, exceptionType: e as 1 | 2 });
+        }, warnings);
+      }
+      servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
+      if (servicesOnDate === 0) warnings.add('context-no-service', 'context feeds with no service on the analysis date: their stations were still used as transfer points', `${label} on ${date}`);
+    }
+    return { source, label, stations, servicesOnDate };
+  } catch (e) {
+    if (isStopspanError(e)) {
+      const ctx = e.context;
+      throw new StopspanError(e.code, `context feed ${source}: ${e.message}`, { ...ctx, file: ctx.file && ctx.file !== source ? `${label}/${ctx.file}` : ctx.file });
+    }
+    throw e;
+  } finally {
+    await archive?.close();
+  }
+}
