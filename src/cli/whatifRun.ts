@@ -4,7 +4,7 @@
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
+import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../whatif/whatif.js';
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';

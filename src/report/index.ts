@@ -8,3 +8,5 @@ export { indexHtml, pageData, type HtmlOptions } from './html/indexHtml.js';
 export { escapeHtml, jsonForScript } from './html/escape.js';
 export * from './writeReport.js';
 export * from './writeFolder.js';
+export * from './checkText.js';
+export * from './compareRender.js';

@@ -2,7 +2,7 @@
 // scenario's figures per affected pattern and in total, a before/after strip diagram per pattern, the
 // sensitivity, assumptions and cautions. Every piece of feed and scenario text is escaped.
 
-import type { ScenarioPatternEffect, ScenarioResult } from '../audit/whatif.js';
+import type { ScenarioPatternEffect, ScenarioResult } from '../whatif/whatif.js';
 import { escapeHtml as h } from './html/escape.js';
 import { PAGE_STYLE } from './html/pageStyle.js';
 import { checkUnits, formatShortDistance, type Units } from './units.js';

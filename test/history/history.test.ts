@@ -10,7 +10,7 @@ import Database from 'better-sqlite3';
 import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, auditRunRow, lineChartSvg, seriesOf, varies, yRange, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
 import { HISTORY_APPLICATION_ID } from '../../src/history/openHistory.js';
 import { makeSampleResult } from '../report/sampleResult.js';
-import { checkFeed } from '../../src/audit/check.js';
+import { checkFeed } from '../../src/check/check.js';
 import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
 import { ROOT } from '../helpers/cli.js'; // builds dist/ when it is older than the sources
 

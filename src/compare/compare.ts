@@ -5,9 +5,9 @@
 
 import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { AuditResult, Candidate } from './types.js';
+import type { AuditResult, Candidate } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
-import { medianGapM, passengerStopsServed } from './check.js';
+import { medianGapM, passengerStopsServed } from '../check/check.js';
 import { runsOfFrequency } from '../gtfs/frequencies.js';
 import { haversineM } from '../network/geodesy.js';
 

@@ -3,9 +3,9 @@
 import { coordinateFault } from '../../src/gtfs/coordinateFault.js';
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/audit/check.js';
+import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/check/check.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
+import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/check/findings.js';
 import { buildFeed, cleanSpec, street } from '../helpers/buildFeed.js';
 import { StopspanError } from '../../src/common/errors.js';
 
