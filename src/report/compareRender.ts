@@ -3,7 +3,7 @@
 // day that changed per route and pattern as CSV.
 
 import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from '../compare/compare.js';
-import { escapeHtml as esc } from './html/escape.js';
+import { escapeHtml as esc } from '../common/escapeHtml.js';
 import { renderCsv, type CsvColumn } from './csv.js';
 import { terminalText as term } from '../common/terminalText.js';
 const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));

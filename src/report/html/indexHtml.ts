@@ -9,7 +9,7 @@ import { median } from '../../common/median.js';
 import { CAUTIONS } from '../cautions.js';
 import { groupedFixed } from '../numberText.js';
 import { checkUnits, formatShortDistance, type Units } from '../units.js';
-import { escapeHtml as h, jsonForScript } from './escape.js';
+import { escapeHtml as h, jsonForScript } from '../../common/escapeHtml.js';
 import { histogramSvg } from './histogramSvg.js';
 import { PAGE_SCRIPT } from './pageScript.js';
 import { PAGE_STYLE } from './pageStyle.js';
