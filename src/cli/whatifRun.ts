@@ -16,7 +16,25 @@ import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
 import { mergeParams } from './audit.js';
-import type { WhatifOpts } from './whatif.js';
+
+/** The options of `stopspan whatif` as commander hands them over (src/cli/whatif.ts declares them). */
+export interface WhatifOpts {
+  remove?: string[];
+  add?: string[];
+  move?: string[];
+  scenario?: string;
+  date?: string;
+  ridership?: string;
+  observed?: string;
+  params?: string;
+  json?: boolean;
+  out?: string;
+  units?: string;
+  force?: boolean;
+  quiet?: boolean;
+  verbose?: boolean;
+  [k: string]: unknown;
+}
 
 /** The scenario from a file and the command-line options together, checked as one. */
 export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: string[]; scenario?: string }): ScenarioInput {

@@ -7,11 +7,9 @@ import type { Feed, Stop } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
-import { medianGapM, passengerStopsServed } from '../check/check.js';
+import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import { runsOfFrequency } from '../gtfs/frequencies.js';
 import { haversineM } from '../network/geodesy.js';
-
-export { medianGapM };
 
 export interface StopBrief {
   stopId: string;

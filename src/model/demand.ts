@@ -13,7 +13,7 @@
 // O(n) per pattern.
 
 import type { WarningSink } from '../common/warnings.js';
-import type { DemandSource } from '../audit/types.js';
+import type { DemandSource } from './types.js';
 import type { Pattern } from '../network/types.js';
 import type { Ridership } from './ridership.js';
 import { speedFamily } from '../gtfs/routeTypes.js';

@@ -6,7 +6,7 @@
 // naming both; and what the archive said is kept for the reports whether or not it was used.
 
 import type { WarningSink } from '../common/warnings.js';
-import type { LostTimeSource, ObservedFigures, ObservedLostTimePart, SourceLabel } from '../audit/types.js';
+import type { LostTimeSource, ObservedFigures, ObservedLostTimePart, SourceLabel } from './types.js';
 import type { Pattern } from '../network/types.js';
 import type { ObservedPattern } from '../realtime/types.js';
 import { estimateCruiseSpeed, cruiseSpeedBoundsMps } from './cruiseSpeed.js';

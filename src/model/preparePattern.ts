@@ -5,7 +5,7 @@
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { FixedReason, LostTimeSource, ObservedFigures, SourceLabel } from '../audit/types.js';
+import type { FixedReason, LostTimeSource, ObservedFigures, SourceLabel } from './types.js';
 import type { ObservedPattern } from '../realtime/types.js';
 import { Corridor, type CostSettings } from './corridor.js';
 import type { PatternDemand } from './demand.js';

@@ -13,7 +13,7 @@ import type { FeedWarning } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { nearestOnStopLine } from '../network/nearestOnStopLine.js';
-import type { DemandSource, ParamsReport } from '../audit/types.js';
+import type { DemandSource, ParamsReport } from '../model/types.js';
 import { type Corridor, type CostSettings, servedStopCost } from '../model/corridor.js';
 import { paramsReport, type ModelParams } from '../model/params.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';

@@ -3,7 +3,8 @@
 import { coordinateFault } from '../../src/gtfs/coordinateFault.js';
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/check/check.js';
+import { checkFeed, lastServiceDate } from '../../src/check/check.js';
+import { passengerStopsServed } from '../../src/network/patternFigures.js';
 import { haversineM } from '../../src/network/geodesy.js';
 import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/check/findings.js';
 import { buildFeed, cleanSpec, street } from '../helpers/buildFeed.js';
