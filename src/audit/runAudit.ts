@@ -65,7 +65,6 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     if (family !== 'bus' && family !== 'tram') {
       warnings.add(
         'bus-model-off-street',
-        'patterns of subway, rail, ferry or cable routes, audited with the walk-and-ride model built for buses: their stops are spaced for reasons it does not see (track, stations, access by other modes), so read their verdicts and candidates as a screen at most, with parameters of your own',
         `${a.result.patternId} (${family})`,
       );
     }
@@ -73,7 +72,6 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(
         'gap-served-by-local',
-        'gaps above the band that another route serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
         `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`,
       );
     }

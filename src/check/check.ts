@@ -10,6 +10,7 @@ import { defaultParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
 import { median } from '../common/median.js';
+import { WARNINGS, type WarningEntry } from '../common/warningCodes.js';
 import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import {
   FINDINGS,
@@ -64,9 +65,6 @@ export interface CheckOptions {
   /** How the patterns' date was chosen (chooseAnalysisDate); default: the patterns' own date, as asked for. */
   analysis?: AnalysisDay;
 }
-
-// Reader warning codes that mean a row pointing nowhere was dropped or kept without its target.
-const DANGLING_WARNING = /unknown|dangling|orphan|missing-ref|bad-ref|nowhere/i;
 
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
 export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOptions = {}): CheckReport {
@@ -480,7 +478,7 @@ function checkReferences(feed: Feed, add: Add): void {
     }
   }
   for (const w of feed.warnings) {
-    if (!DANGLING_WARNING.test(w.code)) continue;
+    if (!(WARNINGS as Record<string, WarningEntry | undefined>)[w.code]?.check) continue; // the table says which the check counts
     const where = w.examples[0] ?? '';
     const m = /^([^:\s]+\.txt)(?::(\d+))?/.exec(where);
     add(

@@ -524,23 +524,20 @@ function countWidth(row: CsvRow, width: number, stats: CsvStats): void {
 export function reportCsvStats(warnings: WarningSink, file: string, header: string[], stats: CsvTableStats): void {
   const replacedAt = stats.replacedAt;
   if (stats.paddedValues > 0) {
-    const msg = 'values padded with spaces were trimmed';
     const ex = stats.paddedExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
-    warnings.add('padded-values', msg, ex[0], stats.paddedValues);
-    for (const e of ex.slice(1)) warnings.add('padded-values', msg, e, 0); // keep examples, count once
+    warnings.add('padded-values', ex[0], stats.paddedValues);
+    for (const e of ex.slice(1)) warnings.add('padded-values', e, 0); // keep examples, count once
   }
   if (stats.strayQuotes > 0) {
-    const msg = 'quotes inside unquoted values were read as literal characters';
     const ex = stats.strayExamples.map((p) => `${file}:${p.line} column ${header[p.field] ?? p.field + 1}`);
-    warnings.add('stray-quotes', msg, ex[0], stats.strayQuotes);
-    for (const e of ex.slice(1)) warnings.add('stray-quotes', msg, e, 0);
+    warnings.add('stray-quotes', ex[0], stats.strayQuotes);
+    for (const e of ex.slice(1)) warnings.add('stray-quotes', e, 0);
   }
-  if (stats.shortRows > 0) warnings.add('short-rows', 'rows with fewer fields than the header (missing fields read as blank)', file, stats.shortRows);
-  if (stats.longRows > 0) warnings.add('long-rows', 'rows with more fields than the header (extra fields ignored)', file, stats.longRows);
+  if (stats.shortRows > 0) warnings.add('short-rows', file, stats.shortRows);
+  if (stats.longRows > 0) warnings.add('long-rows', file, stats.longRows);
   if (stats.invalidUtf8 > 0) {
-    const msg = 'invalid UTF-8 byte sequences were replaced with U+FFFD';
-    warnings.add('invalid-utf8', msg, replacedAt[0] ?? file, stats.invalidUtf8);
-    for (const e of replacedAt.slice(1)) warnings.add('invalid-utf8', msg, e, 0);
+    warnings.add('invalid-utf8', replacedAt[0] ?? file, stats.invalidUtf8);
+    for (const e of replacedAt.slice(1)) warnings.add('invalid-utf8', e, 0);
   }
 }
 

@@ -102,11 +102,11 @@ class RidershipReader {
     const routeId = routeRaw === '' ? null : routeRaw;
     const stopIdx = feed.stopIndex.get(stopId);
     if (stopIdx === undefined) {
-      warnings.add('ridership-unknown-stop', 'ridership rows naming a stop_id the feed does not have were skipped', `${file}:${line} ${stopId}`);
+      warnings.add('ridership-unknown-stop', `${file}:${line} ${stopId}`);
       return;
     }
     if (routeId !== null && !feed.routes.has(routeId)) {
-      warnings.add('ridership-unknown-route', 'ridership rows naming a route_id the feed does not have were skipped', `${file}:${line} ${routeId}`);
+      warnings.add('ridership-unknown-route', `${file}:${line} ${routeId}`);
       return;
     }
     const key = `${stopId}\u0000${routeId ?? ''}\u0000${directionId ?? ''}`;
