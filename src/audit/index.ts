@@ -6,3 +6,4 @@ export * from './sensitivity.js';
 export * from './runAudit.js';
 export * from './prepareAudit.js';
 export * from './cautions.js';
+export * from './verdictKinds.js';
