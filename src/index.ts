@@ -2,6 +2,7 @@
 export * from './common/errors.js';
 export type * from './common/progress.js';
 export * from './common/warnings.js';
+export * from './common/warningCodes.js';
 export * from './gtfs/index.js';
 export * from './network/index.js';
 export * from './model/index.js';

@@ -12,7 +12,8 @@ import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
-import { CsvTableParser, reportCsvStats, type CsvRow } from '../gtfs/csv.js';
+import { CsvTableParser, reportCsvStats } from '../gtfs/csv.js';
+import type { CsvRow } from '../gtfs/csvCore.js';
 
 export interface RidershipRow {
   stopIdx: number; // index into Feed.stops
