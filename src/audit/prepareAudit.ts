@@ -59,7 +59,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
     const rows = loadRidership(ridership, feed, { warnings });
     observedDemand = ridershipDemand(rows, layouts.filter((l) => l.modelStops.length >= 2), { warnings });
     if (params.mean_trip_length_m !== null) {
-      warnings.add('mean-trip-from-counts', `mean_trip_length_m ${params.mean_trip_length_m} m not used: with a ridership file every pattern's trip lengths come from its counts (its load profile)`);
+      warnings.add('mean-trip-from-counts', undefined, 1, { meanTripLengthM: params.mean_trip_length_m });
     }
   }
 

@@ -77,22 +77,16 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     if (family !== 'bus' && family !== 'tram') {
       warnings.add(
         'bus-model-off-street',
-        'patterns of subway, rail, ferry or cable routes, audited with the walk-and-ride model built for buses: their stops are spaced for reasons it does not see (track, stations, access by other modes), so read their verdicts and candidates as a screen at most, with parameters of your own',
         `${a.result.patternId} (${family})`,
       );
     }
     for (const g of a.gaps) {
       if (g.expressStretch && a.result.optimalSpacingM > 0 && g.gapM > a.result.bandHighM) {
-        warnings.add(
-          'express-stretch',
-          `gaps above the band run non-stop at express speed (${EXPRESS_STRETCH_M} m or more at the route type's typical cruise speed or faster), or on a route typed express or coach: left out of the spacing verdicts, not flagged wide, no stop proposed`,
-          `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`,
-        );
+        warnings.add('express-stretch', `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`, 1, { stretchM: EXPRESS_STRETCH_M });
       }
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
       warnings.add(
         'gap-served-by-local',
-        'gaps above the band that another route or pattern serves with stops of its own between their ends (a limited-stop pattern beside a local): not flagged wide, no stop proposed',
         `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`,
       );
     }

@@ -2,8 +2,8 @@
 // chosen by --fail-on, and optionally one row in a history database.
 
 import type { Command } from 'commander';
-import type { CheckReport } from '../audit/check.js';
-import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../audit/findings.js';
+import type { CheckReport } from '../check/check.js';
+import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily, type ThresholdOptions } from '../check/findings.js';
 import { StopspanError } from '../common/errors.js';
 import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
 import { checkDocument } from '../report/jsonDocuments.js';
@@ -80,7 +80,7 @@ export function registerCheck(program: Command): void {
         const maxExamples = numberOption('--max-examples', o.maxExamples, 0)!;
         const thresholds = thresholdsFromCli(o);
         // the checks load when the command runs, not at every start-up of the CLI
-        const [{ checkFeed }, { checkText }] = await Promise.all([import('../audit/check.js'), import('../audit/checkText.js')]);
+        const [{ checkFeed }, { checkText }] = await Promise.all([import('../check/check.js'), import('../report/checkText.js')]);
         const today = o.today ?? new Date().toISOString().slice(0, 10);
         // the history is opened (and checked to be this tool's) before the feed is read: a bad one fails at once
         const history = o.history ? await import('../history/index.js') : undefined; // only when asked for

@@ -5,7 +5,7 @@ import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
 import type { AuditResult } from '../audit/types.js';
-import type { Comparison } from '../audit/compare.js';
+import type { Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
@@ -56,9 +56,9 @@ export function registerCompare(program: Command): void {
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
         const [{ compareFeeds, comparedPart }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
-          import('../audit/compare.js'),
+          import('../compare/compare.js'),
           import('../audit/runAudit.js'),
-          import('../audit/compareRender.js'),
+          import('../report/compareRender.js'),
           import('../report/writeFolder.js'),
         ]);
         const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params] };

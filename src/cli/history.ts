@@ -40,7 +40,8 @@ export function registerHistory(program: Command): void {
         const { checkOutFolder, writeFolder } = await import('../report/writeFolder.js');
         const outOptions = { force: o.force === true, inputs: [file] };
         if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
-        const { historyHtml, historyText, openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
+        const { openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
+        const [{ historyHtml }, { historyText }] = await Promise.all([import('../report/historyHtml.js'), import('../report/historyText.js')]);
         const db = openHistory(file, { readOnly: true }); // reading changes nothing in the file
         let rows;
         try {

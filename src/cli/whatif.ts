@@ -5,24 +5,7 @@
 import type { Command } from 'commander';
 import { listOption } from './shared.js';
 import { addParamOptions } from './paramOptions.js';
-
-export interface WhatifOpts {
-  remove?: string[];
-  add?: string[];
-  move?: string[];
-  scenario?: string;
-  date?: string;
-  ridership?: string;
-  observed?: string;
-  params?: string;
-  json?: boolean;
-  out?: string;
-  units?: string;
-  force?: boolean;
-  quiet?: boolean;
-  verbose?: boolean;
-  [k: string]: unknown;
-}
+import type { WhatifOpts } from './whatifRun.js';
 
 const collect = (value: string, previous: string[] = []): string[] => previous.concat(value);
 

@@ -4,7 +4,7 @@
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
+import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../whatif/whatif.js';
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
@@ -16,7 +16,25 @@ import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
 import { mergeParams } from './audit.js';
-import type { WhatifOpts } from './whatif.js';
+
+/** The options of `stopspan whatif` as commander hands them over (src/cli/whatif.ts declares them). */
+export interface WhatifOpts {
+  remove?: string[];
+  add?: string[];
+  move?: string[];
+  scenario?: string;
+  date?: string;
+  ridership?: string;
+  observed?: string;
+  params?: string;
+  json?: boolean;
+  out?: string;
+  units?: string;
+  force?: boolean;
+  quiet?: boolean;
+  verbose?: boolean;
+  [k: string]: unknown;
+}
 
 /** The scenario from a file and the command-line options together, checked as one. */
 export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: string[]; scenario?: string }): ScenarioInput {

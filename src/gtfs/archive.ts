@@ -252,7 +252,7 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
     const name = yauzl.getFileNameLowLevel(entry.generalPurposeBitFlag, raw, entry.extraFields, false);
     if (name.endsWith('/')) continue;
     if (yauzl.validateFileName(name) !== null) {
-      warnings?.add('unsafe-zip-path', 'zip entries with an absolute or ../ path were ignored', name);
+      warnings?.add('unsafe-zip-path', name);
       continue;
     }
     named.push({ entry, path: name });

@@ -8,7 +8,9 @@ import path from 'node:path';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import { openFeed, type FeedArchive } from './archive.js';
-import { readCsv, type CsvRow } from './csv.js';
+import { readCsv } from './csv.js';
+import type { CsvRow } from './csvCore.js';
+import { coordinateFault } from './coordinateFault.js';
 import { servicesOn } from './calendar.js';
 import { badField, checkDate, fieldNumber, intField } from './values.js';
 import { missingColumn } from './missingColumn.js';
@@ -73,8 +75,8 @@ export async function readContextFeed(source: string, { date, warnings, label = 
       if (!(type === 1 || (type === 0 && parent === ''))) return;
       const lat = fieldNumber(row, c.stop_lat);
       const lon = fieldNumber(row, c.stop_lon);
-      if (lat === null || lon === null || !Number.isFinite(lat) || !Number.isFinite(lon) || Math.abs(lat) > 90 || Math.abs(lon) > 180 || (lat === 0 && lon === 0)) {
-        warnings.add('context-station-no-position', 'context feed stations without a usable position were left out', `${label} stops.txt:${row.line}`);
+      if (lat === null || lon === null || coordinateFault(lat, lon) !== '') {
+        warnings.add('context-station-no-position', `${label} stops.txt:${row.line}`);
         return;
       }
       const id = row.get(c.stop_id);
@@ -100,7 +102,7 @@ export async function readContextFeed(source: string, { date, warnings, label = 
         }, warnings);
       }
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
-      if (servicesOnDate === 0) warnings.add('context-no-service', 'context feeds with no service on the analysis date: their stations were still used as transfer points', `${label} on ${date}`);
+      if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);
     }
     return { source, label, stations, servicesOnDate };
   } catch (e) {

@@ -11,7 +11,8 @@ import { WarningSink } from '../common/warnings.js';
 import type { Readable } from 'node:stream';
 import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
-import { readCsv, type CsvGroupKey, type CsvRow } from './csv.js';
+import { readCsv, type CsvGroupKey } from './csv.js';
+import type { CsvRow } from './csvCore.js';
 import type { DownloadLimits } from './download.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
@@ -103,7 +104,7 @@ async function table<R extends string, O extends string>(
   const optional = !REQUIRED_TABLES.includes(file);
   // an optional table with no header (zero bytes, or only a byte-order mark or blank lines) reads as absent
   const absent = (): void => {
-    ctx.warnings.add('empty-table', 'optional tables with no header (zero bytes, or only a byte-order mark or blank lines) were read as absent', file);
+    ctx.warnings.add('empty-table', file);
     ctx.rowCounts[file] = 0;
   };
   if (total === 0 && optional) return absent();
@@ -204,7 +205,7 @@ async function readArchive(
     const id = need('routes.txt', row, c.route_id, 'route_id');
     const type = intIn('routes.txt', row, c.route_type, 'route_type', 0, 1702, -1);
     if (type < 0) bad('routes.txt', row, c.route_type, 'route_type', 'a route type');
-    if (routes.has(id)) return warnings.add('duplicate-route-id', 'repeated route_id rows ignored (first kept)', `routes.txt:${row.line}`);
+    if (routes.has(id)) return warnings.add('duplicate-route-id', `routes.txt:${row.line}`);
     routes.set(id, { id, agencyId: row.get(c.agency_id), shortName: row.get(c.route_short_name), longName: row.get(c.route_long_name), type });
   });
 
@@ -230,7 +231,7 @@ async function readArchive(
         value: row.get(i),
       });
     }
-    if (stopIndex.has(id)) return warnings.add('duplicate-stop-id', 'repeated stop_id rows ignored (first kept)', `stops.txt:${row.line}`);
+    if (stopIndex.has(id)) return warnings.add('duplicate-stop-id', `stops.txt:${row.line}`);
     stopIndex.set(id, stops.length);
     stops.push({ id, code: row.get(c.stop_code), name: row.get(c.stop_name), lat, lon, locationType, parentStation: row.get(c.parent_station) });
   });
@@ -246,7 +247,7 @@ async function readArchive(
       });
       const start = checkDate(row.get(c.start_date)) ?? bad('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
       const end = checkDate(row.get(c.end_date)) ?? bad('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
-      if (end < start) warnings.add('calendar-end-before-start', 'calendar.txt rows whose end_date is before their start_date (the service runs on no date they cover)', `calendar.txt:${row.line}`);
+      if (end < start) warnings.add('calendar-end-before-start', `calendar.txt:${row.line}`);
       calendar.push({ serviceId: need('calendar.txt', row, c.service_id, 'service_id'), days, start, end });
     });
   }
@@ -299,9 +300,9 @@ async function readArchive(
     if (routeId !== routeBefore && !routes.has(routeId)) {
       lastRoute.v = '\0';
       unknownRoute++;
-      return warnings.add('trip-unknown-route', 'trips whose route_id is not in routes.txt were dropped', `trips.txt:${row.line} route_id ${routeId}`);
+      return warnings.add('trip-unknown-route', `trips.txt:${row.line} route_id ${routeId}`);
     }
-    if (tripRow.has(id)) return warnings.add('duplicate-trip-id', 'repeated trip_id rows ignored (first kept)', `trips.txt:${row.line}`);
+    if (tripRow.has(id)) return warnings.add('duplicate-trip-id', `trips.txt:${row.line}`);
     tripRow.set(id, tripId.length);
     tripId.push(id);
     tripDirection.push(intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1));
@@ -326,7 +327,7 @@ async function readArchive(
       const headwayS = intIn('frequencies.txt', row, c.headway_secs, 'headway_secs', 1, 1e9, -1);
       if (headwayS < 0) bad('frequencies.txt', row, c.headway_secs, 'headway_secs', 'a positive integer');
       const exactTimes = intIn('frequencies.txt', row, c.exact_times, 'exact_times', 0, 1, 0) as 0 | 1;
-      if (endS <= startS) warnings.add('frequency-empty-window', 'frequencies rows whose end_time is not after start_time run no trips', `frequencies.txt:${row.line}`);
+      if (endS <= startS) warnings.add('frequency-empty-window', `frequencies.txt:${row.line}`);
       frequencies.push({ tripId: row.get(c.trip_id), startS, endS, headwayS, exactTimes });
     });
   }
@@ -374,14 +375,14 @@ async function readArchive(
   if (kept.length === 0) throw new StopspanError('empty-feed', 'the feed has no trips', { file: 'trips.txt' });
   // blank optional fields the later stages lean on
   const noDirection = kept.filter((t) => t.directionId < 0);
-  if (noDirection.length > 0) warnings.add('blank-direction-id', 'trips with a blank direction_id (patterns are keyed on route and stops alone)', noDirection[0].id, noDirection.length);
+  if (noDirection.length > 0) warnings.add('blank-direction-id', noDirection[0].id, noDirection.length);
   const known = new Set([...calendar.map((c) => c.serviceId), ...calendarDates.map((d) => d.serviceId)]);
   const noService = candidates.filter((k) => !known.has(tripService[k]));
-  if (noService.length > 0) warnings.add('trip-unknown-service', 'trips whose service_id is in neither calendar.txt nor calendar_dates.txt (they never run)', tripId[noService[0]], noService.length);
+  if (noService.length > 0) warnings.add('trip-unknown-service', tripId[noService[0]], noService.length);
   const tripIdx = new Map<string, number>();
   kept.forEach((t, k) => tripIdx.set(t.id, k));
   const noShape = kept.filter((t) => t.shapeId === '').length;
-  if (noShape > 0) warnings.add('trip-without-shape', 'trips without a shape_id (distances fall back to stop positions)', kept.find((t) => t.shapeId === '')!.id, noShape);
+  if (noShape > 0) warnings.add('trip-without-shape', kept.find((t) => t.shapeId === '')!.id, noShape);
 
   // stop_times.txt, kept trips only, each trip folded into a shared profile as its run of rows ends
   const folder = new TripFolder(kept.length);
@@ -395,8 +396,8 @@ async function readArchive(
   const reader = new StopTimesRowReader(lookup, folder);
   await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => reader.read(row, c), { column: 'trip_id', keep: (id) => reader.startTrip(id) });
   folder.finish();
-  if (reader.atStation > 0) warnings.add('stop-time-at-station', 'stop_times that reference a station (location_type 1) instead of a stop', F, reader.atStation);
-  if (folder.scattered) warnings.add('stop-times-not-grouped', "stop_times.txt rows are not grouped by trip: each trip's rows were gathered from the whole table (more memory)", F);
+  if (reader.atStation > 0) warnings.add('stop-time-at-station', F, reader.atStation);
+  if (folder.scattered) warnings.add('stop-times-not-grouped', F);
   const stopTimes = new StopTimesStore(
     kept.map((t) => t.id),
     tripIdx,
@@ -418,9 +419,9 @@ async function readArchive(
       if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
     }
     const repeated = folder.repeated + reader.repeated;
-    if (repeated > 0) warnings.add('repeated-stop-sequence', 'stop_times rows repeating a stop_sequence within a trip were dropped', F, repeated);
-    if (noTimes > 0) warnings.add('trip-end-without-time', 'trips whose first or last stop has no time', F, noTimes);
-    if (noRows > 0) warnings.add('trip-without-stop-times', 'kept trips with no stop_times rows were dropped', F, noRows);
+    if (repeated > 0) warnings.add('repeated-stop-sequence', F, repeated);
+    if (noTimes > 0) warnings.add('trip-end-without-time', F, noTimes);
+    if (noRows > 0) warnings.add('trip-without-stop-times', F, noRows);
   }
   const trips = new Map<string, Trip>();
   for (const t of kept) if (stopTimes.has(t.id)) trips.set(t.id, t);
@@ -485,7 +486,7 @@ async function readArchive(
     }
   }
   const missingShapes = shapeIds.filter((id) => !shapes.has(id));
-  if (missingShapes.length > 0) warnings.add('shape-not-found', 'shape_id used by trips but absent from shapes.txt', missingShapes[0], missingShapes.length);
+  if (missingShapes.length > 0) warnings.add('shape-not-found', missingShapes[0], missingShapes.length);
 
   onProgress?.({ stage: 'hash feed' });
   const contentHash = await hashing;

@@ -3,7 +3,7 @@
 // reader (a big city has millions of these rows), so it makes no string it does not need.
 
 import { StopspanError } from '../common/errors.js';
-import type { CsvRow } from './csv.js';
+import type { CsvRow } from './csvCore.js';
 import { badField, BLANK, fieldNumber, fieldTimeS, fieldUint, intField, MALFORMED, TIME_EXPECTED } from './values.js';
 
 export const STOP_TIMES_FILE = 'stop_times.txt';

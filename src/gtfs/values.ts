@@ -6,7 +6,7 @@
 
 import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
-import type { CsvRow } from './csv.js';
+import type { CsvRow } from './csvCore.js';
 
 export const BLANK = -1;
 export const MALFORMED = -2;

@@ -1,6 +1,6 @@
 // Turns a check report or an audit result into the history row of its run.
 
-import type { CheckReport } from '../audit/check.js';
+import type { CheckReport } from '../check/check.js';
 import type { AuditResult } from '../audit/types.js';
 import type { RunRow } from './recordRun.js';
 

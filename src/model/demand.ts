@@ -13,7 +13,7 @@
 // O(n) per pattern.
 
 import type { WarningSink } from '../common/warnings.js';
-import type { DemandSource } from '../audit/types.js';
+import type { DemandSource } from './types.js';
 import type { Pattern } from '../network/types.js';
 import type { Ridership } from './ridership.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
@@ -206,7 +206,7 @@ export function ridershipDemand(
       return (row.routeId === null || pat.routeId === row.routeId) && (row.directionId === null || pat.directionId === row.directionId);
     });
     if (occ.length === 0) {
-      warnings.add('ridership-unserved-stop', 'ridership rows for a stop no pattern (of the named route) serves on the analysis date were not used', `${ridership.file}:${row.line} ${row.stopId}`);
+      warnings.add('ridership-unserved-stop', `${ridership.file}:${row.line} ${row.stopId}`);
       continue;
     }
     used.add(row.stopIdx);
@@ -219,7 +219,7 @@ export function ridershipDemand(
   }
   let missing = 0;
   for (const s of at.keys()) if (!used.has(s)) missing++;
-  if (missing > 0) warnings.add('ridership-stop-missing', 'stops served by a pattern but absent from the ridership file were given zero boardings and alightings', undefined, missing);
+  if (missing > 0) warnings.add('ridership-stop-missing', undefined, missing);
   const out = new Map<string, PatternDemand>();
   patterns.forEach(({ pattern, posM }, p) => {
     const b = board[p];
@@ -228,10 +228,10 @@ export function ridershipDemand(
     const sumA = a.reduce((s, x) => s + x, 0);
     if (sumB > 0 && sumA > 0) {
       const scale = sumB / sumA;
-      if (Math.abs(scale - 1) > 0.01) warnings.add('ridership-unbalanced', 'patterns whose boardings and alightings differ by more than 1 %: alightings were scaled to match boardings', `${pattern.id} x${scale.toFixed(3)}`);
+      if (Math.abs(scale - 1) > 0.01) warnings.add('ridership-unbalanced', `${pattern.id} x${scale.toFixed(3)}`);
       for (let j = 0; j < a.length; j++) a[j] *= scale;
     } else if (sumB > 0 || sumA > 0) {
-      warnings.add('ridership-one-sided', 'patterns with boardings but no alightings (or the reverse) in the ridership file: the load profile cannot be built, demand set to zero', pattern.id);
+      warnings.add('ridership-one-sided', pattern.id);
       b.fill(0);
       a.fill(0);
     }

@@ -1,4 +1,5 @@
 // The model stage: re-exports only.
+export type * from './types.js';
 export * from './params.js';
 export * from './lostTime.js';
 export * from './stopping.js';

@@ -6,7 +6,7 @@
 // naming both; and what the archive said is kept for the reports whether or not it was used.
 
 import type { WarningSink } from '../common/warnings.js';
-import type { LostTimeSource, ObservedFigures, ObservedLostTimePart, SourceLabel } from '../audit/types.js';
+import type { LostTimeSource, ObservedFigures, ObservedLostTimePart, SourceLabel } from './types.js';
 import type { Pattern } from '../network/types.js';
 import type { ObservedPattern } from '../realtime/types.js';
 import { estimateCruiseSpeed, cruiseSpeedBoundsMps } from './cruiseSpeed.js';
@@ -43,19 +43,11 @@ export function chooseStopping(
     return { stoppingModel: 'observed', observedShare: modelStops.map((j) => observed.stopShare[j] ?? fill) };
   }
   if (params.stopping_model === 'observed') {
-    warnings.add(
-      'no-observed-stopping',
-      `stopping_model=observed but no observed stop shares for the pattern: ${withoutArchive === 'always' ? 'every stop served (demand assumed)' : 'Poisson on the counted demand'} used`,
-      patternId,
-    );
+    warnings.add('no-observed-stopping', patternId, 1, { used: withoutArchive === 'always' ? 'every stop served (demand assumed)' : 'Poisson on the counted demand' });
     return { stoppingModel: withoutArchive, observedShare: undefined };
   }
   if (hasShares) {
-    warnings.add(
-      'observed-overridden-stopping-model',
-      `stopping_model set explicitly (${params.stopping_model}) wins over the stop shares observed in the realtime archive (observed_stop_share in patterns.csv)`,
-      patternId,
-    );
+    warnings.add('observed-overridden-stopping-model', patternId, 1, { set: params.stopping_model });
   }
   return { stoppingModel: params.stopping_model === 'auto' ? withoutArchive : params.stopping_model, observedShare: undefined };
 }
@@ -77,12 +69,8 @@ export interface RunningInputs {
 const fmt = (x: number): string => String(Math.round(x * 100) / 100);
 
 /** The one warning per overridden input, its message naming the value set; examples name pattern and observed value. */
-function overridden(warnings: WarningSink, name: ParamName, setText: string, what: string, patternId: string, observedText: string): void {
-  warnings.add(
-    `observed-overridden-${name.replace(/_/g, '-')}`,
-    `${name} set explicitly (${setText}) wins over the ${what} observed in the realtime archive; the observed value per pattern is in patterns.csv`,
-    `${patternId}: set ${setText}, observed ${observedText}`,
-  );
+function overridden(warnings: WarningSink, code: 'observed-overridden-door-time-s' | 'observed-overridden-cruise-speed-mps', setText: string, patternId: string, observedText: string): void {
+  warnings.add(code, `${patternId}: set ${setText}, observed ${observedText}`, 1, { set: setText });
 }
 
 /**
@@ -105,7 +93,7 @@ export function chooseRunningInputs(
   // door time: the fixed part of the observed dwells, unless the user set one
   let doorTimeS = params.door_time_s;
   if (obsDoor !== null) {
-    if (given.has('door_time_s')) overridden(warnings, 'door_time_s', `${fmt(params.door_time_s)} s`, 'door time (fixed part of dwell)', pattern.id, `${fmt(obsDoor)} s`);
+    if (given.has('door_time_s')) overridden(warnings, 'observed-overridden-door-time-s', `${fmt(params.door_time_s)} s`, pattern.id, `${fmt(obsDoor)} s`);
     else {
       doorTimeS = obsDoor;
       parts.push('door_time');
@@ -120,7 +108,7 @@ export function chooseRunningInputs(
   if (params.cruise_speed_mps !== null) {
     cruiseSpeedMps = params.cruise_speed_mps;
     cruiseSpeedSource = 'user';
-    if (obsV !== null) overridden(warnings, 'cruise_speed_mps', `${fmt(params.cruise_speed_mps)} m/s`, 'cruise speed', pattern.id, `${fmt(obsV)} m/s`);
+    if (obsV !== null) overridden(warnings, 'observed-overridden-cruise-speed-mps', `${fmt(params.cruise_speed_mps)} m/s`, pattern.id, `${fmt(obsV)} m/s`);
   } else if (obsV !== null) {
     cruiseSpeedMps = obsV;
     cruiseSpeedSource = 'observed';
@@ -133,7 +121,6 @@ export function chooseRunningInputs(
       const { maxMps } = cruiseSpeedBoundsMps(routeType);
       warnings.add(
         'schedule-too-fast',
-        "patterns whose schedule is faster than any plausible cruise speed explains, given the stops served, boarding and braking: the route type's typical cruise speed is used (not the highest, which would make the loss per stop largest where the schedule says it is smallest); `stopspan check` reports these schedules as implausible-speed",
         `${pattern.id}: ${Number.isFinite(est.solvedMps) ? `needs ${fmt(est.solvedMps)} m/s` : 'no cruise speed keeps to it'}, highest plausible ${fmt(maxMps)}, used ${fmt(est.cruiseSpeedMps)}`,
       );
     }
@@ -150,11 +137,7 @@ export function chooseRunningInputs(
       parts.push('stop_loss');
     } else if (setTerms.length > 0) {
       const setText = setTerms.map((n) => `${n}=${fmt(params[n] as number)}`).join(', ');
-      warnings.add(
-        'observed-overridden-stop-loss',
-        `parameters set explicitly (${setText}) win over the braking, accelerating and re-entry loss per stop observed in the realtime archive; the observed value per pattern is in patterns.csv`,
-        `${pattern.id}: set ${fmt(kinematicLossS)} s, observed ${fmt(obsLoss)} s`,
-      );
+      warnings.add('observed-overridden-stop-loss', `${pattern.id}: set ${fmt(kinematicLossS)} s, observed ${fmt(obsLoss)} s`, 1, { set: setText });
     }
   }
 

@@ -5,7 +5,7 @@
 import { parseDecimal } from '../common/decimal.js';
 import { readJsonFile } from '../common/readJsonFile.js';
 import { StopspanError } from '../common/errors.js';
-import type { ParamsReport, SourceLabel } from '../audit/types.js';
+import type { ParamsReport, SourceLabel } from './types.js';
 
 export type StoppingModel = 'always' | 'poisson' | 'observed';
 /** The parameter's values: a model, or auto (chosen per pattern by the data it has). */

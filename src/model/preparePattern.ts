@@ -5,7 +5,7 @@
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { FixedReason, LostTimeSource, ObservedFigures, SourceLabel } from '../audit/types.js';
+import type { FixedReason, LostTimeSource, ObservedFigures, SourceLabel } from './types.js';
 import type { ObservedPattern } from '../realtime/types.js';
 import { Corridor, type CostSettings } from './corridor.js';
 import type { PatternDemand } from './demand.js';
@@ -64,7 +64,7 @@ export function preparePattern(
   const modelStops: number[] = [];
   for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
   if (modelStops.length < 2) {
-    warnings.add('pattern-too-short', 'patterns with fewer than two passenger stops were left out of the model', pattern.id);
+    warnings.add('pattern-too-short', pattern.id);
     return null;
   }
   const posM = modelStops.map((j) => pattern.distAlongM[j]);
@@ -76,7 +76,6 @@ export function preparePattern(
   if (demand.tooShortForTrip) {
     warnings.add(
       'pattern-short-for-trip',
-      'patterns too short to hold the mean trip length asked for (typical for the route type, or mean_trip_length_m): riders\' trips were spread over what fits, origins and destinations uniform, a mean of about a third of the pattern',
       `${pattern.id} ${Math.round(demand.meanTripLengthM)} m of ${Math.round(demand.askedTripLengthM ?? 0)} m`,
     );
   }
@@ -105,7 +104,7 @@ export function preparePattern(
   let timepoints = 0;
   for (let m = 1; m + 1 < n; m++) if (pattern.timepoint[modelStops[m]]) timepoints++;
   const timepointsInformative = timepoints <= 0.5 * Math.max(1, n - 2);
-  if (!timepointsInformative) warnings.add('timepoints-not-forced', 'patterns marking most stops as timepoints (or with no timepoint column): timepoints were not treated as fixed', pattern.id);
+  if (!timepointsInformative) warnings.add('timepoints-not-forced', pattern.id);
   for (let m = 0; m < n; m++) {
     const j = modelStops[m];
     const stopIdx = pattern.stopIdx[j];

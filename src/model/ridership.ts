@@ -12,7 +12,8 @@ import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
-import { CsvTableParser, reportCsvStats, type CsvRow } from '../gtfs/csv.js';
+import { CsvTableParser, reportCsvStats } from '../gtfs/csv.js';
+import type { CsvRow } from '../gtfs/csvCore.js';
 
 export interface RidershipRow {
   stopIdx: number; // index into Feed.stops
@@ -102,11 +103,11 @@ class RidershipReader {
     const routeId = routeRaw === '' ? null : routeRaw;
     const stopIdx = feed.stopIndex.get(stopId);
     if (stopIdx === undefined) {
-      warnings.add('ridership-unknown-stop', 'ridership rows naming a stop_id the feed does not have were skipped', `${file}:${line} ${stopId}`);
+      warnings.add('ridership-unknown-stop', `${file}:${line} ${stopId}`);
       return;
     }
     if (routeId !== null && !feed.routes.has(routeId)) {
-      warnings.add('ridership-unknown-route', 'ridership rows naming a route_id the feed does not have were skipped', `${file}:${line} ${routeId}`);
+      warnings.add('ridership-unknown-route', `${file}:${line} ${routeId}`);
       return;
     }
     const key = `${stopId}\u0000${routeId ?? ''}\u0000${directionId ?? ''}`;

@@ -91,7 +91,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     if (routeSet && !routeSet.has(trip.routeId)) continue;
     const tp = profiles.profile(tripId) as TripProfile;
     if (tp.profile.stopIdx.length < 2) {
-      warnings.add('trip-too-short', 'trip with fewer than two stop_times left out of the patterns', tripId);
+      warnings.add('trip-too-short', tripId);
       continue;
     }
     // profiles with the same stop list share its number: a compact, exact key
@@ -150,7 +150,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       const sid = feed.trips.get(t)!.shapeId;
       if (sid === '') continue;
       if (!feed.shapes.has(sid)) {
-        warnings.add('unknown-shape', 'trip names a shape_id that shapes.txt lacks; straight lines used', `${t} shape_id ${sid}`);
+        warnings.add('unknown-shape', `${t} shape_id ${sid}`);
         continue;
       }
       counts.set(sid, (counts.get(sid) ?? 0) + (instances.get(t) as TripInstances).count);
@@ -165,7 +165,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
         if (ps.lengthM >= MIN_SHAPE_LENGTH_M) prepared.set(shapeId, ps);
         else {
           flatShapes.add(shapeId);
-          warnings.add('shape-zero-length', 'shapes whose points all lie at one place (no length); straight lines used', shapeId);
+          warnings.add('shape-zero-length', shapeId);
         }
       }
     }
@@ -186,9 +186,9 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   const shapeMetresPerUnit = new Map<string, number | null>(); // per shape: metres per unit, null = do not use
   if (unitFit) {
     if (unitFit.unit === 'scale') {
-      warnings.add('shape-dist-unit-unknown', `shape_dist_traveled matches no known unit; read as ${unitFit.metresPerUnit.toPrecision(4)} m per unit`);
+      warnings.add('shape-dist-unit-unknown', undefined, 1, { metresPerUnit: unitFit.metresPerUnit.toPrecision(4) });
     } else if (unitFit.poorFit) {
-      warnings.add('shape-dist-unit-poor-fit', `shape_dist_traveled read as ${unitFit.unit}, but shapes are ${(unitFit.misfit * 100).toFixed(1)} % off that on the median`);
+      warnings.add('shape-dist-unit-poor-fit', undefined, 1, { unit: unitFit.unit, misfitPct: (unitFit.misfit * 100).toFixed(1) });
     }
     for (const [sid, r] of shapeRatio) {
       if (Math.abs(Math.log(r / unitFit.metresPerUnit)) <= Math.log(1.1)) {
@@ -200,10 +200,10 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       const own = inferShapeDistUnit([{ distRange: 1, lengthM: r }]);
       if (own && own.unit !== 'scale' && !own.poorFit) {
         shapeMetresPerUnit.set(sid, own.metresPerUnit);
-        warnings.add('shape-dist-unit-per-shape', `shapes whose shape_dist_traveled is in another unit than the feed's ${unitFit.unit}; read in the unit their length fits`, `${sid} in ${own.unit}`);
+        warnings.add('shape-dist-unit-per-shape', `${sid} in ${own.unit}`, 1, { unit: unitFit.unit });
       } else {
         shapeMetresPerUnit.set(sid, null);
-        warnings.add('shape-dist-mismatch', 'shape whose shape_dist_traveled range is more than 10 % off its geometric length; measured by projection', sid);
+        warnings.add('shape-dist-mismatch', sid);
       }
     }
   }
@@ -258,7 +258,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
           if (bt >= 0) {
             usable = false;
             backtracks.push({ patternId: d.id, tripId: t, stopIndex: bt });
-            warnings.add('distance-backtrack', 'shape_dist_traveled decreases along a trip; the pattern is measured by projection instead', `${t} stop ${bt}`);
+            warnings.add('distance-backtrack', `${t} stop ${bt}`);
           }
         });
         const metres = usable ? shapeDistToMetres(rep.shapeDist, metresPerUnit) : null;
@@ -266,13 +266,13 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
           distAlongM = metres;
           distanceSource = 'shape_dist_traveled';
         } else if (usable && Number.isFinite(distRange(rep.shapeDist))) {
-          warnings.add('partial-shape-dist', 'trip with shape_dist_traveled on some stops only; the pattern is measured by projection', repTripId);
+          warnings.add('partial-shape-dist', repTripId);
         }
       }
       path = simplifyPath(ps.lat, ps.lon, { toleranceM: pathToleranceM });
     } else {
       distanceSource = 'great_circle';
-      warnings.add('pattern-without-shape', 'pattern without a usable shape; distances are straight lines between stops', d.id);
+      warnings.add('pattern-without-shape', d.id);
       distAlongM = [0];
       for (let i = 1; i < stops.length; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
       if (good.length < n) distAlongM = placeBetween(distAlongM, good, n);
@@ -334,12 +334,11 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   }
   if (faultyStops.size > 0) {
     const ids = [...faultyStops].map((k) => feed.stops[k].id);
-    const msg = 'stops whose coordinates are zero, out of range or near a pole; left out of distances (placed between their neighbours)';
-    warnings.add('stop-coordinate-fault', msg, ids[0], ids.length);
-    for (const id of ids.slice(1, 5)) warnings.add('stop-coordinate-fault', msg, id, 0);
+    warnings.add('stop-coordinate-fault', ids[0], ids.length);
+    for (const id of ids.slice(1, 5)) warnings.add('stop-coordinate-fault', id, 0);
   }
   if (projectionFallbacks > 0) {
-    warnings.add('projection-fallback', 'stops with no close match on their shape near the previous stop; the rest of the shape was searched', undefined, projectionFallbacks);
+    warnings.add('projection-fallback', undefined, projectionFallbacks);
   }
   const set: PatternSet = { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
   if (!givenSink) set.warnings = warnings.list();

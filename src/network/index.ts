@@ -6,3 +6,4 @@ export * from './shapeDistUnit.js';
 export * from './simplifyPath.js';
 export * from './scheduledTimes.js';
 export * from './buildPatterns.js';
+export * from './patternFigures.js';

@@ -40,7 +40,7 @@ export function scheduledTimes(
 
 /** The warning for a trip left out of the scheduled times: no time at its first or last stop. */
 export function warnUntimedTrip(warnings: WarningSink, tripId: string | undefined): void {
-  warnings.add('untimed-trip-end', 'trip whose first or last stop has no time; its run times are left out', tripId);
+  warnings.add('untimed-trip-end', tripId);
 }
 
 /**

@@ -236,18 +236,18 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
         header = scanHeader(buf);
       } catch (e) {
         stats.snapshotsSkipped++;
-        warnings.add('realtime-undecodable', 'realtime file is truncated, not protobuf or too large; skipped', `${ref.name}: ${(e as Error).message}`);
+        warnings.add('realtime-undecodable', `${ref.name}: ${(e as Error).message}`);
         continue;
       }
       if (header.incrementality === transit_realtime.FeedHeader.Incrementality.DIFFERENTIAL) {
         stats.snapshotsSkipped++;
-        warnings.add('realtime-differential', 'DIFFERENTIAL snapshot is unsupported by the GTFS-Realtime spec; skipped', ref.name);
+        warnings.add('realtime-differential', ref.name);
         continue;
       }
       const ts = toNumber(header.timestamp);
       if (!(ts > 0)) {
         stats.snapshotsSkipped++;
-        warnings.add('realtime-no-timestamp', 'snapshot has no header timestamp, so it cannot be ordered; skipped', ref.name);
+        warnings.add('realtime-no-timestamp', ref.name);
         continue;
       }
       if (ts < lastTs) nameOrderBroken++;
@@ -255,7 +255,7 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
       indexed.push({ ref, timestampS: ts, order: order++ });
     }
     if (nameOrderBroken > 0) {
-      warnings.add('realtime-reordered', 'snapshot files were not in timestamp order; read in header.timestamp order', undefined, nameOrderBroken);
+      warnings.add('realtime-reordered', undefined, nameOrderBroken);
     }
     indexed.sort((a, b) => a.timestampS - b.timestampS || a.order - b.order);
     let done = 0;
@@ -267,7 +267,7 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
         message = transit_realtime.FeedMessage.decode(buf);
       } catch (e) {
         stats.snapshotsSkipped++;
-        warnings.add('realtime-undecodable', 'realtime file is truncated, not protobuf or too large; skipped', `${it.ref.name}: ${(e as Error).message}`);
+        warnings.add('realtime-undecodable', `${it.ref.name}: ${(e as Error).message}`);
         continue;
       }
       stats.snapshotsRead++;

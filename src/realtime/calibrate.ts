@@ -7,6 +7,7 @@ import { StopspanError } from '../common/errors.js';
 import { median } from '../common/median.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
+import type { WarningCode } from '../common/warningCodes.js';
 import type { Feed, Frequency, TripStopTimes } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import { longToNumber, readArchive, type ArchiveStats } from './archive.js';
@@ -116,7 +117,7 @@ export async function observeArchive(
     timeZone = '';
   }
   if (!timeZone) {
-    warnings.add('realtime-no-timezone', 'agency_timezone missing or unknown; service days taken in UTC', feed.agencies[0]?.timezone ?? '');
+    warnings.add('realtime-no-timezone', feed.agencies[0]?.timezone ?? '');
     timeZone = 'UTC';
   }
 
@@ -134,7 +135,7 @@ export async function observeArchive(
       const trip = feed.trips.get(tripId);
       if (!st || !trip) continue;
       if (st.stopIdx.length !== p.stopIdx.length || st.stopIdx.some((s, i) => s !== p.stopIdx[i])) {
-        warnings.add('realtime-pattern-mismatch', "trip's stop list differs from its pattern's; trip not used", tripId);
+        warnings.add('realtime-pattern-mismatch', tripId);
         continue;
       }
       tripInfo.set(tripId, {
@@ -156,10 +157,10 @@ export async function observeArchive(
   let firstS = Infinity;
   let lastS = -Infinity;
 
-  function unmatchedTrip(key: string, code: string, message: string): null {
+  function unmatchedTrip(key: string, code: WarningCode): null {
     if (!unmatched.has(key)) {
       unmatched.add(key);
-      warnings.add(code, message, key);
+      warnings.add(code, key);
     }
     return null;
   }
@@ -167,7 +168,7 @@ export async function observeArchive(
   function instanceFor(td: ITripDescriptor, atS: number): Instance | null {
     const tripId = td.tripId ?? '';
     if (!tripId) {
-      warnings.add('realtime-trip-without-id', 'trip descriptor without trip_id; skipped');
+      warnings.add('realtime-trip-without-id');
       return null;
     }
     const rel = td.scheduleRelationship ?? rt.TripDescriptor.ScheduleRelationship.SCHEDULED;
@@ -176,28 +177,28 @@ export async function observeArchive(
     const startTime = td.startTime ?? '';
     const rawKey = `${tripId}|${startDate}|${startTime}`;
     if (rel === rt.TripDescriptor.ScheduleRelationship.ADDED) {
-      return unmatchedTrip(rawKey, 'realtime-trip-added', 'ADDED trip has no static pattern; not used');
+      return unmatchedTrip(rawKey, 'realtime-trip-added');
     }
     const info = tripInfo.get(tripId);
     if (!info) {
       return feed.trips.has(tripId)
-        ? unmatchedTrip(rawKey, 'realtime-trip-not-in-patterns', 'trip is in the static feed but in no analysed pattern; not used')
-        : unmatchedTrip(rawKey, 'realtime-trip-unknown', 'trip_id not in the static feed; not used');
+        ? unmatchedTrip(rawKey, 'realtime-trip-not-in-patterns')
+        : unmatchedTrip(rawKey, 'realtime-trip-unknown');
     }
     // frequency-based trips: start_time picks the instance and shifts the schedule
     let shiftS = 0;
     if (info.freqs.length > 0) {
       const t0 = parseGtfsTime(startTime);
-      if (t0 === null) return unmatchedTrip(rawKey, 'realtime-frequency-no-start-time', 'frequency-based trip without a valid start_time; not used');
+      if (t0 === null) return unmatchedTrip(rawKey, 'realtime-frequency-no-start-time');
       const fits = info.freqs.some((f) => t0 >= f.startS && t0 < f.endS && (f.exactTimes === 0 || (t0 - f.startS) % f.headwayS === 0));
-      if (!fits) return unmatchedTrip(rawKey, 'realtime-frequency-start-mismatch', "start_time fits none of the trip's frequencies; not used");
+      if (!fits) return unmatchedTrip(rawKey, 'realtime-frequency-start-mismatch');
       shiftS = t0 - firstTime(info.st);
     }
     let date = startDate;
     if (date) {
-      if (!/^\d{8}$/.test(date)) return unmatchedTrip(rawKey, 'realtime-bad-start-date', 'start_date is not YYYYMMDD; not used');
+      if (!/^\d{8}$/.test(date)) return unmatchedTrip(rawKey, 'realtime-bad-start-date');
       if (!serviceRunsOn(info.serviceId, date, feed.calendar, feed.calendarDates)) {
-        return unmatchedTrip(rawKey, 'realtime-date-mismatch', "trip's service does not run on its start_date; not used");
+        return unmatchedTrip(rawKey, 'realtime-date-mismatch');
       }
     } else {
       const today = localDate(atS, timeZone);
@@ -210,7 +211,7 @@ export async function observeArchive(
           break;
         }
       }
-      if (!date) return unmatchedTrip(rawKey, 'realtime-date-unknown', 'no start_date and no service day fits the snapshot time; not used');
+      if (!date) return unmatchedTrip(rawKey, 'realtime-date-unknown');
     }
     const key = `${tripId}|${date}|${info.freqs.length > 0 ? startTime : ''}`;
     let inst = instances.get(key);
@@ -244,7 +245,7 @@ export async function observeArchive(
     }
     if (withTrip > 0 && known === 0) {
       otherFeedSnapshots++;
-      warnings.add('realtime-other-feed', 'no trip of the snapshot is in the static feed (another feed version?); snapshot skipped', snap.name);
+      warnings.add('realtime-other-feed', snap.name);
       continue;
     }
     firstS = Math.min(firstS, snap.timestampS);
@@ -253,34 +254,34 @@ export async function observeArchive(
       const tu = e.tripUpdate;
       if (tu) {
         if (!tu.trip) {
-          warnings.add('realtime-trip-without-id', 'trip descriptor without trip_id; skipped', e.id);
+          warnings.add('realtime-trip-without-id', e.id);
           continue;
         }
         const inst = instanceFor(tu.trip, snap.timestampS);
         if (!inst) continue;
         const atS = longToNumber(tu.timestamp as never) || snap.timestampS;
         if (atS < inst.state.lastTripUpdateS) {
-          warnings.add('realtime-out-of-order', 'report older than one already read for the same trip; skipped', `${tu.trip.tripId}@${atS}`);
+          warnings.add('realtime-out-of-order', `${tu.trip.tripId}@${atS}`);
           continue;
         }
         if (atS === inst.state.lastTripUpdateS) continue; // the same report repeated in the next snapshot
         const events = resolveStopTimeUpdates(tu.stopTimeUpdate ?? [], inst.sched, inst.originS);
         if (events.unplaced > 0) {
-          warnings.add('realtime-update-unplaced', "StopTimeUpdate matches no stop of the trip; skipped", tu.trip.tripId ?? '', events.unplaced);
+          warnings.add('realtime-update-unplaced', tu.trip.tripId ?? '', events.unplaced);
         }
         observeTripUpdate(inst.state, events, atS);
       }
       const vp = e.vehicle;
       if (vp) {
         if (!vp.trip || !vp.trip.tripId) {
-          warnings.add('realtime-vehicle-without-trip', 'vehicle position without a trip; skipped', vp.vehicle?.id ?? e.id);
+          warnings.add('realtime-vehicle-without-trip', vp.vehicle?.id ?? e.id);
           continue;
         }
         const inst = instanceFor(vp.trip, snap.timestampS);
         if (!inst) continue;
         const atS = longToNumber(vp.timestamp as never) || snap.timestampS;
         if (atS < inst.state.lastVehicleS) {
-          warnings.add('realtime-out-of-order', 'report older than one already read for the same trip; skipped', `${vp.trip.tripId}@${atS}`);
+          warnings.add('realtime-out-of-order', `${vp.trip.tripId}@${atS}`);
           continue;
         }
         if (atS === inst.state.lastVehicleS) continue;
@@ -292,7 +293,7 @@ export async function observeArchive(
           for (let i = Math.max(inst.state.prevPos, 0); i < n && pos < 0; i++) if (inst.sched.stopIds[i] === vp.stopId) pos = i;
         }
         if (pos < 0) {
-          warnings.add('realtime-vehicle-unplaced', 'vehicle position names no stop of its trip; skipped', vp.trip.tripId);
+          warnings.add('realtime-vehicle-unplaced', vp.trip.tripId);
           continue;
         }
         const stopped = vp.currentStatus === rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
@@ -377,25 +378,15 @@ export async function observeArchive(
     }
   }
   if (implausible > 0) {
-    warnings.add('realtime-implausible-run-time', `observed gap run time not positive or faster than ${maxGapSpeedMps} m/s; dropped`, undefined, implausible);
+    warnings.add('realtime-implausible-run-time', undefined, implausible, { maxMps: maxGapSpeedMps });
   }
 
   if (predictedOnly > 0) {
-    warnings.add(
-      'realtime-predicted-only',
-      measuredOnly
-        ? 'arrival or departure last reported while still in the future (a prediction); not used'
-        : 'arrival or departure last reported while still in the future (a prediction); used as measured, as asked',
-      undefined,
-      predictedOnly,
-    );
+    warnings.add('realtime-predicted-only', undefined, predictedOnly, { use: measuredOnly ? 'not used' : 'used as measured, as asked' });
   }
   const meanVpIntervalS = vpIntervals > 0 ? vpIntervalSumS / vpIntervals : NaN;
   if (vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
-    warnings.add(
-      'realtime-coarse-polling',
-      `${vpDwells} of ${vpDwells + tuDwells} dwells come from VehiclePositions about ${Math.round(meanVpIntervalS)} s apart: dwells shorter than that can be missed, so those dwells lean long`,
-    );
+    warnings.add('realtime-coarse-polling', undefined, 1, { fromVp: vpDwells, all: vpDwells + tuDwells, intervalS: Math.round(meanVpIntervalS) });
   }
   let unidentified = 0;
   const byPattern = new Map<string, ObservedPattern>();
@@ -405,7 +396,7 @@ export async function observeArchive(
     const allDwells = agg.dwells.flat();
     const solved = agg.fit.solve();
     if (!solved && agg.fit.count > 0) {
-      warnings.add('realtime-fit-failed', 'observed run times do not determine cruise speed and stop loss (the observed dwell and door time are still used); left unset', p.id);
+      warnings.add('realtime-fit-failed', p.id);
     }
     // a fit whose stop loss is negative (buses quicker over gaps where they stop) explains nothing: both
     // its cruise speed and its stop loss are dropped, not the loss alone
@@ -413,7 +404,6 @@ export async function observeArchive(
     if (solved && !fit) {
       warnings.add(
         'realtime-fit-rejected',
-        'observed run times fit with a negative loss per stop served: the fit is rejected whole, cruise speed and stop loss left unset (the observed dwell and door time are still used)',
         `${p.id}: ${solved.cruiseSpeedMps.toFixed(2)} m/s, ${solved.lossPerStopS.toFixed(2)} s`,
       );
     }
@@ -443,12 +433,7 @@ export async function observeArchive(
   }
 
   if (unidentified > 0) {
-    warnings.add(
-      'realtime-share-unidentified',
-      `stopping share left unset at ${unidentified} stops: vehicles were seen before and after them too far apart (over ${passMaxGapS} s) to tell a pass from a short dwell`,
-      undefined,
-      unidentified,
-    );
+    warnings.add('realtime-share-unidentified', undefined, unidentified, { stops: unidentified, passMaxGapS });
   }
   return {
     source: archivePath,

@@ -2,8 +2,8 @@
 // and the error document of a failed --json run: snake_case keys, a schema_version and the tool in each,
 // each described by a JSON Schema in schema/ (check, compare, history, error .schema.json).
 
-import type { CheckReport } from '../audit/check.js';
-import type { Comparison } from '../audit/compare.js';
+import type { CheckReport } from '../check/check.js';
+import type { Comparison } from '../compare/compare.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
 import type { RunRecord } from '../history/readHistory.js';
 import { version } from '../version.js';

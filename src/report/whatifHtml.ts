@@ -2,8 +2,8 @@
 // scenario's figures per affected pattern and in total, a before/after strip diagram per pattern, the
 // sensitivity, assumptions and cautions. Every piece of feed and scenario text is escaped.
 
-import type { ScenarioPatternEffect, ScenarioResult } from '../audit/whatif.js';
-import { escapeHtml as h } from './html/escape.js';
+import type { ScenarioPatternEffect, ScenarioResult } from '../whatif/whatif.js';
+import { escapeHtml as h } from '../common/escapeHtml.js';
 import { PAGE_STYLE } from './html/pageStyle.js';
 import { checkUnits, formatShortDistance, type Units } from './units.js';
 import type { StripStop, WhatifStrip } from './whatifStrips.js';

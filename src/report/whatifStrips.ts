@@ -6,7 +6,7 @@
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet, Pattern } from '../network/types.js';
 import { nearestOnStopLine } from '../network/nearestOnStopLine.js';
-import { SNAP_LIMIT_M, type ScenarioInput, type ScenarioResult } from '../audit/whatif.js';
+import { SNAP_LIMIT_M, type ScenarioInput, type ScenarioResult } from '../whatif/whatif.js';
 
 export type StripChange = 'kept' | 'removed' | 'moved' | 'added';
 

@@ -4,7 +4,7 @@
 // cannot move the cursor, break lines or reorder them.
 
 import { terminalText as safe } from '../common/terminalText.js';
-import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../audit/whatif.js';
+import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals } from '../whatif/whatif.js';
 import { groupedFixed } from './numberText.js';
 import { checkUnits, metresToFeet, type Units } from './units.js';
 

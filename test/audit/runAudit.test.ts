@@ -9,7 +9,7 @@ import { runAudit } from '../../src/audit/runAudit.js';
 import { bandRatios } from '../../src/model/band.js';
 import type { ObservedData } from '../../src/realtime/types.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
-import { checkFeed } from '../../src/audit/check.js';
+import { checkFeed } from '../../src/check/check.js';
 import { brakingAcceleratingS } from '../../src/model/lostTime.js';
 import type { ObservedPattern } from '../../src/realtime/types.js';
 

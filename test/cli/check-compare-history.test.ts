@@ -10,7 +10,7 @@ import { ROOT, runCli } from '../helpers/cli.js';
 import { checkExitCode } from '../../src/cli/check.js';
 import { compareExitCode } from '../../src/cli/compare.js';
 import { cpSync } from 'node:fs';
-import type { Finding } from '../../src/audit/check.js';
+import type { Finding } from '../../src/check/check.js';
 
 const FIX = join(ROOT, 'fixtures/check');
 const TODAY = '2026-10-14';

@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { numberOption } from '../../src/cli/feedInput.js';
 import { paramOverrides } from '../../src/cli/paramOptions.js';
-import { parseScenario } from '../../src/audit/whatif.js';
+import { parseScenario } from '../../src/whatif/whatif.js';
 import { normalizeParams } from '../../src/model/params.js';
 import { thrown } from '../helpers/errors.js';
 

@@ -13,7 +13,8 @@ import { describe, expect, it } from 'vitest';
 import { StopspanError } from '../../src/common/errors.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { openFeed } from '../../src/gtfs/archive.js';
-import { MAX_FIELD_CHARS, parseCsv, readCsv, type CsvRow } from '../../src/gtfs/csv.js';
+import { parseCsv, readCsv } from '../../src/gtfs/csv.js';
+import { MAX_FIELD_CHARS, type CsvRow } from '../../src/gtfs/csvCore.js';
 import { thrown, rejected } from '../helpers/errors.js';
 
 // csv-parse options that state the same rules: BOM dropped, values trimmed outside quotes, blank lines

@@ -7,10 +7,12 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { spawn, spawnSync } from 'node:child_process';
 import Database from 'better-sqlite3';
-import { openHistory, recordRun, readHistory, historyHtml, historyText, checkRunRow, auditRunRow, lineChartSvg, seriesOf, varies, yRange, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
+import { openHistory, recordRun, readHistory, checkRunRow, auditRunRow, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
+import { historyHtml, lineChartSvg, seriesOf, varies, yRange } from '../../src/report/historyHtml.js';
+import { historyText } from '../../src/report/historyText.js';
 import { HISTORY_APPLICATION_ID } from '../../src/history/openHistory.js';
 import { makeSampleResult } from '../report/sampleResult.js';
-import { checkFeed } from '../../src/audit/check.js';
+import { checkFeed } from '../../src/check/check.js';
 import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
 import { ROOT } from '../helpers/cli.js'; // builds dist/ when it is older than the sources
 

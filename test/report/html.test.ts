@@ -5,7 +5,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { CAUTIONS } from '../../src/report/cautions.js';
-import { escapeHtml, jsonForScript } from '../../src/report/html/escape.js';
+import { escapeHtml, jsonForScript } from '../../src/common/escapeHtml.js';
 import { histogramSvg } from '../../src/report/html/histogramSvg.js';
 import { indexHtml } from '../../src/report/html/indexHtml.js';
 import { HOSTILE_NAMES, makeEmptyResult, makeSampleResult } from './sampleResult.js';

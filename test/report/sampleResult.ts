@@ -11,8 +11,8 @@ import type {
   PatternResult,
   StopResult,
   Verdict,
-  FixedReason,
 } from '../../src/audit/types.js';
+import type { FixedReason } from '../../src/model/types.js';
 
 export const HOSTILE_NAMES = {
   img: '<img src=x onerror=alert(1)>',

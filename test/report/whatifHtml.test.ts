@@ -6,7 +6,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync, mkdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { evaluateScenario } from '../../src/audit/whatif.js';
+import { evaluateScenario } from '../../src/whatif/whatif.js';
 import { CAUTIONS } from '../../src/audit/cautions.js';
 import { CAUTIONS as REPORT_CAUTIONS } from '../../src/report/cautions.js';
 import { whatifHtml } from '../../src/report/whatifHtml.js';

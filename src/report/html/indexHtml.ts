@@ -9,9 +9,10 @@ import { median } from '../../common/median.js';
 import { CAUTIONS } from '../cautions.js';
 import { groupedFixed } from '../numberText.js';
 import { checkUnits, formatShortDistance, type Units } from '../units.js';
-import { escapeHtml as h, jsonForScript } from './escape.js';
+import { escapeHtml as h, jsonForScript } from '../../common/escapeHtml.js';
 import { histogramSvg } from './histogramSvg.js';
 import { PAGE_SCRIPT } from './pageScript.js';
+import { VERDICTS } from '../../audit/verdictKinds.js';
 import { PAGE_STYLE } from './pageStyle.js';
 
 export interface HtmlOptions {
@@ -19,7 +20,6 @@ export interface HtmlOptions {
   maxPathPoints?: number; // per pattern map; longer paths are thinned (the map is schematic)
 }
 
-const VERDICT_LETTER: Record<StopResult['verdict'], string> = { close: 'C', wide: 'W', ok: 'O', fixed: 'F' };
 const SOURCE_TEXT: Record<string, string> = {
   C: 'confirmed in a named publication',
   S: 'secondary source',
@@ -99,7 +99,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
         r5(s.stopLat),
         r5(s.stopLon),
         r1(s.distAlongM),
-        VERDICT_LETTER[s.verdict],
+        VERDICTS[s.verdict].letter,
         s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
         s.timepoint ? 1 : 0,
         r1(s.removalNetPaxMinPerDay),

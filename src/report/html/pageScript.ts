@@ -2,6 +2,15 @@
 // curve with a pattern chooser, sortable and filterable tables, per-pattern strip diagrams and
 // schematic maps rendered only when their <details> is opened). Feed text is only ever set through
 // textContent or setAttribute, never parsed as markup. Plain ES2020, no template literals, no network.
+// The verdicts' letters and legend come from the verdict table (src/audit/verdictKinds.ts).
+
+import type { Verdict } from '../../audit/types.js';
+import { VERDICTS, type VerdictKind } from '../../audit/verdictKinds.js';
+
+const kinds = Object.entries(VERDICTS) as [Verdict, VerdictKind][];
+/** The verdict of each letter, and the legend's rows, written into the script from the verdict table. */
+const verdictTextJs = `{ ${kinds.map(([v, k]) => `${k.letter}: '${v}'`).join(', ')} }`;
+const legendJs = `[${kinds.map(([, k]) => `['${k.letter}', '${k.legend}']`).join(', ')}]`;
 
 export const PAGE_SCRIPT = String.raw`
 (function () {
@@ -9,7 +18,7 @@ export const PAGE_SCRIPT = String.raw`
   var D = JSON.parse(document.getElementById('report-data').textContent);
   var SVGNS = 'http://www.w3.org/2000/svg';
   var IMP = D.units === 'imperial';
-  var VERDICT_TEXT = { C: 'close', W: 'wide', O: 'ok', F: 'fixed' };
+  var VERDICT_TEXT = ${verdictTextJs};
 
   function el(tag, attrs, text) {
     var e = document.createElement(tag);
@@ -65,7 +74,7 @@ export const PAGE_SCRIPT = String.raw`
   }
   function legend() {
     var box = el('div', { 'class': 'legend' });
-    [['C', 'close stop (below the band): triangle'], ['W', 'next to a wide gap: diamond'], ['O', 'within the band: open circle'], ['F', 'fixed (terminal, timepoint, transfer point, station nearby or kept): square']].forEach(function (it) {
+    ${legendJs}.forEach(function (it) {
       var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
       s.appendChild(marker(it[0], 8, 8, 6));
       var span = el('span');

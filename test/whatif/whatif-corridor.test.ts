@@ -2,7 +2,7 @@
 // stop removed), checked against hand computation: the walk added per trip end a*b/(a+b) = 75 m, the ride
 // saving N*P*p with p worked out by hand from the lost-time expression, and the bus time saved.
 import { describe, expect, it } from 'vitest';
-import { evaluateScenario } from '../../src/audit/whatif.js';
+import { evaluateScenario } from '../../src/whatif/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
 

@@ -9,8 +9,8 @@ import { parse } from 'csv-parse/sync';
 import geodesicPkg from 'geographiclib-geodesic';
 import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
-import { compareFeeds } from '../../src/audit/compare.js';
-import { checkFeed } from '../../src/audit/check.js';
+import { compareFeeds } from '../../src/compare/compare.js';
+import { checkFeed } from '../../src/check/check.js';
 import { compareExitCode } from '../../src/cli/compare.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');

@@ -2,9 +2,9 @@
 // self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped), and the trips a
 // day that changed per route and pattern as CSV.
 
-import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from './compare.js';
-import { escapeHtml as esc } from '../report/html/escape.js';
-import { renderCsv, type CsvColumn } from '../report/csv.js';
+import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from '../compare/compare.js';
+import { escapeHtml as esc } from '../common/escapeHtml.js';
+import { renderCsv, type CsvColumn } from './csv.js';
 import { terminalText as term } from '../common/terminalText.js';
 const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));
 const n0 = (v: number | null): string => (v === null ? '-' : Math.round(v).toString());

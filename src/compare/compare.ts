@@ -5,13 +5,11 @@
 
 import type { Feed, Stop, TripStopTimes } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { AuditResult, Candidate } from './types.js';
+import type { AuditResult, Candidate } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
-import { medianGapM, passengerStopsServed } from './check.js';
+import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import { runsOfFrequency } from '../gtfs/frequencies.js';
 import { haversineM } from '../network/geodesy.js';
-
-export { medianGapM };
 
 export interface StopBrief {
   stopId: string;

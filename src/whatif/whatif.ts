@@ -13,12 +13,12 @@ import type { FeedWarning } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import { nearestOnStopLine } from '../network/nearestOnStopLine.js';
-import type { DemandSource, ParamsReport } from './types.js';
+import type { DemandSource, ParamsReport } from '../model/types.js';
 import { type Corridor, type CostSettings, servedStopCost } from '../model/corridor.js';
 import { paramsReport, type ModelParams } from '../model/params.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
-import { prepareAudit, type PrepareAuditOptions } from './prepareAudit.js';
-import { CAUTIONS } from './cautions.js';
+import { prepareAudit, type PrepareAuditOptions } from '../audit/prepareAudit.js';
+import { CAUTIONS } from '../audit/cautions.js';
 
 /** A scenario as written in a scenario file (every key optional; unknown keys are refused). */
 export interface ScenarioInput {

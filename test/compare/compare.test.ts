@@ -1,6 +1,7 @@
 // compareFeeds on hand-built Vellmoor feeds: stop and pattern changes, spacing before and after.
 import { describe, expect, it } from 'vitest';
-import { comparedPart, compareFeeds, lcsMatch, medianGapM } from '../../src/audit/compare.js';
+import { comparedPart, compareFeeds, lcsMatch } from '../../src/compare/compare.js';
+import { medianGapM } from '../../src/network/patternFigures.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from '../helpers/buildFeed.js';
 import type { AuditResult, Candidate } from '../../src/audit/types.js';
 

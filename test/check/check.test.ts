@@ -3,9 +3,11 @@
 import { coordinateFault } from '../../src/gtfs/coordinateFault.js';
 import { describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { checkFeed, lastServiceDate, passengerStopsServed } from '../../src/audit/check.js';
+import { checkFeed, lastServiceDate } from '../../src/check/check.js';
+import { passengerStopsServed } from '../../src/network/patternFigures.js';
+import { WARNINGS } from '../../src/common/warningCodes.js';
 import { haversineM } from '../../src/network/geodesy.js';
-import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/audit/findings.js';
+import { FINDINGS, FINDING_CODES, normaliseThresholds, speedFamily } from '../../src/check/findings.js';
 import { buildFeed, cleanSpec, street } from '../helpers/buildFeed.js';
 import { StopspanError } from '../../src/common/errors.js';
 
@@ -214,11 +216,12 @@ describe('checkFeed', () => {
     const spec = cleanSpec();
     spec.stops[0].parentStation = 'NO-SUCH-STATION';
     spec.trips.push({ id: 'T2', shapeId: 'NO-SHAPE', serviceId: 'NO-SERVICE', times: spec.trips[0].times });
-    spec.warnings = [{ code: 'unknown-route', message: 'trips with an unknown route_id were dropped', count: 4, examples: ['trips.txt:7 column route_id'] }];
+    // the reader's own code for trips dropped for their route (the warning table marks it as counted by check)
+    spec.warnings = [{ code: 'trip-unknown-route', message: WARNINGS['trip-unknown-route'].explanation, count: 4, examples: ['trips.txt:7 route_id R9'] }];
     const r = run(spec);
     expect(r.counts['dangling-reference']).toBe(1 + 2 + 4);
     const ex = r.findings.find((f) => f.code === 'dangling-reference')!.examples;
-    expect(ex.find((e) => e.ids.warning === 'unknown-route')).toMatchObject({ file: 'trips.txt', line: 7 });
+    expect(ex.find((e) => e.ids.warning === 'trip-unknown-route')).toMatchObject({ file: 'trips.txt', line: 7 });
   });
 
   it('keeps at most maxExamples examples but counts them all', () => {

@@ -6,7 +6,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
 import { runAudit } from '../../src/audit/runAudit.js';
-import { evaluateScenario, type ScenarioResult } from '../../src/audit/whatif.js';
+import { evaluateScenario, type ScenarioResult } from '../../src/whatif/whatif.js';
 import type { AuditResult } from '../../src/audit/types.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');

@@ -1,9 +1,9 @@
 // The text and HTML renderings of check reports and comparisons keep feed text inert.
 import { describe, expect, it } from 'vitest';
-import { checkFeed } from '../../src/audit/check.js';
-import { checkText } from '../../src/audit/checkText.js';
-import { compareFeeds } from '../../src/audit/compare.js';
-import { comparisonHtml, comparisonText } from '../../src/audit/compareRender.js';
+import { checkFeed } from '../../src/check/check.js';
+import { checkText } from '../../src/report/checkText.js';
+import { compareFeeds } from '../../src/compare/compare.js';
+import { comparisonHtml, comparisonText } from '../../src/report/compareRender.js';
 import { buildFeed, cleanSpec } from '../helpers/buildFeed.js';
 
 describe('renderers', () => {

@@ -2,8 +2,8 @@
 // the runs shown, x placed by run date, y spanning the values (from zero only when zero is near), one line
 // per feed; then the table of runs. No scripts, no network; every piece of feed text is escaped.
 
-import { escapeHtml } from '../report/html/escape.js';
-import { feedKey, ranChecks, type RunRecord } from './readHistory.js';
+import { escapeHtml } from '../common/escapeHtml.js';
+import { feedKey, ranChecks, type RunRecord } from '../history/readHistory.js';
 
 /** One figure over the runs: a value per run, null where the run did not measure it. */
 export interface Series {

@@ -10,6 +10,8 @@ import { defaultParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
 import { median } from '../common/median.js';
+import { WARNINGS, type WarningEntry } from '../common/warningCodes.js';
+import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import {
   FINDINGS,
   FINDING_CODES,
@@ -63,9 +65,6 @@ export interface CheckOptions {
   /** How the patterns' date was chosen (chooseAnalysisDate); default: the patterns' own date, as asked for. */
   analysis?: AnalysisDay;
 }
-
-// Reader warning codes that mean a row pointing nowhere was dropped or kept without its target.
-const DANGLING_WARNING = /unknown|dangling|orphan|missing-ref|bad-ref|nowhere/i;
 
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
 export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOptions = {}): CheckReport {
@@ -144,16 +143,6 @@ function networkFigures(set: PatternSet): CheckReport['network'] {
   let trips = 0;
   for (const p of set.patterns) trips += p.tripsPerDay;
   return { date: set.date, patterns: set.patterns.length, stopsServed: passengerStopsServed(set), tripsPerDay: trips, medianGapM: medianGapM(set) };
-}
-
-/**
- * Stops served: distinct stops where some pattern takes on or lets off riders (non-passenger timing points
- * left out), the audit's count of stops. One definition for check, compare and the history.
- */
-export function passengerStopsServed(set: PatternSet): number {
-  const served = new Set<number>();
-  for (const p of set.patterns) for (let i = 0; i < p.stopIdx.length; i++) if (p.passengerStop[i] !== false) served.add(p.stopIdx[i]);
-  return served.size;
 }
 
 type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
@@ -489,7 +478,7 @@ function checkReferences(feed: Feed, add: Add): void {
     }
   }
   for (const w of feed.warnings) {
-    if (!DANGLING_WARNING.test(w.code)) continue;
+    if (!(WARNINGS as Record<string, WarningEntry | undefined>)[w.code]?.check) continue; // the table says which the check counts
     const where = w.examples[0] ?? '';
     const m = /^([^:\s]+\.txt)(?::(\d+))?/.exec(where);
     add(
@@ -498,21 +487,4 @@ function checkReferences(feed: Feed, add: Add): void {
       w.count,
     );
   }
-}
-
-/** Median of the gaps between consecutive passenger stops over every pattern, metres. */
-export function medianGapM(set: PatternSet): number | null {
-  const gaps: number[] = [];
-  for (const p of set.patterns) {
-    let prev = -1;
-    for (let i = 0; i < p.stopIdx.length; i++) {
-      if (p.passengerStop[i] === false) continue;
-      if (prev >= 0) gaps.push(p.distAlongM[i] - p.distAlongM[prev]);
-      prev = i;
-    }
-  }
-  if (gaps.length === 0) return null;
-  gaps.sort((a, b) => a - b);
-  const m = gaps.length >> 1;
-  return gaps.length % 2 ? gaps[m] : (gaps[m - 1] + gaps[m]) / 2;
 }

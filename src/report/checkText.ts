@@ -1,7 +1,7 @@
 // The check report as plain text for people: one block per finding, most severe first, then a summary line.
 
 import { terminalText as oneLine } from '../common/terminalText.js';
-import type { CheckReport } from './check.js';
+import type { CheckReport } from '../check/check.js';
 
 export function checkText(report: CheckReport): string {
   const lines: string[] = [];

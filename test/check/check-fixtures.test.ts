@@ -6,8 +6,8 @@ import { readdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { buildPatterns } from '../../src/network/index.js';
 import { readFeed } from '../../src/gtfs/index.js';
-import { checkFeed } from '../../src/audit/check.js';
-import { FINDING_CODES, type FindingCode } from '../../src/audit/findings.js';
+import { checkFeed } from '../../src/check/check.js';
+import { FINDING_CODES, type FindingCode } from '../../src/check/findings.js';
 import { StopspanError } from '../../src/common/errors.js';
 import type { PatternSet } from '../../src/network/types.js';
 

@@ -1,6 +1,6 @@
 // The history as a plain-text table for the terminal: one line per run, newest last.
 
-import { feedKey, ranChecks, type RunRecord } from './readHistory.js';
+import { feedKey, ranChecks, type RunRecord } from '../history/readHistory.js';
 import { terminalText as shown } from '../common/terminalText.js';
 
 const num = (v: number | null, digits = 0): string => (v === null ? '-' : v.toFixed(digits));

@@ -2,7 +2,7 @@
 // added and the ride saved of one removal against hand computation, agreement with the audit's removal
 // figure, the mirror case of an addition, and the scenario errors.
 import { describe, expect, it } from 'vitest';
-import { evaluateScenario, parseScenario, scenarioFromOptions } from '../../src/audit/whatif.js';
+import { evaluateScenario, parseScenario, scenarioFromOptions } from '../../src/whatif/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
 import { thrown } from '../helpers/errors.js';
