@@ -8,6 +8,7 @@
 
 import { parseDecimal } from '../common/decimal.js';
 import { readJsonFile } from '../common/readJsonFile.js';
+import { nearestNames } from '../common/editDistance.js';
 import { StopspanError } from '../common/errors.js';
 import type { FeedWarning } from '../common/warnings.js';
 import type { Feed } from '../gtfs/types.js';
@@ -22,9 +23,31 @@ import { CAUTIONS } from './cautions.js';
 
 /** A scenario as written in a scenario file (every key optional; unknown keys are refused). */
 export interface ScenarioInput {
-  remove?: (string | { stop: string; routes?: string[] })[];
+  remove?: (string | ({ stop: string } & StopFilter))[];
   add?: { lat: number; lon: number; route?: string; name?: string }[];
-  move?: { stop: string; lat: number; lon: number }[];
+  move?: ({ stop: string; lat: number; lon: number } & StopFilter)[];
+}
+
+/**
+ * Which patterns a stop named in a scenario is meant on: routes (route_id or short name), a direction_id,
+ * a headsign; both_directions takes every stop of that name the filter leaves (the kerb on each side).
+ */
+export interface StopFilter {
+  patterns?: string[]; // pattern ids, as the audit names them (a plan drops a stop on some patterns only)
+  routes?: string[];
+  direction?: number;
+  headsign?: string;
+  both_directions?: boolean;
+}
+
+/** One stop a scenario changes on one pattern, and the gap it leaves against the walking policy. */
+export interface StopChange {
+  action: 'remove' | 'move' | 'add';
+  stopId: string; // '' for an added stop
+  stopName: string;
+  gapsBeforeM: number[]; // the spacing around the place today (a removed stop's two gaps, or the gap a new stop splits)
+  gapsAfterM: number[]; // the spacing around it after the change
+  overPolicy: boolean; // a gap after the change is above max_gap_m and longer than any gap there before
 }
 
 /** How far (metres) an added or moved stop may lie from the pattern's line of stops. */
@@ -38,8 +61,12 @@ export interface ScenarioPatternEffect {
   removedStopIds: string[];
   movedStopIds: string[];
   addedCount: number;
+  changes: StopChange[];
   ridersAffectedPerDay: number; // riders whose stop changes
-  walkAddedPaxMinPerDay: number;
+  walkAddedMinPerDay: number; // real minutes walked further, summed over riders (not weighted)
+  walkAddedPaxMinPerDay: number; // the same weighted by walk_weight (as every pax-min figure)
+  walkAddedPerRiderM: number; // walked further per rider whose stop changes, metres (0 when none walks further)
+  walkAddedPerRiderS: number;
   walkSavedPaxMinPerDay: number;
   rideSavedPaxMinPerDay: number; // riders on board, at the stops no longer served (minus new stops' delay)
   neighboursExtraPaxMinPerDay: number; // change in delay at the stops kept (their stopping changes)
@@ -52,7 +79,7 @@ export interface ScenarioPatternEffect {
   coverageAfter: number;
 }
 
-export type ScenarioTotals = Omit<ScenarioPatternEffect, 'patternId' | 'routeId' | 'tripsPerDay' | 'demandSource' | 'removedStopIds' | 'movedStopIds' | 'addedCount' | 'coverageBefore' | 'coverageAfter'> & { patternsAffected: number; overPolicyAfter: number };
+export type ScenarioTotals = Omit<ScenarioPatternEffect, 'patternId' | 'routeId' | 'tripsPerDay' | 'demandSource' | 'removedStopIds' | 'movedStopIds' | 'addedCount' | 'changes' | 'coverageBefore' | 'coverageAfter'> & { patternsAffected: number; overPolicyAfter: number };
 
 export interface ScenarioSensitivity {
   label: string;
@@ -62,6 +89,9 @@ export interface ScenarioSensitivity {
 
 export interface ScenarioResult {
   date: string;
+  walkWeight: number; // the weight on walking time in every pax-min figure
+  walkSpeedMps: number;
+  maxGapM: number; // the walking policy's largest gap
   patterns: ScenarioPatternEffect[];
   totals: ScenarioTotals;
   sensitivity: ScenarioSensitivity[];
@@ -96,6 +126,35 @@ function latLon(lat: unknown, lon: unknown, where: string, file?: string): { lat
   return { lat: la, lon: lo };
 }
 
+const FILTER_KEYS = ['patterns', 'routes', 'direction', 'headsign', 'both_directions'];
+
+/** The filter keys of a remove or move item, checked; only the keys given are returned. */
+function parseFilter(r: Record<string, unknown>, where: string, file?: string): StopFilter {
+  const out: StopFilter = {};
+  if (r.routes !== undefined) {
+    if (!Array.isArray(r.routes) || r.routes.some((x) => typeof x !== 'string')) throw bad(`invalid scenario ${where}.routes: expected a list of route ids`, JSON.stringify(r.routes), file);
+    out.routes = r.routes as string[];
+  }
+  if (r.patterns !== undefined) {
+    if (!Array.isArray(r.patterns) || r.patterns.some((x) => typeof x !== 'string')) throw bad(`invalid scenario ${where}.patterns: expected a list of pattern ids`, JSON.stringify(r.patterns), file);
+    out.patterns = r.patterns as string[];
+  }
+  if (r.direction !== undefined) {
+    const d = typeof r.direction === 'string' ? Number(r.direction) : r.direction;
+    if (d !== 0 && d !== 1) throw bad(`invalid scenario ${where}.direction: expected direction_id 0 or 1`, JSON.stringify(r.direction), file);
+    out.direction = d;
+  }
+  if (r.headsign !== undefined) {
+    if (typeof r.headsign !== 'string' || r.headsign.trim() === '') throw bad(`invalid scenario ${where}.headsign: expected text`, JSON.stringify(r.headsign), file);
+    out.headsign = r.headsign;
+  }
+  if (r.both_directions !== undefined) {
+    if (typeof r.both_directions !== 'boolean') throw bad(`invalid scenario ${where}.both_directions: expected true or false`, JSON.stringify(r.both_directions), file);
+    out.both_directions = r.both_directions;
+  }
+  return out;
+}
+
 /** Checks a scenario object (from a file or built from options); unknown keys are errors. */
 export function parseScenario(input: unknown, { file }: { file?: string } = {}): ScenarioInput {
   if (!isObject(input)) throw bad('invalid scenario: expected an object with remove, add and/or move', undefined, file);
@@ -106,10 +165,9 @@ export function parseScenario(input: unknown, { file }: { file?: string } = {}):
     out.remove = input.remove.map((r, i) => {
       if (typeof r === 'string') return r;
       if (!isObject(r)) throw bad(`invalid scenario remove[${i}]: expected a stop id or {stop, routes}`, JSON.stringify(r), file);
-      for (const k of Object.keys(r)) if (k !== 'stop' && k !== 'routes') throw bad(`invalid scenario key remove[${i}].${k}: expected stop or routes`, k, file);
+      for (const k of Object.keys(r)) if (k !== 'stop' && !FILTER_KEYS.includes(k)) throw bad(`invalid scenario key remove[${i}].${k}: expected stop, ${FILTER_KEYS.join(', ')}`, k, file);
       if (typeof r.stop !== 'string' || r.stop === '') throw bad(`invalid scenario remove[${i}].stop: expected a stop id or name`, JSON.stringify(r.stop), file);
-      if (r.routes !== undefined && (!Array.isArray(r.routes) || r.routes.some((x) => typeof x !== 'string'))) throw bad(`invalid scenario remove[${i}].routes: expected a list of route ids`, JSON.stringify(r.routes), file);
-      return { stop: r.stop, routes: r.routes as string[] | undefined };
+      return { stop: r.stop, ...parseFilter(r, `remove[${i}]`, file) };
     });
   }
   if (input.add !== undefined) {
@@ -126,9 +184,9 @@ export function parseScenario(input: unknown, { file }: { file?: string } = {}):
     if (!Array.isArray(input.move)) throw bad('invalid scenario move: expected a list', undefined, file);
     out.move = input.move.map((m, i) => {
       if (!isObject(m)) throw bad(`invalid scenario move[${i}]: expected {stop, lat, lon}`, JSON.stringify(m), file);
-      for (const k of Object.keys(m)) if (!['stop', 'lat', 'lon'].includes(k)) throw bad(`invalid scenario key move[${i}].${k}: expected stop, lat or lon`, k, file);
+      for (const k of Object.keys(m)) if (!['stop', 'lat', 'lon', ...FILTER_KEYS].includes(k)) throw bad(`invalid scenario key move[${i}].${k}: expected stop, lat, lon, ${FILTER_KEYS.join(', ')}`, k, file);
       if (typeof m.stop !== 'string' || m.stop === '') throw bad(`invalid scenario move[${i}].stop: expected a stop id or name`, JSON.stringify(m.stop), file);
-      return { stop: m.stop, ...latLon(m.lat, m.lon, `move[${i}]`, file) };
+      return { stop: m.stop, ...latLon(m.lat, m.lon, `move[${i}]`, file), ...parseFilter(m, `move[${i}]`, file) };
     });
   }
   if (!out.remove?.length && !out.add?.length && !out.move?.length) throw bad('invalid scenario: nothing to remove, add or move', undefined, file);
@@ -136,7 +194,8 @@ export function parseScenario(input: unknown, { file }: { file?: string } = {}):
 }
 
 /** Builds a scenario from command-line strings: remove STOP; add LAT,LON[:ROUTE]; move STOP:LAT,LON. */
-export function scenarioFromOptions({ remove = [], add = [], move = [] }: { remove?: string[]; add?: string[]; move?: string[] }): ScenarioInput {
+export function scenarioFromOptions({ remove = [], add = [], move = [], filter = {} }: { remove?: string[]; add?: string[]; move?: string[]; filter?: StopFilter }): ScenarioInput {
+  const hasFilter = Object.keys(filter).length > 0;
   const addOut = add.map((s) => {
     const m = /^\s*([-+0-9.eE]+)\s*,\s*([-+0-9.eE]+)\s*(?::\s*(.+))?$/.exec(s);
     if (!m) throw bad('invalid option --add: expected LAT,LON[:ROUTE_ID]', s);
@@ -145,9 +204,10 @@ export function scenarioFromOptions({ remove = [], add = [], move = [] }: { remo
   const moveOut = move.map((s) => {
     const m = /^(.+):\s*([-+0-9.eE]+)\s*,\s*([-+0-9.eE]+)\s*$/.exec(s);
     if (!m) throw bad('invalid option --move: expected STOP_ID:LAT,LON', s);
-    return { stop: m[1].trim(), lat: Number(m[2]), lon: Number(m[3]) };
+    return { stop: m[1].trim(), lat: Number(m[2]), lon: Number(m[3]), ...filter };
   });
-  return parseScenario({ ...(remove.length ? { remove } : {}), ...(addOut.length ? { add: addOut } : {}), ...(moveOut.length ? { move: moveOut } : {}) });
+  const removeOut = hasFilter ? remove.map((stop) => ({ stop, ...filter })) : remove;
+  return parseScenario({ ...(removeOut.length ? { remove: removeOut } : {}), ...(addOut.length ? { add: addOut } : {}), ...(moveOut.length ? { move: moveOut } : {}) });
 }
 
 /** Reads a scenario JSON file. */
@@ -156,18 +216,60 @@ export function loadScenarioFile(path: string): ScenarioInput {
   return parseScenario(parsed, { file: path });
 }
 
-/** A stop by id, else by name (case-insensitive); an ambiguous name is an error. */
-function resolveStop(feed: Feed, ref: string, where: string): number {
+/** How many matching stops or near spellings an error lists at most. */
+const LISTED = 8;
+
+const nameKey = (s: string): string => s.trim().replace(/\s+/g, ' ').toLowerCase();
+
+/** Whether a pattern passes a stop filter (routes by route_id or short name, direction_id, headsign). */
+function patternPasses(feed: Feed, prep: PreparedPattern, f: StopFilter): boolean {
+  const p = prep.pattern;
+  if (f.patterns && !f.patterns.includes(p.id)) return false;
+  if (f.routes && !f.routes.some((r) => r === p.routeId || (feed.routes.get(p.routeId)?.shortName ?? '') === r)) return false;
+  if (f.direction !== undefined && p.directionId !== f.direction) return false;
+  if (f.headsign !== undefined && nameKey(p.headsign) !== nameKey(f.headsign)) return false;
+  return true;
+}
+
+/** A stop as a person tells it apart: id, name, and each route, direction and headsign serving it. */
+function describeStop(feed: Feed, preps: PreparedPattern[], stopIdx: number): string {
+  const s = feed.stops[stopIdx];
+  const served = new Set<string>();
+  for (const prep of preps) {
+    if (!prep.modelStops.some((j) => prep.pattern.stopIdx[j] === stopIdx)) continue;
+    const route = feed.routes.get(prep.pattern.routeId);
+    served.add(`route ${route?.shortName || prep.pattern.routeId} direction ${prep.pattern.directionId < 0 ? '-' : prep.pattern.directionId}${prep.pattern.headsign ? ` to ${prep.pattern.headsign}` : ''}`);
+  }
+  return `${s.id}  ${s.name}: ${served.size ? [...served].sort().join('; ') : 'no pattern on the analysis date'}`;
+}
+
+/**
+ * The stops a scenario item means: a stop_id, else every passenger stop of that name (case and spacing
+ * ignored) that a pattern passing the filter serves. Several left and not both_directions: ambiguous, and
+ * the error lists them with routes, direction and headsign; none of that name: the nearest spellings.
+ */
+function resolveStops(feed: Feed, preps: PreparedPattern[], ref: string, f: StopFilter, where: string): number[] {
   const byId = feed.stopIndex.get(ref);
-  if (byId !== undefined) return byId;
-  const wanted = ref.trim().toLowerCase();
+  if (byId !== undefined) return [byId];
+  const wanted = nameKey(ref);
+  const isStop = (i: number) => feed.stops[i].locationType === 0 || Number.isNaN(feed.stops[i].locationType);
   const hits: number[] = [];
   feed.stops.forEach((s, i) => {
-    if (s.name.trim().toLowerCase() === wanted && (s.locationType === 0 || Number.isNaN(s.locationType))) hits.push(i);
+    if (isStop(i) && nameKey(s.name) === wanted) hits.push(i);
   });
-  if (hits.length === 1) return hits[0];
-  if (hits.length > 1) throw bad(`${where}: stop name "${ref}" is ambiguous (${hits.length} stops: ${hits.slice(0, 6).map((i) => feed.stops[i].id).join(', ')}${hits.length > 6 ? ', ...' : ''}); give the stop_id`, ref);
-  throw bad(`${where}: unknown stop "${ref}" (neither a stop_id nor a stop name of the feed)`, ref);
+  const list = (idx: number[]) => [...idx.slice(0, LISTED).map((i) => describeStop(feed, preps, i)), ...(idx.length > LISTED ? [`... and ${idx.length - LISTED} more`] : [])];
+  if (hits.length === 0) {
+    const near = nearestNames(ref, feed.stops.filter((_, i) => isStop(i)).map((s) => s.name), { max: Math.max(2, Math.floor(wanted.length / 4)), limit: LISTED, key: nameKey });
+    throw new StopspanError('bad-scenario', `${where}: unknown stop "${ref}" (neither a stop_id nor a stop name of the feed)${near.length ? '; nearest names:' : ''}`, { value: ref, choices: near });
+  }
+  const serving = (i: number) => preps.some((prep) => patternPasses(feed, prep, f) && prep.modelStops.some((j) => prep.pattern.stopIdx[j] === i));
+  const matching = hits.filter(serving);
+  const filterText = [f.routes ? `route ${f.routes.join(', ')}` : '', f.direction !== undefined ? `direction ${f.direction}` : '', f.headsign ? `headsign "${f.headsign}"` : ''].filter(Boolean).join(', ');
+  if (matching.length === 0) {
+    throw new StopspanError('bad-scenario', `${where}: no stop named "${ref}" is served${filterText ? ` by ${filterText}` : ''} on the analysis date; stops of that name:`, { value: ref, choices: list(hits) });
+  }
+  if (matching.length === 1 || f.both_directions) return matching;
+  throw new StopspanError('bad-scenario', `${where}: stop name "${ref}" is ambiguous (${matching.length} stops${filterText ? ` on ${filterText}` : ''}); give the stop_id, --route with --direction or --headsign, or --both-directions:`, { value: ref, choices: list(matching) });
 }
 
 /** Nearest point of a pattern's line of stops to (lat, lon): distance along and offset, metres. */
@@ -292,6 +394,9 @@ function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWe
   const neighbours = neighboursS / 60;
   const radius = params.max_gap_m / 2;
   const stopId = (m: number) => feed.stops[prep.pattern.stopIdx[prep.modelStops[m]]]?.id ?? '';
+  const stopName = (m: number) => feed.stops[prep.pattern.stopIdx[prep.modelStops[m]]]?.name ?? '';
+  const changesOut = stopChanges(change, today, after, params.max_gap_m, stopId, stopName);
+  const perRiderM = walkAddedM > 0 && affected > 0 ? walkAddedM / affected : 0;
   return {
     patternId: prep.pattern.id,
     routeId: prep.pattern.routeId,
@@ -300,8 +405,12 @@ function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWe
     removedStopIds: [...removed].sort((a, b) => a - b).map(stopId),
     movedStopIds: [...moved.keys()].sort((a, b) => a - b).map(stopId),
     addedCount: added.length,
+    changes: changesOut,
     ridersAffectedPerDay: affected,
+    walkAddedMinPerDay: walkAddedM / settings.walkSpeedMps / 60,
     walkAddedPaxMinPerDay: walkAdded,
+    walkAddedPerRiderM: perRiderM,
+    walkAddedPerRiderS: perRiderM / settings.walkSpeedMps,
     walkSavedPaxMinPerDay: walkSaved,
     rideSavedPaxMinPerDay: rideSaved,
     neighboursExtraPaxMinPerDay: neighbours,
@@ -315,12 +424,58 @@ function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWe
   };
 }
 
-function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number): ScenarioTotals {
+/** Each stop changed on a pattern, with the spacing around its place before and after the change. */
+function stopChanges(change: PatternChange, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string): StopChange[] {
+  const around = (list: Served[], pos: number, self: (s: Served) => boolean): number[] => {
+    // the gaps either side of pos among the stops in list (skipping the changed stop itself)
+    let lo = -Infinity;
+    let hi = Infinity;
+    for (const s of list) {
+      if (self(s)) continue;
+      if (s.pos <= pos && s.pos > lo) lo = s.pos;
+      if (s.pos >= pos && s.pos < hi) hi = s.pos;
+    }
+    return [lo, hi].every(Number.isFinite) ? [hi - lo] : [];
+  };
+  const split = (list: Served[], pos: number): number[] => {
+    let lo = -Infinity;
+    let hi = Infinity;
+    for (const s of list) {
+      if (s.pos < pos && s.pos > lo) lo = s.pos;
+      if (s.pos > pos && s.pos < hi) hi = s.pos;
+    }
+    return [pos - lo, hi - pos].filter(Number.isFinite);
+  };
+  const out: StopChange[] = [];
+  const mark = (c: Omit<StopChange, 'overPolicy'>): void => {
+    const before = Math.max(0, ...c.gapsBeforeM);
+    out.push({ ...c, overPolicy: c.gapsAfterM.some((g) => g > maxGapM && g > before) });
+  };
+  const { prep, removed, moved, added } = change;
+  for (const m of [...removed].sort((a, b) => a - b)) {
+    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(today, prep.posM[m]), gapsAfterM: around(after, prep.posM[m], () => false) });
+  }
+  for (const [m, to] of [...moved].sort((a, b) => a[0] - b[0])) {
+    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(today, prep.posM[m]), gapsAfterM: split(after, to) });
+  }
+  for (const pos of added) {
+    mark({ action: 'add', stopId: '', stopName: '', gapsBeforeM: around(today, pos, () => false), gapsAfterM: split(after, pos) });
+  }
+  return out;
+}
+
+function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number, walkSpeedMps: number): ScenarioTotals {
   const sum = (f: (e: ScenarioPatternEffect) => number) => effects.reduce((s, e) => s + f(e), 0);
   const trips = sum((e) => e.tripsPerDay);
+  const riders = sum((e) => e.ridersAffectedPerDay);
+  const walkAddedM = sum((e) => e.walkAddedMinPerDay) * 60 * walkSpeedMps;
+  const perRiderM = walkAddedM > 0 && riders > 0 ? walkAddedM / riders : 0;
   return {
     patternsAffected: effects.length,
-    ridersAffectedPerDay: sum((e) => e.ridersAffectedPerDay),
+    walkAddedMinPerDay: sum((e) => e.walkAddedMinPerDay),
+    walkAddedPerRiderM: perRiderM,
+    walkAddedPerRiderS: perRiderM / walkSpeedMps,
+    ridersAffectedPerDay: riders,
     walkAddedPaxMinPerDay: sum((e) => e.walkAddedPaxMinPerDay),
     walkSavedPaxMinPerDay: sum((e) => e.walkSavedPaxMinPerDay),
     rideSavedPaxMinPerDay: sum((e) => e.rideSavedPaxMinPerDay),
@@ -346,46 +501,60 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
   };
   const positionsOf = (prep: PreparedPattern, stopIdx: number) => prep.modelStops.map((j, m) => (prep.pattern.stopIdx[j] === stopIdx ? m : -1)).filter((m) => m >= 0);
   const checkRoutes = (routes: string[] | undefined, where: string) => {
-    for (const r of routes ?? []) if (!feed.routes.has(r)) throw bad(`${where}: unknown route_id ${r}`, r);
+    for (const r of routes ?? []) if (!feed.routes.has(r) && ![...feed.routes.values()].some((x) => x.shortName === r)) throw bad(`${where}: unknown route ${r} (neither a route_id nor a route_short_name)`, r);
   };
-  const touched = new Set<number>();
+  const checkPatterns = (ids: string[] | undefined, where: string) => {
+    for (const id of ids ?? []) if (!preps.some((p) => p.pattern.id === id)) throw bad(`${where}: unknown pattern ${id} on ${patterns.date}`, id);
+  };
+  const touched = new Set<string>(); // stop index | pattern id: a stop changed twice on one pattern is refused
+  const touch = (stopIdx: number, prep: PreparedPattern, where: string, ref: string) => {
+    const key = `${stopIdx}|${prep.pattern.id}`;
+    if (touched.has(key)) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is named twice in the scenario`, ref);
+    touched.add(key);
+  };
+  const filterOf = (item: string | ({ stop: string } & StopFilter)): StopFilter => (typeof item === 'string' ? {} : item);
+  const describeFilter = (f: StopFilter) => [f.patterns ? `pattern ${f.patterns.join(', ')}` : '', f.routes ? `route ${f.routes.join(', ')}` : '', f.direction !== undefined ? `direction ${f.direction}` : '', f.headsign ? `headsign "${f.headsign}"` : ''].filter(Boolean).join(', ');
 
   (sc.remove ?? []).forEach((item, i) => {
     const ref = typeof item === 'string' ? item : item.stop;
-    const routes = typeof item === 'string' ? undefined : item.routes;
+    const f = filterOf(item);
     const where = `remove[${i}]`;
-    checkRoutes(routes, where);
-    const stopIdx = resolveStop(feed, ref, where);
-    if (touched.has(stopIdx)) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is named twice in the scenario`, ref);
-    touched.add(stopIdx);
-    let hit = 0;
-    for (const prep of preps) {
-      if (routes && !routes.includes(prep.pattern.routeId)) continue;
-      for (const m of positionsOf(prep, stopIdx)) {
-        if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be removed`, ref);
-        changeOf(prep).removed.add(m);
-        hit++;
+    checkRoutes(f.routes, where);
+    checkPatterns(f.patterns, where);
+    for (const stopIdx of resolveStops(feed, preps, ref, f, where)) {
+      let hit = 0;
+      for (const prep of preps) {
+        if (!patternPasses(feed, prep, f)) continue;
+        for (const m of positionsOf(prep, stopIdx)) {
+          if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be removed`, ref);
+          touch(stopIdx, prep, where, ref);
+          changeOf(prep).removed.add(m);
+          hit++;
+        }
       }
+      if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(f) ? ` of ${describeFilter(f)}` : ''} on ${patterns.date}`, ref);
     }
-    if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${routes ? ` of route ${routes.join(', ')}` : ''} on ${patterns.date}`, ref);
   });
 
   (sc.move ?? []).forEach((item, i) => {
     const where = `move[${i}]`;
-    const stopIdx = resolveStop(feed, item.stop, where);
-    if (touched.has(stopIdx)) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is named twice in the scenario`, item.stop);
-    touched.add(stopIdx);
-    let hit = 0;
-    for (const prep of preps) {
-      for (const m of positionsOf(prep, stopIdx)) {
-        if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be moved`, item.stop);
-        const p = project(feed, prep, item.lat, item.lon);
-        if (p.offsetM > SNAP_LIMIT_M) throw bad(`${where}: ${item.lat},${item.lon} is ${Math.round(p.offsetM)} m from pattern ${prep.pattern.id} (limit ${SNAP_LIMIT_M} m)`, `${item.lat},${item.lon}`);
-        changeOf(prep).moved.set(m, p.posM);
-        hit++;
+    checkRoutes(item.routes, where);
+    checkPatterns(item.patterns, where);
+    for (const stopIdx of resolveStops(feed, preps, item.stop, item, where)) {
+      let hit = 0;
+      for (const prep of preps) {
+        if (!patternPasses(feed, prep, item)) continue;
+        for (const m of positionsOf(prep, stopIdx)) {
+          if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be moved`, item.stop);
+          const p = project(feed, prep, item.lat, item.lon);
+          if (p.offsetM > SNAP_LIMIT_M) throw bad(`${where}: ${item.lat},${item.lon} is ${Math.round(p.offsetM)} m from pattern ${prep.pattern.id} (limit ${SNAP_LIMIT_M} m)`, `${item.lat},${item.lon}`);
+          touch(stopIdx, prep, where, item.stop);
+          changeOf(prep).moved.set(m, p.posM);
+          hit++;
+        }
       }
+      if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(item) ? ` of ${describeFilter(item)}` : ''} on ${patterns.date}`, item.stop);
     }
-    if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern on ${patterns.date}`, item.stop);
   });
 
   (sc.add ?? []).forEach((item, i) => {
@@ -420,8 +589,11 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
   const assumed = effects.some((e) => e.demandSource === 'assumed');
   return {
     date: patterns.date,
+    walkWeight: params.walk_weight,
+    walkSpeedMps: params.walk_speed_mps,
+    maxGapM: params.max_gap_m,
     patterns: effects,
-    totals: totalsOf(effects, params.max_gap_m),
+    totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps),
     sensitivity,
     params: paramsReport(np),
     assumptions: [
