@@ -20,6 +20,7 @@ import { paramsReport, type ModelParams } from '../model/params.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import { prepareAudit, type PrepareAuditOptions } from './prepareAudit.js';
 import { CAUTIONS } from './cautions.js';
+import { routeFleet, type RouteFleet } from './fleet.js';
 
 /** A scenario as written in a scenario file (every key optional; unknown keys are refused). */
 export interface ScenarioInput {
@@ -95,6 +96,7 @@ export interface ScenarioResult {
   patterns: ScenarioPatternEffect[];
   totals: ScenarioTotals;
   sensitivity: ScenarioSensitivity[];
+  fleet: RouteFleet[]; // per route touched: round trip saved, peak vehicles, the same fleet's headway, waiting
   params: ParamsReport;
   assumptions: string[];
   cautions: string[];
@@ -493,6 +495,33 @@ function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number, walkSpeedMp
 export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: ScenarioInput, options: EvaluateScenarioOptions = {}): ScenarioResult {
   const sc = parseScenario(scenario);
   const { np, params, preps, warnings } = prepareAudit(feed, patterns, options);
+  const weighed = weighScenario(feed, patterns.date, preps, params, sc);
+  const assumed = weighed.patterns.some((e) => e.demandSource === 'assumed');
+  return {
+    date: patterns.date,
+    walkWeight: params.walk_weight,
+    walkSpeedMps: params.walk_speed_mps,
+    maxGapM: params.max_gap_m,
+    ...weighed,
+    params: paramsReport(np),
+    assumptions: [
+      assumed ? 'Some or all demand is assumed uniform along the pattern (no ridership file for it): figures marked demand_source=assumed.' : 'Demand comes from the ridership file.',
+      'Riders are spread evenly over each stop\'s catchment and walk along the route to the nearest stop served after the change; in-vehicle time between stops is not changed.',
+      `Added and moved stops are placed on the line between the pattern's stops nearest to the given point (at most ${SNAP_LIMIT_M} m away).`,
+      'The band tolerance does not enter a scenario\'s figures; sensitivity shows the net at walk weights 1.5 and 2.5.',
+      'Fleet: a route\'s round trip is its scheduled run time out and back (no layover); peak vehicles = round trip / peak headway, rounded up; the same fleet on the shorter round trip could run round trip / vehicles; waiting saved = half the headway change per boarding (common planning practice; an upper estimate where headways are long enough that riders time their arrival), at the day\'s mean headway.',
+    ],
+    cautions: [...CAUTIONS],
+    warnings: [...feed.warnings, ...warnings.list()],
+  };
+}
+
+/**
+ * A checked scenario weighed on patterns already prepared (the audit weighs its own plan this way, on the
+ * same preparation): per pattern, in total, and at the sensitivity walk weights.
+ */
+export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, sc: ScenarioInput): Pick<ScenarioResult, 'patterns' | 'totals' | 'sensitivity' | 'fleet'> {
+  const patterns = { date };
   const changes = new Map<string, PatternChange>();
   const changeOf = (prep: PreparedPattern) => {
     let ch = changes.get(prep.pattern.id);
@@ -586,23 +615,6 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
     walkWeight: w,
     netPaxMinPerDay: list.reduce((s, ch) => s + effectOf(feed, ch, params, w).netPaxMinPerDay, 0),
   }));
-  const assumed = effects.some((e) => e.demandSource === 'assumed');
-  return {
-    date: patterns.date,
-    walkWeight: params.walk_weight,
-    walkSpeedMps: params.walk_speed_mps,
-    maxGapM: params.max_gap_m,
-    patterns: effects,
-    totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps),
-    sensitivity,
-    params: paramsReport(np),
-    assumptions: [
-      assumed ? 'Some or all demand is assumed uniform along the pattern (no ridership file for it): figures marked demand_source=assumed.' : 'Demand comes from the ridership file.',
-      'Riders are spread evenly over each stop\'s catchment and walk along the route to the nearest stop served after the change; in-vehicle time between stops is not changed.',
-      `Added and moved stops are placed on the line between the pattern's stops nearest to the given point (at most ${SNAP_LIMIT_M} m away).`,
-      'The band tolerance does not enter a scenario\'s figures; sensitivity shows the net at walk weights 1.5 and 2.5.',
-    ],
-    cautions: [...CAUTIONS],
-    warnings: [...feed.warnings, ...warnings.list()],
-  };
+  const fleet = routeFleet(feed, preps, effects, params.operating_cost_per_vehicle_hour);
+  return { patterns: effects, totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps), sensitivity, fleet };
 }

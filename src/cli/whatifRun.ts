@@ -115,7 +115,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
         outOptions,
       );
     }
-    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), units }));
+    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), routeNames: new Map([...feed.routes].map(([id, r]) => [id, r.shortName || id])), units }));
     if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${terminalText(String(opts.out))}\n`);
     return EXIT.clean;
   }, { json: Boolean(opts.json) });

@@ -13,6 +13,8 @@ export interface WhatifTextOptions {
   /** What each pattern is (e.g. "route 1 to Eastgate"), listed under the table whose columns are pattern ids. */
   labels?: Map<string, string>;
   columnsPerBlock?: number;
+  /** Route short names by route_id, for the fleet lines. */
+  routeNames?: Map<string, string>;
   width?: number;
   /** Distances in metres (default) or feet; the figures in passenger-minutes and seconds are the same. */
   units?: Units;
@@ -47,7 +49,7 @@ type Cell = (e: ScenarioPatternEffect | null, t: ScenarioTotals) => string;
 
 /** The result as terminal text (ends with a newline). */
 export function whatifText(result: ScenarioResult, options: WhatifTextOptions = {}): string {
-  const { feedSource = '', labels = new Map(), columnsPerBlock = 4, width = 100 } = options;
+  const { feedSource = '', labels = new Map(), columnsPerBlock = 4, width = 100, routeNames } = options;
   const units = checkUnits(options.units ?? 'metric');
   const unit = units === 'imperial' ? 'ft' : 'm';
   const dist = (m: number): string => n0(units === 'imperial' ? metresToFeet(m) : m);
@@ -116,6 +118,22 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
     `net: riders ${net <= 0 ? 'save' : 'lose'} ${n0(Math.abs(net))} passenger-minutes a day; buses ${bus >= 0 ? 'save' : 'lose'} ${n1(Math.abs(bus))} s per trip, ` +
       `${n2(Math.abs(t.vehicleHoursPerDay))} vehicle-hours a day`,
   );
+  for (const f of result.fleet) {
+    if (!(f.runTimeSavedPerRoundTripS > 0)) continue;
+    const route = safe(routeNames?.get(f.routeId) ?? f.routeId);
+    const head = `fleet, route ${route}: ${n0(f.runTimeSavedPerRoundTripS)} s saved per round trip of ${n1(f.roundTripS / 60)} min`;
+    if (f.peakHeadwayS === null || f.headwaySameFleetS === null) {
+      lines.push(`${head} (too few trips for a headway)`);
+      continue;
+    }
+    const cost = f.operatingCostSavedPerDay !== null ? `; operating cost saved ${n0(f.operatingCostSavedPerDay)} a day` : '';
+    lines.push(
+      `${head}; at the peak headway of ${n1(f.peakHeadwayS / 60)} min that frees ${f.peakVehiclesFreed} of ${f.peakVehiclesBefore} peak vehicles (${n2(f.vehicleShareFreed ?? 0)} of a vehicle), ` +
+        `or the same fleet runs every ${n1(f.headwaySameFleetS / 60)} min` +
+        (f.waitSavedPaxMinPerDay !== null ? `, saving riders about ${n0(f.waitSavedPaxMinPerDay)} minutes of waiting a day (half the headway change per boarding, common planning practice)` : '') +
+        cost,
+    );
+  }
   lines.push(`sensitivity (net pax-min/day): ${result.sensitivity.map((s) => `${s.label} ${n0(s.netPaxMinPerDay)}`).join(', ')}`);
   lines.push(
     t.overPolicyAfter > 0

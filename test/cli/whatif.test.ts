@@ -241,4 +241,15 @@ describe('stopspan whatif: stops as people name them, and answers people can quo
     expect(again.code).toBe(0);
     expect(JSON.parse(again.stdout).totals).toEqual(JSON.parse(first.stdout).totals);
   });
+
+  it('fleet and frequency per route: round trip saved, peak vehicles, the same fleet\'s headway, waiting, operating cost', async () => {
+    const doc = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json', '-q', '--params', join(FIX, 'cost.json')])).stdout);
+    const f = doc.fleet.find((x: any) => x.route_id === 'R1');
+    expect(f.run_time_saved_per_round_trip_s).toBeGreaterThan(0);
+    expect(f.headway_same_fleet_s).toBeCloseTo((f.peak_headway_s * (f.round_trip_s - f.run_time_saved_per_round_trip_s)) / f.round_trip_s, 6);
+    expect(f.peak_vehicles_before).toBe(Math.ceil(f.round_trip_s / f.peak_headway_s - 1e-9));
+    expect(f.operating_cost_saved_per_day).toBeCloseTo(f.vehicle_hours_per_day * 90, 6);
+    const text = (await cli([DEMO, '--remove', 'MKT-05-a', '-q'])).stdout;
+    expect(text).toMatch(/^fleet, route 1: \d+ s saved per round trip of [\d.]+ min; at the peak headway of [\d.]+ min that frees \d+ of \d+ peak vehicles \([\d.]+ of a vehicle\), or the same fleet runs every [\d.]+ min, saving riders about [\d,]+ minutes of waiting a day \(half the headway change per boarding, common planning practice\)$/m);
+  });
 });
