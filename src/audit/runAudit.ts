@@ -17,6 +17,7 @@ import { CAUTIONS } from './cautions.js';
 import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
+import { optimiserPlan } from './plan.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -81,6 +82,11 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   onProgress?.({ stage: 'sensitivity' });
   const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
   for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+
+  // the optimiser's plan, weighed jointly by the what-if engine on this preparation
+  onProgress?.({ stage: 'plan' });
+  const stops = analyses.flatMap((a) => a.stops);
+  const plan = optimiserPlan(feed, patterns.date, preps, params, stops);
 
   // headline
   const allGaps: number[] = [];
@@ -157,7 +163,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     params: paramsReport(np, overrides),
     headline,
     patterns: analyses.map((a) => a.result),
-    stops: analyses.flatMap((a) => a.stops),
+    stops,
+    plan,
     gaps: analyses.flatMap((a) => a.gaps),
     candidates,
     sensitivity: cases,
