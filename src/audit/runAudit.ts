@@ -18,6 +18,7 @@ import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
+import { programmeCandidates } from './programme.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -60,7 +61,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
-  const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+  const generated = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
   for (const a of analyses) {
     const family = speedFamily(a.result.routeType);
     if (family !== 'bus' && family !== 'tram') {
@@ -80,8 +81,11 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     }
   }
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts });
-  for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts });
+  for (const c of generated) c.robust = robustKeys.has(candidateKey(c));
+  // the ranked list as a programme: each figure the candidate's effect given those ranked above it
+  onProgress?.({ stage: 'programme' });
+  const candidates = programmeCandidates(feed, patterns.date, preps, params, generated);
 
   // the optimiser's plan, weighed jointly by the what-if engine on this preparation
   onProgress?.({ stage: 'plan' });

@@ -25,7 +25,7 @@ import { routeFleet, type RouteFleet } from './fleet.js';
 /** A scenario as written in a scenario file (every key optional; unknown keys are refused). */
 export interface ScenarioInput {
   remove?: (string | ({ stop: string } & StopFilter))[];
-  add?: { lat: number; lon: number; route?: string; name?: string }[];
+  add?: { lat: number; lon: number; route?: string; name?: string; patterns?: string[] }[];
   move?: ({ stop: string; lat: number; lon: number } & StopFilter)[];
 }
 
@@ -176,10 +176,11 @@ export function parseScenario(input: unknown, { file }: { file?: string } = {}):
     if (!Array.isArray(input.add)) throw bad('invalid scenario add: expected a list', undefined, file);
     out.add = input.add.map((a, i) => {
       if (!isObject(a)) throw bad(`invalid scenario add[${i}]: expected {lat, lon, route?, name?}`, JSON.stringify(a), file);
-      for (const k of Object.keys(a)) if (!['lat', 'lon', 'route', 'name'].includes(k)) throw bad(`invalid scenario key add[${i}].${k}: expected lat, lon, route or name`, k, file);
+      for (const k of Object.keys(a)) if (!['lat', 'lon', 'route', 'name', 'patterns'].includes(k)) throw bad(`invalid scenario key add[${i}].${k}: expected lat, lon, route, name or patterns`, k, file);
+      if (a.patterns !== undefined && (!Array.isArray(a.patterns) || a.patterns.some((x) => typeof x !== 'string'))) throw bad(`invalid scenario add[${i}].patterns: expected a list of pattern ids`, JSON.stringify(a.patterns), file);
       if (a.route !== undefined && typeof a.route !== 'string') throw bad(`invalid scenario add[${i}].route: expected a route id`, JSON.stringify(a.route), file);
       if (a.name !== undefined && typeof a.name !== 'string') throw bad(`invalid scenario add[${i}].name: expected text`, JSON.stringify(a.name), file);
-      return { ...latLon(a.lat, a.lon, `add[${i}]`, file), route: a.route as string | undefined, name: a.name as string | undefined };
+      return { ...latLon(a.lat, a.lon, `add[${i}]`, file), ...(a.route !== undefined ? { route: a.route as string } : {}), ...(a.name !== undefined ? { name: a.name as string } : {}), ...(a.patterns !== undefined ? { patterns: a.patterns as string[] } : {}) };
     });
   }
   if (input.move !== undefined) {
@@ -285,7 +286,7 @@ interface Served {
   existing: number; // model stop index, -1 for a new or moved stop
 }
 
-interface PatternChange {
+export interface PatternEdit {
   prep: PreparedPattern;
   removed: Set<number>; // model positions
   moved: Map<number, number>; // model position -> new distance along
@@ -335,7 +336,7 @@ function largestGap(served: Served[]): number {
   return g;
 }
 
-function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWeight: number): ScenarioPatternEffect {
+export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, walkWeight: number): ScenarioPatternEffect {
   const { prep, removed, moved, added } = change;
   const c = prep.corridor;
   const settings = costSettings(prep, params, { walkWeight });
@@ -427,7 +428,7 @@ function effectOf(feed: Feed, change: PatternChange, params: ModelParams, walkWe
 }
 
 /** Each stop changed on a pattern, with the spacing around its place before and after the change. */
-function stopChanges(change: PatternChange, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string): StopChange[] {
+function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string): StopChange[] {
   const around = (list: Served[], pos: number, self: (s: Served) => boolean): number[] => {
     // the gaps either side of pos among the stops in list (skipping the changed stop itself)
     let lo = -Infinity;
@@ -521,8 +522,22 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
  * same preparation): per pattern, in total, and at the sensitivity walk weights.
  */
 export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, sc: ScenarioInput): Pick<ScenarioResult, 'patterns' | 'totals' | 'sensitivity' | 'fleet'> {
+  const changes = resolveChanges(feed, date, preps, sc);
+  const list = [...changes.values()].sort((a, b) => a.prep.pattern.id.localeCompare(b.prep.pattern.id));
+  const effects = list.map((ch) => effectOf(feed, ch, params, params.walk_weight));
+  const sensitivity: ScenarioSensitivity[] = [1.5, 2.5].map((w) => ({
+    label: `walk_weight=${w}`,
+    walkWeight: w,
+    netPaxMinPerDay: list.reduce((s, ch) => s + effectOf(feed, ch, params, w).netPaxMinPerDay, 0),
+  }));
+  const fleet = routeFleet(feed, preps, effects, params.operating_cost_per_vehicle_hour);
+  return { patterns: effects, totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps), sensitivity, fleet };
+}
+
+/** The change a checked scenario makes on each pattern it touches (by pattern id); 'bad-scenario' when an item is not understood. */
+export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[], sc: ScenarioInput): Map<string, PatternEdit> {
   const patterns = { date };
-  const changes = new Map<string, PatternChange>();
+  const changes = new Map<string, PatternEdit>();
   const changeOf = (prep: PreparedPattern) => {
     let ch = changes.get(prep.pattern.id);
     if (!ch) changes.set(prep.pattern.id, (ch = { prep, removed: new Set(), moved: new Map(), added: [] }));
@@ -591,8 +606,10 @@ export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[]
     checkRoutes(item.route ? [item.route] : undefined, where);
     let hit = 0;
     let nearest = Infinity;
+    checkPatterns(item.patterns, where);
     for (const prep of preps) {
       if (item.route && prep.pattern.routeId !== item.route) continue;
+      if (item.patterns && !item.patterns.includes(prep.pattern.id)) continue;
       const p = project(feed, prep, item.lat, item.lon);
       nearest = Math.min(nearest, p.offsetM);
       if (p.offsetM > SNAP_LIMIT_M) continue;
@@ -608,13 +625,5 @@ export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[]
     }
   });
 
-  const list = [...changes.values()].sort((a, b) => a.prep.pattern.id.localeCompare(b.prep.pattern.id));
-  const effects = list.map((ch) => effectOf(feed, ch, params, params.walk_weight));
-  const sensitivity: ScenarioSensitivity[] = [1.5, 2.5].map((w) => ({
-    label: `walk_weight=${w}`,
-    walkWeight: w,
-    netPaxMinPerDay: list.reduce((s, ch) => s + effectOf(feed, ch, params, w).netPaxMinPerDay, 0),
-  }));
-  const fleet = routeFleet(feed, preps, effects, params.operating_cost_per_vehicle_hour);
-  return { patterns: effects, totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps), sensitivity, fleet };
+  return changes;
 }
