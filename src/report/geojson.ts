@@ -115,6 +115,7 @@ function stopProperties(s: StopResult): Feature<Point>['properties'] {
     verdict: s.verdict,
     removal_net_pax_min_per_day: r1(s.removalNetPaxMinPerDay),
     demand_source: s.demandSource,
+    optimiser_keeps: s.keptByOptimiser ? 'yes' : 'no',
     // beyond stops.csv, for a map's legend; a stop's position is the geometry
     fixed_reason: s.fixedReason,
     timepoint: s.timepoint,
