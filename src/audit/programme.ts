@@ -51,6 +51,26 @@ function figuresOf(e: ScenarioPatternEffect): Figures {
 }
 
 /**
+ * Work the programme may take, in stop-weighings: each acceptance re-weighs every candidate on the
+ * patterns it changed, each weighing walks the pattern's stops. About a second of CPU; Manhattan's audit
+ * needs under a hundredth of it. Above it (thousands of candidates on one pattern) the list is left as
+ * generated, each candidate weighed alone, and the caller says so.
+ */
+export const PROGRAMME_WORK_LIMIT = 3e7;
+
+/** The programme's work estimate: per pattern, (candidates on it)^2 x its stops. */
+export function programmeWork(preps: PreparedPattern[], candidates: Candidate[]): number {
+  const k = new Map<string, number>();
+  for (const c of candidates) for (const p of c.patternIds) k.set(p, (k.get(p) ?? 0) + 1);
+  let work = 0;
+  for (const p of preps) {
+    const n = k.get(p.pattern.id) ?? 0;
+    work += n * n * p.modelStops.length;
+  }
+  return work;
+}
+
+/**
  * The programme: candidates in the order accepted, each with its marginal figures given those above it;
  * those that no longer save riders time once the others are in are left out. `robust` is kept from the
  * input (judged per candidate by the sensitivity cases).

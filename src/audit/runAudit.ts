@@ -18,7 +18,7 @@ import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
-import { programmeCandidates } from './programme.js';
+import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -85,7 +85,15 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   for (const c of generated) c.robust = robustKeys.has(candidateKey(c));
   // the ranked list as a programme: each figure the candidate's effect given those ranked above it
   onProgress?.({ stage: 'programme' });
-  const candidates = programmeCandidates(feed, patterns.date, preps, params, generated);
+  const joint = programmeWork(preps, generated) <= PROGRAMME_WORK_LIMIT;
+  const candidates = joint ? programmeCandidates(feed, patterns.date, preps, params, generated) : generated;
+  if (!joint) {
+    warnings.add(
+      'candidates-weighed-alone',
+      'too many candidates on one pattern to rank them as a programme in reasonable time: each candidate is weighed alone, so their figures do not add up; weigh a set together with whatif',
+      `${generated.length} candidates`,
+    );
+  }
 
   // the optimiser's plan, weighed jointly by the what-if engine on this preparation
   onProgress?.({ stage: 'plan' });
