@@ -21,6 +21,8 @@ import { TRUNK_WINDOW } from './transfers.js';
 import { EXPRESS_STRETCH_M } from './expressStretch.js';
 import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
+import { optimiserPlan } from './plan.js';
+import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';
 import { buildCandidates, candidateKey } from './candidates.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
 
@@ -68,7 +70,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const reviewGaps: ReviewGap[] = [];
-  const candidates = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps });
+  const generated = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps });
   // what is reported: the routes asked for; everything above was computed on the whole network
   const shownRoute = (routeId: string) => reportRoutes === null || reportRoutes.has(routeId);
   const shown = analyses.filter((a) => shownRoute(a.result.routeId));
@@ -92,11 +94,20 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     }
   }
   onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, candidates, { baseAnalyses: analyses, parts, reported: shownRoute });
-  for (const c of candidates) c.robust = robustKeys.has(candidateKey(c));
+  const { cases, robustKeys } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute });
+  for (const c of generated) c.robust = robustKeys.has(candidateKey(c));
+  // the ranked list as a programme: each figure the candidate's effect given those ranked above it
+  onProgress?.({ stage: 'programme' });
+  const joint = programmeWork(preps, generated) <= PROGRAMME_WORK_LIMIT;
+  const candidates = joint ? programmeCandidates(feed, patterns.date, preps, params, generated) : generated;
+  if (!joint) warnings.add('candidates-weighed-alone', `${generated.length} candidates`);
   // a candidate is reported when it touches a route asked for, with its figures over every route it touches
   const shownCandidates = reportRoutes === null ? candidates : candidates.filter((c) => c.routeIds.some(shownRoute));
   shownCandidates.forEach((c, i) => (c.rank = i + 1));
+
+  // the optimiser's plan over the whole network, weighed jointly by the scenario engine on this preparation
+  onProgress?.({ stage: 'plan' });
+  const plan = optimiserPlan(feed, patterns.date, preps, params, analyses.flatMap((a) => a.stops));
 
   // headline
   const allGaps: number[] = [];
@@ -181,6 +192,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     headline,
     patterns: shown.map((a) => a.result),
     stops: shown.flatMap((a) => a.stops),
+    plan,
     gaps: shown.flatMap((a) => a.gaps),
     candidates: shownCandidates,
     reviewGaps: reviewGaps.filter((g) => g.routeIds.some(shownRoute)),

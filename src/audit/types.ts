@@ -9,6 +9,7 @@ import type { FeedWarning } from '../common/warnings.js';
 import type { DistanceSource } from '../network/types.js';
 import type { StoppingModel } from '../model/params.js';
 import type { DemandSource, FixedReason, LostTimeSource, ObservedFigures, ParamsReport, SourceLabel } from '../model/types.js';
+import type { NetworkPlan } from './plan.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
 
@@ -182,6 +183,8 @@ export interface AuditResult {
   sensitivity: SensitivityCase[];
   warnings: FeedWarning[];
   assumptions: string[]; // plain sentences shown in every report
+  /** The optimiser's drops as a scenario (plan.json) with their joint figures; null when it keeps every stop. */
+  plan?: NetworkPlan | null;
   /** The realtime archive read, if any (its per-pattern figures are on the patterns). */
   observed?: { source: string; snapshotsRead: number; snapshotsSkipped: number; tripsMatched: number; tripsUnmatched: number } | null;
 }

@@ -28,6 +28,7 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
   } catch (e) {
     if (isStopspanError(e)) {
       process.stderr.write(`error: ${e.oneLine()}\n`);
+      for (const c of e.context.choices ?? []) process.stderr.write(`  ${terminalText(c)}\n`);
       code = EXIT.badInput;
     } else if (isAllocationFailure(e)) {
       process.stderr.write(`error: the input is too large to hold in memory (feed-too-large: ${(e as Error).message})\n`);
@@ -45,7 +46,7 @@ export async function runAction(verbose: boolean, action: () => Promise<number>,
 
 /** The JSON document of a failed run: the error's code, message and where (file, line, column, value), and the exit code. */
 export function errorDocument(e: unknown, exitCode: number): Record<string, unknown> {
-  const error: Record<string, string | number> = isStopspanError(e)
+  const error: Record<string, string | number | string[]> = isStopspanError(e)
     ? { code: e.code, message: e.message, ...Object.fromEntries(Object.entries(e.context).filter(([, v]) => v !== undefined)) }
     : { code: isAllocationFailure(e) ? 'feed-too-large' : 'internal', message: String((e as Error)?.message ?? e) };
   return errorJsonDocument(error, exitCode);

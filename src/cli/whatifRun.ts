@@ -4,7 +4,8 @@
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult } from '../whatif/whatif.js';
+import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult, type StopFilter } from '../whatif/whatif.js';
+import { snakeKeys } from '../common/snakeKeys.js';
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
@@ -23,6 +24,10 @@ export interface WhatifOpts {
   add?: string[];
   move?: string[];
   scenario?: string;
+  route?: string[];
+  direction?: string;
+  headsign?: string;
+  bothDirections?: boolean;
   date?: string;
   ridership?: string;
   observed?: string;
@@ -37,19 +42,33 @@ export interface WhatifOpts {
 }
 
 /** The scenario from a file and the command-line options together, checked as one. */
-export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: string[]; scenario?: string }): ScenarioInput {
+export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: string[]; scenario?: string; route?: string[]; direction?: string; headsign?: string; bothDirections?: boolean }): ScenarioInput {
   const fromFile: ScenarioInput = opts.scenario ? loadScenarioFile(opts.scenario) : {};
   const given = Boolean(opts.remove?.length || opts.add?.length || opts.move?.length);
   if (!opts.scenario && !given) {
     throw new StopspanError('bad-option', 'nothing to weigh: give --remove, --add, --move or --scenario');
   }
-  const fromOpts: ScenarioInput = given ? scenarioFromOptions({ remove: opts.remove, add: opts.add, move: opts.move }) : {};
+  const filter: StopFilter = {
+    ...(opts.route?.length ? { routes: opts.route } : {}),
+    ...(opts.direction !== undefined ? { direction: directionOption(opts.direction) } : {}),
+    ...(opts.headsign !== undefined ? { headsign: opts.headsign } : {}),
+    ...(opts.bothDirections ? { both_directions: true } : {}),
+  };
+  if (Object.keys(filter).length && !opts.remove?.length && !opts.move?.length) {
+    throw new StopspanError('bad-option', '--route, --direction, --headsign and --both-directions choose the stops of --remove or --move; give one of those');
+  }
+  const fromOpts: ScenarioInput = given ? scenarioFromOptions({ remove: opts.remove, add: opts.add, move: opts.move, filter }) : {};
   const merged: Record<string, unknown[]> = {};
   for (const k of ['remove', 'add', 'move'] as const) {
     const list = [...(fromFile[k] ?? []), ...(fromOpts[k] ?? [])];
     if (list.length) merged[k] = list;
   }
   return parseScenario(merged, { file: opts.scenario });
+}
+
+function directionOption(v: string): number {
+  if (v.trim() !== '0' && v.trim() !== '1') throw new StopspanError('bad-option', 'invalid option --direction: expected direction_id 0 or 1', { value: v });
+  return Number(v.trim());
 }
 
 /** Column headings per pattern: route short name and headsign. */
@@ -65,14 +84,14 @@ function labelsOf(feed: Feed, patterns: PatternSet, result: ScenarioResult): Map
   return out;
 }
 
-/** The document --json prints and scenario.json holds. */
+/** The document --json prints and result.json holds, keys in snake_case as summary.json. */
 export function whatifDocument(feed: Feed, scenario: ScenarioInput, result: ScenarioResult): Record<string, unknown> {
-  return {
+  return snakeKeys({
     tool: { name: 'stopspan', version },
     feed: { source: feed.source, contentHash: feed.contentHash },
     scenario,
     ...result,
-  };
+  }) as Record<string, unknown>;
 }
 
 /** Runs the command: the action registered by registerWhatif. */
@@ -108,10 +127,18 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
       const { whatifStrips } = await import('../report/whatifStrips.js');
       const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
-      written = await writeFolder(opts.out, [['index.html', html], ['scenario.json', JSON.stringify(doc, null, 2) + '\n']], outOptions);
+      written = await writeFolder(
+        opts.out,
+        [
+          ['index.html', html],
+          ['result.json', JSON.stringify(doc, null, 2) + '\n'],
+          ['scenario.json', JSON.stringify(scenario, null, 2) + '\n'],
+        ],
+        outOptions,
+      );
     }
-    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), units }));
+    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), routeNames: new Map([...feed.routes].map(([id, r]) => [id, r.shortName || id])), units }));
     if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${terminalText(String(opts.out))}\n`);
     return EXIT.clean;
-  });
+  }, { json: Boolean(opts.json) });
 }

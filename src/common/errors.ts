@@ -26,6 +26,8 @@ export interface ErrorContext {
   line?: number;
   column?: string;
   value?: string;
+  /** Lines listed under the error line: the items that match, or the names nearest to the one asked for. */
+  choices?: string[];
 }
 
 export class StopspanError extends Error {

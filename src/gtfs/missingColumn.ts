@@ -5,6 +5,7 @@
 
 import { StopspanError } from '../common/errors.js';
 import { UNSEEN_CHARS } from '../common/terminalText.js';
+import { editDistance } from '../common/editDistance.js';
 
 /** Names listed in the message at most; the rest are counted. */
 const SHOWN_NAMES = 12;
@@ -12,23 +13,6 @@ const SHOWN_NAMES = 12;
 /** A name as a person reads it: without unseen characters (terminalText's), without spaces, in lower case. */
 function seenAs(name: string): string {
   return name.replace(UNSEEN_CHARS, '').replace(/\s+/g, '').toLowerCase();
-}
-
-/** Levenshtein distance, stopping early above `max` (returns max + 1 then). */
-function editDistance(a: string, b: string, max: number): number {
-  if (Math.abs(a.length - b.length) > max) return max + 1;
-  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    const cur = [i];
-    let best = i;
-    for (let j = 1; j <= b.length; j++) {
-      cur[j] = Math.min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1));
-      best = Math.min(best, cur[j]);
-    }
-    if (best > max) return max + 1;
-    prev = cur;
-  }
-  return prev[b.length];
 }
 
 /**

@@ -153,6 +153,8 @@ export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
   text('fixed_note', (s) => s.fixedNote),
   num('removal_net_pax_min_per_day', (s) => s.removalNetPaxMinPerDay, 1),
   text('demand_source', (s) => s.demandSource),
+  // appended last so readers of the earlier columns by position are unaffected
+  text('optimiser_keeps', (s) => (s.keptByOptimiser ? 'yes' : 'no')),
 ];
 
 /** candidates.csv: the ranked network-level list; demand_source is the run's (candidates sum over patterns). */

@@ -119,6 +119,7 @@ function stopProperties(s: StopResult): Feature<Point>['properties'] {
     fixed_note: s.fixedNote,
     removal_net_pax_min_per_day: r1(s.removalNetPaxMinPerDay),
     demand_source: s.demandSource,
+    optimiser_keeps: s.keptByOptimiser ? 'yes' : 'no',
     // beyond stops.csv, for a map's legend; a stop's position is the geometry
     timepoint: s.timepoint,
   };

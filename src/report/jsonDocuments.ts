@@ -7,7 +7,7 @@ import type { Comparison } from '../compare/compare.js';
 import type { AnalysisDay } from '../gtfs/calendar.js';
 import type { RunRecord } from '../history/readHistory.js';
 import { version } from '../version.js';
-import { snakeKeys } from './snakeKeys.js';
+import { snakeKeys } from '../common/snakeKeys.js';
 
 /** Version of the check, compare, history and error documents' layout; raised on a breaking change. */
 export const JSON_DOCUMENT_VERSION = 1;
@@ -36,6 +36,6 @@ export function historyDocument(runs: RunRecord[]): Record<string, unknown> {
 }
 
 /** The document a failed --json run prints: the error's code, message and where, and the exit code. */
-export function errorJsonDocument(error: Record<string, string | number>, exitCode: number): Record<string, unknown> {
+export function errorJsonDocument(error: Record<string, string | number | string[]>, exitCode: number): Record<string, unknown> {
   return { ...head(), error: snakeKeys(error), exit_code: exitCode };
 }

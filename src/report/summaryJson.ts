@@ -5,6 +5,7 @@
 
 import type { AuditResult } from '../audit/types.js';
 import { CAUTIONS } from './cautions.js';
+import { snakeKeys } from '../common/snakeKeys.js';
 
 export const SUMMARY_SCHEMA_VERSION = 1;
 export const TOP_CANDIDATES_IN_SUMMARY = 10;
@@ -86,6 +87,15 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       pax_min_lost_per_day: r1(s.paxMinLostPerDay),
       candidates_kept: s.candidatesKept,
     })),
+    plan: result.plan
+      ? {
+          file: 'plan.json',
+          stops_dropped: result.plan.stopsDropped,
+          drops_on_patterns: result.plan.dropsOnPatterns,
+          patterns_changed: result.plan.patternsChanged,
+          ...(snakeKeys(result.plan.figures) as Record<string, unknown>),
+        }
+      : null,
     warnings: result.warnings.map((w) => ({ code: w.code, message: w.message, count: w.count, examples: [...w.examples] })),
     assumptions: [...result.assumptions],
     cautions: [...CAUTIONS],

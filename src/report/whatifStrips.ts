@@ -70,6 +70,7 @@ export function whatifStrips(feed: Feed, patterns: PatternSet, scenario: Scenari
       const last = pattern.distAlongM[model[model.length - 1]];
       for (const a of scenario.add ?? []) {
         if (a.route && a.route !== pattern.routeId) continue;
+        if (a.patterns && !a.patterns.includes(pattern.id)) continue;
         const p = snap(feed, pattern, model, a.lat, a.lon);
         if (p.offsetM > SNAP_LIMIT_M || !(p.posM > first && p.posM < last)) continue;
         after.push({ posM: p.posM, stopId: '', name: a.name ?? 'new stop', change: 'added' });

@@ -24,8 +24,12 @@ export interface WriteReportOptions {
 }
 
 /** Which files each format writes, and how to render them. */
-const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => string][]> = {
-  json: [['summary.json', (r) => summaryJson(r)]],
+const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => string | null][]> = {
+  json: [
+    ['summary.json', (r) => summaryJson(r)],
+    // the optimiser's plan as a scenario whatif reads back (absent when the optimiser keeps every stop)
+    ['plan.json', (r) => (r.plan ? JSON.stringify(r.plan.scenario, null, 2) + '\n' : null)],
+  ],
   csv: [
     ['patterns.csv', (r, units) => patternsCsv(r, { units })],
     ['stops.csv', (r, units) => stopsCsv(r, { units })],
@@ -57,6 +61,8 @@ export async function writeReport(result: AuditResult, outDir: string, options: 
     }
   }
   const wanted = REPORT_FORMATS.filter((f) => formats.includes(f)); // fixed order, no duplicates
-  const files: [string, () => string][] = wanted.flatMap((f) => FILES[f].map(([name, render]) => [name, () => render(result, units)] as [string, () => string]));
+  const files: [string, () => string][] = wanted.flatMap((f) =>
+    FILES[f].flatMap(([name, render]) => (name === 'plan.json' && !result.plan ? [] : [[name, () => render(result, units) ?? ''] as [string, () => string]])),
+  );
   return writeFolder(outDir, files, { force, inputs });
 }

@@ -67,7 +67,8 @@ describe('runAudit', () => {
 
   it('ranks candidates by net passenger-minutes, never a fixed stop, never opening a gap above the policy', () => {
     expect(r.candidates.length).toBeGreaterThan(0);
-    for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay);
+    // in the order accepted, each the best marginal saving left (rounding noise aside)
+    for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay - 1e-9);
     r.candidates.forEach((c, i) => expect(c.rank).toBe(i + 1));
     const fixed = new Set(r.stops.filter((s) => s.verdict === 'fixed').map((s) => s.stopId));
     const removed = new Set(r.candidates.filter((c) => c.action === 'remove').map((c) => c.stopId));

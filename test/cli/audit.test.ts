@@ -31,7 +31,7 @@ describe('stopspan audit', () => {
     const out = join(dir, 'full');
     const r = await runCli(['audit', DEMO, '--ridership', RIDERSHIP, '--out', out, '--quiet']);
     expect(r.code, r.stderr).toBe(0);
-    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'plan.json', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
     expect(r.stdout).toMatch(/patterns, \d+ stops, median gap \d+ m/);
     expect(r.stderr).toBe(''); // not a TTY: no progress drawn
     const summary = JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
@@ -41,6 +41,17 @@ describe('stopspan audit', () => {
     const stops = parse(readFileSync(join(out, 'stops.csv')), { columns: true }) as Record<string, string>[];
     const total = patterns.reduce((s, p) => s + Number(p.stop_count), 0);
     expect(stops.length).toBe(total);
+    // the plan: plan.json read back by whatif gives the joint figures summary.json states for it
+    const back = await runCli(['whatif', DEMO, '--ridership', RIDERSHIP, '--scenario', join(out, 'plan.json'), '--json', '-q']);
+    expect(back.code, back.stderr).toBe(0);
+    const w = JSON.parse(back.stdout);
+    expect(w.totals.net_pax_min_per_day).toBeCloseTo(summary.plan.totals.net_pax_min_per_day, 6);
+    expect(w.totals.run_time_saved_per_trip_s).toBeCloseTo(summary.plan.totals.run_time_saved_per_trip_s, 6);
+    expect(w.fleet).toEqual(summary.plan.fleet);
+    // stops.csv marks each stop the plan drops: optimiser_keeps=no exactly on its (stop, pattern) pairs
+    const drops = stops.filter((s) => s.optimiser_keeps === 'no').map((s) => `${s.stop_id}|${s.pattern_id}`).sort();
+    const planned = (JSON.parse(readFileSync(join(out, 'plan.json'), 'utf8')).remove as { stop: string; patterns: string[] }[]).flatMap((x) => x.patterns.map((p) => `${x.stop}|${p}`)).sort();
+    expect(drops).toEqual(planned);
   });
 
   it('refuses to replace an existing folder without --force, or with a file of someone else in it, and leaves it untouched', async () => {

@@ -78,7 +78,7 @@ describe('an interrupt while the report is written', () => {
     run.child.kill('SIGCONT');
     expect((await run.done).code).toBe(143);
     expect(readdirSync(work).sort()).toEqual(['feed.zip', 'rep']);
-    expect(readdirSync(join(work, 'rep')).sort()).toEqual([REPORT_MARKER, 'summary.json']);
+    expect(readdirSync(join(work, 'rep')).sort()).toEqual([REPORT_MARKER, 'plan.json', 'summary.json']);
     expect(readFileSync(join(work, 'rep', 'summary.json'), 'utf8')).toBe(before);
   });
 

@@ -18,7 +18,7 @@ const PATTERN_HEADER =
   ',lost_time_per_stop_s,lost_time_source,cruise_speed_mps,cruise_speed_source,traffic_delay_s,stopping_model,mean_trip_length_m' +
   ',observed_trips,observed_dwell_s,observed_door_time_s,observed_stop_loss_s,observed_cruise_speed_mps,observed_stop_share,lost_time_observed_parts';
 const STOP_HEADER =
-  'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,fixed_reason,fixed_note,removal_net_pax_min_per_day,demand_source';
+  'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,fixed_reason,fixed_note,removal_net_pax_min_per_day,demand_source,optimiser_keeps';
 
 /** Reads CSV with csv-parse, the outside reference parser, insisting on CRLF records. */
 function readBack(text: string): string[][] {

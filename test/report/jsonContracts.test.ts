@@ -9,7 +9,7 @@ import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
 import { afterAll, describe, expect, it } from 'vitest';
 import { ROOT, runCli } from '../helpers/cli.js';
-import { snakeKeys, snakeName } from '../../src/report/snakeKeys.js';
+import { snakeKeys, snakeKey as snakeName } from '../../src/common/snakeKeys.js';
 
 // RFC 3339 section 5.6 date-time [C], the meaning JSON Schema gives "format": "date-time"
 const RFC3339 = /^\d{4}-\d{2}-\d{2}[Tt ]\d{2}:\d{2}:\d{2}(\.\d+)?([Zz]|[+-]\d{2}:\d{2})$/;

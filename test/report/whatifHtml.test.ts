@@ -114,16 +114,20 @@ describe('whatifText', () => {
     expect(t).toMatch(/^net, pax-min\/day/m);
     expect(t).toMatch(/sensitivity \(net pax-min\/day\): walk_weight=1\.5 -?[\d,]+, walk_weight=2\.5 -?[\d,]+/);
     expect(t).toContain('Title VI');
-    expect(t).toContain('V1:0:1: route 1 to \\u001b[31mHarbour, removes v1-4, v1-6; moves v1-7; adds 1 stop');
+    expect(t).toContain('V1:0:1: route 1 to \\u001b[31mHarbour\n');
+    expect(t).toMatch(/^  removes v1-4 [^\n]*: gaps \d+ \+ \d+ m become \d+ m, within the \d+ m policy$/m);
+    expect(t).toMatch(/^  removes v1-6 /m);
+    expect(t).toMatch(/^  moves v1-7 /m);
+    expect(t).toMatch(/^  adds a stop: splits a \d+ m gap into \d+ \+ \d+ m, /m);
   });
 
   it('gives the distances in feet with units imperial, and the same passenger-minutes', () => {
     const metric = whatifText(result, { feedSource: 'vellmoor.zip' });
     const imperial = whatifText(result, { feedSource: 'vellmoor.zip', units: 'imperial' });
     const gapRow = (text: string, unit: string): number[] => {
-      const line = text.split('\n').find((l) => l.startsWith(`largest gap before -> after, ${unit}`));
+      const line = text.split('\n').find((l) => l.startsWith(`widest gap a change makes, ${unit} (policy`));
       expect(line, `a gap row in ${unit}`).toBeDefined();
-      return [...line!.matchAll(/([\d,]+) -> ([\d,]+)/g)].flatMap((m) => [Number(m[1].replace(/,/g, '')), Number(m[2].replace(/,/g, ''))]);
+      return [...line!.matchAll(/([\d,]+)/g)].map((m) => Number(m[1].replace(/,/g, '')));
     };
     const m = gapRow(metric, 'm');
     const ft = gapRow(imperial, 'ft');

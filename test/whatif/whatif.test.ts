@@ -75,12 +75,15 @@ describe('evaluateScenario', () => {
     expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['nowhere'] }, { params })).message).toMatch(/remove\[0\]: unknown stop "nowhere"/);
     expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['v1-0'] }, { params })).message).toMatch(/terminal of pattern V1:0:1/);
     expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.2, lon: 4.3, route: 'V1' }] }, { params })).message).toMatch(/add\[0\]: .* m from the nearest pattern of route V1 \(limit 200 m/);
-    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(/unknown route_id V7/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(/unknown route V7 \(neither a route_id nor a route_short_name\)/);
     expect(thrown(() => parseScenario({ remove: ['v1-3'], close: ['v1-4'] })).message).toMatch(/invalid scenario key close/);
     expect(thrown(() => parseScenario({})).code).toBe('bad-scenario');
     const twin = handmadeNetwork({ distM: even, tripsPerDay: 50, sharedAt: 12 });
     twin.feed.stops[3].name = twin.feed.stops[4].name;
-    expect(thrown(() => evaluateScenario(twin.feed, twin.patterns, { remove: [twin.feed.stops[4].name] }, { params })).message).toMatch(/ambiguous \(2 stops: v1-3, v1-4\)/);
+    const twinError = thrown(() => evaluateScenario(twin.feed, twin.patterns, { remove: [twin.feed.stops[4].name] }, { params }));
+    expect(twinError.message).toMatch(/ambiguous \(2 stops\)/);
+    expect(twinError.context.choices?.map((c) => c.split(' ')[0])).toEqual(['v1-3', 'v1-4']);
+    expect(evaluateScenario(twin.feed, twin.patterns, { remove: [{ stop: twin.feed.stops[4].name, both_directions: true }] }, { params }).patterns[0].removedStopIds).toEqual(['v1-3', 'v1-4']);
     expect(evaluateScenario(feed, patterns, { remove: ['Vellmoor Street 7'] }, { params }).patterns[0].removedStopIds).toEqual(['v1-7']);
   });
 
