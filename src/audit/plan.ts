@@ -6,16 +6,11 @@
 import type { Feed } from '../gtfs/types.js';
 import type { ModelParams } from '../model/params.js';
 import type { PreparedPattern } from '../model/preparePattern.js';
-import type { StopResult } from './types.js';
-import { weighScenario, type ScenarioInput, type ScenarioResult } from '../model/scenario.js';
+import type { NetworkPlan, StopResult } from './types.js';
+import { weighScenario, type ScenarioInput } from '../model/scenario.js';
 
-export interface NetworkPlan {
-  scenario: ScenarioInput; // remove lists only: each stop with the patterns it is dropped on
-  stopsDropped: number; // distinct feed stops
-  dropsOnPatterns: number; // (stop, pattern) pairs
-  patternsChanged: number;
-  figures: Pick<ScenarioResult, 'totals' | 'sensitivity' | 'fleet'>;
-}
+export type { NetworkPlan };
+
 
 /** The plan from the stops the optimiser drops (keptByOptimiser false); null when it keeps every stop. */
 export function optimiserPlan(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, stops: StopResult[]): NetworkPlan | null {

@@ -9,7 +9,7 @@ import type { FeedWarning } from '../common/warnings.js';
 import type { DistanceSource } from '../network/types.js';
 import type { StoppingModel } from '../model/params.js';
 import type { DemandSource, FixedReason, LostTimeSource, ObservedFigures, ParamsReport, SourceLabel } from '../model/types.js';
-import type { NetworkPlan } from './plan.js';
+import type { ScenarioInput, ScenarioResult } from '../model/scenario.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
 
@@ -187,4 +187,13 @@ export interface AuditResult {
   plan?: NetworkPlan | null;
   /** The realtime archive read, if any (its per-pattern figures are on the patterns). */
   observed?: { source: string; snapshotsRead: number; snapshotsSkipped: number; tripsMatched: number; tripsUnmatched: number } | null;
+}
+
+/** The optimiser's plan over the network: the stops it drops as a scenario, and their joint figures. */
+export interface NetworkPlan {
+  scenario: ScenarioInput; // remove lists only: each stop with the patterns it is dropped on
+  stopsDropped: number; // distinct feed stops
+  dropsOnPatterns: number; // (stop, pattern) pairs
+  patternsChanged: number;
+  figures: Pick<ScenarioResult, 'totals' | 'sensitivity' | 'fleet'>;
 }
