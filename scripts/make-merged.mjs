@@ -15,7 +15,7 @@ import { fileURLToPath } from 'node:url';
 import { Readable } from 'node:stream';
 import yazl from 'yazl';
 import { parse } from 'csv-parse/sync';
-import { readZip } from './make-scaled.mjs';
+import { readZip, writeZipFile } from './make-scaled.mjs';
 
 const repoDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const FIXED_MTIME = new Date('2026-01-01T00:00:00Z');
@@ -82,16 +82,7 @@ export async function writeMerged(feedsDir, copies, outFile) {
     })();
     zip.addReadStream(Readable.from(chunks), entry, { mtime: FIXED_MTIME, mode: 0o100644 });
   }
-  zip.end();
-  await fs.promises.mkdir(path.dirname(outFile), { recursive: true });
-  const tmp = `${outFile}.part`;
-  await new Promise((resolve, reject) => {
-    const ws = fs.createWriteStream(tmp);
-    ws.on('close', resolve);
-    ws.on('error', reject);
-    zip.outputStream.on('error', reject).pipe(ws);
-  });
-  await fs.promises.rename(tmp, outFile);
+  await writeZipFile(zip, outFile);
   return stopTimesRows;
 }
 

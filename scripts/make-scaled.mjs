@@ -132,6 +132,12 @@ export async function writeScaled(entries, k, outFile, { shiftS = 60 } = {}) {
     if (chunks) zip.addReadStream(Readable.from(chunks), name, { mtime: FIXED_MTIME, mode: 0o100644 });
     else zip.addBuffer(data, name, { mtime: FIXED_MTIME, mode: 0o100644 });
   }
+  await writeZipFile(zip, outFile);
+  return stopTimesRows;
+}
+
+/** Ends a yazl zip and writes it to outFile through a `.part` file renamed into place (no half-written zip). */
+export async function writeZipFile(zip, outFile) {
   zip.end();
   await fs.promises.mkdir(path.dirname(outFile), { recursive: true });
   const tmp = `${outFile}.part`;
@@ -142,7 +148,6 @@ export async function writeScaled(entries, k, outFile, { shiftS = 60 } = {}) {
     zip.outputStream.on('error', reject).pipe(ws);
   });
   await fs.promises.rename(tmp, outFile);
-  return stopTimesRows;
 }
 
 function parseArgs(argv) {
