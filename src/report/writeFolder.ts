@@ -93,6 +93,8 @@ async function markedNames(folder: string): Promise<Set<string> | null> {
 /** Why the existing folder is not a previous output of this tool, or null when it is one. */
 async function notAReport(folder: string): Promise<string | null> {
   const names = await markedNames(folder);
+  // an empty folder (made ready for the output, as by mkdtemp) holds nothing to lose
+  if (names === null && (await readdir(folder)).length === 0) return null;
   if (names === null) return `it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`;
   for (const entry of await readdir(folder, { withFileTypes: true })) {
     if (entry.name === REPORT_MARKER) continue;

@@ -53,6 +53,13 @@ describe('writeFolder: what it writes', () => {
     expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'history.html']);
     expect(readdirSync(work)).toEqual(['report']);
   });
+  it('fills an empty folder made ready for it (as mkdtemp makes one) with force, and refuses it without', async () => {
+    const out = join(work, 'ready');
+    mkdirSync(out);
+    expect((await rejected(writeFolder(out, [['a.csv', 'x']]))).code).toBe('output-exists');
+    await writeFolder(out, [['a.csv', 'x']], { force: true });
+    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'a.csv']);
+  });
 });
 
 describe('writeFolder: what it refuses, with or without force, leaving everything as it was', () => {
