@@ -305,12 +305,25 @@ function totalStops(c: Corridor, served: Served[], s: CostSettings): { costS: nu
 }
 
 function walkToNearestM(c: Corridor, u: number, v: number, served: Served[]): number {
+  // only the stops whose cells (midpoint to midpoint) overlap [u, v) add anything: start at the first cell
+  // ending after u (served is sorted, so cell ends rise) and stop at the first starting at or after v. The
+  // same terms in the same order as a scan of every stop, without the scan (effectOf runs per tile, and the
+  // audit's programme runs effectOf for every candidate it re-weighs).
+  const n = served.length;
+  const hiOf = (t: number) => (t === n - 1 ? Infinity : (served[t].pos + served[t + 1].pos) / 2);
+  let l = 0;
+  let h = n - 1;
+  while (l < h) {
+    const mid = (l + h) >> 1;
+    if (hiOf(mid) > u) h = mid;
+    else l = mid + 1;
+  }
   let total = 0;
-  for (let t = 0; t < served.length; t++) {
+  for (let t = l; t < n; t++) {
     const lo = t === 0 ? -Infinity : (served[t - 1].pos + served[t].pos) / 2;
-    const hi = t === served.length - 1 ? Infinity : (served[t].pos + served[t + 1].pos) / 2;
+    if (lo >= v) break;
     const a = Math.max(u, lo);
-    const b = Math.min(v, hi);
+    const b = Math.min(v, hiOf(t));
     if (b > a) total += c.walkToPointM(a, b, served[t].pos);
   }
   return total;
@@ -355,6 +368,10 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
   let walkAddedM = 0;
   let walkSavedM = 0;
   let affected = 0;
+  const placeAfter = new Int32Array(c.n).fill(-1); // where each existing stop kept stands in after
+  after.forEach((s, t) => {
+    if (s.existing >= 0) placeAfter[s.existing] = t;
+  });
   for (let m = 0; m < c.n; m++) {
     const { loM, hiM } = c.tileBounds(m);
     const before = c.walkToPointM(loM, hiM, prep.posM[m]);
@@ -362,7 +379,7 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
     if (now > before) walkAddedM += now - before;
     else walkSavedM += before - now;
     const ends = c.endsBetween(loM, hiM);
-    const t = after.findIndex((s) => s.existing === m);
+    const t = placeAfter[m];
     if (t < 0) affected += ends;
     else {
       const l = t === 0 ? -Infinity : (after[t - 1].pos + after[t].pos) / 2;
