@@ -293,15 +293,49 @@ export interface PatternEdit {
   added: number[]; // distances along
 }
 
-function totalStops(c: Corridor, served: Served[], s: CostSettings): { costS: number[]; busS: number[] } {
+function totalStops(c: Corridor, served: Served[], s: CostSettings, loM = -Infinity, hiM = Infinity): { costS: number[]; busS: number[] } {
+  // only the stops from loM to hiM (the stretch a change can reach); the others stay 0
   const costS: number[] = served.map(() => 0);
   const busS: number[] = served.map(() => 0);
   for (let t = 1; t + 1 < served.length; t++) {
+    if (served[t].pos < loM || served[t].pos > hiM) continue;
     const r = servedStopCost(c, served[t - 1].pos, served[t].pos, served[t + 1].pos, served[t].existing, s);
     costS[t] = r.costS;
     busS[t] = r.busTimePerTripS;
   }
   return { costS, busS };
+}
+
+/**
+ * The stretch of pattern a change can reach: from the second stop of today before the first position it
+ * touches to the second after the last. Outside it every stop keeps both neighbours, so its cell, its
+ * riders' walk and its delay are what they were: they add exactly nothing to the change's figures.
+ */
+function reachOf(change: PatternEdit): { loM: number; hiM: number } {
+  const pos = change.prep.posM;
+  const touched: number[] = [...change.added];
+  for (const m of change.removed) touched.push(pos[m]);
+  for (const [m, to] of change.moved) touched.push(pos[m], to);
+  if (touched.length === 0) return { loM: Infinity, hiM: -Infinity };
+  const p0 = Math.min(...touched);
+  const p1 = Math.max(...touched);
+  let below = 0;
+  let loM = -Infinity;
+  for (let m = pos.length - 1; m >= 0; m--) {
+    if (pos[m] < p0 && ++below === 2) {
+      loM = pos[m];
+      break;
+    }
+  }
+  let above = 0;
+  let hiM = Infinity;
+  for (let m = 0; m < pos.length; m++) {
+    if (pos[m] > p1 && ++above === 2) {
+      hiM = pos[m];
+      break;
+    }
+  }
+  return { loM, hiM };
 }
 
 function walkToNearestM(c: Corridor, u: number, v: number, served: Served[]): number {
@@ -372,8 +406,10 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
   after.forEach((s, t) => {
     if (s.existing >= 0) placeAfter[s.existing] = t;
   });
+  const reach = reachOf(change);
   for (let m = 0; m < c.n; m++) {
     const { loM, hiM } = c.tileBounds(m);
+    if (hiM < reach.loM || loM > reach.hiM) continue; // out of the change's reach: nothing changes there
     const before = c.walkToPointM(loM, hiM, prep.posM[m]);
     const now = walkToNearestM(c, loM, hiM, after);
     if (now > before) walkAddedM += now - before;
@@ -391,8 +427,8 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
   }
 
   // delay at stops
-  const st0 = totalStops(c, today, settings);
-  const st1 = totalStops(c, after, settings);
+  const st0 = totalStops(c, today, settings, reach.loM, reach.hiM);
+  const st1 = totalStops(c, after, settings, reach.loM, reach.hiM);
   let rideSavedS = 0;
   let neighboursS = 0;
   const keptAfter = new Map<number, number>();
