@@ -7,7 +7,7 @@ import type { Feed, Stop } from '../../src/gtfs/types.js';
 import type { Pattern } from '../../src/network/types.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { additionEvidence, buildStopIndex, FAST_STRETCH_MPS, WALK_REACH_M } from '../../src/audit/additionEvidence.js';
-import { assembleFeed, handPattern } from '../helpers/feedObject.js';
+import { assembleFeed, handPattern, routesAtStopOf } from '../helpers/feedObject.js';
 import { CAUTIONS } from '../../src/audit/cautions.js';
 
 const LAT0 = 52.1;
@@ -54,8 +54,7 @@ function corridor(crossEastM: number[], gapSpeedMps = 5) {
       }),
     );
   }
-  const routesAtStop = new Map<number, Set<string>>();
-  for (const p of patterns) for (const s of p.stopIdx) (routesAtStop.get(s) ?? routesAtStop.set(s, new Set()).get(s)!).add(p.routeId);
+  const routesAtStop = routesAtStopOf(patterns);
   const feed = assembleFeed({
     source: 'vellmoor-quay',
     date: '2026-10-14',

@@ -2,7 +2,7 @@
 // Patterns here are one per trip, with straight-line distances unless a shape offset is given.
 
 import type { Feed, Stop, Route, CalendarRow, CalendarDate } from '../../src/gtfs/types.js';
-import { assembleFeed, handPattern, type TripRows } from './feedObject.js';
+import { assembleFeed, handPattern, routesAtStopOf, type TripRows } from './feedObject.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
 import type { FeedWarning } from '../../src/common/warnings.js';
 import { haversineM } from '../../src/network/geodesy.js';
@@ -104,8 +104,7 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
       scheduledDwellS: t.times.map((x) => x[2] - x[1]),
     });
   });
-  const routesAtStop = new Map<number, Set<string>>();
-  for (const p of patterns) for (const i of p.stopIdx) (routesAtStop.get(i) ?? routesAtStop.set(i, new Set()).get(i)!).add(p.routeId);
+  const routesAtStop = routesAtStopOf(patterns);
   return { feed, patterns: { date: '2026-10-14', patterns, routesAtStop } };
 }
 

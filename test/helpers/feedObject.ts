@@ -130,3 +130,10 @@ export function handPattern(p: PatternParts): Pattern {
     scheduledDwellS,
   };
 }
+
+/** The routes serving each stop, as buildPatterns gives them in PatternSet.routesAtStop. */
+export function routesAtStopOf(patterns: Pattern[]): Map<number, Set<string>> {
+  const routesAtStop = new Map<number, Set<string>>();
+  for (const p of patterns) for (const s of p.stopIdx) (routesAtStop.get(s) ?? routesAtStop.set(s, new Set()).get(s)!).add(p.routeId);
+  return routesAtStop;
+}

@@ -2,7 +2,7 @@
 // one street (stops at the given distances), route V2 crossing it at one shared stop.
 import type { Feed, Stop } from '../../src/gtfs/types.js';
 import type { Pattern, PatternSet } from '../../src/network/types.js';
-import { assembleFeed, handPattern } from './feedObject.js';
+import { assembleFeed, handPattern, routesAtStopOf } from './feedObject.js';
 
 const LAT0 = 52.1;
 const M_PER_DEG_LAT = 111_320;
@@ -45,8 +45,7 @@ export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000
     });
   const v1 = mk('V1:0:1', 'V1', distM.map((_, j) => j), distM, tripsPerDay, runTimeS ?? distM[n - 1] / 4);
   const v2p = mk('V2:0:1', 'V2', [stopIndex.get('v2-n')!, sharedAt, stopIndex.get('v2-s')!], [0, 600, 1200], 20, 300);
-  const routesAtStop = new Map<number, Set<string>>();
-  for (const p of [v1, v2p]) for (const s of p.stopIdx) (routesAtStop.get(s) ?? routesAtStop.set(s, new Set()).get(s)!).add(p.routeId);
+  const routesAtStop = routesAtStopOf([v1, v2p]);
   const feed: Feed = assembleFeed({
     source: 'vellmoor-handmade',
     date: '2026-10-14',
