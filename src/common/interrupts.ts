@@ -3,6 +3,9 @@
 // library only registers and unregisters synchronous undo steps here; the CLI decides what a signal does
 // (it runs them and exits 130 or 143). A step must be safe to run at any moment of the work it guards.
 
+import { readdir } from 'node:fs/promises';
+import { join } from 'node:path';
+
 type Undo = () => void;
 
 const pending = new Set<Undo>();
@@ -46,4 +49,31 @@ export function pidAlive(pid: number): boolean {
   } catch (e) {
     return (e as NodeJS.ErrnoException).code === 'EPERM';
   }
+}
+
+/**
+ * The folders in parent that a run of this tool left behind and that are safe to sweep: named as nameRe
+ * matches (the run's pid in capture group pidGroup), that run no longer alive, and holding nothing but
+ * plain files that fileOk accepts. Never throws: a parent or folder it cannot read gives nothing.
+ */
+export async function staleRunFolders(parent: string, nameRe: RegExp, pidGroup: number, fileOk: (name: string) => boolean = () => true): Promise<{ path: string; match: RegExpExecArray }[]> {
+  const out: { path: string; match: RegExpExecArray }[] = [];
+  let entries;
+  try {
+    entries = await readdir(parent, { withFileTypes: true });
+  } catch {
+    return out;
+  }
+  for (const entry of entries) {
+    const match = nameRe.exec(entry.name);
+    if (!match || !entry.isDirectory() || pidAlive(Number(match[pidGroup]))) continue;
+    const path = join(parent, entry.name);
+    try {
+      const inside = await readdir(path, { withFileTypes: true });
+      if (inside.every((f) => f.isFile() && fileOk(f.name))) out.push({ path, match });
+    } catch {
+      // gone already, or not ours to read
+    }
+  }
+  return out;
 }

@@ -4,12 +4,12 @@
 // (its pid no longer alive) is removed by the next download.
 
 import { createWriteStream, rmSync } from 'node:fs';
-import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { mkdtemp, rm } from 'node:fs/promises';
 import type http from 'node:http';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { StopspanError } from '../common/errors.js';
-import { pidAlive, undoOnInterrupt } from '../common/interrupts.js';
+import { staleRunFolders, undoOnInterrupt } from '../common/interrupts.js';
 import type { OnProgress } from '../common/progress.js';
 
 export interface DownloadLimits {
@@ -101,22 +101,13 @@ const DOWNLOAD_DIR = /^stopspan-dl-(\d+)-[A-Za-z0-9]{6}$/;
  */
 export async function sweepStaleDownloads(parent = tmpdir()): Promise<string[]> {
   const removed: string[] = [];
-  let entries;
-  try {
-    entries = await readdir(parent, { withFileTypes: true });
-  } catch {
-    return removed;
-  }
-  for (const entry of entries) {
-    const m = DOWNLOAD_DIR.exec(entry.name);
-    if (!m || !entry.isDirectory() || pidAlive(Number(m[1]))) continue;
+  // a download leaves only feed.zip in its folder; anything else is not ours to touch
+  for (const { path } of await staleRunFolders(parent, DOWNLOAD_DIR, 1, (name) => name === 'feed.zip')) {
     try {
-      const inside = await readdir(join(parent, entry.name), { withFileTypes: true });
-      if (!inside.every((f) => f.isFile() && f.name === 'feed.zip')) continue; // not what a download leaves
-      await rm(join(parent, entry.name), { recursive: true, force: true });
-      removed.push(join(parent, entry.name));
+      await rm(path, { recursive: true, force: true });
+      removed.push(path);
     } catch {
-      // gone already, or not ours to touch
+      // gone already
     }
   }
   return removed;

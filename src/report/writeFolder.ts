@@ -12,7 +12,7 @@ import { lstat, mkdir, readdir, readFile, realpath, rename, rm, rmdir, stat, wri
 import { homedir } from 'node:os';
 import { basename, dirname, join, resolve, sep } from 'node:path';
 import { StopspanError } from '../common/errors.js';
-import { pidAlive, undoOnInterrupt } from '../common/interrupts.js';
+import { staleRunFolders, undoOnInterrupt } from '../common/interrupts.js';
 import { version } from '../version.js';
 
 /** The marker file written into every output folder: which tool wrote it, and the files it wrote. */
@@ -113,19 +113,8 @@ async function notAReport(folder: string): Promise<string | null> {
  */
 export async function sweepStaleTemp(parent: string): Promise<string[]> {
   const done: string[] = [];
-  let entries;
-  try {
-    entries = await readdir(parent, { withFileTypes: true });
-  } catch {
-    return done;
-  }
-  for (const entry of entries) {
-    const m = TEMP_NAME.exec(entry.name);
-    if (!m || !entry.isDirectory() || pidAlive(Number(m[3]))) continue;
-    const path = join(parent, entry.name);
+  for (const { path, match: m } of await staleRunFolders(parent, TEMP_NAME, 3)) {
     try {
-      const inside = await readdir(path, { withFileTypes: true });
-      if (!inside.every((f) => f.isFile())) continue; // not what this tool leaves: leave it alone
       const target = join(parent, m[1]);
       if (m[2] === 'old' && (await lstatOrNull(target)) === null) await rename(path, target);
       else await rm(path, { recursive: true, force: true });
