@@ -82,18 +82,15 @@ export const PAGE_SCRIPT = String.raw`
       span.appendChild(document.createTextNode(' ' + it[1]));
       box.appendChild(span);
     });
-    var s2 = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
-    s2.appendChild(sv('line', { 'class': 'gap-wide', x1: 1, x2: 25, y1: 6, y2: 6 }));
-    var sp2 = el('span');
-    sp2.appendChild(s2);
-    sp2.appendChild(document.createTextNode(' wide gap (above the band), labelled W'));
-    box.appendChild(sp2);
-    var s3 = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
-    s3.appendChild(sv('line', { 'class': 'gap-empty', x1: 1, x2: 25, y1: 6, y2: 6 }));
-    var sp3 = el('span');
-    sp3.appendChild(s3);
-    sp3.appendChild(document.createTextNode(' empty stretch: a wide gap with no sign anyone is there, listed for review, labelled E'));
-    box.appendChild(sp3);
+    // a gap's line style and its words
+    [['gap-wide', 'wide gap (above the band), labelled W'], ['gap-empty', 'empty stretch: a wide gap with no sign anyone is there, listed for review, labelled E']].forEach(function (it) {
+      var ln = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
+      ln.appendChild(sv('line', { 'class': it[0], x1: 1, x2: 25, y1: 6, y2: 6 }));
+      var span = el('span');
+      span.appendChild(ln);
+      span.appendChild(document.createTextNode(' ' + it[1]));
+      box.appendChild(span);
+    });
     return box;
   }
   function stopTitle(p, s) {
