@@ -98,8 +98,14 @@ a.pat-link { font-size:12.5px; white-space:nowrap; }
   header.top { padding:12px 14px 10px; }
   header.top p { overflow-wrap:anywhere; }
   main { padding:12px 12px 40px; }
-  .cards { grid-template-columns:1fr 1fr; }
+  /* below 700 px nothing's own width may widen the page, whatever fonts the browser has: grid tracks may
+     shrink below their content, words break where they must, and a control takes the full row */
+  .cards { grid-template-columns:minmax(0, 1fr) minmax(0, 1fr); }
   .card .v { font-size:18px; }
+  .card .k, h1, h2, h3, h4, p, li, dt, dd, summary, .legend > * { overflow-wrap:anywhere; }
+  .controls > * { min-width:0; }
+  .controls label { flex:1 1 100%; }
+  .controls select, .controls input[type=search] { width:100%; }
   .pat-grid > * { min-width:0; }
   .kv { grid-template-columns:1fr; }
   code { overflow-wrap:anywhere; }
