@@ -10,7 +10,9 @@ import type { Feed } from '../gtfs/types.js';
 import type { ModelParams } from '../model/params.js';
 import type { PreparedPattern } from '../model/preparePattern.js';
 import type { Candidate } from './types.js';
-import { effectOf, resolveChanges, type PatternEdit, type ScenarioInput, type ScenarioPatternEffect } from '../model/scenario.js';
+import { costSettings } from '../model/preparePattern.js';
+import type { CostSettings } from '../model/corridor.js';
+import { effectTerms, reachAround, reachOf, resolveChanges, servedAfter, touchedSpan, type Window, type EffectTerms, type PatternEdit, type ScenarioInput, type ScenarioPatternEffect } from '../model/scenario.js';
 
 /** The scenario item of one candidate: a removal on its patterns, or an addition on its patterns. */
 export function candidateScenario(c: Candidate): ScenarioInput {
@@ -38,15 +40,20 @@ type Figures = Pick<ScenarioPatternEffect, 'netPaxMinPerDay' | 'ridersAffectedPe
 const ZERO: Figures = { netPaxMinPerDay: 0, ridersAffectedPerDay: 0, walkAddedPaxMinPerDay: 0, rideSavedPaxMinPerDay: 0, vehicleHoursPerDay: 0, tripsPerDay: 0, busSPerDay: 0 };
 
 /** As the candidate columns count them: walk added net of walk saved, ride saved net of neighbours' extra stopping. */
-function figuresOf(e: ScenarioPatternEffect): Figures {
+function figuresOf(t: EffectTerms, s: CostSettings, tripsPerDay: number): Figures {
+  const wv = s.walkWeight / s.walkSpeedMps;
+  const walkAdded = (wv * t.walkAddedM) / 60;
+  const walkSaved = (wv * t.walkSavedM) / 60;
+  const rideSaved = t.rideSavedS / 60;
+  const neighbours = t.neighboursS / 60;
   return {
-    netPaxMinPerDay: e.netPaxMinPerDay,
-    ridersAffectedPerDay: e.ridersAffectedPerDay,
-    walkAddedPaxMinPerDay: e.walkAddedPaxMinPerDay - e.walkSavedPaxMinPerDay,
-    rideSavedPaxMinPerDay: e.rideSavedPaxMinPerDay - e.neighboursExtraPaxMinPerDay,
-    vehicleHoursPerDay: e.vehicleHoursPerDay,
-    tripsPerDay: e.tripsPerDay,
-    busSPerDay: e.runTimeSavedPerTripS * e.tripsPerDay,
+    netPaxMinPerDay: walkAdded - walkSaved - rideSaved + neighbours,
+    ridersAffectedPerDay: t.affected,
+    walkAddedPaxMinPerDay: walkAdded - walkSaved,
+    rideSavedPaxMinPerDay: rideSaved - neighbours,
+    vehicleHoursPerDay: (t.busSavedS * tripsPerDay) / 3600,
+    tripsPerDay,
+    busSPerDay: t.busSavedS * tripsPerDay,
   };
 }
 
@@ -86,17 +93,32 @@ export function programmeCandidates(feed: Feed, date: string, preps: PreparedPat
     }
   });
   const current = new Map<string, PatternEdit>(); // accepted edits per pattern
-  const currentFig = new Map<string, Figures>();
+  const servedNow = new Map<string, number[]>(); // the positions they leave served, per pattern
+  const settingsOf = new Map<string, CostSettings>();
   const marginal: (Figures | null)[] = candidates.map(() => null); // null: to be (re)computed
+  // per candidate and pattern, the stretch its marginal figures depend on: the stops and tiles it was
+  // summed over and the two stops served either side of them. An accepted edit touching nothing in it
+  // leaves the figures as they are (every term they sum sees the same stops), so they are not re-weighed.
+  const dependsOn: Map<string, Window>[] = candidates.map(() => new Map());
   const perPattern = new Map<string, number[]>(); // pattern -> candidates touching it
   edits.forEach((m, i) => m?.forEach((_, pid) => perPattern.set(pid, [...(perPattern.get(pid) ?? []), i])));
   const open = new Set(edits.flatMap((m, i) => (m ? [i] : [])));
   const out: Candidate[] = [];
+  // A candidate's marginal effect on a pattern: the accepted edits with it against those without it. The
+  // two differ only within the candidate's reach among the stops the accepted edits leave served, so both
+  // are summed over that stretch alone; every term outside it is the same in both and cancels exactly.
   const weigh = (i: number): Figures => {
     const f = { ...ZERO };
     for (const [pid, edit] of edits[i]!) {
-      const after = figuresOf(effectOf(feed, merged(current.get(pid), edit), params, w));
-      const before = currentFig.get(pid) ?? ZERO;
+      const base = current.get(pid);
+      let settings = settingsOf.get(pid);
+      if (!settings) settingsOf.set(pid, (settings = costSettings(edit.prep, params, { walkWeight: w })));
+      const window = base ? reachOf(edit, servedNow.get(pid)!) : reachOf(edit);
+      const trips = edit.prep.pattern.tripsPerDay;
+      const terms = effectTerms(merged(base, edit), settings, window);
+      dependsOn[i].set(pid, reachAround(servedNow.get(pid) ?? edit.prep.posM, terms.spanLoM, terms.spanHiM));
+      const after = figuresOf(terms, settings, trips);
+      const before = base ? figuresOf(effectTerms(base, settings, window), settings, trips) : ZERO;
       for (const k of Object.keys(f) as (keyof Figures)[]) if (k !== 'tripsPerDay') f[k] += after[k] - before[k];
       f.tripsPerDay += after.tripsPerDay;
     }
@@ -117,9 +139,13 @@ export function programmeCandidates(feed: Feed, date: string, preps: PreparedPat
     open.delete(best);
     for (const [pid, edit] of edits[best]!) {
       const next = merged(current.get(pid), edit);
+      const touched = touchedSpan(edit);
       current.set(pid, next);
-      currentFig.set(pid, figuresOf(effectOf(feed, next, params, w)));
-      for (const j of perPattern.get(pid) ?? []) marginal[j] = null; // re-weigh every candidate this pattern touches
+      servedNow.set(pid, servedAfter(next));
+      for (const j of perPattern.get(pid) ?? []) {
+        const d = dependsOn[j].get(pid);
+        if (!d || (touched.loM <= d.hiM && touched.hiM >= d.loM)) marginal[j] = null; // within its reach: re-weigh
+      }
     }
     const c = candidates[best];
     out.push({

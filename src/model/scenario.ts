@@ -293,12 +293,11 @@ export interface PatternEdit {
   added: number[]; // distances along
 }
 
-function totalStops(c: Corridor, served: Served[], s: CostSettings, loM = -Infinity, hiM = Infinity): { costS: number[]; busS: number[] } {
+function totalStops(c: Corridor, served: Served[], s: CostSettings, loM = -Infinity, hiM = Infinity): { costS: Float64Array; busS: Float64Array } {
   // only the stops from loM to hiM (the stretch a change can reach); the others stay 0
-  const costS: number[] = served.map(() => 0);
-  const busS: number[] = served.map(() => 0);
-  for (let t = 1; t + 1 < served.length; t++) {
-    if (served[t].pos < loM || served[t].pos > hiM) continue;
+  const costS = new Float64Array(served.length);
+  const busS = new Float64Array(served.length);
+  for (let t = Math.max(1, firstAtOrAbove(served, loM)); t + 1 < served.length && served[t].pos <= hiM; t++) {
     const r = servedStopCost(c, served[t - 1].pos, served[t].pos, served[t + 1].pos, served[t].existing, s);
     costS[t] = r.costS;
     busS[t] = r.busTimePerTripS;
@@ -306,36 +305,174 @@ function totalStops(c: Corridor, served: Served[], s: CostSettings, loM = -Infin
   return { costS, busS };
 }
 
+/** The first index of a list sorted by pos whose pos is at or above y (the length when none is). */
+function firstAtOrAbove(served: Served[], y: number): number {
+  let l = 0;
+  let h = served.length;
+  while (l < h) {
+    const mid = (l + h) >> 1;
+    if (served[mid].pos < y) l = mid + 1;
+    else h = mid;
+  }
+  return l;
+}
+
 /**
- * The stretch of pattern a change can reach: from the second stop of today before the first position it
+ * The stretch of pattern a change can reach: from the second stop served before the first position it
  * touches to the second after the last. Outside it every stop keeps both neighbours, so its cell, its
- * riders' walk and its delay are what they were: they add exactly nothing to the change's figures.
+ * riders' walk and its delay are what they were: they add exactly nothing to the change's figures. The
+ * stops served are today's unless `servedPos` (sorted) gives those of another state, such as a programme's
+ * accepted edits, against which the change is then weighed.
  */
-function reachOf(change: PatternEdit): { loM: number; hiM: number } {
+export function reachOf(change: PatternEdit, servedPos: ArrayLike<number> = change.prep.posM): Window {
+  const t = touchedSpan(change);
+  return t.loM > t.hiM ? t : reachAround(servedPos, t.loM, t.hiM);
+}
+
+/** From the first position a change touches (a stop removed, moved or added) to the last; empty when none. */
+export function touchedSpan(change: PatternEdit): Window {
   const pos = change.prep.posM;
   const touched: number[] = [...change.added];
   for (const m of change.removed) touched.push(pos[m]);
   for (const [m, to] of change.moved) touched.push(pos[m], to);
   if (touched.length === 0) return { loM: Infinity, hiM: -Infinity };
-  const p0 = Math.min(...touched);
-  const p1 = Math.max(...touched);
+  return { loM: Math.min(...touched), hiM: Math.max(...touched) };
+}
+
+/** From the second position served below p0 to the second above p1 (servedPos sorted). */
+export function reachAround(servedPos: ArrayLike<number>, p0: number, p1: number): Window {
   let below = 0;
   let loM = -Infinity;
-  for (let m = pos.length - 1; m >= 0; m--) {
-    if (pos[m] < p0 && ++below === 2) {
-      loM = pos[m];
+  for (let m = servedPos.length - 1; m >= 0; m--) {
+    if (servedPos[m] < p0 && ++below === 2) {
+      loM = servedPos[m];
       break;
     }
   }
   let above = 0;
   let hiM = Infinity;
-  for (let m = 0; m < pos.length; m++) {
-    if (pos[m] > p1 && ++above === 2) {
-      hiM = pos[m];
+  for (let m = 0; m < servedPos.length; m++) {
+    if (servedPos[m] > p1 && ++above === 2) {
+      hiM = servedPos[m];
       break;
     }
   }
   return { loM, hiM };
+}
+
+/** A stretch of pattern, metres along it. */
+export interface Window {
+  loM: number;
+  hiM: number;
+}
+
+/** The stops served today and after a change, in order along the pattern. */
+function servedLists(change: PatternEdit): { today: Served[]; after: Served[] } {
+  const { prep, removed, moved, added } = change;
+  let today = todayOf.get(prep);
+  if (!today) todayOf.set(prep, (today = prep.posM.map((pos, m) => ({ pos, existing: m }))));
+  // the stops kept stay in today's order; the new and moved ones, sorted, are merged in before any kept
+  // stop at the same place (the order a sort by place, then by existing index, gives)
+  const extra: number[] = [];
+  for (const [, to] of [...moved].sort((a, b) => a[0] - b[0])) extra.push(to);
+  extra.push(...added);
+  const extraSorted = extra.map((pos, k) => ({ pos, k })).sort((a, b) => a.pos - b.pos || a.k - b.k);
+  const after: Served[] = [];
+  let e = 0;
+  for (const s of today) {
+    if (removed.has(s.existing) || moved.has(s.existing)) continue;
+    while (e < extraSorted.length && extraSorted[e].pos <= s.pos) after.push({ pos: extraSorted[e++].pos, existing: -1 });
+    after.push(s);
+  }
+  while (e < extraSorted.length) after.push({ pos: extraSorted[e++].pos, existing: -1 });
+  return { today, after };
+}
+const todayOf = new WeakMap<PreparedPattern, Served[]>();
+
+/** The positions served after a change (sorted): the state a further change is weighed against. */
+export function servedAfter(change: PatternEdit): number[] {
+  return servedLists(change).after.map((s) => s.pos);
+}
+
+/**
+ * A change's figures against today, summed over the tiles and stops inside `window` only: each is a sum of
+ * terms per tile (walk, riders affected) and per stop served (delay), so two changes that agree outside a
+ * window differ by exactly the difference of these sums over it.
+ */
+export interface EffectTerms {
+  walkAddedM: number; // metres walked further, summed over riders
+  walkSavedM: number; // metres walked less
+  affected: number; // riders whose stop changes
+  rideSavedS: number; // delay saved at stops no longer served, less that of new stops (s a day)
+  neighboursS: number; // the changed delay at stops kept (s a day)
+  busSavedS: number; // run time saved per trip (s)
+  spanLoM: number; // the stretch the sums looked at: the window and the tiles that meet it
+  spanHiM: number;
+}
+
+export function effectTerms(change: PatternEdit, settings: CostSettings, window: Window, lists = servedLists(change)): EffectTerms {
+  const c = change.prep.corridor;
+  const posM = change.prep.posM;
+  const { today, after } = lists;
+  // walk, tile by tile (each tile's riders used stop m today)
+  let walkAddedM = 0;
+  let walkSavedM = 0;
+  let affected = 0;
+  // the tiles that meet the window (tiles are in order along the line; the others are the same in both states)
+  let m0 = 0;
+  for (let h = c.n; m0 < h; ) {
+    const mid = (m0 + h) >> 1;
+    if (c.tileBounds(mid).hiM < window.loM) m0 = mid + 1;
+    else h = mid;
+  }
+  let m1 = m0; // one past the last
+  let spanLoM = window.loM;
+  let spanHiM = window.hiM;
+  for (; m1 < c.n; m1++) {
+    const { loM, hiM } = c.tileBounds(m1);
+    if (loM > window.hiM) break;
+    if (loM < spanLoM) spanLoM = loM;
+    if (hiM > spanHiM) spanHiM = hiM;
+  }
+  // where each existing stop kept in that stretch stands in after (a stop lies inside its own tile)
+  const placeAfter = new Map<number, number>();
+  for (let t = firstAtOrAbove(after, spanLoM); t < after.length && after[t].pos <= spanHiM; t++) {
+    if (after[t].existing >= 0) placeAfter.set(after[t].existing, t);
+  }
+  for (let m = m0; m < m1; m++) {
+    const { loM, hiM } = c.tileBounds(m);
+    const before = c.walkToPointM(loM, hiM, posM[m]);
+    const now = walkToNearestM(c, loM, hiM, after);
+    if (now > before) walkAddedM += now - before;
+    else walkSavedM += before - now;
+    const ends = c.endsBetween(loM, hiM);
+    const t = placeAfter.get(m) ?? -1;
+    if (t < 0) affected += ends;
+    else {
+      const l = t === 0 ? -Infinity : (after[t - 1].pos + after[t].pos) / 2;
+      const r = t === after.length - 1 ? Infinity : (after[t].pos + after[t + 1].pos) / 2;
+      const a = Math.max(loM, l);
+      const b = Math.min(hiM, r);
+      affected += ends - (b > a ? c.endsBetween(a, b) : 0);
+    }
+  }
+
+  // delay at stops
+  const st0 = totalStops(c, today, settings, window.loM, window.hiM);
+  const st1 = totalStops(c, after, settings, window.loM, window.hiM);
+  let rideSavedS = 0;
+  let neighboursS = 0;
+  // (the costs are 0 outside the window, so only its stops add anything)
+  for (let t = firstAtOrAbove(today, window.loM); t < today.length && today[t].pos <= window.hiM; t++) {
+    const u = placeAfter.get(t) ?? -1; // today's stop t is model stop t
+    if (u < 0) rideSavedS += st0.costS[t];
+    else neighboursS += st1.costS[u] - st0.costS[t];
+  }
+  for (let t = firstAtOrAbove(after, window.loM); t < after.length && after[t].pos <= window.hiM; t++) {
+    if (after[t].existing < 0) rideSavedS -= st1.costS[t];
+  }
+  const busSavedS = st0.busS.reduce((x, y) => x + y, 0) - st1.busS.reduce((x, y) => x + y, 0);
+  return { walkAddedM, walkSavedM, affected, rideSavedS, neighboursS, busSavedS, spanLoM, spanHiM };
 }
 
 function walkToNearestM(c: Corridor, u: number, v: number, served: Served[]): number {
@@ -388,62 +525,9 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
   const c = prep.corridor;
   const settings = costSettings(prep, params, { walkWeight });
   const wv = settings.walkWeight / settings.walkSpeedMps;
-  const today: Served[] = prep.posM.map((pos, m) => ({ pos, existing: m }));
-  const after: Served[] = [];
-  prep.posM.forEach((pos, m) => {
-    if (removed.has(m)) return;
-    const to = moved.get(m);
-    after.push(to === undefined ? { pos, existing: m } : { pos: to, existing: -1 });
-  });
-  for (const pos of added) after.push({ pos, existing: -1 });
-  after.sort((a, b) => a.pos - b.pos || a.existing - b.existing);
-
-  // walk, tile by tile (each tile's riders used stop m today)
-  let walkAddedM = 0;
-  let walkSavedM = 0;
-  let affected = 0;
-  const placeAfter = new Int32Array(c.n).fill(-1); // where each existing stop kept stands in after
-  after.forEach((s, t) => {
-    if (s.existing >= 0) placeAfter[s.existing] = t;
-  });
-  const reach = reachOf(change);
-  for (let m = 0; m < c.n; m++) {
-    const { loM, hiM } = c.tileBounds(m);
-    if (hiM < reach.loM || loM > reach.hiM) continue; // out of the change's reach: nothing changes there
-    const before = c.walkToPointM(loM, hiM, prep.posM[m]);
-    const now = walkToNearestM(c, loM, hiM, after);
-    if (now > before) walkAddedM += now - before;
-    else walkSavedM += before - now;
-    const ends = c.endsBetween(loM, hiM);
-    const t = placeAfter[m];
-    if (t < 0) affected += ends;
-    else {
-      const l = t === 0 ? -Infinity : (after[t - 1].pos + after[t].pos) / 2;
-      const r = t === after.length - 1 ? Infinity : (after[t].pos + after[t + 1].pos) / 2;
-      const a = Math.max(loM, l);
-      const b = Math.min(hiM, r);
-      affected += ends - (b > a ? c.endsBetween(a, b) : 0);
-    }
-  }
-
-  // delay at stops
-  const st0 = totalStops(c, today, settings, reach.loM, reach.hiM);
-  const st1 = totalStops(c, after, settings, reach.loM, reach.hiM);
-  let rideSavedS = 0;
-  let neighboursS = 0;
-  const keptAfter = new Map<number, number>();
-  after.forEach((s, t) => {
-    if (s.existing >= 0) keptAfter.set(s.existing, t);
-  });
-  today.forEach((s, t) => {
-    const u = keptAfter.get(s.existing);
-    if (u === undefined) rideSavedS += st0.costS[t];
-    else neighboursS += st1.costS[u] - st0.costS[t];
-  });
-  after.forEach((s, t) => {
-    if (s.existing < 0) rideSavedS -= st1.costS[t];
-  });
-  const busSaved = st0.busS.reduce((x, y) => x + y, 0) - st1.busS.reduce((x, y) => x + y, 0);
+  const lists = servedLists(change);
+  const { today, after } = lists;
+  const { walkAddedM, walkSavedM, affected, rideSavedS, neighboursS, busSavedS } = effectTerms(change, settings, reachOf(change), lists);
   const walkAdded = (wv * walkAddedM) / 60;
   const walkSaved = (wv * walkSavedM) / 60;
   const rideSaved = rideSavedS / 60;
@@ -471,8 +555,8 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
     rideSavedPaxMinPerDay: rideSaved,
     neighboursExtraPaxMinPerDay: neighbours,
     netPaxMinPerDay: walkAdded - walkSaved - rideSaved + neighbours,
-    runTimeSavedPerTripS: busSaved,
-    vehicleHoursPerDay: (busSaved * prep.pattern.tripsPerDay) / 3600,
+    runTimeSavedPerTripS: busSavedS,
+    vehicleHoursPerDay: (busSavedS * prep.pattern.tripsPerDay) / 3600,
     largestGapBeforeM: largestGap(today),
     largestGapAfterM: largestGap(after),
     coverageBefore: coverage(today, c.startM, c.endM, radius),
