@@ -18,6 +18,9 @@ describe('programmeCandidates', () => {
   it.each([
     ['uniform close stops', Array.from({ length: 16 }, (_, k) => k * 50)],
     ['uneven stops with a wide gap', [0, 90, 170, 260, 330, 900, 980, 1050, 1130, 1210, 1290, 1800, 1870, 1950]],
+    // long enough that most accepted edits lie beyond the reach of the other candidates, whose figures are
+    // then kept rather than weighed again: the prefixes must still add up exactly
+    ['a long corridor of close stops and wide gaps', Array.from({ length: 60 }, (_, k) => k * 70 + (k % 9 === 0 ? 0 : 25 * (k % 3)) + Math.floor(k / 15) * 900)],
   ])('%s: every prefix sum equals whatif of the same set', (_, distM) => {
     const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 80, sharedAt: 4 });
     const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
