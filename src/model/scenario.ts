@@ -580,7 +580,22 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
     if (!ch) changes.set(prep.pattern.id, (ch = { prep, removed: new Set(), moved: new Map(), added: [] }));
     return ch;
   };
-  const positionsOf = (prep: PreparedPattern, stopIdx: number) => prep.modelStops.map((j, m) => (prep.pattern.stopIdx[j] === stopIdx ? m : -1)).filter((m) => m >= 0);
+  // a pattern's model positions by feed stop, built when the pattern is first looked at: a scan of the
+  // pattern per stop named made a plan dropping most of a long pattern's stops quadratic in its stops
+  const positionsByPattern = new Map<PreparedPattern, Map<number, number[]>>();
+  const positionsOf = (prep: PreparedPattern, stopIdx: number): number[] => {
+    let at = positionsByPattern.get(prep);
+    if (!at) {
+      const made = new Map<number, number[]>();
+      prep.modelStops.forEach((j, m) => {
+        const list = made.get(prep.pattern.stopIdx[j]);
+        if (list) list.push(m);
+        else made.set(prep.pattern.stopIdx[j], [m]);
+      });
+      positionsByPattern.set(prep, (at = made));
+    }
+    return at.get(stopIdx) ?? [];
+  };
   const checkRoutes = (routes: string[] | undefined, where: string) => {
     for (const r of routes ?? []) if (!feed.routes.has(r) && ![...feed.routes.values()].some((x) => x.shortName === r)) throw bad(`${where}: unknown route ${r} (neither a route_id nor a route_short_name)`, r);
   };
