@@ -406,7 +406,7 @@ async function floodCases(outDir) {
   }
   {
     writeFolder(join(outDir, 'trip-flood'), { ...twoStopTrips(1_000_000), 'shapes.txt': '' });
-    cases.push({ name: 'trip-flood', path: 'trip-flood', exit: 2, words: ['stop_times.txt', 'stop lists'], large: true, ...bounds, why: 'a million two-stop trips, each with its own stop list: refused while stop_times.txt is read' });
+    cases.push({ name: 'trip-flood', path: 'trip-flood', exit: 2, words: ['trips.txt', 'trip_id', 'G500000'], large: true, ...bounds, why: 'a million two-stop trips, each with its own stop list: over the cap of 500 000 trips, refused while trips.txt is read' });
   }
   {
     const n = 300_000;

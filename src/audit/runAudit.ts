@@ -24,7 +24,7 @@ import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
 import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';
 import { buildCandidates, candidateKey } from './candidates.js';
-import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES } from './sensitivity.js';
+import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES, sensitivityWalkWeights } from './sensitivity.js';
 
 export interface RunAuditOptions {
   /** Raw parameters (validated here) or parameters already normalised by normalizeParams. */
@@ -65,7 +65,8 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
 
   onProgress?.({ stage: 'verdicts' });
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
-  const parts = preps.map((p) => patternParts(p, params));
+  const walkWeights = sensitivityWalkWeights(params);
+  const parts = preps.map((p) => patternParts(p, params, walkWeights));
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));

@@ -25,6 +25,11 @@ export function sensitivitySettings(params: ModelParams): SensitivitySetting[] {
   ];
 }
 
+/** The walk weights the audit and its sensitivity cases model, params' own first: each pattern's optimiser runs for all at once. */
+export function sensitivityWalkWeights(params: ModelParams): number[] {
+  return [...new Set([params.walk_weight, ...sensitivitySettings(params).map((s) => s.walkWeight)])];
+}
+
 /** How many of the base case's leading candidates are compared in candidatesKept. */
 export const SENSITIVITY_TOP_CANDIDATES = 10;
 
@@ -41,7 +46,7 @@ export function runSensitivity(
   {
     settings = sensitivitySettings(params),
     baseAnalyses,
-    parts = preps.map((p) => patternParts(p, params)),
+    parts = preps.map((p) => patternParts(p, params, sensitivityWalkWeights(params))),
     reported = () => true,
   }: {
     /** The routes a report shows (--routes and the other filters): the case figures count their patterns and candidates only; every figure is still computed on the whole network. */

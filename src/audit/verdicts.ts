@@ -11,7 +11,7 @@ import { bandM } from '../model/band.js';
 import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
-import { optimiseStops, type OptimiseResult } from '../model/optimiser.js';
+import { optimiseStopsAt, type OptimiseResult } from '../model/optimiser.js';
 import { costPerRiderS } from '../model/sqrtLaw.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import type { ModelParams } from '../model/params.js';
@@ -184,13 +184,15 @@ export interface PatternParts {
   removal: (ChangeParts | null)[]; // per model stop; null at the ends and for fixed stops
   addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
   optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
+  /** The walk weights optimised together when the first of them is asked for (one sweep of the stops serves all). */
+  walkWeights: number[];
   gapsM: number[]; // per model gap
   medianGapM: number;
   feedStopsByModelPos: number[];
   modelPosOf: Map<number, number>; // pattern stop index -> model position
 }
 
-export function patternParts(prep: PreparedPattern, params: ModelParams): PatternParts {
+export function patternParts(prep: PreparedPattern, params: ModelParams, walkWeights: number[] = [params.walk_weight]): PatternParts {
   const settings = costSettings(prep, params, {});
   const { posM, modelStops, pattern } = prep;
   const n = modelStops.length;
@@ -208,6 +210,7 @@ export function patternParts(prep: PreparedPattern, params: ModelParams): Patter
     removal,
     addition: [],
     optimised: new Map(),
+    walkWeights,
     gapsM,
     medianGapM: median(gapsM, 0),
     feedStopsByModelPos: modelStops.map((j) => pattern.stopIdx[j]),
@@ -297,13 +300,15 @@ export function analysePattern(
   const meanGapM = gapsM.length ? lengthM / gapsM.length : 0;
 
   // the optimiser, with operating cost when set, and today's cost by the same objective
+  // (this walk weight with the others of parts.walkWeights not optimised yet, in one run)
   let optimised = parts.optimised.get(walkWeight);
   if (!optimised) {
-    const optSettings = costSettings(prep, params, { walkWeight, withOperatingCost: true });
+    const weights = [walkWeight, ...new Set(parts.walkWeights.filter((w) => w !== walkWeight && !parts.optimised.has(w)))];
+    const optSettings = weights.map((w) => costSettings(prep, params, { walkWeight: w, withOperatingCost: true }));
     const forced = prep.fixedReason.map((r) => r !== '');
-    const best = optimiseStops(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
-    optimised = { best, todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings) };
-    parts.optimised.set(walkWeight, optimised);
+    const bests = optimiseStopsAt(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
+    weights.forEach((w, q) => parts.optimised.set(w, { best: bests[q], todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings[q]) }));
+    optimised = parts.optimised.get(walkWeight)!;
   }
   const { best, todayCostS } = optimised;
   // rounding noise of the two sums is not a loss

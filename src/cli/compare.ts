@@ -4,8 +4,7 @@
 import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
-import type { AuditResult } from '../audit/types.js';
-import type { Comparison } from '../compare/compare.js';
+import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
@@ -55,7 +54,7 @@ export function registerCompare(program: Command): void {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ compareFeeds, comparedPart }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
           import('../compare/compare.js'),
           import('../audit/runAudit.js'),
           import('../report/compareRender.js'),
@@ -67,18 +66,19 @@ export function registerCompare(program: Command): void {
         // the same parameters and ridership file on both sides, so the figures differ only by the feeds
         const params = o.audit ? mergeParams(o.params, {}) : undefined;
         let a, b;
-        let oldAudit: AuditResult | undefined;
+        let oldAudit: AuditBrief | undefined;
         try {
           a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
-          if (params && a.patterns.patterns.length > 0) oldAudit = runAudit(a.feed, a.patterns, { params, ridership: o.ridership });
+          // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
+          if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership }));
           a = { ...a, feed: comparedPart(a.feed, a.patterns) };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
         } finally {
           progress.done();
         }
-        let audits: { old: AuditResult; new: AuditResult } | undefined;
-        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: runAudit(b.feed, b.patterns, { params, ridership: o.ridership }) };
+        let audits: { old: AuditBrief; new: AuditBrief } | undefined;
+        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: auditBrief(runAudit(b.feed, b.patterns, { params, ridership: o.ridership })) };
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
         const code = compareExitCode(c, tripLossPct);
         const doc = compareDocument(c, { old: a.date, new: b.date }, { old: a.analysis, new: b.analysis }, tripLossPct ?? null, code);

@@ -117,8 +117,8 @@ export interface Comparison {
 export interface CompareOptions {
   /** A stop whose position changed by more than this counts as moved. Default 10 m (common practice: below GPS survey noise of a few metres). */
   moveThresholdM?: number;
-  /** The audits of both versions, for close stops, wide gaps, passenger-minutes and candidates. */
-  audits?: { old: AuditResult; new: AuditResult };
+  /** The audits of both versions, for close stops, wide gaps, passenger-minutes and candidates (what compareFeeds reads of them). */
+  audits?: { old: AuditBrief; new: AuditBrief };
   /** Two patterns of the same route and direction are the same pattern changed when they share at least this share of the shorter one's stops. Default 0.5. */
   minSharedShare?: number;
   /** At most this many trip_ids listed per pattern as added or removed (the counts are always whole). Default 10. */
@@ -443,7 +443,15 @@ function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newS
   return out.sort((x, y) => relChange(x) - relChange(y) || (x.routeId < y.routeId ? -1 : x.routeId > y.routeId ? 1 : 0));
 }
 
-function spacingPicture(set: PatternSet, audit: AuditResult | undefined): SpacingPicture {
+/** What a comparison reads of an audit: a caller may hold this alone while the other feed is read and audited. */
+export type AuditBrief = Pick<AuditResult, 'headline' | 'candidates'>;
+
+/** The parts of an audit a comparison reads, the rest (per stop, gap and pattern) let go. */
+export function auditBrief({ headline, candidates }: AuditBrief): AuditBrief {
+  return { headline, candidates };
+}
+
+function spacingPicture(set: PatternSet, audit: AuditBrief | undefined): SpacingPicture {
   let trips = 0;
   for (const p of set.patterns) trips += p.tripsPerDay;
   return {

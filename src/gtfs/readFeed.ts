@@ -43,6 +43,13 @@ const REQUIRED_TABLES = ['agency.txt', 'routes.txt', 'trips.txt', 'stop_times.tx
  */
 export const SHAPE_CAPS = { pointsPerShape: 200_000, points: 4_000_000 } as const;
 
+/**
+ * Cap on the trips read from trips.txt: every trip is held (id, route, service, headsign, shape and
+ * direction) until the analysis date says which run, a few hundred bytes each. Manhattan's buses have
+ * 37 872 trips and six copies of them with the subway 247 853; the cap is about twice that.
+ */
+export const MAX_TRIPS = 500_000;
+
 /** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
 export async function readFeed(source: string, { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {}): Promise<Feed> {
   if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
@@ -303,6 +310,9 @@ async function readArchive(
       return warnings.add('trip-unknown-route', `trips.txt:${row.line} route_id ${routeId}`);
     }
     if (tripRow.has(id)) return warnings.add('duplicate-trip-id', `trips.txt:${row.line}`);
+    if (tripId.length >= MAX_TRIPS) {
+      throw new StopspanError('feed-too-large', `trips.txt has more than ${MAX_TRIPS} trips, the cap`, { file: 'trips.txt', line: row.line, column: 'trip_id', value: id });
+    }
     tripRow.set(id, tripId.length);
     tripId.push(id);
     tripDirection.push(intIn('trips.txt', row, c.direction_id, 'direction_id', 0, 1, -1));

@@ -33,10 +33,22 @@ export interface OptimiseResult {
   optimalStopCount: number;
 }
 
-export function optimiseStops(corridor: Corridor, settings: CostSettings, { forced = [], maxGapM = Infinity, maxWindowStops = MAX_WINDOW_STOPS }: OptimiseOptions = {}): OptimiseResult {
+export function optimiseStops(corridor: Corridor, settings: CostSettings, options: OptimiseOptions = {}): OptimiseResult {
+  return optimiseStopsAt(corridor, [settings], options)[0];
+}
+
+/**
+ * optimiseStops for several cost settings at once (the walk weights of the sensitivity cases): what a
+ * served stop costs does not depend on the weight on walking, so each stop's catchments are swept once
+ * and offered to every setting's programme, instead of once per setting. Each result is bit for bit
+ * that of optimiseStops alone: the same offers in the same order, the same arithmetic.
+ */
+export function optimiseStopsAt(corridor: Corridor, settingsList: readonly CostSettings[], { forced = [], maxGapM = Infinity, maxWindowStops = MAX_WINDOW_STOPS }: OptimiseOptions = {}): OptimiseResult[] {
   const n = corridor.n;
+  const m = settingsList.length;
   if (!(maxGapM > 0)) throw new RangeError(`optimiseStops: maxGapM must be above 0, got ${maxGapM}`);
   if (!(maxWindowStops >= 1)) throw new RangeError(`optimiseStops: maxWindowStops must be 1 or more, got ${maxWindowStops}`);
+  if (m === 0) return [];
   const pos = corridor.posM;
   const isForced = (j: number) => j === 0 || j === n - 1 || forced[j] === true;
 
@@ -67,35 +79,48 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, { forc
   // the riders of stop i between h and k are one sweep over k (Corridor.sweepTo) rather than a catchment
   // afresh for each k. Every edge (i, k) hears its offers in the order of i's predecessors, nearest
   // first, and takes only a strictly better one: the choice of the backward form min_h, tie for tie.
-  const G = new Float64Array(used).fill(Infinity);
-  const back = new Int32Array(used).fill(-1);
-  const best = new Float64Array(used).fill(Infinity);
+  // One G, back and best per setting; the sweep and the stop's cost are shared by all of them.
+  const Gs = settingsList.map(() => new Float64Array(used).fill(Infinity));
+  const backs = settingsList.map(() => new Int32Array(used).fill(-1));
+  const bests = settingsList.map(() => new Float64Array(used).fill(Infinity));
   for (let i = 1; i < n; i++) {
     // the edges into i are final: their cost is the best offer plus the walk between the two stops
     for (let e = predAt[i]; e < predAt[i + 1]; e++) {
       const h = preds[e];
-      const w = walkCostS(corridor, pos[h], pos[i], settings);
-      if (h === 0) G[e] = w;
-      else if (back[e] >= 0) G[e] = best[e] + w;
+      for (let q = 0; q < m; q++) {
+        const w = walkCostS(corridor, pos[h], pos[i], settingsList[q]);
+        if (h === 0) Gs[q][e] = w;
+        else if (backs[q][e] >= 0) Gs[q][e] = bests[q][e] + w;
+      }
     }
     if (i === n - 1) break;
     for (let f = predAt[i]; f < predAt[i + 1]; f++) {
-      if (!(G[f] < Infinity)) continue;
+      let open = false;
+      for (let q = 0; q < m; q++) if (Gs[q][f] < Infinity) open = true;
+      if (!open) continue;
       corridor.sweepFrom(pos[preds[f]], pos[i]);
       // the edges (i, k) out of i: i is the predecessor k - 1 - i places back, while k's window reaches it
       for (let k = i + 1; k < n; k++) {
         const e = predAt[k] + (k - 1 - i);
         if (e >= predAt[k + 1]) break;
         corridor.sweepTo(pos[i], pos[k]);
-        const c = G[f] + caughtStopCostS(corridor, i, settings);
-        if (c < best[e]) {
-          best[e] = c;
-          back[e] = f - predAt[i];
+        for (let q = 0; q < m; q++) {
+          const G = Gs[q];
+          if (!(G[f] < Infinity)) continue;
+          const c = G[f] + caughtStopCostS(corridor, i, settingsList[q]);
+          if (c < bests[q][e]) {
+            bests[q][e] = c;
+            backs[q][e] = f - predAt[i];
+          }
         }
       }
     }
   }
+  return Gs.map((G, q) => keptStops(n, preds, predAt, G, backs[q]));
+}
 
+/** The kept stops of the best programme ending at the last stop, traced back through `back`. */
+function keptStops(n: number, preds: Int32Array, predAt: Int32Array, G: Float64Array, back: Int32Array): OptimiseResult {
   const last = n - 1;
   let bestT = -1;
   let bestCost = Infinity;

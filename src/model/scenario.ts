@@ -566,25 +566,33 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
 
 /** Each stop changed on a pattern, with the spacing around its place before and after the change. */
 function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string): StopChange[] {
-  const around = (list: Served[], pos: number, self: (s: Served) => boolean): number[] => {
-    // the gaps either side of pos among the stops in list (skipping the changed stop itself)
-    let lo = -Infinity;
-    let hi = Infinity;
-    for (const s of list) {
-      if (self(s)) continue;
-      if (s.pos <= pos && s.pos > lo) lo = s.pos;
-      if (s.pos >= pos && s.pos < hi) hi = s.pos;
+  // each list's positions sorted once, and each stop's neighbours found by halving: a scan of the list per
+  // changed stop made a plan removing most of a long pattern's stops quadratic in its stops
+  const sorted = (list: Served[]): Float64Array => Float64Array.from(list.map((s) => s.pos).filter((x) => !Number.isNaN(x))).sort();
+  const todayPos = sorted(today);
+  const afterPos = sorted(after);
+  /** The first index whose position is above pos (orEqual: at or above). */
+  const firstAbove = (xs: Float64Array, pos: number, orEqual: boolean): number => {
+    let a = 0;
+    let b = xs.length;
+    while (a < b) {
+      const mid = (a + b) >>> 1;
+      if (xs[mid] < pos || (!orEqual && xs[mid] === pos)) a = mid + 1;
+      else b = mid;
     }
-    return [lo, hi].every(Number.isFinite) ? [hi - lo] : [];
+    return a;
   };
-  const split = (list: Served[], pos: number): number[] => {
-    let lo = -Infinity;
-    let hi = Infinity;
-    for (const s of list) {
-      if (s.pos < pos && s.pos > lo) lo = s.pos;
-      if (s.pos > pos && s.pos < hi) hi = s.pos;
-    }
-    return [pos - lo, hi - pos].filter(Number.isFinite);
+  const around = (xs: Float64Array, pos: number): number[] => {
+    // the gap between the nearest stops at or before pos and at or after it
+    const lo = firstAbove(xs, pos, false) - 1;
+    const hi = firstAbove(xs, pos, true);
+    return lo >= 0 && hi < xs.length ? [xs[hi] - xs[lo]] : [];
+  };
+  const split = (xs: Float64Array, pos: number): number[] => {
+    // the gaps from pos to the nearest stops strictly before and after it
+    const lo = firstAbove(xs, pos, true) - 1;
+    const hi = firstAbove(xs, pos, false);
+    return [lo >= 0 ? pos - xs[lo] : -Infinity, hi < xs.length ? xs[hi] - pos : Infinity].filter(Number.isFinite);
   };
   const out: StopChange[] = [];
   const mark = (c: Omit<StopChange, 'overPolicy'>): void => {
@@ -593,13 +601,13 @@ function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxG
   };
   const { prep, removed, moved, added } = change;
   for (const m of [...removed].sort((a, b) => a - b)) {
-    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(today, prep.posM[m]), gapsAfterM: around(after, prep.posM[m], () => false) });
+    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: around(afterPos, prep.posM[m]) });
   }
   for (const [m, to] of [...moved].sort((a, b) => a[0] - b[0])) {
-    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(today, prep.posM[m]), gapsAfterM: split(after, to) });
+    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: split(afterPos, to) });
   }
   for (const pos of added) {
-    mark({ action: 'add', stopId: '', stopName: '', gapsBeforeM: around(today, pos, () => false), gapsAfterM: split(after, pos) });
+    mark({ action: 'add', stopId: '', stopName: '', gapsBeforeM: around(todayPos, pos), gapsAfterM: split(afterPos, pos) });
   }
   return out;
 }
@@ -656,7 +664,22 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
     if (!ch) changes.set(prep.pattern.id, (ch = { prep, removed: new Set(), moved: new Map(), added: [] }));
     return ch;
   };
-  const positionsOf = (prep: PreparedPattern, stopIdx: number) => prep.modelStops.map((j, m) => (prep.pattern.stopIdx[j] === stopIdx ? m : -1)).filter((m) => m >= 0);
+  // a pattern's model positions by feed stop, built when the pattern is first looked at: a scan of the
+  // pattern per stop named made a plan dropping most of a long pattern's stops quadratic in its stops
+  const positionsByPattern = new Map<PreparedPattern, Map<number, number[]>>();
+  const positionsOf = (prep: PreparedPattern, stopIdx: number): number[] => {
+    let at = positionsByPattern.get(prep);
+    if (!at) {
+      const made = new Map<number, number[]>();
+      prep.modelStops.forEach((j, m) => {
+        const list = made.get(prep.pattern.stopIdx[j]);
+        if (list) list.push(m);
+        else made.set(prep.pattern.stopIdx[j], [m]);
+      });
+      positionsByPattern.set(prep, (at = made));
+    }
+    return at.get(stopIdx) ?? [];
+  };
   const checkRoutes = (routes: string[] | undefined, where: string) => {
     for (const r of routes ?? []) if (!feed.routes.has(r) && ![...feed.routes.values()].some((x) => x.shortName === r)) throw bad(`${where}: unknown route ${r} (neither a route_id nor a route_short_name)`, r);
   };

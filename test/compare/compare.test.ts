@@ -1,6 +1,6 @@
 // compareFeeds on hand-built Vellmoor feeds: stop and pattern changes, spacing before and after.
 import { describe, expect, it } from 'vitest';
-import { comparedPart, compareFeeds, lcsMatch } from '../../src/compare/compare.js';
+import { auditBrief, comparedPart, compareFeeds, lcsMatch } from '../../src/compare/compare.js';
 import { medianGapM } from '../../src/network/patternFigures.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from '../helpers/buildFeed.js';
 import type { AuditResult, Candidate } from '../../src/audit/types.js';
@@ -134,6 +134,19 @@ describe('compareFeeds', () => {
     expect(c.spacing.after).toMatchObject({ closeStops: 3, wideGaps: 1, paxMinLostPerDay: 90 });
     expect(c.candidates!.appeared.map((x) => x.stopId)).toEqual(['S4']);
     expect(c.candidates!.disappeared.map((x) => x.stopId)).toEqual(['S2']);
+  });
+
+  it('compares as the whole audits do from their brief, which holds the headline and candidates alone', () => {
+    const a = buildFeed(cleanSpec());
+    const cand = { rank: 1, action: 'remove', stopId: 'S2', stopName: 'Vellmoor S2', routeIds: ['R1'], netPaxMinPerDay: -30 } as unknown as Candidate;
+    const whole = (closeStops: number, candidates: Candidate[]) =>
+      ({ headline: { closeStops, wideGaps: 1, paxMinLostPerDay: 60 }, candidates, stops: [{}], gaps: [{}], patterns: [{}], sensitivity: [{}] }) as unknown as AuditResult;
+    const audits = { old: whole(4, [cand]), new: whole(2, []) };
+    const brief = auditBrief(audits.old);
+    expect(Object.keys(brief).sort()).toEqual(['candidates', 'headline']);
+    const full = compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { audits });
+    expect(compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { audits: { old: brief, new: auditBrief(audits.new) } })).toEqual(full);
+    expect(full.candidates!.disappeared.map((x) => x.stopId)).toEqual(['S2']);
   });
 
   it('rejects a negative move threshold', () => {

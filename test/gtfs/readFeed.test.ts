@@ -7,7 +7,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { ProgressEvent } from '../../src/common/progress.js';
-import { readFeed, SHAPE_CAPS } from '../../src/gtfs/readFeed.js';
+import { MAX_TRIPS, readFeed, SHAPE_CAPS } from '../../src/gtfs/readFeed.js';
 import { openFeed } from '../../src/gtfs/archive.js';
 import { parse as parseStream } from 'csv-parse';
 import type { Feed } from '../../src/gtfs/types.js';
@@ -426,4 +426,30 @@ describe('readFeed caps on shapes', () => {
     const feed = await readFeed(feedCopy({ 'shapes.txt': pts(SHAPE_CAPS.pointsPerShape) }));
     expect(feed.shapes.get('SH1')!.lat.length).toBe(SHAPE_CAPS.pointsPerShape);
   });
+});
+
+describe('readFeed cap on trips', () => {
+  it(`refuses trips.txt of more than ${MAX_TRIPS} trips as too large while it is read, naming the row, and reads that many`, async () => {
+    // the fixture's header and a weekday service; one row of stop_times keeps the feed readable under the cap
+    const trips = (n: number) => {
+      const lines = ['route_id,service_id,trip_id,trip_headsign,direction_id,shape_id'];
+      for (let k = 0; k < n; k++) lines.push(`R1,WK,FLOOD-${k},Uplands,0,`);
+      return lines.join('\n') + '\n';
+    };
+    const stopTimes = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nFLOOD-0,08:00:00,08:00:00,S1,1\nFLOOD-0,08:05:00,08:05:00,S2,2\n';
+    const started = Date.now();
+    const e = await rejected(readFeed(feedCopy({ 'trips.txt': trips(MAX_TRIPS + 1), 'stop_times.txt': stopTimes, 'frequencies.txt': null })));
+    expect(e.code).toBe('feed-too-large');
+    expect(e.context.file).toBe('trips.txt');
+    expect(e.context.line).toBe(MAX_TRIPS + 2);
+    expect(e.context.column).toBe('trip_id');
+    expect(e.oneLine()).toContain(`FLOOD-${MAX_TRIPS}`);
+    expect(e.oneLine()).toContain(String(MAX_TRIPS));
+    // a duplicate trip_id is dropped (and counted), not held, so it does not count towards the cap
+    const dup = trips(MAX_TRIPS) + 'R1,WK,FLOOD-0,Uplands,0,\n';
+    const feed = await readFeed(feedCopy({ 'trips.txt': dup, 'stop_times.txt': stopTimes, 'frequencies.txt': null }));
+    expect(feed.rowCounts['trips.txt']).toBe(MAX_TRIPS + 1);
+    expect(warning(feed, 'duplicate-trip-id')?.count).toBe(1);
+    expect(Date.now() - started).toBeLessThan(60_000);
+  }, 90_000);
 });

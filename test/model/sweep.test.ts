@@ -1,11 +1,12 @@
 // The optimiser's sweep of catchments (Corridor.sweepFrom/sweepTo) and its forward dynamic programme give
 // exactly what a catchment asked afresh and the backward recurrence give, bit for bit, on seeded corridors
-// with coincident, metre-spaced and long-gap stops; and a pattern of thousands of stops a few metres apart
-// is optimised in time linear in its stops.
+// with coincident, metre-spaced and long-gap stops; several walk weights optimised in one run keep what
+// each keeps alone, sweeping the stops once; and a pattern of thousands of stops a few metres apart is
+// optimised in time linear in its stops.
 import { describe, expect, it } from 'vitest';
 import { Corridor, servedStopCostS, walkCostS, type CostSettings } from '../../src/model/corridor.js';
 import { assumedDemand } from '../../src/model/demand.js';
-import { MAX_WINDOW_STOPS, optimiseStops } from '../../src/model/optimiser.js';
+import { MAX_WINDOW_STOPS, optimiseStops, optimiseStopsAt } from '../../src/model/optimiser.js';
 // @ts-expect-error: a plain ES module of the generators, without type declarations
 import { prng } from '../../scripts/lib/seeded.mjs';
 
@@ -119,6 +120,40 @@ describe('forward optimiser', () => {
       const got = optimiseStops(c, s, { forced, maxGapM });
       const want = backwardOptimum(c, s, maxGapM, forced);
       expect({ kept: got.kept, costS: got.costS }).toEqual(want);
+    }
+  });
+
+  it(`optimises several walk weights in one run as each alone, sweeping the stops once (seed ${SEED + 2})`, () => {
+    const rand = prng(SEED + 2);
+    const models = ['always', 'poisson'] as const;
+    for (let run = 0; run < 30; run++) {
+      const c = corridorOf(rand, 2 + Math.floor(rand() * 120));
+      const base = { walkSpeedMps: 1.3, lostTimePerStopS: 10 + rand() * 30, stoppingModel: models[run % 2], operatingPaxSPerBusS: run % 3 === 0 ? rand() * 2 : 0 };
+      // the audit's own weight and its sensitivity cases' 1.5 and 2.5
+      const settings: CostSettings[] = [2, 1.5, 2.5].map((walkWeight) => ({ ...base, walkWeight }));
+      const forced = Array.from({ length: c.n }, () => rand() < 0.05);
+      const maxGapM = rand() < 0.3 ? Infinity : 400 + rand() * 800;
+      const sweeps = (f: () => void): number => {
+        const from = c.sweepFrom.bind(c);
+        let count = 0;
+        c.sweepFrom = (a: number, b: number) => (count++, from(a, b));
+        try {
+          f();
+        } finally {
+          c.sweepFrom = from;
+        }
+        return count;
+      };
+      let together: ReturnType<typeof optimiseStopsAt> = [];
+      const once = sweeps(() => (together = optimiseStopsAt(c, settings, { forced, maxGapM })));
+      let alone = 0;
+      settings.forEach((s, q) => {
+        let own!: ReturnType<typeof optimiseStops>;
+        alone += sweeps(() => (own = optimiseStops(c, s, { forced, maxGapM })));
+        expect(together[q]).toEqual(own);
+        if (q === 0) expect({ kept: own.kept, costS: own.costS }).toEqual(backwardOptimum(c, s, maxGapM, forced));
+      });
+      expect(once * settings.length).toBe(alone);
     }
   });
 
