@@ -349,8 +349,8 @@ export function analysePattern(
     const stop = feed.stops[stopIdx];
     const m = modelPosOf.get(j);
     if (m === undefined) {
-      // not a passenger stop: kept for geometry only
-      fixedStopIdx.push(stopIdx);
+      // not a passenger stop: kept for geometry only, and no reason to keep the stop on a pattern that
+      // serves riders there (a timing point of one route does not fix another route's stop)
       if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', stopVerdict: 'timing-only', gapBeforeVerdict: null, gapAfterVerdict: null, fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }

@@ -199,6 +199,7 @@ export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point>
   interface Acc { first: StopResult; routes: Set<string>; patterns: Set<string>; trips: number; close: number; fixedReason: string }
   const byStop = new Map<string, Acc>();
   for (const s of result.stops) {
+    if (s.stopVerdict === 'timing-only') continue; // passed without service: not a stop served on that pattern
     let a = byStop.get(s.stopId);
     if (!a) byStop.set(s.stopId, (a = { first: s, routes: new Set(), patterns: new Set(), trips: 0, close: 0, fixedReason: '' }));
     a.routes.add(s.routeId);
