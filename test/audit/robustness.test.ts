@@ -38,7 +38,7 @@ describe('robustness of the programme', () => {
     r.candidates.forEach((c, i) => expect(c.robust, `rank ${i + 1}`).toBe(cases.every((x) => x.marginalNetPaxMinPerDay[i] < 0)));
   }, 120_000);
 
-  it('marks a candidate whose marginal turns into a loss at walk weight 2.5 as not robust, where weighed alone it still saves', () => {
+  it('marks a candidate whose marginal turns into a loss at walk weight 2.5 as not robust', () => {
     // close stops 50 m apart: late in the list a removal joins walks already long, and at walk weight 2.5
     // its marginal turns into a loss while the early ones stay savings
     const { feed, patterns } = handmadeNetwork({ distM: Array.from({ length: 16 }, (_, k) => k * 50), tripsPerDay: 80, sharedAt: 4 });
