@@ -23,9 +23,9 @@ export const VERDICTS: Record<Verdict, VerdictKind> = {
 /** A stop's own verdict (stops.csv stop_verdict): what the stop is, whatever the gaps beside it are. */
 export const STOP_VERDICTS: Record<StopOwnVerdict, string> = {
   close: 'its spacing is below the band and removing it saves riders time',
-  ok: 'a passenger stop that is neither close nor fixed (the gaps beside it have their own verdicts)',
+  ok: 'a passenger stop neither close nor fixed; the gaps beside it have verdicts of their own',
   fixed: 'terminal, timepoint, transfer point, station nearby or kept',
-  'timing-only': 'a timing point where no one boards or alights (pickup_type=1 and drop_off_type=1): no stop for spacing, its gaps are measured past it',
+  'timing-only': 'a timing point where no one boards or alights, pickup_type=1 and drop_off_type=1: no stop for spacing, its gaps are measured past it',
 };
 
 /** A gap's verdict (stops.csv gap_before_verdict and gap_after_verdict): the gap between two passenger stops. */
