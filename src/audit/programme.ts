@@ -79,8 +79,8 @@ export function programmeWork(preps: PreparedPattern[], candidates: Candidate[])
 
 /**
  * The programme: candidates in the order accepted, each with its marginal figures given those above it;
- * those that no longer save riders time once the others are in are left out. `robust` is kept from the
- * input (judged per candidate by the sensitivity cases).
+ * those that no longer save riders time once the others are in are left out. `robust` is judged after,
+ * on this list as accepted (judgeRobust in sensitivity.ts).
  */
 export function programmeCandidates(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, candidates: Candidate[]): Candidate[] {
   const w = params.walk_weight;

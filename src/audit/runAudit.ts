@@ -23,7 +23,8 @@ import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
 import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';
-import { buildCandidates, candidateKey } from './candidates.js';
+import { buildCandidates } from './candidates.js';
+import { additionsAtStake, wideGapCounts } from './headlineFigures.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES, sensitivityWalkWeights } from './sensitivity.js';
 
 export interface RunAuditOptions {
@@ -94,14 +95,20 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
       );
     }
   }
-  onProgress?.({ stage: 'sensitivity' });
-  const { cases, robustKeys } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute });
-  for (const c of generated) c.robust = robustKeys.has(candidateKey(c));
   // the ranked list as a programme: each figure the candidate's effect given those ranked above it
   onProgress?.({ stage: 'programme' });
   const joint = programmeWork(preps, generated) <= PROGRAMME_WORK_LIMIT;
   const candidates = joint ? programmeCandidates(feed, patterns.date, preps, params, generated) : generated;
   if (!joint) warnings.add('candidates-weighed-alone', `${generated.length} candidates`);
+  // the cases, and robustness judged on the programme as accepted (its candidates' robust set there)
+  onProgress?.({ stage: 'sensitivity' });
+  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates });
+  // what the accepted additions have at stake on each pattern, beside the optimiser's removals
+  const adds = additionsAtStake(feed, patterns.date, preps, params, candidates);
+  for (const a of analyses) {
+    a.result.paxMinAdditionsPerDay = adds.get(a.result.patternId) ?? 0;
+    a.result.paxMinAtStakePerDay = a.result.paxMinLostPerDay + a.result.paxMinAdditionsPerDay;
+  }
   // a candidate is reported when it touches a route asked for, with its figures over every route it touches
   const shownCandidates = reportRoutes === null ? candidates : candidates.filter((c) => c.routeIds.some(shownRoute));
   shownCandidates.forEach((c, i) => (c.rank = i + 1));
@@ -117,6 +124,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     for (let m = 0; m + 1 < a.modelPosM.length; m++) allGaps.push(a.modelPosM[m + 1] - a.modelPosM[m]);
     for (const s of a.result.patternId ? a.feedStopsByModelPos : []) served.add(s);
   }
+  const wide = wideGapCounts(shown);
   const headline: Headline = {
     patterns: shown.length,
     stops: served.size,
@@ -124,8 +132,11 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     medianGapM: median(allGaps, 0),
     meanOptimalSpacingM: meanOptimalSpacingM(shown),
     closeStops: shown.reduce((n, a) => n + a.result.closeStops, 0),
-    wideGaps: shown.reduce((n, a) => n + a.result.wideGaps, 0),
+    wideGaps: wide.distinct,
+    wideGapsOnPatterns: wide.onPatterns,
     paxMinLostPerDay: shown.reduce((n, a) => n + a.result.paxMinLostPerDay, 0),
+    paxMinAdditionsPerDay: shown.reduce((n, a) => n + a.result.paxMinAdditionsPerDay, 0),
+    paxMinAtStakePerDay: shown.reduce((n, a) => n + a.result.paxMinAtStakePerDay, 0),
   };
 
   // parameters with what was actually used where a value is per pattern
@@ -174,8 +185,9 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
     `A gap of ${EXPRESS_STRETCH_M} m or more that the schedule runs at the route type's typical cruise speed or faster (an express or commuter run no local makes), and every gap of a route typed express or coach (route_type 702, 200-299), is left out of the spacing verdicts: not flagged wide, no stop proposed (warning express-stretch).`,
     `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
-    `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when it saves time in all of them (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
-    'Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours\' extra stopping; negative means riders save time. Adjacent candidates are each computed alone and do not simply add.',
+    `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when, in the ranked list as accepted and weighed again in the same order in each case, it still saves riders time given those ranked above it (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
+    `Net passenger-minutes per day = walk added (weighted) - ride time saved by riders on board + the neighbours' extra stopping; negative means riders save time. ${joint ? 'Each candidate is weighed given those ranked above it, so any prefix of the list adds up.' : 'The candidates are each weighed alone (too many to weigh as a programme) and do not simply add.'}`,
+    `Passenger-minutes at stake: removals (the optimiser's drops, today's cost minus its optimum) and additions (the proposed stops in wide gaps, weighed together on each pattern) are shown apart and added together; wide gaps are counted once per pair of stops, however many patterns run them, with the count per pattern beside it. Timing points where no one boards or alights are not stops for spacing: gaps, verdicts, candidates and the optimiser run past them.`,
     ...(reportRoutes === null
       ? []
       : [`Reported: ${shown.length} of ${analyses.length} patterns (the routes asked for); every figure, transfer, trunk and local is computed on the whole network, so a route's verdicts are the same whichever routes are reported, and a candidate touching a reported route is shown with its effect on every route it touches.`]),

@@ -12,6 +12,10 @@ import type { DemandSource, FixedReason, LostTimeSource, ObservedFigures, Params
 import type { ScenarioInput, ScenarioResult } from '../model/scenario.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
+/** A stop's own verdict, apart from the gaps beside it (see verdictKinds.ts). */
+export type StopOwnVerdict = 'close' | 'ok' | 'fixed' | 'timing-only';
+/** A gap's verdict between two consecutive passenger stops (see verdictKinds.ts). */
+export type GapVerdict = 'short' | 'ok' | 'wide' | 'local' | 'express';
 
 export interface StopResult {
   patternId: string;
@@ -31,7 +35,10 @@ export interface StopResult {
   loadDepartingPerDay: number; // riders on board leaving this stop, per day
   stopProbability: number; // chance a bus serves the stop on a trip (stopping model)
   localOptimalSpacingM: number | null; // s*(x) for uneven demand; null where undefined (no demand)
-  verdict: Verdict;
+  verdict: Verdict; // the first verdict column: 'wide' here is a gap's label given to the stop beside it
+  stopVerdict: StopOwnVerdict; // the stop's own verdict
+  gapBeforeVerdict: GapVerdict | null; // the gap from the previous passenger stop; null at the first and at a timing-only point
+  gapAfterVerdict: GapVerdict | null; // the gap to the next passenger stop; null at the last and at a timing-only point
   fixedReason: FixedReason;
   fixedNote: string; // the routes or the station behind a transfer or station reason, else ''
   keptByOptimiser: boolean;
@@ -48,6 +55,7 @@ export interface GapResult {
   fromStopId: string;
   toStopId: string;
   gapM: number;
+  verdict: GapVerdict;
   wide: boolean; // above the band's upper edge, and not served by a local route (see coveredByLocal)
   /** A route that calls at both ends with stops of its own between them (this pattern runs limited here), or null; looked for only in gaps above the band. */
   coveredByLocal: string | null;
@@ -84,7 +92,11 @@ export interface PatternResult {
   closeStops: number;
   wideGaps: number;
   optimalStopCount: number; // from the dynamic programme
-  paxMinLostPerDay: number; // today's cost minus the optimiser's cost, >= 0
+  paxMinLostPerDay: number; // today's cost minus the optimiser's cost, >= 0: what removals have at stake
+  /** What the proposed additions on this pattern save its riders, weighed together on the pattern (passenger-minutes per day, positive = saved). */
+  paxMinAdditionsPerDay: number;
+  /** paxMinLostPerDay + paxMinAdditionsPerDay: removals and additions together. */
+  paxMinAtStakePerDay: number;
   demandSource: DemandSource;
   lostTimeSource: LostTimeSource;
   lostTimePerStopS: number;
@@ -110,9 +122,12 @@ export interface SensitivityCase {
   bandTolerance: number;
   meanOptimalSpacingM: number;
   closeStops: number;
-  wideGaps: number;
+  wideGaps: number; // distinct stop pairs, as the headline counts them
   paxMinLostPerDay: number;
   candidatesKept: number; // how many of the base case's top candidates are still candidates here
+  /** The programme as accepted, weighed again in this order at this case's settings: its net, and how many of its candidates still save riders time given those above them. */
+  programmeNetPaxMinPerDay: number;
+  programmeStillSaving: number;
 }
 
 export interface Candidate {
@@ -130,7 +145,7 @@ export interface Candidate {
   rideSavedPaxMinPerDay: number;
   runTimeSavedPerTripS: number; // weighted over patterns by trips
   vehicleHoursPerDay: number; // saved (positive) or added (negative)
-  robust: boolean; // still a saving under every sensitivity case
+  robust: boolean; // its marginal net in the programme as accepted stays a saving in every sensitivity case
   /** For an addition, the stop_ids of the two stops whose gap it fills, in the direction of travel; '' for a removal. */
   fromStopId: string;
   toStopId: string;
@@ -161,8 +176,11 @@ export interface Headline {
   medianGapM: number;
   meanOptimalSpacingM: number;
   closeStops: number;
-  wideGaps: number;
-  paxMinLostPerDay: number;
+  wideGaps: number; // distinct pairs of stops with a wide gap between them: a gap shared by several patterns counts once
+  wideGapsOnPatterns: number; // the same gaps counted on every pattern that runs them (the sum of patterns' wideGaps)
+  paxMinLostPerDay: number; // removals: the optimiser's drops, summed over patterns
+  paxMinAdditionsPerDay: number; // additions: the proposed additions, summed over patterns
+  paxMinAtStakePerDay: number; // the two together
 }
 
 export interface AuditResult {

@@ -6,7 +6,7 @@
 // removal figure is exactly the change in that objective.
 
 import type { Feed } from '../gtfs/types.js';
-import type { CostCurvePoint, GapResult, PatternResult, StopResult, Verdict } from './types.js';
+import type { CostCurvePoint, GapResult, GapVerdict, PatternResult, StopResult, Verdict } from './types.js';
 import { bandM } from '../model/band.js';
 import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS } from '../model/corridor.js';
 import { effectiveOptimum } from '../model/effectiveOptimum.js';
@@ -245,6 +245,9 @@ function stopResult(b: StopBase, x: Omit<StopResult, keyof StopBase>): StopResul
     stopProbability: x.stopProbability,
     localOptimalSpacingM: x.localOptimalSpacingM,
     verdict: x.verdict,
+    stopVerdict: x.stopVerdict,
+    gapBeforeVerdict: x.gapBeforeVerdict,
+    gapAfterVerdict: x.gapAfterVerdict,
     fixedReason: x.fixedReason,
     fixedNote: x.fixedNote,
     keptByOptimiser: x.keptByOptimiser,
@@ -321,6 +324,14 @@ export function analysePattern(
   const removals: RemovalEffect[] = [];
   // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
   const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
+  // each gap's verdict (the rows only): a gap is judged on its own, apart from the stops at its ends
+  const gapVerdicts: GapVerdict[] = [];
+  if (detail) {
+    for (let g = 0; g + 1 < n; g++) {
+      const above = hasOptimum && gapsM[g] > band.highM;
+      gapVerdicts.push(above ? (prep.expressGap[g] === true ? 'express' : prep.gapLocalCover(g) === null ? 'wide' : 'local') : hasOptimum && gapsM[g] < band.lowM ? 'short' : 'ok');
+    }
+  }
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
   const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
@@ -343,9 +354,9 @@ export function analysePattern(
     const stop = feed.stops[stopIdx];
     const m = modelPosOf.get(j);
     if (m === undefined) {
-      // not a passenger stop: kept for geometry only
-      fixedStopIdx.push(stopIdx);
-      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      // not a passenger stop: kept for geometry only, and no reason to keep the stop on a pattern that
+      // serves riders there (a timing point of one route does not fix another route's stop)
+      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', stopVerdict: 'timing-only', gapBeforeVerdict: null, gapAfterVerdict: null, fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -381,6 +392,9 @@ export function analysePattern(
       stopProbability: prob,
       localOptimalSpacingM: local,
       verdict,
+      stopVerdict: verdict === 'wide' ? 'ok' : verdict,
+      gapBeforeVerdict: m > 0 ? gapVerdicts[m - 1] : null,
+      gapAfterVerdict: m + 1 < n ? gapVerdicts[m] : null,
       fixedReason: reason,
       fixedNote: prep.fixedNote[m],
       keptByOptimiser: keptSet !== null && keptSet.has(m),
@@ -425,6 +439,7 @@ export function analysePattern(
       fromStopId: from?.id ?? '',
       toStopId: to?.id ?? '',
       gapM,
+      verdict: gapVerdicts[m],
       wide,
       coveredByLocal,
       expressStretch,
@@ -456,6 +471,8 @@ export function analysePattern(
     wideGaps,
     optimalStopCount: best.optimalStopCount + (pattern.stopIdx.length - n),
     paxMinLostPerDay,
+    paxMinAdditionsPerDay: 0, // the audit fills it once the additions are chosen (runAudit)
+    paxMinAtStakePerDay: paxMinLostPerDay,
     demandSource: demand.demandSource,
     lostTimeSource: prep.lostTimeSource,
     lostTimePerStopS: prep.lostTimePerStopS,

@@ -103,7 +103,7 @@ export function registerAudit(program: Command): void {
         process.stdout.write(
           `${terminalText(result.feed.source)} on ${result.date}: ${h.patterns} patterns, ${h.stops} stops, median gap ${Math.round(h.medianGapM)} m, ` +
             `modelled optimum ${Math.round(h.meanOptimalSpacingM)} m (${result.demandSource} demand)\n` +
-            `${h.closeStops} close stops, ${h.wideGaps} wide gaps, ${groupedFixed(Math.round(h.paxMinLostPerDay))} passenger-minutes a day lost to today's spacing\n` +
+            `${h.closeStops} close stops, ${h.wideGaps} wide gaps (${h.wideGapsOnPatterns} on patterns), ${groupedFixed(Math.round(h.paxMinAtStakePerDay))} passenger-minutes a day at stake: ${groupedFixed(Math.round(h.paxMinLostPerDay))} by removals, ${groupedFixed(Math.round(h.paxMinAdditionsPerDay))} by additions\n` +
             `wrote ${written.length} files to ${terminalText(outDir)}${path.sep}\n`,
         );
       } finally {

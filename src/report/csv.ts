@@ -131,6 +131,9 @@ export const PATTERN_COLUMNS: CsvColumn<PatternResult>[] = [
   num('observed_cruise_speed_mps', (p) => p.observed?.cruiseSpeedMps ?? null, 2),
   num('observed_stop_share', (p) => p.observed?.stopShare ?? null, 3),
   text('lost_time_observed_parts', (p) => p.observed?.lostTimeParts.join('+') ?? ''),
+  // appended last: what the proposed additions save here (pax_min_lost_per_day is the removals' side), and both
+  num('pax_min_additions_per_day', (p) => p.paxMinAdditionsPerDay, 1),
+  num('pax_min_at_stake_per_day', (p) => p.paxMinAtStakePerDay, 1),
 ];
 
 export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
@@ -155,6 +158,10 @@ export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
   text('demand_source', (s) => s.demandSource),
   // appended last so readers of the earlier columns by position are unaffected
   text('optimiser_keeps', (s) => (s.keptByOptimiser ? 'yes' : 'no')),
+  // the stop's own verdict and the gaps' beside it, apart (verdict above gives a wide gap's label to its stops)
+  text('stop_verdict', (s) => s.stopVerdict),
+  text('gap_before_verdict', (s) => s.gapBeforeVerdict ?? ''),
+  text('gap_after_verdict', (s) => s.gapAfterVerdict ?? ''),
 ];
 
 /** candidates.csv: the ranked network-level list; demand_source is the run's (candidates sum over patterns). */

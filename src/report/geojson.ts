@@ -97,6 +97,8 @@ function patternProperties(p: PatternResult): Feature<LineString>['properties'] 
     observed_cruise_speed_mps: r2(p.observed?.cruiseSpeedMps ?? null),
     observed_stop_share: p.observed?.stopShare == null ? null : cellNumber(p.observed.stopShare, 3),
     lost_time_observed_parts: p.observed?.lostTimeParts.join('+') ?? '',
+    pax_min_additions_per_day: r1(p.paxMinAdditionsPerDay),
+    pax_min_at_stake_per_day: r1(p.paxMinAtStakePerDay),
   };
 }
 
@@ -120,6 +122,9 @@ function stopProperties(s: StopResult): Feature<Point>['properties'] {
     removal_net_pax_min_per_day: r1(s.removalNetPaxMinPerDay),
     demand_source: s.demandSource,
     optimiser_keeps: s.keptByOptimiser ? 'yes' : 'no',
+    stop_verdict: s.stopVerdict,
+    gap_before_verdict: s.gapBeforeVerdict ?? '',
+    gap_after_verdict: s.gapAfterVerdict ?? '',
     // beyond stops.csv, for a map's legend; a stop's position is the geometry
     timepoint: s.timepoint,
   };
@@ -194,6 +199,7 @@ export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point>
   interface Acc { first: StopResult; routes: Set<string>; patterns: Set<string>; trips: number; close: number; fixedReason: string }
   const byStop = new Map<string, Acc>();
   for (const s of result.stops) {
+    if (s.stopVerdict === 'timing-only') continue; // passed without service: not a stop served on that pattern
     let a = byStop.get(s.stopId);
     if (!a) byStop.set(s.stopId, (a = { first: s, routes: new Set(), patterns: new Set(), trips: 0, close: 0, fixedReason: '' }));
     a.routes.add(s.routeId);

@@ -49,7 +49,10 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       mean_optimal_spacing_m: r1(h.meanOptimalSpacingM),
       close_stops: h.closeStops,
       wide_gaps: h.wideGaps,
+      wide_gaps_on_patterns: h.wideGapsOnPatterns,
       pax_min_lost_per_day: r1(h.paxMinLostPerDay),
+      pax_min_additions_per_day: r1(h.paxMinAdditionsPerDay),
+      pax_min_at_stake_per_day: r1(h.paxMinAtStakePerDay),
       pax_min_from_assumed_demand: assumed,
     },
     top_candidates: result.candidates.slice(0, TOP_CANDIDATES_IN_SUMMARY).map((c) => ({
@@ -86,6 +89,8 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       wide_gaps: s.wideGaps,
       pax_min_lost_per_day: r1(s.paxMinLostPerDay),
       candidates_kept: s.candidatesKept,
+      programme_net_pax_min_per_day: r1(s.programmeNetPaxMinPerDay),
+      programme_still_saving: s.programmeStillSaving,
     })),
     plan: result.plan
       ? {

@@ -42,10 +42,11 @@ describe('the optimiser plan', () => {
     // passenger-minutes the audit says are lost (no operating cost set: the two objectives coincide)
     const lost = r.patterns.reduce((s, p) => s + p.paxMinLostPerDay, 0);
     expect(w.totals.netPaxMinPerDay).toBeCloseTo(-lost, 3);
-    // stops.csv: optimiser_keeps is the last column, yes/no per row
+    // stops.csv: optimiser_keeps follows the contract's columns, yes/no per row
     const lines = stopsCsv(r).trim().split('\r\n');
-    expect(lines[0].split(',').at(-1)).toBe('optimiser_keeps');
-    expect(lines.slice(1).filter((l) => l.endsWith(',no')).length).toBe(dropped.length);
+    const keeps = lines[0].split(',').indexOf('optimiser_keeps');
+    expect(keeps).toBe(lines[0].split(',').indexOf('demand_source') + 1);
+    expect(lines.slice(1).filter((l) => l.split(',')[keeps] === 'no').length).toBe(dropped.length);
     // summary.json carries the joint figures
     const sum = summaryObject(r) as any;
     expect(sum.plan.file).toBe('plan.json');

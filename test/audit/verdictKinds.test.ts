@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { VERDICTS } from '../../src/audit/verdictKinds.js';
+import { GAP_VERDICTS, STOP_VERDICTS, VERDICTS } from '../../src/audit/verdictKinds.js';
 import type { Verdict } from '../../src/audit/types.js';
 import { PAGE_SCRIPT } from '../../src/report/html/pageScript.js';
 
@@ -22,6 +22,10 @@ describe('the verdict table', () => {
     const csv = /verdict \(([^)]*)\)/.exec(README);
     expect(csv).not.toBeNull();
     expect([...csv![1].matchAll(/`([a-z]+)`/g)].map((m) => m[1]).sort()).toEqual(KINDS.map(([v]) => v).sort());
+  });
+
+  it("is the README's for the stop's own verdict and the gaps' verdicts too, each with its meaning", () => {
+    for (const [v, meaning] of [...Object.entries(STOP_VERDICTS), ...Object.entries(GAP_VERDICTS)]) expect(README, v).toContain(`\`${v}\` (${meaning})`);
   });
 
   it("is the page's: the letters the script reads and the legend it draws", () => {

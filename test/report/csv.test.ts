@@ -16,9 +16,13 @@ const PATTERN_HEADER =
   'pattern_id,route_id,route_short_name,direction_id,headsign,shape_id,distance_source,stop_count,length_m,trips_per_day,median_gap_m,mean_gap_m,optimal_spacing_m,band_low_m,band_high_m,close_stops,wide_gaps,optimal_stop_count,pax_min_lost_per_day,demand_source' +
   // the contract's columns first, then the figures behind each pattern's optimum
   ',lost_time_per_stop_s,lost_time_source,cruise_speed_mps,cruise_speed_source,traffic_delay_s,stopping_model,mean_trip_length_m' +
-  ',observed_trips,observed_dwell_s,observed_door_time_s,observed_stop_loss_s,observed_cruise_speed_mps,observed_stop_share,lost_time_observed_parts';
+  ',observed_trips,observed_dwell_s,observed_door_time_s,observed_stop_loss_s,observed_cruise_speed_mps,observed_stop_share,lost_time_observed_parts' +
+  // what the proposed additions save on the pattern, and removals and additions together
+  ',pax_min_additions_per_day,pax_min_at_stake_per_day';
 const STOP_HEADER =
-  'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,fixed_reason,fixed_note,removal_net_pax_min_per_day,demand_source,optimiser_keeps';
+  'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,fixed_reason,fixed_note,removal_net_pax_min_per_day,demand_source,optimiser_keeps' +
+  // the stop's own verdict and the gaps' beside it, apart
+  ',stop_verdict,gap_before_verdict,gap_after_verdict';
 
 /** Reads CSV with csv-parse, the outside reference parser, insisting on CRLF records. */
 function readBack(text: string): string[][] {

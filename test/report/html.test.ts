@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { CAUTIONS } from '../../src/report/cautions.js';
 import { escapeHtml, jsonForScript } from '../../src/common/escapeHtml.js';
 import { histogramSvg } from '../../src/report/html/histogramSvg.js';
+import type { GapVerdict } from '../../src/audit/types.js';
 import { indexHtml } from '../../src/report/html/indexHtml.js';
 import { HOSTILE_NAMES, makeEmptyResult, makeSampleResult } from './sampleResult.js';
 
@@ -65,7 +66,7 @@ describe('index.html', () => {
     expect(markupOnly).toMatch(/field review of the walk \(crossings, sidewalks, grades, lighting\)/);
     expect(markupOnly).toMatch(/ADA/);
     expect(markupOnly).toMatch(/Title VI/);
-    expect(markupOnly).toMatch(/Passenger-minutes lost per day<\/div><div class="v">[\d,]+<\/div><div class="s">[^<]*<span class="badge assumed">assumed<\/span>/);
+    expect(markupOnly).toMatch(/Passenger-minutes at stake per day<\/div><div class="v">[\d,]+<\/div><div class="s">[^<]*by removals[^<]*by the proposed additions <span class="badge assumed">assumed<\/span>/);
     expect(markupOnly).toContain('net passenger-min/day (assumed)');
     const observed = indexHtml({ ...sample, demandSource: 'observed' });
     expect(observed).not.toContain('net passenger-min/day (assumed)');
@@ -81,14 +82,20 @@ describe('index.html', () => {
     expect(imp).toContain('"units":"imperial"');
   });
 
-  it('draws a histogram whose bars count every gap, with the band', () => {
+  it('draws a histogram whose bars count every gap, with the band, split by the gaps\' own verdicts', () => {
     const gapsM = [50, 120, 180, 240, 260, 310, 420, 990, 2500, 5000];
-    const svg = histogramSvg({ gapsM, bandLowM: 200, bandHighM: 380, optimalM: 270, medianGapM: 285 }, 'metric');
+    // 420 m is above this band but served by a local; 5 000 m an express stretch: neither is wide
+    const verdicts: GapVerdict[] = ['short', 'short', 'short', 'ok', 'ok', 'ok', 'local', 'wide', 'wide', 'express'];
+    const svg = histogramSvg({ gapsM, verdicts, bandLowM: 200, bandHighM: 380, optimalM: 270, medianGapM: 285 }, 'metric');
     const counts = [...svg.matchAll(/: (\d+) gaps<\/title>/g)].map((m) => Number(m[1]));
     expect(counts.reduce((a, b) => a + b, 0)).toBe(gapsM.length);
     expect(svg).toContain('near-optimal band 200 m to 380 m');
     expect(svg.match(/class="bar close"/g)?.length).toBe(3); // bins 50-100, 100-150, 150-200: all below 200 m
     expect(svg).toContain('or more: 2 gaps'); // the overflow bar holds 2 500 and 5 000 m
+    // the blue parts are the gaps judged wide, no more: 990 m and 2 500 m
+    const wide = [...svg.matchAll(/: (\d+) wide<\/title>/g)].map((m) => Number(m[1]));
+    expect(wide.reduce((a, b) => a + b, 0)).toBe(2);
+    expect(svg.match(/class="bar wide"/g)?.length).toBe(2);
   });
 
   it('stays a few MB for a large network (160 patterns, 3 000+ stop rows)', () => {

@@ -124,6 +124,9 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
       stopProbability: 0.4 + ((i * 7) % 6) / 10,
       localOptimalSpacingM: optimal * (0.8 + ((i * 3) % 5) / 10),
       verdict,
+      stopVerdict: verdict === 'wide' ? 'ok' : verdict,
+      gapBeforeVerdict: before === null ? null : before > bandHighM ? 'wide' : before < bandLowM ? 'short' : 'ok',
+      gapAfterVerdict: after === null ? null : after > bandHighM ? 'wide' : after < bandLowM ? 'short' : 'ok',
       fixedReason,
       fixedNote: '',
       keptByOptimiser: verdict !== 'close',
@@ -143,6 +146,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
         fromStopId: '',
         toStopId: '',
         gapM: after,
+        verdict: wide ? 'wide' : after < bandLowM ? 'short' : 'ok',
         wide,
         coveredByLocal: null,
         expressStretch: false,
@@ -189,6 +193,8 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     paxMinLostPerDay:
       stops.reduce((a, s) => a + (s.verdict === 'close' && s.removalNetPaxMinPerDay !== null ? Math.max(0, -s.removalNetPaxMinPerDay) : 0), 0) +
       gaps.reduce((a, g) => a + (g.addNetPaxMinPerDay !== null ? -g.addNetPaxMinPerDay : 0), 0),
+    paxMinAdditionsPerDay: 40 * wideGaps,
+    paxMinAtStakePerDay: 0, // set below: the two together
     demandSource: 'assumed',
     lostTimeSource: 'default',
     lostTimePerStopS: P,
@@ -204,6 +210,7 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     optimalCostPerRiderS: optimalCost,
     path,
   };
+  pattern.paxMinAtStakePerDay = pattern.paxMinLostPerDay + pattern.paxMinAdditionsPerDay;
   return { pattern, stops, gaps };
 }
 
@@ -346,8 +353,12 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       medianGapM: allGaps[allGaps.length >> 1],
       meanOptimalSpacingM: patterns.reduce((a, p) => a + p.optimalSpacingM, 0) / patterns.length,
       closeStops: patterns.reduce((a, p) => a + p.closeStops, 0),
+      // the sample's stop ids are per pattern, so no wide gap is shared and the two counts agree
       wideGaps: patterns.reduce((a, p) => a + p.wideGaps, 0),
+      wideGapsOnPatterns: patterns.reduce((a, p) => a + p.wideGaps, 0),
       paxMinLostPerDay: patterns.reduce((a, p) => a + p.paxMinLostPerDay, 0),
+      paxMinAdditionsPerDay: patterns.reduce((a, p) => a + p.paxMinAdditionsPerDay, 0),
+      paxMinAtStakePerDay: patterns.reduce((a, p) => a + p.paxMinAtStakePerDay, 0),
     },
     patterns,
     stops,
@@ -361,10 +372,10 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
         .map((g) => ({ fromStopId: g.fromStopId, toStopId: g.toStopId, name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: g.gapM, routeIds: [stopById.get(g.fromStopId)?.routeId ?? ''], patternIds: [g.patternId], reason: 'long-straight-empty' as const, detail: '1.6 km straight with no stop of another route within a 400 m walk of its middle' })),
     ],
     sensitivity: [
-      { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 },
-      { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: 0.05, meanOptimalSpacingM: 439, closeStops: 38, wideGaps: 8, paxMinLostPerDay: 7100, candidatesKept: 10 },
-      { label: 'walk_weight=2.5', walkWeight: 2.5, bandTolerance: 0.05, meanOptimalSpacingM: 340, closeStops: 24, wideGaps: 15, paxMinLostPerDay: 3900, candidatesKept: 8 },
-      { label: 'band_tolerance=0.10', walkWeight: 2, bandTolerance: 0.1, meanOptimalSpacingM: 380, closeStops: 19, wideGaps: 7, paxMinLostPerDay: 5200, candidatesKept: 9 },
+      { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 , programmeNetPaxMinPerDay: -4100, programmeStillSaving: 12 },
+      { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: 0.05, meanOptimalSpacingM: 439, closeStops: 38, wideGaps: 8, paxMinLostPerDay: 7100, candidatesKept: 10 , programmeNetPaxMinPerDay: -5200, programmeStillSaving: 12 },
+      { label: 'walk_weight=2.5', walkWeight: 2.5, bandTolerance: 0.05, meanOptimalSpacingM: 340, closeStops: 24, wideGaps: 15, paxMinLostPerDay: 3900, candidatesKept: 8 , programmeNetPaxMinPerDay: -3100, programmeStillSaving: 10 },
+      { label: 'band_tolerance=0.10', walkWeight: 2, bandTolerance: 0.1, meanOptimalSpacingM: 380, closeStops: 19, wideGaps: 7, paxMinLostPerDay: 5200, candidatesKept: 9 , programmeNetPaxMinPerDay: -4100, programmeStillSaving: 12 },
     ],
     warnings: [
       { code: 'padded-values', message: 'values padded with spaces were trimmed', count: 3648, examples: ['stops.txt:2 column stop_lat', 'stops.txt:3 column stop_lon'] },
@@ -383,7 +394,7 @@ export function makeEmptyResult(): AuditResult {
   const r = makeSampleResult();
   return {
     ...r,
-    headline: { patterns: 0, stops: 0, trips: 0, medianGapM: 0, meanOptimalSpacingM: 0, closeStops: 0, wideGaps: 0, paxMinLostPerDay: 0 },
+    headline: { patterns: 0, stops: 0, trips: 0, medianGapM: 0, meanOptimalSpacingM: 0, closeStops: 0, wideGaps: 0, wideGapsOnPatterns: 0, paxMinLostPerDay: 0, paxMinAdditionsPerDay: 0, paxMinAtStakePerDay: 0 },
     patterns: [],
     stops: [],
     gaps: [],

@@ -1,11 +1,16 @@
 // The network-wide histogram of gaps between consecutive stops, as a static inline SVG, with the
 // near-optimal band and the modelled optimum drawn on it so a planner sees how much of the network lies
-// below or above the band. Only numbers go into the markup, never feed text.
+// below or above the band. Each bar is split by the gaps' own verdicts (each against its pattern's band):
+// the part below the band and the part judged wide, the very gaps the headline counts, so the chart and the
+// card cannot disagree. Only numbers go into the markup, never feed text.
 
+import type { GapVerdict } from '../../audit/types.js';
 import { metresToFeet, type Units } from '../units.js';
 
 export interface HistogramInput {
   gapsM: number[];
+  /** Each gap's verdict, as gapsM (GapResult.verdict). */
+  verdicts: GapVerdict[];
   bandLowM: number;
   bandHighM: number;
   optimalM: number;
@@ -19,12 +24,20 @@ const PAD = { left: 52, right: 16, top: 28, bottom: 44 };
 const f1 = (v: number): string => (Math.round(v * 10) / 10).toString();
 
 export function histogramSvg(input: HistogramInput, units: Units): string {
-  const { gapsM, bandLowM, bandHighM, optimalM, medianGapM } = input;
+  const { gapsM, verdicts, bandLowM, bandHighM, optimalM, medianGapM } = input;
   const binM = units === 'imperial' ? 200 * 0.3048 : 50; // 200 ft or 50 m bins
   const maxM = Math.max(binM * 4, Math.min(units === 'imperial' ? 6000 * 0.3048 : 1800, Math.max(bandHighM * 1.6, quantile(gapsM, 0.98))));
   const nBins = Math.ceil(maxM / binM);
   const counts = new Array<number>(nBins + 1).fill(0); // the last bin holds everything beyond maxM
-  for (const g of gapsM) if (Number.isFinite(g)) counts[Math.min(nBins, Math.max(0, Math.floor(g / binM)))]++;
+  const shortCounts = new Array<number>(nBins + 1).fill(0);
+  const wideCounts = new Array<number>(nBins + 1).fill(0);
+  gapsM.forEach((g, k) => {
+    if (!Number.isFinite(g)) return;
+    const i = Math.min(nBins, Math.max(0, Math.floor(g / binM)));
+    counts[i]++;
+    if (verdicts[k] === 'short') shortCounts[i]++;
+    else if (verdicts[k] === 'wide') wideCounts[i]++;
+  });
   const top = Math.max(1, ...counts);
   const plotW = WIDTH - PAD.left - PAD.right;
   const plotH = HEIGHT - PAD.top - PAD.bottom;
@@ -47,11 +60,15 @@ export function histogramSvg(input: HistogramInput, units: Units): string {
     if (c === 0) return;
     const lo = i * binM;
     const hi = lo + binM;
-    const cls = hi <= bandLowM ? 'bar close' : lo >= bandHighM ? 'bar wide' : 'bar';
     const what = i === nBins ? `${label(lo)} or more` : `${label(lo)} to ${label(hi)}`;
-    parts.push(
-      `<rect class="${cls}" x="${f1(xOf(lo) + 1)}" y="${f1(yOf(c))}" width="${f1(Math.max(1, xOf(hi) - xOf(lo) - 2))}" height="${f1(PAD.top + plotH - yOf(c))}"><title>${what}: ${c} gaps</title></rect>`,
-    );
+    const x = f1(xOf(lo) + 1);
+    const w = f1(Math.max(1, xOf(hi) - xOf(lo) - 2));
+    const rect = (cls: string, from: number, k: number, title: string) =>
+      `<rect class="${cls}" x="${x}" y="${f1(yOf(from + k))}" width="${w}" height="${f1(yOf(from) - yOf(from + k))}"><title>${title}</title></rect>`;
+    parts.push(rect('bar', 0, c, `${what}: ${c} gaps`));
+    // below their pattern's band at the foot of the bar, the wide ones above them
+    if (shortCounts[i] > 0) parts.push(rect('bar close', 0, shortCounts[i], `${what}: ${shortCounts[i]} below their pattern's band`));
+    if (wideCounts[i] > 0) parts.push(rect('bar wide', shortCounts[i], wideCounts[i], `${what}: ${wideCounts[i]} wide`));
   });
   // optimum and median markers
   parts.push(

@@ -48,6 +48,9 @@ function thin(path: [number, number][], max: number): [number, number][] {
 export function pageData(result: AuditResult, units: Units, maxPathPoints: number): Record<string, unknown> {
   const stopsBy = new Map<string, StopResult[]>();
   for (const s of result.stops) {
+    // a timing point where no one boards or alights is no stop for spacing: the page's stop list, its
+    // gaps and its strip run past it, as stops.csv's gaps do
+    if (s.stopVerdict === 'timing-only') continue;
     let l = stopsBy.get(s.patternId);
     if (!l) stopsBy.set(s.patternId, (l = []));
     l.push(s);
@@ -64,6 +67,8 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
   for (const p of result.patterns) if (!routeName.has(p.routeId)) routeName.set(p.routeId, p.routeShortName || p.routeId);
   const patterns = result.patterns.map((p: PatternResult) => {
     const stops = (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex);
+    // a wide gap names its first stop by its place in this list
+    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
     return {
       id: p.patternId,
       route: p.routeId,
@@ -106,7 +111,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
         r1(s.boardingsPerDay),
         r1(s.alightingsPerDay),
       ]),
-      gaps: wideBy.get(p.patternId) ?? [],
+      gaps: (wideBy.get(p.patternId) ?? []).flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
     };
   });
   const candidates = result.candidates.map((c) => ({
@@ -158,11 +163,11 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   const bandLow = median(result.patterns.map((p) => p.bandLowM).filter(Number.isFinite), 0);
   const bandHigh = median(result.patterns.map((p) => p.bandHighM).filter(Number.isFinite), 0);
   const hist = histogramSvg(
-    { gapsM: result.gaps.map((g) => g.gapM), bandLowM: bandLow, bandHighM: bandHigh, optimalM: hl.meanOptimalSpacingM, medianGapM: hl.medianGapM },
+    { gapsM: result.gaps.map((g) => g.gapM), verdicts: result.gaps.map((g) => g.verdict), bandLowM: bandLow, bandHighM: bandHigh, optimalM: hl.meanOptimalSpacingM, medianGapM: hl.medianGapM },
     units,
   );
-  const belowBand = result.gaps.filter((g) => g.gapM < bandLow).length;
-  const aboveBand = result.gaps.filter((g) => g.gapM > bandHigh).length;
+  const belowBand = result.gaps.filter((g) => g.verdict === 'short').length;
+  const wideRows = result.gaps.filter((g) => g.verdict === 'wide').length; // = hl.wideGapsOnPatterns
   // removals and additions are different decisions: each has its own ranked list
   const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
   const topItem = (c: AuditResult['candidates'][number]): string =>
@@ -195,10 +200,10 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
         .join('')}</tbody></table></div>`
     : '<p class="note">The feed was read without warnings.</p>';
   const sensitivity = result.sensitivity.length
-    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th></tr></thead><tbody>${result.sensitivity
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th><th scope="col" class="num">listed candidates still saving</th></tr></thead><tbody>${result.sensitivity
         .map(
           (s) =>
-            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td></tr>`,
+            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td><td class="num">${h(fmt(s.programmeStillSaving))} of ${h(fmt(result.candidates.length))}</td></tr>`,
         )
         .join('')}</tbody></table></div>`
     : '<p class="note">No sensitivity cases were run.</p>';
@@ -227,9 +232,9 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
 <div class="card"><div class="k">Feed</div><div class="v">${h(feedName)}</div><div class="s">${h(result.feed.source)}${result.feed.contentHash ? ` · ${h(result.feed.contentHash)}` : ''}</div></div>
 <div class="card"><div class="k">Analysis date</div><div class="v">${h(result.date)}</div><div class="s">${h(fmt(hl.trips))} trips that day</div></div>
 <div class="card"><div class="k">Patterns</div><div class="v">${h(fmt(hl.patterns))}</div><div class="s">route, direction and stop sequence</div></div>
-<div class="card"><div class="k">Stops served</div><div class="v">${h(fmt(hl.stops))}</div><div class="s">${h(fmt(hl.closeStops))} close stops, ${h(fmt(hl.wideGaps))} wide gaps</div></div>
+<div class="card"><div class="k">Stops served</div><div class="v">${h(fmt(hl.stops))}</div><div class="s">${h(fmt(hl.closeStops))} close stops, ${h(fmt(hl.wideGaps))} wide gap${hl.wideGaps === 1 ? '' : 's'} (each pair of stops once; ${h(fmt(hl.wideGapsOnPatterns))} counted on each pattern that runs them)</div></div>
 <div class="card"><div class="k">Median gap</div><div class="v">${h(d(hl.medianGapM))}</div><div class="s">modelled optimum ${h(d(hl.meanOptimalSpacingM))} (mean over patterns); near-optimal band about ${h(d(bandLow))} to ${h(d(bandHigh))}</div></div>
-<div class="card"><div class="k">Passenger-minutes lost per day</div><div class="v">${h(fmt(hl.paxMinLostPerDay))}</div><div class="s">today against the optimised stop pattern${assumedNote}</div></div>
+<div class="card"><div class="k">Passenger-minutes at stake per day</div><div class="v">${h(fmt(hl.paxMinAtStakePerDay))}</div><div class="s">${h(fmt(hl.paxMinLostPerDay))} by removals (today against the optimised stop pattern) + ${h(fmt(hl.paxMinAdditionsPerDay))} by the proposed additions${assumedNote}</div></div>
 <div class="card"><div class="k">Demand</div><div class="v">${assumed ? 'assumed' : 'observed'}</div><div class="s">${demandBadge} ${assumed ? 'spread evenly along each pattern; figures are estimates' : 'from a stop-level ridership file'}</div></div>
 <div class="card"><div class="k">Lost time per stop</div><div class="v">${result.lostTimeSource === 'observed' ? 'observed' : 'defaults'}</div><div class="s">${result.lostTimeSource === 'observed' ? 'dwell and stopping from realtime data' : 'door, braking and re-entry defaults (see parameters)'}</div></div>
 </div>
@@ -245,7 +250,7 @@ ${assumed ? '<p><strong>Demand in this report is assumed, not counted:</strong> 
 
 <section id="gaps" aria-labelledby="gaps-h">
 <h2 id="gaps-h">How far apart the stops are</h2>
-<p class="note">Every gap between consecutive stops of every pattern. The shaded band is where riders' total time stays within the tolerance of the optimum; ${h(fmt(belowBand))} gaps lie below it (rust bars, stops closer than worthwhile) and ${h(fmt(aboveBand))} above it (blue bars, long walks). The band shown is the median over patterns; each pattern has its own.</p>
+<p class="note">Every gap between consecutive stops of every pattern. The shaded band is where riders' total time stays within the tolerance of the optimum; the band shown is the median over patterns, and each gap is judged against its own pattern's band: ${h(fmt(belowBand))} lie below it (rust, stops closer than worthwhile) and ${h(fmt(wideRows))} are wide (blue, long walks with no local serving them): the ${h(fmt(hl.wideGaps))} wide gap${hl.wideGaps === 1 ? '' : 's'} of the headline, counted on each pattern that runs ${hl.wideGaps === 1 ? 'it' : 'them'}. Timing points where no one boards or alights are passed over.</p>
 ${hist}
 </section>
 
