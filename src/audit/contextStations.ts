@@ -5,7 +5,8 @@
 
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
-import type { ContextFeed } from '../gtfs/readContext.js';
+import { readContextFeeds, type ContextFeed } from '../gtfs/readContext.js';
+import { WarningSink } from '../common/warnings.js';
 import { haversineM } from '../network/geodesy.js';
 
 /** A stop within this distance of a context station is a transfer point to it. */
@@ -53,4 +54,17 @@ export function stopsNearStations(feed: Feed, patterns: PatternSet, contexts: Co
     }
   }
   return out;
+}
+
+/**
+ * The context feeds given (--context) read on the feed's analysis date, their warnings added to the feed's,
+ * and the served stops near their stations: how every command that takes --context gets its transfer points
+ * to other modes (audit, whatif, check, compare), so they all read the same stations by the same rule.
+ */
+export async function contextStops(feed: Feed, patterns: PatternSet, sources: readonly string[]): Promise<Map<number, string>> {
+  if (sources.length === 0) return new Map();
+  const warnings = new WarningSink();
+  const contexts = await readContextFeeds(sources, { date: feed.date ?? (patterns.date || undefined), warnings });
+  feed.warnings.push(...warnings.list());
+  return stopsNearStations(feed, patterns, contexts);
 }
