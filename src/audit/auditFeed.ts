@@ -52,9 +52,9 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
     });
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
-  const stations = await contextStops(feed, patterns, context);
+  const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations });
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations });
   return { feed, patterns, observed, result };
 }

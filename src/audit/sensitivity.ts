@@ -2,6 +2,7 @@
 // band tolerances 0.05 and 0.10, everything else unchanged. A case whose settings are the base audit's own
 // (band tolerance 0.05 by default) reuses the base analyses and candidates instead of computing them again.
 
+import type { StationPoint } from './contextStations.js';
 import type { Feed } from '../gtfs/types.js';
 import type { Candidate, SensitivityCase } from './types.js';
 import type { ModelParams } from '../model/params.js';
@@ -43,7 +44,10 @@ export function runSensitivity(
     baseAnalyses,
     parts = preps.map((p) => patternParts(p, params)),
     reported = () => true,
+    contextStations = [],
   }: {
+    /** The context feeds' stations, evidence for additions as in the base audit. */
+    contextStations?: readonly StationPoint[];
     /** The routes a report shows (--routes and the other filters): the case figures count their patterns and candidates only; every figure is still computed on the whole network. */
     reported?: (routeId: string) => boolean;
     settings?: SensitivitySetting[];
@@ -59,7 +63,7 @@ export function runSensitivity(
   for (const s of settings) {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
     const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }));
-    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, contextStations });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));
     const shown = analyses.filter((a) => reported(a.result.routeId));

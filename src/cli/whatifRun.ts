@@ -118,7 +118,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
         throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
       }
       // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
-      const stations = await contextStops(feed, patterns, opts.context ?? []);
+      const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
       const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
       progress.onProgress?.({ stage: 'weighing the scenario' });
       result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, stations, onProgress: progress.onProgress });

@@ -41,7 +41,7 @@ describe('whatif with a context feed', () => {
 
   it('names the station beside a removed stop, and leaves the figures as they were', async () => {
     const { feed, patterns } = network();
-    const stations = await contextStops(feed, patterns, [railFolder('vellmoor-rail', rail)]);
+    const stations = (await contextStops(feed, patterns, [railFolder('vellmoor-rail', rail)])).near;
     const d = haversineM(bus[4].lat, bus[4].lon, rail.lat, rail.lon);
     expect(Math.round(d)).toBe(60);
     const params = { cruise_speed_mps: 11.176 };
