@@ -78,6 +78,8 @@ export interface ContextStops {
   near: Map<number, string>;
   /** Every context station (evidence of where people are, for additions). */
   stations: StationPoint[];
+  /** Each context feed read: its label, its stations, its services on the date (null without a date). */
+  feeds: { label: string; source: string; stations: number; servicesOnDate: number | null }[];
 }
 
 /**
@@ -86,9 +88,13 @@ export interface ContextStops {
  * gets them (audit, whatif, check, compare), so they all read the same stations by the same rule.
  */
 export async function contextStops(feed: Feed, patterns: PatternSet, sources: readonly string[]): Promise<ContextStops> {
-  if (sources.length === 0) return { near: new Map(), stations: [] };
+  if (sources.length === 0) return { near: new Map(), stations: [], feeds: [] };
   const warnings = new WarningSink();
   const contexts = await readContextFeeds(sources, { date: feed.date ?? (patterns.date || undefined), warnings });
   feed.warnings.push(...warnings.list());
-  return { near: stopsNearStations(feed, patterns, contexts), stations: stationPoints(contexts) };
+  return {
+    near: stopsNearStations(feed, patterns, contexts),
+    stations: stationPoints(contexts),
+    feeds: contexts.map((c) => ({ label: c.label, source: c.source, stations: c.stations.length, servicesOnDate: c.servicesOnDate })),
+  };
 }

@@ -73,7 +73,7 @@ export function registerCompare(program: Command): void {
         let a, b;
         let oldAudit: AuditResult | undefined;
         const context = o.context ?? [];
-        let oldContext: ContextStops = { near: new Map(), stations: [] };
+        let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
         let newContext: ContextStops = oldContext;
         try {
           a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
