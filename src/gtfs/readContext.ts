@@ -38,12 +38,21 @@ export function contextLabel(source: string): string {
   return base.replace(/\.zip$/i, '');
 }
 
-async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink): Promise<void> {
+/**
+ * Reads one table of a context feed. An optional table (the calendars) with no header, zero bytes or only a
+ * byte-order mark or blank lines, reads as absent and is counted under empty-table, as the feed reader does.
+ */
+async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink, emptyAs?: string): Promise<void> {
   let c: Record<string, number> = {};
+  let empty = false;
   await readCsv(await archive.open(file), {
     file,
     warnings,
     onHeader(header) {
+      if (header.length === 0 && emptyAs !== undefined) {
+        empty = true;
+        return;
+      }
       const at = new Map(header.map((h, i) => [h, i]));
       c = {};
       for (const r of required) {
@@ -53,8 +62,11 @@ async function readTable(archive: FeedArchive, file: string, required: readonly 
       }
       for (const o of optional) c[o] = at.get(o) ?? -1;
     },
-    onRow: (row) => onRow(row, c),
+    onRow: (row) => {
+      if (!empty) onRow(row, c);
+    },
   });
+  if (empty) warnings.add('empty-table', emptyAs);
 }
 
 /**
@@ -87,10 +99,10 @@ export async function readContextFeed(source: string, { date, warnings, label = 
       const calendarDates: CalendarDate[] = [];
       // the feed reader's row converters: a context feed's calendar is read by the same rule as the audited feed's
       if (archive.has('calendar.txt')) {
-        await readTable(archive, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => calendar.push(calendarRow(row, c, warnings, `${label} `)), warnings);
+        await readTable(archive, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => calendar.push(calendarRow(row, c, warnings, `${label} `)), warnings, `${label} calendar.txt`);
       }
       if (archive.has('calendar_dates.txt')) {
-        await readTable(archive, 'calendar_dates.txt', CALENDAR_DATES_COLUMNS, [], (row, c) => calendarDates.push(calendarDateRow(row, c)), warnings);
+        await readTable(archive, 'calendar_dates.txt', CALENDAR_DATES_COLUMNS, [], (row, c) => calendarDates.push(calendarDateRow(row, c)), warnings, `${label} calendar_dates.txt`);
       }
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
       if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);

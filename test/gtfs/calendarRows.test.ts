@@ -1,6 +1,7 @@
 // One rule for calendar rows, whichever feed they come from: a bad calendar.txt or calendar_dates.txt row in
 // a context feed is refused with the same error as in the audited feed (file, line, column, value), where
-// the context reader used to read a blank weekday as 0. The basic Vellmoor fixture with one row edited.
+// the context reader used to read a blank weekday as 0; an empty optional calendar table reads as absent in
+// both, where the context reader refused it. The basic Vellmoor fixture with one table edited.
 import { afterAll, describe, expect, it } from 'vitest';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { readContextFeed } from '../../src/gtfs/readContext.js';
@@ -40,6 +41,16 @@ describe('calendar rows in a context feed', () => {
       expect(context.oneLine()).toBe(main.oneLine().replace(`${main.context.file}:`, `rail/${main.context.file}:`).replace(': ', `: context feed ${dir}: `));
     });
   }
+
+  it('reads an empty calendar_dates.txt as absent, counted, as the audited feed\'s reader does', async () => {
+    const dir = feedCopy({ 'calendar_dates.txt': '' });
+    const main = await readFeed(dir, { date: '2026-09-15' });
+    expect(main.warnings.find((w) => w.code === 'empty-table')?.examples).toEqual(['calendar_dates.txt']);
+    const warnings = new WarningSink();
+    const c = await readContextFeed(dir, { date: '2026-09-15', warnings, label: 'rail' });
+    expect(c.servicesOnDate).toBeGreaterThan(0);
+    expect(warnings.list().find((w) => w.code === 'empty-table')?.examples).toEqual(['rail calendar_dates.txt']);
+  });
 
   it('counts a calendar row that ends before it starts, naming the context feed', async () => {
     const dir = feedCopy({ 'calendar.txt': `${HEAD}\nWK,1,1,1,1,1,0,0,20260907,20260930\nOLD,1,1,1,1,1,0,0,20260930,20260907\n` });
