@@ -2,6 +2,8 @@
 // (--context): each is a transfer point to that mode and is kept, its note naming the nearest station and
 // the distance. The radius, 150 m, is a design choice of this tool [D]: about two minutes' walk at the
 // model's walking speed, the same reach as a local's stop counting as serving a limited-stop gap.
+// contextStops is the one way every command that takes --context (audit, whatif, check, compare) reads the
+// context feeds and matches them to its stops; the stations themselves are also evidence for additions.
 
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
