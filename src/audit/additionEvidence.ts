@@ -16,9 +16,12 @@
 //     stops at both ends cannot average an urban 50 km/h limit once braking and accelerating are counted [D];
 //   - a run of at least 1 km whose stops' straight line is within 5 % of the distance along is "long and
 //     straight" (named so in the reason; it fails on the witness rule like any other).
+// A station of a context feed (--context: the subway, regional rail) within the same walk of the site, and
+// in the middle of the gap by the same rule, is a witness too: people walk to it; the evidence names it.
 
 import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
+import { stationNote, type StationPoint } from './contextStations.js';
 
 /** Walk distance a rider accepts to a stop, metres [M, common practice]. */
 export const WALK_RADIUS_M = 400;
@@ -51,7 +54,8 @@ export interface GapSite {
 }
 
 export type Evidence =
-  { ok: true; witnessStops: number; witnessRoutes: string[]; text: string } | { ok: false; reason: ReviewReason; text: string };
+  | { ok: true; witnessStops: number; witnessRoutes: string[]; witnessStations?: string[]; text: string }
+  | { ok: false; reason: ReviewReason; text: string };
 
 const CELL_DEG = 0.002; // about 220 m north-south
 const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter drops nothing inside the reach
@@ -60,9 +64,19 @@ const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere,
 export interface StopIndex {
   cells: Map<string, number[]>;
   routesAt: Map<number, Set<string>>;
+  /** The context feeds' stations on the same grid (none without --context). */
+  stationCells: Map<string, StationPoint[]>;
+  stationCount: number;
 }
 
-export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>): StopIndex {
+export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>, stations: readonly StationPoint[] = []): StopIndex {
+  const stationCells = new Map<string, StationPoint[]>();
+  for (const p of stations) {
+    const key = `${Math.floor(p.lat / CELL_DEG)},${Math.floor(p.lon / CELL_DEG)}`;
+    let c = stationCells.get(key);
+    if (!c) stationCells.set(key, (c = []));
+    c.push(p);
+  }
   const cells = new Map<string, number[]>();
   const routesAt = new Map<number, Set<string>>();
   for (const [s, routeId] of served) {
@@ -78,25 +92,26 @@ export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>): 
     }
     r.add(routeId);
   }
-  return { cells, routesAt };
+  return { cells, routesAt, stationCells, stationCount: stations.length };
 }
 
-/** Stops of the index within reachM of a point (straight line), in index order. */
-export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number, reachM: number): number[] {
-  const out: number[] = [];
+/** Every item of a grid's cells that may lie within reachM of a point (the cells the reach touches). */
+function* cellsNear<T>(cells: Map<string, T[]>, lat: number, lon: number, reachM: number): Iterable<T> {
   const dLat = reachM / M_PER_DEG_LAT;
   const dLon = reachM / (M_PER_DEG_LAT * Math.max(0.01, Math.cos((Math.abs(lat) + dLat) * (Math.PI / 180))));
   const i0 = Math.floor((lat - dLat) / CELL_DEG);
   const i1 = Math.floor((lat + dLat) / CELL_DEG);
   const j0 = Math.floor((lon - dLon) / CELL_DEG);
   const j1 = Math.floor((lon + dLon) / CELL_DEG);
-  for (let i = i0; i <= i1; i++) {
-    for (let j = j0; j <= j1; j++) {
-      for (const s of index.cells.get(`${i},${j}`) ?? []) {
-        const st = feed.stops[s];
-        if (haversineM(lat, lon, st.lat, st.lon) <= reachM) out.push(s);
-      }
-    }
+  for (let i = i0; i <= i1; i++) for (let j = j0; j <= j1; j++) yield* cells.get(`${i},${j}`) ?? [];
+}
+
+/** Stops of the index within reachM of a point (straight line), in index order. */
+export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number, reachM: number): number[] {
+  const out: number[] = [];
+  for (const s of cellsNear(index.cells, lat, lon, reachM)) {
+    const st = feed.stops[s];
+    if (haversineM(lat, lon, st.lat, st.lon) <= reachM) out.push(s);
   }
   return out.sort((a, b) => a - b);
 }
@@ -123,25 +138,34 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
     witnesses.push(s);
     for (const r of others) routes.add(r);
   }
-  if (witnesses.length >= MIN_WITNESS_STOPS) {
-    const rs = [...routes].sort();
-    return {
-      ok: true,
-      witnessStops: witnesses.length,
-      witnessRoutes: rs,
-      text: `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`,
-    };
+  // context stations in the middle of the gap, nearest first
+  const stations: { d: number; note: string }[] = [];
+  for (const p of cellsNear(index.stationCells, site.lat, site.lon, WALK_REACH_M)) {
+    const dSite = haversineM(site.lat, site.lon, p.lat, p.lon);
+    if (!(dSite <= WALK_REACH_M)) continue;
+    if (from && !(dSite <= WITNESS_END_RATIO * haversineM(from.lat, from.lon, p.lat, p.lon))) continue;
+    if (to && !(dSite <= WITNESS_END_RATIO * haversineM(to.lat, to.lon, p.lat, p.lon))) continue;
+    stations.push({ d: dSite, note: stationNote(p, dSite) });
   }
+  stations.sort((a, b) => a.d - b.d || a.note.localeCompare(b.note));
+  if (witnesses.length + stations.length >= MIN_WITNESS_STOPS) {
+    const rs = [...routes].sort();
+    const said: string[] = [];
+    if (witnesses.length) said.push(`${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`);
+    if (stations.length) said.push(`${stations.map((x) => x.note).join('; ')} from the site, within a walk`);
+    return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, ...(stations.length ? { witnessStations: stations.map((x) => x.note) } : {}), text: said.join('; ') };
+  }
+  const nothing = index.stationCount > 0 ? 'no stop of another route nor station of a context feed' : 'no stop of another route';
   const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;
   if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM)
     return {
       ok: false,
       reason: 'long-straight-empty',
-      text: `${(site.gapM / 1000).toFixed(1)} km straight with no stop of another route within a ${WALK_RADIUS_M} m walk of its middle`,
+      text: `${(site.gapM / 1000).toFixed(1)} km straight with ${nothing} within a ${WALK_RADIUS_M} m walk of its middle`,
     };
   return {
     ok: false,
     reason: 'no-stop-near',
-    text: `no stop of another route within a ${WALK_RADIUS_M} m walk of its middle, away from the gap's ends`,
+    text: `${nothing} within a ${WALK_RADIUS_M} m walk of its middle, away from the gap's ends`,
   };
 }

@@ -9,9 +9,7 @@ import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
-import { WarningSink } from '../common/warnings.js';
-import { contextLabel, readContextFeed, type ContextFeed } from '../gtfs/readContext.js';
-import { stopsNearStations } from './contextStations.js';
+import { contextStops } from './contextStations.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
@@ -54,19 +52,9 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
     });
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
-  const contexts: ContextFeed[] = [];
-  const contextWarnings = new WarningSink();
-  const labels = new Set<string>();
-  for (const source of context) {
-    let label = contextLabel(source);
-    for (let k = 2; labels.has(label); k++) label = `${contextLabel(source)}-${k}`;
-    labels.add(label);
-    contexts.push(await readContextFeed(source, { date: feed.date ?? undefined, warnings: contextWarnings, label }));
-  }
-  feed.warnings.push(...contextWarnings.list());
-  const stations = stopsNearStations(feed, patterns, contexts);
+  const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations });
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations });
   return { feed, patterns, observed, result };
 }

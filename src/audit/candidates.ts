@@ -8,11 +8,14 @@ import type { Feed } from '../gtfs/types.js';
 import type { Candidate, ReviewGap } from './types.js';
 import type { AdditionEffect, PatternAnalysis, RemovalEffect } from './verdicts.js';
 import { additionEvidence, buildStopIndex } from './additionEvidence.js';
+import type { StationPoint } from './contextStations.js';
 
 export interface CandidateOptions {
   maxGapM: number;
   /** Filled with the wide gaps that have no evidence for a stop (see additionEvidence.ts), longest first. */
   reviewGaps?: ReviewGap[];
+  /** The context feeds' stations (--context): evidence for an addition, as another route's stop is. */
+  contextStations?: readonly StationPoint[];
 }
 
 interface Group<T> {
@@ -32,7 +35,7 @@ export function candidateKey(c: Pick<Candidate, 'action' | 'stopId' | 'lat' | 'l
   return c.action === 'remove' ? `remove:${c.stopId}` : `add:${c.lat.toFixed(6)},${c.lon.toFixed(6)}`;
 }
 
-export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps }: CandidateOptions): Candidate[] {
+export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps, contextStations = [] }: CandidateOptions): Candidate[] {
   const fixed = new Set<number>();
   for (const a of analyses) for (const s of a.fixedStopIdx) fixed.add(s);
   const byPattern = new Map(analyses.map((a) => [a.result.patternId, a]));
@@ -94,7 +97,7 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   }
   // an addition stands on evidence that people are there and a bus can stop there; a gap without it is
   // listed for review with its length and reason, with no passenger-minute figure
-  const stopIndex = addGroups.size ? buildStopIndex(feed, servedStops(analyses)) : null;
+  const stopIndex = addGroups.size ? buildStopIndex(feed, servedStops(analyses), contextStations) : null;
   const review: ReviewGap[] = [];
   for (const g of addGroups.values()) {
     const e0 = g.effects[0];

@@ -19,7 +19,7 @@ import { analysePattern, patternParts } from './verdicts.js';
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { TRUNK_WINDOW } from './transfers.js';
 import { EXPRESS_STRETCH_M } from './expressStretch.js';
-import { CONTEXT_STATION_RADIUS_M } from './contextStations.js';
+import { CONTEXT_STATION_RADIUS_M, type StationPoint } from './contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
 import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';
@@ -38,6 +38,8 @@ export interface RunAuditOptions {
   forceTransfers?: boolean;
   /** Stops within walking distance of another mode's station (stop index -> note), kept as transfer points. */
   stations?: ReadonlyMap<number, string>;
+  /** The context feeds' stations (--context): a station within a walk of a wide gap's middle is evidence for an addition there. */
+  contextStations?: readonly StationPoint[];
   /** Route ids to report (null or absent: all). Every figure is still computed on the whole network. */
   reportRoutes?: ReadonlySet<string> | null;
   /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
@@ -61,7 +63,7 @@ function stoppingAssumption(param: string, used: string[]): string {
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations } = options;
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations, contextStations = [] } = options;
   const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations });
 
   onProgress?.({ stage: 'verdicts' });
@@ -72,7 +74,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
   const reviewGaps: ReviewGap[] = [];
-  const generated = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps });
+  const generated = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps, contextStations });
   // what is reported: the routes asked for; everything above was computed on the whole network
   const shownRoute = (routeId: string) => reportRoutes === null || reportRoutes.has(routeId);
   const shown = analyses.filter((a) => shownRoute(a.result.routeId));
@@ -102,7 +104,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   if (!joint) warnings.add('candidates-weighed-alone', `${generated.length} candidates`);
   // the cases, and robustness judged on the programme as accepted (its candidates' robust set there)
   onProgress?.({ stage: 'sensitivity' });
-  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates });
+  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates, contextStations });
   // what the accepted additions have at stake on each pattern, beside the optimiser's removals
   const adds = additionsAtStake(feed, patterns.date, preps, params, candidates);
   for (const a of analyses) {
@@ -179,7 +181,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
     `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
-    `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there: a stop of any route within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
+    `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there: a stop of any route${contextStations.length > 0 ? ' or a station of a context feed' : ''} within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),

@@ -55,6 +55,18 @@ export interface CheckReport {
   analysis: AnalysisDay;
   /** The patterns checked, on their analysis date: counts and the median gap, for the history's trend. */
   network: { date: string; patterns: number; stopsServed: number; tripsPerDay: number; medianGapM: number | null };
+  /**
+   * What the context feeds (--context) say about the checked network: each feed's stations and services on
+   * the analysis date, and the stops served within walking distance of one of their stations (transfer
+   * points the audit keeps), counted with a few examples; null without context feeds.
+   */
+  context: CheckContext | null;
+}
+
+export interface CheckContext {
+  feeds: { label: string; stations: number; servicesOnDate: number | null }[];
+  stopsNearStations: number;
+  examples: { stopId: string; stopName: string; station: string }[];
 }
 
 export interface CheckOptions {
@@ -64,6 +76,8 @@ export interface CheckOptions {
   severities?: Partial<Record<FindingCode, Severity>>; // overrides of the table's defaults
   /** How the patterns' date was chosen (chooseAnalysisDate); default: the patterns' own date, as asked for. */
   analysis?: AnalysisDay;
+  /** The context feeds read for the patterns' date and the served stops near their stations (contextStops in src/audit/contextStations.ts). */
+  context?: { feeds: { label: string; stations: number; servicesOnDate: number | null }[]; near: ReadonlyMap<number, string> };
 }
 
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
@@ -136,7 +150,16 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     bySeverity,
     analysis,
     network: networkFigures(patterns),
+    context: options.context ? contextFigures(feed, options.context, maxExamples) : null,
   };
+}
+
+function contextFigures(feed: Feed, context: NonNullable<CheckOptions['context']>, maxExamples: number): CheckContext {
+  const examples = [...context.near]
+    .map(([i, station]) => ({ stopId: feed.stops[i]?.id ?? '', stopName: feed.stops[i]?.name ?? '', station }))
+    .sort((a, b) => a.stopId.localeCompare(b.stopId))
+    .slice(0, maxExamples);
+  return { feeds: context.feeds.map((f) => ({ label: f.label, stations: f.stations, servicesOnDate: f.servicesOnDate })), stopsNearStations: context.near.size, examples };
 }
 
 function networkFigures(set: PatternSet): CheckReport['network'] {

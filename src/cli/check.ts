@@ -31,6 +31,7 @@ interface CheckCliOptions {
   outlierKm?: string;
   serviceMinDays?: string;
   speed: string[];
+  context?: string[];
   quiet?: boolean;
   verbose?: boolean;
 }
@@ -69,6 +70,7 @@ export function registerCheck(program: Command): void {
     .option('--outlier-km <km>', 'stops farther than this (at least) from the median stop are outliers (default 100)')
     .option('--service-min-days <days>', 'service must run at least this many days after --today (default 7)')
     .option('--speed <family=min:max>', 'scheduled speed bounds in km/h per family (bus, tram, metro, rail, ferry, cable, other); repeatable', listOption, [])
+    .option('--context <feed>', 'another feed (zip, folder or URL; repeatable): an unreadable one exits 2; reports its stations and service on the date, and the stops served within 150 m of one', (v: string, prev: string[] = []) => prev.concat(v))
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')
     .addHelpText('after', `\nFindings (code, default severity, meaning):\n${codes}\n\nThe pattern checks run on --date, else on the run date (--today), else on the first day with service in the ${NEXT_SERVICE_WINDOW_DAYS} days after it; none at all is the no-service finding.\n\nExit codes: 0 clean, 1 a finding at or above --fail-on, 2 unreadable input or bad usage (with --json, an error document on stdout too), 3 internal error.`)
@@ -94,7 +96,14 @@ export function registerCheck(program: Command): void {
           } finally {
             progress.done();
           }
-          report = checkFeed(loaded.feed, loaded.patterns, { today, thresholds, maxExamples: Math.floor(maxExamples), analysis: loaded.analysis });
+          // context feeds (--context), read on the analysis date as the audit reads them
+          let context;
+          if (o.context?.length) {
+            const { contextStops } = await import('../audit/contextStations.js');
+            const { near, feeds } = await contextStops(loaded.feed, loaded.patterns, o.context);
+            context = { near, feeds };
+          }
+          report = checkFeed(loaded.feed, loaded.patterns, { today, thresholds, maxExamples: Math.floor(maxExamples), analysis: loaded.analysis, context });
           if (history && db) history.recordRun(db, history.checkRunRow(report));
         } finally {
           db?.close();

@@ -4,6 +4,7 @@
 import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { mergeParams } from './audit.js';
+import type { ContextStops } from '../audit/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
@@ -27,6 +28,7 @@ interface CompareCliOptions {
   ridership?: string;
   params?: string;
   audit: boolean;
+  context?: string[];
   force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
@@ -45,6 +47,7 @@ export function registerCompare(program: Command): void {
     .option('--date <YYYY-MM-DD>', "analysis date for both feeds' patterns (default: each feed's Monday-Friday date with the most trips, frequencies expanded)")
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
+    .option('--context <feed>', "another feed (zip, folder or URL; repeatable) whose stations within 150 m keep stops as transfer points in both audits; lists the stops that lost or gained such a link", (v: string, prev: string[] = []) => prev.concat(v))
     .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
@@ -54,32 +57,40 @@ export function registerCompare(program: Command): void {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
           import('../compare/compare.js'),
           import('../audit/runAudit.js'),
+          import('../audit/contextStations.js'),
           import('../report/compareRender.js'),
           import('../report/writeFolder.js'),
         ]);
-        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params] };
+        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params, ...(o.context ?? [])] };
         if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
         const progress = makeProgress(o.quiet === true || o.json === true);
         // the same parameters and ridership file on both sides, so the figures differ only by the feeds
         const params = o.audit ? mergeParams(o.params, {}) : undefined;
         let a, b;
         let oldAudit: AuditBrief | undefined;
+        const context = o.context ?? [];
+        let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
+        let newContext: ContextStops = oldContext;
         try {
           a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
+          // context feeds (--context), read for each version on its own date as the audit reads them
+          oldContext = await contextStops(a.feed, a.patterns, context);
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
-          if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership }));
+          if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations }));
           a = { ...a, feed: comparedPart(a.feed, a.patterns) };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
+          newContext = await contextStops(b.feed, b.patterns, context);
         } finally {
           progress.done();
         }
         let audits: { old: AuditBrief; new: AuditBrief } | undefined;
-        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: auditBrief(runAudit(b.feed, b.patterns, { params, ridership: o.ridership })) };
-        const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits });
+        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: auditBrief(runAudit(b.feed, b.patterns, { params, ridership: o.ridership, stations: newContext.near, contextStations: newContext.stations })) };
+        const stationStops = context.length > 0 ? { old: oldContext.near, new: newContext.near } : undefined;
+        const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits, stationStops });
         const code = compareExitCode(c, tripLossPct);
         const doc = compareDocument(c, { old: a.date, new: b.date }, { old: a.analysis, new: b.analysis }, tripLossPct ?? null, code);
         if (o.out) {

@@ -25,6 +25,7 @@ export function registerWhatif(program: Command): void {
     .option('--date <YYYY-MM-DD>', 'analysis date (default: the weekday in the feed with the most trips)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
+    .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations within 150 m of a changed stop are named in the result', collect)
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--json', 'print the result as one JSON document on stdout')
     .option('--out <dir>', 'also write index.html, result.json and scenario.json (a scenario --scenario reads back) into this folder')

@@ -4,6 +4,7 @@
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
+import { contextStops } from '../audit/contextStations.js';
 import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult, type StopFilter } from '../whatif/whatif.js';
 import { snakeKeys } from '../common/snakeKeys.js';
 import { StopspanError } from '../common/errors.js';
@@ -31,6 +32,7 @@ export interface WhatifOpts {
   date?: string;
   ridership?: string;
   observed?: string;
+  context?: string[];
   params?: string;
   json?: boolean;
   out?: string;
@@ -103,7 +105,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
     }
     const params = mergeParams(opts.params, paramOverrides(opts));
-    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params] };
+    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params, ...(opts.context ?? [])] };
     if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
     const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
     let feed: Feed;
@@ -115,9 +117,11 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       if (patterns.patterns.length === 0) {
         throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
       }
+      // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
+      const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
       const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
       progress.onProgress?.({ stage: 'weighing the scenario' });
-      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, onProgress: progress.onProgress });
+      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, stations, onProgress: progress.onProgress });
     } finally {
       progress.done();
     }

@@ -112,6 +112,19 @@ export interface Comparison {
   spacing: { before: SpacingPicture; after: SpacingPicture };
   /** Candidates that appeared or disappeared; null when the audits were not given. */
   candidates: { appeared: CandidateBrief[]; disappeared: CandidateBrief[] } | null;
+  /**
+   * Stops that lost or gained their link to another mode: served within walking distance of a context
+   * feed's station (--context) in one version and not in the other; null without context feeds.
+   */
+  stationLinks: { lost: StationLink[]; gained: StationLink[] } | null;
+}
+
+/** A stop beside a context station in one version only, and why: not served in the other, or moved. */
+export interface StationLink {
+  stopId: string;
+  name: string;
+  station: string; // the station and distance in the version where the link stands: "station 59 St (nyct-subway), 60 m"
+  reason: 'not-served' | 'moved';
 }
 
 export interface CompareOptions {
@@ -123,10 +136,12 @@ export interface CompareOptions {
   minSharedShare?: number;
   /** At most this many trip_ids listed per pattern as added or removed (the counts are always whole). Default 10. */
   listCap?: number;
+  /** Each version's served stops near a context station (stop index -> note, from contextStops), when context feeds were given. */
+  stationStops?: { old: ReadonlyMap<number, string>; new: ReadonlyMap<number, string> };
 }
 
 export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, options: CompareOptions = {}): Comparison {
-  const { moveThresholdM = 10, audits, minSharedShare = 0.5, listCap = 10 } = options;
+  const { moveThresholdM = 10, audits, minSharedShare = 0.5, listCap = 10, stationStops } = options;
   if (!(typeof moveThresholdM === 'number' && moveThresholdM >= 0 && Number.isFinite(moveThresholdM))) {
     throw new StopspanError('bad-option', `invalid option moveThresholdM: expected a number >= 0, got ${moveThresholdM}`, {
       value: String(moveThresholdM),
@@ -149,7 +164,24 @@ export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternS
     trips: { byRoute: routeTripChanges(oldFeed, newFeed, oldPatterns, newPatterns), byPattern: byPattern.map((x) => x.change), listCap },
     spacing: { before: spacingPicture(oldPatterns, audits?.old), after: spacingPicture(newPatterns, audits?.new) },
     candidates: audits ? compareCandidates(audits.old.candidates, audits.new.candidates) : null,
+    stationLinks: stationStops ? compareStationLinks(oldFeed, newFeed, oldPatterns, newPatterns, stationStops) : null,
   };
+}
+
+/** Stops near a context station in one version and not in the other, by stop_id, sorted by stop_id. */
+function compareStationLinks(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, near: { old: ReadonlyMap<number, string>; new: ReadonlyMap<number, string> }): { lost: StationLink[]; gained: StationLink[] } {
+  const byId = (feed: Feed, m: ReadonlyMap<number, string>) => new Map([...m].map(([i, note]) => [feed.stops[i]?.id ?? '', { note, name: feed.stops[i]?.name ?? '' }]));
+  const served = (feed: Feed, ps: PatternSet) => new Set(ps.patterns.flatMap((p) => [...p.stopIdx].map((i) => feed.stops[i]?.id ?? '')));
+  const oldNear = byId(oldFeed, near.old);
+  const newNear = byId(newFeed, near.new);
+  const oldServed = served(oldFeed, oldPatterns);
+  const newServed = served(newFeed, newPatterns);
+  const only = (a: typeof oldNear, b: typeof oldNear, otherServed: Set<string>): StationLink[] =>
+    [...a]
+      .filter(([id]) => id !== '' && !b.has(id))
+      .map(([stopId, x]) => ({ stopId, name: x.name, station: x.note, reason: otherServed.has(stopId) ? ('moved' as const) : ('not-served' as const) }))
+      .sort((x, y) => x.stopId.localeCompare(y.stopId));
+  return { lost: only(oldNear, newNear, newServed), gained: only(newNear, oldNear, oldServed) };
 }
 
 function identity(feed: Feed): FeedIdentity {

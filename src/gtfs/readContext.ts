@@ -12,7 +12,8 @@ import { readCsv } from './csv.js';
 import type { CsvRow } from './csvCore.js';
 import { coordinateFault } from './coordinateFault.js';
 import { servicesOn } from './calendar.js';
-import { badField, checkDate, fieldNumber, intField } from './values.js';
+import { fieldNumber, intField } from './values.js';
+import { CALENDAR_COLUMNS, CALENDAR_DATES_COLUMNS, calendarDateRow, calendarRow } from './calendarRows.js';
 import { missingColumn } from './missingColumn.js';
 import type { CalendarDate, CalendarRow } from './types.js';
 
@@ -31,20 +32,27 @@ export interface ContextFeed {
   servicesOnDate: number | null;
 }
 
-const DAYS = ['monday', 'tuesday', 'wednesday', 'thursday', 'friday', 'saturday', 'sunday'] as const;
-
 /** The label of a context feed: its file or folder name without .zip, or the URL's last part. */
 export function contextLabel(source: string): string {
   const base = path.basename(source.replace(/[?#].*$/, '').replace(/\/+$/, '')) || 'context';
   return base.replace(/\.zip$/i, '');
 }
 
-async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink): Promise<void> {
+/**
+ * Reads one table of a context feed. An optional table (the calendars) with no header, zero bytes or only a
+ * byte-order mark or blank lines, reads as absent and is counted under empty-table, as the feed reader does.
+ */
+async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink, emptyAs?: string): Promise<void> {
   let c: Record<string, number> = {};
+  let empty = false;
   await readCsv(await archive.open(file), {
     file,
     warnings,
     onHeader(header) {
+      if (header.length === 0 && emptyAs !== undefined) {
+        empty = true;
+        return;
+      }
       const at = new Map(header.map((h, i) => [h, i]));
       c = {};
       for (const r of required) {
@@ -54,8 +62,11 @@ async function readTable(archive: FeedArchive, file: string, required: readonly 
       }
       for (const o of optional) c[o] = at.get(o) ?? -1;
     },
-    onRow: (row) => onRow(row, c),
+    onRow: (row) => {
+      if (!empty) onRow(row, c);
+    },
   });
+  if (empty) warnings.add('empty-table', emptyAs);
 }
 
 /**
@@ -86,20 +97,12 @@ export async function readContextFeed(source: string, { date, warnings, label = 
     if (date !== undefined) {
       const calendar: CalendarRow[] = [];
       const calendarDates: CalendarDate[] = [];
+      // the feed reader's row converters: a context feed's calendar is read by the same rule as the audited feed's
       if (archive.has('calendar.txt')) {
-        await readTable(archive, 'calendar.txt', ['service_id', ...DAYS, 'start_date', 'end_date'], [], (row, c) => {
-          const days = DAYS.map((d) => intField('calendar.txt', row, c[d], d, 0, 1, 0) === 1) as CalendarRow['days'];
-          const start = checkDate(row.get(c.start_date)) ?? badField('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
-          const end = checkDate(row.get(c.end_date)) ?? badField('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
-          calendar.push({ serviceId: row.get(c.service_id), days, start, end });
-        }, warnings);
+        await readTable(archive, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => calendar.push(calendarRow(row, c, warnings, `${label} `)), warnings, `${label} calendar.txt`);
       }
       if (archive.has('calendar_dates.txt')) {
-        await readTable(archive, 'calendar_dates.txt', ['service_id', 'date', 'exception_type'], [], (row, c) => {
-          const d = checkDate(row.get(c.date)) ?? badField('calendar_dates.txt', row, c.date, 'date', 'a date YYYYMMDD');
-          const e = intField('calendar_dates.txt', row, c.exception_type, 'exception_type', 1, 2, 1);
-          calendarDates.push({ serviceId: row.get(c.service_id), date: d, exceptionType: e as 1 | 2 });
-        }, warnings);
+        await readTable(archive, 'calendar_dates.txt', CALENDAR_DATES_COLUMNS, [], (row, c) => calendarDates.push(calendarDateRow(row, c)), warnings, `${label} calendar_dates.txt`);
       }
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
       if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);
@@ -114,4 +117,20 @@ export async function readContextFeed(source: string, { date, warnings, label = 
   } finally {
     await archive?.close();
   }
+}
+
+/**
+ * Every context feed given (--context, repeatable), in order, labels made distinct ("rail", "rail-2"), their
+ * warnings counted in `warnings`: the one reading of context feeds for every command that takes them.
+ */
+export async function readContextFeeds(sources: readonly string[], { date, warnings }: { date?: string; warnings: WarningSink }): Promise<ContextFeed[]> {
+  const contexts: ContextFeed[] = [];
+  const labels = new Set<string>();
+  for (const source of sources) {
+    let label = contextLabel(source);
+    for (let k = 2; labels.has(label); k++) label = `${contextLabel(source)}-${k}`;
+    labels.add(label);
+    contexts.push(await readContextFeed(source, { date, warnings, label }));
+  }
+  return contexts;
 }

@@ -19,7 +19,8 @@ import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Rout
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
 import { missingColumn } from './missingColumn.js';
 import { StopTimesStore, TripFolder } from './stopTimesStore.js';
-import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn, TIME_EXPECTED } from './values.js';
+import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn, requiredField as need, TIME_EXPECTED } from './values.js';
+import { CALENDAR_COLUMNS, CALENDAR_DATES_COLUMNS, calendarDateRow, calendarRow } from './calendarRows.js';
 import { STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesLookup } from './stopTimesRows.js';
 
 export interface ReadFeedOptions {
@@ -158,12 +159,6 @@ function flatCopy(s: string): string {
   return s.length === 0 ? '' : Buffer.from(s, 'utf8').toString('utf8');
 }
 
-function need(file: string, row: CsvRow, i: number, column: string): string {
-  const v = row.get(i);
-  if (v === '') throw new StopspanError('bad-value', `${column} is required but blank`, { file, line: row.line, column, value: '' });
-  return v;
-}
-
 function coord(file: string, row: CsvRow, i: number, column: string, limit: number): number {
   const v = fieldNumber(row, i);
   if (v === null || Math.abs(v) > limit) bad(file, row, i, column, `a coordinate within ±${limit}`);
@@ -245,26 +240,15 @@ async function readArchive(
 
   // calendar.txt [GTFS Schedule reference: weekday flags 0/1, start_date and end_date YYYYMMDD, end inclusive]
   const calendar: CalendarRow[] = [];
-  const DAYS = ['monday', 'tuesday', 'wednesday', 'thursday', 'friday', 'saturday', 'sunday'] as const;
   if (archive.has('calendar.txt')) {
-    await table(ctx, 'calendar.txt', ['service_id', ...DAYS, 'start_date', 'end_date'], [], (row, c) => {
-      const days = DAYS.map((d) => intIn('calendar.txt', row, c[d], d, 0, 1, -1) === 1) as CalendarRow['days'];
-      DAYS.forEach((d) => {
-        if (row.isBlank(c[d])) bad('calendar.txt', row, c[d], d, '0 or 1');
-      });
-      const start = checkDate(row.get(c.start_date)) ?? bad('calendar.txt', row, c.start_date, 'start_date', 'a date YYYYMMDD');
-      const end = checkDate(row.get(c.end_date)) ?? bad('calendar.txt', row, c.end_date, 'end_date', 'a date YYYYMMDD');
-      if (end < start) warnings.add('calendar-end-before-start', `calendar.txt:${row.line}`);
-      calendar.push({ serviceId: need('calendar.txt', row, c.service_id, 'service_id'), days, start, end });
+    await table(ctx, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => {
+      calendar.push(calendarRow(row, c, warnings));
     });
   }
   const calendarDates: CalendarDate[] = [];
   if (archive.has('calendar_dates.txt')) {
-    await table(ctx, 'calendar_dates.txt', ['service_id', 'date', 'exception_type'], [], (row, c) => {
-      const d = checkDate(row.get(c.date)) ?? bad('calendar_dates.txt', row, c.date, 'date', 'a date YYYYMMDD');
-      const e = intIn('calendar_dates.txt', row, c.exception_type, 'exception_type', 1, 2, -1);
-      if (e < 0) bad('calendar_dates.txt', row, c.exception_type, 'exception_type', '1 or 2');
-      calendarDates.push({ serviceId: need('calendar_dates.txt', row, c.service_id, 'service_id'), date: d, exceptionType: e as 1 | 2 });
+    await table(ctx, 'calendar_dates.txt', CALENDAR_DATES_COLUMNS, [], (row, c) => {
+      calendarDates.push(calendarDateRow(row, c));
     });
   }
 

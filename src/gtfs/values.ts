@@ -96,6 +96,13 @@ export function badField(file: string, row: CsvRow, i: number, column: string, w
   throw new StopspanError('bad-value', `${column} is not ${what}`, { file, line: row.line, column, value: row.get(i) });
 }
 
+/** A required field's value; blank throws the 'bad-value' error naming the file, line and column. */
+export function requiredField(file: string, row: CsvRow, i: number, column: string): string {
+  const v = row.get(i);
+  if (v === '') throw new StopspanError('bad-value', `${column} is required but blank`, { file, line: row.line, column, value: '' });
+  return v;
+}
+
 /** An optional integer column within [lo, hi]; `blank` when absent or empty. */
 export function intField(file: string, row: CsvRow, i: number, column: string, lo: number, hi: number, blank: number): number {
   if (i < 0) return blank;

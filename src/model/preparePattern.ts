@@ -35,6 +35,8 @@ export interface PreparedPattern {
   expressGap: boolean[];
   fixedReason: FixedReason[]; // per model stop
   fixedNote: string[]; // per model stop: the routes or station behind a transfer or station reason, else ''
+  /** Per model stop: the context station within walking distance ("station X (feed), 60 m"), whatever keeps the stop, else ''. */
+  nearStation: string[];
 }
 
 export function preparePattern(
@@ -100,6 +102,7 @@ export function preparePattern(
   // stops that must stay
   const fixedReason: FixedReason[] = modelStops.map(() => '');
   const fixedNote: string[] = modelStops.map(() => '');
+  const nearStation: string[] = modelStops.map((j) => stations.get(pattern.stopIdx[j]) ?? '');
   const n = modelStops.length;
   let timepoints = 0;
   for (let m = 1; m + 1 < n; m++) if (pattern.timepoint[modelStops[m]]) timepoints++;
@@ -141,6 +144,7 @@ export function preparePattern(
     expressGap: [],
     fixedReason,
     fixedNote,
+    nearStation,
   };
 }
 

@@ -51,6 +51,21 @@ export interface StopChange {
   gapsBeforeM: number[]; // the spacing around the place today (a removed stop's two gaps, or the gap a new stop splits)
   gapsAfterM: number[]; // the spacing around it after the change
   overPolicy: boolean; // a gap after the change is above max_gap_m and longer than any gap there before
+  /** A removed or moved stop within walking distance of a context feed's station (--context): "station X (feed), 60 m"; else ''. */
+  nearStation: string;
+}
+
+/**
+ * The stops a scenario removes or moves that lie within walking distance of a context feed's station, once
+ * each (a stop on several patterns is one line), for the renderers' warning: the audit keeps such a stop as a
+ * transfer point to another mode.
+ */
+export function changesNearStations(result: Pick<ScenarioResult, 'patterns'>): { stopId: string; stopName: string; action: StopChange['action']; nearStation: string }[] {
+  const out = new Map<string, { stopId: string; stopName: string; action: StopChange['action']; nearStation: string }>();
+  for (const e of result.patterns) {
+    for (const c of e.changes) if (c.nearStation && !out.has(c.stopId)) out.set(c.stopId, { stopId: c.stopId, stopName: c.stopName, action: c.action, nearStation: c.nearStation });
+  }
+  return [...out.values()];
 }
 
 /** How far (metres) an added or moved stop may lie from the pattern's line of stops. */
@@ -535,7 +550,7 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
   const radius = params.max_gap_m / 2;
   const stopId = (m: number) => feed.stops[prep.pattern.stopIdx[prep.modelStops[m]]]?.id ?? '';
   const stopName = (m: number) => feed.stops[prep.pattern.stopIdx[prep.modelStops[m]]]?.name ?? '';
-  const changesOut = stopChanges(change, today, after, params.max_gap_m, stopId, stopName);
+  const changesOut = stopChanges(change, today, after, params.max_gap_m, stopId, stopName, (m) => prep.nearStation[m] ?? '');
   const perRiderM = walkAddedM > 0 && affected > 0 ? walkAddedM / affected : 0;
   return {
     patternId: prep.pattern.id,
@@ -565,7 +580,7 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
 }
 
 /** Each stop changed on a pattern, with the spacing around its place before and after the change. */
-function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string): StopChange[] {
+function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string, nearStation: (m: number) => string): StopChange[] {
   // each list's positions sorted once, and each stop's neighbours found by halving: a scan of the list per
   // changed stop made a plan removing most of a long pattern's stops quadratic in its stops
   const sorted = (list: Served[]): Float64Array => Float64Array.from(list.map((s) => s.pos).filter((x) => !Number.isNaN(x))).sort();
@@ -595,16 +610,16 @@ function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxG
     return [lo >= 0 ? pos - xs[lo] : -Infinity, hi < xs.length ? xs[hi] - pos : Infinity].filter(Number.isFinite);
   };
   const out: StopChange[] = [];
-  const mark = (c: Omit<StopChange, 'overPolicy'>): void => {
+  const mark = (c: Omit<StopChange, 'overPolicy' | 'nearStation'>, station = ''): void => {
     const before = Math.max(0, ...c.gapsBeforeM);
-    out.push({ ...c, overPolicy: c.gapsAfterM.some((g) => g > maxGapM && g > before) });
+    out.push({ ...c, overPolicy: c.gapsAfterM.some((g) => g > maxGapM && g > before), nearStation: station });
   };
   const { prep, removed, moved, added } = change;
   for (const m of [...removed].sort((a, b) => a - b)) {
-    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: around(afterPos, prep.posM[m]) });
+    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: around(afterPos, prep.posM[m]) }, nearStation(m));
   }
   for (const [m, to] of [...moved].sort((a, b) => a[0] - b[0])) {
-    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: split(afterPos, to) });
+    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: split(afterPos, to) }, nearStation(m));
   }
   for (const pos of added) {
     mark({ action: 'add', stopId: '', stopName: '', gapsBeforeM: around(todayPos, pos), gapsAfterM: split(afterPos, pos) });

@@ -2,6 +2,7 @@
 
 import { terminalText as oneLine } from '../common/terminalText.js';
 import type { CheckReport } from '../check/check.js';
+import { CONTEXT_STATION_RADIUS_M } from '../audit/contextStations.js';
 
 export function checkText(report: CheckReport): string {
   const lines: string[] = [];
@@ -15,6 +16,13 @@ export function checkText(report: CheckReport): string {
       ? `patterns checked on ${a.date} (${oneLine(a.because)}): ${n.patterns} pattern(s), ${n.tripsPerDay} trips, ${n.stopsServed} stops served`
       : `no patterns checked: ${oneLine(a.because)}`,
   );
+  const c = report.context;
+  if (c) {
+    const feeds = c.feeds.map((x) => `${oneLine(x.label)} (${x.stations} stations${x.servicesOnDate === 0 ? ', no service on the date' : ''})`).join(', ');
+    lines.push(`context ${feeds}: ${c.stopsNearStations} stop(s) served within ${CONTEXT_STATION_RADIUS_M} m of a station, transfer points the audit keeps`);
+    for (const e of c.examples) lines.push(`        ${oneLine(e.stopId)} ${oneLine(e.stopName)}: ${oneLine(e.station)}`);
+    if (c.stopsNearStations > c.examples.length) lines.push(`        ... and ${c.stopsNearStations - c.examples.length} more`);
+  }
   lines.push('');
   if (report.findings.length === 0) {
     lines.push('no findings');

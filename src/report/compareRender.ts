@@ -2,7 +2,7 @@
 // self-contained HTML page (inline CSS, no scripts, no network; all feed text escaped), and the trips a
 // day that changed per route and pattern as CSV.
 
-import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture } from '../compare/compare.js';
+import type { Comparison, PatternTripChange, RouteTripChange, SpacingPicture, StationLink } from '../compare/compare.js';
 import { escapeHtml as esc } from '../common/escapeHtml.js';
 import { renderCsv, type CsvColumn } from './csv.js';
 import { terminalText as term } from '../common/terminalText.js';
@@ -69,6 +69,12 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   } else {
     out.push('candidates: not compared (no audit of either version)');
   }
+  if (c.stationLinks) {
+    const why = (x: StationLink, side: string) => (x.reason === 'moved' ? `moved away ${side}` : `not served ${side}`);
+    out.push(`links to other modes (stops beside a context station): ${c.stationLinks.lost.length} lost, ${c.stationLinks.gained.length} gained`);
+    list(c.stationLinks.lost, (x) => `- ${x.stopId}  ${x.name}  was beside ${x.station}; ${why(x, 'in the new version')}`);
+    list(c.stationLinks.gained, (x) => `+ ${x.stopId}  ${x.name}  now beside ${x.station}; ${x.reason === 'moved' ? 'moved there' : 'not served in the old version'}`);
+  }
   return out.join('\n') + '\n';
 }
 
@@ -115,6 +121,18 @@ export function comparisonHtml(c: Comparison): string {
           ],
         )
       : '<p class="none">not compared (no audit of either version)</p>',
+    ...(c.stationLinks
+      ? [
+          `<h2>Links to other modes lost (${c.stationLinks.lost.length}) and gained (${c.stationLinks.gained.length})</h2>`,
+          table(
+            ['', 'stop_id', 'name', 'context station', 'why'],
+            [
+              ...c.stationLinks.lost.map((x) => ['lost', x.stopId, x.name, x.station, x.reason === 'moved' ? 'moved away' : 'not served in the new version']),
+              ...c.stationLinks.gained.map((x) => ['gained', x.stopId, x.name, x.station, x.reason === 'moved' ? 'moved there' : 'not served in the old version']),
+            ],
+          ),
+        ]
+      : []),
   ];
   return `<!doctype html>
 <html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">

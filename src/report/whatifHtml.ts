@@ -3,6 +3,7 @@
 // sensitivity, assumptions and cautions. Every piece of feed and scenario text is escaped.
 
 import type { ScenarioPatternEffect, ScenarioResult } from '../whatif/whatif.js';
+import { changesNearStations } from '../model/scenario.js';
 import { escapeHtml as h } from '../common/escapeHtml.js';
 import { PAGE_STYLE } from './html/pageStyle.js';
 import { checkUnits, formatShortDistance, type Units } from './units.js';
@@ -142,7 +143,7 @@ ${whatifStripSvg(s, maxGapM, units)}
 </section>
 <section class="cautions" id="cautions" aria-labelledby="cautions-h">
 <h2 id="cautions-h">Before acting on this scenario</h2>
-<ul>${result.cautions.map((c) => `<li>${h(c)}</li>`).join('')}</ul>
+<ul>${changesNearStations(result).map((x) => `<li class="near-station">${h(`${x.stopName || x.stopId} (${x.stopId}) ${x.action === 'remove' ? 'removed' : 'moved'} beside ${x.nearStation}: a transfer point to another mode, which the audit keeps.`)}</li>`).join('')}${result.cautions.map((c) => `<li>${h(c)}</li>`).join('')}</ul>
 </section>
 <section id="figures" aria-labelledby="figures-h">
 <h2 id="figures-h">Per pattern and in total</h2>

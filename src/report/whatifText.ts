@@ -5,6 +5,7 @@
 
 import { terminalText as safe } from '../common/terminalText.js';
 import type { ScenarioPatternEffect, ScenarioResult, ScenarioTotals, StopChange } from '../whatif/whatif.js';
+import { changesNearStations } from '../model/scenario.js';
 import { groupedFixed } from './numberText.js';
 import { checkUnits, metresToFeet, type Units } from './units.js';
 
@@ -102,7 +103,7 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
       const who = c.stopId ? ` ${c.stopId} ${c.stopName}` : '';
       const gaps = c.action === 'add' ? `splits a ${gapText(c.gapsBeforeM)} ${unit} gap into ${gapText(c.gapsAfterM)} ${unit}` : `gaps ${gapText(c.gapsBeforeM)} ${unit} become ${gapText(c.gapsAfterM)} ${unit}`;
       const policy = c.gapsAfterM.some((g) => g > maxGapM) ? (c.overPolicy ? `above the ${dist(maxGapM)} ${unit} policy !` : `above the ${dist(maxGapM)} ${unit} policy, as before`) : `within the ${dist(maxGapM)} ${unit} policy`;
-      lines.push(safe(`  ${verb}${who}: ${gaps}, ${policy}`));
+      lines.push(safe(`  ${verb}${who}: ${gaps}, ${policy}${c.nearStation ? `; beside ${c.nearStation} !` : ''}`));
     }
   }
   lines.push('');
@@ -140,6 +141,13 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
       ? `walking policy: ${t.overPolicyAfter} pattern${t.overPolicyAfter === 1 ? '' : 's'} get a gap above ${dist(maxGapM)} ${unit} that was not there before (marked !)`
       : `walking policy: no new gap above ${dist(maxGapM)} ${unit}`,
   );
+  const near = changesNearStations(result);
+  if (near.length) {
+    lines.push(
+      safe(`other modes: ${near.length} stop${near.length === 1 ? '' : 's'} ${near.length === 1 ? 'this changes lies' : 'these change lie'} within walking distance of a station of a context feed, a transfer point the audit keeps (marked !): `) +
+        near.map((x) => safe(`${x.stopId} ${x.stopName} (${x.nearStation})`)).join('; '),
+    );
+  }
   if (result.warnings.length) lines.push(`${result.warnings.length} feed warning${result.warnings.length === 1 ? '' : 's'} (see --json)`);
   lines.push('');
   lines.push(...wrap(`Cautions: ${result.cautions.join(' ')}`, width));
