@@ -10,13 +10,14 @@ import { readFeed } from '../gtfs/readFeed.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
 import { contextStops } from './contextStations.js';
+import { normalizeParams, type ParamsInput } from '../model/params.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
   routes?: string[]; // routes reported (the whole network is still read and modelled)
   excludeRoutes?: string[]; // routes not reported
   routeTypes?: string[]; // route types reported (route_type numbers or families: bus, tram, metro, rail, ...)
-  params?: unknown; // a parameters object (from --params and single options), normalised by the model
+  params?: ParamsInput; // parameters by name, the rest at their defaults (checked once, by the model)
   ridership?: string; // path of a ridership CSV
   observed?: string; // path of a GTFS-Realtime archive (zip or folder)
   keep?: string[]; // stop ids the optimiser must keep
@@ -36,6 +37,8 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
+  // checked before the feed is read, so a bad parameter costs no reading; runAudit takes them as they are
+  const checkedParams = normalizeParams(params);
   // The later stages load while the feed is read, not before: the module loader reads each file through
   // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
   const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
@@ -55,6 +58,6 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations });
+  const result = await runAudit(feed, patterns, { params: checkedParams, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations });
   return { feed, patterns, observed, result };
 }

@@ -8,7 +8,7 @@ import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import { assumedDemand, ridershipDemand, typicalTripLengthM, type PatternDemand } from '../model/demand.js';
-import { normalizeParams, type ModelParams, type NormalizedParams } from '../model/params.js';
+import { normalizeParams, type ModelParams, type NormalizedParams, type ParamsInput } from '../model/params.js';
 import { preparePattern, type PreparedPattern } from '../model/preparePattern.js';
 import { loadRidership } from '../model/ridership.js';
 import { localCoverByGap } from './localCover.js';
@@ -16,7 +16,8 @@ import { transferPoints } from './transfers.js';
 import { expressStretches } from './expressStretch.js';
 
 export interface PrepareAuditOptions {
-  params?: unknown;
+  /** Parameters by name (the rest at their defaults), or what normalizeParams returned. */
+  params?: ParamsInput;
   ridership?: string;
   keep?: string[];
   observed?: ObservedData;
@@ -29,17 +30,14 @@ export interface PrepareAuditOptions {
 
 export interface PreparedAudit {
   np: NormalizedParams;
-  params: ModelParams;
+  params: Readonly<ModelParams>;
   preps: PreparedPattern[];
   warnings: WarningSink;
 }
 
-function isNormalized(x: unknown): x is NormalizedParams {
-  return typeof x === 'object' && x !== null && 'values' in x && 'given' in x && Array.isArray((x as NormalizedParams).given);
-}
-
 export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations }: PrepareAuditOptions = {}): PreparedAudit {
-  const np = isNormalized(rawParams) ? rawParams : normalizeParams(rawParams);
+  // the one place a library call's parameters are checked (the command's come checked, and pass as they are)
+  const np = normalizeParams(rawParams);
   const params = np.values;
   if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string')) throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
   for (const id of keep) {

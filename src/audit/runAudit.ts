@@ -9,7 +9,7 @@ import type { ObservedData } from '../realtime/types.js';
 import { version } from '../version.js';
 import type { AuditResult, Headline, ReviewGap } from './types.js';
 import { FAST_STRETCH_MPS, WALK_DETOUR, WALK_RADIUS_M } from './additionEvidence.js';
-import { paramsReport } from '../model/params.js';
+import { paramsReport, type ParamsInput } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
 import { typicalTripLengthM } from '../model/demand.js';
@@ -28,8 +28,8 @@ import { additionsAtStake, wideGapCounts } from './headlineFigures.js';
 import { meanOptimalSpacingM, runSensitivity, SENSITIVITY_TOP_CANDIDATES, sensitivityWalkWeights } from './sensitivity.js';
 
 export interface RunAuditOptions {
-  /** Raw parameters (validated here) or parameters already normalised by normalizeParams. */
-  params?: unknown;
+  /** Parameters by name (the rest at their defaults; checked here), or what normalizeParams returned. */
+  params?: ParamsInput;
   ridership?: string; // path of a ridership CSV
   keep?: string[]; // stop_ids that must stay
   observed?: ObservedData;

@@ -12,6 +12,7 @@ import type { AnalysisDay } from '../gtfs/calendar.js';
 import { median } from '../common/median.js';
 import { WARNINGS, type WarningEntry } from '../common/warningCodes.js';
 import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
+import { firstBacktrack } from '../network/shapeDistUnit.js';
 import {
   FINDINGS,
   FINDING_CODES,
@@ -215,19 +216,13 @@ function checkTrips(feed: Feed, add: Add): void {
     if (trip && trip.shapeId === '') {
       add('pathless-trip', { file: 'trips.txt', ids: { trip_id: tripId }, detail: `trip ${tripId} has no shape_id` });
     }
-    let prevDist = NaN;
-    for (let i = 0; i < st.shapeDist.length; i++) {
-      const d = st.shapeDist[i];
-      if (Number.isNaN(d)) continue;
-      if (d < prevDist - 1e-9) {
-        add('distance-backtrack', {
-          file: 'stop_times.txt',
-          ids: { trip_id: tripId, stop_sequence: String(st.seq[i]) },
-          detail: `trip ${tripId}: shape_dist_traveled falls from ${prevDist} to ${d} at stop_sequence ${st.seq[i]}`,
-        });
-        break;
-      }
-      prevDist = d;
+    const back = firstBacktrack(st.shapeDist, DIST_TOLERANCE);
+    if (back >= 0) {
+      add('distance-backtrack', {
+        file: 'stop_times.txt',
+        ids: { trip_id: tripId, stop_sequence: String(st.seq[back]) },
+        detail: `trip ${tripId}: shape_dist_traveled falls from ${lastFiniteBefore(st.shapeDist, back)} to ${st.shapeDist[back]} at stop_sequence ${st.seq[back]}`,
+      });
     }
     let prevS = -1;
     for (let i = 0; i < st.arrS.length; i++) {
@@ -250,21 +245,24 @@ function checkTrips(feed: Feed, add: Add): void {
     }
   }
   for (const shape of feed.shapes.values()) {
-    let prev = NaN;
-    for (let i = 0; i < shape.dist.length; i++) {
-      const d = shape.dist[i];
-      if (Number.isNaN(d)) continue;
-      if (d < prev - 1e-9) {
-        add('distance-backtrack', {
-          file: 'shapes.txt',
-          ids: { shape_id: shape.id, point: String(i + 1) },
-          detail: `shape ${shape.id}: shape_dist_traveled falls from ${prev} to ${d} at point ${i + 1}`,
-        });
-        break;
-      }
-      prev = d;
+    const back = firstBacktrack(shape.dist, DIST_TOLERANCE);
+    if (back >= 0) {
+      add('distance-backtrack', {
+        file: 'shapes.txt',
+        ids: { shape_id: shape.id, point: String(back + 1) },
+        detail: `shape ${shape.id}: shape_dist_traveled falls from ${lastFiniteBefore(shape.dist, back)} to ${shape.dist[back]} at point ${back + 1}`,
+      });
     }
   }
+}
+
+/** A fall in shape_dist_traveled smaller than this is taken as rounding, not a backtrack. */
+const DIST_TOLERANCE = 1e-9;
+
+/** The last value before index i that is not blank: the one a backtrack falls from. */
+function lastFiniteBefore(dist: ArrayLike<number>, i: number): number {
+  for (let k = i - 1; k >= 0; k--) if (Number.isFinite(dist[k])) return dist[k];
+  return NaN;
 }
 
 function clock(s: number): string {

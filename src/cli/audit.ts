@@ -4,7 +4,7 @@ import type { Command } from 'commander';
 import { terminalText } from '../common/terminalText.js';
 import path from 'node:path';
 import { auditFeed } from '../audit/auditFeed.js';
-import { loadParamsFile, normalizeParams } from '../model/params.js';
+import { loadParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import { groupedFixed } from '../report/numberText.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
@@ -64,7 +64,7 @@ export function registerAudit(program: Command): void {
         throw new StopspanError('bad-option', 'invalid option --units: expected metric or imperial', { value: opts.units });
       }
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
-      const params = mergeParams(opts.params, paramOverrides(opts));
+      const params = loadParams(opts.params, paramOverrides(opts));
       const force = Boolean(opts.force);
       const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history, ...(opts.context ?? [])];
       // where the report goes and the history it joins are checked before the feed is read, so a run that
@@ -113,16 +113,6 @@ export function registerAudit(program: Command): void {
       return EXIT.clean;
     }, { json: Boolean(opts.json) });
   });
-}
-
-/** Parameters from a --params file, then single options on top; validated once by the model. */
-export function mergeParams(file: string | undefined, overrides: Record<string, unknown>): unknown {
-  const raw: Record<string, unknown> = {};
-  if (file) {
-    const np = loadParamsFile(file);
-    for (const k of np.given) raw[k] = np.values[k];
-  }
-  return normalizeParams({ ...raw, ...overrides }, { file });
 }
 
 function checkFormats(list: string[] | undefined): Format[] {

@@ -3,7 +3,7 @@
 
 import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
-import { mergeParams } from './audit.js';
+import { loadParams } from '../model/params.js';
 import type { ContextStops } from '../audit/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
@@ -68,7 +68,7 @@ export function registerCompare(program: Command): void {
         if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
         const progress = makeProgress(o.quiet === true || o.json === true);
         // the same parameters and ridership file on both sides, so the figures differ only by the feeds
-        const params = o.audit ? mergeParams(o.params, {}) : undefined;
+        const params = o.audit ? loadParams(o.params, {}) : undefined;
         let a, b;
         let oldAudit: AuditBrief | undefined;
         const context = o.context ?? [];

@@ -17,7 +17,7 @@ import { checkOutFolder, writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
-import { mergeParams } from './audit.js';
+import { loadParams } from '../model/params.js';
 
 /** The options of `stopspan whatif` as commander hands them over (src/cli/whatif.ts declares them). */
 export interface WhatifOpts {
@@ -104,7 +104,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
     if (opts.date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(opts.date)) {
       throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
     }
-    const params = mergeParams(opts.params, paramOverrides(opts));
+    const params = loadParams(opts.params, paramOverrides(opts));
     const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params, ...(opts.context ?? [])] };
     if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
     const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));

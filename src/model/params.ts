@@ -1,6 +1,7 @@
 // The model's parameters in one normalised structure, by the names of the design notes, each default with
 // its source label and a short note, so reports can say where every number came from. Options from the
-// CLI and from a --params file both pass through normalizeParams; unknown keys and bad values are refused.
+// CLI, a --params file and a library call all pass through normalizeParams, the one place parameters are
+// checked; unknown keys and bad values are refused.
 
 import { parseDecimal } from '../common/decimal.js';
 import { readJsonFile } from '../common/readJsonFile.js';
@@ -32,9 +33,18 @@ export type ParamName = keyof ModelParams;
 
 /** Normalised parameters plus the names the user set (reported with source "user"). */
 export interface NormalizedParams {
-  values: ModelParams;
-  given: ParamName[];
+  readonly values: Readonly<ModelParams>;
+  readonly given: readonly ParamName[];
 }
+
+/**
+ * Parameters as a library call takes them: any of them by name (the rest at their defaults), or what
+ * normalizeParams returned, which is not checked again.
+ */
+export type ParamsInput = Partial<ModelParams> | NormalizedParams;
+
+/** What normalizeParams returned (frozen): passed through as it is when it comes back. */
+const CHECKED = new WeakSet<object>();
 
 interface ParamSpec {
   default: number | string | null;
@@ -106,10 +116,12 @@ function check(name: ParamName, raw: unknown, file?: string): number | string | 
 
 /**
  * Checks and completes a parameter object (from a --params file, CLI options, or code). Every key is
- * optional; unknown keys and bad values throw StopspanError 'bad-option' naming the parameter.
+ * optional; unknown keys and bad values throw StopspanError 'bad-option' naming the parameter. What this
+ * returned, given again, comes back as it is.
  */
 export function normalizeParams(input: unknown, { file }: { file?: string } = {}): NormalizedParams {
-  if (input === undefined || input === null) return { values: defaultParams(), given: [] };
+  if (typeof input === 'object' && input !== null && CHECKED.has(input)) return input as NormalizedParams;
+  if (input === undefined || input === null) return checked(defaultParams(), []);
   if (typeof input !== 'object' || Array.isArray(input)) {
     throw new StopspanError('bad-option', `invalid parameters: expected an object of named values, got ${Array.isArray(input) ? 'an array' : typeof input}`, { file });
   }
@@ -127,13 +139,30 @@ export function normalizeParams(input: unknown, { file }: { file?: string } = {}
   if (v.operating_cost_per_vehicle_hour !== null && v.value_of_time_per_hour === null) {
     throw bad('value_of_time_per_hour', 'a number above 0 when operating_cost_per_vehicle_hour is set', null, file);
   }
-  return { values: v, given };
+  return checked(v, given);
+}
+
+function checked(values: ModelParams, given: ParamName[]): NormalizedParams {
+  const np: NormalizedParams = Object.freeze({ values: Object.freeze(values), given: Object.freeze(given) });
+  CHECKED.add(np);
+  return np;
 }
 
 /** Reads a JSON parameters file and normalises it; a file that is not JSON is a 'bad-option' error. */
 export function loadParamsFile(path: string): NormalizedParams {
-  const parsed = readJsonFile(path, 'bad-option', 'parameters file');
-  return normalizeParams(parsed, { file: path });
+  return loadParams(path);
+}
+
+/**
+ * Parameters from a JSON file (when given), then single values on top (command-line options, numbers
+ * possibly still as text), checked once together; errors name the file. A file that is not JSON, or not
+ * an object of named values, is a 'bad-option' error; one holding null sets nothing.
+ */
+export function loadParams(path: string | undefined, overrides: Readonly<Record<string, unknown>> = {}): NormalizedParams {
+  const fromFile = path ? readJsonFile(path, 'bad-option', 'parameters file') : null;
+  const base = fromFile ?? {};
+  if (typeof base !== 'object' || Array.isArray(base)) return normalizeParams(base, { file: path });
+  return normalizeParams({ ...base, ...overrides }, { file: path });
 }
 
 /** The parameters used, each with its value, source label (user when set) and note, for summary.json. */

@@ -50,6 +50,34 @@ interface Group {
   profiles: TripProfile[]; // per trip of tripIds, in the same order once sorted
 }
 
+/** A group of trips with its trips per day and its stable id, before it is measured. */
+interface Draft {
+  g: Group;
+  tripsPerDay: number;
+  nominal: number;
+  id: string;
+}
+
+/** Each pattern's representative shape ('' for none) and the shapes prepared for projection. */
+interface ShapeChoice {
+  shapeOf: Map<Draft, string>;
+  prepared: Map<string, PreparedShape>;
+}
+
+/** The unit of shape_dist_traveled over the shapes in use, and per shape the metres per unit to read it in. */
+interface ShapeUnits {
+  unitFit: PatternSet['shapeDistUnit'];
+  shapeMetresPerUnit: Map<string, number | null>; // null = do not use
+}
+
+/** What measuring the patterns gathers across them, reported once at the end. */
+interface MeasureTally {
+  backtracks: DistanceBacktrack[];
+  routesAtStop: Map<number, Set<string>>;
+  projectionFallbacks: number;
+  faultyStops: Set<number>; // stop indices with a coordinate fault
+}
+
 /**
  * Groups the trips running on the analysis date into patterns and measures them.
  * @example const set = buildPatterns(feed, { date: '2026-10-14' }); set.patterns[0].distAlongM
@@ -63,24 +91,47 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   if (feed.date !== null && feed.date !== date) {
     throw new StopspanError('bad-option', `invalid option date: expected the date the feed was read for (${feed.date}), got ${date}`, { value: date });
   }
-  let routeSet: Set<string> | null = null;
-  if (routes !== undefined) {
-    routeSet = new Set();
-    for (const r of routes) {
-      if (feed.routes.has(r)) {
-        routeSet.add(r);
-        continue;
-      }
-      const byName = [...feed.routes.values()].filter((x) => x.shortName === r);
-      if (byName.length === 0) throw new StopspanError('bad-option', `invalid option routes: expected route_ids or route_short_names of the feed, got ${r}`, { value: r });
-      for (const x of byName) routeSet.add(x.id);
-    }
-  }
+  const routeSet = routes !== undefined ? routeIdsOf(feed, routes) : null;
   if (!(pathToleranceM >= 0)) throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);
 
   const instances = tripInstancesOnDate(feed, date);
+  const groups = groupTrips(feed, instances, routeSet, date, warnings);
+  const drafts = namePatterns(groups, instances);
+  const shapes = chooseShapes(feed, drafts, instances, warnings);
+  const units = shapeDistUnits(feed, shapes.prepared, warnings);
 
-  // 1. Group trips by (route, direction, ordered stop list), from the trips' shared profiles.
+  // 4. Measure each pattern.
+  const tally: MeasureTally = { backtracks: [], routesAtStop: new Map(), projectionFallbacks: 0, faultyStops: new Set() };
+  const patterns: Pattern[] = [];
+  let done = 0;
+  for (const d of drafts) {
+    patterns.push(measurePattern(feed, d, shapes, units, tally, { pathToleranceM, warnings }));
+    done++;
+    if (onProgress && (done % 50 === 0 || done === drafts.length)) onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
+  }
+  warnMeasureTally(feed, tally, warnings);
+  const set: PatternSet = { date, patterns, routesAtStop: tally.routesAtStop, shapeDistUnit: units.unitFit, distanceBacktracks: tally.backtracks };
+  if (!givenSink) set.warnings = warnings.list();
+  return set;
+}
+
+/** The route ids the `routes` option names: each a route_id, or a route_short_name when no route has that id. */
+function routeIdsOf(feed: Feed, routes: string[]): Set<string> {
+  const routeSet = new Set<string>();
+  for (const r of routes) {
+    if (feed.routes.has(r)) {
+      routeSet.add(r);
+      continue;
+    }
+    const byName = [...feed.routes.values()].filter((x) => x.shortName === r);
+    if (byName.length === 0) throw new StopspanError('bad-option', `invalid option routes: expected route_ids or route_short_names of the feed, got ${r}`, { value: r });
+    for (const x of byName) routeSet.add(x.id);
+  }
+  return routeSet;
+}
+
+/** 1. Group trips by (route, direction, ordered stop list), from the trips' shared profiles. */
+function groupTrips(feed: Feed, instances: Map<string, TripInstances>, routeSet: Set<string> | null, date: string, warnings: WarningSink): Map<string, Group> {
   const profiles = tripProfiles(feed.stopTimes);
   const groups = new Map<string, Group>();
   let patternStops = 0;
@@ -109,9 +160,12 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   if (groups.size === 0) {
     throw new StopspanError('empty-feed', `no trips with stop_times run on ${date}${routeSet ? ' on the routes asked for' : ''}`, { value: date });
   }
+  return groups;
+}
 
-  // 2. Trips per day and stable ids: n by trips per day descending, ties by first trip id.
-  const drafts = [...groups.values()].map((g) => {
+/** 2. Trips per day and stable ids: n by trips per day descending, ties by first trip id. */
+function namePatterns(groups: Map<string, Group>, instances: Map<string, TripInstances>): Draft[] {
+  const drafts: Draft[] = [...groups.values()].map((g) => {
     // trips by id, their profiles alongside
     const order = g.tripIds.map((_, k) => k).sort((a, b) => cmp(g.tripIds[a], g.tripIds[b]));
     g.tripIds = order.map((k) => g.tripIds[k]);
@@ -125,7 +179,7 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     }
     return { g, tripsPerDay, nominal, id: '' };
   });
-  const byRouteDir = new Map<string, typeof drafts>();
+  const byRouteDir = new Map<string, Draft[]>();
   for (const d of drafts) {
     const k = `${d.g.routeId}\u0000${d.g.directionId}`;
     const list = byRouteDir.get(k) ?? [];
@@ -139,9 +193,12 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     });
   }
   drafts.sort((a, b) => cmp(a.g.routeId, b.g.routeId) || a.g.directionId - b.g.directionId || cmp(a.id, b.id));
+  return drafts;
+}
 
-  // 3. Representative shapes, and the unit of shape_dist_traveled over the shapes in use.
-  const shapeOf = new Map<(typeof drafts)[number], string>();
+/** 3a. Representative shapes: the one most of a pattern's trips run on, each prepared once (a flat one not). */
+function chooseShapes(feed: Feed, drafts: Draft[], instances: Map<string, TripInstances>, warnings: WarningSink): ShapeChoice {
+  const shapeOf = new Map<Draft, string>();
   const prepared = new Map<string, PreparedShape>();
   const flatShapes = new Set<string>();
   for (const d of drafts) {
@@ -170,6 +227,11 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       }
     }
   }
+  return { shapeOf, prepared };
+}
+
+/** 3b. The unit of shape_dist_traveled over the shapes in use; shapes read in their own unit or not at all. */
+function shapeDistUnits(feed: Feed, prepared: Map<string, PreparedShape>, warnings: WarningSink): ShapeUnits {
   const unitSamples: { distRange: number; lengthM: number }[] = [];
   const shapeRatio = new Map<string, number>();
   for (const [sid, ps] of prepared) {
@@ -207,142 +269,169 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       }
     }
   }
+  return { unitFit, shapeMetresPerUnit };
+}
 
-  // 4. Measure each pattern.
-  const patterns: Pattern[] = [];
-  const backtracks: DistanceBacktrack[] = [];
-  const routesAtStop = new Map<number, Set<string>>();
-  let projectionFallbacks = 0;
-  const faultyStops = new Set<number>(); // stop indices with a coordinate fault
-  let done = 0;
-  for (const d of drafts) {
-    const { g } = d;
-    const shapeId = shapeOf.get(d)!;
-    const n = g.stopIdx.length;
-    const repAt = Math.max(0, g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId));
-    const repTripId = g.tripIds[repAt];
-    const rep = g.profiles[repAt].profile;
-    const allStops = Array.from(g.stopIdx, (i) => feed.stops[i]);
-    // stops whose coordinates cannot be a stop's are measured around: the others are measured, and each
-    // faulty one placed between its neighbours by order (see placeBetween)
-    const good: number[] = [];
-    allStops.forEach((s, i) => {
-      if (coordinateFault(s.lat, s.lon) === '') good.push(i);
-      else faultyStops.add(g.stopIdx[i]);
-    });
-    const stops = good.length === n ? allStops : good.map((i) => allStops[i]);
+/** 4. One pattern measured: distances along its path, scheduled times, headsign; the routes at its stops tallied. */
+function measurePattern(
+  feed: Feed,
+  d: Draft,
+  shapes: ShapeChoice,
+  units: ShapeUnits,
+  tally: MeasureTally,
+  { pathToleranceM, warnings }: { pathToleranceM: number; warnings: WarningSink },
+): Pattern {
+  const { g } = d;
+  const shapeId = shapes.shapeOf.get(d)!;
+  const n = g.stopIdx.length;
+  const repAt = Math.max(0, g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId));
+  const rep = g.profiles[repAt].profile;
+  const ps = shapeId !== '' ? shapes.prepared.get(shapeId) : undefined;
+  const { distanceSource, distAlongM, offsetFromShapeM, path } = patternDistances(feed, d, shapeId, repAt, ps, units, tally, { pathToleranceM, warnings });
+  const times = patternTimes(g, distAlongM, warnings);
 
-    let distanceSource: DistanceSource;
-    let distAlongM: number[];
-    let offsetFromShapeM: (number | null)[];
-    let path: [number, number][];
-    const ps = shapeId !== '' ? prepared.get(shapeId) : undefined;
-    if (ps) {
-      const proj = projectAlongShape(ps, stops);
-      projectionFallbacks += proj.fallbacks;
-      offsetFromShapeM = proj.offsetM;
-      distAlongM = proj.distAlongM.map((v) => v - proj.distAlongM[0]);
-      if (good.length < n) {
-        distAlongM = placeBetween(distAlongM, good, n);
-        offsetFromShapeM = spreadOffsets(proj.offsetM, good, n);
-      }
-      distanceSource = 'shape_projection';
-      const metresPerUnit = shapeMetresPerUnit.get(shapeId);
-      if (unitFit && metresPerUnit) {
-        let usable = true;
-        const backtrackOf = new Map<number, number>(); // per profile
-        g.tripIds.forEach((t, k) => {
-          const { profile, profileId } = g.profiles[k];
-          let bt = backtrackOf.get(profileId);
-          if (bt === undefined) backtrackOf.set(profileId, (bt = firstBacktrack(profile.shapeDist)));
-          if (bt >= 0) {
-            usable = false;
-            backtracks.push({ patternId: d.id, tripId: t, stopIndex: bt });
-            warnings.add('distance-backtrack', `${t} stop ${bt}`);
-          }
-        });
-        const metres = usable ? shapeDistToMetres(rep.shapeDist, metresPerUnit) : null;
-        if (metres) {
-          distAlongM = metres;
-          distanceSource = 'shape_dist_traveled';
-        } else if (usable && Number.isFinite(distRange(rep.shapeDist))) {
-          warnings.add('partial-shape-dist', repTripId);
-        }
-      }
-      path = simplifyPath(ps.lat, ps.lon, { toleranceM: pathToleranceM });
-    } else {
-      distanceSource = 'great_circle';
-      warnings.add('pattern-without-shape', d.id);
-      distAlongM = [0];
-      for (let i = 1; i < stops.length; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
-      if (good.length < n) distAlongM = placeBetween(distAlongM, good, n);
-      offsetFromShapeM = new Array(n).fill(null);
-      path = stops.map((s) => [s.lon, s.lat] as [number, number]);
-    }
-
-    // each distinct profile once, counted by its trips; the untimed are named trip by trip, as they run
-    const runOf = new Map<number, number>();
-    const runs: TimedRun[] = [];
-    const runOfTrip = g.profiles.map(({ profile, profileId }) => {
-      let r = runOf.get(profileId);
-      if (r === undefined) {
-        runOf.set(profileId, (r = runs.length));
-        runs.push({ arrS: profile.arrRel, depS: profile.depRel, trips: 0 });
-      }
-      runs[r].trips++;
-      return r;
-    });
-    const { times, untimed } = scheduledTimesOfRuns(runs, distAlongM);
-    g.tripIds.forEach((t, k) => {
-      if (untimed[runOfTrip[k]]) warnUntimedTrip(warnings, t);
-    });
-
-    const headCounts = new Map<string, number>();
-    for (const t of g.tripIds) {
-      const h = feed.trips.get(t)!.headsign;
-      headCounts.set(h, (headCounts.get(h) ?? 0) + 1);
-    }
-    for (let i = 0; i < n; i++) {
-      let set = routesAtStop.get(g.stopIdx[i]);
-      if (!set) routesAtStop.set(g.stopIdx[i], (set = new Set()));
-      set.add(g.routeId);
-    }
-    patterns.push({
-      id: d.id,
-      routeId: g.routeId,
-      directionId: g.directionId,
-      headsign: mostCommon(headCounts),
-      shapeId: ps ? shapeId : '',
-      tripIds: g.tripIds,
-      tripsPerDay: d.tripsPerDay,
-      nominalFrequencyTrips: d.nominal,
-      stopIdx: Array.from(g.stopIdx),
-      distAlongM,
-      offsetFromShapeM,
-      distanceSource,
-      lengthM: distAlongM[n - 1],
-      passengerStop: Array.from(rep.noService, (v) => v !== 1),
-      timepoint: Array.from(rep.timepoint, (v) => v === 1),
-      gapRunTimeS: times.gapRunTimeS,
-      gapTimeInterpolated: times.gapTimeInterpolated,
-      runTimeS: times.runTimeS,
-      scheduledDwellS: times.scheduledDwellS,
-      path,
-    });
-    done++;
-    if (onProgress && (done % 50 === 0 || done === drafts.length)) onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
+  const headCounts = new Map<string, number>();
+  for (const t of g.tripIds) {
+    const h = feed.trips.get(t)!.headsign;
+    headCounts.set(h, (headCounts.get(h) ?? 0) + 1);
   }
-  if (faultyStops.size > 0) {
-    const ids = [...faultyStops].map((k) => feed.stops[k].id);
+  for (let i = 0; i < n; i++) {
+    let set = tally.routesAtStop.get(g.stopIdx[i]);
+    if (!set) tally.routesAtStop.set(g.stopIdx[i], (set = new Set()));
+    set.add(g.routeId);
+  }
+  return {
+    id: d.id,
+    routeId: g.routeId,
+    directionId: g.directionId,
+    headsign: mostCommon(headCounts),
+    shapeId: ps ? shapeId : '',
+    tripIds: g.tripIds,
+    tripsPerDay: d.tripsPerDay,
+    nominalFrequencyTrips: d.nominal,
+    stopIdx: Array.from(g.stopIdx),
+    distAlongM,
+    offsetFromShapeM,
+    distanceSource,
+    lengthM: distAlongM[n - 1],
+    passengerStop: Array.from(rep.noService, (v) => v !== 1),
+    timepoint: Array.from(rep.timepoint, (v) => v === 1),
+    gapRunTimeS: times.gapRunTimeS,
+    gapTimeInterpolated: times.gapTimeInterpolated,
+    runTimeS: times.runTimeS,
+    scheduledDwellS: times.scheduledDwellS,
+    path,
+  };
+}
+
+/** 4a. Each stop's distance along the pattern: shape_dist_traveled, else projection onto the shape, else great-circle. */
+function patternDistances(
+  feed: Feed,
+  d: Draft,
+  shapeId: string,
+  repAt: number,
+  ps: PreparedShape | undefined,
+  units: ShapeUnits,
+  tally: MeasureTally,
+  { pathToleranceM, warnings }: { pathToleranceM: number; warnings: WarningSink },
+): Pick<Pattern, 'distanceSource' | 'distAlongM' | 'offsetFromShapeM' | 'path'> {
+  const { g } = d;
+  const n = g.stopIdx.length;
+  const allStops = Array.from(g.stopIdx, (i) => feed.stops[i]);
+  // stops whose coordinates cannot be a stop's are measured around: the others are measured, and each
+  // faulty one placed between its neighbours by order (see placeBetween)
+  const good: number[] = [];
+  allStops.forEach((s, i) => {
+    if (coordinateFault(s.lat, s.lon) === '') good.push(i);
+    else tally.faultyStops.add(g.stopIdx[i]);
+  });
+  const stops = good.length === n ? allStops : good.map((i) => allStops[i]);
+
+  let distanceSource: DistanceSource;
+  let distAlongM: number[];
+  let offsetFromShapeM: (number | null)[];
+  let path: [number, number][];
+  if (ps) {
+    const proj = projectAlongShape(ps, stops);
+    tally.projectionFallbacks += proj.fallbacks;
+    offsetFromShapeM = proj.offsetM;
+    distAlongM = proj.distAlongM.map((v) => v - proj.distAlongM[0]);
+    if (good.length < n) {
+      distAlongM = placeBetween(distAlongM, good, n);
+      offsetFromShapeM = spreadOffsets(proj.offsetM, good, n);
+    }
+    distanceSource = 'shape_projection';
+    const metres = shapeDistMetres(d, shapeId, repAt, units, tally, warnings);
+    if (metres) {
+      distAlongM = metres;
+      distanceSource = 'shape_dist_traveled';
+    }
+    path = simplifyPath(ps.lat, ps.lon, { toleranceM: pathToleranceM });
+  } else {
+    distanceSource = 'great_circle';
+    warnings.add('pattern-without-shape', d.id);
+    distAlongM = [0];
+    for (let i = 1; i < stops.length; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
+    if (good.length < n) distAlongM = placeBetween(distAlongM, good, n);
+    offsetFromShapeM = new Array(n).fill(null);
+    path = stops.map((s) => [s.lon, s.lat] as [number, number]);
+  }
+  return { distanceSource, distAlongM, offsetFromShapeM, path };
+}
+
+/** 4b. The representative trip's shape_dist_traveled in metres when usable (no trip backtracks), else null. */
+function shapeDistMetres(d: Draft, shapeId: string, repAt: number, units: ShapeUnits, tally: MeasureTally, warnings: WarningSink): number[] | null {
+  const { g } = d;
+  const metresPerUnit = units.shapeMetresPerUnit.get(shapeId);
+  if (!units.unitFit || !metresPerUnit) return null;
+  let usable = true;
+  const backtrackOf = new Map<number, number>(); // per profile
+  g.tripIds.forEach((t, k) => {
+    const { profile, profileId } = g.profiles[k];
+    let bt = backtrackOf.get(profileId);
+    if (bt === undefined) backtrackOf.set(profileId, (bt = firstBacktrack(profile.shapeDist)));
+    if (bt >= 0) {
+      usable = false;
+      tally.backtracks.push({ patternId: d.id, tripId: t, stopIndex: bt });
+      warnings.add('distance-backtrack', `${t} stop ${bt}`);
+    }
+  });
+  const rep = g.profiles[repAt].profile;
+  const metres = usable ? shapeDistToMetres(rep.shapeDist, metresPerUnit) : null;
+  if (!metres && usable && Number.isFinite(distRange(rep.shapeDist))) warnings.add('partial-shape-dist', g.tripIds[repAt]);
+  return metres;
+}
+
+/** 4c. Scheduled times: each distinct profile once, counted by its trips; the untimed named trip by trip, as they run. */
+function patternTimes(g: Group, distAlongM: number[], warnings: WarningSink): ReturnType<typeof scheduledTimesOfRuns>['times'] {
+  const runOf = new Map<number, number>();
+  const runs: TimedRun[] = [];
+  const runOfTrip = g.profiles.map(({ profile, profileId }) => {
+    let r = runOf.get(profileId);
+    if (r === undefined) {
+      runOf.set(profileId, (r = runs.length));
+      runs.push({ arrS: profile.arrRel, depS: profile.depRel, trips: 0 });
+    }
+    runs[r].trips++;
+    return r;
+  });
+  const { times, untimed } = scheduledTimesOfRuns(runs, distAlongM);
+  g.tripIds.forEach((t, k) => {
+    if (untimed[runOfTrip[k]]) warnUntimedTrip(warnings, t);
+  });
+  return times;
+}
+
+/** The warnings measuring gathers over every pattern: stops with a coordinate fault, projections that fell back. */
+function warnMeasureTally(feed: Feed, tally: MeasureTally, warnings: WarningSink): void {
+  if (tally.faultyStops.size > 0) {
+    const ids = [...tally.faultyStops].map((k) => feed.stops[k].id);
     warnings.add('stop-coordinate-fault', ids[0], ids.length);
     for (const id of ids.slice(1, 5)) warnings.add('stop-coordinate-fault', id, 0);
   }
-  if (projectionFallbacks > 0) {
-    warnings.add('projection-fallback', undefined, projectionFallbacks);
+  if (tally.projectionFallbacks > 0) {
+    warnings.add('projection-fallback', undefined, tally.projectionFallbacks);
   }
-  const set: PatternSet = { date, patterns, routesAtStop, shapeDistUnit: unitFit, distanceBacktracks: backtracks };
-  if (!givenSink) set.warnings = warnings.list();
-  return set;
 }
 
 function tooManyPatterns(date: string, narrowed: boolean): StopspanError {

@@ -92,13 +92,16 @@ export function distRange(dist: ArrayLike<number>): number {
   return n >= 2 ? last - first : NaN;
 }
 
-/** Index of the first value smaller than the finite value before it, or -1 when the values never decrease. */
-export function firstBacktrack(dist: ArrayLike<number>): number {
+/**
+ * Index of the first value smaller than the finite value before it (by more than `tolerance`), or -1 when
+ * the values never decrease.
+ */
+export function firstBacktrack(dist: ArrayLike<number>, tolerance = 0): number {
   let prev = -Infinity;
   for (let i = 0; i < dist.length; i++) {
     const v = dist[i];
     if (!Number.isFinite(v)) continue;
-    if (v < prev) return i;
+    if (v < prev - tolerance) return i;
     prev = v;
   }
   return -1;

@@ -199,65 +199,9 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
   if (!(Number.isFinite(maxSnapshotBytes) && maxSnapshotBytes > 0)) {
     throw new StopspanError('bad-option', 'invalid option maxSnapshotBytes: expected a positive number', { value: String(maxSnapshotBytes) });
   }
-  let st;
+  const { refs, zip } = await listArchive(archivePath, maxSnapshotBytes);
   try {
-    st = await fsp.stat(archivePath);
-  } catch {
-    throw new StopspanError('bad-realtime', 'realtime archive not found', { file: archivePath });
-  }
-  let zip: yauzl.ZipFile | null = null;
-  let refs: EntryRef[];
-  if (st.isDirectory()) {
-    refs = await listFolder(archivePath);
-  } else if (await isZipFile(archivePath)) {
-    try {
-      zip = await openZip(archivePath);
-      refs = await listZip(zip, maxSnapshotBytes);
-    } catch (e) {
-      zip?.close();
-      throw new StopspanError('bad-realtime', `realtime archive is not a readable zip: ${(e as Error).message}`, { file: archivePath });
-    }
-  } else {
-    // a single snapshot file
-    const dir = path.dirname(archivePath);
-    refs = [{ name: path.relative(dir, archivePath), load: () => fsp.readFile(archivePath) }];
-  }
-  try {
-    const indexed: Indexed[] = [];
-    let order = 0;
-    let nameOrderBroken = 0;
-    let lastTs = -Infinity;
-    for (const ref of refs) {
-      stats.filesSeen++;
-      onProgress?.({ stage: 'realtime index', done: stats.filesSeen, total: refs.length, unit: 'files' });
-      let header;
-      try {
-        const buf = maybeGunzip(await ref.load(), maxSnapshotBytes);
-        header = scanHeader(buf);
-      } catch (e) {
-        stats.snapshotsSkipped++;
-        warnings.add('realtime-undecodable', `${ref.name}: ${(e as Error).message}`);
-        continue;
-      }
-      if (header.incrementality === transit_realtime.FeedHeader.Incrementality.DIFFERENTIAL) {
-        stats.snapshotsSkipped++;
-        warnings.add('realtime-differential', ref.name);
-        continue;
-      }
-      const ts = toNumber(header.timestamp);
-      if (!(ts > 0)) {
-        stats.snapshotsSkipped++;
-        warnings.add('realtime-no-timestamp', ref.name);
-        continue;
-      }
-      if (ts < lastTs) nameOrderBroken++;
-      lastTs = ts;
-      indexed.push({ ref, timestampS: ts, order: order++ });
-    }
-    if (nameOrderBroken > 0) {
-      warnings.add('realtime-reordered', undefined, nameOrderBroken);
-    }
-    indexed.sort((a, b) => a.timestampS - b.timestampS || a.order - b.order);
+    const indexed = await indexSnapshots(refs, { warnings, stats, onProgress, maxSnapshotBytes });
     let done = 0;
     for (const it of indexed) {
       onProgress?.({ stage: 'realtime decode', done: ++done, total: indexed.length, unit: 'snapshots' });
@@ -276,6 +220,73 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
   } finally {
     zip?.close();
   }
+}
+
+/** The files of the archive, a folder, a zip (left open for reading, closed by the caller) or a single snapshot file. */
+async function listArchive(archivePath: string, maxSnapshotBytes: number): Promise<{ refs: EntryRef[]; zip: yauzl.ZipFile | null }> {
+  let st;
+  try {
+    st = await fsp.stat(archivePath);
+  } catch {
+    throw new StopspanError('bad-realtime', 'realtime archive not found', { file: archivePath });
+  }
+  if (st.isDirectory()) return { refs: await listFolder(archivePath), zip: null };
+  if (await isZipFile(archivePath)) {
+    let zip: yauzl.ZipFile | null = null;
+    try {
+      zip = await openZip(archivePath);
+      return { refs: await listZip(zip, maxSnapshotBytes), zip };
+    } catch (e) {
+      zip?.close();
+      throw new StopspanError('bad-realtime', `realtime archive is not a readable zip: ${(e as Error).message}`, { file: archivePath });
+    }
+  }
+  // a single snapshot file
+  const dir = path.dirname(archivePath);
+  return { refs: [{ name: path.relative(dir, archivePath), load: () => fsp.readFile(archivePath) }], zip: null };
+}
+
+/** The first pass: each file's header read, the unusable counted and left out, the rest in time order (ties by name). */
+async function indexSnapshots(
+  refs: EntryRef[],
+  { warnings, stats, onProgress, maxSnapshotBytes }: { warnings: WarningSink; stats: ArchiveStats; onProgress?: OnProgress; maxSnapshotBytes: number },
+): Promise<Indexed[]> {
+  const indexed: Indexed[] = [];
+  let order = 0;
+  let nameOrderBroken = 0;
+  let lastTs = -Infinity;
+  for (const ref of refs) {
+    stats.filesSeen++;
+    onProgress?.({ stage: 'realtime index', done: stats.filesSeen, total: refs.length, unit: 'files' });
+    let header;
+    try {
+      const buf = maybeGunzip(await ref.load(), maxSnapshotBytes);
+      header = scanHeader(buf);
+    } catch (e) {
+      stats.snapshotsSkipped++;
+      warnings.add('realtime-undecodable', `${ref.name}: ${(e as Error).message}`);
+      continue;
+    }
+    if (header.incrementality === transit_realtime.FeedHeader.Incrementality.DIFFERENTIAL) {
+      stats.snapshotsSkipped++;
+      warnings.add('realtime-differential', ref.name);
+      continue;
+    }
+    const ts = toNumber(header.timestamp);
+    if (!(ts > 0)) {
+      stats.snapshotsSkipped++;
+      warnings.add('realtime-no-timestamp', ref.name);
+      continue;
+    }
+    if (ts < lastTs) nameOrderBroken++;
+    lastTs = ts;
+    indexed.push({ ref, timestampS: ts, order: order++ });
+  }
+  if (nameOrderBroken > 0) {
+    warnings.add('realtime-reordered', undefined, nameOrderBroken);
+  }
+  indexed.sort((a, b) => a.timestampS - b.timestampS || a.order - b.order);
+  return indexed;
 }
 
 export { toNumber as longToNumber };

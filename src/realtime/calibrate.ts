@@ -19,6 +19,7 @@ import type { ObservedData, ObservedPattern } from './types.js';
 
 const rt = GtfsRealtimeBindings.transit_realtime;
 type ITripDescriptor = GtfsRealtimeBindings.transit_realtime.ITripDescriptor;
+type IFeedEntity = GtfsRealtimeBindings.transit_realtime.IFeedEntity;
 
 export interface ObserveArchiveOptions {
   warnings?: WarningSink;
@@ -78,6 +79,39 @@ function shifted(a: Int32Array, by: number): Int32Array {
   return out;
 }
 
+/** The options that shape what is counted as observed, checked. */
+type ObserveSettings = Required<Pick<ObserveArchiveOptions, 'minTrips' | 'minDwellS' | 'passMaxGapS' | 'dwellFixedQuantile' | 'maxGapSpeedMps' | 'measuredOnly'>>;
+
+/** What reading the snapshots gathered besides the trip instances. */
+interface ReadTally {
+  stats: ArchiveStats;
+  otherFeedSnapshots: number;
+  vpIntervalSumS: number; // time between consecutive VehiclePositions of the same trip instance
+  vpIntervals: number;
+  firstS: number;
+  lastS: number;
+}
+
+/** One pattern's observations summed over its trip instances. */
+interface Agg {
+  trips: number;
+  stopped: number[];
+  observed: number[];
+  passedUnknown: number[];
+  dwells: number[][];
+  runs: number[][];
+  fit: RunTimeFit;
+}
+
+/** The per-pattern sums, and the counts their warnings report. */
+interface Aggregates {
+  aggs: Map<string, Agg>;
+  implausible: number;
+  vpDwells: number;
+  tuDwells: number;
+  predictedOnly: number; // stop events whose last report was still a prediction
+}
+
 /**
  * Reads the archive at archivePath (folder or zip of GTFS-Realtime snapshots) and returns, per pattern
  * of `patterns`, the observed dwell, run time per gap, cruise speed, lost time per stop and stopping
@@ -90,16 +124,32 @@ export async function observeArchive(
   patterns: PatternSet,
   options: ObserveArchiveOptions = {},
 ): Promise<ObservedData> {
-  const {
-    warnings = new WarningSink(),
-    onProgress,
-    minTrips = 3,
-    minDwellS = 1,
-    passMaxGapS = 10,
-    dwellFixedQuantile = 0.1,
-    maxGapSpeedMps = 40,
-    measuredOnly = true,
-  } = options;
+  const { warnings = new WarningSink(), onProgress } = options;
+  const settings = observeSettings(options);
+  const matcher = new TripMatcher(feed, tripInfoOf(feed, patterns, warnings), feedTimeZone(feed, warnings), warnings);
+  const read = await readObservations(archivePath, feed, matcher, warnings, onProgress);
+  if (read.stats.filesSeen === 0) {
+    throw new StopspanError('bad-realtime', 'realtime archive holds no files', { file: archivePath });
+  }
+  const aggregates = aggregateInstances(matcher.instances.values(), settings);
+  warnAggregates(aggregates, read, settings, warnings);
+  const byPattern = observedPatterns(patterns, aggregates.aggs, settings, warnings);
+  return {
+    source: archivePath,
+    snapshotsRead: read.stats.snapshotsRead - read.otherFeedSnapshots,
+    snapshotsSkipped: read.stats.snapshotsSkipped + read.otherFeedSnapshots,
+    tripsMatched: matcher.instances.size,
+    tripsUnmatched: matcher.unmatched.size,
+    byPattern,
+    warnings: warnings.list(),
+    firstTimestampS: Number.isFinite(read.firstS) ? read.firstS : null,
+    lastTimestampS: Number.isFinite(read.lastS) ? read.lastS : null,
+  };
+}
+
+/** The options with their defaults, each checked. */
+function observeSettings(options: ObserveArchiveOptions): ObserveSettings {
+  const { minTrips = 3, minDwellS = 1, passMaxGapS = 10, dwellFixedQuantile = 0.1, maxGapSpeedMps = 40, measuredOnly = true } = options;
   if (!(Number.isInteger(minTrips) && minTrips >= 1)) {
     throw new StopspanError('bad-option', 'invalid option minTrips: expected an integer of at least 1', { value: String(minTrips) });
   }
@@ -109,7 +159,11 @@ export async function observeArchive(
     throw new StopspanError('bad-option', 'invalid option dwellFixedQuantile: expected a number in [0, 1]', { value: String(dwellFixedQuantile) });
   }
   if (!(maxGapSpeedMps > 0)) throw new StopspanError('bad-option', 'invalid option maxGapSpeedMps: expected a positive number', { value: String(maxGapSpeedMps) });
+  return { minTrips, minDwellS, passMaxGapS, dwellFixedQuantile, maxGapSpeedMps, measuredOnly };
+}
 
+/** The feed's time zone (its first agency's), or UTC with a warning when it has none a clock knows. */
+function feedTimeZone(feed: Feed, warnings: WarningSink): string {
   let timeZone = feed.agencies[0]?.timezone || '';
   try {
     new Intl.DateTimeFormat('en-US', { timeZone });
@@ -120,8 +174,11 @@ export async function observeArchive(
     warnings.add('realtime-no-timezone', feed.agencies[0]?.timezone ?? '');
     timeZone = 'UTC';
   }
+  return timeZone;
+}
 
-  // static side: trip -> pattern, stop times, frequencies
+/** The static side: each patterned trip's pattern, stop times and frequencies (a trip off its pattern's stops left out). */
+function tripInfoOf(feed: Feed, patterns: PatternSet, warnings: WarningSink): Map<string, TripInfo> {
   const freqByTrip = new Map<string, Frequency[]>();
   for (const f of feed.frequencies) {
     const l = freqByTrip.get(f.tripId);
@@ -147,25 +204,31 @@ export async function observeArchive(
       });
     }
   }
+  return tripInfo;
+}
 
-  const instances = new Map<string, Instance>();
-  const unmatched = new Set<string>();
-  const stats: ArchiveStats = { filesSeen: 0, snapshotsRead: 0, snapshotsSkipped: 0 };
-  let otherFeedSnapshots = 0;
-  let vpIntervalSumS = 0; // time between consecutive VehiclePositions of the same trip instance
-  let vpIntervals = 0;
-  let firstS = Infinity;
-  let lastS = -Infinity;
+/** Matches a realtime trip descriptor to one trip instance (trip, service day, start time), counting what does not match. */
+class TripMatcher {
+  readonly instances = new Map<string, Instance>();
+  readonly unmatched = new Set<string>();
 
-  function unmatchedTrip(key: string, code: WarningCode): null {
-    if (!unmatched.has(key)) {
-      unmatched.add(key);
-      warnings.add(code, key);
+  constructor(
+    private readonly feed: Feed,
+    private readonly tripInfo: Map<string, TripInfo>,
+    private readonly timeZone: string,
+    private readonly warnings: WarningSink,
+  ) {}
+
+  private unmatchedTrip(key: string, code: WarningCode): null {
+    if (!this.unmatched.has(key)) {
+      this.unmatched.add(key);
+      this.warnings.add(code, key);
     }
     return null;
   }
 
-  function instanceFor(td: ITripDescriptor, atS: number): Instance | null {
+  instanceFor(td: ITripDescriptor, atS: number): Instance | null {
+    const { feed, timeZone, warnings } = this;
     const tripId = td.tripId ?? '';
     if (!tripId) {
       warnings.add('realtime-trip-without-id');
@@ -177,28 +240,28 @@ export async function observeArchive(
     const startTime = td.startTime ?? '';
     const rawKey = `${tripId}|${startDate}|${startTime}`;
     if (rel === rt.TripDescriptor.ScheduleRelationship.ADDED) {
-      return unmatchedTrip(rawKey, 'realtime-trip-added');
+      return this.unmatchedTrip(rawKey, 'realtime-trip-added');
     }
-    const info = tripInfo.get(tripId);
+    const info = this.tripInfo.get(tripId);
     if (!info) {
       return feed.trips.has(tripId)
-        ? unmatchedTrip(rawKey, 'realtime-trip-not-in-patterns')
-        : unmatchedTrip(rawKey, 'realtime-trip-unknown');
+        ? this.unmatchedTrip(rawKey, 'realtime-trip-not-in-patterns')
+        : this.unmatchedTrip(rawKey, 'realtime-trip-unknown');
     }
     // frequency-based trips: start_time picks the instance and shifts the schedule
     let shiftS = 0;
     if (info.freqs.length > 0) {
       const t0 = parseGtfsTime(startTime);
-      if (t0 === null) return unmatchedTrip(rawKey, 'realtime-frequency-no-start-time');
+      if (t0 === null) return this.unmatchedTrip(rawKey, 'realtime-frequency-no-start-time');
       const fits = info.freqs.some((f) => t0 >= f.startS && t0 < f.endS && (f.exactTimes === 0 || (t0 - f.startS) % f.headwayS === 0));
-      if (!fits) return unmatchedTrip(rawKey, 'realtime-frequency-start-mismatch');
+      if (!fits) return this.unmatchedTrip(rawKey, 'realtime-frequency-start-mismatch');
       shiftS = t0 - firstTime(info.st);
     }
     let date = startDate;
     if (date) {
-      if (!/^\d{8}$/.test(date)) return unmatchedTrip(rawKey, 'realtime-bad-start-date');
+      if (!/^\d{8}$/.test(date)) return this.unmatchedTrip(rawKey, 'realtime-bad-start-date');
       if (!serviceRunsOn(info.serviceId, date, feed.calendar, feed.calendarDates)) {
-        return unmatchedTrip(rawKey, 'realtime-date-mismatch');
+        return this.unmatchedTrip(rawKey, 'realtime-date-mismatch');
       }
     } else {
       const today = localDate(atS, timeZone);
@@ -211,10 +274,10 @@ export async function observeArchive(
           break;
         }
       }
-      if (!date) return unmatchedTrip(rawKey, 'realtime-date-unknown');
+      if (!date) return this.unmatchedTrip(rawKey, 'realtime-date-unknown');
     }
     const key = `${tripId}|${date}|${info.freqs.length > 0 ? startTime : ''}`;
-    let inst = instances.get(key);
+    let inst = this.instances.get(key);
     if (!inst) {
       inst = {
         info,
@@ -227,108 +290,118 @@ export async function observeArchive(
         },
         originS: serviceDayOriginS(date, timeZone),
       };
-      instances.set(key, inst);
+      this.instances.set(key, inst);
     }
     return inst;
   }
+}
 
-  for await (const snap of readArchive(archivePath, { warnings, stats, onProgress })) {
+/** Every snapshot of the archive, in time order, folded into the trip instances it reports on. */
+async function readObservations(archivePath: string, feed: Feed, matcher: TripMatcher, warnings: WarningSink, onProgress: OnProgress | undefined): Promise<ReadTally> {
+  const read: ReadTally = {
+    stats: { filesSeen: 0, snapshotsRead: 0, snapshotsSkipped: 0 },
+    otherFeedSnapshots: 0,
+    vpIntervalSumS: 0,
+    vpIntervals: 0,
+    firstS: Infinity,
+    lastS: -Infinity,
+  };
+  for await (const snap of readArchive(archivePath, { warnings, stats: read.stats, onProgress })) {
     const entities = snap.message.entity ?? [];
-    // a snapshot none of whose trips the static feed knows belongs to another feed version
-    let withTrip = 0;
-    let known = 0;
-    for (const e of entities) {
-      const id = e.tripUpdate?.trip?.tripId || e.vehicle?.trip?.tripId;
-      if (!id) continue;
-      withTrip++;
-      if (feed.trips.has(id)) known++;
-    }
-    if (withTrip > 0 && known === 0) {
-      otherFeedSnapshots++;
+    if (isOtherFeed(entities, feed)) {
+      read.otherFeedSnapshots++;
       warnings.add('realtime-other-feed', snap.name);
       continue;
     }
-    firstS = Math.min(firstS, snap.timestampS);
-    lastS = Math.max(lastS, snap.timestampS);
+    read.firstS = Math.min(read.firstS, snap.timestampS);
+    read.lastS = Math.max(read.lastS, snap.timestampS);
     for (const e of entities) {
-      const tu = e.tripUpdate;
-      if (tu) {
-        if (!tu.trip) {
-          warnings.add('realtime-trip-without-id', e.id);
-          continue;
-        }
-        const inst = instanceFor(tu.trip, snap.timestampS);
-        if (!inst) continue;
-        const atS = longToNumber(tu.timestamp as never) || snap.timestampS;
-        if (atS < inst.state.lastTripUpdateS) {
-          warnings.add('realtime-out-of-order', `${tu.trip.tripId}@${atS}`);
-          continue;
-        }
-        if (atS === inst.state.lastTripUpdateS) continue; // the same report repeated in the next snapshot
-        const events = resolveStopTimeUpdates(tu.stopTimeUpdate ?? [], inst.sched, inst.originS);
-        if (events.unplaced > 0) {
-          warnings.add('realtime-update-unplaced', tu.trip.tripId ?? '', events.unplaced);
-        }
-        observeTripUpdate(inst.state, events, atS);
-      }
-      const vp = e.vehicle;
-      if (vp) {
-        if (!vp.trip || !vp.trip.tripId) {
-          warnings.add('realtime-vehicle-without-trip', vp.vehicle?.id ?? e.id);
-          continue;
-        }
-        const inst = instanceFor(vp.trip, snap.timestampS);
-        if (!inst) continue;
-        const atS = longToNumber(vp.timestamp as never) || snap.timestampS;
-        if (atS < inst.state.lastVehicleS) {
-          warnings.add('realtime-out-of-order', `${vp.trip.tripId}@${atS}`);
-          continue;
-        }
-        if (atS === inst.state.lastVehicleS) continue;
-        let pos = -1;
-        const n = inst.sched.seq.length;
-        if (hasField(vp, 'currentStopSequence')) {
-          for (let i = 0; i < n; i++) if (inst.sched.seq[i] === vp.currentStopSequence) pos = i;
-        } else if (vp.stopId) {
-          for (let i = Math.max(inst.state.prevPos, 0); i < n && pos < 0; i++) if (inst.sched.stopIds[i] === vp.stopId) pos = i;
-        }
-        if (pos < 0) {
-          warnings.add('realtime-vehicle-unplaced', vp.trip.tripId);
-          continue;
-        }
-        const stopped = vp.currentStatus === rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
-        if (Number.isFinite(inst.state.prevT)) {
-          vpIntervalSumS += atS - inst.state.prevT;
-          vpIntervals++;
-        }
-        observeVehiclePosition(inst.state, pos, stopped, atS);
-      }
+      // an entity whose TripUpdate cannot be used is passed over whole, its VehiclePosition too
+      if (e.tripUpdate && !observeUpdate(e, snap.timestampS, matcher, warnings)) continue;
+      if (e.vehicle) observePosition(e, snap.timestampS, matcher, read, warnings);
     }
   }
-  if (stats.filesSeen === 0) {
-    throw new StopspanError('bad-realtime', 'realtime archive holds no files', { file: archivePath });
-  }
+  return read;
+}
 
-  // per pattern aggregates
-  interface Agg {
-    trips: number;
-    stopped: number[];
-    observed: number[];
-    passedUnknown: number[];
-    dwells: number[][];
-    runs: number[][];
-    fit: RunTimeFit;
+/** A snapshot none of whose trips the static feed knows belongs to another feed version. */
+function isOtherFeed(entities: IFeedEntity[], feed: Feed): boolean {
+  let withTrip = 0;
+  let known = 0;
+  for (const e of entities) {
+    const id = e.tripUpdate?.trip?.tripId || e.vehicle?.trip?.tripId;
+    if (!id) continue;
+    withTrip++;
+    if (feed.trips.has(id)) known++;
   }
-  const aggs = new Map<string, Agg>();
+  return withTrip > 0 && known === 0;
+}
+
+/** An entity's TripUpdate folded into its trip instance; false when it could not be used. */
+function observeUpdate(e: IFeedEntity, snapS: number, matcher: TripMatcher, warnings: WarningSink): boolean {
+  const tu = e.tripUpdate!;
+  if (!tu.trip) {
+    warnings.add('realtime-trip-without-id', e.id);
+    return false;
+  }
+  const inst = matcher.instanceFor(tu.trip, snapS);
+  if (!inst) return false;
+  const atS = longToNumber(tu.timestamp as never) || snapS;
+  if (atS < inst.state.lastTripUpdateS) {
+    warnings.add('realtime-out-of-order', `${tu.trip.tripId}@${atS}`);
+    return false;
+  }
+  if (atS === inst.state.lastTripUpdateS) return false; // the same report repeated in the next snapshot
+  const events = resolveStopTimeUpdates(tu.stopTimeUpdate ?? [], inst.sched, inst.originS);
+  if (events.unplaced > 0) {
+    warnings.add('realtime-update-unplaced', tu.trip.tripId ?? '', events.unplaced);
+  }
+  observeTripUpdate(inst.state, events, atS);
+  return true;
+}
+
+/** An entity's VehiclePosition placed on its trip's stops and folded into the instance; the polling interval tallied. */
+function observePosition(e: IFeedEntity, snapS: number, matcher: TripMatcher, read: ReadTally, warnings: WarningSink): void {
+  const vp = e.vehicle!;
+  if (!vp.trip || !vp.trip.tripId) {
+    warnings.add('realtime-vehicle-without-trip', vp.vehicle?.id ?? e.id);
+    return;
+  }
+  const inst = matcher.instanceFor(vp.trip, snapS);
+  if (!inst) return;
+  const atS = longToNumber(vp.timestamp as never) || snapS;
+  if (atS < inst.state.lastVehicleS) {
+    warnings.add('realtime-out-of-order', `${vp.trip.tripId}@${atS}`);
+    return;
+  }
+  if (atS === inst.state.lastVehicleS) return;
+  let pos = -1;
+  const n = inst.sched.seq.length;
+  if (hasField(vp, 'currentStopSequence')) {
+    for (let i = 0; i < n; i++) if (inst.sched.seq[i] === vp.currentStopSequence) pos = i;
+  } else if (vp.stopId) {
+    for (let i = Math.max(inst.state.prevPos, 0); i < n && pos < 0; i++) if (inst.sched.stopIds[i] === vp.stopId) pos = i;
+  }
+  if (pos < 0) {
+    warnings.add('realtime-vehicle-unplaced', vp.trip.tripId);
+    return;
+  }
+  const stopped = vp.currentStatus === rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
+  if (Number.isFinite(inst.state.prevT)) {
+    read.vpIntervalSumS += atS - inst.state.prevT;
+    read.vpIntervals++;
+  }
+  observeVehiclePosition(inst.state, pos, stopped, atS);
+}
+
+/** Per pattern aggregates: each trip instance's stop verdicts, dwells and gap run times summed on its pattern. */
+function aggregateInstances(instances: Iterable<Instance>, { minDwellS, passMaxGapS, measuredOnly, maxGapSpeedMps }: ObserveSettings): Aggregates {
+  const out: Aggregates = { aggs: new Map(), implausible: 0, vpDwells: 0, tuDwells: 0, predictedOnly: 0 };
   const vopts = { minDwellS, passMaxGapS, measuredOnly };
-  let implausible = 0;
-  let vpDwells = 0;
-  let tuDwells = 0;
-  let predictedOnly = 0; // stop events whose last report was still a prediction
-  for (const inst of instances.values()) {
+  for (const inst of instances) {
     const p = inst.info.pattern;
     const n = p.stopIdx.length;
-    let agg = aggs.get(p.id);
+    let agg = out.aggs.get(p.id);
     if (!agg) {
       agg = {
         trips: 0,
@@ -339,12 +412,12 @@ export async function observeArchive(
         runs: Array.from({ length: Math.max(n - 1, 0) }, () => []),
         fit: new RunTimeFit(),
       };
-      aggs.set(p.id, agg);
+      out.aggs.set(p.id, agg);
     }
     agg.trips++;
     for (let i = 0; i < n; i++) {
-      if (Number.isFinite(inst.state.arrS[i]) && !inst.state.arrMeasured[i]) predictedOnly++;
-      if (Number.isFinite(inst.state.depS[i]) && !inst.state.depMeasured[i]) predictedOnly++;
+      if (Number.isFinite(inst.state.arrS[i]) && !inst.state.arrMeasured[i]) out.predictedOnly++;
+      if (Number.isFinite(inst.state.depS[i]) && !inst.state.depMeasured[i]) out.predictedOnly++;
     }
     const served: (boolean | null)[] = new Array(n);
     for (let i = 0; i < n; i++) {
@@ -357,8 +430,8 @@ export async function observeArchive(
         if (Number.isFinite(inst.state.passGapS[i])) agg.passedUnknown[i]++;
         continue;
       }
-      if (v.dwellFrom === 'vehicle-position') vpDwells++;
-      else if (v.dwellFrom === 'trip-update') tuDwells++;
+      if (v.dwellFrom === 'vehicle-position') out.vpDwells++;
+      else if (v.dwellFrom === 'trip-update') out.tuDwells++;
       agg.observed[i]++;
       if (terminal || v.stopped) agg.stopped[i]++;
       if (!terminal && v.stopped && v.dwellS !== null && v.dwellS >= 0) agg.dwells[i].push(v.dwellS);
@@ -368,7 +441,7 @@ export async function observeArchive(
       if (t === null) continue;
       const gapM = p.distAlongM[g + 1] - p.distAlongM[g];
       if (!(t > 0) || gapM / t > maxGapSpeedMps) {
-        implausible++;
+        out.implausible++;
         continue;
       }
       agg.runs[g].push(t);
@@ -377,17 +450,26 @@ export async function observeArchive(
       if (a !== null && b !== null) agg.fit.add(gapM, t, (a ? 1 : 0) + (b ? 1 : 0));
     }
   }
-  if (implausible > 0) {
-    warnings.add('realtime-implausible-run-time', undefined, implausible, { maxMps: maxGapSpeedMps });
+  return out;
+}
+
+/** The archive-wide warnings: implausible run times, predictions only, polling too coarse to see short dwells. */
+function warnAggregates(a: Aggregates, read: ReadTally, { maxGapSpeedMps, measuredOnly, passMaxGapS }: ObserveSettings, warnings: WarningSink): void {
+  if (a.implausible > 0) {
+    warnings.add('realtime-implausible-run-time', undefined, a.implausible, { maxMps: maxGapSpeedMps });
   }
 
-  if (predictedOnly > 0) {
-    warnings.add('realtime-predicted-only', undefined, predictedOnly, { use: measuredOnly ? 'not used' : 'used as measured, as asked' });
+  if (a.predictedOnly > 0) {
+    warnings.add('realtime-predicted-only', undefined, a.predictedOnly, { use: measuredOnly ? 'not used' : 'used as measured, as asked' });
   }
-  const meanVpIntervalS = vpIntervals > 0 ? vpIntervalSumS / vpIntervals : NaN;
-  if (vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
-    warnings.add('realtime-coarse-polling', undefined, 1, { fromVp: vpDwells, all: vpDwells + tuDwells, intervalS: Math.round(meanVpIntervalS) });
+  const meanVpIntervalS = read.vpIntervals > 0 ? read.vpIntervalSumS / read.vpIntervals : NaN;
+  if (a.vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
+    warnings.add('realtime-coarse-polling', undefined, 1, { fromVp: a.vpDwells, all: a.vpDwells + a.tuDwells, intervalS: Math.round(meanVpIntervalS) });
   }
+}
+
+/** Each observed pattern's figures: dwell, door time and stop loss from the run-time fit, shares, run times. */
+function observedPatterns(patterns: PatternSet, aggs: Map<string, Agg>, { minTrips, dwellFixedQuantile, passMaxGapS }: ObserveSettings, warnings: WarningSink): Map<string, ObservedPattern> {
   let unidentified = 0;
   const byPattern = new Map<string, ObservedPattern>();
   for (const p of patterns.patterns) {
@@ -435,15 +517,5 @@ export async function observeArchive(
   if (unidentified > 0) {
     warnings.add('realtime-share-unidentified', undefined, unidentified, { stops: unidentified, passMaxGapS });
   }
-  return {
-    source: archivePath,
-    snapshotsRead: stats.snapshotsRead - otherFeedSnapshots,
-    snapshotsSkipped: stats.snapshotsSkipped + otherFeedSnapshots,
-    tripsMatched: instances.size,
-    tripsUnmatched: unmatched.size,
-    byPattern,
-    warnings: warnings.list(),
-    firstTimestampS: Number.isFinite(firstS) ? firstS : null,
-    lastTimestampS: Number.isFinite(lastS) ? lastS : null,
-  };
+  return byPattern;
 }

@@ -12,13 +12,14 @@ import { handmadeNetwork } from '../helpers/handmade.js';
 import { checkFeed } from '../../src/check/check.js';
 import { brakingAcceleratingS } from '../../src/model/lostTime.js';
 import type { ObservedPattern } from '../../src/realtime/types.js';
+import type { ModelParams } from '../../src/model/params.js';
 
 // stops about 110 m apart over 6 km (mean trip 2 km): the square-root optimum at 25 mph is about 184 m
 const closeSpacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));
 
 describe('runAudit', () => {
   const { feed, patterns } = handmadeNetwork({ distM: closeSpacing, tripsPerDay: 80 });
-  const params = { cruise_speed_mps: 11.176, stopping_model: 'always' };
+  const params: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always' };
   const r = runAudit(feed, patterns, { params, generatedAt: '2026-10-14T00:00:00Z' });
 
   it('fills the result with finite numbers and the parameters with sources', () => {

@@ -98,6 +98,22 @@ describe('checkFeed', () => {
     expect(run(spec).counts['distance-backtrack']).toBe(1);
   });
 
+  it('distance-backtrack: trip and shape name the value before a blank they fall from; a fall within rounding passes', () => {
+    const spec = cleanSpec();
+    spec.shapes![0].dist = [0, 400, NaN, 300, 1600];
+    spec.trips[0].times[2][3] = NaN; // blank between 400 and the fall to 300
+    spec.trips[0].times[3][3] = 300;
+    const back = run(spec).findings.find((f) => f.code === 'distance-backtrack')!;
+    expect(back.count).toBe(2);
+    expect(back.examples.map((e) => e.detail)).toEqual([
+      'trip T1: shape_dist_traveled falls from 400 to 300 at stop_sequence 4',
+      'shape SH1: shape_dist_traveled falls from 400 to 300 at point 4',
+    ]);
+    const rounding = cleanSpec();
+    rounding.shapes![0].dist = [0, 400, 400 - 1e-12, 1200, 1600];
+    expect(run(rounding).counts['distance-backtrack']).toBe(0);
+  });
+
   it('time-backtrack: a time earlier than the previous stop', () => {
     const spec = cleanSpec();
     spec.trips[0].times[2][1] = 28830; // before the 28860 departure at stop 2

@@ -14,6 +14,7 @@ import type { PreparedPattern } from '../../src/model/preparePattern.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
 // @ts-expect-error: a plain ES module of the generators, without type declarations
 import { prng as rng } from '../../scripts/lib/seeded.mjs';
+import type { ModelParams } from '../../src/model/params.js';
 
 const SPACING = 100;
 
@@ -188,7 +189,7 @@ describe('a ridership file and mean_trip_length_m', () => {
       const rows = ['stop_id,route_id,boardings,alightings', 'v1-0,V1,400,0', 'v1-20,V1,0,400'];
       for (let k = 1; k < 20; k++) rows.push(`v1-${k},V1,0,0`);
       writeFileSync(file, rows.join('\n') + '\n');
-      const params = { mean_trip_length_m: 500, stopping_model: 'always', cruise_speed_mps: 11.176 };
+      const params: Partial<ModelParams> = { mean_trip_length_m: 500, stopping_model: 'always', cruise_speed_mps: 11.176 };
       const r = runAudit(feed, patterns, { params, ridership: file, generatedAt: '2026-10-14T00:00:00Z' });
       const p = r.patterns.find((x) => x.patternId === 'V1:0:1')!;
       expect(p.meanTripLengthM).toBeCloseTo(3000, 6);

@@ -3,7 +3,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { defaultParams, loadParamsFile, normalizeParams, paramsReport, PARAM_NAMES } from '../../src/model/params.js';
+import { defaultParams, loadParams, loadParamsFile, normalizeParams, paramsReport, PARAM_NAMES } from '../../src/model/params.js';
 import { thrown } from '../helpers/errors.js';
 
 describe('normalizeParams', () => {
@@ -63,5 +63,29 @@ describe('loadParamsFile', () => {
     writeFileSync(notJson, '{walk_weight: 1.5}');
     expect(thrown(() => loadParamsFile(notJson)).message).toMatch(/not valid JSON/);
     expect(thrown(() => loadParamsFile(join(dir, 'missing.json'))).code).toBe('bad-option');
+  });
+});
+
+describe('loadParams', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'stopspan-params-'));
+  it('puts single values on top of the file, numbers given as text read as numbers, both reported as set', () => {
+    const file = join(dir, 'base.json');
+    writeFileSync(file, '{"walk_weight": 1.5, "max_gap_m": 600}');
+    const np = loadParams(file, { max_gap_m: '450', door_time_s: 4 });
+    expect(np.values).toMatchObject({ walk_weight: 1.5, max_gap_m: 450, door_time_s: 4 });
+    expect([...np.given].sort()).toEqual(['door_time_s', 'max_gap_m', 'walk_weight']);
+    expect(loadParams(undefined, { walk_weight: 3 }).given).toEqual(['walk_weight']);
+    expect(loadParams(undefined).given).toEqual([]);
+  });
+  it('refuses a file that is not an object of named values, naming the file, and a bad single value', () => {
+    const list = join(dir, 'list.json');
+    writeFileSync(list, '[1, 2]');
+    const e = thrown(() => loadParams(list, { walk_weight: 3 }));
+    expect(e.message).toBe('invalid parameters: expected an object of named values, got an array');
+    expect(e.context.file).toBe(list);
+    const none = join(dir, 'null.json');
+    writeFileSync(none, 'null');
+    expect(loadParams(none, { walk_weight: 3 }).values.walk_weight).toBe(3);
+    expect(thrown(() => loadParams(undefined, { walk_speed_mps: 'fast' })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got "fast"');
   });
 });

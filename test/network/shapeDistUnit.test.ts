@@ -68,6 +68,11 @@ describe('distance helpers', () => {
     expect(firstBacktrack([0, 1, 1, 2.5, NaN, 4])).toBe(-1);
     expect(firstBacktrack([0, 1.2, NaN, 1.1, 3])).toBe(3);
   });
+  it('firstBacktrack lets a fall within the tolerance pass and stops at the first larger one', () => {
+    expect(firstBacktrack([0, 1, 1 - 1e-12, 2], 1e-9)).toBe(-1);
+    expect(firstBacktrack([0, 1, 1 - 1e-12, 2])).toBe(2);
+    expect(firstBacktrack([0, 5, NaN, 4, 3], 0.5)).toBe(3);
+  });
   it('shapeDistToMetres converts from the first stop, or gives null with a blank', () => {
     expect(shapeDistToMetres([1.5, 1.75, 2.5], 1000)).toEqual([0, 250, 1000]);
     expect(shapeDistToMetres([0, NaN, 2], 1)).toBeNull();

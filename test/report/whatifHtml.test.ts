@@ -16,6 +16,7 @@ import { nearestOnStopLine } from '../../src/network/nearestOnStopLine.js';
 import { REPORT_MARKER, writeFolder } from '../../src/report/writeFolder.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
 import { scanHtml } from '../security/htmlScan.js';
+import type { ModelParams } from '../../src/model/params.js';
 
 const NASTY = '<img src=x onerror=alert(1)> "Quay" & </script><script>alert(2)</script>';
 const even = Array.from({ length: 12 }, (_, j) => j * 250);
@@ -23,7 +24,7 @@ const { feed, patterns } = handmadeNetwork({ distM: even, tripsPerDay: 30, share
 feed.stops[feed.stopIndex.get('v1-4')!].name = `Vellmoor ${NASTY} 4`;
 feed.stops[feed.stopIndex.get('v1-6')!].name = 'Tollgate\u001b[2J Row'; // a terminal escape in a name
 feed.routes.get('V1')!.shortName = `1<b>x</b>`;
-const params = { cruise_speed_mps: 11.176, stopping_model: 'always' };
+const params: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always' };
 const s7 = feed.stops[feed.stopIndex.get('v1-7')!];
 const s2 = feed.stops[feed.stopIndex.get('v1-2')!];
 const s3 = feed.stops[feed.stopIndex.get('v1-3')!];

@@ -5,11 +5,12 @@ import { describe, expect, it } from 'vitest';
 import { evaluateScenario } from '../../src/whatif/whatif.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
+import type { ModelParams } from '../../src/model/params.js';
 
 // stops every 200 m, except that the stop at index 5 sits 100 m after its left neighbour and 300 m before its right one
 const distM = [0, 200, 400, 600, 800, 900, 1200, 1400, 1600, 1800, 2000, 2200];
 const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 40, sharedAt: 9 });
-const params = { cruise_speed_mps: 11.176, stopping_model: 'always', door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, walk_speed_mps: 1.2, walk_weight: 2 };
+const params: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always', door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, walk_speed_mps: 1.2, walk_weight: 2 };
 
 describe('removing one stop between uneven neighbours', () => {
   const audit = runAudit(feed, patterns, { params });

@@ -8,12 +8,13 @@ import { buildPatterns } from '../../src/network/index.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { evaluateScenario, type ScenarioResult } from '../../src/whatif/whatif.js';
 import type { AuditResult } from '../../src/audit/types.js';
+import type { ModelParams } from '../../src/model/params.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
 const BUS = join(FEEDS, 'nyct-bus-manhattan.zip');
 const DATE = '2026-10-14';
 const have = existsSync(BUS);
-const PARAMS = { cruise_speed_mps: 11.176, stopping_model: 'always' }; // 25 mph, exact conversion
+const PARAMS: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always' }; // 25 mph, exact conversion
 if (!have) console.warn(`skipping the real-feed what-if: ${BUS} not found (set STOPSPAN_FEEDS)`);
 
 describe.skipIf(!have)('evaluateScenario on nyct-bus-manhattan.zip', () => {

@@ -6,10 +6,11 @@ import { evaluateScenario, parseScenario, scenarioFromOptions } from '../../src/
 import { runAudit } from '../../src/audit/runAudit.js';
 import { handmadeNetwork } from '../helpers/handmade.js';
 import { thrown } from '../helpers/errors.js';
+import type { ModelParams } from '../../src/model/params.js';
 
 const even = Array.from({ length: 16 }, (_, j) => j * 200); // 3 km, stops every 200 m
 const { feed, patterns } = handmadeNetwork({ distM: even, tripsPerDay: 50, sharedAt: 12 });
-const params = { cruise_speed_mps: 11.176, stopping_model: 'always' };
+const params: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always' };
 
 describe('evaluateScenario', () => {
   const audit = runAudit(feed, patterns, { params });
