@@ -276,16 +276,25 @@ export const PAGE_SCRIPT = String.raw`
       var c = px([st[4], st[3]]);
       s.appendChild(dropMark(c[0], c[1], 4));
     });
-    // candidates: ring the stop to remove, a plus at the site of a stop to add; the best ones labelled with their rank
+    // candidates: ring the stop to remove, a plus at the site of a stop to add; the best ones labelled
+    // with their rank, right or left of the mark, where no earlier label is
+    var boxes = [];
+    function free(b) {
+      if (b[0] < 2 || b[2] > W - 2 || b[1] < 2) return false;
+      return boxes.every(function (o) { return b[2] < o[0] || b[0] > o[2] || b[3] < o[1] || b[1] > o[3]; });
+    }
     candsOf(p).forEach(function (e, k) {
       var c = e[0], st = p.stops[e[1]];
       var at = c.action === 'remove' ? (st ? [st[4], st[3]] : null) : c.at ? [c.at[1], c.at[0]] : null;
       if (!at) return;
       var q = px(at);
       var g = candGroup(c, candShape(c.action, q[0], q[1], c.action === 'remove' ? 8 : 6), info);
-      if (k < MAP_CAND_LABELS) {
-        var left = q[0] > W - 40;
-        g.appendChild(sv('text', { x: left ? q[0] - 10 : q[0] + 10, y: q[1] - 8, 'text-anchor': left ? 'end' : 'start', 'class': 'marker-label cand-label' }, '#' + c.rank));
+      var label = '#' + c.rank, w = label.length * 7.2;
+      var right = [q[0] + 9, q[1] - 19, q[0] + 9 + w, q[1] - 6], left = [q[0] - 9 - w, q[1] - 19, q[0] - 9, q[1] - 6];
+      var b = k >= MAP_CAND_LABELS ? null : free(right) ? right : free(left) ? left : null;
+      if (b) {
+        boxes.push(b);
+        g.appendChild(sv('text', { x: b[0], y: b[3] - 2, 'class': 'marker-label cand-label' }, label));
       }
       s.appendChild(g);
     });
