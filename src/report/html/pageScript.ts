@@ -700,6 +700,7 @@ export const PAGE_SCRIPT = String.raw`
 
   // Every box that scrolls on its own (tables, strip diagrams, charts on a phone) is a named region a
   // keyboard can reach: tabindex 0 lets arrow keys scroll it, the label names it for screen readers.
+  var REGION_NAMES = {};
   function scrollRegions(root) {
     Array.prototype.forEach.call(root.querySelectorAll('.table-wrap, .strip-wrap, .chart-scroll'), function (w) {
       if (w.hasAttribute('tabindex')) return;
@@ -708,7 +709,10 @@ export const PAGE_SCRIPT = String.raw`
       var what = w.classList.contains('table-wrap') ? 'Table' : 'Chart';
       w.setAttribute('tabindex', '0');
       w.setAttribute('role', 'region');
-      w.setAttribute('aria-label', what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '') + ' (scrolls)');
+      var label = what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '');
+      // two boxes in one section (the candidates and the gaps to review) get names apart
+      REGION_NAMES[label] = (REGION_NAMES[label] || 0) + 1;
+      w.setAttribute('aria-label', label + (REGION_NAMES[label] > 1 ? ' ' + REGION_NAMES[label] : '') + ' (scrolls)');
     });
   }
   (function chartScroll() {
