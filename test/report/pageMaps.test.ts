@@ -115,6 +115,16 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
     await page.close();
   });
 
+  it('names every box that scrolls apart, also two in one section (axe-core landmark-unique)', async () => {
+    const { page } = await open('sample');
+    await page.click('details.pattern > summary');
+    await page.waitForSelector('details.pattern[open] svg.map');
+    const names = await page.$$eval('[role="region"]', (rs) => rs.map((r) => r.getAttribute('aria-label')));
+    expect(await page.locator('#candidates [role="region"]').count()).toBe(2); // the candidates and the gaps to review
+    expect(new Set(names).size).toBe(names.length);
+    await page.close();
+  });
+
   it('makes a large list of pattern sections in chunks, and a filter by route name leaves only its sections', async () => {
     const { page, errors } = await open('big');
     expect(await page.locator('#pattern-sections > details.pattern').count()).toBe(200);
