@@ -100,37 +100,27 @@ export const PAGE_SCRIPT = String.raw`
     if (v === 'F') return sv('rect', { 'class': 'shape mk-fixed', x: x - r * 0.85, y: y - r * 0.85, width: r * 1.7, height: r * 1.7 });
     return sv('circle', { 'class': 'shape mk-ok', cx: x, cy: y, r: r * 0.8 });
   }
+  // one legend entry: a drawn sample (width x 16 or 12 px) and its words
+  function legendEntry(box, shape, w, h, text) {
+    var s = sv('svg', { width: w, height: h, viewBox: '0 0 ' + w + ' ' + h, 'aria-hidden': 'true' });
+    s.appendChild(shape);
+    var span = el('span');
+    span.appendChild(s);
+    span.appendChild(document.createTextNode(' ' + text));
+    box.appendChild(span);
+  }
   function legend() {
     var box = el('div', { 'class': 'legend' });
-    ${legendJs}.forEach(function (it) {
-      var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
-      s.appendChild(marker(it[0], 8, 8, 6));
-      var span = el('span');
-      span.appendChild(s);
-      span.appendChild(document.createTextNode(' ' + it[1]));
-      box.appendChild(span);
-    });
+    ${legendJs}.forEach(function (it) { legendEntry(box, marker(it[0], 8, 8, 6), 16, 16, it[1]); });
     // a gap's line style and its words
     [['gap-wide', 'wide gap (above the band), labelled W'], ['gap-empty', 'empty stretch: a wide gap with no sign anyone is there, listed for review, labelled E']].forEach(function (it) {
-      var ln = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
-      ln.appendChild(sv('line', { 'class': it[0], x1: 1, x2: 25, y1: 6, y2: 6 }));
-      var span = el('span');
-      span.appendChild(ln);
-      span.appendChild(document.createTextNode(' ' + it[1]));
-      box.appendChild(span);
+      legendEntry(box, sv('line', { 'class': it[0], x1: 1, x2: 25, y1: 6, y2: 6 }), 26, 12, it[1]);
     });
     // the audit's candidates and the optimiser's plan
     [[candShape('remove', 8, 8, 6), 'candidate: remove this stop (ring; #rank in the candidate list)'],
       [candShape('add', 8, 8, 6), 'candidate: add a stop here (plus; #rank)'],
       [keepMark(8, 8, 5), 'the optimiser\u2019s plan keeps the stop (upright bar, plan row of the strip)'],
-      [dropMark(8, 8, 4.5), 'the optimiser\u2019s plan drops the stop (cross)']].forEach(function (it) {
-      var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
-      s.appendChild(it[0]);
-      var span = el('span');
-      span.appendChild(s);
-      span.appendChild(document.createTextNode(' ' + it[1]));
-      box.appendChild(span);
-    });
+      [dropMark(8, 8, 4.5), 'the optimiser\u2019s plan drops the stop (cross)']].forEach(function (it) { legendEntry(box, it[0], 16, 16, it[1]); });
     return box;
   }
   function stopTitle(p, s) {
@@ -183,6 +173,12 @@ export const PAGE_SCRIPT = String.raw`
   function dropMark(x, y, r) {
     return sv('path', { 'class': 'plan-drop', d: 'M' + (x - r) + ' ' + (y - r) + 'L' + (x + r) + ' ' + (y + r) + 'M' + (x + r) + ' ' + (y - r) + 'L' + (x - r) + ' ' + (y + r) });
   }
+  // the positions of the stops the optimiser's plan drops, as a set
+  function dropSet(p) {
+    var out = {};
+    (p.drops || []).forEach(function (i) { out[i] = 1; });
+    return out;
+  }
   // the candidates on a pattern, best first: [candidate, stop position or -1]
   function candsOf(p) {
     return (p.cands || []).map(function (e) { return [D.candidates[e[0]], e[1]]; }).sort(function (a, b) { return a[0].rank - b[0].rank; });
@@ -221,8 +217,7 @@ export const PAGE_SCRIPT = String.raw`
       s.appendChild(stopGroup(p, st, marker(st[6], cx, y, st[6] === 'F' && st[7] === 'terminal' ? 7.5 : 6), info));
     });
     // the optimiser's plan in a row of its own: a bar for each stop it keeps, a cross for each it drops
-    var dropped = {};
-    (p.drops || []).forEach(function (i) { dropped[i] = 1; });
+    var dropped = dropSet(p);
     p.stops.forEach(function (st) {
       s.appendChild(dropped[st[0]] ? dropMark(x(st[5]), py, 4) : keepMark(x(st[5]), py, 5));
     });
@@ -368,8 +363,7 @@ export const PAGE_SCRIPT = String.raw`
     ['#', 'stop', 'stop_id', 'verdict', 'along', 'gap before', 'gap after', 'boardings/day', 'alightings/day', 'removing it, passenger-min/day' + assumedTag(p.demand), 'optimiser\u2019s plan', 'candidate'].forEach(function (h, i) {
       head.appendChild(el('th', i === 0 || (i >= 4 && i <= 9) ? { scope: 'col', 'class': 'num' } : { scope: 'col' }, h));
     });
-    var dropped = {}, candAt = {};
-    (p.drops || []).forEach(function (i) { dropped[i] = 1; });
+    var dropped = dropSet(p), candAt = {};
     candsOf(p).forEach(function (e) { if (e[0].action === 'remove' && e[1] >= 0) candAt[e[1]] = '#' + e[0].rank + ' remove'; });
     var thead = el('thead');
     thead.appendChild(head);
