@@ -141,3 +141,45 @@ describe('additions and removals on the page', () => {
     expect(marks.filter(([, m]) => m === 1).length).toBeGreaterThan(0);
   });
 });
+
+describe('the page data for the maps', () => {
+  type Data = {
+    stopTable: [string, string, number, number][];
+    patterns: { id: string; stops: (number | string)[][]; cands: [number, number][]; drops: number[]; path: number[] }[];
+    candidates: { rank: number; pats: number[]; at?: [number, number] }[];
+  };
+  const data = JSON.parse(html.slice(html.indexOf('>', dataStart) + 1, html.indexOf('</script>', dataStart))) as Data;
+  const stopId = (p: Data['patterns'][number], i: number): string => data.stopTable[p.stops[i][0] as number][0];
+
+  it("writes each stop once, and each pattern's candidates and the optimiser's drops at the stops the audit names", () => {
+    expect(data.stopTable.length).toBe(new Set(sample.stops.map((s) => s.stopId)).size);
+    data.patterns.forEach((p, pi) => {
+      const result = sample.stops.filter((s) => s.patternId === p.id).sort((a, b) => a.stopIndex - b.stopIndex);
+      expect(p.stops.map((_, i) => stopId(p, i))).toEqual(result.map((s) => s.stopId));
+      expect(p.drops).toEqual(result.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])));
+      const on = sample.candidates.filter((c) => c.patternIds.includes(p.id));
+      expect(p.cands.length).toBe(on.length);
+      for (const [ci, at] of p.cands) {
+        const c = sample.candidates[ci];
+        expect(data.candidates[ci].pats).toContain(pi);
+        if (c.action === 'remove') expect(stopId(p, at)).toBe(c.stopId);
+        else {
+          expect([stopId(p, at), stopId(p, at + 1)]).toEqual([c.fromStopId, c.toStopId]);
+          expect(data.candidates[ci].at).toEqual([Math.round(c.lat * 1e5) / 1e5, Math.round(c.lon * 1e5) / 1e5]);
+        }
+      }
+    });
+  });
+
+  it('writes a path as steps of 1e-5 degrees that add back up to the points within rounding', () => {
+    const p = sample.patterns[0];
+    const steps = data.patterns[0].path;
+    const back: [number, number][] = [];
+    for (let i = 0, x = 0, y = 0; i + 1 < steps.length; i += 2) back.push([(x += steps[i]) / 1e5, (y += steps[i + 1]) / 1e5]);
+    expect(back.length).toBe(Math.min(p.path.length, 400));
+    back.forEach(([lon, lat], i) => {
+      expect(Math.abs(lon - p.path[i][0])).toBeLessThanOrEqual(0.5e-5 + 1e-9);
+      expect(Math.abs(lat - p.path[i][1])).toBeLessThanOrEqual(0.5e-5 + 1e-9);
+    });
+  });
+});

@@ -34,17 +34,36 @@ const r1 = (v: number | null): number | null => (v === null || !Number.isFinite(
 const r5 = (v: number): number => Math.round(v * 1e5) / 1e5;
 
 function thin(path: [number, number][], max: number): [number, number][] {
-  if (path.length <= max) return path.map(([x, y]) => [r5(x), r5(y)]);
+  if (path.length <= max) return path;
   const step = (path.length - 1) / (max - 1);
   const out: [number, number][] = [];
-  for (let i = 0; i < max; i++) {
-    const [x, y] = path[Math.round(i * step)];
-    out.push([r5(x), r5(y)]);
+  for (let i = 0; i < max; i++) out.push(path[Math.round(i * step)]);
+  return out;
+}
+
+/** A path as whole 1e-5 degrees, the first point then each step from the one before: [lon0, lat0, dlon1, dlat1, ...] (a third of the text of [lon, lat] pairs). */
+function deltaPath(path: [number, number][]): number[] {
+  const out: number[] = [];
+  let px = 0;
+  let py = 0;
+  for (const [lon, lat] of path) {
+    if (!Number.isFinite(lon) || !Number.isFinite(lat)) continue;
+    const x = Math.round(lon * 1e5);
+    const y = Math.round(lat * 1e5);
+    out.push(x - px, y - py);
+    px = x;
+    py = y;
   }
   return out;
 }
 
-/** The data block the page's script draws from: compact arrays, numbers rounded. */
+/**
+ * The data block the page's script draws from: compact arrays, numbers rounded. A stop served by several
+ * patterns is written once (stopTable: [stop_id, name, lat, lon]) and each pattern's stops refer to it by
+ * position; candidates name their patterns by position in patterns; each pattern lists the candidates on
+ * it (to mark on its map and strip) and the stops the optimiser's plan drops. The script expands a
+ * pattern's rows when its section is opened.
+ */
 export function pageData(result: AuditResult, units: Units, maxPathPoints: number): Record<string, unknown> {
   const stopsBy = new Map<string, StopResult[]>();
   for (const s of result.stops) {
@@ -63,10 +82,41 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) wideBy.set(g.patternId, (l = []));
     if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, underReview.has(`${g.patternId}\n${g.fromStopId}\n${g.toStopId}`) ? 2 : 1]);
   }
-  const routeName = new Map<string, string>();
-  for (const p of result.patterns) if (!routeName.has(p.routeId)) routeName.set(p.routeId, p.routeShortName || p.routeId);
-  const patterns = result.patterns.map((p: PatternResult) => {
-    const stops = (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex);
+  const stopRef = new Map<string, number>();
+  const stopTable: [string, string, number, number][] = [];
+  const refOf = (s: StopResult): number => {
+    let i = stopRef.get(s.stopId);
+    if (i === undefined) {
+      stopRef.set(s.stopId, (i = stopTable.length));
+      stopTable.push([s.stopId, s.stopName, r5(s.stopLat), r5(s.stopLon)]);
+    }
+    return i;
+  };
+  const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
+  const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
+  // the candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]
+  const candsOn: [number, number][][] = result.patterns.map(() => []);
+  result.candidates.forEach((c, ci) => {
+    for (const id of new Set(c.patternIds)) {
+      const pi = patternPos.get(id);
+      if (pi === undefined) continue;
+      const stops = orderedStops[pi];
+    // a wide gap names its first stop by its place in this list
+    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
+      if (c.action === 'remove') {
+        let found = false;
+        stops.forEach((s, i) => {
+          if (s.stopId === c.stopId) (candsOn[pi].push([ci, i]), (found = true));
+        });
+        if (!found) candsOn[pi].push([ci, -1]);
+      } else {
+        const i = stops.findIndex((s, k) => s.stopId === c.fromStopId && stops[k + 1]?.stopId === c.toStopId);
+        candsOn[pi].push([ci, i]);
+      }
+    }
+  });
+  const patterns = result.patterns.map((p: PatternResult, pi) => {
+    const stops = orderedStops[pi];
     // a wide gap names its first stop by its place in this list
     const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
     return {
@@ -95,23 +145,22 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
       curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
       curCost: r1(p.currentCostPerRiderS),
       optCost: r1(p.optimalCostPerRiderS),
-      path: thin(p.path, maxPathPoints),
-      // [index, stop_id, name, lat, lon, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
-      stops: stops.map((s, i) => [
-        i,
-        s.stopId,
-        s.stopName,
-        r5(s.stopLat),
-        r5(s.stopLon),
+      path: deltaPath(thin(p.path, maxPathPoints)),
+      // [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
+      stops: stops.map((s) => [
+        refOf(s),
         r1(s.distAlongM),
         VERDICTS[s.verdict].letter,
         s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
         s.timepoint ? 1 : 0,
         r1(s.removalNetPaxMinPerDay),
-        r1(s.boardingsPerDay),
-        r1(s.alightingsPerDay),
+        Math.round(s.boardingsPerDay), // shown as whole riders
+        Math.round(s.alightingsPerDay),
       ]),
       gaps: (wideBy.get(p.patternId) ?? []).flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
+      cands: candsOn[pi],
+      // the optimiser's plan: positions of the stops it drops (every other stop it keeps)
+      drops: stops.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])),
     };
   });
   const candidates = result.candidates.map((c) => ({
@@ -120,15 +169,15 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     id: c.stopId,
     name: c.stopName,
     routes: c.routeIds,
-    routeNames: c.routeIds.map((r) => routeName.get(r) ?? r),
     net: r1(c.netPaxMinPerDay),
     riders: r1(c.ridersAffectedPerDay),
     rt: r1(c.runTimeSavedPerTripS),
     vh: Math.round(c.vehicleHoursPerDay * 1000) / 1000,
     robust: c.robust,
-    pats: c.patternIds, // the stop list of each, to link a row to its pattern's section
+    pats: c.patternIds.flatMap((id) => patternPos.get(id) ?? []), // positions in patterns, to link a row to its pattern's section
+    ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] } : {}),
   }));
-  return { units, assumed: result.demandSource === 'assumed', patterns, candidates };
+  return { units, assumed: result.demandSource === 'assumed', stopTable, patterns, candidates };
 }
 
 // why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)
@@ -286,7 +335,10 @@ ${reviewGaps ? `<h3>Wide gaps to review</h3>\n${reviewGaps}\n` : ''}</section>
 
 <section id="pattern-detail" aria-labelledby="detail-h">
 <h2 id="detail-h">Each pattern: map and stops along the route</h2>
-<p class="note">Open a pattern to draw its schematic map and strip diagram (ordered by passenger-minutes lost). Triangles are close stops, diamonds sit beside wide gaps, squares are fixed stops (terminals, timepoints), open circles are within the band; T marks a timepoint.</p>
+<p class="note">Open a pattern to draw its schematic map and strip diagram (ordered by passenger-minutes lost). Triangles are close stops, diamonds sit beside wide gaps, squares are fixed stops (terminals, timepoints), open circles are within the band; T marks a timepoint. A ring marks a candidate stop to remove and a plus a candidate stop to add, with its rank in the candidate list; a cross marks a stop the optimiser's plan drops.</p>
+<div class="controls"><label for="pat-find">Find a pattern: route, headsign or pattern id<input id="pat-find" type="search" placeholder="route name"></label></div>
+<div id="route-index"></div>
+<p class="note" id="pat-find-count" aria-live="polite"></p>
 <div id="pattern-sections"></div>
 </section>
 

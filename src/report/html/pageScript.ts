@@ -1,7 +1,10 @@
 // The page's inline script: reads the embedded JSON data block and draws the interactive parts (cost
 // curve with a pattern chooser, sortable and filterable tables, per-pattern strip diagrams and
-// schematic maps rendered only when their <details> is opened). Feed text is only ever set through
-// textContent or setAttribute, never parsed as markup. Plain ES2020, no template literals, no network.
+// schematic maps rendered only when their <details> is opened, with the audit's candidates and the
+// optimiser's plan marked on them). On a large network the pattern sections are made in chunks, as the
+// list is scrolled, filtered by route or name, or linked to, so the page is ready before all exist.
+// Feed text is only ever set through textContent or setAttribute, never parsed as markup. Plain
+// ES2020, no template literals, no network.
 // The verdicts' letters and legend come from the verdict table (src/audit/verdictKinds.ts).
 
 import type { Verdict } from '../../audit/types.js';
@@ -32,9 +35,14 @@ export const PAGE_SCRIPT = String.raw`
     if (text !== undefined && text !== null) e.textContent = String(text);
     return e;
   }
+  // one formatter per number of decimals: toLocaleString with options builds a new one on every call
+  var FORMATS = {};
+  var COLLATE = new Intl.Collator('en', { numeric: true }); // one collator for every sort (localeCompare with options makes one per call)
   function num(v, d) {
     if (v === null || v === undefined || !isFinite(v)) return '–';
-    return Number(v).toLocaleString('en-US', { minimumFractionDigits: d || 0, maximumFractionDigits: d || 0 });
+    var k = d || 0;
+    var f = FORMATS[k] || (FORMATS[k] = new Intl.NumberFormat('en-US', { minimumFractionDigits: k, maximumFractionDigits: k }));
+    return f.format(Number(v));
   }
   function len(m) {
     if (m === null || m === undefined || !isFinite(m)) return '–';
@@ -64,6 +72,26 @@ export const PAGE_SCRIPT = String.raw`
   function patternLabel(p) {
     return 'Route ' + p.routeName + ' to ' + p.headsign + ' (' + p.id + ')';
   }
+  var ROUTE_NAME = {}, PATTERN_BY_ID = {};
+  D.patterns.forEach(function (p) {
+    if (!(p.route in ROUTE_NAME)) ROUTE_NAME[p.route] = p.routeName;
+    PATTERN_BY_ID[p.id] = p;
+  });
+  D.candidates.forEach(function (c) { c.routeNames = c.routes.map(function (r) { return r in ROUTE_NAME ? ROUTE_NAME[r] : r; }); });
+  // a pattern's rows as the drawing reads them, expanded once when its section is first opened:
+  // stops [index, stop_id, name, lat, lon, dist, verdict letter, fixed reason, timepoint, removal net,
+  // boardings, alightings] from the shared stop table, the path as [lon, lat] from whole 1e-5 degree steps
+  function expand(p) {
+    if (p.expanded) return;
+    p.expanded = true;
+    p.stops = p.stops.map(function (r, i) {
+      var s = D.stopTable[r[0]];
+      return [i, s[0], s[1], s[2], s[3], r[1], r[2], r[3], r[4], r[5], r[6], r[7]];
+    });
+    var path = [], x = 0, y = 0;
+    for (var i = 0; i + 1 < p.path.length; i += 2) { x += p.path[i]; y += p.path[i + 1]; path.push([x / 1e5, y / 1e5]); }
+    p.path = path;
+  }
 
   // ---- verdict markers: shape and colour together, so colour is never the only cue ----
   function marker(v, x, y, r) {
@@ -72,25 +100,27 @@ export const PAGE_SCRIPT = String.raw`
     if (v === 'F') return sv('rect', { 'class': 'shape mk-fixed', x: x - r * 0.85, y: y - r * 0.85, width: r * 1.7, height: r * 1.7 });
     return sv('circle', { 'class': 'shape mk-ok', cx: x, cy: y, r: r * 0.8 });
   }
+  // one legend entry: a drawn sample (width x 16 or 12 px) and its words
+  function legendEntry(box, shape, w, h, text) {
+    var s = sv('svg', { width: w, height: h, viewBox: '0 0 ' + w + ' ' + h, 'aria-hidden': 'true' });
+    s.appendChild(shape);
+    var span = el('span');
+    span.appendChild(s);
+    span.appendChild(document.createTextNode(' ' + text));
+    box.appendChild(span);
+  }
   function legend() {
     var box = el('div', { 'class': 'legend' });
-    ${legendJs}.forEach(function (it) {
-      var s = sv('svg', { width: 16, height: 16, viewBox: '0 0 16 16', 'aria-hidden': 'true' });
-      s.appendChild(marker(it[0], 8, 8, 6));
-      var span = el('span');
-      span.appendChild(s);
-      span.appendChild(document.createTextNode(' ' + it[1]));
-      box.appendChild(span);
-    });
+    ${legendJs}.forEach(function (it) { legendEntry(box, marker(it[0], 8, 8, 6), 16, 16, it[1]); });
     // a gap's line style and its words
     [['gap-wide', 'wide gap (above the band), labelled W'], ['gap-empty', 'empty stretch: a wide gap with no sign anyone is there, listed for review, labelled E']].forEach(function (it) {
-      var ln = sv('svg', { width: 26, height: 12, viewBox: '0 0 26 12', 'aria-hidden': 'true' });
-      ln.appendChild(sv('line', { 'class': it[0], x1: 1, x2: 25, y1: 6, y2: 6 }));
-      var span = el('span');
-      span.appendChild(ln);
-      span.appendChild(document.createTextNode(' ' + it[1]));
-      box.appendChild(span);
+      legendEntry(box, sv('line', { 'class': it[0], x1: 1, x2: 25, y1: 6, y2: 6 }), 26, 12, it[1]);
     });
+    // the audit's candidates and the optimiser's plan
+    [[candShape('remove', 8, 8, 6), 'candidate: remove this stop (ring; #rank in the candidate list)'],
+      [candShape('add', 8, 8, 6), 'candidate: add a stop here (plus; #rank)'],
+      [keepMark(8, 8, 5), 'the optimiser\u2019s plan keeps the stop (upright bar, plan row of the strip)'],
+      [dropMark(8, 8, 4.5), 'the optimiser\u2019s plan drops the stop (cross)']].forEach(function (it) { legendEntry(box, it[0], 16, 16, it[1]); });
     return box;
   }
   function stopTitle(p, s) {
@@ -114,9 +144,50 @@ export const PAGE_SCRIPT = String.raw`
     return g;
   }
 
+  // ---- the audit's candidates and the optimiser's plan on a pattern ----
+  function candTitle(c) {
+    return 'Candidate #' + c.rank + ': ' + (c.action === 'remove' ? 'remove ' + c.name + (c.id ? ' (stop ' + c.id + ')' : '') : 'add a stop ' + c.name) +
+      '; ' + signed(c.net, 1) + ' passenger-min/day over all its patterns' + (D.assumed ? ' (assumed demand)' : '') + (c.robust ? '' : '; not robust to the sensitivity cases');
+  }
+  // a removal rings its stop; an addition is a plus in a disc at its site; one colour, two shapes
+  function candShape(action, x, y, r) {
+    var g = sv('g', { 'class': 'shape' });
+    if (action === 'remove') g.appendChild(sv('circle', { 'class': 'cand-ring', cx: x, cy: y, r: r }));
+    else {
+      g.appendChild(sv('circle', { 'class': 'cand-add', cx: x, cy: y, r: r }));
+      g.appendChild(sv('path', { 'class': 'cand-plus', d: 'M' + (x - r * 0.6) + ' ' + y + 'H' + (x + r * 0.6) + 'M' + x + ' ' + (y - r * 0.6) + 'V' + (y + r * 0.6) }));
+    }
+    return g;
+  }
+  function candGroup(c, shape, info) {
+    var t = candTitle(c);
+    var g = sv('g', { 'class': 'cand', tabindex: '0', role: 'img', 'aria-label': t, 'data-rank': c.rank });
+    g.appendChild(sv('title', null, t));
+    g.appendChild(shape);
+    var show = function () { info.textContent = t; };
+    g.addEventListener('mouseenter', show);
+    g.addEventListener('focus', show);
+    return g;
+  }
+  function keepMark(x, y, r) { return sv('path', { 'class': 'plan-keep', d: 'M' + x + ' ' + (y - r) + 'V' + (y + r) }); }
+  function dropMark(x, y, r) {
+    return sv('path', { 'class': 'plan-drop', d: 'M' + (x - r) + ' ' + (y - r) + 'L' + (x + r) + ' ' + (y + r) + 'M' + (x + r) + ' ' + (y - r) + 'L' + (x - r) + ' ' + (y + r) });
+  }
+  // the positions of the stops the optimiser's plan drops, as a set
+  function dropSet(p) {
+    var out = {};
+    (p.drops || []).forEach(function (i) { out[i] = 1; });
+    return out;
+  }
+  // the candidates on a pattern, best first: [candidate, stop position or -1]
+  function candsOf(p) {
+    return (p.cands || []).map(function (e) { return [D.candidates[e[0]], e[1]]; }).sort(function (a, b) { return a[0].rank - b[0].rank; });
+  }
+  var MAP_CAND_LABELS = 40; // labels beyond the best 40 would cover the map; every mark keeps its name
+
   // ---- strip diagram: stops by distance along the route ----
   function strip(p, info) {
-    var n = p.stops.length, W = Math.max(880, n * 18), H = 118, L = 24, R = 24, y = 62;
+    var n = p.stops.length, W = Math.max(880, n * 18), H = 190, L = 24, R = 24, y = 84, py = y + 52;
     var total = p.len > 0 ? p.len : 1;
     function x(d) { return L + (d / total) * (W - L - R); }
     var s = sv('svg', { 'class': 'chart strip', viewBox: '0 0 ' + W + ' ' + H, width: W, height: H, role: 'group', 'aria-label': 'Strip diagram of ' + patternLabel(p) });
@@ -144,6 +215,25 @@ export const PAGE_SCRIPT = String.raw`
       }
       if (st[6] === 'C') s.appendChild(sv('text', { x: cx, y: y - 12, 'text-anchor': 'middle', 'class': 'marker-label' }, 'C'));
       s.appendChild(stopGroup(p, st, marker(st[6], cx, y, st[6] === 'F' && st[7] === 'terminal' ? 7.5 : 6), info));
+    });
+    // the optimiser's plan in a row of its own: a bar for each stop it keeps, a cross for each it drops
+    var dropped = dropSet(p);
+    p.stops.forEach(function (st) {
+      s.appendChild(dropped[st[0]] ? dropMark(x(st[5]), py, 4) : keepMark(x(st[5]), py, 5));
+    });
+    s.appendChild(sv('text', { x: L, y: py + 19, 'class': 'tick' }, 'the optimiser\u2019s plan: | keeps, \u00d7 drops (' + (p.drops || []).length + ' of ' + p.stops.length + ')'));
+    // candidates: a ring around a stop to remove, a plus mid-gap for a stop to add, their ranks above
+    var rankEnd = -Infinity;
+    candsOf(p).forEach(function (e) {
+      var c = e[0], i = e[1], st = p.stops[i];
+      if (!st) return;
+      var cx = c.action === 'remove' ? x(st[5]) : p.stops[i + 1] ? (x(st[5]) + x(p.stops[i + 1][5])) / 2 : x(st[5]);
+      s.appendChild(candGroup(c, candShape(c.action, cx, y, c.action === 'remove' ? 10 : 7), info));
+      var label = '#' + c.rank, w = label.length * 6.6;
+      if (cx - w / 2 > rankEnd + 3) {
+        s.appendChild(sv('text', { x: cx, y: y - 30, 'text-anchor': 'middle', 'class': 'marker-label cand-label' }, label));
+        rankEnd = cx + w / 2;
+      }
     });
     // distance ticks every kilometre or mile
     var stepM = IMP ? 1609.344 : 1000;
@@ -175,6 +265,34 @@ export const PAGE_SCRIPT = String.raw`
       var c = px([st[4], st[3]]);
       s.appendChild(stopGroup(p, st, marker(st[6], c[0], c[1], 4.5), info));
     });
+    (p.drops || []).forEach(function (i) {
+      var st = p.stops[i];
+      if (!st) return;
+      var c = px([st[4], st[3]]);
+      s.appendChild(dropMark(c[0], c[1], 4));
+    });
+    // candidates: ring the stop to remove, a plus at the site of a stop to add; the best ones labelled
+    // with their rank, right or left of the mark, where no earlier label is
+    var boxes = [];
+    function free(b) {
+      if (b[0] < 2 || b[2] > W - 2 || b[1] < 2) return false;
+      return boxes.every(function (o) { return b[2] < o[0] || b[0] > o[2] || b[3] < o[1] || b[1] > o[3]; });
+    }
+    candsOf(p).forEach(function (e, k) {
+      var c = e[0], st = p.stops[e[1]];
+      var at = c.action === 'remove' ? (st ? [st[4], st[3]] : null) : c.at ? [c.at[1], c.at[0]] : null;
+      if (!at) return;
+      var q = px(at);
+      var g = candGroup(c, candShape(c.action, q[0], q[1], c.action === 'remove' ? 8 : 6), info);
+      var label = '#' + c.rank, w = label.length * 7.2;
+      var right = [q[0] + 9, q[1] - 19, q[0] + 9 + w, q[1] - 6], left = [q[0] - 9 - w, q[1] - 19, q[0] - 9, q[1] - 6];
+      var b = k >= MAP_CAND_LABELS ? null : free(right) ? right : free(left) ? left : null;
+      if (b) {
+        boxes.push(b);
+        g.appendChild(sv('text', { x: b[0], y: b[3] - 2, 'class': 'marker-label cand-label' }, label));
+      }
+      s.appendChild(g);
+    });
     var first = px([p.stops[0][4], p.stops[0][3]]);
     var rightSide = first[0] > W * 0.7;
     s.appendChild(sv('text', { x: rightSide ? first[0] - 8 : first[0] + 8, y: first[1] - 8, 'text-anchor': rightSide ? 'end' : 'start', 'class': 'marker-label' }, 'first stop'));
@@ -192,13 +310,14 @@ export const PAGE_SCRIPT = String.raw`
   }
 
   function patternBody(p, body) {
+    expand(p);
     if (!p.stops.length) { body.appendChild(el('p', { 'class': 'note' }, 'This pattern has no stops to draw.')); return; }
     var info = el('p', { 'class': 'info', 'aria-live': 'polite' }, 'Point at or tab to a stop to read its numbers.');
     var facts = el('dl', { 'class': 'kv' });
     [['stops', num(p.stops.length)], ['length', longLen(p.len)], ['trips per day', num(p.trips, 1)],
       ['median gap', len(p.median)], ['mean gap', len(p.mean)], ['modelled optimum', len(p.opt)],
       ['near-optimal band', len(p.lo) + ' to ' + len(p.hi)], ['close stops', num(p.close)], ['wide gaps', num(p.wide)],
-      ['stops the optimiser keeps', num(p.optCount)], ['passenger-min lost per day', num(p.lost) + assumedTag(p.demand)],
+      ['stops the optimiser keeps', num(p.optCount) + ' (its plan drops ' + num((p.drops || []).length) + ')'], ['passenger-min lost per day', num(p.lost) + assumedTag(p.demand)],
       ['lost time per stop', num(p.lostTime, 1) + ' s'], ['cruise speed', speed(p.cruise)],
       ['traffic delay per trip', p.delay === null ? 'not estimated' : num(p.delay / 60, 1) + ' min'],
       ['the bus stops', STOPPING[p.stopping] || p.stopping], ['distances from', p.distSource]].forEach(function (kv) {
@@ -217,8 +336,21 @@ export const PAGE_SCRIPT = String.raw`
     body.appendChild(wrap);
     body.appendChild(info);
     body.appendChild(legend());
+    body.appendChild(candList(p));
     body.appendChild(stopTable(p));
     scrollRegions(body);
+  }
+
+  // the candidates on the pattern in words, for reading without the map (and for screen readers)
+  function candList(p) {
+    var box = el('div', { 'class': 'pat-cands' });
+    var list = candsOf(p);
+    box.appendChild(el('h3', null, 'Candidates on this pattern'));
+    if (!list.length) { box.appendChild(el('p', { 'class': 'note' }, 'No candidate on this pattern.')); return box; }
+    var ul = el('ul');
+    list.forEach(function (e) { ul.appendChild(el('li', null, candTitle(e[0]))); });
+    box.appendChild(ul);
+    return box;
   }
 
   // the same stops as a table, for reading without the diagram (and for screen readers)
@@ -228,9 +360,11 @@ export const PAGE_SCRIPT = String.raw`
     var wrap = el('div', { 'class': 'table-wrap' });
     var t = el('table');
     var head = el('tr');
-    ['#', 'stop', 'stop_id', 'verdict', 'along', 'gap before', 'gap after', 'boardings/day', 'alightings/day', 'removing it, passenger-min/day' + assumedTag(p.demand)].forEach(function (h, i) {
-      head.appendChild(el('th', i === 0 || i >= 4 ? { scope: 'col', 'class': 'num' } : { scope: 'col' }, h));
+    ['#', 'stop', 'stop_id', 'verdict', 'along', 'gap before', 'gap after', 'boardings/day', 'alightings/day', 'removing it, passenger-min/day' + assumedTag(p.demand), 'optimiser\u2019s plan', 'candidate'].forEach(function (h, i) {
+      head.appendChild(el('th', i === 0 || (i >= 4 && i <= 9) ? { scope: 'col', 'class': 'num' } : { scope: 'col' }, h));
     });
+    var dropped = dropSet(p), candAt = {};
+    candsOf(p).forEach(function (e) { if (e[0].action === 'remove' && e[1] >= 0) candAt[e[1]] = '#' + e[0].rank + ' remove'; });
     var thead = el('thead');
     thead.appendChild(head);
     t.appendChild(thead);
@@ -238,9 +372,10 @@ export const PAGE_SCRIPT = String.raw`
     p.stops.forEach(function (st, i) {
       var prev = p.stops[i - 1], next = p.stops[i + 1];
       var cells = [i + 1, st[2], st[1], st[6] + ' ' + VERDICT_TEXT[st[6]] + (st[7] ? ' (' + st[7] + ')' : '') + (st[8] && st[7] !== 'timepoint' ? ', timepoint' : ''),
-        len(st[5]), prev ? len(st[5] - prev[5]) : '–', next ? len(next[5] - st[5]) : '–', num(st[10]), num(st[11]), signed(st[9], 1)];
+        len(st[5]), prev ? len(st[5] - prev[5]) : '–', next ? len(next[5] - st[5]) : '–', num(st[10]), num(st[11]), signed(st[9], 1),
+        dropped[i] ? 'drops' : 'keeps', candAt[i] || ''];
       var tr = el('tr');
-      cells.forEach(function (c, j) { tr.appendChild(el('td', j === 0 || j >= 4 ? { 'class': 'num' } : null, c)); });
+      cells.forEach(function (c, j) { tr.appendChild(el('td', j === 0 || (j >= 4 && j <= 9) ? { 'class': 'num' } : null, c)); });
       tb.appendChild(tr);
     });
     t.appendChild(tb);
@@ -249,21 +384,120 @@ export const PAGE_SCRIPT = String.raw`
     return d;
   }
 
+  // ---- pattern sections: made in chunks, as the list is scrolled, filtered or linked to ----
+  var SECTION_CHUNK = 200;
+  var SECTION_ORDER = D.patterns.slice().sort(function (a, b) { return b.lost - a.lost; });
+  var sections = {}; // pattern id -> its section, made once and kept (open, drawn) across filters
+  var listed = { list: SECTION_ORDER, shown: 0 };
+  var sectionHost = document.getElementById('pattern-sections');
+  var sectionMore = el('button', { type: 'button', 'class': 'show-more' });
+  sectionHost.parentNode.insertBefore(sectionMore, sectionHost.nextSibling);
+  var findInput = document.getElementById('pat-find'), findCount = document.getElementById('pat-find-count');
+  function sectionOf(p) {
+    if (sections[p.id]) return sections[p.id];
+    var d = el('details', { 'class': 'pattern', id: 'p-' + p.id });
+    var sum = el('summary');
+    sum.appendChild(document.createTextNode(patternLabel(p) + ' '));
+    sum.appendChild(el('span', { 'class': 's' }, '· ' + p.stops.length + ' stops · ' + p.close + ' close · ' + p.wide + ' wide · ' + (p.cands || []).length + ' candidates · ' + num(p.lost) + ' passenger-min lost/day' + assumedTag(p.demand)));
+    d.appendChild(sum);
+    var body = el('div', { 'class': 'body' });
+    d.appendChild(body);
+    d.addEventListener('toggle', function () {
+      if (d.open && !body.firstChild) patternBody(p, body);
+    });
+    return (sections[p.id] = d);
+  }
+  function showSections(n) {
+    var list = listed.list;
+    n = Math.min(n, list.length);
+    var frag = document.createDocumentFragment();
+    for (var i = listed.shown; i < n; i++) frag.appendChild(sectionOf(list[i]));
+    sectionHost.appendChild(frag);
+    listed.shown = n;
+    var rest = list.length - n;
+    sectionMore.hidden = rest <= 0;
+    sectionMore.textContent = 'Show ' + Math.min(SECTION_CHUNK, rest) + ' more patterns (' + rest + ' not shown)';
+    findCount.textContent = 'Showing ' + n + ' of ' + list.length + ' matching patterns (' + D.patterns.length + ' in all).';
+  }
+  function matchPatterns(text) {
+    var q = text.trim().toLowerCase();
+    if (!q) return SECTION_ORDER;
+    // a route's name or id typed in full means that route alone (so route 1 does not bring 10 and 101)
+    var exact = SECTION_ORDER.filter(function (p) { return p.routeName.toLowerCase() === q || p.route.toLowerCase() === q; });
+    if (exact.length) return exact;
+    return SECTION_ORDER.filter(function (p) { return (p.routeName + ' ' + p.route + ' ' + p.headsign + ' ' + p.id).toLowerCase().indexOf(q) >= 0; });
+  }
+  function filterSections() {
+    listed.list = matchPatterns(findInput.value);
+    listed.shown = 0;
+    sectionHost.textContent = '';
+    showSections(SECTION_CHUNK);
+  }
+  // a pattern's section, put in the list first when it is not there yet (clearing a filter that hides it)
+  function revealSection(id) {
+    var p = PATTERN_BY_ID[id];
+    if (!p) return null;
+    var at = listed.list.indexOf(p);
+    if (at < 0) {
+      findInput.value = '';
+      filterSections();
+      at = listed.list.indexOf(p);
+    }
+    if (at >= listed.shown) showSections(at + 1);
+    return sectionOf(p);
+  }
+  // open a pattern's section (drawing its map) and bring it into view
+  function openPattern(id) {
+    var d = revealSection(id);
+    if (!d) return false;
+    d.open = true;
+    d.scrollIntoView();
+    d.querySelector('summary').focus();
+    return true;
+  }
   function buildPatternSections() {
-    var host = document.getElementById('pattern-sections');
-    var order = D.patterns.slice().sort(function (a, b) { return b.lost - a.lost; });
-    order.forEach(function (p) {
-      var d = el('details', { 'class': 'pattern', id: 'p-' + p.id });
-      var sum = el('summary');
-      sum.appendChild(document.createTextNode(patternLabel(p) + ' '));
-      sum.appendChild(el('span', { 'class': 's' }, '· ' + p.stops.length + ' stops · ' + p.close + ' close · ' + p.wide + ' wide · ' + num(p.lost) + ' passenger-min lost/day' + assumedTag(p.demand)));
-      d.appendChild(sum);
-      var body = el('div', { 'class': 'body' });
-      d.appendChild(body);
-      d.addEventListener('toggle', function () {
-        if (d.open && !body.firstChild) patternBody(p, body);
+    sectionMore.addEventListener('click', function () { showSections(listed.shown + SECTION_CHUNK); });
+    findInput.addEventListener('input', filterSections);
+    // scrolling near the end of the list brings the next chunk; the button stays for keyboards
+    if (typeof IntersectionObserver === 'function') {
+      new IntersectionObserver(function (entries) {
+        if (entries.some(function (e) { return e.isIntersecting; }) && !sectionMore.hidden) showSections(listed.shown + SECTION_CHUNK);
+      }, { rootMargin: '400px 0px' }).observe(sectionMore);
+    }
+    showSections(SECTION_CHUNK);
+    buildRouteIndex();
+  }
+  // the index of routes, its links drawn when first opened: each route's link lists its patterns alone
+  function buildRouteIndex() {
+    var box = el('details', { 'class': 'route-index' });
+    box.appendChild(el('summary', null, 'Index of routes (' + routeList().length + ')'));
+    box.appendChild(el('nav', { 'aria-label': 'Routes' }));
+    document.getElementById('route-index').appendChild(box);
+    box.addEventListener('toggle', function () {
+      if (!box.open || box.querySelector('ul')) return;
+      var count = {}, first = {}, nameUsers = {};
+      SECTION_ORDER.forEach(function (p) {
+        count[p.route] = (count[p.route] || 0) + 1;
+        if (!first[p.route]) first[p.route] = p;
       });
-      host.appendChild(d);
+      Object.keys(first).forEach(function (r) { var k = first[r].routeName.toLowerCase(); nameUsers[k] = (nameUsers[k] || 0) + 1; });
+      var ul = el('ul');
+      routeList().forEach(function (r) {
+        var li = el('li');
+        var a = el('a', { href: '#p-' + first[r[0]].id }, r[1]);
+        a.addEventListener('click', function (ev) {
+          ev.preventDefault();
+          var name = ROUTE_NAME[r[0]];
+          findInput.value = nameUsers[name.toLowerCase()] === 1 ? name : r[0];
+          filterSections();
+          var d = sectionHost.firstChild;
+          if (d) { d.scrollIntoView(); d.querySelector('summary').focus(); }
+        });
+        li.appendChild(a);
+        li.appendChild(el('span', { 'class': 's' }, ' ' + count[r[0]]));
+        ul.appendChild(li);
+      });
+      box.querySelector('nav').appendChild(ul);
     });
   }
 
@@ -339,7 +573,7 @@ export const PAGE_SCRIPT = String.raw`
       rows.sort(function (a, b) {
         var va = col.value(a), vb = col.value(b), r;
         if (typeof va === 'number' && typeof vb === 'number') r = va - vb;
-        else r = String(va).localeCompare(String(vb), 'en', { numeric: true });
+        else r = COLLATE.compare(String(va), String(vb));
         return state.dir === 'asc' ? r : -r;
       });
       tbody.textContent = '';
@@ -380,26 +614,21 @@ export const PAGE_SCRIPT = String.raw`
     render();
   }
   // a link to a pattern's section that opens it (drawing its map) and brings it into view
-  function patternLink(id, text) {
-    var a = el('a', { href: '#p-' + id, 'class': 'pat-link' }, text);
-    a.addEventListener('click', function (ev) {
-      var d = document.getElementById('p-' + id);
-      if (!d) return;
-      ev.preventDefault();
-      d.open = true;
-      d.scrollIntoView();
-      d.querySelector('summary').focus();
-    });
+  function patternLink(id, text, cls) {
+    var a = el('a', cls ? { href: '#p-' + id, 'class': cls } : { href: '#p-' + id }, text);
+    a.addEventListener('click', function (ev) { if (openPattern(id)) ev.preventDefault(); });
     return a;
   }
   function fillRouteSelect(id, routes) {
     var sel = document.getElementById(id);
     routes.forEach(function (r) { sel.appendChild(el('option', { value: r[0] }, r[1])); });
   }
+  var ROUTES = null;
   function routeList() {
+    if (ROUTES) return ROUTES;
     var seen = {}, out = [];
     D.patterns.forEach(function (p) { if (!seen[p.route]) { seen[p.route] = 1; out.push([p.route, p.routeName === p.route ? p.route : p.routeName + ' (' + p.route + ')']); } });
-    return out.sort(function (a, b) { return a[1].localeCompare(b[1], 'en', { numeric: true }); });
+    return (ROUTES = out.sort(function (a, b) { return COLLATE.compare(a[1], b[1]); }));
   }
 
   function buildCandidates() {
@@ -422,7 +651,7 @@ export const PAGE_SCRIPT = String.raw`
         { key: 'action', value: function (c) { return c.action; } },
         { key: 'stop', value: function (c) { return c.name + (c.id ? ' (' + c.id + ')' : ''); }, cell: function (c, td) {
           td.textContent = c.name + (c.id ? ' (' + c.id + ')' : '') + ' ';
-          if (c.pats && c.pats.length) td.appendChild(patternLink(c.pats[0], c.pats.length > 1 ? 'pattern (1 of ' + c.pats.length + ')' : 'pattern'));
+          if (c.pats && c.pats.length) td.appendChild(patternLink(D.patterns[c.pats[0]].id, c.pats.length > 1 ? 'pattern (1 of ' + c.pats.length + ')' : 'pattern', 'pat-link'));
         } },
         { key: 'routes', value: function (c) { return c.routeNames.join(', '); } },
         { key: 'net', num: true, value: function (c) { return c.net; }, cell: function (c, td) { td.className = 'num ' + (c.net < 0 ? 'neg' : 'pos'); return signed(c.net, 1); } },
@@ -437,7 +666,7 @@ export const PAGE_SCRIPT = String.raw`
     fillRouteSelect('pat-route', routeList());
     var routeSel = document.getElementById('pat-route'), vSel = document.getElementById('pat-verdict');
     makeTable({
-      tableId: 'pat-table', countId: 'pat-count', rows: D.patterns, limit: 1000, defaultKey: 'lost', defaultDir: 'desc',
+      tableId: 'pat-table', countId: 'pat-count', rows: D.patterns, limit: 200, defaultKey: 'lost', defaultDir: 'desc',
       inputs: ['pat-route', 'pat-verdict'],
       filter: function (p) {
         if (routeSel.value && p.route !== routeSel.value) return false;
@@ -449,9 +678,7 @@ export const PAGE_SCRIPT = String.raw`
       },
       columns: [
         { key: 'pattern', value: function (p) { return p.id; }, cell: function (p, td) {
-          var a = el('a', { href: '#p-' + p.id }, p.id);
-          a.addEventListener('click', function () { var d = document.getElementById('p-' + p.id); if (d) d.open = true; });
-          td.appendChild(a); return undefined; } },
+          td.appendChild(patternLink(p.id, p.id)); return undefined; } },
         { key: 'route', value: function (p) { return p.routeName; } },
         { key: 'headsign', value: function (p) { return p.headsign; } },
         { key: 'stops', num: true, value: function (p) { return p.stops.length; } },
@@ -467,6 +694,7 @@ export const PAGE_SCRIPT = String.raw`
 
   // Every box that scrolls on its own (tables, strip diagrams, charts on a phone) is a named region a
   // keyboard can reach: tabindex 0 lets arrow keys scroll it, the label names it for screen readers.
+  var REGION_NAMES = {};
   function scrollRegions(root) {
     Array.prototype.forEach.call(root.querySelectorAll('.table-wrap, .strip-wrap, .chart-scroll'), function (w) {
       if (w.hasAttribute('tabindex')) return;
@@ -475,7 +703,10 @@ export const PAGE_SCRIPT = String.raw`
       var what = w.classList.contains('table-wrap') ? 'Table' : 'Chart';
       w.setAttribute('tabindex', '0');
       w.setAttribute('role', 'region');
-      w.setAttribute('aria-label', what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '') + ' (scrolls)');
+      var label = what + (head ? ': ' + head.textContent.trim().slice(0, 120) : '');
+      // two boxes in one section (the candidates and the gaps to review) get names apart
+      REGION_NAMES[label] = (REGION_NAMES[label] || 0) + 1;
+      w.setAttribute('aria-label', label + (REGION_NAMES[label] > 1 ? ' ' + REGION_NAMES[label] : '') + ' (scrolls)');
     });
   }
   (function chartScroll() {
@@ -489,11 +720,29 @@ export const PAGE_SCRIPT = String.raw`
     if (curve) curve.classList.add('chart-scroll');
   })();
 
+  // a table of contents: a link to each part of the page
+  (function contents() {
+    var nav = el('nav', { 'class': 'toc', 'aria-label': 'Contents' });
+    Array.prototype.forEach.call(document.querySelectorAll('main > section[id] > h2'), function (h) {
+      nav.appendChild(el('a', { href: '#' + h.parentNode.id }, h.textContent));
+    });
+    var main = document.querySelector('main');
+    main.insertBefore(nav, main.firstChild);
+  })();
   buildCurveChooser();
   buildCandidates();
   buildPatterns();
   buildPatternSections();
   scrollRegions(document);
+  // a link from elsewhere to one pattern's section (#p-ID) opens it, whether or not its chunk was made
+  function openFromHash() {
+    if (location.hash.indexOf('#p-') !== 0) return;
+    var id = location.hash.slice(3);
+    try { id = decodeURIComponent(id); } catch (e) { /* an id with a bare % stays as written */ }
+    openPattern(id);
+  }
+  window.addEventListener('hashchange', openFromHash);
+  openFromHash();
   document.documentElement.setAttribute('data-ready', '1');
 })();
 `;

@@ -6,7 +6,7 @@
 
 export const PAGE_STYLE = `
 :root { --ink:#1e2a31; --muted:#5b6870; --paper:#fbfaf7; --card:#ffffff; --rule:#d9d6cf;
-  --close:#b5532a; --wide:#2a6a9a; --ok:#7d8f80; --fixed:#33393d; --band:#e3efe2; --accent:#4a6b3f; }
+  --close:#b5532a; --wide:#2a6a9a; --ok:#7d8f80; --fixed:#33393d; --band:#e3efe2; --accent:#4a6b3f; --cand:#7a2e8e; }
 * { box-sizing: border-box; }
 body { margin:0; background:var(--paper); color:var(--ink); font:15px/1.5 system-ui, -apple-system, "Segoe UI", Roboto, "Helvetica Neue", Arial, sans-serif; }
 header.top { background:#24343c; color:#f4f1ea; padding:18px 28px 14px; }
@@ -55,6 +55,21 @@ svg text { font-family:inherit; fill:var(--ink); }
 .mk-tp { stroke:var(--fixed); stroke-width:1.5; }
 g.stop:focus { outline:none; }
 g.stop:focus > .shape, g.stop:hover > .shape { stroke:#f0b400; stroke-width:3; }
+/* candidates (one purple, two shapes) and the optimiser's plan (ink crosses, green bars) */
+.cand-ring { fill:none; stroke:var(--cand); stroke-width:2.5; }
+.cand-add { fill:var(--cand); stroke:#fff; stroke-width:1; }
+.cand-plus { stroke:#fff; stroke-width:2; }
+.cand-label { fill:var(--cand); font-weight:600; }
+g.cand:focus { outline:none; }
+g.cand:focus > .shape circle, g.cand:hover > .shape circle { stroke:#f0b400; stroke-width:3.5; }
+.plan-drop { stroke:var(--ink); stroke-width:1.8; pointer-events:none; }
+.plan-keep { stroke:var(--accent); stroke-width:2; }
+.pat-cands ul { margin:2px 0 6px; padding-left:20px; font-size:13.5px; }
+nav.toc { display:flex; flex-wrap:wrap; gap:4px 14px; font-size:13.5px; margin:0 0 6px; }
+details.route-index { margin:6px 0; }
+details.route-index > summary { cursor:pointer; font-size:14px; }
+details.route-index ul { columns:9rem; column-gap:14px; list-style:none; padding:4px 0; margin:0; font-size:13.5px; }
+details.route-index li .s { color:var(--muted); font-size:12px; }
 .legend { display:flex; flex-wrap:wrap; gap:14px; font-size:13px; color:var(--muted); margin:6px 0; align-items:center; }
 .legend svg { vertical-align:middle; }
 .controls { display:flex; flex-wrap:wrap; gap:12px; align-items:end; margin:8px 0; }
@@ -124,7 +139,7 @@ a.pat-link { font-size:12.5px; white-space:nowrap; }
   section { margin:10pt 0; }
   h2 { font-size:12.5pt; break-after:avoid; }
   h3 { break-after:avoid; }
-  .controls, #cand-count, #pat-count, .legend, details.stop-list, input, select, button.show-more, a.pat-link, button::after { display:none !important; }
+  .controls, #cand-count, #pat-count, #pat-find-count, nav.toc, details.route-index, .legend, details.stop-list, input, select, button.show-more, a.pat-link, button::after { display:none !important; }
   th button { all:unset; font-weight:600; }
   /* the first page: headline cards, top candidates and the cautions; everything else starts on page 2 */
   .cards { grid-template-columns:repeat(4, 1fr); gap:5pt; }
