@@ -16,16 +16,15 @@
 //     stops at both ends cannot average an urban 50 km/h limit once braking and accelerating are counted [D];
 //   - a run of at least 1 km whose stops' straight line is within 5 % of the distance along is "long and
 //     straight" (named so in the reason; it fails on the witness rule like any other).
+// With a land-use layer the people are the witness: an addition needs at least MIN_PEOPLE_FOR_ADDITION (50)
+// people, residents and jobs as weighted, within a walk of the site and nearer to it than to any stop
+// served today; the fast-stretch rule stands either way.
 
 import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
+import { WALK_RADIUS_M, WALK_REACH_M } from '../model/walkReach.js';
 
-/** Walk distance a rider accepts to a stop, metres [M, common practice]. */
-export const WALK_RADIUS_M = 400;
-/** Walked distance over straight-line distance on a street grid [M, common practice]. */
-export const WALK_DETOUR = 1.3;
-/** The straight-line reach of a walk of WALK_RADIUS_M. */
-export const WALK_REACH_M = WALK_RADIUS_M / WALK_DETOUR;
+export { WALK_RADIUS_M, WALK_DETOUR, WALK_REACH_M } from '../model/walkReach.js';
 /** Scheduled speed over a gap above which it is not a street a local bus stops on, m/s (50 km/h) [D]. */
 export const FAST_STRETCH_MPS = 50 / 3.6;
 /** A gap at least this long whose ends' straight line is this close to its length is long and straight. */
@@ -36,7 +35,10 @@ export const WITNESS_END_RATIO = 0.7;
 /** How many witness stops an addition needs. */
 export const MIN_WITNESS_STOPS = 1;
 
-export type ReviewReason = 'fast-stretch' | 'long-straight-empty' | 'no-stop-near';
+/** With a land-use layer, the people (weighted) who would walk to a new stop first that it needs [D]. */
+export const MIN_PEOPLE_FOR_ADDITION = 50;
+
+export type ReviewReason = 'fast-stretch' | 'long-straight-empty' | 'no-stop-near' | 'no-people-near';
 
 export interface GapSite {
   lat: number;
@@ -101,14 +103,25 @@ export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number
   return out.sort((a, b) => a - b);
 }
 
-/** The evidence for a stop at a gap's site, or the reason it is a gap to review. */
-export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): Evidence {
+/**
+ * The evidence for a stop at a gap's site, or the reason it is a gap to review. With a land-use layer
+ * (`people`: those who would walk to the site first, src/model/catchments.ts peopleForNewStop) the map is
+ * the witness instead of the other routes' stops: at least MIN_PEOPLE_FOR_ADDITION people.
+ */
+export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite, people?: { people: number; newlyCovered: number }): Evidence {
   const from = feed.stops[site.fromStopIdx];
   const to = feed.stops[site.toStopIdx];
   if (site.scheduledS !== null && site.scheduledS > 0) {
     const mps = site.gapM / site.scheduledS;
     if (mps > FAST_STRETCH_MPS)
       return { ok: false, reason: 'fast-stretch', text: `scheduled at ${(mps * 3.6).toFixed(0)} km/h, faster than a local bus on streets` };
+  }
+  if (people) {
+    const n = Math.round(people.people);
+    if (people.people >= MIN_PEOPLE_FOR_ADDITION) {
+      return { ok: true, witnessStops: 0, witnessRoutes: [], text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, ${Math.round(people.newlyCovered)} of them beyond every stop's walk today` };
+    }
+    return { ok: false, reason: 'no-people-near', text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, fewer than ${MIN_PEOPLE_FOR_ADDITION}` };
   }
   const witnesses: number[] = [];
   const routes = new Set<string>();

@@ -12,6 +12,7 @@ import { selectedRoutes } from './routeSelection.js';
 import { WarningSink } from '../common/warnings.js';
 import { contextLabel, readContextFeed, type ContextFeed } from '../gtfs/readContext.js';
 import { stopsNearStations } from './contextStations.js';
+import { readLandUse, type LandUseColumn } from '../landuse/readLandUse.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
@@ -23,6 +24,8 @@ export interface AuditFeedOptions {
   observed?: string; // path of a GTFS-Realtime archive (zip or folder)
   keep?: string[]; // stop ids the optimiser must keep
   context?: string[]; // other feeds (zip, folder or URL) whose stations make nearby stops transfer points
+  landUse?: string; // path of a land-use layer (CSV points or GeoJSON)
+  landUseColumns?: LandUseColumn[] | null; // its numeric columns and weights (default population and jobs, 1 each)
   onProgress?: OnProgress;
 }
 
@@ -34,10 +37,12 @@ export interface AuditFeedOutput {
 }
 
 export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
-  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [] } = options;
+  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [], landUse: landUsePath, landUseColumns = null } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
+  // the land-use layer is read first: a bad one fails before the feed is read
+  const landUse = landUsePath !== undefined ? readLandUse(landUsePath, { columns: landUseColumns }) : undefined;
   // The later stages load while the feed is read, not before: the module loader reads each file through
   // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
   const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
@@ -67,6 +72,6 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   const stations = stopsNearStations(feed, patterns, contexts);
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations });
+  const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, landUse });
   return { feed, patterns, observed, result };
 }

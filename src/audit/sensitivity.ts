@@ -7,7 +7,7 @@ import type { Candidate, SensitivityCase } from './types.js';
 import type { ModelParams } from '../model/params.js';
 import type { PreparedPattern } from '../model/preparePattern.js';
 import { analysePattern, patternParts, type PatternAnalysis, type PatternParts } from './verdicts.js';
-import { buildCandidates, candidateKey } from './candidates.js';
+import { buildCandidates, candidateKey, type CandidateOptions } from './candidates.js';
 
 export interface SensitivitySetting {
   label: string;
@@ -43,7 +43,10 @@ export function runSensitivity(
     baseAnalyses,
     parts = preps.map((p) => patternParts(p, params)),
     reported = () => true,
+    candidateOptions = {},
   }: {
+    /** What the base candidates were built with besides the walking policy (the land-use evidence). */
+    candidateOptions?: Omit<CandidateOptions, 'maxGapM' | 'reviewGaps'>;
     /** The routes a report shows (--routes and the other filters): the case figures count their patterns and candidates only; every figure is still computed on the whole network. */
     reported?: (routeId: string) => boolean;
     settings?: SensitivitySetting[];
@@ -59,7 +62,7 @@ export function runSensitivity(
   for (const s of settings) {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
     const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }));
-    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m });
+    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { ...candidateOptions, maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     robustKeys = new Set([...robustKeys].filter((k) => keys.has(k)));
     const shown = analyses.filter((a) => reported(a.result.routeId));

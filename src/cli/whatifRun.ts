@@ -1,6 +1,7 @@
 // The work of `stopspan whatif`, loaded when the command runs (src/cli/whatif.ts registers its options):
 // the scenario checked whole, the feed read, the proposal weighed, the table, JSON or page written.
 
+import { parseLandUseWeights, readLandUse } from '../landuse/readLandUse.js';
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
@@ -30,6 +31,8 @@ export interface WhatifOpts {
   bothDirections?: boolean;
   date?: string;
   ridership?: string;
+  landUse?: string;
+  landUseWeights?: string;
   observed?: string;
   params?: string;
   json?: boolean;
@@ -103,13 +106,17 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
     }
     const params = mergeParams(opts.params, paramOverrides(opts));
-    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params] };
+    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.landUse, opts.observed, opts.params] };
+    if (opts.landUseWeights !== undefined && opts.landUse === undefined) throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: opts.landUseWeights });
+    const landUseColumns = opts.landUseWeights !== undefined ? parseLandUseWeights(opts.landUseWeights) : null;
     if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
     const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
     let feed: Feed;
     let patterns: PatternSet;
     let result: ScenarioResult;
     try {
+      // the land-use layer first: a bad one fails before the feed is read
+      const landUse = opts.landUse !== undefined ? readLandUse(opts.landUse, { columns: landUseColumns }) : undefined;
       feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
       patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
       if (patterns.patterns.length === 0) {
@@ -117,7 +124,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       }
       const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
       progress.onProgress?.({ stage: 'weighing the scenario' });
-      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, onProgress: progress.onProgress });
+      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, landUse, onProgress: progress.onProgress });
     } finally {
       progress.done();
     }

@@ -96,7 +96,7 @@ export function whatifHtml(result: ScenarioResult, strips: WhatifStrip[], option
   const maxGapM = Number(result.params.max_gap_m?.value ?? 800);
   const t = result.totals;
   const net = t.netPaxMinPerDay;
-  const assumed = result.patterns.some((e) => e.demandSource === 'assumed');
+  const assumed = result.patterns.some((e) => e.demandSource !== 'observed');
   const tag = assumed ? ' <span class="badge assumed">assumed demand</span>' : '';
   const stripBy = new Map(strips.map((s) => [s.patternId, s]));
   const label = (e: ScenarioPatternEffect): string => {
