@@ -131,6 +131,8 @@ export const PATTERN_COLUMNS: CsvColumn<PatternResult>[] = [
   num('observed_cruise_speed_mps', (p) => p.observed?.cruiseSpeedMps ?? null, 2),
   num('observed_stop_share', (p) => p.observed?.stopShare ?? null, 3),
   text('lost_time_observed_parts', (p) => p.observed?.lostTimeParts.join('+') ?? ''),
+  // with a land-use layer: people (as weighted) within a walk of a stop of the pattern; empty without one
+  num('people_covered', (p) => p.peopleCovered ?? null, 1),
 ];
 
 export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
@@ -181,6 +183,8 @@ export function candidateColumns(demandSource: string): CsvColumn<Candidate>[] {
     text('to_stop_id', (c) => c.toStopId),
     num('gap_m', (c) => c.gapM, 1),
     text('evidence', (c) => c.evidence),
+    // with a land-use layer, for a removal: people within a walk of the stop and of no other stop served
+    num('people_left_uncovered', (c) => c.peopleUncovered ?? null, 1),
   ];
 }
 
