@@ -97,6 +97,7 @@ function patternProperties(p: PatternResult): Feature<LineString>['properties'] 
     observed_cruise_speed_mps: r2(p.observed?.cruiseSpeedMps ?? null),
     observed_stop_share: p.observed?.stopShare == null ? null : cellNumber(p.observed.stopShare, 3),
     lost_time_observed_parts: p.observed?.lostTimeParts.join('+') ?? '',
+    people_covered: r1(p.peopleCovered ?? null),
   };
 }
 
