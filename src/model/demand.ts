@@ -140,7 +140,8 @@ export function assumedDemand(
   };
   let decayM = Infinity;
   const longest = meanOf(Infinity);
-  const tooShortForTrip = longest < meanTripM * 0.99;
+  // a pattern with nobody in its catchments (land use) holds no trips at all, not trips too short
+  const tooShortForTrip = longest < meanTripM * 0.99 && len.some((x) => x > 0);
   if (longest > meanTripM && meanTripM > 0) {
     // the mean grows with the decay (an exponential family): bisect on its logarithm. The decay stays at
     // least a fiftieth of the longest gap between neighbouring stops, so no neighbours' riders vanish in
