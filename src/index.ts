@@ -12,6 +12,7 @@ export * from './check/index.js';
 export * from './compare/index.js';
 export * from './whatif/index.js';
 export * from './realtime/index.js';
+export * from './landuse/index.js';
 export * from './report/index.js';
 export * from './history/index.js';
 export { version } from './version.js';
