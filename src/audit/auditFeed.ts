@@ -12,7 +12,8 @@ import { selectedRoutes } from './routeSelection.js';
 import { WarningSink } from '../common/warnings.js';
 import { contextLabel, readContextFeed, type ContextFeed } from '../gtfs/readContext.js';
 import { stopsNearStations } from './contextStations.js';
-import { readLandUse, type LandUseColumn } from '../landuse/readLandUse.js';
+import type { LandUseColumn } from '../landuse/readLandUse.js';
+import { readLandUseAside } from '../landuse/readLandUseAside.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
@@ -41,8 +42,9 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
-  // the land-use layer is read first: a bad one fails before the feed is read
-  const landUse = landUsePath !== undefined ? readLandUse(landUsePath, { columns: landUseColumns }) : undefined;
+  // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
+  const landUseRead = landUsePath !== undefined ? readLandUseAside(landUsePath, { columns: landUseColumns }) : undefined;
+  landUseRead?.catch(() => undefined); // a failure surfaces at the await below
   // The later stages load while the feed is read, not before: the module loader reads each file through
   // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
   const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
@@ -70,6 +72,7 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   }
   feed.warnings.push(...contextWarnings.list());
   const stations = stopsNearStations(feed, patterns, contexts);
+  const landUse = await landUseRead;
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
   const result = await runAudit(feed, patterns, { params, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, landUse });

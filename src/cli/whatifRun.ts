@@ -1,7 +1,8 @@
 // The work of `stopspan whatif`, loaded when the command runs (src/cli/whatif.ts registers its options):
 // the scenario checked whole, the feed read, the proposal weighed, the table, JSON or page written.
 
-import { parseLandUseWeights, readLandUse } from '../landuse/readLandUse.js';
+import { parseLandUseWeights } from '../landuse/readLandUse.js';
+import { readLandUseAside } from '../landuse/readLandUseAside.js';
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
@@ -115,14 +116,16 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
     let patterns: PatternSet;
     let result: ScenarioResult;
     try {
-      // the land-use layer first: a bad one fails before the feed is read
-      const landUse = opts.landUse !== undefined ? readLandUse(opts.landUse, { columns: landUseColumns }) : undefined;
+      // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
+      const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
+      landUseRead?.catch(() => undefined); // a failure surfaces at the await below
       feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
       patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
       if (patterns.patterns.length === 0) {
         throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
       }
       const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
+      const landUse = await landUseRead;
       progress.onProgress?.({ stage: 'weighing the scenario' });
       result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, landUse, onProgress: progress.onProgress });
     } finally {

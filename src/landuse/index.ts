@@ -3,3 +3,4 @@
 export * from './readLandUse.js';
 export * from './polygonPieces.js';
 export * from './pointGrid.js';
+export * from './readLandUseAside.js';

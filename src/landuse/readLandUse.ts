@@ -235,18 +235,18 @@ function isObject(x: unknown): x is Record<string, unknown> {
   return typeof x === 'object' && x !== null && !Array.isArray(x);
 }
 
-/** A GeoJSON position: [lon, lat] numbers in range. */
-function position(p: unknown, file: string, feature: string): [number, number] {
+/** A GeoJSON position checked: [lon, lat] numbers in range (the array itself, an altitude after them allowed). */
+function position(p: unknown, file: string, feature: string): number[] {
   if (!Array.isArray(p) || p.length < 2 || typeof p[0] !== 'number' || typeof p[1] !== 'number') {
     throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a position must be [lon, lat] numbers`, { file, column: 'geometry', value: JSON.stringify(p)?.slice(0, 80) });
   }
-  const lon = coordinate(p[0], file, { feature }, 'lon');
-  const lat = coordinate(p[1], file, { feature }, 'lat');
-  return [lon, lat];
+  if (!(p[0] >= -180 && p[0] <= 180)) coordinate(p[0], file, { feature }, 'lon');
+  if (!(p[1] >= -90 && p[1] <= 90)) coordinate(p[1], file, { feature }, 'lat');
+  return p as number[];
 }
 
-/** A polygon's rings checked: arrays of four or more positions, closed, with an area above zero. */
-function polygonRings(coords: unknown, file: string, feature: string, b: LayerBuilder): Ring[] {
+/** A polygon's rings checked (arrays of four or more positions, closed, with an area above zero), and its area. */
+function polygonRings(coords: unknown, file: string, feature: string, b: LayerBuilder): { rings: Ring[]; areaM2: number } {
   const bad = (why: string): StopspanError => new StopspanError('bad-land-use', `${feature}: invalid geometry: ${why}`, { file, column: 'geometry' });
   if (!Array.isArray(coords) || coords.length === 0) throw bad('a polygon needs at least one ring');
   const rings: Ring[] = [];
@@ -259,9 +259,9 @@ function polygonRings(coords: unknown, file: string, feature: string, b: LayerBu
     if (first[0] !== last[0] || first[1] !== last[1]) throw bad(`ring ${r + 1} is not closed (its last position must repeat its first)`);
     rings.push(pts);
   });
-  if (!(polygonAreaM2(rings.slice(0, 1)) > 0)) throw bad('the outer ring encloses no area');
-  if (!(polygonAreaM2(rings) > 0)) throw bad('the holes cover the whole polygon');
-  return rings;
+  const areaM2 = polygonAreaM2(rings);
+  if (!(areaM2 > 0)) throw bad(rings.length > 1 && polygonAreaM2(rings.slice(0, 1)) > 0 ? 'the holes cover the whole polygon' : 'the outer ring encloses no area');
+  return { rings, areaM2 };
 }
 
 function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer {
@@ -316,11 +316,10 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
         if (!Array.isArray(polys) || polys.length === 0) throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a MultiPolygon needs at least one polygon`, { file, column: 'geometry' });
         const parts = polys.map((c) => polygonRings(c, file, feature, builder));
         // the people over the parts by area, then over each part's pieces
-        const areas = parts.map((rings) => polygonAreaM2(rings));
-        const total = areas.reduce((s, a) => s + a, 0);
-        parts.forEach((rings, p) => {
-          for (const piece of polygonPieces(rings)) builder.point(k, piece.lat, piece.lon, values, (areas[p] / total) * piece.share, feature);
-        });
+        const total = parts.reduce((s, p) => s + p.areaM2, 0);
+        for (const { rings, areaM2 } of parts) {
+          for (const piece of polygonPieces(rings)) builder.point(k, piece.lat, piece.lon, values, (areaM2 / total) * piece.share, feature);
+        }
         break;
       }
       default:
