@@ -23,6 +23,7 @@
 import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
 import { WALK_RADIUS_M, WALK_REACH_M } from '../model/walkReach.js';
+import { PointGrid } from '../landuse/pointGrid.js';
 
 export { WALK_RADIUS_M, WALK_DETOUR, WALK_REACH_M } from '../model/walkReach.js';
 /** Scheduled speed over a gap above which it is not a street a local bus stops on, m/s (50 km/h) [D]. */
@@ -55,51 +56,31 @@ export interface GapSite {
 export type Evidence =
   { ok: true; witnessStops: number; witnessRoutes: string[]; text: string } | { ok: false; reason: ReviewReason; text: string };
 
-const CELL_DEG = 0.002; // about 220 m north-south
-const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter drops nothing inside the reach
-
-/** A grid of the stops served on the analysis date, with the routes serving each. */
+/** The stops served on the analysis date on a grid (src/landuse/pointGrid.ts), with the routes serving each. */
 export interface StopIndex {
-  cells: Map<string, number[]>;
+  grid: PointGrid;
   routesAt: Map<number, Set<string>>;
 }
 
 export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>): StopIndex {
-  const cells = new Map<string, number[]>();
   const routesAt = new Map<number, Set<string>>();
   for (const [s, routeId] of served) {
     let r = routesAt.get(s);
-    if (!r) {
-      routesAt.set(s, (r = new Set()));
-      const st = feed.stops[s];
-      if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) continue;
-      const key = `${Math.floor(st.lat / CELL_DEG)},${Math.floor(st.lon / CELL_DEG)}`;
-      let c = cells.get(key);
-      if (!c) cells.set(key, (c = []));
-      c.push(s);
-    }
+    if (!r) routesAt.set(s, (r = new Set()));
     r.add(routeId);
   }
-  return { cells, routesAt };
+  const grid = new PointGrid(
+    feed.stops.map((st) => st.lat),
+    feed.stops.map((st) => st.lon),
+    routesAt.keys(),
+  );
+  return { grid, routesAt };
 }
 
 /** Stops of the index within reachM of a point (straight line), in index order. */
 export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number, reachM: number): number[] {
   const out: number[] = [];
-  const dLat = reachM / M_PER_DEG_LAT;
-  const dLon = reachM / (M_PER_DEG_LAT * Math.max(0.01, Math.cos((Math.abs(lat) + dLat) * (Math.PI / 180))));
-  const i0 = Math.floor((lat - dLat) / CELL_DEG);
-  const i1 = Math.floor((lat + dLat) / CELL_DEG);
-  const j0 = Math.floor((lon - dLon) / CELL_DEG);
-  const j1 = Math.floor((lon + dLon) / CELL_DEG);
-  for (let i = i0; i <= i1; i++) {
-    for (let j = j0; j <= j1; j++) {
-      for (const s of index.cells.get(`${i},${j}`) ?? []) {
-        const st = feed.stops[s];
-        if (haversineM(lat, lon, st.lat, st.lon) <= reachM) out.push(s);
-      }
-    }
-  }
+  index.grid.near(lat, lon, reachM, (s) => out.push(s));
   return out.sort((a, b) => a - b);
 }
 
