@@ -84,8 +84,11 @@ describe('stopspan audit --land-use with a good file', () => {
     const patterns = readFileSync(join(out, 'patterns.csv'), 'utf8').split(/\r?\n/);
     expect(patterns[0].split(',').at(-1)).toBe('people_covered');
     expect(readFileSync(join(out, 'candidates.csv'), 'utf8').split(/\r?\n/)[0].split(',').at(-1)).toBe('people_left_uncovered');
-    const w = await runCli(['whatif', DEMO, '--remove', 'MKT-12-a', '--land-use', layer, '-q']);
+    const page = join(tmp, 'whatif-page');
+    const w = await runCli(['whatif', DEMO, '--remove', 'MKT-12-a', '--land-use', layer, '--out', page, '-q']);
     expect(w.code, w.stderr).toBe(0);
     expect(w.stdout).toMatch(/land use: 1,050 of 1,200 people within a walk of a stop before, [\d,]+ after/);
+    expect(readFileSync(join(page, 'index.html'), 'utf8')).toMatch(/Land use: 1,050 of 1,200 people within a walk of a stop before the change, [\d,]+ after\./);
+    expect(JSON.parse(readFileSync(join(page, 'result.json'), 'utf8')).land_use.people_covered_before).toBe(1050);
   });
 });
