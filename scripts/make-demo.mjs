@@ -1,6 +1,8 @@
 // Writes the demo city of Vellmoor: fixtures/demo/demo-feed.zip (GTFS), fixtures/demo/ridership.csv
-// (stop-level boardings and alightings per weekday) and fixtures/demo/demo-feed-next.zip (the next
-// feed version: a few stops removed, one moved about 60 m, one renamed) for the compare demo.
+// (stop-level boardings and alightings per weekday), fixtures/demo/demo-feed-next.zip (the next
+// feed version: a few stops removed, one moved about 60 m, one renamed) for the compare demo, and
+// fixtures/demo/land-use.geojson (where Vellmoor's people live and work: square blocks with residents and
+// jobs along the routes, none on the estuary the bridge crosses, and Brackwater Park, a polygon with nobody).
 // Deterministic: a seeded PRNG, a fixed zip timestamp and a fixed time zone, so the bytes are the same
 // on every run (the test regenerates and compares).
 //
@@ -483,6 +485,66 @@ function buildFeed({ next }) {
   return { files, ridership: table(['stop_id', 'route_id', 'direction_id', 'boardings', 'alightings'], ridershipRows) };
 }
 
+// ---------------------------------------------------------------------------------------------------
+// The land-use layer: blocks of BLOCK_M metres within LAND_USE_REACH_M of a route's road, residents thinning
+// out from the centre, jobs gathered in the centre and on the Eastfield estate; the estuary (the bridge's
+// stretch) is water and Brackwater Park a block-free polygon with no residents and no jobs.
+
+const BLOCK_M = 250;
+const LAND_USE_REACH_M = 700;
+const ESTUARY = { yFrom: 3950, yTo: 6150 }; // no blocks between these northings: water under route 20's bridge
+const PARK = [[-2600, 700], [-1300, 700], [-1300, 1700], [-2600, 1700]]; // along College Rd (route 40)
+
+function nearRoad(x, y, lines) {
+  for (const line of lines) {
+    for (const [px, py] of line.points) if (Math.hypot(px - x, py - y) <= LAND_USE_REACH_M) return true;
+  }
+  return false;
+}
+
+function inBox(x, y, poly) {
+  const xs = poly.map((p) => p[0]);
+  const ys = poly.map((p) => p[1]);
+  return x >= Math.min(...xs) && x <= Math.max(...xs) && y >= Math.min(...ys) && y <= Math.max(...ys);
+}
+
+function ringOf(points) {
+  const ring = points.map((xy) => {
+    const [lat, lon] = toLatLon(xy);
+    return [Number(fmt6(lon)), Number(fmt6(lat))];
+  });
+  ring.push(ring[0]);
+  return ring;
+}
+
+/** The land-use layer as GeoJSON text: one Polygon feature per block, and the park. */
+function buildLandUse() {
+  const rand = prng(seedOf('land-use:20261102'));
+  const lines = ROUTES.map((r) => polyline(densify(roadLine(r).points, 100)));
+  const features = [];
+  for (let y = -4000; y < 8600; y += BLOCK_M) {
+    for (let x = -11000; x < 6600; x += BLOCK_M) {
+      const cx = x + BLOCK_M / 2;
+      const cy = y + BLOCK_M / 2;
+      if (!nearRoad(cx, cy, lines)) continue;
+      if (cy > ESTUARY.yFrom && cy < ESTUARY.yTo) continue;
+      if (inBox(cx, cy, PARK)) continue;
+      const r = Math.hypot(cx, cy);
+      const eastfield = cx > 800 && cx < 6400 && cy > -3200 && cy < -300; // the industrial estate
+      const population = eastfield ? Math.round(rand() * 40) : Math.round((0.5 + rand()) * 420 * Math.exp(-r / 5000));
+      const jobs = Math.round((0.3 + rand()) * (eastfield ? 380 : 900 * Math.exp(-r / 1500) + 40));
+      features.push({
+        type: 'Feature',
+        properties: { block: `B${x}_${y}`, population, jobs },
+        geometry: { type: 'Polygon', coordinates: [ringOf([[x, y], [x + BLOCK_M, y], [x + BLOCK_M, y + BLOCK_M], [x, y + BLOCK_M]])] },
+      });
+    }
+  }
+  features.push({ type: 'Feature', properties: { block: 'Brackwater Park', population: 0, jobs: 0 }, geometry: { type: 'Polygon', coordinates: [ringOf(PARK)] } });
+  // one feature a line: small diffs when the generator changes
+  return `{"type":"FeatureCollection","features":[\n${features.map((f) => JSON.stringify(f)).join(',\n')}\n]}\n`;
+}
+
 function writeZip(path, files) {
   return new Promise((resolvePromise, reject) => {
     const zip = new yazl.ZipFile();
@@ -493,7 +555,7 @@ function writeZip(path, files) {
   });
 }
 
-/** Writes demo-feed.zip, demo-feed-next.zip and ridership.csv into outDir. */
+/** Writes demo-feed.zip, demo-feed-next.zip, ridership.csv and land-use.geojson into outDir. */
 export async function makeDemo(outDir) {
   mkdirSync(outDir, { recursive: true });
   const base = buildFeed({ next: false });
@@ -501,6 +563,7 @@ export async function makeDemo(outDir) {
   await writeZip(join(outDir, 'demo-feed.zip'), base.files);
   await writeZip(join(outDir, 'demo-feed-next.zip'), nextFeed.files);
   writeFileSync(join(outDir, 'ridership.csv'), base.ridership);
+  writeFileSync(join(outDir, 'land-use.geojson'), buildLandUse());
 }
 
 export const demoEdits = { removed: NEXT_REMOVED, moved: NEXT_MOVED, renamed: NEXT_RENAMED };

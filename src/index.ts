@@ -118,4 +118,7 @@ export { writeReport, REPORT_FORMATS, type ReportFormat, type WriteReportOptions
 export { summaryJson, SUMMARY_SCHEMA_VERSION } from './report/summaryJson.js';
 export type { Units } from './report/units.js';
 
+// the land-use layer: where people live and work (read by auditFeed and whatif with --land-use)
+export { readLandUse, parseLandUseWeights, DEFAULT_LAND_USE_COLUMNS, type LandUseColumn, type LandUseLayer } from './landuse/readLandUse.js';
+
 export { version } from './version.js';

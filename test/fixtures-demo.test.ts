@@ -55,7 +55,7 @@ afterAll(() => {
 
 describe('the demo generator', () => {
   it('regenerates byte for byte what is committed', () => {
-    for (const f of ['demo-feed.zip', 'demo-feed-next.zip', 'ridership.csv']) {
+    for (const f of ['demo-feed.zip', 'demo-feed-next.zip', 'ridership.csv', 'land-use.geojson']) {
       const fresh = readFileSync(join(tmp, f));
       const committed = readFileSync(join(DEMO, f));
       expect(fresh.equals(committed), `${f} regenerated differs from fixtures/demo/${f}: run npm run demo:generate`).toBe(true);

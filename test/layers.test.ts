@@ -19,7 +19,7 @@ const FLOORS: string[][] = [
   ['common', 'version.ts'],
   ['gtfs'],
   ['network'],
-  ['realtime'],
+  ['realtime', 'landuse'],
   ['model'],
   ['audit', 'check'],
   ['whatif', 'compare', 'history'], // weigh on the audit's prepared patterns, compare two audits, record runs

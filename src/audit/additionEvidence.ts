@@ -18,17 +18,17 @@
 //     straight" (named so in the reason; it fails on the witness rule like any other).
 // A station of a context feed (--context: the subway, regional rail) within the same walk of the site, and
 // in the middle of the gap by the same rule, is a witness too: people walk to it; the evidence names it.
+// With a land-use layer the people are the witness: an addition needs at least MIN_PEOPLE_FOR_ADDITION (50)
+// people, residents and jobs as weighted, within a walk of the site and nearer to it than to any stop
+// served today; the fast-stretch rule stands either way.
 
 import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
+import { WALK_RADIUS_M, WALK_REACH_M } from '../model/walkReach.js';
+import { PointGrid } from '../landuse/pointGrid.js';
 import { stationNote, type StationPoint } from './contextStations.js';
 
-/** Walk distance a rider accepts to a stop, metres [M, common practice]. */
-export const WALK_RADIUS_M = 400;
-/** Walked distance over straight-line distance on a street grid [M, common practice]. */
-export const WALK_DETOUR = 1.3;
-/** The straight-line reach of a walk of WALK_RADIUS_M. */
-export const WALK_REACH_M = WALK_RADIUS_M / WALK_DETOUR;
+export { WALK_RADIUS_M, WALK_DETOUR, WALK_REACH_M } from '../model/walkReach.js';
 /** Scheduled speed over a gap above which it is not a street a local bus stops on, m/s (50 km/h) [D]. */
 export const FAST_STRETCH_MPS = 50 / 3.6;
 /** A gap at least this long whose ends' straight line is this close to its length is long and straight. */
@@ -39,7 +39,10 @@ export const WITNESS_END_RATIO = 0.7;
 /** How many witness stops an addition needs. */
 export const MIN_WITNESS_STOPS = 1;
 
-export type ReviewReason = 'fast-stretch' | 'long-straight-empty' | 'no-stop-near';
+/** With a land-use layer, the people (weighted) who would walk to a new stop first that it needs [D]. */
+export const MIN_PEOPLE_FOR_ADDITION = 50;
+
+export type ReviewReason = 'fast-stretch' | 'long-straight-empty' | 'no-stop-near' | 'no-people-near';
 
 export interface GapSite {
   lat: number;
@@ -57,73 +60,60 @@ export type Evidence =
   | { ok: true; witnessStops: number; witnessRoutes: string[]; witnessStations?: string[]; text: string }
   | { ok: false; reason: ReviewReason; text: string };
 
-const CELL_DEG = 0.002; // about 220 m north-south
-const M_PER_DEG_LAT = 111_000; // a little under the metres per degree anywhere, so the pre-filter drops nothing inside the reach
-
-/** A grid of the stops served on the analysis date, with the routes serving each. */
+/** The stops served on the analysis date on a grid (src/landuse/pointGrid.ts), with the routes serving each. */
 export interface StopIndex {
-  cells: Map<string, number[]>;
+  grid: PointGrid;
   routesAt: Map<number, Set<string>>;
-  /** The context feeds' stations on the same grid (none without --context). */
-  stationCells: Map<string, StationPoint[]>;
-  stationCount: number;
+  /** The context feeds' stations (none without --context), and a grid of them by position in that list. */
+  stations: readonly StationPoint[];
+  stationGrid: PointGrid;
 }
 
 export function buildStopIndex(feed: Feed, served: Iterable<[number, string]>, stations: readonly StationPoint[] = []): StopIndex {
-  const stationCells = new Map<string, StationPoint[]>();
-  for (const p of stations) {
-    const key = `${Math.floor(p.lat / CELL_DEG)},${Math.floor(p.lon / CELL_DEG)}`;
-    let c = stationCells.get(key);
-    if (!c) stationCells.set(key, (c = []));
-    c.push(p);
-  }
-  const cells = new Map<string, number[]>();
   const routesAt = new Map<number, Set<string>>();
   for (const [s, routeId] of served) {
     let r = routesAt.get(s);
-    if (!r) {
-      routesAt.set(s, (r = new Set()));
-      const st = feed.stops[s];
-      if (!st || !Number.isFinite(st.lat) || !Number.isFinite(st.lon)) continue;
-      const key = `${Math.floor(st.lat / CELL_DEG)},${Math.floor(st.lon / CELL_DEG)}`;
-      let c = cells.get(key);
-      if (!c) cells.set(key, (c = []));
-      c.push(s);
-    }
+    if (!r) routesAt.set(s, (r = new Set()));
     r.add(routeId);
   }
-  return { cells, routesAt, stationCells, stationCount: stations.length };
-}
-
-/** Every item of a grid's cells that may lie within reachM of a point (the cells the reach touches). */
-function* cellsNear<T>(cells: Map<string, T[]>, lat: number, lon: number, reachM: number): Iterable<T> {
-  const dLat = reachM / M_PER_DEG_LAT;
-  const dLon = reachM / (M_PER_DEG_LAT * Math.max(0.01, Math.cos((Math.abs(lat) + dLat) * (Math.PI / 180))));
-  const i0 = Math.floor((lat - dLat) / CELL_DEG);
-  const i1 = Math.floor((lat + dLat) / CELL_DEG);
-  const j0 = Math.floor((lon - dLon) / CELL_DEG);
-  const j1 = Math.floor((lon + dLon) / CELL_DEG);
-  for (let i = i0; i <= i1; i++) for (let j = j0; j <= j1; j++) yield* cells.get(`${i},${j}`) ?? [];
+  const grid = new PointGrid(
+    feed.stops.map((st) => st.lat),
+    feed.stops.map((st) => st.lon),
+    routesAt.keys(),
+  );
+  const stationGrid = new PointGrid(
+    stations.map((p) => p.lat),
+    stations.map((p) => p.lon),
+  );
+  return { grid, routesAt, stations, stationGrid };
 }
 
 /** Stops of the index within reachM of a point (straight line), in index order. */
 export function stopsNear(feed: Feed, index: StopIndex, lat: number, lon: number, reachM: number): number[] {
   const out: number[] = [];
-  for (const s of cellsNear(index.cells, lat, lon, reachM)) {
-    const st = feed.stops[s];
-    if (haversineM(lat, lon, st.lat, st.lon) <= reachM) out.push(s);
-  }
+  index.grid.near(lat, lon, reachM, (s) => out.push(s));
   return out.sort((a, b) => a - b);
 }
 
-/** The evidence for a stop at a gap's site, or the reason it is a gap to review. */
-export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): Evidence {
+/**
+ * The evidence for a stop at a gap's site, or the reason it is a gap to review. With a land-use layer
+ * (`people`: those who would walk to the site first, src/model/catchments.ts peopleForNewStop) the map is
+ * the witness instead of the other routes' stops: at least MIN_PEOPLE_FOR_ADDITION people.
+ */
+export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite, people?: { people: number; newlyCovered: number }): Evidence {
   const from = feed.stops[site.fromStopIdx];
   const to = feed.stops[site.toStopIdx];
   if (site.scheduledS !== null && site.scheduledS > 0) {
     const mps = site.gapM / site.scheduledS;
     if (mps > FAST_STRETCH_MPS)
       return { ok: false, reason: 'fast-stretch', text: `scheduled at ${(mps * 3.6).toFixed(0)} km/h, faster than a local bus on streets` };
+  }
+  if (people) {
+    const n = Math.round(people.people);
+    if (people.people >= MIN_PEOPLE_FOR_ADDITION) {
+      return { ok: true, witnessStops: 0, witnessRoutes: [], text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, ${Math.round(people.newlyCovered)} of them beyond every stop's walk today` };
+    }
+    return { ok: false, reason: 'no-people-near', text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, fewer than ${MIN_PEOPLE_FOR_ADDITION}` };
   }
   const witnesses: number[] = [];
   const routes = new Set<string>();
@@ -140,13 +130,12 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
   }
   // context stations in the middle of the gap, nearest first
   const stations: { d: number; note: string }[] = [];
-  for (const p of cellsNear(index.stationCells, site.lat, site.lon, WALK_REACH_M)) {
-    const dSite = haversineM(site.lat, site.lon, p.lat, p.lon);
-    if (!(dSite <= WALK_REACH_M)) continue;
-    if (from && !(dSite <= WITNESS_END_RATIO * haversineM(from.lat, from.lon, p.lat, p.lon))) continue;
-    if (to && !(dSite <= WITNESS_END_RATIO * haversineM(to.lat, to.lon, p.lat, p.lon))) continue;
+  index.stationGrid.near(site.lat, site.lon, WALK_REACH_M, (i, dSite) => {
+    const p = index.stations[i];
+    if (from && !(dSite <= WITNESS_END_RATIO * haversineM(from.lat, from.lon, p.lat, p.lon))) return;
+    if (to && !(dSite <= WITNESS_END_RATIO * haversineM(to.lat, to.lon, p.lat, p.lon))) return;
     stations.push({ d: dSite, note: stationNote(p, dSite) });
-  }
+  });
   stations.sort((a, b) => a.d - b.d || a.note.localeCompare(b.note));
   if (witnesses.length + stations.length >= MIN_WITNESS_STOPS) {
     const rs = [...routes].sort();
@@ -155,7 +144,7 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite): E
     if (stations.length) said.push(`${stations.map((x) => x.note).join('; ')} from the site, within a walk`);
     return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, ...(stations.length ? { witnessStations: stations.map((x) => x.note) } : {}), text: said.join('; ') };
   }
-  const nothing = index.stationCount > 0 ? 'no stop of another route nor station of a context feed' : 'no stop of another route';
+  const nothing = index.stations.length > 0 ? 'no stop of another route nor station of a context feed' : 'no stop of another route';
   const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;
   if (site.gapM >= STRAIGHT_MIN_M && chordM >= STRAIGHT_RATIO * site.gapM)
     return {

@@ -11,6 +11,8 @@ import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
 import { contextStops } from './contextStations.js';
 import { normalizeParams, type ParamsInput } from '../model/params.js';
+import type { LandUseColumn } from '../landuse/readLandUse.js';
+import { readLandUseAside } from '../landuse/readLandUseAside.js';
 
 export interface AuditFeedOptions {
   date?: string; // YYYY-MM-DD; default: the weekday in the feed's range with the most trips
@@ -22,6 +24,8 @@ export interface AuditFeedOptions {
   observed?: string; // path of a GTFS-Realtime archive (zip or folder)
   keep?: string[]; // stop ids the optimiser must keep
   context?: string[]; // other feeds (zip, folder or URL) whose stations make nearby stops transfer points
+  landUse?: string; // path of a land-use layer (CSV points or GeoJSON)
+  landUseColumns?: LandUseColumn[] | null; // its numeric columns and weights (default population and jobs, 1 each)
   onProgress?: OnProgress;
 }
 
@@ -33,12 +37,15 @@ export interface AuditFeedOutput {
 }
 
 export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
-  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [] } = options;
+  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [], landUse: landUsePath, landUseColumns = null } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
   // checked before the feed is read, so a bad parameter costs no reading; runAudit takes them as they are
   const checkedParams = normalizeParams(params);
+  // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
+  const landUseRead = landUsePath !== undefined ? readLandUseAside(landUsePath, { columns: landUseColumns }) : undefined;
+  landUseRead?.catch(() => undefined); // a failure surfaces at the await below
   // The later stages load while the feed is read, not before: the module loader reads each file through
   // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
   const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
@@ -56,8 +63,9 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
   const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
+  const landUse = await landUseRead;
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params: checkedParams, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations });
+  const result = await runAudit(feed, patterns, { params: checkedParams, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations, landUse });
   return { feed, patterns, observed, result };
 }

@@ -16,6 +16,10 @@ export interface CandidateOptions {
   reviewGaps?: ReviewGap[];
   /** The context feeds' stations (--context): evidence for an addition, as another route's stop is. */
   contextStations?: readonly StationPoint[];
+  /** With a land-use layer: the people a new stop at a place would serve (src/model/catchments.ts peopleForNewStop), the evidence for an addition. */
+  peopleNear?: (lat: number, lon: number) => { people: number; newlyCovered: number };
+  /** With a land-use layer: the people within a walk of a feed stop and of no other stop served. */
+  onlyStopPeople?: (stopIdx: number) => number;
 }
 
 interface Group<T> {
@@ -35,7 +39,7 @@ export function candidateKey(c: Pick<Candidate, 'action' | 'stopId' | 'lat' | 'l
   return c.action === 'remove' ? `remove:${c.stopId}` : `add:${c.lat.toFixed(6)},${c.lon.toFixed(6)}`;
 }
 
-export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps, contextStations = [] }: CandidateOptions): Candidate[] {
+export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps, contextStations = [], peopleNear, onlyStopPeople }: CandidateOptions): Candidate[] {
   const fixed = new Set<number>();
   for (const a of analyses) for (const s of a.fixedStopIdx) fixed.add(s);
   const byPattern = new Map(analyses.map((a) => [a.result.patternId, a]));
@@ -81,7 +85,9 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   const out: Candidate[] = [];
   for (const [stopIdx, g] of accepted) {
     const stop = feed.stops[stopIdx];
-    out.push(toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, { fromStopId: '', toStopId: '', gapM: null }));
+    const c = toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, { fromStopId: '', toStopId: '', gapM: null });
+    if (onlyStopPeople) c.peopleUncovered = onlyStopPeople(stopIdx);
+    out.push(c);
   }
 
   // additions, one decision per pair of stops around a wide gap
@@ -107,7 +113,12 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
     // the fastest schedule over the gap speaks for the stretch: an express run is what a bridge allows
     let scheduledS: number | null = null;
     for (const e of g.effects) if (e.scheduledS !== null && e.scheduledS > 0 && (scheduledS === null || e.scheduledS < scheduledS)) scheduledS = e.scheduledS;
-    const ev = additionEvidence(feed, stopIndex!, { lat: e0.lat, lon: e0.lon, fromStopIdx: e0.fromStopIdx, toStopIdx: e0.toStopIdx, gapM: e0.gapM, scheduledS, ownRoutes: new Set(g.effects.map((e) => e.routeId)) });
+    const ev = additionEvidence(
+      feed,
+      stopIndex!,
+      { lat: e0.lat, lon: e0.lon, fromStopIdx: e0.fromStopIdx, toStopIdx: e0.toStopIdx, gapM: e0.gapM, scheduledS, ownRoutes: new Set(g.effects.map((e) => e.routeId)) },
+      peopleNear?.(e0.lat, e0.lon),
+    );
     if (!ev.ok) {
       review.push({ fromStopId: from?.id ?? '', toStopId: to?.id ?? '', name, lat: e0.lat, lon: e0.lon, gapM: e0.gapM, routeIds: [...new Set(g.effects.map((e) => e.routeId))].sort(), patternIds: g.effects.map((e) => e.patternId), reason: ev.reason, detail: ev.text });
       continue;

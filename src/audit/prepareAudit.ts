@@ -1,5 +1,6 @@
 // The shared first half of an audit and a what-if: parameters normalised once, the keep-list checked,
-// demand per pattern (ridership file or assumed), and every pattern prepared for the model.
+// demand per pattern (ridership file, else assumed riders placed by a land-use layer's people, else assumed
+// spread evenly), the land-use catchments, and every pattern prepared for the model.
 
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
@@ -14,6 +15,8 @@ import { loadRidership } from '../model/ridership.js';
 import { localCoverByGap } from './localCover.js';
 import { transferPoints } from './transfers.js';
 import { expressStretches } from './expressStretch.js';
+import { buildCatchments, type Catchments } from '../model/catchments.js';
+import type { LandUseLayer } from '../landuse/readLandUse.js';
 
 export interface PrepareAuditOptions {
   /** Parameters by name (the rest at their defaults), or what normalizeParams returned. */
@@ -26,6 +29,8 @@ export interface PrepareAuditOptions {
   forceTransfers?: boolean;
   /** Stops within walking distance of another mode's station (stop index -> note naming it), from --context. */
   stations?: ReadonlyMap<number, string>;
+  /** A land-use layer (readLandUse): catchments and coverage; without a ridership file, demand follows its people. */
+  landUse?: LandUseLayer;
 }
 
 export interface PreparedAudit {
@@ -33,9 +38,11 @@ export interface PreparedAudit {
   params: Readonly<ModelParams>;
   preps: PreparedPattern[];
   warnings: WarningSink;
+  /** The land-use catchments and coverage, or null without a land-use layer. */
+  catchments: Catchments | null;
 }
 
-export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations }: PrepareAuditOptions = {}): PreparedAudit {
+export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations, landUse }: PrepareAuditOptions = {}): PreparedAudit {
   // the one place a library call's parameters are checked (the command's come checked, and pass as they are)
   const np = normalizeParams(rawParams);
   const params = np.values;
@@ -52,6 +59,13 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
     for (let j = 0; j < pattern.stopIdx.length; j++) if (pattern.passengerStop[j] !== false) modelStops.push(j);
     return { pattern, modelStops, posM: modelStops.map((j) => pattern.distAlongM[j]) };
   });
+  const catchments = landUse
+    ? buildCatchments(
+        landUse,
+        feed,
+        layouts.filter((l) => l.modelStops.length >= 2).map((l) => ({ patternId: l.pattern.id, stops: l.modelStops.map((j) => l.pattern.stopIdx[j]) })),
+      )
+    : null;
   let observedDemand: Map<string, PatternDemand> | null = null;
   if (ridership !== undefined) {
     const rows = loadRidership(ridership, feed, { warnings });
@@ -77,6 +91,7 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
           boardingsPerTripKm: params.assumed_boardings_per_trip_km,
           catchmentHalfMaxM: params.max_gap_m / 2,
           meanTripM: params.mean_trip_length_m ?? typicalTripLengthM(feed.routes.get(pattern.routeId)?.type ?? 3),
+          peopleAtStops: catchments?.peopleAtStops.get(pattern.id),
         }),
       params,
       { keep: keepSet, observed: observed?.byPattern.get(pattern.id), warnings, transfers, stations, given },
@@ -86,5 +101,5 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
   if (preps.length === 0) throw new StopspanError('empty-feed', 'no pattern has two or more passenger stops', { file: feed.source });
   localCoverByGap(feed, patterns, preps).forEach((cover, i) => (preps[i].gapLocalCover = cover));
   for (const p of preps) p.expressGap = expressStretches(p);
-  return { np, params, preps, warnings };
+  return { np, params, preps, warnings, catchments };
 }

@@ -7,8 +7,11 @@ import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import { version } from '../version.js';
-import type { AuditResult, Headline, ReviewGap } from './types.js';
-import { FAST_STRETCH_MPS, WALK_DETOUR, WALK_RADIUS_M } from './additionEvidence.js';
+import type { AuditResult, Headline, LandUseSummary, ReviewGap } from './types.js';
+import { FAST_STRETCH_MPS, MIN_PEOPLE_FOR_ADDITION, WALK_DETOUR, WALK_RADIUS_M } from './additionEvidence.js';
+import type { LandUseLayer } from '../landuse/readLandUse.js';
+import { peopleForNewStop, type Catchments } from '../model/catchments.js';
+import type { CandidateOptions } from './candidates.js';
 import { paramsReport, type ParamsInput } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
 import { prepareAudit } from './prepareAudit.js';
@@ -44,6 +47,25 @@ export interface RunAuditOptions {
   reportRoutes?: ReadonlySet<string> | null;
   /** Time stamp written into the result (default now); fixed in tests for reproducible output. */
   generatedAt?: string;
+  /** A land-use layer (src/landuse/readLandUse.ts): catchments, coverage, and the evidence for additions. */
+  landUse?: LandUseLayer;
+}
+
+/** The land-use layer's figures for the result. */
+function landUseSummary(c: Catchments): LandUseSummary {
+  const { layer } = c;
+  return {
+    file: layer.file,
+    format: layer.format,
+    columns: layer.columns.map((col, i) => ({ name: col.name, weight: col.weight, total: layer.totals[i], covered: c.coveredAmounts[i] })),
+    features: layer.features,
+    featuresOutsideCatchments: c.featuresOutside,
+    points: layer.lat.length,
+    people: layer.totalPeople,
+    peopleCovered: c.coveredPeople,
+    walkRadiusM: WALK_RADIUS_M,
+    walkDetour: WALK_DETOUR,
+  };
 }
 
 function countBy(values: string[]): Map<string, number> {
@@ -63,8 +85,8 @@ function stoppingAssumption(param: string, used: string[]): string {
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations, contextStations = [] } = options;
-  const { np, params, preps, warnings } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations });
+  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations, contextStations = [], landUse } = options;
+  const { np, params, preps, warnings, catchments } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations, landUse });
 
   onProgress?.({ stage: 'verdicts' });
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
@@ -73,8 +95,13 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const analyses = preps.map((p, i) => analysePattern(feed, p, params, { parts: parts[i] }));
   // what the realtime archive said, beside the figures it fed (or, where a set value won, did not)
   analyses.forEach((a, i) => (a.result.observed = preps[i].observedFigures));
+  if (catchments) for (const a of analyses) a.result.peopleCovered = catchments.coveredByPattern.get(a.result.patternId) ?? 0;
   const reviewGaps: ReviewGap[] = [];
-  const generated = buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, reviewGaps, contextStations });
+  // what candidates are built with besides the walking policy: the evidence for additions (context stations, land use)
+  const candidateOptions: Omit<CandidateOptions, 'maxGapM' | 'reviewGaps'> = catchments
+    ? { contextStations, peopleNear: (lat, lon) => peopleForNewStop(catchments, lat, lon), onlyStopPeople: (s) => catchments.onlyStop.get(s) ?? 0 }
+    : { contextStations };
+  const generated = buildCandidates(feed, analyses, { ...candidateOptions, maxGapM: params.max_gap_m, reviewGaps });
   // what is reported: the routes asked for; everything above was computed on the whole network
   const shownRoute = (routeId: string) => reportRoutes === null || reportRoutes.has(routeId);
   const shown = analyses.filter((a) => shownRoute(a.result.routeId));
@@ -104,7 +131,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   if (!joint) warnings.add('candidates-weighed-alone', `${generated.length} candidates`);
   // the cases, and robustness judged on the programme as accepted (its candidates' robust set there)
   onProgress?.({ stage: 'sensitivity' });
-  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates, contextStations });
+  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates, candidateOptions });
   // what the accepted additions have at stake on each pattern, beside the optimiser's removals
   const adds = additionsAtStake(feed, patterns.date, preps, params, candidates);
   for (const a of analyses) {
@@ -170,10 +197,10 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     };
   }
 
-  const demandSource = ridership !== undefined ? 'observed' : 'assumed';
+  const demandSource = ridership !== undefined ? 'observed' : catchments ? 'land-use' : 'assumed';
   const assumptions: string[] = [
-    demandSource === 'assumed'
-      ? `No ridership file: demand is assumed at ${params.assumed_boardings_per_trip_km} boardings per trip per km, trip ends spread evenly along each pattern, riders' trip lengths exponential with a mean of ${params.mean_trip_length_m !== null ? `${params.mean_trip_length_m} m (as set)` : `the route type's typical trip (city bus ${Math.round(typicalTripLengthM(3))} m, from memory)`}, truncated by the pattern's ends (a pattern too short for that mean holds what fits, counted in the warnings); every figure from it is marked demand_source=assumed.`
+    demandSource !== 'observed'
+      ? `No ridership file: demand is assumed at ${params.assumed_boardings_per_trip_km} boardings per trip per km, trip ends spread evenly along each pattern, riders' trip lengths exponential with a mean of ${params.mean_trip_length_m !== null ? `${params.mean_trip_length_m} m (as set)` : `the route type's typical trip (city bus ${Math.round(typicalTripLengthM(3))} m, from memory)`}, truncated by the pattern's ends (a pattern too short for that mean holds what fits, counted in the warnings); ${demandSource === 'land-use' ? `each stop's share of its pattern's trip ends follows the people (land use) in its catchment, so a stop with nobody in it has none; every figure from it is marked demand_source=land-use` : 'every figure from it is marked demand_source=assumed'}.`
       : `Demand comes from the ridership file ${ridership}; a stop's counts are split between the patterns serving it by trips per day.`,
     params.cruise_speed_mps === null
       ? `Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (${BOARDING_TIME_PER_PAX_S} s per boarding, Levinson 1983), or the route type's typical cruise speed (bus ${cruiseSpeedBoundsMps(3).typicalMps.toFixed(1)} m/s, 25 mph) when the schedule is slower than that, or faster than any plausible speed explains (warning schedule-too-fast); the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.`
@@ -181,7 +208,12 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
     stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
     `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
-    `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there: a stop of any route${contextStations.length > 0 ? ' or a station of a context feed' : ''} within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
+    ...(catchments
+      ? [
+          `Land use (${catchments.layer.file}): each person (${catchments.layer.columns.map((c) => `${c.name} x ${c.weight}`).join(', ')}) walks to the nearest stop within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}); a polygon's people are spread evenly over its area (a small block at its centroid). Coverage is the people within that walk of a stop served; ${Math.round(catchments.coveredPeople)} of ${Math.round(catchments.layer.totalPeople)} are covered, ${catchments.featuresOutside} of ${catchments.layer.features} features touch no catchment. A stop is proposed in a wide gap only where at least ${MIN_PEOPLE_FOR_ADDITION} people would walk to it first, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review.`,
+        ]
+      : []),
+    `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there${catchments ? ' (without a land-use layer)' : ''}: a stop of any route${contextStations.length > 0 ? ' or a station of a context feed' : ''} within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
     'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
     ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
@@ -214,6 +246,7 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     sensitivity: cases,
     warnings: [...feed.warnings, ...(patterns.warnings ?? []), ...(observed?.warnings ?? []), ...warnings.list()],
     assumptions,
+    landUse: catchments ? landUseSummary(catchments) : null,
     observed: observed
       ? { source: observed.source, snapshotsRead: observed.snapshotsRead, snapshotsSkipped: observed.snapshotsSkipped, tripsMatched: observed.tripsMatched, tripsUnmatched: observed.tripsUnmatched }
       : null,

@@ -5,13 +5,12 @@
 // list is weighed again, each candidate given those ranked above it, and a candidate is robust when it still
 // saves riders time in every case.
 
-import type { StationPoint } from './contextStations.js';
 import type { Feed } from '../gtfs/types.js';
 import type { Candidate, SensitivityCase } from './types.js';
 import type { ModelParams } from '../model/params.js';
 import type { PreparedPattern } from '../model/preparePattern.js';
 import { analysePattern, patternParts, type PatternAnalysis, type PatternParts } from './verdicts.js';
-import { buildCandidates, candidateKey } from './candidates.js';
+import { buildCandidates, candidateKey, type CandidateOptions } from './candidates.js';
 import { wideGapCounts } from './headlineFigures.js';
 
 export interface SensitivitySetting {
@@ -86,10 +85,10 @@ export function runSensitivity(
     parts = preps.map((p) => patternParts(p, params, sensitivityWalkWeights(params))),
     reported = () => true,
     programme = baseCandidates,
-    contextStations = [],
+    candidateOptions = {},
   }: {
-    /** The context feeds' stations, evidence for additions as in the base audit. */
-    contextStations?: readonly StationPoint[];
+    /** What the base candidates were built with besides the walking policy (the evidence for additions: context stations, land use). */
+    candidateOptions?: Omit<CandidateOptions, 'maxGapM' | 'reviewGaps'>;
     /** The routes a report shows (--routes and the other filters): the case figures count their patterns and candidates only; every figure is still computed on the whole network. */
     reported?: (routeId: string) => boolean;
     settings?: SensitivitySetting[];
@@ -108,7 +107,7 @@ export function runSensitivity(
   settings.forEach((s, k) => {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
     const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }));
-    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { maxGapM: params.max_gap_m, contextStations });
+    const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { ...candidateOptions, maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     const shown = analyses.filter((a) => reported(a.result.routeId));
     const marginal = underCases[k].marginalNetPaxMinPerDay;

@@ -114,6 +114,8 @@ export interface PatternResult {
   path: [number, number][]; // lon, lat
   /** What a realtime archive said about the pattern; absent or null without one covering it. */
   observed?: ObservedFigures | null;
+  /** With a land-use layer: people (weighted) within a walk of a stop of the pattern; absent or null without one. */
+  peopleCovered?: number | null;
 }
 
 export interface SensitivityCase {
@@ -151,8 +153,10 @@ export interface Candidate {
   toStopId: string;
   /** For an addition, the gap it fills along the pattern (the first pattern's), metres; null for a removal. */
   gapM: number | null;
-  /** What an addition stands on (witness stops near the site); '' for a removal. */
+  /** What an addition stands on (witness stops near the site, or the land-use layer's people); '' for a removal. */
   evidence: string;
+  /** With a land-use layer, for a removal: people (weighted) within a walk of the stop and of no other stop served, left uncovered; absent otherwise. */
+  peopleUncovered?: number | null;
 }
 
 /** A wide gap where no stop is proposed for want of evidence that people are there: length and reason, no passenger-minute figure. */
@@ -165,8 +169,24 @@ export interface ReviewGap {
   gapM: number;
   routeIds: string[];
   patternIds: string[];
-  reason: 'fast-stretch' | 'long-straight-empty' | 'no-stop-near';
+  reason: 'fast-stretch' | 'long-straight-empty' | 'no-stop-near' | 'no-people-near';
   detail: string; // the reason in words
+}
+
+/** The land-use layer read and what it says of the network (AuditResult.landUse). */
+export interface LandUseSummary {
+  file: string;
+  format: 'csv' | 'geojson';
+  /** Each column read, its weight, its total over the layer and the part within a walk of a stop served. */
+  columns: { name: string; weight: number; total: number; covered: number }[];
+  features: number;
+  /** Features with no point within a walk of a stop served. */
+  featuresOutsideCatchments: number;
+  points: number;
+  people: number; // weighted
+  peopleCovered: number; // weighted, within a walk of a stop served
+  walkRadiusM: number;
+  walkDetour: number;
 }
 
 export interface Headline {
@@ -203,6 +223,8 @@ export interface AuditResult {
   assumptions: string[]; // plain sentences shown in every report
   /** The optimiser's drops as a scenario (plan.json) with their joint figures; null when it keeps every stop. */
   plan?: NetworkPlan | null;
+  /** The land-use layer read and the network's coverage; null or absent without one. */
+  landUse?: LandUseSummary | null;
   /** The realtime archive read, if any (its per-pattern figures are on the patterns). */
   observed?: { source: string; snapshotsRead: number; snapshotsSkipped: number; tripsMatched: number; tripsUnmatched: number } | null;
 }

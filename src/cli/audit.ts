@@ -9,6 +9,7 @@ import { StopspanError } from '../common/errors.js';
 import { groupedFixed } from '../report/numberText.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
+import { parseLandUseWeights } from '../landuse/readLandUse.js';
 
 const FORMATS = ['html', 'csv', 'geojson', 'json'] as const;
 type Format = (typeof FORMATS)[number];
@@ -21,6 +22,8 @@ interface AuditOpts {
   routeTypes?: string[];
   params?: string;
   ridership?: string;
+  landUse?: string;
+  landUseWeights?: string;
   observed?: string;
   keep?: string[];
   context?: string[];
@@ -46,6 +49,8 @@ export function registerAudit(program: Command): void {
     .option('--route-types <types>', 'report only routes of these types: GTFS route_type numbers or bus, tram, metro, rail, ferry, cable, other (comma-separated)', listOption)
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
+    .option('--land-use <file>', 'where people live and work: CSV (lat, lon and counts) or GeoJSON points and polygons; catchments, coverage and, without --ridership, demand follow it')
+    .option('--land-use-weights <list>', 'the land-use columns read and their weights, as column=weight,... (default population=1,jobs=1, whichever the file has)')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
     .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations make bus stops within 150 m transfer points', (v: string, prev: string[] = []) => prev.concat(v))
     .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
@@ -66,7 +71,9 @@ export function registerAudit(program: Command): void {
       const outDir = opts.out ?? path.join('reports', feedName(feedArg));
       const params = loadParams(opts.params, paramOverrides(opts));
       const force = Boolean(opts.force);
-      const inputs = [feedArg, opts.params, opts.ridership, opts.observed, opts.history, ...(opts.context ?? [])];
+      const inputs = [feedArg, opts.params, opts.ridership, opts.landUse, opts.observed, opts.history, ...(opts.context ?? [])];
+      if (opts.landUseWeights !== undefined && opts.landUse === undefined) throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: opts.landUseWeights });
+      const landUseColumns = opts.landUseWeights !== undefined ? parseLandUseWeights(opts.landUseWeights) : null;
       // where the report goes and the history it joins are checked before the feed is read, so a run that
       // cannot save its work fails at once instead of after the whole audit
       await (await import('../report/writeFolder.js')).checkOutFolder(outDir, { force, inputs });
@@ -85,6 +92,8 @@ export function registerAudit(program: Command): void {
           routeTypes: opts.routeTypes,
           params,
           ridership: opts.ridership,
+          landUse: opts.landUse,
+          landUseColumns,
           observed: opts.observed,
           keep: opts.keep,
           context: opts.context,

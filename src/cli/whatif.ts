@@ -24,6 +24,8 @@ export function registerWhatif(program: Command): void {
     .option('--scenario <file.json>', 'a scenario file with remove, add and/or move lists (see README)')
     .option('--date <YYYY-MM-DD>', 'analysis date (default: the weekday in the feed with the most trips)')
     .option('--ridership <file.csv>', 'stop-level boardings and alightings per day')
+    .option('--land-use <file>', 'where people live and work: CSV (lat, lon and counts) or GeoJSON points and polygons; coverage before and after and, without --ridership, demand follow it')
+    .option('--land-use-weights <list>', 'the land-use columns read and their weights, as column=weight,... (default population=1,jobs=1, whichever the file has)')
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
     .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations within 150 m of a changed stop are named in the result', collect)
     .option('--params <file.json>', 'model parameters (every key optional; see README)')

@@ -1,6 +1,8 @@
 // The work of `stopspan whatif`, loaded when the command runs (src/cli/whatif.ts registers its options):
 // the scenario checked whole, the feed read, the proposal weighed, the table, JSON or page written.
 
+import { parseLandUseWeights } from '../landuse/readLandUse.js';
+import { readLandUseAside } from '../landuse/readLandUseAside.js';
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
@@ -31,6 +33,8 @@ export interface WhatifOpts {
   bothDirections?: boolean;
   date?: string;
   ridership?: string;
+  landUse?: string;
+  landUseWeights?: string;
   observed?: string;
   context?: string[];
   params?: string;
@@ -105,13 +109,18 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
     }
     const params = loadParams(opts.params, paramOverrides(opts));
-    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.observed, opts.params, ...(opts.context ?? [])] };
+    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.landUse, opts.observed, opts.params, ...(opts.context ?? [])] };
+    if (opts.landUseWeights !== undefined && opts.landUse === undefined) throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: opts.landUseWeights });
+    const landUseColumns = opts.landUseWeights !== undefined ? parseLandUseWeights(opts.landUseWeights) : null;
     if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
     const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
     let feed: Feed;
     let patterns: PatternSet;
     let result: ScenarioResult;
     try {
+      // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
+      const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
+      landUseRead?.catch(() => undefined); // a failure surfaces at the await below
       feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
       patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
       if (patterns.patterns.length === 0) {
@@ -120,8 +129,9 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
       // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
       const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
       const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
+      const landUse = await landUseRead;
       progress.onProgress?.({ stage: 'weighing the scenario' });
-      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, stations, onProgress: progress.onProgress });
+      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, stations, landUse, onProgress: progress.onProgress });
     } finally {
       progress.done();
     }

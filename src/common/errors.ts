@@ -15,6 +15,7 @@ export type ErrorCode =
   | 'empty-feed' // nothing to analyse (no trips on the date, no patterns)
   | 'bad-option' // an option or parameter is invalid
   | 'bad-ridership' // a ridership file is malformed
+  | 'bad-land-use' // a land-use file is malformed (coordinates, columns, counts, geometry, or far from every stop)
   | 'bad-scenario' // a what-if scenario is malformed or names unknown items
   | 'bad-realtime' // a realtime archive cannot be used at all
   | 'output-exists' // the output folder exists and --force was not given

@@ -111,6 +111,9 @@ function pairSums(posM: number[], len: number[], decayM: number): { weight: numb
  * trip ends spread evenly over the stops' catchments (midpoint to midpoint, at most catchmentHalfMaxM from a
  * stop, so a long gap holds no riders in its middle), riders from stop i to stop j > i in proportion to the
  * two catchment lengths times exp(-(x_j - x_i)/decay), the decay solved so the mean trip is meanTripM.
+ * With peopleAtStops (a land-use layer's people in each stop's catchment, src/model/catchments.ts) the people
+ * take the place of the catchment lengths: the pattern's riders are the same, their trip ends follow the
+ * map, and the figures are marked land-use; a stop with nobody in its catchment has no trip ends.
  * Boardings and alightings are always consistent (nobody alights before boarding, the load never goes
  * negative). Where even uniform pairs (the longest mean this family holds, about a third of the length)
  * fall short of meanTripM by more than 1 %, uniform pairs are used and tooShortForTrip is set.
@@ -119,19 +122,26 @@ export function assumedDemand(
   patternId: string,
   posM: number[],
   tripsPerDay: number,
-  { boardingsPerTripKm, catchmentHalfMaxM = Infinity, meanTripM = typicalTripLengthM(3) }: { boardingsPerTripKm: number; catchmentHalfMaxM?: number; meanTripM?: number },
+  {
+    boardingsPerTripKm,
+    catchmentHalfMaxM = Infinity,
+    meanTripM = typicalTripLengthM(3),
+    peopleAtStops,
+  }: { boardingsPerTripKm: number; catchmentHalfMaxM?: number; meanTripM?: number; peopleAtStops?: ArrayLike<number> },
 ): PatternDemand {
   const n = posM.length;
   const D = posM[n - 1] - posM[0];
   const riders = boardingsPerTripKm * (D / 1000) * tripsPerDay;
-  const len = catchmentLengths(posM, catchmentHalfMaxM);
+  // each stop's share of the trip ends: its catchment's length along the route, or the people in it
+  const len = peopleAtStops ? Array.from(peopleAtStops) : catchmentLengths(posM, catchmentHalfMaxM);
   const meanOf = (decayM: number): number => {
     const { weight, moment } = pairSums(posM, len, decayM);
     return weight > 0 ? moment / weight : 0;
   };
   let decayM = Infinity;
   const longest = meanOf(Infinity);
-  const tooShortForTrip = longest < meanTripM * 0.99;
+  // a pattern with nobody in its catchments (land use) holds no trips at all, not trips too short
+  const tooShortForTrip = longest < meanTripM * 0.99 && len.some((x) => x > 0);
   if (longest > meanTripM && meanTripM > 0) {
     // the mean grows with the decay (an exponential family): bisect on its logarithm. The decay stays at
     // least a fiftieth of the longest gap between neighbouring stops, so no neighbours' riders vanish in
@@ -170,7 +180,7 @@ export function assumedDemand(
     F = e * (F + len[j - 1]);
     alightPerDay[j] = c * len[j] * F;
   }
-  const out = finish(patternId, posM, boardPerDay, alightPerDay, 'assumed', Math.min(meanTripM, D / 3));
+  const out = finish(patternId, posM, boardPerDay, alightPerDay, peopleAtStops ? 'land-use' : 'assumed', Math.min(meanTripM, D / 3));
   out.pairs = { decayM, perM2: c };
   out.askedTripLengthM = meanTripM;
   out.tooShortForTrip = tooShortForTrip;

@@ -13,3 +13,5 @@ export * from './corridor.js';
 export * from './optimiser.js';
 export * from './effectiveOptimum.js';
 export * from './preparePattern.js';
+export * from './walkReach.js';
+export * from './catchments.js';

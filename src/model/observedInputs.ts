@@ -36,7 +36,7 @@ export function chooseStopping(
   patternId: string,
   warnings: WarningSink,
 ): StoppingChoice {
-  const withoutArchive: StoppingModel = demand.demandSource === 'assumed' ? 'always' : 'poisson';
+  const withoutArchive: StoppingModel = demand.demandSource === 'observed' ? 'poisson' : 'always'; // modelled demand (assumed, land-use) is no count to skip a stop on
   const hasShares = observed !== undefined && modelStops.some((j) => observed.stopShare[j] != null);
   if (hasShares && (params.stopping_model === 'auto' || params.stopping_model === 'observed')) {
     const fill = withoutArchive === 'always' ? 1 : null;

@@ -118,6 +118,18 @@ export interface ScenarioResult {
   assumptions: string[];
   cautions: string[];
   warnings: FeedWarning[];
+  /** With a land-use layer: people (weighted) within a walk of a stop served, before and after the change. */
+  landUse?: LandUseCoverage | null;
+}
+
+/** A scenario's effect on land-use coverage (people as weighted by the layer's columns). */
+export interface LandUseCoverage {
+  file: string;
+  people: number;
+  peopleCoveredBefore: number;
+  peopleCoveredAfter: number;
+  /** Stops no pattern serves after the change. */
+  stopsClosed: string[];
 }
 
 const KNOWN_KEYS = ['remove', 'add', 'move'];

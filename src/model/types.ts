@@ -3,7 +3,7 @@
 // the reports carry them on, so they live here, below every stage that names them.
 
 export type FixedReason = '' | 'terminal' | 'timepoint' | 'transfer' | 'station' | 'keep';
-export type DemandSource = 'observed' | 'assumed'; // observed = from a ridership file
+export type DemandSource = 'observed' | 'land-use' | 'assumed'; // observed = from a ridership file; land-use = the assumed riders placed by a land-use layer's people
 export type LostTimeSource = 'default' | 'observed'; // observed = from a GTFS-Realtime archive, in part or whole
 /** The parts of the lost time per stop that came from a realtime archive. */
 export type ObservedLostTimePart = 'door_time' | 'stop_loss';

@@ -134,6 +134,8 @@ export const PATTERN_COLUMNS: CsvColumn<PatternResult>[] = [
   // appended last: what the proposed additions save here (pax_min_lost_per_day is the removals' side), and both
   num('pax_min_additions_per_day', (p) => p.paxMinAdditionsPerDay, 1),
   num('pax_min_at_stake_per_day', (p) => p.paxMinAtStakePerDay, 1),
+  // with a land-use layer: people (as weighted) within a walk of a stop of the pattern; empty without one
+  num('people_covered', (p) => p.peopleCovered ?? null, 1),
 ];
 
 export const STOP_COLUMNS: CsvColumn<StopResult>[] = [
@@ -188,6 +190,8 @@ export function candidateColumns(demandSource: string): CsvColumn<Candidate>[] {
     text('to_stop_id', (c) => c.toStopId),
     num('gap_m', (c) => c.gapM, 1),
     text('evidence', (c) => c.evidence),
+    // with a land-use layer, for a removal: people within a walk of the stop and of no other stop served
+    num('people_left_uncovered', (c) => c.peopleUncovered ?? null, 1),
   ];
 }
 

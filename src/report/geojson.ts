@@ -99,6 +99,7 @@ function patternProperties(p: PatternResult): Feature<LineString>['properties'] 
     lost_time_observed_parts: p.observed?.lostTimeParts.join('+') ?? '',
     pax_min_additions_per_day: r1(p.paxMinAdditionsPerDay),
     pax_min_at_stake_per_day: r1(p.paxMinAtStakePerDay),
+    people_covered: r1(p.peopleCovered ?? null),
   };
 }
 

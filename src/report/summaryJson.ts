@@ -53,7 +53,7 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
       pax_min_lost_per_day: r1(h.paxMinLostPerDay),
       pax_min_additions_per_day: r1(h.paxMinAdditionsPerDay),
       pax_min_at_stake_per_day: r1(h.paxMinAtStakePerDay),
-      pax_min_from_assumed_demand: assumed,
+      pax_min_from_assumed_demand: assumed || result.demandSource === 'land-use',
     },
     top_candidates: result.candidates.slice(0, TOP_CANDIDATES_IN_SUMMARY).map((c) => ({
       rank: c.rank,
@@ -104,6 +104,20 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
     warnings: result.warnings.map((w) => ({ code: w.code, message: w.message, count: w.count, examples: [...w.examples] })),
     assumptions: [...result.assumptions],
     cautions: [...CAUTIONS],
+    land_use: result.landUse
+      ? {
+          file: result.landUse.file,
+          format: result.landUse.format,
+          columns: result.landUse.columns.map((c) => ({ name: c.name, weight: c.weight, total: r1(c.total), covered: r1(c.covered) })),
+          features: result.landUse.features,
+          features_outside_catchments: result.landUse.featuresOutsideCatchments,
+          points: result.landUse.points,
+          people: r1(result.landUse.people),
+          people_covered: r1(result.landUse.peopleCovered),
+          walk_radius_m: result.landUse.walkRadiusM,
+          walk_detour: result.landUse.walkDetour,
+        }
+      : null,
     observed: result.observed
       ? {
           source: result.observed.source,

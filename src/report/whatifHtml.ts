@@ -97,7 +97,7 @@ export function whatifHtml(result: ScenarioResult, strips: WhatifStrip[], option
   const maxGapM = Number(result.params.max_gap_m?.value ?? 800);
   const t = result.totals;
   const net = t.netPaxMinPerDay;
-  const assumed = result.patterns.some((e) => e.demandSource === 'assumed');
+  const assumed = result.patterns.some((e) => e.demandSource !== 'observed');
   const tag = assumed ? ' <span class="badge assumed">assumed demand</span>' : '';
   const stripBy = new Map(strips.map((s) => [s.patternId, s]));
   const label = (e: ScenarioPatternEffect): string => {
@@ -139,7 +139,11 @@ ${whatifStripSvg(s, maxGapM, units)}
 <section id="headline" aria-labelledby="headline-h">
 <h2 id="headline-h">The answer</h2>
 <p class="${net <= 0 ? 'net-save' : 'net-cost'}">${h(headline)}${tag}</p>
-<p class="note">Sensitivity, net passenger-minutes per day: ${h(result.sensitivity.map((s) => `${s.label}: ${fmt0(s.netPaxMinPerDay)}`).join('; '))}.</p>
+<p class="note">Sensitivity, net passenger-minutes per day: ${h(result.sensitivity.map((s) => `${s.label}: ${fmt0(s.netPaxMinPerDay)}`).join('; '))}.</p>${
+  result.landUse
+    ? `\n<p class="note">Land use: ${h(fmt0(result.landUse.peopleCoveredBefore))} of ${h(fmt0(result.landUse.people))} people within a walk of a stop before the change, ${h(fmt0(result.landUse.peopleCoveredAfter))} after.</p>`
+    : ''
+}
 </section>
 <section class="cautions" id="cautions" aria-labelledby="cautions-h">
 <h2 id="cautions-h">Before acting on this scenario</h2>

@@ -84,8 +84,9 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
   ];
   const labelW = Math.max(...rows.map(([l]) => l.length));
   const lines: string[] = [];
-  const assumed = result.patterns.some((e) => e.demandSource === 'assumed');
-  lines.push(`what-if on ${safe(feedSource)} for ${result.date}: ${t.patternsAffected} pattern${t.patternsAffected === 1 ? '' : 's'} affected${assumed ? ' (demand assumed, not counted)' : ''}`);
+  const assumed = result.patterns.some((e) => e.demandSource !== 'observed');
+  const modelled = result.patterns.some((e) => e.demandSource === 'land-use') ? ' (demand assumed and placed by land use, not counted)' : ' (demand assumed, not counted)';
+  lines.push(`what-if on ${safe(feedSource)} for ${result.date}: ${t.patternsAffected} pattern${t.patternsAffected === 1 ? '' : 's'} affected${assumed ? modelled : ''}`);
   for (let b = 0; b < columns.length; b += columnsPerBlock) {
     const block = columns.slice(b, b + columnsPerBlock);
     const cells = block.map((c) => rows.map(([, f]) => f(c.e, t)));
@@ -133,6 +134,14 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
         `or the same fleet runs every ${n1(f.headwaySameFleetS / 60)} min` +
         (f.waitSavedPaxMinPerDay !== null ? `, saving riders about ${n0(f.waitSavedPaxMinPerDay)} minutes of waiting a day (half the headway change per boarding, common planning practice)` : '') +
         cost,
+    );
+  }
+  const lu = result.landUse;
+  if (lu) {
+    const change = lu.peopleCoveredAfter - lu.peopleCoveredBefore;
+    lines.push(
+      `land use: ${n0(lu.peopleCoveredBefore)} of ${n0(lu.people)} people within a walk of a stop before, ${n0(lu.peopleCoveredAfter)} after ` +
+        `(${change < 0 ? `${n0(-change)} left uncovered` : change > 0 ? `${n0(change)} newly covered` : 'no change'})`,
     );
   }
   lines.push(`sensitivity (net pax-min/day): ${result.sensitivity.map((s) => `${s.label} ${n0(s.netPaxMinPerDay)}`).join(', ')}`);

@@ -18,7 +18,9 @@ const PATTERN_HEADER =
   ',lost_time_per_stop_s,lost_time_source,cruise_speed_mps,cruise_speed_source,traffic_delay_s,stopping_model,mean_trip_length_m' +
   ',observed_trips,observed_dwell_s,observed_door_time_s,observed_stop_loss_s,observed_cruise_speed_mps,observed_stop_share,lost_time_observed_parts' +
   // what the proposed additions save on the pattern, and removals and additions together
-  ',pax_min_additions_per_day,pax_min_at_stake_per_day';
+  ',pax_min_additions_per_day,pax_min_at_stake_per_day' +
+  // with a land-use layer, the people within a walk of the pattern's stops (empty without one)
+  ',people_covered';
 const STOP_HEADER =
   'pattern_id,route_id,direction_id,stop_index,stop_id,stop_name,stop_lat,stop_lon,dist_along_m,gap_before_m,gap_after_m,trips_per_day,boardings_per_day,alightings_per_day,verdict,fixed_reason,fixed_note,removal_net_pax_min_per_day,demand_source,optimiser_keeps' +
   // the stop's own verdict and the gaps' beside it, apart
@@ -39,6 +41,7 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
     expect(candHeader).toContain('run_time_saved_per_trip_s');
     expect(candHeader).toContain('vehicle_hours_per_day');
     expect(candHeader).toContain('riders_affected_per_day');
+    expect(candHeader.at(-1)).toBe('people_left_uncovered');
     // units in the names: every numeric measure ends in a unit or a per-day rate
     for (const name of candHeader) expect(name).toMatch(/^[a-z_]+$/);
   });

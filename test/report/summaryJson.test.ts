@@ -27,6 +27,28 @@ function keysDeep(v: unknown, skipChildrenOf: string[] = [], out: string[] = [])
 }
 
 describe('summary.json', () => {
+  it('validates with a land-use layer, and marks its demand land-use', () => {
+    const withLand = makeSampleResult();
+    withLand.demandSource = 'land-use';
+    withLand.landUse = {
+      file: 'vellmoor-blocks.geojson',
+      format: 'geojson',
+      columns: [{ name: 'population', weight: 1, total: 1200, covered: 1000 }, { name: 'jobs', weight: 0.5, total: 400, covered: 300 }],
+      features: 3,
+      featuresOutsideCatchments: 1,
+      points: 40,
+      people: 1400,
+      peopleCovered: 1150,
+      walkRadiusM: 400,
+      walkDetour: 1.3,
+    };
+    const doc = summaryObject(withLand);
+    expect(validate(doc), JSON.stringify(validate.errors)).toBe(true);
+    expect(doc.demand_source).toBe('land-use');
+    expect((doc.land_use as { features_outside_catchments: number }).features_outside_catchments).toBe(1);
+    expect((doc.headline as { pax_min_from_assumed_demand: boolean }).pax_min_from_assumed_demand).toBe(true);
+  });
+
   it('validates against schema/summary.schema.json', () => {
     const doc = JSON.parse(summaryJson(sample));
     const ok = validate(doc);

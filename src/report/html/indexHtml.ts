@@ -177,7 +177,7 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     pats: c.patternIds.flatMap((id) => patternPos.get(id) ?? []), // positions in patterns, to link a row to its pattern's section
     ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] } : {}),
   }));
-  return { units, assumed: result.demandSource === 'assumed', stopTable, patterns, candidates };
+  return { units, assumed: result.demandSource !== 'observed', stopTable, patterns, candidates };
 }
 
 // why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)
@@ -185,6 +185,7 @@ const REVIEW_REASON: Record<AuditResult['reviewGaps'][number]['reason'], string>
   'fast-stretch': 'the schedule runs it faster than a local bus on streets (a bridge or an expressway)',
   'long-straight-empty': 'a long straight run with no stop of another route within a short walk of its middle',
   'no-stop-near': "no stop of another route within a short walk of its middle, away from the gap's ends",
+  'no-people-near': 'too few people in the land-use layer within a short walk of its middle, nearer to it than to a stop served today',
 };
 
 // en-US digits as Intl.NumberFormat prints them, without loading ICU's number formatting (numberText.ts)
@@ -204,11 +205,12 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   }
   const d = (m: number | null): string => formatShortDistance(m, units);
   const hl = result.headline;
-  const assumed = result.demandSource === 'assumed';
+  // modelled demand (assumed, or assumed riders placed by a land-use layer) is badged as such beside every figure
+  const assumed = result.demandSource !== 'observed';
   const demandBadge = assumed
-    ? '<span class="badge assumed">assumed demand</span>'
+    ? `<span class="badge assumed">${result.demandSource} demand</span>`
     : '<span class="badge observed">observed demand</span>';
-  const assumedNote = assumed ? ' <span class="badge assumed">assumed</span>' : '';
+  const assumedNote = assumed ? ` <span class="badge assumed">${result.demandSource}</span>` : '';
   const bandLow = median(result.patterns.map((p) => p.bandLowM).filter(Number.isFinite), 0);
   const bandHigh = median(result.patterns.map((p) => p.bandHighM).filter(Number.isFinite), 0);
   const hist = histogramSvg(
