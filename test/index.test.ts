@@ -13,6 +13,7 @@ const ROOT = join(import.meta.dirname, '..');
 /** Every value the library exports (types leave no trace at run time; tsc checks those this file uses). */
 const PUBLIC_NAMES = [
   'CAUTIONS',
+  'DEFAULT_LAND_USE_COLUMNS',
   'DEFAULT_THRESHOLDS',
   'FINDINGS',
   'FINDING_CODES',
@@ -38,9 +39,11 @@ const PUBLIC_NAMES = [
   'normalizeParams',
   'observeArchive',
   'openHistory',
+  'parseLandUseWeights',
   'parseScenario',
   'readFeed',
   'readHistory',
+  'readLandUse',
   'recordRun',
   'runAudit',
   'summaryJson',

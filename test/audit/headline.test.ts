@@ -172,11 +172,13 @@ describe('a timing point mid-gap', () => {
   });
 
   it("leaves it out of the page's stop list, so the page's gaps are stops.csv's", () => {
-    const p = (pageData(r, 'metric', 400).patterns as { id: string; stops: unknown[][]; gaps: number[][] }[]).find((x) => x.id === 'C:0:1')!;
-    expect(p.stops.map((s) => s[1])).toEqual(ids('t', 30).filter((id) => id !== 't11'));
+    const data = pageData(r, 'metric', 400) as { stopTable: [string, ...unknown[]][]; patterns: { id: string; stops: number[][]; gaps: number[][] }[] };
+    const p = data.patterns.find((x) => x.id === 'C:0:1')!;
+    // a pattern's stop rows name their stop by its place in the page's one stop table: [ref, dist, ...]
+    expect(p.stops.map((s) => data.stopTable[s[0]][0])).toEqual(ids('t', 30).filter((id) => id !== 't11'));
     // the wide gap names its first stop by its place in the list; the next stop there is 600 m on
     expect(p.gaps.map((g) => [g[0], g[1]])).toEqual([[10, 600]]);
-    const dist = p.stops.map((s) => s[5] as number);
+    const dist = p.stops.map((s) => s[1]);
     expect(dist[11] - dist[10]).toBe(600);
     // stop_points.geojson: t11 is served by route D only
     const t11 = stopPointsGeoJson(r).features.find((f) => f.properties!.stop_id === 't11')!;

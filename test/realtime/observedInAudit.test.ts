@@ -62,7 +62,9 @@ describe('an archive whose run times cannot separate cruise speed from stop loss
     expect(Number(cell('observed_door_time_s'))).toBe(20);
     expect(cell('observed_stop_loss_s')).toBe('');
     expect(cell('lost_time_observed_parts')).toBe('door_time');
-    expect(header.split(',').slice(-1)[0]).toBe('lost_time_observed_parts');
+    // the observed block's columns run together, lost_time_observed_parts last of them
+    const cols = header.split(',');
+    expect(cols.indexOf('lost_time_observed_parts')).toBe(cols.indexOf('observed_stop_share') + 1);
     const s = summaryObject(r) as { observed: { patterns: Record<string, unknown>[]; trips_matched: number } };
     expect(s.observed.trips_matched).toBe(12);
     expect(s.observed.patterns).toEqual([

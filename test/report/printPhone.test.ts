@@ -7,7 +7,7 @@
 
 import { existsSync, readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { mkdtemp, rm } from 'node:fs/promises';
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -120,10 +120,19 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
   });
 
   it('fits 375 px: no sideways page scroll, chart labels of 10 px or more, tables scroll in named regions a keyboard reaches', async () => {
-    const page = await open(375, 800);
-    await page.click('details.pattern > summary'); // a pattern's map, strip and stop list too
-    await page.waitForSelector('details.pattern[open] svg.chart.strip'); // drawn by the toggle event, which comes after the click
-    const m = await page.evaluate(() => {
+    // the page is laid out in a frame 375 px wide: a browser window may refuse to be that narrow (a minimum
+    // window width), a frame may not, so the width tested is the one asked for wherever the test runs
+    const page = await browser.newPage();
+    await page.setViewportSize({ width: 800, height: 900 });
+    const frameHost = join(work, 'phone.html');
+    await writeFile(frameHost, `<!doctype html><title>375 px</title><body style="margin:0"><iframe title="report" src="${html}" style="width:375px;height:800px;border:0"></iframe>`);
+    await page.goto(pathToFileURL(frameHost).href);
+    const frame = await (await page.waitForSelector('iframe')).contentFrame();
+    if (!frame) throw new Error('the frame did not load');
+    await frame.waitForSelector('html[data-ready="1"]');
+    await frame.click('details.pattern > summary'); // a pattern's map, strip and stop list too
+    await frame.waitForSelector('details.pattern[open] svg.chart.strip'); // drawn by the toggle event, which comes after the click
+    const m = await frame.evaluate(() => {
       let minLabelPx = Infinity;
       for (const t of Array.from(document.querySelectorAll('svg.chart text'))) {
         if (!t.getBoundingClientRect().width) continue;
@@ -142,6 +151,7 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
         .map((e) => `${e.tagName.toLowerCase()}${e.id ? '#' + e.id : ''}.${e.getAttribute('class') ?? ''} right ${Math.round(e.getBoundingClientRect().right)}`);
       return {
         past: past.slice(-5),
+        viewport: edge,
         pageWidth: document.documentElement.scrollWidth,
         minLabelPx,
         regions: regions.length,
@@ -152,22 +162,23 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
         })(),
       };
     });
+    expect(m.viewport).toBe(375);
     expect(m.pageWidth, `reaching past 375 px: ${m.past.join('; ')}`).toBeLessThanOrEqual(375);
     expect(m.minLabelPx).toBeGreaterThanOrEqual(10);
     expect(m.regions).toBeGreaterThan(3);
     expect(m.unnamed).toBe(0);
     expect(m.candWrapScrolls).toBe(true);
     // from the candidates' search box the keyboard reaches the table's box, and arrow keys scroll it sideways
-    await page.focus('#cand-search');
+    await frame.focus('#cand-search');
     let reached = false;
     for (let i = 0; i < 10 && !reached; i++) {
       await page.keyboard.press('Tab');
-      reached = await page.evaluate(() => document.activeElement === document.querySelector('#candidates .table-wrap'));
+      reached = await frame.evaluate(() => document.activeElement === document.querySelector('#candidates .table-wrap'));
     }
     expect(reached).toBe(true);
     await page.keyboard.press('ArrowRight');
     await page.keyboard.press('ArrowRight');
-    await expect.poll(() => page.evaluate(() => document.querySelector('#candidates .table-wrap')!.scrollLeft), { timeout: 3000 }).toBeGreaterThan(0);
+    await expect.poll(() => frame.evaluate(() => document.querySelector('#candidates .table-wrap')!.scrollLeft), { timeout: 3000 }).toBeGreaterThan(0);
     await page.close();
   });
 

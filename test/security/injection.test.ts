@@ -27,7 +27,7 @@ const CHROMIUM = '/usr/bin/chromium';
 const REPORT_FILES = [REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json'];
 // the CSV text columns (design notes, section 5); every other column is numeric
 const TEXT_COLUMNS: Record<string, string[]> = {
-  'stops.csv': ['pattern_id', 'route_id', 'stop_id', 'stop_name', 'verdict', 'fixed_reason', 'fixed_note', 'demand_source', 'optimiser_keeps'],
+  'stops.csv': ['pattern_id', 'route_id', 'stop_id', 'stop_name', 'verdict', 'fixed_reason', 'fixed_note', 'demand_source', 'optimiser_keeps', 'stop_verdict', 'gap_before_verdict', 'gap_after_verdict'],
   'patterns.csv': ['pattern_id', 'route_id', 'route_short_name', 'headsign', 'shape_id', 'distance_source', 'demand_source', 'lost_time_source', 'cruise_speed_source', 'stopping_model'],
   'candidates.csv': ['action', 'stop_id', 'stop_name', 'route_ids', 'pattern_ids', 'robust', 'demand_source', 'from_stop_id', 'to_stop_id', 'evidence'],
 };
