@@ -81,12 +81,17 @@ function ringMoments(xy: number[]): { a: number; cx: number; cy: number } {
   return { a: a / 2, cx: cx / 6, cy: cy / 6 };
 }
 
+/** Area from the rings' moments (the outer ring, then holes). */
+function areaOf(moments: readonly { a: number }[]): number {
+  let area = Math.abs(moments[0].a);
+  for (let k = 1; k < moments.length; k++) area -= Math.abs(moments[k].a);
+  return Math.max(0, area);
+}
+
 /** Area in square metres of a polygon given as GeoJSON rings (the outer ring, then holes). */
 export function polygonAreaM2(rings: readonly Ring[]): number {
   const f = frameFor(rings);
-  let area = Math.abs(ringMoments(toXY(rings[0], f)).a);
-  for (let k = 1; k < rings.length; k++) area -= Math.abs(ringMoments(toXY(rings[k], f)).a);
-  return Math.max(0, area);
+  return areaOf(rings.map((r) => ringMoments(toXY(r, f))));
 }
 
 /** Clips a ring (x, y pairs) to x in [x0, x1] and y in [y0, y1] (Sutherland-Hodgman, one edge at a time). */
@@ -130,6 +135,22 @@ function clipToCell(xy: number[], x0: number, y0: number, x1: number, y1: number
 export function polygonPieces(rings: readonly Ring[]): PolygonPiece[] {
   const f = frameFor(rings);
   const xy = rings.map((r) => toXY(r, f));
+  return piecesOf(f, xy, xy.map(ringMoments));
+}
+
+/**
+ * A polygon's area (polygonAreaM2) and, when it is above 0, its pieces (polygonPieces), with the frame, the
+ * local coordinates and the rings' moments worked out once for both: the reader needs both of every polygon.
+ */
+export function polygonAreaAndPieces(rings: readonly Ring[]): { areaM2: number; pieces: PolygonPiece[] } {
+  const f = frameFor(rings);
+  const xy = rings.map((r) => toXY(r, f));
+  const moments = xy.map(ringMoments);
+  const areaM2 = areaOf(moments);
+  return { areaM2, pieces: areaM2 > 0 ? piecesOf(f, xy, moments) : [] };
+}
+
+function piecesOf(f: Frame, xy: number[][], moments: readonly { a: number; cx: number; cy: number }[]): PolygonPiece[] {
   let minX = Infinity;
   let minY = Infinity;
   let maxX = -Infinity;
@@ -147,8 +168,7 @@ export function polygonPieces(rings: readonly Ring[]): PolygonPiece[] {
     let a = 0;
     let cx = 0;
     let cy = 0;
-    xy.forEach((r, k) => {
-      const m = ringMoments(r);
+    moments.forEach((m, k) => {
       const sign = (k === 0 ? 1 : -1) * Math.sign(m.a);
       a += sign * m.a;
       cx += sign * m.cx;

@@ -7,13 +7,14 @@
 // Bounded: the CSV is streamed 1 MiB at a time through the project's CSV reader; a GeoJSON file is refused
 // above MAX_GEOJSON_BYTES before it is read; features, vertices and points are capped.
 
+import { isAscii } from 'node:buffer';
 import { closeSync, openSync, readSync, statSync, readFileSync } from 'node:fs';
 import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import { CsvTableParser, reportCsvStats } from '../gtfs/csv.js';
 import type { CsvRow } from '../gtfs/csvCore.js';
-import { polygonAreaM2, polygonPieces, type Ring } from './polygonPieces.js';
+import { polygonAreaAndPieces, polygonAreaM2, type PolygonPiece, type Ring } from './polygonPieces.js';
 
 /** Most features (CSV data rows or GeoJSON features) a layer may have: a state's census blocks are a few hundred thousand. */
 export const MAX_LAND_USE_FEATURES = 1_000_000;
@@ -81,19 +82,37 @@ export function parseLandUseWeights(text: string): LandUseColumn[] {
   return out;
 }
 
+/** A Float64Array that grows (doubling) as values are pushed: no boxed numbers, no copy per point. */
+class Float64List {
+  data = new Float64Array(1024);
+  length = 0;
+  push(x: number): void {
+    if (this.length === this.data.length) {
+      const bigger = new Float64Array(this.data.length * 2);
+      bigger.set(this.data);
+      this.data = bigger;
+    }
+    this.data[this.length++] = x;
+  }
+  /** The values pushed, in an array of their own length. */
+  take(): Float64Array {
+    return this.data.slice(0, this.length);
+  }
+}
+
 /** Points gathered as features are read, with the caps. */
 class LayerBuilder {
-  lat: number[] = [];
-  lon: number[] = [];
+  lat = new Float64List();
+  lon = new Float64List();
   featureOf: number[] = [];
-  amounts: number[][];
+  amounts: Float64List[];
   featureRef: number[] = [];
   vertices = 0;
   constructor(
     readonly file: string,
     readonly columns: LandUseColumn[],
   ) {
-    this.amounts = columns.map(() => []);
+    this.amounts = columns.map(() => new Float64List());
   }
 
   feature(ref: string, refNo: number): number {
@@ -111,7 +130,7 @@ class LayerBuilder {
     this.lat.push(lat);
     this.lon.push(lon);
     this.featureOf.push(k);
-    values.forEach((v, c) => this.amounts[c].push(v * share));
+    for (let c = 0; c < values.length; c++) this.amounts[c].push(values[c] * share);
   }
 
   addVertices(n: number, ref: string): void {
@@ -123,7 +142,7 @@ class LayerBuilder {
 
   finish(format: 'csv' | 'geojson'): LandUseLayer {
     const n = this.lat.length;
-    const amounts = this.amounts.map((a) => Float64Array.from(a));
+    const amounts = this.amounts.map((a) => a.take());
     const people = new Float64Array(n);
     this.columns.forEach((c, ci) => {
       for (let i = 0; i < n; i++) people[i] += c.weight * amounts[ci][i];
@@ -136,8 +155,8 @@ class LayerBuilder {
       columns: this.columns,
       features: this.featureRef.length,
       featureRef: Int32Array.from(this.featureRef),
-      lat: Float64Array.from(this.lat),
-      lon: Float64Array.from(this.lon),
+      lat: this.lat.take(),
+      lon: this.lon.take(),
       featureOf: Int32Array.from(this.featureOf),
       amounts,
       people,
@@ -246,22 +265,22 @@ function position(p: unknown, file: string, feature: string): number[] {
 }
 
 /** A polygon's rings checked (arrays of four or more positions, closed, with an area above zero), and its area. */
-function polygonRings(coords: unknown, file: string, feature: string, b: LayerBuilder): { rings: Ring[]; areaM2: number } {
+function polygonRings(coords: unknown, file: string, feature: string, b: LayerBuilder): { areaM2: number; pieces: PolygonPiece[] } {
   const bad = (why: string): StopspanError => new StopspanError('bad-land-use', `${feature}: invalid geometry: ${why}`, { file, column: 'geometry' });
   if (!Array.isArray(coords) || coords.length === 0) throw bad('a polygon needs at least one ring');
   const rings: Ring[] = [];
   coords.forEach((ring, r) => {
     if (!Array.isArray(ring) || ring.length < 4) throw bad(`ring ${r + 1} has fewer than 4 positions`);
     b.addVertices(ring.length, feature);
-    const pts = ring.map((p) => position(p, file, feature));
-    const first = pts[0];
-    const last = pts[pts.length - 1];
+    for (const p of ring) position(p, file, feature);
+    const first = ring[0] as number[];
+    const last = ring[ring.length - 1] as number[];
     if (first[0] !== last[0] || first[1] !== last[1]) throw bad(`ring ${r + 1} is not closed (its last position must repeat its first)`);
-    rings.push(pts);
+    rings.push(ring as number[][]);
   });
-  const areaM2 = polygonAreaM2(rings);
+  const { areaM2, pieces } = polygonAreaAndPieces(rings);
   if (!(areaM2 > 0)) throw bad(rings.length > 1 && polygonAreaM2(rings.slice(0, 1)) > 0 ? 'the holes cover the whole polygon' : 'the outer ring encloses no area');
-  return { rings, areaM2 };
+  return { areaM2, pieces };
 }
 
 function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer {
@@ -274,7 +293,9 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
   if (size > MAX_GEOJSON_BYTES) throw new StopspanError('feed-too-large', `land-use GeoJSON file is larger than ${MAX_GEOJSON_BYTES >> 20} MiB, the cap (use CSV points, which are streamed)`, { file });
   let doc: unknown;
   try {
-    doc = JSON.parse(readFileSync(file, 'utf8').replace(/^\uFEFF/, ''));
+    const bytes = readFileSync(file);
+    // ASCII (as exports mostly are) decodes as latin1, the same text at about half the cost of UTF-8 decoding
+    doc = JSON.parse(isAscii(bytes) ? bytes.toString('latin1') : bytes.toString('utf8').replace(/^\uFEFF/, ''));
   } catch (e) {
     throw new StopspanError('bad-land-use', `land-use file is not valid JSON: ${(e as Error).message}`, { file });
   }
@@ -317,8 +338,8 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
         const parts = polys.map((c) => polygonRings(c, file, feature, builder));
         // the people over the parts by area, then over each part's pieces
         const total = parts.reduce((s, p) => s + p.areaM2, 0);
-        for (const { rings, areaM2 } of parts) {
-          for (const piece of polygonPieces(rings)) builder.point(k, piece.lat, piece.lon, values, (areaM2 / total) * piece.share, feature);
+        for (const { areaM2, pieces } of parts) {
+          for (const piece of pieces) builder.point(k, piece.lat, piece.lon, values, (areaM2 / total) * piece.share, feature);
         }
         break;
       }

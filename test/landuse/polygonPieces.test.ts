@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import geodesicPkg from 'geographiclib-geodesic';
-import { CELL_M, polygonAreaM2, polygonPieces, SMALL_POLYGON_M, type Ring } from '../../src/landuse/polygonPieces.js';
+import { CELL_M, polygonAreaAndPieces, polygonAreaM2, polygonPieces, SMALL_POLYGON_M, type Ring } from '../../src/landuse/polygonPieces.js';
 import { readLandUse } from '../../src/landuse/readLandUse.js';
 
 const WGS84 = geodesicPkg.Geodesic.WGS84;
@@ -90,5 +90,26 @@ describe('people spread over a polygon', () => {
     let inA = 0;
     for (let i = 0; i < layer.lat.length; i++) if (layer.lon[i] < 4.91) inA += layer.amounts[0][i];
     expect(rel(inA / 1000, karneyArea(a) / (karneyArea(a) + karneyArea(b)))).toBeLessThan(0.005);
+  });
+
+  it('the reader\'s one-pass area and pieces are exactly the area and the pieces worked out apart', () => {
+    const hole = close([[10.01, 45.01], [10.01, 45.015], [10.02, 45.015], [10.02, 45.01]]);
+    const cases: Ring[][] = [...Object.values(SHAPES).map((r) => [r]), [SHAPES['irregular tract at 45 N'], hole]];
+    for (const rings of cases) {
+      const both = polygonAreaAndPieces(rings);
+      expect(both.areaM2).toBe(polygonAreaM2(rings));
+      expect(both.pieces).toEqual(polygonPieces(rings));
+    }
+    // a ring enclosing no area has no pieces
+    expect(polygonAreaAndPieces([close([[4.9, 52.0], [4.91, 52.0], [4.92, 52.0]])])).toEqual({ areaM2: 0, pieces: [] });
+  });
+
+  it('reads a GeoJSON file with a byte-order mark and names that are not ASCII as UTF-8', () => {
+    const file = join(tmp, 'bom.geojson');
+    const doc = { type: 'FeatureCollection', features: [{ type: 'Feature', properties: { name: 'Ölmarkt – Süd', population: 12 }, geometry: { type: 'Point', coordinates: [4.9, 52.0] } }] };
+    writeFileSync(file, '\uFEFF' + JSON.stringify(doc));
+    const layer = readLandUse(file);
+    expect(layer.totalPeople).toBe(12);
+    expect(layer.lat[0]).toBe(52.0);
   });
 });
