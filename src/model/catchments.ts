@@ -44,10 +44,6 @@ export interface Catchments {
   pointGrid(): PointGrid;
 }
 
-function sortedBy<T>(xs: T[], key: (x: T) => number): T[] {
-  return xs.sort((a, b) => key(a) - key(b));
-}
-
 /** Refuses a layer with a point 25 km or more from every stop of the feed, naming its row or feature. */
 function checkNearStops(layer: LandUseLayer, feed: Feed): void {
   const COARSE = 0.25; // degrees: at least 27 km north-south
@@ -128,21 +124,30 @@ export function buildCatchments(layer: LandUseLayer, feed: Feed, patterns: reado
   const bestM = new Int32Array(patterns.length);
   const stamp = new Int32Array(patterns.length).fill(-1);
   const seen: number[] = [];
-  const nearStops: { s: number; d: number }[] = [];
+  // the stops within reach of a point, in the grid's order: each pattern takes its nearest, the first of equals
+  const nearS: number[] = [];
+  const nearD: number[] = [];
+  const visit = (s: number, d: number): void => {
+    nearS.push(s);
+    nearD.push(d);
+  };
   for (let i = 0; i < n; i++) {
-    nearStops.length = 0;
-    stopGrid.near(layer.lat[i], layer.lon[i], WALK_REACH_M, (s, d) => nearStops.push({ s, d }));
-    if (nearStops.length === 0) continue;
+    nearS.length = 0;
+    nearD.length = 0;
+    stopGrid.near(layer.lat[i], layer.lon[i], WALK_REACH_M, visit);
+    if (nearS.length === 0) continue;
     const people = layer.people[i];
     touched[layer.featureOf[i]] = 1;
-    sortedBy(nearStops, (x) => x.d);
-    nearestM[i] = nearStops[0].d;
+    let nearest = Infinity;
+    for (const d of nearD) if (d < nearest) nearest = d;
+    nearestM[i] = nearest;
     coveredPeople += people;
     for (let c = 0; c < coveredAmounts.length; c++) coveredAmounts[c] += layer.amounts[c][i];
-    if (nearStops.length === 1) onlyStop.set(nearStops[0].s, (onlyStop.get(nearStops[0].s) ?? 0) + people);
+    if (nearS.length === 1) onlyStop.set(nearS[0], (onlyStop.get(nearS[0]) ?? 0) + people);
     seen.length = 0;
-    for (const { s, d } of nearStops) {
-      for (const { p, m } of at.get(s) ?? []) {
+    for (let q = 0; q < nearS.length; q++) {
+      const d = nearD[q];
+      for (const { p, m } of at.get(nearS[q]) ?? []) {
         if (stamp[p] !== i) {
           stamp[p] = i;
           bestD[p] = d;
