@@ -1,9 +1,12 @@
 // `stopspan compare OLD NEW`: what changed between two versions of a feed, as a terminal summary, JSON,
 // or an HTML page and a CSV of changed trips in --out; exit 1 on a service cut beyond --fail-on-trip-loss.
+// With --land-use, both audits use the one layer, and the comparison says how many people each version covers.
 
 import { terminalText } from '../common/terminalText.js';
 import type { Command } from 'commander';
 import { loadParams } from '../model/params.js';
+import { StopspanError } from '../common/errors.js';
+import { parseLandUseWeights, type LandUseLayer } from '../landuse/readLandUse.js';
 import type { ContextStops } from '../audit/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
@@ -29,6 +32,8 @@ interface CompareCliOptions {
   params?: string;
   audit: boolean;
   context?: string[];
+  landUse?: string;
+  landUseWeights?: string;
   force?: boolean;
   quiet?: boolean;
   verbose?: boolean;
@@ -48,6 +53,8 @@ export function registerCompare(program: Command): void {
     .option('--ridership <file.csv>', 'stop-level ridership used for both audits (default: assumed demand)')
     .option('--params <file.json>', 'model parameters used for both audits')
     .option('--context <feed>', "another feed (zip, folder or URL; repeatable) whose stations within 150 m keep stops as transfer points in both audits; lists the stops that lost or gained such a link", (v: string, prev: string[] = []) => prev.concat(v))
+    .option('--land-use <file>', 'where people live and work (CSV or GeoJSON, as for audit), read once and used for both audits: people covered by each version and the difference')
+    .option('--land-use-weights <list>', 'the land-use columns read and their weights, as column=weight,... (default population=1,jobs=1, whichever the file has)')
     .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('--no-audit', 'skip the audits: no close stops, wide gaps, passenger-minutes or candidates (faster)')
     .option('-q, --quiet', 'no progress on stderr')
@@ -56,16 +63,24 @@ export function registerCompare(program: Command): void {
       runAction(o.verbose === true, async () => {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
+        if (o.landUseWeights !== undefined && o.landUse === undefined) throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: o.landUseWeights });
+        if (o.landUse !== undefined && !o.audit) throw new StopspanError('bad-option', 'option --land-use needs the audits: leave out --no-audit', { value: o.landUse });
+        const landUseColumns = o.landUseWeights !== undefined ? parseLandUseWeights(o.landUseWeights) : null;
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }, { readLandUseAside }] = await Promise.all([
           import('../compare/compare.js'),
           import('../audit/runAudit.js'),
           import('../audit/contextStations.js'),
           import('../report/compareRender.js'),
           import('../report/writeFolder.js'),
+          import('../landuse/readLandUseAside.js'),
         ]);
-        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params, ...(o.context ?? [])] };
+        const outOptions = { force: o.force === true, inputs: [oldSource, newSource, o.ridership, o.params, o.landUse, ...(o.context ?? [])] };
         if (o.out) await checkOutFolder(o.out, outOptions); // before the feeds are read
+        // the land-use layer is read once, on a worker thread while the older feed is read, and serves both audits
+        const landUseRead = o.landUse !== undefined ? readLandUseAside(o.landUse, { columns: landUseColumns }) : undefined;
+        landUseRead?.catch(() => undefined); // a failure surfaces at the await below
+        let landUse: LandUseLayer | undefined;
         const progress = makeProgress(o.quiet === true || o.json === true);
         // the same parameters and ridership file on both sides, so the figures differ only by the feeds
         const params = o.audit ? loadParams(o.params, {}) : undefined;
@@ -80,7 +95,8 @@ export function registerCompare(program: Command): void {
           oldContext = await contextStops(a.feed, a.patterns, context);
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
-          if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations }));
+          landUse = await landUseRead;
+          if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations, landUse }));
           a = { ...a, feed: comparedPart(a.feed, a.patterns) };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
           newContext = await contextStops(b.feed, b.patterns, context);
@@ -88,7 +104,7 @@ export function registerCompare(program: Command): void {
           progress.done();
         }
         let audits: { old: AuditBrief; new: AuditBrief } | undefined;
-        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: auditBrief(runAudit(b.feed, b.patterns, { params, ridership: o.ridership, stations: newContext.near, contextStations: newContext.stations })) };
+        if (params && oldAudit && b.patterns.patterns.length > 0) audits = { old: oldAudit, new: auditBrief(runAudit(b.feed, b.patterns, { params, ridership: o.ridership, stations: newContext.near, contextStations: newContext.stations, landUse })) };
         const stationStops = context.length > 0 ? { old: oldContext.near, new: newContext.near } : undefined;
         const c = compareFeeds(a.feed, b.feed, a.patterns, b.patterns, { moveThresholdM, audits, stationStops });
         const code = compareExitCode(c, tripLossPct);

@@ -1,11 +1,12 @@
 // Comparison of two versions of a feed: stops added, removed, moved and renamed; route patterns added,
 // removed and changed (stops inserted or dropped); trips a day per route and pattern where they changed
 // (a service cut is the change a nightly job exists to catch); and the spacing picture before and after,
-// with the audit's figures and candidates when both audits are given.
+// with the audit's figures and candidates when both audits are given; with a land-use layer audited on both
+// sides, the people within a walk of a stop served before and after (coverage).
 
 import type { Feed, Stop, TripStopTimes } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
-import type { AuditResult, Candidate } from '../audit/types.js';
+import type { AuditResult, Candidate, LandUseSummary } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
 import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import { runsOfFrequency } from '../gtfs/frequencies.js';
@@ -117,6 +118,22 @@ export interface Comparison {
    * feed's station (--context) in one version and not in the other; null without context feeds.
    */
   stationLinks: { lost: StationLink[]; gained: StationLink[] } | null;
+  /** People within a walk of a stop served on each version, from the same land-use layer; null without one. */
+  coverage: CoverageChange | null;
+}
+
+/** Coverage before and after: the same land-use layer's people within a walk of a stop served on each version. */
+export interface CoverageChange {
+  file: string;
+  walkRadiusM: number;
+  /** The layer's people (weighted sum of its columns), the same on both sides. */
+  people: number;
+  /** People (weighted) within a walk of a stop served on the older feed, on the newer, and the difference (after - before). */
+  before: number;
+  after: number;
+  change: number;
+  /** Each column read: its weight, its total over the layer, and the part within a walk before and after. */
+  columns: { name: string; weight: number; total: number; before: number; after: number; change: number }[];
 }
 
 /** A stop beside a context station in one version only, and why: not served in the other, or moved. */
@@ -165,6 +182,24 @@ export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternS
     spacing: { before: spacingPicture(oldPatterns, audits?.old), after: spacingPicture(newPatterns, audits?.new) },
     candidates: audits ? compareCandidates(audits.old.candidates, audits.new.candidates) : null,
     stationLinks: stationStops ? compareStationLinks(oldFeed, newFeed, oldPatterns, newPatterns, stationStops) : null,
+    coverage: audits ? compareCoverage(audits.old.landUse ?? null, audits.new.landUse ?? null) : null,
+  };
+}
+
+/** Coverage on both versions from their audits' land-use figures; null unless both audits had the layer. */
+function compareCoverage(before: LandUseSummary | null, after: LandUseSummary | null): CoverageChange | null {
+  if (!before || !after) return null;
+  return {
+    file: after.file,
+    walkRadiusM: after.walkRadiusM,
+    people: after.people,
+    before: before.peopleCovered,
+    after: after.peopleCovered,
+    change: after.peopleCovered - before.peopleCovered,
+    columns: after.columns.map((c, k) => {
+      const b = before.columns[k]?.covered ?? 0;
+      return { name: c.name, weight: c.weight, total: c.total, before: b, after: c.covered, change: c.covered - b };
+    }),
   };
 }
 
@@ -476,11 +511,11 @@ function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newS
 }
 
 /** What a comparison reads of an audit: a caller may hold this alone while the other feed is read and audited. */
-export type AuditBrief = Pick<AuditResult, 'headline' | 'candidates'>;
+export type AuditBrief = Pick<AuditResult, 'headline' | 'candidates' | 'landUse'>;
 
-/** The parts of an audit a comparison reads, the rest (per stop, gap and pattern) let go. */
-export function auditBrief({ headline, candidates }: AuditBrief): AuditBrief {
-  return { headline, candidates };
+/** The parts of an audit a comparison reads (the land-use figures are the network's, a few numbers), the rest (per stop, gap and pattern) let go. */
+export function auditBrief({ headline, candidates, landUse = null }: AuditBrief): AuditBrief {
+  return { headline, candidates, landUse };
 }
 
 function spacingPicture(set: PatternSet, audit: AuditBrief | undefined): SpacingPicture {

@@ -10,6 +10,11 @@ const n1 = (v: number | null): string => (v === null ? '-' : v.toFixed(1));
 const n0 = (v: number | null): string => (v === null ? '-' : Math.round(v).toString());
 /** A change in percent with its sign, or 'new' for a route that had no trips. */
 const pct = (v: number | null): string => (v === null ? 'new' : `${v > 0 ? '+' : ''}${v.toFixed(1)} %`);
+/** A whole-number change with its sign: +12, -300, 0. */
+const signed = (v: number): string => {
+  const r = Math.round(v);
+  return r > 0 ? `+${r}` : String(r === 0 ? 0 : r);
+};
 const routeName = (r: RouteTripChange): string => (r.shortName && r.shortName !== r.routeId ? `${r.routeId} (${r.shortName})` : r.routeId);
 const idList = (ids: string[], count: number): string => (count === 0 ? '' : ids.join(' ') + (count > ids.length ? ` ... (${count} in all)` : ''));
 const span = (x: PatternTripChange, side: 'before' | 'after'): string => `${x.firstDeparture[side] ?? '-'}-${x.lastDeparture[side] ?? '-'}`;
@@ -62,6 +67,13 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   for (const [label, key, f] of SPACING_ROWS) {
     out.push(`${label.padEnd(22)}${f(c.spacing.before[key]).padStart(12)}${f(c.spacing.after[key]).padStart(12)}`);
   }
+  if (c.coverage) {
+    const v = c.coverage;
+    out.push(`coverage: people within a ${v.walkRadiusM} m walk of a stop served (land use ${term(v.file)}, ${n0(v.people)} people in all)`);
+    out.push(`${''.padEnd(22)}${'before'.padStart(12)}${'after'.padStart(12)}${'change'.padStart(12)}`);
+    out.push(`${'people covered'.padEnd(22)}${n0(v.before).padStart(12)}${n0(v.after).padStart(12)}${signed(v.change).padStart(12)}`);
+    for (const col of v.columns) out.push(`${term(`  ${col.name}`).padEnd(22)}${n0(col.before).padStart(12)}${n0(col.after).padStart(12)}${signed(col.change).padStart(12)}`);
+  }
   if (c.candidates) {
     out.push(`candidates: ${c.candidates.appeared.length} appeared, ${c.candidates.disappeared.length} disappeared`);
     list(c.candidates.appeared, (x) => `+ ${x.action} ${x.stopId || x.stopName}  ${x.netPaxMinPerDay.toFixed(0)} pax-min/day`);
@@ -111,6 +123,19 @@ export function comparisonHtml(c: Comparison): string {
     ),
     '<h2>Spacing before and after</h2>',
     table(['', 'before', 'after'], SPACING_ROWS.map(([label, key, f]) => [label, f(c.spacing.before[key]), f(c.spacing.after[key])])),
+    ...(c.coverage
+      ? [
+          '<h2>Coverage before and after</h2>',
+          `<p>People within a ${esc(String(c.coverage.walkRadiusM))} m walk of a stop served on each version, from the land-use layer ${esc(c.coverage.file)} (${esc(n0(c.coverage.people))} people in all).</p>`,
+          table(
+            ['', 'in the layer', 'covered before', 'covered after', 'change'],
+            [
+              ['people', n0(c.coverage.people), n0(c.coverage.before), n0(c.coverage.after), signed(c.coverage.change)],
+              ...c.coverage.columns.map((col) => [`${col.name} (weight ${col.weight})`, n0(col.total), n0(col.before), n0(col.after), signed(col.change)]),
+            ],
+          ),
+        ]
+      : []),
     '<h2>Candidates</h2>',
     c.candidates
       ? table(

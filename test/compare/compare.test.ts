@@ -136,14 +136,14 @@ describe('compareFeeds', () => {
     expect(c.candidates!.disappeared.map((x) => x.stopId)).toEqual(['S2']);
   });
 
-  it('compares as the whole audits do from their brief, which holds the headline and candidates alone', () => {
+  it('compares as the whole audits do from their brief, which holds the headline, candidates and land-use figures alone', () => {
     const a = buildFeed(cleanSpec());
     const cand = { rank: 1, action: 'remove', stopId: 'S2', stopName: 'Vellmoor S2', routeIds: ['R1'], netPaxMinPerDay: -30 } as unknown as Candidate;
     const whole = (closeStops: number, candidates: Candidate[]) =>
       ({ headline: { closeStops, wideGaps: 1, paxMinLostPerDay: 60 }, candidates, stops: [{}], gaps: [{}], patterns: [{}], sensitivity: [{}] }) as unknown as AuditResult;
     const audits = { old: whole(4, [cand]), new: whole(2, []) };
     const brief = auditBrief(audits.old);
-    expect(Object.keys(brief).sort()).toEqual(['candidates', 'headline']);
+    expect(Object.keys(brief).sort()).toEqual(['candidates', 'headline', 'landUse']);
     const full = compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { audits });
     expect(compareFeeds(a.feed, a.feed, a.patterns, a.patterns, { audits: { old: brief, new: auditBrief(audits.new) } })).toEqual(full);
     expect(full.candidates!.disappeared.map((x) => x.stopId)).toEqual(['S2']);
