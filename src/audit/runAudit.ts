@@ -10,7 +10,7 @@ import { version } from '../version.js';
 import type { AuditResult, Headline, LandUseSummary, ReviewGap } from './types.js';
 import { FAST_STRETCH_MPS, MIN_PEOPLE_FOR_ADDITION, WALK_DETOUR, WALK_RADIUS_M } from './additionEvidence.js';
 import type { LandUseLayer } from '../landuse/readLandUse.js';
-import { peopleForNewStop, type Catchments } from '../model/catchments.js';
+import { densityGrid, peopleForNewStop, type Catchments } from '../model/catchments.js';
 import type { CandidateOptions } from './candidates.js';
 import { paramsReport, type ParamsInput } from '../model/params.js';
 import { BOARDING_TIME_PER_PAX_S, cruiseSpeedBoundsMps } from '../model/cruiseSpeed.js';
@@ -65,6 +65,7 @@ function landUseSummary(c: Catchments): LandUseSummary {
     peopleCovered: c.coveredPeople,
     walkRadiusM: WALK_RADIUS_M,
     walkDetour: WALK_DETOUR,
+    density: densityGrid(c),
   };
 }
 

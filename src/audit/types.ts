@@ -10,6 +10,7 @@ import type { DistanceSource } from '../network/types.js';
 import type { StoppingModel } from '../model/params.js';
 import type { DemandSource, FixedReason, LostTimeSource, ObservedFigures, ParamsReport, SourceLabel } from '../model/types.js';
 import type { ScenarioInput, ScenarioResult } from '../model/scenario.js';
+import type { DensityGrid } from '../model/catchments.js';
 
 export type Verdict = 'close' | 'wide' | 'ok' | 'fixed';
 /** A stop's own verdict, apart from the gaps beside it (see verdictKinds.ts). */
@@ -187,6 +188,8 @@ export interface LandUseSummary {
   peopleCovered: number; // weighted, within a walk of a stop served
   walkRadiusM: number;
   walkDetour: number;
+  /** The layer's people in squares near the stops served, drawn lightly under each pattern's map on the page. */
+  density?: DensityGrid;
 }
 
 export interface Headline {

@@ -513,9 +513,9 @@ function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newS
 /** What a comparison reads of an audit: a caller may hold this alone while the other feed is read and audited. */
 export type AuditBrief = Pick<AuditResult, 'headline' | 'candidates' | 'landUse'>;
 
-/** The parts of an audit a comparison reads (the land-use figures are the network's, a few numbers), the rest (per stop, gap and pattern) let go. */
+/** The parts of an audit a comparison reads (of the land use, the network's figures without the page's density squares), the rest (per stop, gap and pattern) let go. */
 export function auditBrief({ headline, candidates, landUse = null }: AuditBrief): AuditBrief {
-  return { headline, candidates, landUse };
+  return { headline, candidates, landUse: landUse && { ...landUse, density: undefined } };
 }
 
 function spacingPicture(set: PatternSet, audit: AuditBrief | undefined): SpacingPicture {

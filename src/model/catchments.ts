@@ -11,7 +11,7 @@ import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
 import type { LandUseLayer } from '../landuse/readLandUse.js';
 import { PointGrid } from '../landuse/pointGrid.js';
-import { WALK_REACH_M } from './walkReach.js';
+import { WALK_RADIUS_M, WALK_REACH_M } from './walkReach.js';
 
 /** A land-use point this far (metres, straight line) from every stop of the feed is refused [D]. */
 export const LAND_USE_FAR_M = 25_000;
@@ -220,4 +220,72 @@ export function coveredAfter(c: Catchments, closed: ReadonlySet<number>, opened:
     if (ok) covered += layer.people[i];
   }
   return covered;
+}
+
+/**
+ * The side of the squares the layer's people are summed into for the page's maps, metres [D, a design
+ * choice]: about half a walk's straight reach, fine enough to show which blocks along a route hold people,
+ * coarse enough that a city's layer is a few thousand squares.
+ */
+export const DENSITY_CELL_M = 150;
+/** Squares are kept only with a stop served within this straight line of their centre [D]: twice a walk, the maps' view around a route. */
+export const DENSITY_NEAR_M = 2 * WALK_RADIUS_M;
+/** Most squares kept for the page; beyond it the squares are made twice as wide until they fit [D]. About 12 bytes each in the page. */
+export const MAX_DENSITY_CELLS = 6_000;
+
+/** The layer's people summed into squares near the stops served: what the page's maps draw under each route. */
+export interface DensityGrid {
+  /** The squares' side, metres (DENSITY_CELL_M, doubled while more than MAX_DENSITY_CELLS would be kept). */
+  cellM: number;
+  /** Square (i, j) spans latitudes lat0 + i latStep to lat0 + (i + 1) latStep, longitudes likewise with lonStep. */
+  latStep: number;
+  lonStep: number;
+  lat0: number;
+  lon0: number;
+  /** The squares with people in them: [i, j, people] triples, flat, people (weighted) to the whole person; squares with none left out. */
+  cells: number[];
+}
+
+/** Metres per degree of latitude on the sphere the distances are measured on (haversineM's radius, 6 371 008.8 m) [D: pi R / 180]. */
+const M_PER_DEG_LAT = (Math.PI * 6_371_008.8) / 180;
+
+/** The layer's people in squares of DENSITY_CELL_M (or wider, see MAX_DENSITY_CELLS) near the stops served. */
+export function densityGrid(c: Catchments): DensityGrid {
+  const { layer } = c;
+  let sumLat = 0;
+  let sumLon = 0;
+  let n = 0;
+  for (let i = 0; i < layer.lat.length; i++) {
+    sumLat += layer.lat[i];
+    sumLon += layer.lon[i];
+    n++;
+  }
+  // the origin on a round 0.01 degree near the layer's middle, so the squares' numbers stay small
+  const lat0 = n > 0 ? Math.round((sumLat / n) * 100) / 100 : 0;
+  const lon0 = n > 0 ? Math.round((sumLon / n) * 100) / 100 : 0;
+  const cos = Math.max(0.01, Math.cos(lat0 * (Math.PI / 180)));
+  for (let cellM = DENSITY_CELL_M; ; cellM *= 2) {
+    const latStep = cellM / M_PER_DEG_LAT;
+    const lonStep = latStep / cos;
+    const sums = new Map<string, number>();
+    for (let i = 0; i < layer.lat.length; i++) {
+      if (!(layer.people[i] > 0)) continue;
+      const key = `${Math.floor((layer.lat[i] - lat0) / latStep)},${Math.floor((layer.lon[i] - lon0) / lonStep)}`;
+      sums.set(key, (sums.get(key) ?? 0) + layer.people[i]);
+    }
+    const cells: number[] = [];
+    const reachM = DENSITY_NEAR_M + cellM * Math.SQRT1_2; // the centre's distance, so a square any part of which is near
+    let kept = 0;
+    for (const [key, people] of sums) {
+      const whole = Math.round(people);
+      if (whole === 0) continue;
+      const [ci, cj] = key.split(',').map(Number);
+      let near = false;
+      c.stopGrid.near(lat0 + (ci + 0.5) * latStep, lon0 + (cj + 0.5) * lonStep, reachM, () => (near = true));
+      if (!near) continue;
+      cells.push(ci, cj, whole);
+      kept++;
+    }
+    if (kept <= MAX_DENSITY_CELLS) return { cellM, latStep, lonStep, lat0, lon0, cells };
+  }
 }

@@ -14,6 +14,7 @@ import { histogramSvg } from './histogramSvg.js';
 import { PAGE_SCRIPT } from './pageScript.js';
 import { VERDICTS } from '../../audit/verdictKinds.js';
 import { PAGE_STYLE } from './pageStyle.js';
+import { DENSITY_NEAR_M } from '../../model/catchments.js';
 
 export interface HtmlOptions {
   units?: Units;
@@ -177,7 +178,27 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     pats: c.patternIds.flatMap((id) => patternPos.get(id) ?? []), // positions in patterns, to link a row to its pattern's section
     ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] } : {}),
   }));
-  return { units, assumed: result.demandSource !== 'observed', stopTable, patterns, candidates };
+  return { units, assumed: result.demandSource !== 'observed', stopTable, patterns, candidates, density: densityData(result) };
+}
+
+/** Most squares of the land-use layer one pattern's map draws; the script merges squares into wider ones beyond it. */
+export const MAP_DENSITY_CELLS = 300;
+
+/**
+ * The land-use layer's people in squares near the stops served (LandUseSummary.density, at most
+ * MAX_DENSITY_CELLS of them in the page), for the maps to draw lightly under each route; null without a
+ * layer. `top`: the people in a square at the top of the light-to-dark scale, the 95th percentile of the
+ * squares, so a few very dense squares do not leave the rest blank.
+ */
+function densityData(result: AuditResult): Record<string, unknown> | null {
+  const g = result.landUse?.density;
+  if (!g) return null;
+  const people: number[] = [];
+  for (let k = 2; k < g.cells.length; k += 3) people.push(g.cells[k]);
+  people.sort((a, b) => a - b);
+  const top = people.length ? Math.max(1, people[Math.min(people.length - 1, Math.floor(people.length * 0.95))]) : 1;
+  const r9 = (v: number): number => Math.round(v * 1e9) / 1e9;
+  return { m: g.cellM, near: DENSITY_NEAR_M, max: MAP_DENSITY_CELLS, step: [r9(g.latStep), r9(g.lonStep)], o: [g.lat0, g.lon0], top, cells: g.cells };
 }
 
 // why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)

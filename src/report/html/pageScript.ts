@@ -121,6 +121,12 @@ export const PAGE_SCRIPT = String.raw`
       [candShape('add', 8, 8, 6), 'candidate: add a stop here (plus; #rank)'],
       [keepMark(8, 8, 5), 'the optimiser\u2019s plan keeps the stop (upright bar, plan row of the strip)'],
       [dropMark(8, 8, 4.5), 'the optimiser\u2019s plan drops the stop (cross)']].forEach(function (it) { legendEntry(box, it[0], 16, 16, it[1]); });
+    // the land-use layer under the map, when the audit had one
+    if (D.density) {
+      var sample = sv('g');
+      [0.1, 0.3, 0.48].forEach(function (o, n) { sample.appendChild(sv('rect', { 'class': 'density', x: 1 + n * 9, y: 3, width: 8, height: 10, 'fill-opacity': o })); });
+      legendEntry(box, sample, 28, 16, 'on the map, where people are (land-use layer): squares within ' + len(D.density.near) + ' of the pattern\u2019s stops, lighter to darker by people per ' + len(D.density.m) + ' square, darkest from ' + num(D.density.top) + ' up');
+    }
     return box;
   }
   function stopTitle(p, s) {
@@ -246,6 +252,36 @@ export const PAGE_SCRIPT = String.raw`
     return s;
   }
 
+  // ---- the land-use layer's people under a map: the squares in view within D.density.near of one of the
+  // pattern's stops, merged into wider squares while more than D.density.max; shaded light to dark by
+  // people per square of the layer's side (D.density.top and above darkest) ----
+  function densityCells(p, px, view) {
+    var g = D.density, out = sv('g', { 'class': 'density-cells', 'aria-hidden': 'true' });
+    var mLat = 111195, cos = Math.cos(g.o[0] * Math.PI / 180), near2 = g.near * g.near;
+    var stops = p.stops.map(function (st) { return [st[3], st[4]]; });
+    var found = [];
+    for (var c = 0; c + 2 < g.cells.length; c += 3) {
+      var i = g.cells[c], j = g.cells[c + 1];
+      var lat = g.o[0] + (i + 0.5) * g.step[0], lon = g.o[1] + (j + 0.5) * g.step[1];
+      if (lon < view[0] || lon > view[1] || lat < view[2] || lat > view[3]) continue;
+      var ok = stops.some(function (q) { var dy = (lat - q[0]) * mLat, dx = (lon - q[1]) * mLat * cos; return dx * dx + dy * dy <= near2; });
+      if (ok) found.push([i, j, g.cells[c + 2]]);
+    }
+    var f = 1, cells = found;
+    while (cells.length > g.max) {
+      f++;
+      var sums = {};
+      found.forEach(function (x) { var key = Math.floor(x[0] / f) + ',' + Math.floor(x[1] / f); sums[key] = (sums[key] || 0) + x[2]; });
+      cells = Object.keys(sums).map(function (key) { var ij = key.split(','); return [+ij[0], +ij[1], sums[key]]; });
+    }
+    cells.forEach(function (x) {
+      var a = px([g.o[1] + x[1] * f * g.step[1], g.o[0] + (x[0] + 1) * f * g.step[0]]);
+      var b = px([g.o[1] + (x[1] + 1) * f * g.step[1], g.o[0] + x[0] * f * g.step[0]]);
+      var shade = Math.min(1, x[2] / (f * f) / g.top);
+      out.appendChild(sv('rect', { 'class': 'density', x: a[0].toFixed(1), y: a[1].toFixed(1), width: Math.max(0.5, b[0] - a[0]).toFixed(1), height: Math.max(0.5, b[1] - a[1]).toFixed(1), 'fill-opacity': (0.06 + 0.42 * shade).toFixed(2) }));
+    });
+    return out;
+  }
   // ---- schematic map: local equirectangular projection of the path, no tiles ----
   function map(p, info) {
     var pts = p.path.length >= 2 ? p.path : p.stops.map(function (s) { return [s[4], s[3]]; });
@@ -259,6 +295,7 @@ export const PAGE_SCRIPT = String.raw`
     var ox = (W - spanX * sc) / 2, oy = (H - 20 - spanY * sc) / 2;
     function px(q) { return [ox + (q[0] - minLon) * k * sc, oy + (maxLat - q[1]) * sc]; }
     var s = sv('svg', { 'class': 'chart map', viewBox: '0 0 ' + W + ' ' + H, role: 'group', 'aria-label': 'Schematic map of ' + patternLabel(p) });
+    if (D.density) s.appendChild(densityCells(p, px, [minLon - ox / (k * sc), minLon + (W - ox) / (k * sc), maxLat - (H - oy) / sc, maxLat + oy / sc]));
     var dpath = pts.map(function (q, i) { var c = px(q); return (i ? 'L' : 'M') + c[0].toFixed(1) + ' ' + c[1].toFixed(1); }).join('');
     s.appendChild(sv('path', { 'class': 'route-line', d: dpath }));
     p.stops.forEach(function (st) {

@@ -44,6 +44,7 @@ svg text { font-family:inherit; fill:var(--ink); }
 .opt-line { stroke:var(--accent); stroke-width:2; }
 .median-line { stroke:var(--ink); stroke-width:1.5; stroke-dasharray:5 4; }
 .curve { fill:none; stroke:var(--ink); stroke-width:2.2; }
+.density { fill:var(--accent); }
 .route-line { fill:none; stroke:#8c9aa0; stroke-width:2.5; stroke-linejoin:round; stroke-linecap:round; }
 .strip-line { stroke:#8c9aa0; stroke-width:3; }
 .gap-wide { stroke:var(--wide); stroke-width:7; stroke-opacity:.55; }
