@@ -37,8 +37,10 @@ export interface Catchments {
   onlyStop: Map<number, number>;
   /** Straight-line metres from each point to its nearest stop served within the reach; Infinity beyond every one. */
   nearestM: Float64Array;
-  /** The stops served, on a grid. */
+  /** The stops served, on a grid, and every feed stop's coordinates. */
   stopGrid: PointGrid;
+  stopLat: number[];
+  stopLon: number[];
   served: Set<number>;
   /** The layer's points on a grid (made when first asked for). */
   pointGrid(): PointGrid;
@@ -177,6 +179,8 @@ export function buildCatchments(layer: LandUseLayer, feed: Feed, patterns: reado
     onlyStop,
     nearestM,
     stopGrid,
+    stopLat,
+    stopLon,
     served,
     pointGrid: () => (grid ??= new PointGrid(layer.lat, layer.lon)),
   };
@@ -246,6 +250,9 @@ export interface DensityGrid {
   cells: number[];
 }
 
+const KEY_OFFSET = 1 << 20;
+const KEY_ROW = 1 << 21;
+
 /** Metres per degree of latitude on the sphere the distances are measured on (haversineM's radius, 6 371 008.8 m) [D: pi R / 180]. */
 const M_PER_DEG_LAT = (Math.PI * 6_371_008.8) / 180;
 
@@ -267,23 +274,38 @@ export function densityGrid(c: Catchments): DensityGrid {
   for (let cellM = DENSITY_CELL_M; ; cellM *= 2) {
     const latStep = cellM / M_PER_DEG_LAT;
     const lonStep = latStep / cos;
-    const sums = new Map<string, number>();
+    // a square's key: its row and column, each offset by 2^20 (more squares than the Earth is wide), as one number
+    const sums = new Map<number, number>();
     for (let i = 0; i < layer.lat.length; i++) {
       if (!(layer.people[i] > 0)) continue;
-      const key = `${Math.floor((layer.lat[i] - lat0) / latStep)},${Math.floor((layer.lon[i] - lon0) / lonStep)}`;
+      const key = (Math.floor((layer.lat[i] - lat0) / latStep) + KEY_OFFSET) * KEY_ROW + Math.floor((layer.lon[i] - lon0) / lonStep) + KEY_OFFSET;
       sums.set(key, (sums.get(key) ?? 0) + layer.people[i]);
     }
-    const cells: number[] = [];
+    // the squares near a stop served: around each stop, those whose centre is within the reach (metres in the
+    // layer's local frame, as the squares are laid out)
     const reachM = DENSITY_NEAR_M + cellM * Math.SQRT1_2; // the centre's distance, so a square any part of which is near
+    const span = Math.ceil(reachM / cellM) + 1;
+    const reach2 = (reachM / cellM) * (reachM / cellM);
+    const near = new Set<number>();
+    for (const s of c.served) {
+      const stop = { lat: c.stopLat[s], lon: c.stopLon[s] };
+      if (!Number.isFinite(stop.lat) || !Number.isFinite(stop.lon)) continue;
+      const si = Math.floor((stop.lat - lat0) / latStep);
+      const sj = Math.floor((stop.lon - lon0) / lonStep);
+      const fi = (stop.lat - lat0) / latStep - 0.5; // the stop in squares, measured from the squares' centres
+      const fj = (stop.lon - lon0) / lonStep - 0.5;
+      for (let i = si - span; i <= si + span; i++) {
+        for (let j = sj - span; j <= sj + span; j++) {
+          if ((i - fi) * (i - fi) + (j - fj) * (j - fj) <= reach2) near.add((i + KEY_OFFSET) * KEY_ROW + j + KEY_OFFSET);
+        }
+      }
+    }
+    const cells: number[] = [];
     let kept = 0;
     for (const [key, people] of sums) {
       const whole = Math.round(people);
-      if (whole === 0) continue;
-      const [ci, cj] = key.split(',').map(Number);
-      let near = false;
-      c.stopGrid.near(lat0 + (ci + 0.5) * latStep, lon0 + (cj + 0.5) * lonStep, reachM, () => (near = true));
-      if (!near) continue;
-      cells.push(ci, cj, whole);
+      if (whole === 0 || !near.has(key)) continue;
+      cells.push(Math.floor(key / KEY_ROW) - KEY_OFFSET, (key % KEY_ROW) - KEY_OFFSET, whole);
       kept++;
     }
     if (kept <= MAX_DENSITY_CELLS) return { cellM, latStep, lonStep, lat0, lon0, cells };
