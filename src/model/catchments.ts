@@ -4,7 +4,9 @@
 // sets its share of the pattern's trip ends); on the network, to the nearest stop served at all (coverage).
 // People beyond every stop's walk are uncovered; a feature none of whose points is within a walk of a stop
 // touches no catchment and is counted. A point 25 km or more from every stop of the feed is an error (a
-// layer of another place, or latitude and longitude swapped), naming the row or feature.
+// layer of another place, or latitude and longitude swapped), naming the row or feature. For the page's
+// maps, the layer's people are also summed into squares near the stops served (densityGrid), bounded in
+// number so the page stays small.
 
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
