@@ -283,6 +283,108 @@ function polygonRings(coords: unknown, file: string, feature: string, b: LayerBu
   return { areaM2, pieces };
 }
 
+/** Past the JSON value starting at i (a string, an object, an array, a number or a literal): its end, or -1 where the text ends first. */
+function skipValue(text: string, i: number): number {
+  const n = text.length;
+  const c = text.charCodeAt(i);
+  if (c === 0x22) return skipString(text, i);
+  if (c === 0x7b || c === 0x5b) {
+    let depth = 0;
+    while (i < n) {
+      const d = text.charCodeAt(i);
+      if (d === 0x22) {
+        i = skipString(text, i);
+        if (i < 0) return -1;
+        continue;
+      }
+      if (d === 0x7b || d === 0x5b) depth++;
+      else if (d === 0x7d || d === 0x5d) {
+        depth--;
+        if (depth === 0) return i + 1;
+      }
+      i++;
+    }
+    return -1;
+  }
+  // a number or a literal: up to the next delimiter
+  while (i < n) {
+    const d = text.charCodeAt(i);
+    if (d === 0x2c || d === 0x7d || d === 0x5d || d === 0x20 || d === 0x0a || d === 0x0d || d === 0x09) return i;
+    i++;
+  }
+  return -1;
+}
+
+/** Past the string whose opening quote is at i, or -1. */
+function skipString(text: string, i: number): number {
+  const n = text.length;
+  for (i++; i < n; i++) {
+    const d = text.charCodeAt(i);
+    if (d === 0x5c) i++;
+    else if (d === 0x22) return i + 1;
+  }
+  return -1;
+}
+
+function skipSpace(text: string, i: number): number {
+  for (;;) {
+    const d = text.charCodeAt(i);
+    if (d !== 0x20 && d !== 0x0a && d !== 0x0d && d !== 0x09) return i;
+    i++;
+  }
+}
+
+/**
+ * Where a top-level object's one "features" array lies in the text (start, end) and where each of its
+ * elements does (items: start, end pairs), found by a scan that follows strings and brackets only; null
+ * for any text of another shape (the caller then parses it whole, which also checks what the scan does not).
+ */
+function featureSpans(text: string): { start: number; end: number; items: number[] } | null {
+  let i = skipSpace(text, 0);
+  if (text.charCodeAt(i) !== 0x7b) return null;
+  i = skipSpace(text, i + 1);
+  let start = -1;
+  let end = -1;
+  for (;;) {
+    if (text.charCodeAt(i) !== 0x22) return null;
+    const keyEnd = skipString(text, i);
+    if (keyEnd < 0) return null;
+    const key = text.slice(i + 1, keyEnd - 1);
+    i = skipSpace(text, keyEnd);
+    if (text.charCodeAt(i) !== 0x3a) return null;
+    i = skipSpace(text, i + 1);
+    const valueEnd = skipValue(text, i);
+    if (valueEnd < 0) return null;
+    if (key === 'features' || key.includes('\\')) {
+      if (start >= 0 || key !== 'features' || text.charCodeAt(i) !== 0x5b) return null;
+      start = i;
+      end = valueEnd;
+    }
+    i = skipSpace(text, valueEnd);
+    const d = text.charCodeAt(i);
+    if (d === 0x2c) {
+      i = skipSpace(text, i + 1);
+      continue;
+    }
+    if (d !== 0x7d) return null;
+    break;
+  }
+  if (start < 0 || skipSpace(text, i + 1) !== text.length) return null;
+  const items: number[] = [];
+  i = skipSpace(text, start + 1);
+  if (text.charCodeAt(i) === 0x5d) return { start, end, items };
+  for (;;) {
+    const e = skipValue(text, i);
+    if (e < 0) return null;
+    items.push(i, e);
+    i = skipSpace(text, e);
+    const d = text.charCodeAt(i);
+    if (d === 0x2c) i = skipSpace(text, i + 1);
+    else if (d === 0x5d && i + 1 === end) return { start, end, items };
+    else return null;
+  }
+}
+
 function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer {
   let size: number;
   try {
@@ -291,11 +393,32 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
     throw new StopspanError('bad-land-use', `cannot read land-use file: ${(e as Error).message}`, { file });
   }
   if (size > MAX_GEOJSON_BYTES) throw new StopspanError('feed-too-large', `land-use GeoJSON file is larger than ${MAX_GEOJSON_BYTES >> 20} MiB, the cap (use CSV points, which are streamed)`, { file });
-  let doc: unknown;
+  let text: string;
   try {
     const bytes = readFileSync(file);
     // ASCII (as exports mostly are) decodes as latin1, the same text at about half the cost of UTF-8 decoding
-    doc = JSON.parse(isAscii(bytes) ? bytes.toString('latin1') : bytes.toString('utf8').replace(/^\uFEFF/, ''));
+    text = isAscii(bytes) ? bytes.toString('latin1') : bytes.toString('utf8').replace(/^\uFEFF/, '');
+  } catch (e) {
+    throw new StopspanError('bad-land-use', `land-use file is not valid JSON: ${(e as Error).message}`, { file });
+  }
+  // A FeatureCollection is parsed a feature at a time (featureSpans), so each feature's objects are let go as
+  // soon as it is read instead of the whole tree being held; anything amiss (a file that is not valid JSON, a
+  // bad feature, a cap) and the file is read again whole, below, which reports the first problem as ever.
+  const spans = featureSpans(text);
+  if (spans) {
+    try {
+      const envelope: unknown = JSON.parse(text.slice(0, spans.start) + '[]' + text.slice(spans.end));
+      if (isObject(envelope) && envelope.type === 'FeatureCollection' && Array.isArray(envelope.features) && envelope.features.length === 0) {
+        const at = spans.items;
+        return layerOfFeatures(file, asked, at.length / 2, (i) => JSON.parse(text.slice(at[2 * i], at[2 * i + 1])));
+      }
+    } catch {
+      // read whole below
+    }
+  }
+  let doc: unknown;
+  try {
+    doc = JSON.parse(text);
   } catch (e) {
     throw new StopspanError('bad-land-use', `land-use file is not valid JSON: ${(e as Error).message}`, { file });
   }
@@ -303,8 +426,14 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
   if (!isObject(doc) || (doc.type !== 'FeatureCollection' && doc.type !== 'Feature') || (doc.type === 'FeatureCollection' && !Array.isArray(doc.features))) {
     throw new StopspanError('bad-land-use', 'land-use GeoJSON must be a FeatureCollection (or one Feature)', { file, column: 'type', value: isObject(doc) ? String(doc.type) : typeof doc });
   }
+  return layerOfFeatures(file, asked, features.length, (i) => features[i]);
+}
+
+/** The layer from a collection's features, feature(i) the i-th (0-based) of n. */
+function layerOfFeatures(file: string, asked: LandUseColumn[] | null, n: number, feature_: (i: number) => unknown): LandUseLayer {
   let b: LayerBuilder | null = null;
-  features.forEach((f, i) => {
+  for (let i = 0; i < n; i++) {
+    const f = feature_(i);
     const feature = `feature ${i + 1}`;
     if (!isObject(f) || f.type !== 'Feature') throw new StopspanError('bad-land-use', `${feature}: not a GeoJSON Feature`, { file, column: 'type' });
     const props = isObject(f.properties) ? f.properties : {};
@@ -346,7 +475,7 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
       default:
         throw new StopspanError('bad-land-use', `${feature}: invalid geometry: expected Point, MultiPoint, Polygon or MultiPolygon`, { file, column: 'geometry', value: String(g.type) });
     }
-  });
+  }
   if (!b) throw new StopspanError('bad-land-use', 'land-use file has no features', { file });
   return (b as LayerBuilder).finish('geojson');
 }

@@ -56,4 +56,33 @@ describe('readLandUse', () => {
     expect(e.code).toBe('feed-too-large');
     expect(e.oneLine()).toMatch(/huge\.geojson: land-use GeoJSON file is larger than 256 MiB, the cap/);
   });
+
+  describe('a FeatureCollection read a feature at a time reads as the whole document parsed at once', () => {
+    const feat = (population: number, lon: number) => `{"type":"Feature","geometry":{"type":"Point","coordinates":[${lon},45.02]},"properties":{"population":${population},"note":"a \\"quoted\\" [name] {x}"}}`;
+    const write = (name: string, text: string) => {
+      const f = join(tmp, name);
+      writeFileSync(f, text);
+      return f;
+    };
+    const plain = write('plain.geojson', `{"type":"FeatureCollection","features":[${feat(5, 10.03)},${feat(7, 10.031)}]}`);
+    const people = (f: string) => [...readLandUse(f).amounts[0]];
+
+    it('with other members around the features, spaces and line breaks', () => {
+      const f = write('members.geojson', `\n { "name" : "Vellmoor blocks", "features" :\n [ ${feat(5, 10.03)} ,\n\t${feat(7, 10.031)} ] , "crs": {"type": "name", "properties": {"name": "urn:ogc:def:crs:OGC:1.3:CRS84"}}, "type":"FeatureCollection" }\n`);
+      expect(people(f)).toEqual(people(plain));
+      expect(people(f)).toEqual([5, 7]);
+    });
+
+    it('with the key written with an escape, or given twice (the last one counts, as in JSON)', () => {
+      expect(people(write('escaped.geojson', `{"type":"FeatureCollection","feat\\u0075res":[${feat(5, 10.03)}]}`))).toEqual([5]);
+      expect(people(write('twice.geojson', `{"type":"FeatureCollection","features":[${feat(5, 10.03)}],"features":[${feat(9, 10.03)},${feat(1, 10.03)}]}`))).toEqual([9, 1]);
+    });
+
+    it('reports a file that is not valid JSON as such even after a bad feature, and a bad feature by its number', () => {
+      const broken = write('broken.geojson', `{"type":"FeatureCollection","features":[${feat(-5, 10.03)},${feat(7, 10.031)} oops]}`);
+      expect(thrown(() => readLandUse(broken)).oneLine()).toMatch(/broken\.geojson: land-use file is not valid JSON/);
+      const bad = write('bad.geojson', `{"type":"FeatureCollection","features":[${feat(5, 10.03)},${feat(-7, 10.031)}]}`);
+      expect(thrown(() => readLandUse(bad)).oneLine()).toMatch(/bad\.geojson column population: feature 2: invalid population: a count cannot be negative/);
+    });
+  });
 });
