@@ -22,7 +22,7 @@ export const MAX_LAND_USE_FEATURES = 1_000_000;
 export const MAX_LAND_USE_VERTICES = 5_000_000;
 /** Most weighted points the features may become (a large polygon is cut into up to MAX_CELLS of them). */
 export const MAX_LAND_USE_POINTS = 4_000_000;
-/** Largest GeoJSON file read (it is parsed whole): 256 MiB. */
+/** Largest GeoJSON file read (it is read whole, then parsed a feature at a time): 256 MiB. */
 export const MAX_GEOJSON_BYTES = 256 << 20;
 
 /** A numeric column of the layer and the weight of one of its units in trip ends. */
