@@ -11,7 +11,15 @@ import type { AuditResult } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
 import { loadSqlite, type SqliteBinding } from '../history/loadSqlite.js';
 import { candidateColumns, PATTERN_COLUMNS, STOP_COLUMNS } from './csv.js';
-import { candidateFeatures, patternFeatures, stopFeatures, stopPointFeatures, type Feature, type LineString, type Point } from './geojson.js';
+import {
+  candidateFeatures,
+  patternFeatures,
+  stopFeatures,
+  stopPointFeatures,
+  type Feature,
+  type LineString,
+  type Point,
+} from './geojson.js';
 import type { FileWriter } from './writeFolder.js';
 
 /** The file's name in the output folder. */
@@ -41,10 +49,30 @@ interface Layer {
 
 /** The layers, named as their GeoJSON files are. */
 const LAYERS: Layer[] = [
-  { table: 'patterns', geometryType: 'LINESTRING', description: 'route patterns as lines along their path, with the columns of patterns.csv', features: patternFeatures },
-  { table: 'stops', geometryType: 'POINT', description: 'one point per stop of each pattern, with the columns of stops.csv', features: stopFeatures },
-  { table: 'stop_points', geometryType: 'POINT', description: 'one point per stop served, with the routes and patterns serving it', features: stopPointFeatures },
-  { table: 'candidates', geometryType: 'POINT', description: 'the candidates of candidates.csv: a removal at its stop, an addition at the site proposed', features: candidateFeatures },
+  {
+    table: 'patterns',
+    geometryType: 'LINESTRING',
+    description: 'route patterns as lines along their path, with the columns of patterns.csv',
+    features: patternFeatures,
+  },
+  {
+    table: 'stops',
+    geometryType: 'POINT',
+    description: 'one point per stop of each pattern, with the columns of stops.csv',
+    features: stopFeatures,
+  },
+  {
+    table: 'stop_points',
+    geometryType: 'POINT',
+    description: 'one point per stop served, with the routes and patterns serving it',
+    features: stopPointFeatures,
+  },
+  {
+    table: 'candidates',
+    geometryType: 'POINT',
+    description: 'the candidates of candidates.csv: a removal at its stop, an addition at the site proposed',
+    features: candidateFeatures,
+  },
 ];
 
 /** Declared column types (Requirement 5, Table 1 GeoPackage Data Types). */
@@ -88,7 +116,9 @@ function layerShape(features: Iterable<Feature<Geometry>>, contract: Map<string,
       }
     }
     const e = envelope(f.geometry);
-    bounds = bounds ? [Math.min(bounds[0], e[0]), Math.min(bounds[1], e[2]), Math.max(bounds[2], e[1]), Math.max(bounds[3], e[3])] : [e[0], e[2], e[1], e[3]];
+    bounds = bounds
+      ? [Math.min(bounds[0], e[0]), Math.min(bounds[1], e[2]), Math.max(bounds[2], e[1]), Math.max(bounds[3], e[3])]
+      : [e[0], e[2], e[1], e[3]];
   }
   const columns: LayerShape['columns'] = [...seen].map(([name, s]) => {
     const known = contract.get(name);
@@ -236,13 +266,17 @@ export function writeGeoPackage(result: AuditResult, path: string): void {
     const conn = db;
     conn.transaction(() => {
       conn.exec(SCHEMA);
-      const srs = conn.prepare('INSERT INTO gpkg_spatial_ref_sys (srs_name, srs_id, organization, organization_coordsys_id, definition, description) VALUES (?, ?, ?, ?, ?, ?)');
+      const srs = conn.prepare(
+        'INSERT INTO gpkg_spatial_ref_sys (srs_name, srs_id, organization, organization_coordsys_id, definition, description) VALUES (?, ?, ?, ?, ?, ?)',
+      );
       for (const row of SRS_ROWS) srs.run(...row);
       const contents = conn.prepare(
         `INSERT INTO gpkg_contents (table_name, data_type, identifier, description, last_change, min_x, min_y, max_x, max_y, srs_id)
          VALUES (?, 'features', ?, ?, COALESCE(?, strftime('%Y-%m-%dT%H:%M:%fZ','now')), ?, ?, ?, ?, ?)`,
       );
-      const geometryColumns = conn.prepare('INSERT INTO gpkg_geometry_columns (table_name, column_name, geometry_type_name, srs_id, z, m) VALUES (?, ?, ?, ?, 0, 0)');
+      const geometryColumns = conn.prepare(
+        'INSERT INTO gpkg_geometry_columns (table_name, column_name, geometry_type_name, srs_id, z, m) VALUES (?, ?, ?, ?, 0, 0)',
+      );
       const contract = contractTypes();
       const changed = lastChange(result.generatedAt);
       for (const layer of LAYERS) {
@@ -252,11 +286,23 @@ export function writeGeoPackage(result: AuditResult, path: string): void {
         const columns = shape.columns.map(([name, type]) => `, ${ident(name)} ${type}`).join('');
         conn.exec(`CREATE TABLE ${ident(layer.table)} (fid INTEGER PRIMARY KEY AUTOINCREMENT, geom ${layer.geometryType}${columns})`);
         const b = shape.bounds;
-        contents.run(layer.table, layer.table, layer.description, changed, b?.[0] ?? null, b?.[1] ?? null, b?.[2] ?? null, b?.[3] ?? null, SRS_ID);
+        contents.run(
+          layer.table,
+          layer.table,
+          layer.description,
+          changed,
+          b?.[0] ?? null,
+          b?.[1] ?? null,
+          b?.[2] ?? null,
+          b?.[3] ?? null,
+          SRS_ID,
+        );
         geometryColumns.run(layer.table, 'geom', layer.geometryType, SRS_ID);
         if (shape.count === 0) continue;
         const names = shape.columns.map(([name]) => name);
-        const insert = conn.prepare(`INSERT INTO ${ident(layer.table)} (geom${names.map((n) => ', ' + ident(n)).join('')}) VALUES (?${', ?'.repeat(names.length)})`);
+        const insert = conn.prepare(
+          `INSERT INTO ${ident(layer.table)} (geom${names.map((n) => ', ' + ident(n)).join('')}) VALUES (?${', ?'.repeat(names.length)})`,
+        );
         const values: unknown[] = new Array(names.length + 1);
         for (const f of layer.features(result)) {
           values[0] = geoPackageGeometry(f.geometry);

@@ -2,9 +2,10 @@
 // the GeoJSON layers beside it, then read back by a GeoPackage reader from the registry
 // (@ngageoint/geopackage: its own GeoPackageBinary and WKB decoding) and by the sqlite3 command for the
 // standard's header fields and tables; each layer must hold the GeoJSON file's features, properties and
-// coordinates. Also: a failure leaves no folder, and without the optional SQLite binding the command
-// stops in one line before reading the feed. Requirements cited are those of the OGC GeoPackage
-// Encoding Standard 1.3 (OGC 12-128).
+// coordinates, and where GDAL is installed its ogr2ogr must convert each layer back to that GeoJSON.
+// Also: a failure leaves no folder, and without the optional SQLite binding the command stops in one line
+// before reading the feed. Requirements cited are those of the OGC GeoPackage Encoding Standard 1.3
+// (OGC 12-128).
 
 import { execFileSync, spawnSync } from 'node:child_process';
 import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -31,6 +32,7 @@ const haveSqlite = (() => {
   }
 })();
 const SQLITE_CLI = '/usr/bin/sqlite3';
+const OGR2OGR = '/usr/bin/ogr2ogr';
 if (!haveSqlite) console.warn('GeoPackage tests skipped: the optional package better-sqlite3 is not installed');
 if (!haveDemo) console.warn('GeoPackage demo test skipped: fixtures/demo is absent');
 
@@ -58,11 +60,19 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
     gpkg = join(out, GPKG_FILE);
-    for (const layer of LAYERS) geojson.set(layer, (JSON.parse(readFileSync(join(out, `${layer}.geojson`), 'utf8')) as { features: GeoFeature[] }).features);
+    for (const layer of LAYERS)
+      geojson.set(layer, (JSON.parse(readFileSync(join(out, `${layer}.geojson`), 'utf8')) as { features: GeoFeature[] }).features);
   }, 120_000);
 
   it('is written with the GeoJSON files, and only when asked for', () => {
-    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.geojson', GPKG_FILE, 'patterns.geojson', 'stop_points.geojson', 'stops.geojson']);
+    expect(readdirSync(out).sort()).toEqual([
+      REPORT_MARKER,
+      'candidates.geojson',
+      GPKG_FILE,
+      'patterns.geojson',
+      'stop_points.geojson',
+      'stops.geojson',
+    ]);
     for (const layer of LAYERS) expect(geojson.get(layer)!.length, layer).toBeGreaterThan(0);
   });
 
@@ -80,7 +90,9 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
           const { fid, ...props } = f.properties;
           expect(fid, layer).toBe(i + 1);
           // BOOLEAN columns come back as the 0 or 1 they are stored as (Requirement 5, Table 1)
-          const expected = Object.fromEntries(Object.entries(want[i].properties).map(([k, v]) => [k, typeof v === 'boolean' ? Number(v) : v]));
+          const expected = Object.fromEntries(
+            Object.entries(want[i].properties).map(([k, v]) => [k, typeof v === 'boolean' ? Number(v) : v]),
+          );
           expect(props, `${layer} feature ${i + 1}`).toEqual(expected);
           expect(f.geometry, `${layer} feature ${i + 1}`).toEqual(want[i].geometry);
         });
@@ -88,12 +100,23 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
         const contents = gp.getInfoForTable(gp.getFeatureDao(layer)).contents as { minX: number; maxX: number; minY: number; maxY: number };
         const xs = want.flatMap((f) => positions(f).map((p) => p[0]));
         const ys = want.flatMap((f) => positions(f).map((p) => p[1]));
-        expect([contents.minX, contents.maxX, contents.minY, contents.maxY], layer).toEqual([Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)]);
+        expect([contents.minX, contents.maxX, contents.minY, contents.maxY], layer).toEqual([
+          Math.min(...xs),
+          Math.max(...xs),
+          Math.min(...ys),
+          Math.max(...ys),
+        ]);
       }
       // a geometry's header (clause 2.1.3.1.1) as the reader decodes it: little-endian, WGS 84, an envelope
       const row = gp.connection.get('SELECT geom FROM patterns WHERE fid = 1') as { geom: Buffer };
       const g = new GeometryData(row.geom);
-      expect([g.byteOrder, g.srsId, g.empty, g.extended, g.geometryError]).toEqual([GeometryData.LITTLE_ENDIAN, 4326, false, false, undefined]);
+      expect([g.byteOrder, g.srsId, g.empty, g.extended, g.geometryError]).toEqual([
+        GeometryData.LITTLE_ENDIAN,
+        4326,
+        false,
+        false,
+        undefined,
+      ]);
       const first = positions(geojson.get('patterns')![0]);
       expect([g.envelope.minX, g.envelope.maxX, g.envelope.minY, g.envelope.maxY]).toEqual([
         Math.min(...first.map((p) => p[0])),
@@ -105,6 +128,28 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
       gp.close();
     }
   });
+
+  it.skipIf(!existsSync(OGR2OGR))(
+    'converts back with GDAL (where installed), layer by layer, to the GeoJSON beside it, without a warning',
+    () => {
+      for (const layer of LAYERS) {
+        // GDAL's own GeoPackage driver reads the file and writes the layer as RFC 7946 GeoJSON
+        const p = spawnSync(OGR2OGR, ['-f', 'GeoJSON', '-lco', 'RFC7946=YES', '/vsistdout/', gpkg, layer], {
+          encoding: 'utf8',
+          maxBuffer: 64 << 20,
+        });
+        expect(p.stderr, layer).toBe('');
+        expect(p.status, layer).toBe(0);
+        const got = (JSON.parse(p.stdout) as { features: GeoFeature[] }).features;
+        const want = geojson.get(layer)!;
+        expect(got.length, layer).toBe(want.length);
+        got.forEach((f, i) => {
+          expect(f.properties, `${layer} feature ${i + 1}`).toEqual(want[i].properties);
+          expect(f.geometry, `${layer} feature ${i + 1}`).toEqual(want[i].geometry);
+        });
+      }
+    },
+  );
 
   it.skipIf(!existsSync(SQLITE_CLI))('has the header fields and gpkg tables the standard requires (sqlite3 command)', () => {
     const sql = (q: string): string => execFileSync(SQLITE_CLI, ['-readonly', gpkg, q], { encoding: 'utf8' }).trim();
@@ -119,13 +164,26 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
     expect(sql('PRAGMA integrity_check')).toBe('ok');
     expect(sql('PRAGMA foreign_key_check')).toBe('');
     // Requirement 11 [C]: the rows for WGS 84 (EPSG 4326) and the undefined Cartesian (-1) and geographic (0) systems
-    expect(sql("SELECT srs_id || ',' || organization || ',' || organization_coordsys_id || ',' || (srs_id <= 0 AND definition = 'undefined') FROM gpkg_spatial_ref_sys ORDER BY srs_id")).toBe(
-      '-1,NONE,-1,1\n0,NONE,0,1\n4326,EPSG,4326,0',
-    );
+    expect(
+      sql(
+        "SELECT srs_id || ',' || organization || ',' || organization_coordsys_id || ',' || (srs_id <= 0 AND definition = 'undefined') FROM gpkg_spatial_ref_sys ORDER BY srs_id",
+      ),
+    ).toBe('-1,NONE,-1,1\n0,NONE,0,1\n4326,EPSG,4326,0');
     // Requirement 13 and clause 2.1.5 [C]: one gpkg_contents row of data_type 'features' and one geometry column per layer
-    expect(sql("SELECT table_name || ',' || data_type || ',' || srs_id FROM gpkg_contents ORDER BY rowid")).toBe(LAYERS.map((l) => `${l},features,4326`).join('\n'));
-    expect(sql("SELECT table_name || ',' || column_name || ',' || geometry_type_name || ',' || srs_id || ',' || z || ',' || m FROM gpkg_geometry_columns ORDER BY rowid")).toBe(
-      ['patterns,geom,LINESTRING,4326,0,0', 'stops,geom,POINT,4326,0,0', 'stop_points,geom,POINT,4326,0,0', 'candidates,geom,POINT,4326,0,0'].join('\n'),
+    expect(sql("SELECT table_name || ',' || data_type || ',' || srs_id FROM gpkg_contents ORDER BY rowid")).toBe(
+      LAYERS.map((l) => `${l},features,4326`).join('\n'),
+    );
+    expect(
+      sql(
+        "SELECT table_name || ',' || column_name || ',' || geometry_type_name || ',' || srs_id || ',' || z || ',' || m FROM gpkg_geometry_columns ORDER BY rowid",
+      ),
+    ).toBe(
+      [
+        'patterns,geom,LINESTRING,4326,0,0',
+        'stops,geom,POINT,4326,0,0',
+        'stop_points,geom,POINT,4326,0,0',
+        'candidates,geom,POINT,4326,0,0',
+      ].join('\n'),
     );
     // Requirement 15 [C]: last_change is a DATETIME, YYYY-MM-DDTHH:MM:SS.SSSZ
     for (const t of sql('SELECT last_change FROM gpkg_contents').split('\n')) expect(t).toMatch(/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/);
@@ -134,7 +192,10 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
       // the columns: the key, the geometry, then the GeoJSON properties in order, typed as their values are
       const columns = sql(`SELECT name || ' ' || type FROM pragma_table_info('${layer}') ORDER BY cid`).split('\n');
       const props = Object.keys(geojson.get(layer)![0].properties);
-      expect(columns.map((c) => c.split(' ')[0]), layer).toEqual(['fid', 'geom', ...props]);
+      expect(
+        columns.map((c) => c.split(' ')[0]),
+        layer,
+      ).toEqual(['fid', 'geom', ...props]);
       expect(columns[1], layer).toBe(`geom ${layer === 'patterns' ? 'LINESTRING' : 'POINT'}`);
       for (const [k, i] of props.map((p, i) => [p, i + 2] as const)) {
         const type = columns[i].split(' ')[1];
@@ -157,9 +218,22 @@ describe.skipIf(!haveSqlite || !haveDemo)('layers.gpkg of the demo feed', () => 
 describe('the GeoPackage geometry encoding', () => {
   it('is read back by the registry reader: header, envelope and ISO WKB of a line and a point', async () => {
     const { GeometryData } = await import('@ngageoint/geopackage');
-    const line = { type: 'LineString' as const, coordinates: [[-0.5, 51.25], [2.125, -33.5], [1, 0]] as [number, number][] };
+    const line = {
+      type: 'LineString' as const,
+      coordinates: [
+        [-0.5, 51.25],
+        [2.125, -33.5],
+        [1, 0],
+      ] as [number, number][],
+    };
     const g = new GeometryData(geoPackageGeometry(line));
-    expect([g.byteOrder, g.srsId, g.empty, g.extended, g.geometryError]).toEqual([GeometryData.LITTLE_ENDIAN, 4326, false, false, undefined]);
+    expect([g.byteOrder, g.srsId, g.empty, g.extended, g.geometryError]).toEqual([
+      GeometryData.LITTLE_ENDIAN,
+      4326,
+      false,
+      false,
+      undefined,
+    ]);
     expect([g.envelope.minX, g.envelope.maxX, g.envelope.minY, g.envelope.maxY]).toEqual([-0.5, 2.125, -33.5, 51.25]);
     expect(g.geometry.toGeoJSON()).toEqual(line);
     const pt = { type: 'Point' as const, coordinates: [10.063461, 45.014682] as [number, number] };
@@ -216,11 +290,17 @@ describe('without the optional SQLite binding', () => {
       encoding: 'utf8',
       env: { ...process.env, NO_COLOR: '1' },
     });
-    expect(r.stderr).toBe('error: --format gpkg (the GeoPackage) needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12\n');
+    expect(r.stderr).toBe(
+      'error: --format gpkg (the GeoPackage) needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12\n',
+    );
     expect(r.status).toBe(2);
     expect(existsSync(out)).toBe(false);
     // and without gpkg the same copy gets as far as the feed
-    const csv = spawnSync(process.execPath, [bin, 'audit', join(copy, 'no-such-feed.zip'), '--format', 'csv', '--out', out], { cwd: copy, encoding: 'utf8', env: { ...process.env, NO_COLOR: '1' } });
+    const csv = spawnSync(process.execPath, [bin, 'audit', join(copy, 'no-such-feed.zip'), '--format', 'csv', '--out', out], {
+      cwd: copy,
+      encoding: 'utf8',
+      env: { ...process.env, NO_COLOR: '1' },
+    });
     expect(csv.status).toBe(2);
     expect(csv.stderr).toMatch(/no-such-feed\.zip/);
   });
