@@ -2,7 +2,7 @@
 // patterns.geojson, stops.geojson, stop_points.geojson and candidates.geojson (geojson.ts builds them, so
 // the two outputs carry one set of columns), each as a feature table, in a file any GIS opens whole.
 // Written to the OGC GeoPackage Encoding Standard 1.3 (OGC 12-128); the clauses and requirements named
-// beside each part are that standard's. No R-tree spatial index (an optional extension, clause F.3): its
+// beside each part are that standard's. No R-tree spatial index (an optional extension, Annex F.3): its
 // triggers call functions only a GIS provides, and the layers are small enough (thousands of features)
 // for a GIS to read whole or index itself. The SQLite binding is the run history's optional one, loaded
 // on first use; the file is written inside writeFolder's temporary folder, so a failure leaves nothing.
@@ -259,6 +259,11 @@ export function writeGeoPackage(result: AuditResult, path: string): void {
   let db: InstanceType<SqliteBinding> | undefined;
   try {
     db = new Sqlite(path);
+  } catch (e) {
+    // only the place can refuse a new file (no such folder, no permission)
+    throw new StopspanError('bad-output', `cannot write ${GPKG_FILE}: ${(e as Error).message}`);
+  }
+  try {
     // the file is new and removed whole on failure: the journal can stay in memory
     db.pragma('journal_mode = MEMORY');
     db.pragma(`application_id = ${GPKG_APPLICATION_ID}`);

@@ -13,7 +13,8 @@ import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { GPKG_APPLICATION_ID, GPKG_FILE, GPKG_USER_VERSION, geoPackageGeometry } from '../../src/report/gpkg.js';
+import { GPKG_APPLICATION_ID, GPKG_FILE, GPKG_USER_VERSION, geoPackageGeometry, writeGeoPackage } from '../../src/report/gpkg.js';
+import type { StopspanError } from '../../src/common/errors.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 import { makeSampleResult } from './sampleResult.js';
@@ -254,6 +255,19 @@ describe.skipIf(!haveSqlite)('writing the GeoPackage with the report', () => {
     const all = join(dir, 'default');
     await writeReport(result, all);
     expect(readdirSync(all)).not.toContain(GPKG_FILE);
+  });
+
+  it('says bad-output in one line when the place refuses the file', async () => {
+    const e = (() => {
+      try {
+        writeGeoPackage(makeSampleResult(), join(dir, 'no-such-folder', GPKG_FILE));
+      } catch (err) {
+        return err as StopspanError;
+      }
+      throw new Error('no error');
+    })();
+    expect(e.code).toBe('bad-output');
+    expect(e.message).toMatch(/^cannot write layers\.gpkg: /);
   });
 
   it('leaves no folder and no temporary file when a layer cannot be written', async () => {
