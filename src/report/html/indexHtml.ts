@@ -3,7 +3,7 @@
 // with every piece of feed text escaped; the interactive parts are drawn by the inline script from one
 // embedded JSON block, per-pattern sections only when opened, so large feeds stay a few MB.
 
-import type { AuditResult, PatternResult, StopResult } from '../../audit/types.js';
+import type { AuditResult, Candidate, PatternResult, StopResult } from '../../audit/types.js';
 import { StopspanError } from '../../common/errors.js';
 import { median } from '../../common/median.js';
 import { CAUTIONS } from '../cautions.js';
@@ -57,6 +57,65 @@ function deltaPath(path: [number, number][]): number[] {
   return out;
 }
 
+/** A stop of a pattern in the data block: [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]. */
+type PageStop = [number, number | null, string, string, 0 | 1, number | null, number, number];
+
+/** A pattern in the data block (short keys: the block is written into the page). */
+interface PagePattern {
+  id: string;
+  route: string;
+  routeName: string;
+  dir: number;
+  headsign: string;
+  len: number | null;
+  trips: number | null;
+  median: number | null;
+  mean: number | null;
+  opt: number | null;
+  lo: number | null;
+  hi: number | null;
+  close: number;
+  wide: number;
+  optCount: number;
+  lost: number | null;
+  demand: PatternResult['demandSource'];
+  lostTime: number | null;
+  cruise: number | null;
+  delay: number | null;
+  stopping: PatternResult['stoppingModel'];
+  distSource: PatternResult['distanceSource'];
+  curve: (number | null)[][];
+  curCost: number | null;
+  optCost: number | null;
+  path: number[];
+  stops: PageStop[];
+  gaps: number[][]; // [place of the gap's first stop in stops, gap, 1 wide or 2 under review]
+  cands: [number, number][];
+  drops: number[];
+}
+
+/** A candidate in the data block. */
+interface PageCandidate {
+  rank: number;
+  action: Candidate['action'];
+  id: string;
+  name: string;
+  routes: string[];
+  net: number | null;
+  riders: number | null;
+  rt: number | null;
+  vh: number;
+  robust: boolean;
+  pats: number[];
+  at?: [number, number];
+}
+
+/** Stops written once, each pattern's stops referring to them by position. */
+interface StopTable {
+  table: [string, string, number, number][]; // [stop_id, name, lat, lon]
+  refOf: (s: StopResult) => number;
+}
+
 /**
  * The data block the page's script draws from: compact arrays, numbers rounded. A stop served by several
  * patterns is written once (stopTable: [stop_id, name, lat, lon]) and each pattern's stops refer to it by
@@ -65,6 +124,19 @@ function deltaPath(path: [number, number][]): number[] {
  * pattern's rows when its section is opened.
  */
 export function pageData(result: AuditResult, units: Units, maxPathPoints: number): Record<string, unknown> {
+  const stopsBy = passengerStopsByPattern(result);
+  const wideBy = wideGapsByPattern(result);
+  const stopTable = newStopTable();
+  const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
+  const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
+  const candsOn = candidatesOnPatterns(result, orderedStops, patternPos);
+  const patterns = result.patterns.map((p: PatternResult, pi) => patternData(p, orderedStops[pi], wideBy.get(p.patternId) ?? [], candsOn[pi], stopTable.refOf, maxPathPoints));
+  const candidates = result.candidates.map((c) => candidateData(c, patternPos));
+  return { units, assumed: result.demandSource !== 'observed', stopTable: stopTable.table, patterns, candidates };
+}
+
+/** Each pattern's stops, without timing points where no one boards or alights. */
+function passengerStopsByPattern(result: AuditResult): Map<string, StopResult[]> {
   const stopsBy = new Map<string, StopResult[]>();
   for (const s of result.stops) {
     // a timing point where no one boards or alights is no stop for spacing: the page's stop list, its
@@ -74,6 +146,11 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) stopsBy.set(s.patternId, (l = []));
     l.push(s);
   }
+  return stopsBy;
+}
+
+/** Each pattern's wide gaps: [first stop's pattern index, gap, kind]. */
+function wideGapsByPattern(result: AuditResult): Map<string, [number, number, number][]> {
   // a wide gap is 1, or 2 where it is listed for review (no evidence anyone is there: an empty stretch)
   const underReview = new Set(result.reviewGaps.flatMap((g) => g.patternIds.map((id) => `${id}\n${g.fromStopId}\n${g.toStopId}`)));
   const wideBy = new Map<string, [number, number, number][]>();
@@ -82,27 +159,32 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) wideBy.set(g.patternId, (l = []));
     if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, underReview.has(`${g.patternId}\n${g.fromStopId}\n${g.toStopId}`) ? 2 : 1]);
   }
+  return wideBy;
+}
+
+/** An empty stop table; refOf adds a stop the first time it is asked for. */
+function newStopTable(): StopTable {
   const stopRef = new Map<string, number>();
-  const stopTable: [string, string, number, number][] = [];
+  const table: [string, string, number, number][] = [];
   const refOf = (s: StopResult): number => {
     let i = stopRef.get(s.stopId);
     if (i === undefined) {
-      stopRef.set(s.stopId, (i = stopTable.length));
-      stopTable.push([s.stopId, s.stopName, r5(s.stopLat), r5(s.stopLon)]);
+      stopRef.set(s.stopId, (i = table.length));
+      table.push([s.stopId, s.stopName, r5(s.stopLat), r5(s.stopLon)]);
     }
     return i;
   };
-  const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
-  const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
-  // the candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]
+  return { table, refOf };
+}
+
+/** The candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]. */
+function candidatesOnPatterns(result: AuditResult, orderedStops: StopResult[][], patternPos: Map<string, number>): [number, number][][] {
   const candsOn: [number, number][][] = result.patterns.map(() => []);
   result.candidates.forEach((c, ci) => {
     for (const id of new Set(c.patternIds)) {
       const pi = patternPos.get(id);
       if (pi === undefined) continue;
       const stops = orderedStops[pi];
-    // a wide gap names its first stop by its place in this list
-    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
       if (c.action === 'remove') {
         let found = false;
         stops.forEach((s, i) => {
@@ -115,55 +197,68 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
       }
     }
   });
-  const patterns = result.patterns.map((p: PatternResult, pi) => {
-    const stops = orderedStops[pi];
-    // a wide gap names its first stop by its place in this list
-    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
-    return {
-      id: p.patternId,
-      route: p.routeId,
-      routeName: p.routeShortName || p.routeId,
-      dir: p.directionId,
-      headsign: p.headsign,
-      len: r1(p.lengthM),
-      trips: r1(p.tripsPerDay),
-      median: r1(p.medianGapM),
-      mean: r1(p.meanGapM),
-      opt: r1(p.optimalSpacingM),
-      lo: r1(p.bandLowM),
-      hi: r1(p.bandHighM),
-      close: p.closeStops,
-      wide: p.wideGaps,
-      optCount: p.optimalStopCount,
-      lost: r1(p.paxMinLostPerDay),
-      demand: p.demandSource,
-      lostTime: r1(p.lostTimePerStopS),
-      cruise: r1(p.cruiseSpeedMps),
-      delay: p.trafficDelayS === null ? null : Math.round(p.trafficDelayS),
-      stopping: p.stoppingModel,
-      distSource: p.distanceSource,
-      curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
-      curCost: r1(p.currentCostPerRiderS),
-      optCost: r1(p.optimalCostPerRiderS),
-      path: deltaPath(thin(p.path, maxPathPoints)),
-      // [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
-      stops: stops.map((s) => [
-        refOf(s),
-        r1(s.distAlongM),
-        VERDICTS[s.verdict].letter,
-        s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
-        s.timepoint ? 1 : 0,
-        r1(s.removalNetPaxMinPerDay),
-        Math.round(s.boardingsPerDay), // shown as whole riders
-        Math.round(s.alightingsPerDay),
-      ]),
-      gaps: (wideBy.get(p.patternId) ?? []).flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
-      cands: candsOn[pi],
-      // the optimiser's plan: positions of the stops it drops (every other stop it keeps)
-      drops: stops.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])),
-    };
-  });
-  const candidates = result.candidates.map((c) => ({
+  return candsOn;
+}
+
+/** One pattern's entry: its figures, path, stops (by stop table position), wide gaps, candidates and the plan's drops. */
+function patternData(
+  p: PatternResult,
+  stops: StopResult[],
+  wide: [number, number, number][],
+  cands: [number, number][],
+  refOf: (s: StopResult) => number,
+  maxPathPoints: number,
+): PagePattern {
+  // a wide gap names its first stop by its place in this list
+  const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
+  return {
+    id: p.patternId,
+    route: p.routeId,
+    routeName: p.routeShortName || p.routeId,
+    dir: p.directionId,
+    headsign: p.headsign,
+    len: r1(p.lengthM),
+    trips: r1(p.tripsPerDay),
+    median: r1(p.medianGapM),
+    mean: r1(p.meanGapM),
+    opt: r1(p.optimalSpacingM),
+    lo: r1(p.bandLowM),
+    hi: r1(p.bandHighM),
+    close: p.closeStops,
+    wide: p.wideGaps,
+    optCount: p.optimalStopCount,
+    lost: r1(p.paxMinLostPerDay),
+    demand: p.demandSource,
+    lostTime: r1(p.lostTimePerStopS),
+    cruise: r1(p.cruiseSpeedMps),
+    delay: p.trafficDelayS === null ? null : Math.round(p.trafficDelayS),
+    stopping: p.stoppingModel,
+    distSource: p.distanceSource,
+    curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
+    curCost: r1(p.currentCostPerRiderS),
+    optCost: r1(p.optimalCostPerRiderS),
+    path: deltaPath(thin(p.path, maxPathPoints)),
+    // [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
+    stops: stops.map((s): PageStop => [
+      refOf(s),
+      r1(s.distAlongM),
+      VERDICTS[s.verdict].letter,
+      s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
+      s.timepoint ? 1 : 0,
+      r1(s.removalNetPaxMinPerDay),
+      Math.round(s.boardingsPerDay), // shown as whole riders
+      Math.round(s.alightingsPerDay),
+    ]),
+    gaps: wide.flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
+    cands,
+    // the optimiser's plan: positions of the stops it drops (every other stop it keeps)
+    drops: stops.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])),
+  };
+}
+
+/** One candidate's entry; an addition's site where it is known. */
+function candidateData(c: Candidate, patternPos: Map<string, number>): PageCandidate {
+  return {
     rank: c.rank,
     action: c.action,
     id: c.stopId,
@@ -175,9 +270,8 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     vh: Math.round(c.vehicleHoursPerDay * 1000) / 1000,
     robust: c.robust,
     pats: c.patternIds.flatMap((id) => patternPos.get(id) ?? []), // positions in patterns, to link a row to its pattern's section
-    ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] } : {}),
-  }));
-  return { units, assumed: result.demandSource !== 'observed', stopTable, patterns, candidates };
+    ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] as [number, number] } : {}),
+  };
 }
 
 // why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)
