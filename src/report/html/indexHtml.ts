@@ -291,6 +291,64 @@ function th(key: string, label: string, numeric = false): string {
   return `<th data-key="${h(key)}"${numeric ? ' class="num"' : ''} scope="col"><button type="button">${h(label)}</button></th>`;
 }
 
+/** The headline's top candidates: removals and additions listed apart, five of each. */
+function topCandidatesHtml(result: AuditResult, assumedNote: string): string {
+  // removals and additions are different decisions: each has its own ranked list
+  const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
+  const topItem = (c: AuditResult['candidates'][number]): string =>
+    `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}${c.evidence ? ` <span class="note">(evidence: ${h(c.evidence)})</span>` : ''}</li>`;
+  const topRemovals = topOf('remove');
+  const topAdditions = topOf('add');
+  return topRemovals.length || topAdditions.length
+    ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
+      `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
+    : '<p class="note">No stop change saves riders time under these parameters.</p>';
+}
+
+/** The wide gaps listed for review (no stop proposed), longest first, the first 50; '' when there are none. */
+function reviewGapsHtml(result: AuditResult, d: (m: number | null) => string): string {
+  const reviewShown = result.reviewGaps.slice(0, 50);
+  return result.reviewGaps.length
+    ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
+        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
+        .join('')}</tbody></table></div>`
+    : '';
+}
+
+/** The parameters' table rows: value, source and note. */
+function parametersHtml(result: AuditResult): string {
+  return Object.entries(result.params)
+    .map(
+      ([name, p]) =>
+        `<tr><td><code>${h(name)}</code></td><td class="num">${h(p.value === null ? '—' : String(p.value))}</td><td title="${h(SOURCE_TEXT[p.source] ?? p.source)}">${h(p.source)}: ${h(SOURCE_TEXT[p.source] ?? '')}</td><td>${h(p.note)}</td></tr>`,
+    )
+    .join('');
+}
+
+/** The warnings table, or a line saying there were none. */
+function warningsHtml(result: AuditResult): string {
+  return result.warnings.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">warning</th><th scope="col" class="num">count</th><th scope="col">what it means</th><th scope="col">examples</th></tr></thead><tbody>${result.warnings
+        .map(
+          (w) =>
+            `<tr><td><code>${h(w.code)}</code></td><td class="num">${h(fmt(w.count))}</td><td>${h(w.message)}</td><td>${w.examples.map((e) => `<code>${h(e)}</code>`).join(' ')}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">The feed was read without warnings.</p>';
+}
+
+/** The sensitivity cases' table, or a line saying none were run. */
+function sensitivityHtml(result: AuditResult, d: (m: number | null) => string, assumedNote: string): string {
+  return result.sensitivity.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th><th scope="col" class="num">listed candidates still saving</th></tr></thead><tbody>${result.sensitivity
+        .map(
+          (s) =>
+            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td><td class="num">${h(fmt(s.programmeStillSaving))} of ${h(fmt(result.candidates.length))}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">No sensitivity cases were run.</p>';
+}
+
 export function indexHtml(result: AuditResult, options: HtmlOptions = {}): string {
   const { units = 'metric', maxPathPoints = 400 } = options;
   checkUnits(units);
@@ -313,45 +371,11 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   );
   const belowBand = result.gaps.filter((g) => g.verdict === 'short').length;
   const wideRows = result.gaps.filter((g) => g.verdict === 'wide').length; // = hl.wideGapsOnPatterns
-  // removals and additions are different decisions: each has its own ranked list
-  const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
-  const topItem = (c: AuditResult['candidates'][number]): string =>
-    `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}${c.evidence ? ` <span class="note">(evidence: ${h(c.evidence)})</span>` : ''}</li>`;
-  const topRemovals = topOf('remove');
-  const topAdditions = topOf('add');
-  const topList =
-    topRemovals.length || topAdditions.length
-      ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
-        `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
-      : '<p class="note">No stop change saves riders time under these parameters.</p>';
-  const reviewShown = result.reviewGaps.slice(0, 50);
-  const reviewGaps = result.reviewGaps.length
-    ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
-        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
-        .join('')}</tbody></table></div>`
-    : '';
-  const params = Object.entries(result.params)
-    .map(
-      ([name, p]) =>
-        `<tr><td><code>${h(name)}</code></td><td class="num">${h(p.value === null ? '—' : String(p.value))}</td><td title="${h(SOURCE_TEXT[p.source] ?? p.source)}">${h(p.source)}: ${h(SOURCE_TEXT[p.source] ?? '')}</td><td>${h(p.note)}</td></tr>`,
-    )
-    .join('');
-  const warnings = result.warnings.length
-    ? `<div class="table-wrap"><table><thead><tr><th scope="col">warning</th><th scope="col" class="num">count</th><th scope="col">what it means</th><th scope="col">examples</th></tr></thead><tbody>${result.warnings
-        .map(
-          (w) =>
-            `<tr><td><code>${h(w.code)}</code></td><td class="num">${h(fmt(w.count))}</td><td>${h(w.message)}</td><td>${w.examples.map((e) => `<code>${h(e)}</code>`).join(' ')}</td></tr>`,
-        )
-        .join('')}</tbody></table></div>`
-    : '<p class="note">The feed was read without warnings.</p>';
-  const sensitivity = result.sensitivity.length
-    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th><th scope="col" class="num">listed candidates still saving</th></tr></thead><tbody>${result.sensitivity
-        .map(
-          (s) =>
-            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td><td class="num">${h(fmt(s.programmeStillSaving))} of ${h(fmt(result.candidates.length))}</td></tr>`,
-        )
-        .join('')}</tbody></table></div>`
-    : '<p class="note">No sensitivity cases were run.</p>';
+  const topList = topCandidatesHtml(result, assumedNote);
+  const reviewGaps = reviewGapsHtml(result, d);
+  const params = parametersHtml(result);
+  const warnings = warningsHtml(result);
+  const sensitivity = sensitivityHtml(result, d, assumedNote);
   const feedName = result.feed.publisher || result.feed.source;
   const title = `Stop spacing audit: ${feedName}, ${result.date}`;
   const paxHeader = `passenger-min/day${assumed ? ' (assumed)' : ''}`;
