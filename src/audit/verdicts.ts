@@ -9,10 +9,10 @@ import type { Feed } from '../gtfs/types.js';
 import type { CostCurvePoint, GapResult, GapVerdict, PatternResult, StopResult, Verdict } from './types.js';
 import { bandM } from '../model/band.js';
 import { type CostSettings, type ServedStop, servedStopCost, servedSetCostS } from '../model/corridor.js';
-import { effectiveOptimum } from '../model/effectiveOptimum.js';
+import { effectiveOptimum, type EffectiveOptimum } from '../model/effectiveOptimum.js';
 import { localOptimalSpacingM } from '../model/localOptimum.js';
 import { optimiseStopsAt, type OptimiseResult } from '../model/optimiser.js';
-import { costPerRiderS } from '../model/sqrtLaw.js';
+import { costPerRiderS, type SqrtLawInput } from '../model/sqrtLaw.js';
 import { costSettings, type PreparedPattern } from '../model/preparePattern.js';
 import type { ModelParams } from '../model/params.js';
 import { median } from '../common/median.js';
@@ -183,7 +183,7 @@ export interface PatternParts {
   probability: number[]; // per model stop (1 at the ends)
   removal: (ChangeParts | null)[]; // per model stop; null at the ends and for fixed stops
   addition: (ChangeParts | undefined)[]; // per gap, filled when a gap is first found wide
-  optimised: Map<number, { best: OptimiseResult; todayCostS: number }>; // by walk weight
+  optimised: Map<number, Optimised>; // by walk weight
   /** The walk weights optimised together when the first of them is asked for (one sweep of the stops serves all). */
   walkWeights: number[];
   gapsM: number[]; // per model gap
@@ -259,6 +259,35 @@ function stopResult(b: StopBase, x: Omit<StopResult, keyof StopBase>): StopResul
   };
 }
 
+/** One pattern's optimum spacing at a walk weight, its near-optimal band, and the square-root law's inputs at it. */
+interface PatternOptimum {
+  opt: EffectiveOptimum;
+  hasOptimum: boolean;
+  band: { lowM: number; highM: number };
+  lawInput: SqrtLawInput;
+}
+
+/** The optimiser's stops at one walk weight, and today's stops' cost by the same objective. */
+interface Optimised {
+  best: OptimiseResult;
+  todayCostS: number;
+}
+
+/** The stop step's rows and tallies. */
+interface StopRows {
+  stops: StopResult[]; // empty without detail
+  removals: RemovalEffect[];
+  fixedStopIdx: number[];
+  closeStops: number;
+}
+
+/** The gap step's rows and tallies. */
+interface GapRows {
+  gaps: GapResult[]; // empty without detail
+  additions: AdditionEffect[];
+  wideGaps: number;
+}
+
 export function analysePattern(
   feed: Feed,
   prep: PreparedPattern,
@@ -277,10 +306,30 @@ export function analysePattern(
     parts?: PatternParts;
   } = {},
 ): PatternAnalysis {
-  const { pattern, corridor, modelStops, posM, demand } = prep;
   const settings = costSettings(prep, params, { walkWeight });
-  const n = modelStops.length;
-  const { gapsM, feedStopsByModelPos, modelPosOf } = parts;
+  const optimum = patternOptimum(prep, params, settings, { walkWeight, bandTolerance });
+  const costCurve = optimum.hasOptimum && detail ? costCurveOf(optimum) : [];
+  const { best, todayCostS } = optimisedAt(prep, params, parts, walkWeight);
+  // rounding noise of the two sums is not a loss
+  const lostS = todayCostS - best.costS;
+  const paxMinLostPerDay = lostS > 1e-9 * Math.max(1, todayCostS) ? lostS * S_TO_MIN : 0;
+  const keptSet = detail ? new Set(best.kept) : null;
+  const gapVerdicts = detail ? gapVerdictsOf(prep, parts.gapsM, optimum) : [];
+  const { stops, removals, fixedStopIdx, closeStops } = stopRows(feed, prep, params, parts, settings, optimum, { walkWeight, detail, gapVerdicts, keptSet });
+  const { gaps, additions, wideGaps } = gapRows(feed, prep, params, parts, settings, optimum, { detail, gapVerdicts });
+  const result = patternResult(prep, parts, optimum, { best, paxMinLostPerDay, closeStops, wideGaps, costCurve });
+  return { result, stops, gaps, removals, additions, fixedStopIdx, feedStopsByModelPos: parts.feedStopsByModelPos, modelPosM: prep.posM };
+}
+
+/** The optimum spacing (the square-root law with the lost time a bus incurs per stop) and its band. */
+function patternOptimum(
+  prep: PreparedPattern,
+  params: ModelParams,
+  settings: CostSettings,
+  { walkWeight, bandTolerance }: { walkWeight: number; bandTolerance: number },
+): PatternOptimum {
+  const { corridor, posM, demand } = prep;
+  const n = prep.modelStops.length;
   const lengthM = posM[n - 1] - posM[0];
   const trips = corridor.tripsPerDay;
   const endsPerTrip = (demand.ridersPerDay + demand.alightPerDay.reduce((s, a) => s + a, 0)) / trips;
@@ -292,49 +341,51 @@ export function analysePattern(
   });
   const hasOptimum = opt.spacingM > 0 && Number.isFinite(opt.spacingM);
   const band = hasOptimum ? bandM(opt.spacingM, bandTolerance) : { lowM: 0, highM: Infinity };
-  const lawInput = { walkSpeedMps: params.walk_speed_mps, walkWeight, lostTimePerStopS: opt.effectiveLostTimeS, meanTripLengthM: prep.meanTripLengthM };
+  const lawInput: SqrtLawInput = { walkSpeedMps: params.walk_speed_mps, walkWeight, lostTimePerStopS: opt.effectiveLostTimeS, meanTripLengthM: prep.meanTripLengthM };
+  return { opt, hasOptimum, band, lawInput };
+}
+
+/** The cost per rider against spacing, from a quarter of the optimum to three times it (only where there is an optimum). */
+function costCurveOf({ opt, lawInput }: PatternOptimum): CostCurvePoint[] {
   const costCurve: CostCurvePoint[] = [];
-  if (hasOptimum && detail) {
-    for (let k = 0; k <= 30; k++) {
-      const spacingM = opt.spacingM * (0.25 + (k * 2.75) / 30);
-      costCurve.push({ spacingM, costPerRiderS: costPerRiderS(spacingM, lawInput) });
-    }
+  for (let k = 0; k <= 30; k++) {
+    const spacingM = opt.spacingM * (0.25 + (k * 2.75) / 30);
+    costCurve.push({ spacingM, costPerRiderS: costPerRiderS(spacingM, lawInput) });
   }
-  const meanGapM = gapsM.length ? lengthM / gapsM.length : 0;
+  return costCurve;
+}
 
-  // the optimiser, with operating cost when set, and today's cost by the same objective
-  // (this walk weight with the others of parts.walkWeights not optimised yet, in one run)
-  let optimised = parts.optimised.get(walkWeight);
-  if (!optimised) {
-    const weights = [walkWeight, ...new Set(parts.walkWeights.filter((w) => w !== walkWeight && !parts.optimised.has(w)))];
-    const optSettings = weights.map((w) => costSettings(prep, params, { walkWeight: w, withOperatingCost: true }));
-    const forced = prep.fixedReason.map((r) => r !== '');
-    const bests = optimiseStopsAt(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
-    weights.forEach((w, q) => parts.optimised.set(w, { best: bests[q], todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings[q]) }));
-    optimised = parts.optimised.get(walkWeight)!;
-  }
-  const { best, todayCostS } = optimised;
-  // rounding noise of the two sums is not a loss
-  const lostS = todayCostS - best.costS;
-  const paxMinLostPerDay = lostS > 1e-9 * Math.max(1, todayCostS) ? lostS * S_TO_MIN : 0;
-  const keptSet = detail ? new Set(best.kept) : null;
+/**
+ * The optimiser, with operating cost when set, and today's cost by the same objective (this walk weight
+ * with the others of parts.walkWeights not optimised yet, in one run); kept in parts.optimised.
+ */
+function optimisedAt(prep: PreparedPattern, params: ModelParams, parts: PatternParts, walkWeight: number): Optimised {
+  const known = parts.optimised.get(walkWeight);
+  if (known) return known;
+  const { corridor } = prep;
+  const n = prep.modelStops.length;
+  const weights = [walkWeight, ...new Set(parts.walkWeights.filter((w) => w !== walkWeight && !parts.optimised.has(w)))];
+  const optSettings = weights.map((w) => costSettings(prep, params, { walkWeight: w, withOperatingCost: true }));
+  const forced = prep.fixedReason.map((r) => r !== '');
+  const bests = optimiseStopsAt(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
+  weights.forEach((w, q) => parts.optimised.set(w, { best: bests[q], todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings[q]) }));
+  return parts.optimised.get(walkWeight)!;
+}
 
-  // stops
-  const stops: StopResult[] = [];
-  const removals: RemovalEffect[] = [];
-  // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
-  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
-  // each gap's verdict (the rows only): a gap is judged on its own, apart from the stops at its ends
+/** Each gap's verdict (the rows only): a gap is judged on its own, apart from the stops at its ends. */
+function gapVerdictsOf(prep: PreparedPattern, gapsM: number[], { hasOptimum, band }: PatternOptimum): GapVerdict[] {
+  const n = prep.modelStops.length;
   const gapVerdicts: GapVerdict[] = [];
-  if (detail) {
-    for (let g = 0; g + 1 < n; g++) {
-      const above = hasOptimum && gapsM[g] > band.highM;
-      gapVerdicts.push(above ? (prep.expressGap[g] === true ? 'express' : prep.gapLocalCover(g) === null ? 'wide' : 'local') : hasOptimum && gapsM[g] < band.lowM ? 'short' : 'ok');
-    }
+  for (let g = 0; g + 1 < n; g++) {
+    const above = hasOptimum && gapsM[g] > band.highM;
+    gapVerdicts.push(above ? (prep.expressGap[g] === true ? 'express' : prep.gapLocalCover(g) === null ? 'wide' : 'local') : hasOptimum && gapsM[g] < band.lowM ? 'short' : 'ok');
   }
-  const fixedStopIdx: number[] = [];
-  let closeStops = 0;
-  const baseOf = (j: number, stop: Feed['stops'][number] | undefined): StopBase => ({
+  return gapVerdicts;
+}
+
+/** A stop's fields from its pattern, before the model's figures. */
+function stopBase({ pattern, demand }: PreparedPattern, j: number, stop: Feed['stops'][number] | undefined): StopBase {
+  return {
     patternId: pattern.id,
     routeId: pattern.routeId,
     directionId: pattern.directionId,
@@ -348,7 +399,28 @@ export function analysePattern(
     demandSource: demand.demandSource,
     timepoint: pattern.timepoint[j] === true,
     offsetFromShapeM: pattern.offsetFromShapeM[j] ?? null,
-  });
+  };
+}
+
+/** Stops: each stop's verdict, its removal's effect, and (with detail) its row. */
+function stopRows(
+  feed: Feed,
+  prep: PreparedPattern,
+  params: ModelParams,
+  parts: PatternParts,
+  settings: CostSettings,
+  { hasOptimum, band }: PatternOptimum,
+  { walkWeight, detail, gapVerdicts, keptSet }: { walkWeight: number; detail: boolean; gapVerdicts: GapVerdict[]; keptSet: Set<number> | null },
+): StopRows {
+  const { pattern, corridor, demand } = prep;
+  const n = prep.modelStops.length;
+  const { gapsM, modelPosOf } = parts;
+  const stops: StopResult[] = [];
+  const removals: RemovalEffect[] = [];
+  // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
+  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
+  const fixedStopIdx: number[] = [];
+  let closeStops = 0;
   for (let j = 0; j < pattern.stopIdx.length; j++) {
     const stopIdx = pattern.stopIdx[j];
     const stop = feed.stops[stopIdx];
@@ -356,7 +428,7 @@ export function analysePattern(
     if (m === undefined) {
       // not a passenger stop: kept for geometry only, and no reason to keep the stop on a pattern that
       // serves riders there (a timing point of one route does not fix another route's stop)
-      if (detail) stops.push(stopResult(baseOf(j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', stopVerdict: 'timing-only', gapBeforeVerdict: null, gapAfterVerdict: null, fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail) stops.push(stopResult(stopBase(prep, j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', stopVerdict: 'timing-only', gapBeforeVerdict: null, gapAfterVerdict: null, fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -383,7 +455,7 @@ export function analysePattern(
     if (verdict === 'close') closeStops++;
     if (!detail) continue;
     stops.push(
-      stopResult(baseOf(j, stop), {
+      stopResult(stopBase(prep, j, stop), {
       gapBeforeM,
       gapAfterM,
       boardingsPerDay: corridor.boardPerDay[m],
@@ -403,8 +475,32 @@ export function analysePattern(
       }),
     );
   }
+  return { stops, removals, fixedStopIdx, closeStops };
+}
 
-  // gaps
+/** Scheduled seconds between model stops m and m+1 (median trip, dwell at skipped stops included); null when unknown. */
+function scheduledGapS({ pattern, modelStops }: PreparedPattern, m: number): number | null {
+  let scheduledS: number | null = 0;
+  for (let j = modelStops[m]; j < modelStops[m + 1]; j++) {
+    const t = pattern.gapRunTimeS[j] + (j > modelStops[m] ? (pattern.scheduledDwellS[j] ?? 0) : 0);
+    scheduledS = Number.isFinite(t) && scheduledS !== null ? scheduledS + t : null;
+  }
+  return scheduledS;
+}
+
+/** Gaps: which are wide, the effect of a stop added in the middle of each wide one, and (with detail) each gap's row. */
+function gapRows(
+  feed: Feed,
+  prep: PreparedPattern,
+  params: ModelParams,
+  parts: PatternParts,
+  settings: CostSettings,
+  { hasOptimum, band }: PatternOptimum,
+  { detail, gapVerdicts }: { detail: boolean; gapVerdicts: GapVerdict[] },
+): GapRows {
+  const { pattern, modelStops, posM } = prep;
+  const n = modelStops.length;
+  const { gapsM, feedStopsByModelPos } = parts;
   const gaps: GapResult[] = [];
   const additions: AdditionEffect[] = [];
   let wideGaps = 0;
@@ -425,11 +521,7 @@ export function analysePattern(
       add = changeEffect((parts.addition[m] ??= additionParts(prep, m, (posM[m] + posM[m + 1]) / 2, settings)), settings, -1);
       lat = from && to ? (from.lat + to.lat) / 2 : null;
       lon = from && to ? (from.lon + to.lon) / 2 : null;
-      let scheduledS: number | null = 0;
-      for (let j = modelStops[m]; j < modelStops[m + 1]; j++) {
-        const t = pattern.gapRunTimeS[j] + (j > modelStops[m] ? (pattern.scheduledDwellS[j] ?? 0) : 0);
-        scheduledS = Number.isFinite(t) && scheduledS !== null ? scheduledS + t : null;
-      }
+      const scheduledS = scheduledGapS(prep, m);
       additions.push({ scheduledS, netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
     }
     if (!detail) continue;
@@ -449,8 +541,21 @@ export function analysePattern(
       addMidLon: lon,
     });
   }
+  return { gaps, additions, wideGaps };
+}
 
-  const result: PatternResult = {
+/** The pattern's row: its fields, the optimum and band, the tallies of the stop and gap steps, riders' cost per trip today and at the optimum. */
+function patternResult(
+  prep: PreparedPattern,
+  parts: PatternParts,
+  { opt, hasOptimum, band, lawInput }: PatternOptimum,
+  { best, paxMinLostPerDay, closeStops, wideGaps, costCurve }: { best: OptimiseResult; paxMinLostPerDay: number; closeStops: number; wideGaps: number; costCurve: CostCurvePoint[] },
+): PatternResult {
+  const { pattern, posM, demand } = prep;
+  const n = prep.modelStops.length;
+  const lengthM = posM[n - 1] - posM[0];
+  const meanGapM = parts.gapsM.length ? lengthM / parts.gapsM.length : 0;
+  return {
     patternId: pattern.id,
     routeId: pattern.routeId,
     routeShortName: prep.routeShortName,
@@ -488,5 +593,4 @@ export function analysePattern(
     optimalCostPerRiderS: hasOptimum ? costPerRiderS(opt.spacingM, lawInput) : 0,
     path: pattern.path,
   };
-  return { result, stops, gaps, removals, additions, fixedStopIdx, feedStopsByModelPos, modelPosM: posM };
 }

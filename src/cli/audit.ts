@@ -11,8 +11,10 @@ import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
 import { parseLandUseWeights } from '../landuse/readLandUse.js';
 
-const FORMATS = ['html', 'csv', 'geojson', 'json'] as const;
+const FORMATS = ['html', 'csv', 'geojson', 'json', 'gpkg'] as const;
 type Format = (typeof FORMATS)[number];
+/** Without --format: all but gpkg, which needs the optional SQLite binding. */
+const DEFAULT_FORMATS: Format[] = ['html', 'csv', 'geojson', 'json'];
 
 interface AuditOpts {
   date?: string;
@@ -54,7 +56,7 @@ export function registerAudit(program: Command): void {
     .option('--observed <archive>', 'GTFS-Realtime archive (zip or folder) for observed dwell, speed and stopping')
     .option('--context <feed>', 'another feed (zip, folder or URL; repeatable) whose stations make bus stops within 150 m transfer points', (v: string, prev: string[] = []) => prev.concat(v))
     .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
-    .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: all)`, listOption)
+    .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: ${DEFAULT_FORMATS.join(',')})`, listOption)
     .option('--units <system>', 'units people read: metric or imperial', 'metric')
     .option('--force', 'replace the output folder if it exists')
     .option('--history <file.sqlite>', 'append this run to a history database')
@@ -65,6 +67,8 @@ export function registerAudit(program: Command): void {
   cmd.action(async (feedArg: string, opts: AuditOpts) => {
     await runAction(Boolean(opts.verbose), async () => {
       const formats = checkFormats(opts.format);
+      // the GeoPackage's SQLite binding is optional: without it the run stops here, before the feed is read
+      if (formats.includes('gpkg')) (await import('../report/gpkg.js')).loadGeoPackageSqlite();
       if (opts.units !== 'metric' && opts.units !== 'imperial') {
         throw new StopspanError('bad-option', 'invalid option --units: expected metric or imperial', { value: opts.units });
       }
@@ -125,7 +129,7 @@ export function registerAudit(program: Command): void {
 }
 
 function checkFormats(list: string[] | undefined): Format[] {
-  if (!list || list.length === 0) return [...FORMATS];
+  if (!list || list.length === 0) return [...DEFAULT_FORMATS];
   for (const f of list) {
     if (!(FORMATS as readonly string[]).includes(f)) {
       throw new StopspanError('bad-option', `invalid option --format: expected some of ${FORMATS.join(', ')}`, { value: f });

@@ -165,6 +165,22 @@ function coord(file: string, row: CsvRow, i: number, column: string, limit: numb
   return v;
 }
 
+/** trips.txt as columns, row k per trip in the order read (see readTrips). */
+interface TripColumns {
+  tripId: string[];
+  tripRoute: string[];
+  tripService: string[];
+  tripHeadsign: string[];
+  tripShape: string[];
+  tripDirection: number[];
+}
+
+/** The service tables: calendar.txt and calendar_dates.txt, each empty when absent. */
+interface Calendars {
+  calendar: CalendarRow[];
+  calendarDates: CalendarDate[];
+}
+
 async function readArchive(
   archive: FeedArchive,
   source: string,
@@ -177,31 +193,90 @@ async function readArchive(
     early,
   }: { date: string; routes?: string[]; onProgress?: OnProgress; maxRecordChars?: number; warnings: WarningSink; early: Map<string, Promise<Readable>> },
 ): Promise<Feed> {
+  checkTables(archive);
+  const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {}, early };
+  openStopTimesEarly(ctx);
+  const hashing = settled(archive.contentHash());
+
+  const agencies = await readAgencies(ctx);
+  const routes = await readRoutes(ctx);
+  const { stops, stopIndex } = await readStops(ctx);
+  const { calendar, calendarDates } = await readCalendars(ctx);
+  const tripCols = await readTrips(ctx, routes);
+  const frequencies = await readFrequencies(ctx);
+  const feedInfo = await readFeedInfo(ctx);
+
+  const routeKeep = routeFilter && routeFilter.length > 0 ? routeIdsKept(routes, routeFilter) : null;
+  // rows of the trips of the routes asked for
+  const candidates: number[] = [];
+  for (let k = 0; k < tripCols.tripId.length; k++) if (!routeKeep || routeKeep.has(tripCols.tripRoute[k])) candidates.push(k);
+  const { analysisDate, kept } = tripsKept(tripCols, candidates, date, { calendar, calendarDates }, frequencies);
+  warnBlankFields(kept, tripCols, candidates, { calendar, calendarDates }, warnings);
+
+  const stopTimes = await readStopTimes(ctx, kept, stops, stopIndex);
+  const trips = new Map<string, Trip>();
+  for (const t of kept) if (stopTimes.has(t.id)) trips.set(t.id, t);
+  if (trips.size === 0) throw new StopspanError('empty-feed', 'no kept trip has any stop_times rows', { file: 'stop_times.txt' });
+  const shapes = await readShapes(ctx, trips);
+
+  onProgress?.({ stage: 'hash feed' });
+  const contentHash = await hashing;
+  return {
+    source,
+    date: analysisDate,
+    contentHash,
+    agencies,
+    routes,
+    stops,
+    stopIndex,
+    trips,
+    stopTimes,
+    shapes,
+    calendar,
+    calendarDates,
+    frequencies,
+    feedInfo,
+    warnings: warnings.list(),
+    rowCounts: ctx.rowCounts,
+  };
+}
+
+/** The required tables, and a calendar of either kind, are in the archive. */
+function checkTables(archive: FeedArchive): void {
   for (const t of REQUIRED_TABLES) {
     if (!archive.has(t)) throw new StopspanError('missing-table', `required table ${t} is missing from the feed`, { file: t });
   }
   if (!archive.has('calendar.txt') && !archive.has('calendar_dates.txt')) {
     throw new StopspanError('missing-table', 'the feed has neither calendar.txt nor calendar_dates.txt', { file: 'calendar.txt' });
   }
-  const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {}, early };
-  // stop_times.txt, by far the biggest table, starts inflating now, on the thread pool, while this thread
-  // parses the tables it depends on (measured on Manhattan: see README, Speed and memory); the read-ahead
-  // is bounded, so memory is too
-  if (archive.has('stop_times.txt')) {
+}
+
+/**
+ * stop_times.txt, by far the biggest table, starts inflating now, on the thread pool, while this thread
+ * parses the tables it depends on (measured on Manhattan: see README, Speed and memory); the read-ahead
+ * is bounded, so memory is too.
+ */
+function openStopTimesEarly(ctx: Ctx): void {
+  if (ctx.archive.has('stop_times.txt')) {
     // an error while nobody reads the stream yet is kept in the stream (its reader then throws it), not
     // raised as an unhandled 'error' event
-    const opening = archive.open('stop_times.txt', { readAheadBytes: STOP_TIMES_READ_AHEAD }).then((s) => s.on('error', () => {}));
+    const opening = ctx.archive.open('stop_times.txt', { readAheadBytes: STOP_TIMES_READ_AHEAD }).then((s) => s.on('error', () => {}));
     ctx.early.set('stop_times.txt', settled(opening));
   }
-  const hashing = settled(archive.contentHash());
+}
 
-  // agency.txt [GTFS Schedule reference: agency_name and agency_timezone required; agency_id optional for one agency]
+/** agency.txt [GTFS Schedule reference: agency_name and agency_timezone required; agency_id optional for one agency] */
+async function readAgencies(ctx: Ctx): Promise<Agency[]> {
   const agencies: Agency[] = [];
   await table(ctx, 'agency.txt', ['agency_name', 'agency_timezone'], ['agency_id'], (row, c) => {
     agencies.push({ id: row.get(c.agency_id), name: row.get(c.agency_name), timezone: row.get(c.agency_timezone) });
   });
+  return agencies;
+}
 
-  // routes.txt
+/** routes.txt, by route_id; a repeated route_id is counted and passed over. */
+async function readRoutes(ctx: Ctx): Promise<Map<string, Route>> {
+  const { warnings } = ctx;
   const routes = new Map<string, Route>();
   await table(ctx, 'routes.txt', ['route_id', 'route_type'], ['agency_id', 'route_short_name', 'route_long_name'], (row, c) => {
     const id = need('routes.txt', row, c.route_id, 'route_id');
@@ -210,8 +285,12 @@ async function readArchive(
     if (routes.has(id)) return warnings.add('duplicate-route-id', `routes.txt:${row.line}`);
     routes.set(id, { id, agencyId: row.get(c.agency_id), shortName: row.get(c.route_short_name), longName: row.get(c.route_long_name), type });
   });
+  return routes;
+}
 
-  // stops.txt
+/** stops.txt, in file order with an index by stop_id; a repeated stop_id is counted and passed over. */
+async function readStops(ctx: Ctx): Promise<{ stops: Stop[]; stopIndex: Map<string, number> }> {
+  const { warnings } = ctx;
   const stops: Stop[] = [];
   const stopIndex = new Map<string, number>();
   const STOPS_COLUMNS = new Set(['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station']);
@@ -237,8 +316,12 @@ async function readArchive(
     stopIndex.set(id, stops.length);
     stops.push({ id, code: row.get(c.stop_code), name: row.get(c.stop_name), lat, lon, locationType, parentStation: row.get(c.parent_station) });
   });
+  return { stops, stopIndex };
+}
 
-  // calendar.txt [GTFS Schedule reference: weekday flags 0/1, start_date and end_date YYYYMMDD, end inclusive]
+/** calendar.txt [GTFS Schedule reference: weekday flags 0/1, start_date and end_date YYYYMMDD, end inclusive] and calendar_dates.txt. */
+async function readCalendars(ctx: Ctx): Promise<Calendars> {
+  const { archive, warnings } = ctx;
   const calendar: CalendarRow[] = [];
   if (archive.has('calendar.txt')) {
     await table(ctx, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => {
@@ -251,11 +334,17 @@ async function readArchive(
       calendarDates.push(calendarDateRow(row, c));
     });
   }
+  return { calendar, calendarDates };
+}
 
-  // trips.txt, held as columns until the kept trips are known: on a big feed most trips do not run on
-  // the analysis date, and an object for each (alive through every collection of the read) cost more
-  // than parsing them; route, service, headsign and shape repeat from trip to trip: one string each,
-  // shared, instead of one cut from the text per trip (which also keeps the whole text it was cut from alive)
+/**
+ * trips.txt, held as columns until the kept trips are known: on a big feed most trips do not run on
+ * the analysis date, and an object for each (alive through every collection of the read) cost more
+ * than parsing them; route, service, headsign and shape repeat from trip to trip: one string each,
+ * shared, instead of one cut from the text per trip (which also keeps the whole text it was cut from alive)
+ */
+async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColumns> {
+  const { warnings } = ctx;
   const tripRow = new Map<string, number>(); // trip_id -> row of the columns below
   const tripId: string[] = [];
   const tripRoute: string[] = [];
@@ -308,11 +397,19 @@ async function readArchive(
   if (tripId.length === 0 && unknownRoute > 0) {
     throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });
   }
-  const tripAt = (k: number): Trip => ({ id: tripId[k], routeId: tripRoute[k], serviceId: tripService[k], directionId: tripDirection[k], headsign: tripHeadsign[k], shapeId: tripShape[k] });
+  return { tripId, tripRoute, tripService, tripHeadsign, tripShape, tripDirection };
+}
 
-  // frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based]
+/** The trip at row k of the trip columns, as a record. */
+function tripAt({ tripId, tripRoute, tripService, tripDirection, tripHeadsign, tripShape }: TripColumns, k: number): Trip {
+  return { id: tripId[k], routeId: tripRoute[k], serviceId: tripService[k], directionId: tripDirection[k], headsign: tripHeadsign[k], shapeId: tripShape[k] };
+}
+
+/** frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based] */
+async function readFrequencies(ctx: Ctx): Promise<Frequency[]> {
+  const { warnings } = ctx;
   const frequencies: Frequency[] = [];
-  if (archive.has('frequencies.txt')) {
+  if (ctx.archive.has('frequencies.txt')) {
     await table(ctx, 'frequencies.txt', ['trip_id', 'start_time', 'end_time', 'headway_secs'], ['exact_times'], (row, c) => {
       const startS = fieldTimeS(row, c.start_time);
       if (startS < 0) bad('frequencies.txt', row, c.start_time, 'start_time', TIME_EXPECTED);
@@ -325,33 +422,44 @@ async function readArchive(
       frequencies.push({ tripId: row.get(c.trip_id), startS, endS, headwayS, exactTimes });
     });
   }
+  return frequencies;
+}
 
+/** feed_info.txt's first row, or null without the table. */
+async function readFeedInfo(ctx: Ctx): Promise<FeedInfo | null> {
   let feedInfo: FeedInfo | null = null;
-  if (archive.has('feed_info.txt')) {
+  if (ctx.archive.has('feed_info.txt')) {
     await table(ctx, 'feed_info.txt', [], ['feed_publisher_name', 'feed_version', 'feed_start_date', 'feed_end_date'], (row, c) => {
       feedInfo ??= { publisherName: row.get(c.feed_publisher_name), version: row.get(c.feed_version), startDate: row.get(c.feed_start_date), endDate: row.get(c.feed_end_date) };
     });
   }
+  return feedInfo;
+}
 
-  // routes filter: route_id or route_short_name
-  let routeKeep: Set<string> | null = null;
-  if (routeFilter && routeFilter.length > 0) {
-    routeKeep = new Set();
-    for (const want of routeFilter) {
-      const hits = [...routes.values()].filter((r) => r.id === want || r.shortName === want);
-      if (hits.length === 0) throw new StopspanError('bad-option', `invalid option routes: no route has id or short name ${want}`, { value: want });
-      for (const r of hits) routeKeep.add(r.id);
-    }
+/** The routes filter: the route_ids it names, each by route_id or route_short_name. */
+function routeIdsKept(routes: Map<string, Route>, routeFilter: string[]): Set<string> {
+  const routeKeep = new Set<string>();
+  for (const want of routeFilter) {
+    const hits = [...routes.values()].filter((r) => r.id === want || r.shortName === want);
+    if (hits.length === 0) throw new StopspanError('bad-option', `invalid option routes: no route has id or short name ${want}`, { value: want });
+    for (const r of hits) routeKeep.add(r.id);
   }
-  // rows of the trips of the routes asked for
-  const candidates: number[] = [];
-  for (let k = 0; k < tripId.length; k++) if (!routeKeep || routeKeep.has(tripRoute[k])) candidates.push(k);
+  return routeKeep;
+}
 
-  // the analysis date and the trips kept
+/** The analysis date (null for 'all') and the trips kept: the candidates whose service runs that day. */
+function tripsKept(
+  tripCols: TripColumns,
+  candidates: number[],
+  date: string,
+  { calendar, calendarDates }: Calendars,
+  frequencies: Frequency[],
+): { analysisDate: string | null; kept: Trip[] } {
+  const { tripId, tripService } = tripCols;
   let analysisDate: string | null = null;
   let kept: Trip[];
   if (date === 'all') {
-    kept = candidates.map(tripAt);
+    kept = candidates.map((k) => tripAt(tripCols, k));
   } else {
     if (date === 'auto') {
       const freq = tripRunsPerDay(frequencies);
@@ -363,22 +471,29 @@ async function readArchive(
       analysisDate = date;
     }
     const on = servicesOn({ calendar, calendarDates }, analysisDate);
-    kept = candidates.filter((k) => on.has(tripService[k])).map(tripAt);
+    kept = candidates.filter((k) => on.has(tripService[k])).map((k) => tripAt(tripCols, k));
     if (kept.length === 0) throw new StopspanError('empty-feed', `no trip runs on ${analysisDate}`, { value: analysisDate });
   }
   if (kept.length === 0) throw new StopspanError('empty-feed', 'the feed has no trips', { file: 'trips.txt' });
-  // blank optional fields the later stages lean on
+  return { analysisDate, kept };
+}
+
+/** Blank optional fields the later stages lean on, counted: direction_id, a known service_id, shape_id. */
+function warnBlankFields(kept: Trip[], { tripId, tripService }: TripColumns, candidates: number[], { calendar, calendarDates }: Calendars, warnings: WarningSink): void {
   const noDirection = kept.filter((t) => t.directionId < 0);
   if (noDirection.length > 0) warnings.add('blank-direction-id', noDirection[0].id, noDirection.length);
   const known = new Set([...calendar.map((c) => c.serviceId), ...calendarDates.map((d) => d.serviceId)]);
   const noService = candidates.filter((k) => !known.has(tripService[k]));
   if (noService.length > 0) warnings.add('trip-unknown-service', tripId[noService[0]], noService.length);
-  const tripIdx = new Map<string, number>();
-  kept.forEach((t, k) => tripIdx.set(t.id, k));
   const noShape = kept.filter((t) => t.shapeId === '').length;
   if (noShape > 0) warnings.add('trip-without-shape', kept.find((t) => t.shapeId === '')!.id, noShape);
+}
 
-  // stop_times.txt, kept trips only, each trip folded into a shared profile as its run of rows ends
+/** stop_times.txt, kept trips only, each trip folded into a shared profile as its run of rows ends. */
+async function readStopTimes(ctx: Ctx, kept: Trip[], stops: Stop[], stopIndex: Map<string, number>): Promise<StopTimesStore> {
+  const { warnings } = ctx;
+  const tripIdx = new Map<string, number>();
+  kept.forEach((t, k) => tripIdx.set(t.id, k));
   const folder = new TripFolder(kept.length);
   const F = 'stop_times.txt';
   const station = new Uint8Array(stops.length);
@@ -399,29 +514,33 @@ async function readArchive(
     folder.baseOfTrip,
     folder.interner.profiles,
   );
-  {
-    let noTimes = 0;
-    let noRows = 0;
-    for (let k = 0; k < kept.length; k++) {
-      const id = folder.profileOfTrip[k];
-      if (id < 0) {
-        noRows++;
-        continue;
-      }
-      // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
-      const p = folder.interner.profiles[id];
-      if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
-    }
-    const repeated = folder.repeated + reader.repeated;
-    if (repeated > 0) warnings.add('repeated-stop-sequence', F, repeated);
-    if (noTimes > 0) warnings.add('trip-end-without-time', F, noTimes);
-    if (noRows > 0) warnings.add('trip-without-stop-times', F, noRows);
-  }
-  const trips = new Map<string, Trip>();
-  for (const t of kept) if (stopTimes.has(t.id)) trips.set(t.id, t);
-  if (trips.size === 0) throw new StopspanError('empty-feed', 'no kept trip has any stop_times rows', { file: F });
+  warnTripTimes(folder, reader, kept.length, warnings);
+  return stopTimes;
+}
 
-  // shapes.txt, only the shapes the kept trips use
+/** Trips whose stop_times repeat a stop_sequence, lack a time at an end, or have no rows, counted. */
+function warnTripTimes(folder: TripFolder, reader: StopTimesRowReader, tripCount: number, warnings: WarningSink): void {
+  const F = 'stop_times.txt';
+  let noTimes = 0;
+  let noRows = 0;
+  for (let k = 0; k < tripCount; k++) {
+    const id = folder.profileOfTrip[k];
+    if (id < 0) {
+      noRows++;
+      continue;
+    }
+    // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
+    const p = folder.interner.profiles[id];
+    if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
+  }
+  const repeated = folder.repeated + reader.repeated;
+  if (repeated > 0) warnings.add('repeated-stop-sequence', F, repeated);
+  if (noTimes > 0) warnings.add('trip-end-without-time', F, noTimes);
+  if (noRows > 0) warnings.add('trip-without-stop-times', F, noRows);
+}
+
+/** shapes.txt, only the shapes the kept trips use; those named and not found are counted. */
+async function readShapes(ctx: Ctx, trips: Map<string, Trip>): Promise<Map<string, Shape>> {
   const shapes = new Map<string, Shape>();
   const wanted = new Map<string, number>();
   const shapeIds: string[] = [];
@@ -431,7 +550,7 @@ async function readArchive(
       shapeIds.push(t.shapeId);
     }
   }
-  if (archive.has('shapes.txt') && shapeIds.length > 0) {
+  if (ctx.archive.has('shapes.txt') && shapeIds.length > 0) {
     const S = 'shapes.txt';
     const owner = new IntColumn(1 << 14);
     const seqC = new IntColumn(1 << 14);
@@ -480,26 +599,6 @@ async function readArchive(
     }
   }
   const missingShapes = shapeIds.filter((id) => !shapes.has(id));
-  if (missingShapes.length > 0) warnings.add('shape-not-found', missingShapes[0], missingShapes.length);
-
-  onProgress?.({ stage: 'hash feed' });
-  const contentHash = await hashing;
-  return {
-    source,
-    date: analysisDate,
-    contentHash,
-    agencies,
-    routes,
-    stops,
-    stopIndex,
-    trips,
-    stopTimes,
-    shapes,
-    calendar,
-    calendarDates,
-    frequencies,
-    feedInfo,
-    warnings: warnings.list(),
-    rowCounts: ctx.rowCounts,
-  };
+  if (missingShapes.length > 0) ctx.warnings.add('shape-not-found', missingShapes[0], missingShapes.length);
+  return shapes;
 }

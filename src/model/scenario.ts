@@ -665,6 +665,11 @@ function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number, walkSpeedMp
 }
 
 
+/** A pattern's net passenger-minutes with the walk weight scaled by `scale` (walk added and saved in proportion, ride and stopping as they are). */
+export function netAtWalkWeight(e: Pick<ScenarioPatternEffect, 'walkAddedPaxMinPerDay' | 'walkSavedPaxMinPerDay' | 'rideSavedPaxMinPerDay' | 'neighboursExtraPaxMinPerDay'>, scale: number): number {
+  return scale * (e.walkAddedPaxMinPerDay - e.walkSavedPaxMinPerDay) - e.rideSavedPaxMinPerDay + e.neighboursExtraPaxMinPerDay;
+}
+
 /**
  * A checked scenario weighed on patterns already prepared (the audit weighs its own plan this way, on the
  * same preparation): per pattern, in total, and at the sensitivity walk weights.
@@ -673,10 +678,13 @@ export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[]
   const changes = resolveChanges(feed, date, preps, sc);
   const list = [...changes.values()].sort((a, b) => a.prep.pattern.id.localeCompare(b.prep.pattern.id));
   const effects = list.map((ch) => effectOf(feed, ch, params, params.walk_weight));
+  // at another walk weight only the walk terms change, in proportion to it: nothing else effectOf sums
+  // depends on the weight (costSettings' walkWeight reaches only wv there), so the figures are scaled, not
+  // weighed again [D] (test/whatif/whatif.test.ts checks them against the scenario weighed at each weight)
   const sensitivity: ScenarioSensitivity[] = [1.5, 2.5].map((w) => ({
     label: `walk_weight=${w}`,
     walkWeight: w,
-    netPaxMinPerDay: list.reduce((s, ch) => s + effectOf(feed, ch, params, w).netPaxMinPerDay, 0),
+    netPaxMinPerDay: effects.reduce((s, e) => s + netAtWalkWeight(e, w / params.walk_weight), 0),
   }));
   const fleet = routeFleet(feed, preps, effects, params.operating_cost_per_vehicle_hour);
   return { patterns: effects, totals: totalsOf(effects, params.max_gap_m, params.walk_speed_mps), sensitivity, fleet };

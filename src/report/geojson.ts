@@ -137,13 +137,17 @@ function stopProperties(s: StopResult): Feature<Point>['properties'] {
  * positions cannot be a LineString (RFC 7946 section 3.1.4) and is left out.
  */
 export function patternsGeoJson(result: AuditResult): FeatureCollection<LineString> {
+  return { type: 'FeatureCollection', features: [...patternFeatures(result)] };
+}
+
+/** The features of patterns.geojson one at a time (the GeoPackage writes them without a second whole list). */
+export function* patternFeatures(result: AuditResult): Generator<Feature<LineString>> {
   const stopsByPattern = new Map<string, StopResult[]>();
   for (const s of result.stops) {
     let list = stopsByPattern.get(s.patternId);
     if (!list) stopsByPattern.set(s.patternId, (list = []));
     list.push(s);
   }
-  const features: Feature<LineString>[] = [];
   for (const p of result.patterns) {
     let line = cleanLine(p.path);
     if (line.length < 2) {
@@ -151,23 +155,25 @@ export function patternsGeoJson(result: AuditResult): FeatureCollection<LineStri
       line = cleanLine(stops.map((s) => [s.stopLon, s.stopLat] as Position));
     }
     if (line.length < 2) continue;
-    features.push({ type: 'Feature', geometry: { type: 'LineString', coordinates: line }, properties: patternProperties(p) });
+    yield { type: 'Feature', geometry: { type: 'LineString', coordinates: line }, properties: patternProperties(p) };
   }
-  return { type: 'FeatureCollection', features };
 }
 
 /** stops.geojson: one Point per stop of each pattern (the rows of stops.csv); invalid coordinates are left out. */
 export function stopsGeoJson(result: AuditResult): FeatureCollection<Point> {
-  const features: Feature<Point>[] = [];
+  return { type: 'FeatureCollection', features: [...stopFeatures(result)] };
+}
+
+/** The features of stops.geojson one at a time. */
+export function* stopFeatures(result: AuditResult): Generator<Feature<Point>> {
   for (const s of result.stops) {
     if (!validPosition(s.stopLon, s.stopLat)) continue;
-    features.push({
+    yield {
       type: 'Feature',
       geometry: { type: 'Point', coordinates: [round6(s.stopLon), round6(s.stopLat)] },
       properties: stopProperties(s),
-    });
+    };
   }
-  return { type: 'FeatureCollection', features };
 }
 
 /**
@@ -176,8 +182,12 @@ export function stopsGeoJson(result: AuditResult): FeatureCollection<Point> {
  * columns, same names and rounding, as JSON values (a blank number null); the position is the geometry.
  */
 export function candidatesGeoJson(result: AuditResult): FeatureCollection<Point> {
+  return { type: 'FeatureCollection', features: [...candidateFeatures(result)] };
+}
+
+/** The features of candidates.geojson one at a time. */
+export function* candidateFeatures(result: AuditResult): Generator<Feature<Point>> {
   const columns = candidateColumns(result.demandSource).filter((c) => c.name !== 'stop_lat' && c.name !== 'stop_lon');
-  const features: Feature<Point>[] = [];
   for (const c of result.candidates) {
     if (!validPosition(c.lon, c.lat)) continue;
     const properties: Feature<Point>['properties'] = {};
@@ -185,9 +195,8 @@ export function candidatesGeoJson(result: AuditResult): FeatureCollection<Point>
       const v = col.get(c);
       properties[col.name] = col.kind === 'number' ? (typeof v === 'number' ? cellNumber(v, col.digits) : null) : v === null ? '' : String(v);
     }
-    features.push({ type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties });
+    yield { type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties };
   }
-  return { type: 'FeatureCollection', features };
 }
 
 /**
@@ -197,6 +206,11 @@ export function candidatesGeoJson(result: AuditResult): FeatureCollection<Point>
  * of its removal in candidates.csv (null when it is not proposed).
  */
 export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point> {
+  return { type: 'FeatureCollection', features: [...stopPointFeatures(result)] };
+}
+
+/** The features of stop_points.geojson one at a time (the stops are gathered first: a stop's routes come from every pattern). */
+export function* stopPointFeatures(result: AuditResult): Generator<Feature<Point>> {
   interface Acc { first: StopResult; routes: Set<string>; patterns: Set<string>; trips: number; close: number; fixedReason: string }
   const byStop = new Map<string, Acc>();
   for (const s of result.stops) {
@@ -211,11 +225,10 @@ export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point>
   }
   const removalRank = new Map<string, number>();
   for (const c of result.candidates) if (c.action === 'remove' && !removalRank.has(c.stopId)) removalRank.set(c.stopId, c.rank);
-  const features: Feature<Point>[] = [];
   for (const [stopId, a] of byStop) {
     const s = a.first;
     if (!validPosition(s.stopLon, s.stopLat)) continue;
-    features.push({
+    yield {
       type: 'Feature',
       geometry: { type: 'Point', coordinates: [round6(s.stopLon), round6(s.stopLat)] },
       properties: {
@@ -229,7 +242,6 @@ export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point>
         fixed_reason: a.fixedReason,
         removal_rank: removalRank.get(stopId) ?? null,
       },
-    });
+    };
   }
-  return { type: 'FeatureCollection', features };
 }

@@ -104,46 +104,56 @@ export function summaryObject(result: AuditResult): Record<string, unknown> {
     warnings: result.warnings.map((w) => ({ code: w.code, message: w.message, count: w.count, examples: [...w.examples] })),
     assumptions: [...result.assumptions],
     cautions: [...CAUTIONS],
-    land_use: result.landUse
-      ? {
-          file: result.landUse.file,
-          format: result.landUse.format,
-          columns: result.landUse.columns.map((c) => ({ name: c.name, weight: c.weight, total: r1(c.total), covered: r1(c.covered) })),
-          features: result.landUse.features,
-          features_outside_catchments: result.landUse.featuresOutsideCatchments,
-          points: result.landUse.points,
-          people: r1(result.landUse.people),
-          people_covered: r1(result.landUse.peopleCovered),
-          walk_radius_m: result.landUse.walkRadiusM,
-          walk_detour: result.landUse.walkDetour,
-        }
-      : null,
-    observed: result.observed
-      ? {
-          source: result.observed.source,
-          snapshots_read: result.observed.snapshotsRead,
-          snapshots_skipped: result.observed.snapshotsSkipped,
-          trips_matched: result.observed.tripsMatched,
-          trips_unmatched: result.observed.tripsUnmatched,
-          patterns: result.patterns.flatMap((p) => {
-            const o = p.observed;
-            if (!o) return [];
-            return [
-              {
-                pattern_id: p.patternId,
-                trips_observed: o.tripsObserved,
-                dwell_s: rn(o.dwellS, 10),
-                door_time_s: rn(o.doorTimeS, 10),
-                stop_loss_s: rn(o.stopLossS, 100),
-                cruise_speed_mps: rn(o.cruiseSpeedMps, 100),
-                stop_share: rn(o.stopShare, 1000),
-                lost_time_observed_parts: [...o.lostTimeParts],
-              },
-            ];
-          }),
-        }
-      : null,
+    land_use: landUseSection(result),
+    observed: observedSection(result),
   };
+}
+
+/** The land-use layer's figures (land_use), or null without a layer. */
+function landUseSection(result: AuditResult): Record<string, unknown> | null {
+  return result.landUse
+    ? {
+        file: result.landUse.file,
+        format: result.landUse.format,
+        columns: result.landUse.columns.map((c) => ({ name: c.name, weight: c.weight, total: r1(c.total), covered: r1(c.covered) })),
+        features: result.landUse.features,
+        features_outside_catchments: result.landUse.featuresOutsideCatchments,
+        points: result.landUse.points,
+        people: r1(result.landUse.people),
+        people_covered: r1(result.landUse.peopleCovered),
+        walk_radius_m: result.landUse.walkRadiusM,
+        walk_detour: result.landUse.walkDetour,
+      }
+    : null;
+}
+
+/** What a realtime archive said (observed), per pattern where it covered one; null without an archive. */
+function observedSection(result: AuditResult): Record<string, unknown> | null {
+  return result.observed
+    ? {
+        source: result.observed.source,
+        snapshots_read: result.observed.snapshotsRead,
+        snapshots_skipped: result.observed.snapshotsSkipped,
+        trips_matched: result.observed.tripsMatched,
+        trips_unmatched: result.observed.tripsUnmatched,
+        patterns: result.patterns.flatMap((p) => {
+          const o = p.observed;
+          if (!o) return [];
+          return [
+            {
+              pattern_id: p.patternId,
+              trips_observed: o.tripsObserved,
+              dwell_s: rn(o.dwellS, 10),
+              door_time_s: rn(o.doorTimeS, 10),
+              stop_loss_s: rn(o.stopLossS, 100),
+              cruise_speed_mps: rn(o.cruiseSpeedMps, 100),
+              stop_share: rn(o.stopShare, 1000),
+              lost_time_observed_parts: [...o.lostTimeParts],
+            },
+          ];
+        }),
+      }
+    : null;
 }
 
 /** The text of summary.json (two-space indentation, final newline). */

@@ -5,7 +5,8 @@
 // only when it holds nothing but such a previous output (the marker and the names it lists), never the
 // working folder or one above it, the home folder, the root, a folder holding an input, a file or a link.
 // Temporary folders left by a killed run (their pid no longer alive) are swept on the next write beside
-// them. The only place in src/report that touches the disk.
+// them. The only place in src/report that touches the disk, but for the GeoPackage, which SQLite writes
+// into the temporary folder at the path this hands it (a FileWriter).
 
 import { lstatSync, renameSync, rmSync } from 'node:fs';
 import { lstat, mkdir, readdir, readFile, realpath, rename, rm, rmdir, stat, writeFile } from 'node:fs/promises';
@@ -17,6 +18,11 @@ import { version } from '../version.js';
 
 /** The marker file written into every output folder: which tool wrote it, and the files it wrote. */
 export const REPORT_MARKER = '.stopspan-report.json';
+
+/** A file written by other means than text (the GeoPackage): given its path inside the temporary folder. */
+export interface FileWriter {
+  writeTo(path: string): void | Promise<void>;
+}
 
 export interface WriteFolderOptions {
   /** Replace an existing folder that holds a previous output of this tool. */
@@ -199,15 +205,15 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
 }
 
 /**
- * Writes files (name -> text, or a function rendering it; rendered inside the temporary folder's life so
- * a failing renderer leaves nothing) and the marker as the folder outDir. Returns the paths written, in
+ * Writes files (name -> text, or a function rendering it or giving a FileWriter; rendered inside the
+ * temporary folder's life so a failing renderer leaves nothing) and the marker as the folder outDir. Returns the paths written, in
  * order (the marker not among them). Throws as checkOutFolder does, and 'bad-option' for a file name that
  * is not a plain name. An interrupt (see common/interrupts.ts) removes the temporary folder and puts a
  * previous output back.
  */
 export async function writeFolder(
   outDir: string,
-  files: [name: string, content: string | (() => string)][],
+  files: [name: string, content: string | (() => string | FileWriter)][],
   options: WriteFolderOptions = {},
 ): Promise<string[]> {
   for (const [name] of files) {
@@ -233,7 +239,9 @@ export async function writeFolder(
       // the marker first: a temporary folder holding it is recognisably this tool's
       await writeFile(join(tmp, REPORT_MARKER), JSON.stringify({ writtenBy: 'stopspan', version, files: files.map(([n]) => n) }, null, 2) + '\n', 'utf8');
       for (const [name, content] of files) {
-        await writeFile(join(tmp, name), typeof content === 'function' ? content() : content, 'utf8');
+        const body = typeof content === 'function' ? content() : content;
+        if (typeof body === 'string') await writeFile(join(tmp, name), body, 'utf8');
+        else await body.writeTo(join(tmp, name));
       }
     } catch (e) {
       if (e instanceof StopspanError || !errno(e)) throw e;

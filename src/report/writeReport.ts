@@ -5,15 +5,18 @@ import type { AuditResult } from '../audit/types.js';
 import { StopspanError } from '../common/errors.js';
 import { candidatesCsv, patternsCsv, stopsCsv } from './csv.js';
 import { candidatesGeoJson, patternsGeoJson, stopPointsGeoJson, stopsGeoJson } from './geojson.js';
+import { geoPackageFile, GPKG_FILE, loadGeoPackageSqlite } from './gpkg.js';
 import { indexHtml } from './html/indexHtml.js';
 import { summaryJson } from './summaryJson.js';
 
 export { summaryJson };
 import { checkUnits, type Units } from './units.js';
-import { writeFolder } from './writeFolder.js';
+import { writeFolder, type FileWriter } from './writeFolder.js';
 
-export type ReportFormat = 'html' | 'csv' | 'geojson' | 'json';
-export const REPORT_FORMATS: readonly ReportFormat[] = ['html', 'csv', 'geojson', 'json'];
+export type ReportFormat = 'html' | 'csv' | 'geojson' | 'json' | 'gpkg';
+export const REPORT_FORMATS: readonly ReportFormat[] = ['html', 'csv', 'geojson', 'json', 'gpkg'];
+/** Written when no formats are named: all but the GeoPackage, which needs the optional SQLite binding. */
+const DEFAULT_FORMATS: readonly ReportFormat[] = REPORT_FORMATS.filter((f) => f !== 'gpkg');
 
 export interface WriteReportOptions {
   formats?: ReportFormat[];
@@ -24,7 +27,7 @@ export interface WriteReportOptions {
 }
 
 /** Which files each format writes, and how to render them. */
-const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => string | null][]> = {
+const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => string | FileWriter | null][]> = {
   json: [
     ['summary.json', (r) => summaryJson(r)],
     // the optimiser's plan as a scenario whatif reads back (absent when the optimiser keeps every stop)
@@ -42,15 +45,19 @@ const FILES: Record<ReportFormat, [string, (r: AuditResult, units: Units) => str
     ['candidates.geojson', (r) => JSON.stringify(candidatesGeoJson(r)) + '\n'],
   ],
   html: [['index.html', (r, units) => indexHtml(r, { units })]],
+  // the map layers again, as one GeoPackage (metric, as the GeoJSON)
+  gpkg: [[GPKG_FILE, (r) => geoPackageFile(r)]],
 };
 
 /**
  * Renders the chosen formats and writes them into outDir. Returns the paths written (inside outDir).
  * Throws StopspanError 'output-exists' when outDir exists and force is not set, 'bad-output' when it may
- * not be replaced or cannot be written (see writeFolder); 'bad-option' for an unknown format or units.
+ * not be replaced or cannot be written (see writeFolder); 'bad-option' for an unknown format or units, and
+ * for 'gpkg' without the optional SQLite binding (before anything is written). By default every format
+ * but 'gpkg'.
  */
 export async function writeReport(result: AuditResult, outDir: string, options: WriteReportOptions = {}): Promise<string[]> {
-  const { formats = [...REPORT_FORMATS], units = 'metric', force = false, inputs } = options;
+  const { formats = [...DEFAULT_FORMATS], units = 'metric', force = false, inputs } = options;
   checkUnits(units);
   if (!Array.isArray(formats) || formats.length === 0) {
     throw new StopspanError('bad-option', `invalid option formats: expected one or more of ${REPORT_FORMATS.join(', ')}, got none`, { value: String(formats) });
@@ -61,8 +68,9 @@ export async function writeReport(result: AuditResult, outDir: string, options: 
     }
   }
   const wanted = REPORT_FORMATS.filter((f) => formats.includes(f)); // fixed order, no duplicates
-  const files: [string, () => string][] = wanted.flatMap((f) =>
-    FILES[f].flatMap(([name, render]) => (name === 'plan.json' && !result.plan ? [] : [[name, () => render(result, units) ?? ''] as [string, () => string]])),
+  if (wanted.includes('gpkg')) loadGeoPackageSqlite();
+  const files: [string, () => string | FileWriter][] = wanted.flatMap((f) =>
+    FILES[f].flatMap(([name, render]) => (name === 'plan.json' && !result.plan ? [] : [[name, () => render(result, units) ?? ''] as [string, () => string | FileWriter]])),
   );
   return writeFolder(outDir, files, { force, inputs });
 }

@@ -122,7 +122,7 @@ describe('writeReport', () => {
   it('rejects an unknown format or units with a coded error naming the value', async () => {
     const e = await caught(writeReport(sample, join(work, 'x'), { formats: ['pdf' as never] }));
     expect(e.code).toBe('bad-option');
-    expect(e.message).toMatch(/invalid option formats: expected one of html, csv, geojson, json, got "pdf"/);
+    expect(e.message).toMatch(/invalid option formats: expected one of html, csv, geojson, json, gpkg, got "pdf"/);
     const u = await caught(writeReport(sample, join(work, 'x'), { units: 'nautical' as never }));
     expect(u.code).toBe('bad-option');
     expect((await caught(writeReport(sample, join(work, 'x'), { formats: [] }))).code).toBe('bad-option');

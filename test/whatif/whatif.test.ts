@@ -41,6 +41,21 @@ describe('evaluateScenario', () => {
     expect(r.sensitivity[0].netPaxMinPerDay).toBeLessThan(r.sensitivity[1].netPaxMinPerDay);
   });
 
+  it('gives the sensitivity walk weights the net the whole scenario has when weighed at that weight', () => {
+    // a removal, a move and an addition, so walk is both added and saved; each case is the scenario weighed
+    // afresh with walk_weight set to it (the figures are scaled from the base weighing, not weighed again)
+    const s3 = feed.stops[feed.stopIndex.get('v1-3')!];
+    const s9 = feed.stops[feed.stopIndex.get('v1-9')!];
+    const s10 = feed.stops[feed.stopIndex.get('v1-10')!];
+    const sc = { remove: ['v1-6'], move: [{ stop: 'v1-3', lat: s3.lat, lon: s3.lon + 0.0008 }], add: [{ lat: (s9.lat + s10.lat) / 2, lon: (s9.lon + s10.lon) / 2, route: 'V1' }] };
+    const r = evaluateScenario(feed, patterns, sc, { params });
+    expect(r.totals.walkSavedPaxMinPerDay).toBeGreaterThan(0);
+    for (const c of r.sensitivity) {
+      const afresh = evaluateScenario(feed, patterns, sc, { params: { ...params, walk_weight: c.walkWeight } });
+      expect(c.netPaxMinPerDay).toBeCloseTo(afresh.totals.netPaxMinPerDay, 9);
+    }
+  });
+
   it('adding a stop back where one was removed is the mirror case', () => {
     const gapped = handmadeNetwork({ distM: even.filter((_, j) => j !== 6), tripsPerDay: 50, sharedAt: 11 });
     const s6 = feed.stops[feed.stopIndex.get('v1-6')!];

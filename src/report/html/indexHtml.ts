@@ -3,7 +3,7 @@
 // with every piece of feed text escaped; the interactive parts are drawn by the inline script from one
 // embedded JSON block, per-pattern sections only when opened, so large feeds stay a few MB.
 
-import type { AuditResult, PatternResult, StopResult } from '../../audit/types.js';
+import type { AuditResult, Candidate, PatternResult, StopResult } from '../../audit/types.js';
 import { StopspanError } from '../../common/errors.js';
 import { median } from '../../common/median.js';
 import { CAUTIONS } from '../cautions.js';
@@ -58,6 +58,65 @@ function deltaPath(path: [number, number][]): number[] {
   return out;
 }
 
+/** A stop of a pattern in the data block: [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]. */
+type PageStop = [number, number | null, string, string, 0 | 1, number | null, number, number];
+
+/** A pattern in the data block (short keys: the block is written into the page). */
+interface PagePattern {
+  id: string;
+  route: string;
+  routeName: string;
+  dir: number;
+  headsign: string;
+  len: number | null;
+  trips: number | null;
+  median: number | null;
+  mean: number | null;
+  opt: number | null;
+  lo: number | null;
+  hi: number | null;
+  close: number;
+  wide: number;
+  optCount: number;
+  lost: number | null;
+  demand: PatternResult['demandSource'];
+  lostTime: number | null;
+  cruise: number | null;
+  delay: number | null;
+  stopping: PatternResult['stoppingModel'];
+  distSource: PatternResult['distanceSource'];
+  curve: (number | null)[][];
+  curCost: number | null;
+  optCost: number | null;
+  path: number[];
+  stops: PageStop[];
+  gaps: number[][]; // [place of the gap's first stop in stops, gap, 1 wide or 2 under review]
+  cands: [number, number][];
+  drops: number[];
+}
+
+/** A candidate in the data block. */
+interface PageCandidate {
+  rank: number;
+  action: Candidate['action'];
+  id: string;
+  name: string;
+  routes: string[];
+  net: number | null;
+  riders: number | null;
+  rt: number | null;
+  vh: number;
+  robust: boolean;
+  pats: number[];
+  at?: [number, number];
+}
+
+/** Stops written once, each pattern's stops referring to them by position. */
+interface StopTable {
+  table: [string, string, number, number][]; // [stop_id, name, lat, lon]
+  refOf: (s: StopResult) => number;
+}
+
 /**
  * The data block the page's script draws from: compact arrays, numbers rounded. A stop served by several
  * patterns is written once (stopTable: [stop_id, name, lat, lon]) and each pattern's stops refer to it by
@@ -66,6 +125,19 @@ function deltaPath(path: [number, number][]): number[] {
  * pattern's rows when its section is opened.
  */
 export function pageData(result: AuditResult, units: Units, maxPathPoints: number): Record<string, unknown> {
+  const stopsBy = passengerStopsByPattern(result);
+  const wideBy = wideGapsByPattern(result);
+  const stopTable = newStopTable();
+  const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
+  const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
+  const candsOn = candidatesOnPatterns(result, orderedStops, patternPos);
+  const patterns = result.patterns.map((p: PatternResult, pi) => patternData(p, orderedStops[pi], wideBy.get(p.patternId) ?? [], candsOn[pi], stopTable.refOf, maxPathPoints));
+  const candidates = result.candidates.map((c) => candidateData(c, patternPos));
+  return { units, assumed: result.demandSource !== 'observed', stopTable: stopTable.table, patterns, candidates, density: densityData(result) };
+}
+
+/** Each pattern's stops, without timing points where no one boards or alights. */
+function passengerStopsByPattern(result: AuditResult): Map<string, StopResult[]> {
   const stopsBy = new Map<string, StopResult[]>();
   for (const s of result.stops) {
     // a timing point where no one boards or alights is no stop for spacing: the page's stop list, its
@@ -75,6 +147,11 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) stopsBy.set(s.patternId, (l = []));
     l.push(s);
   }
+  return stopsBy;
+}
+
+/** Each pattern's wide gaps: [first stop's pattern index, gap, kind]. */
+function wideGapsByPattern(result: AuditResult): Map<string, [number, number, number][]> {
   // a wide gap is 1, or 2 where it is listed for review (no evidence anyone is there: an empty stretch)
   const underReview = new Set(result.reviewGaps.flatMap((g) => g.patternIds.map((id) => `${id}\n${g.fromStopId}\n${g.toStopId}`)));
   const wideBy = new Map<string, [number, number, number][]>();
@@ -83,27 +160,32 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     if (!l) wideBy.set(g.patternId, (l = []));
     if (g.wide) l.push([g.fromStopIndex, r1(g.gapM) ?? 0, underReview.has(`${g.patternId}\n${g.fromStopId}\n${g.toStopId}`) ? 2 : 1]);
   }
+  return wideBy;
+}
+
+/** An empty stop table; refOf adds a stop the first time it is asked for. */
+function newStopTable(): StopTable {
   const stopRef = new Map<string, number>();
-  const stopTable: [string, string, number, number][] = [];
+  const table: [string, string, number, number][] = [];
   const refOf = (s: StopResult): number => {
     let i = stopRef.get(s.stopId);
     if (i === undefined) {
-      stopRef.set(s.stopId, (i = stopTable.length));
-      stopTable.push([s.stopId, s.stopName, r5(s.stopLat), r5(s.stopLon)]);
+      stopRef.set(s.stopId, (i = table.length));
+      table.push([s.stopId, s.stopName, r5(s.stopLat), r5(s.stopLon)]);
     }
     return i;
   };
-  const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
-  const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
-  // the candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]
+  return { table, refOf };
+}
+
+/** The candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]. */
+function candidatesOnPatterns(result: AuditResult, orderedStops: StopResult[][], patternPos: Map<string, number>): [number, number][][] {
   const candsOn: [number, number][][] = result.patterns.map(() => []);
   result.candidates.forEach((c, ci) => {
     for (const id of new Set(c.patternIds)) {
       const pi = patternPos.get(id);
       if (pi === undefined) continue;
       const stops = orderedStops[pi];
-    // a wide gap names its first stop by its place in this list
-    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
       if (c.action === 'remove') {
         let found = false;
         stops.forEach((s, i) => {
@@ -116,55 +198,68 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
       }
     }
   });
-  const patterns = result.patterns.map((p: PatternResult, pi) => {
-    const stops = orderedStops[pi];
-    // a wide gap names its first stop by its place in this list
-    const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
-    return {
-      id: p.patternId,
-      route: p.routeId,
-      routeName: p.routeShortName || p.routeId,
-      dir: p.directionId,
-      headsign: p.headsign,
-      len: r1(p.lengthM),
-      trips: r1(p.tripsPerDay),
-      median: r1(p.medianGapM),
-      mean: r1(p.meanGapM),
-      opt: r1(p.optimalSpacingM),
-      lo: r1(p.bandLowM),
-      hi: r1(p.bandHighM),
-      close: p.closeStops,
-      wide: p.wideGaps,
-      optCount: p.optimalStopCount,
-      lost: r1(p.paxMinLostPerDay),
-      demand: p.demandSource,
-      lostTime: r1(p.lostTimePerStopS),
-      cruise: r1(p.cruiseSpeedMps),
-      delay: p.trafficDelayS === null ? null : Math.round(p.trafficDelayS),
-      stopping: p.stoppingModel,
-      distSource: p.distanceSource,
-      curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
-      curCost: r1(p.currentCostPerRiderS),
-      optCost: r1(p.optimalCostPerRiderS),
-      path: deltaPath(thin(p.path, maxPathPoints)),
-      // [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
-      stops: stops.map((s) => [
-        refOf(s),
-        r1(s.distAlongM),
-        VERDICTS[s.verdict].letter,
-        s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
-        s.timepoint ? 1 : 0,
-        r1(s.removalNetPaxMinPerDay),
-        Math.round(s.boardingsPerDay), // shown as whole riders
-        Math.round(s.alightingsPerDay),
-      ]),
-      gaps: (wideBy.get(p.patternId) ?? []).flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
-      cands: candsOn[pi],
-      // the optimiser's plan: positions of the stops it drops (every other stop it keeps)
-      drops: stops.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])),
-    };
-  });
-  const candidates = result.candidates.map((c) => ({
+  return candsOn;
+}
+
+/** One pattern's entry: its figures, path, stops (by stop table position), wide gaps, candidates and the plan's drops. */
+function patternData(
+  p: PatternResult,
+  stops: StopResult[],
+  wide: [number, number, number][],
+  cands: [number, number][],
+  refOf: (s: StopResult) => number,
+  maxPathPoints: number,
+): PagePattern {
+  // a wide gap names its first stop by its place in this list
+  const place = new Map(stops.map((s, i) => [s.stopIndex, i]));
+  return {
+    id: p.patternId,
+    route: p.routeId,
+    routeName: p.routeShortName || p.routeId,
+    dir: p.directionId,
+    headsign: p.headsign,
+    len: r1(p.lengthM),
+    trips: r1(p.tripsPerDay),
+    median: r1(p.medianGapM),
+    mean: r1(p.meanGapM),
+    opt: r1(p.optimalSpacingM),
+    lo: r1(p.bandLowM),
+    hi: r1(p.bandHighM),
+    close: p.closeStops,
+    wide: p.wideGaps,
+    optCount: p.optimalStopCount,
+    lost: r1(p.paxMinLostPerDay),
+    demand: p.demandSource,
+    lostTime: r1(p.lostTimePerStopS),
+    cruise: r1(p.cruiseSpeedMps),
+    delay: p.trafficDelayS === null ? null : Math.round(p.trafficDelayS),
+    stopping: p.stoppingModel,
+    distSource: p.distanceSource,
+    curve: p.costCurve.map((c) => [r1(c.spacingM), r1(c.costPerRiderS)]),
+    curCost: r1(p.currentCostPerRiderS),
+    optCost: r1(p.optimalCostPerRiderS),
+    path: deltaPath(thin(p.path, maxPathPoints)),
+    // [stopTable position, dist, verdict letter, fixed reason (with its note), timepoint, removal net, boardings, alightings]
+    stops: stops.map((s): PageStop => [
+      refOf(s),
+      r1(s.distAlongM),
+      VERDICTS[s.verdict].letter,
+      s.fixedNote ? `${s.fixedReason}: ${s.fixedNote}` : s.fixedReason,
+      s.timepoint ? 1 : 0,
+      r1(s.removalNetPaxMinPerDay),
+      Math.round(s.boardingsPerDay), // shown as whole riders
+      Math.round(s.alightingsPerDay),
+    ]),
+    gaps: wide.flatMap(([j, gapM, kind]) => (place.has(j) ? [[place.get(j)!, gapM, kind]] : [])),
+    cands,
+    // the optimiser's plan: positions of the stops it drops (every other stop it keeps)
+    drops: stops.flatMap((s, i) => (s.keptByOptimiser ? [] : [i])),
+  };
+}
+
+/** One candidate's entry; an addition's site where it is known. */
+function candidateData(c: Candidate, patternPos: Map<string, number>): PageCandidate {
+  return {
     rank: c.rank,
     action: c.action,
     id: c.stopId,
@@ -176,9 +271,8 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
     vh: Math.round(c.vehicleHoursPerDay * 1000) / 1000,
     robust: c.robust,
     pats: c.patternIds.flatMap((id) => patternPos.get(id) ?? []), // positions in patterns, to link a row to its pattern's section
-    ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] } : {}),
-  }));
-  return { units, assumed: result.demandSource !== 'observed', stopTable, patterns, candidates, density: densityData(result) };
+    ...(c.action === 'add' && Number.isFinite(c.lat) && Number.isFinite(c.lon) ? { at: [r5(c.lat), r5(c.lon)] as [number, number] } : {}),
+  };
 }
 
 /** Most squares of the land-use layer one pattern's map draws; the script merges squares into wider ones beyond it. */
@@ -218,6 +312,64 @@ function th(key: string, label: string, numeric = false): string {
   return `<th data-key="${h(key)}"${numeric ? ' class="num"' : ''} scope="col"><button type="button">${h(label)}</button></th>`;
 }
 
+/** The headline's top candidates: removals and additions listed apart, five of each. */
+function topCandidatesHtml(result: AuditResult, assumedNote: string): string {
+  // removals and additions are different decisions: each has its own ranked list
+  const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
+  const topItem = (c: AuditResult['candidates'][number]): string =>
+    `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}${c.evidence ? ` <span class="note">(evidence: ${h(c.evidence)})</span>` : ''}</li>`;
+  const topRemovals = topOf('remove');
+  const topAdditions = topOf('add');
+  return topRemovals.length || topAdditions.length
+    ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
+      `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
+    : '<p class="note">No stop change saves riders time under these parameters.</p>';
+}
+
+/** The wide gaps listed for review (no stop proposed), longest first, the first 50; '' when there are none. */
+function reviewGapsHtml(result: AuditResult, d: (m: number | null) => string): string {
+  const reviewShown = result.reviewGaps.slice(0, 50);
+  return result.reviewGaps.length
+    ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
+        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
+        .join('')}</tbody></table></div>`
+    : '';
+}
+
+/** The parameters' table rows: value, source and note. */
+function parametersHtml(result: AuditResult): string {
+  return Object.entries(result.params)
+    .map(
+      ([name, p]) =>
+        `<tr><td><code>${h(name)}</code></td><td class="num">${h(p.value === null ? '—' : String(p.value))}</td><td title="${h(SOURCE_TEXT[p.source] ?? p.source)}">${h(p.source)}: ${h(SOURCE_TEXT[p.source] ?? '')}</td><td>${h(p.note)}</td></tr>`,
+    )
+    .join('');
+}
+
+/** The warnings table, or a line saying there were none. */
+function warningsHtml(result: AuditResult): string {
+  return result.warnings.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">warning</th><th scope="col" class="num">count</th><th scope="col">what it means</th><th scope="col">examples</th></tr></thead><tbody>${result.warnings
+        .map(
+          (w) =>
+            `<tr><td><code>${h(w.code)}</code></td><td class="num">${h(fmt(w.count))}</td><td>${h(w.message)}</td><td>${w.examples.map((e) => `<code>${h(e)}</code>`).join(' ')}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">The feed was read without warnings.</p>';
+}
+
+/** The sensitivity cases' table, or a line saying none were run. */
+function sensitivityHtml(result: AuditResult, d: (m: number | null) => string, assumedNote: string): string {
+  return result.sensitivity.length
+    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th><th scope="col" class="num">listed candidates still saving</th></tr></thead><tbody>${result.sensitivity
+        .map(
+          (s) =>
+            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td><td class="num">${h(fmt(s.programmeStillSaving))} of ${h(fmt(result.candidates.length))}</td></tr>`,
+        )
+        .join('')}</tbody></table></div>`
+    : '<p class="note">No sensitivity cases were run.</p>';
+}
+
 export function indexHtml(result: AuditResult, options: HtmlOptions = {}): string {
   const { units = 'metric', maxPathPoints = 400 } = options;
   checkUnits(units);
@@ -240,45 +392,11 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   );
   const belowBand = result.gaps.filter((g) => g.verdict === 'short').length;
   const wideRows = result.gaps.filter((g) => g.verdict === 'wide').length; // = hl.wideGapsOnPatterns
-  // removals and additions are different decisions: each has its own ranked list
-  const topOf = (action: 'remove' | 'add') => result.candidates.filter((c) => c.action === action).slice(0, 5);
-  const topItem = (c: AuditResult['candidates'][number]): string =>
-    `<li>${h(c.action === 'remove' ? 'Remove' : 'Add a stop')} <strong>${h(c.stopName)}</strong>${c.stopId ? ` <code>${h(c.stopId)}</code>` : ''}, route${c.routeIds.length > 1 ? 's' : ''} ${h(c.routeIds.join(', '))}: ${h(fmt(c.netPaxMinPerDay, 1))} passenger-min/day${assumedNote}${c.robust ? '' : ' <span class="note">(not robust to the sensitivity cases)</span>'}${c.evidence ? ` <span class="note">(evidence: ${h(c.evidence)})</span>` : ''}</li>`;
-  const topRemovals = topOf('remove');
-  const topAdditions = topOf('add');
-  const topList =
-    topRemovals.length || topAdditions.length
-      ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
-        `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
-      : '<p class="note">No stop change saves riders time under these parameters.</p>';
-  const reviewShown = result.reviewGaps.slice(0, 50);
-  const reviewGaps = result.reviewGaps.length
-    ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
-        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
-        .join('')}</tbody></table></div>`
-    : '';
-  const params = Object.entries(result.params)
-    .map(
-      ([name, p]) =>
-        `<tr><td><code>${h(name)}</code></td><td class="num">${h(p.value === null ? '—' : String(p.value))}</td><td title="${h(SOURCE_TEXT[p.source] ?? p.source)}">${h(p.source)}: ${h(SOURCE_TEXT[p.source] ?? '')}</td><td>${h(p.note)}</td></tr>`,
-    )
-    .join('');
-  const warnings = result.warnings.length
-    ? `<div class="table-wrap"><table><thead><tr><th scope="col">warning</th><th scope="col" class="num">count</th><th scope="col">what it means</th><th scope="col">examples</th></tr></thead><tbody>${result.warnings
-        .map(
-          (w) =>
-            `<tr><td><code>${h(w.code)}</code></td><td class="num">${h(fmt(w.count))}</td><td>${h(w.message)}</td><td>${w.examples.map((e) => `<code>${h(e)}</code>`).join(' ')}</td></tr>`,
-        )
-        .join('')}</tbody></table></div>`
-    : '<p class="note">The feed was read without warnings.</p>';
-  const sensitivity = result.sensitivity.length
-    ? `<div class="table-wrap"><table><thead><tr><th scope="col">case</th><th scope="col" class="num">walk weight</th><th scope="col" class="num">band tolerance</th><th scope="col" class="num">mean optimum</th><th scope="col" class="num">close stops</th><th scope="col" class="num">wide gaps</th><th scope="col" class="num">passenger-min lost/day</th><th scope="col" class="num">top candidates kept</th><th scope="col" class="num">listed candidates still saving</th></tr></thead><tbody>${result.sensitivity
-        .map(
-          (s) =>
-            `<tr><td>${h(s.label)}</td><td class="num">${h(fmt(s.walkWeight, 2))}</td><td class="num">${h(fmt(s.bandTolerance * 100, 0))} %</td><td class="num">${h(d(s.meanOptimalSpacingM))}</td><td class="num">${h(fmt(s.closeStops))}</td><td class="num">${h(fmt(s.wideGaps))}</td><td class="num">${h(fmt(s.paxMinLostPerDay))}${assumedNote}</td><td class="num">${h(fmt(s.candidatesKept))}</td><td class="num">${h(fmt(s.programmeStillSaving))} of ${h(fmt(result.candidates.length))}</td></tr>`,
-        )
-        .join('')}</tbody></table></div>`
-    : '<p class="note">No sensitivity cases were run.</p>';
+  const topList = topCandidatesHtml(result, assumedNote);
+  const reviewGaps = reviewGapsHtml(result, d);
+  const params = parametersHtml(result);
+  const warnings = warningsHtml(result);
+  const sensitivity = sensitivityHtml(result, d, assumedNote);
   const feedName = result.feed.publisher || result.feed.source;
   const title = `Stop spacing audit: ${feedName}, ${result.date}`;
   const paxHeader = `passenger-min/day${assumed ? ' (assumed)' : ''}`;
