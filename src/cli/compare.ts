@@ -75,14 +75,14 @@ export function registerCompare(program: Command): void {
         let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
         let newContext: ContextStops = oldContext;
         try {
-          a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
+          a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           // context feeds (--context), read for each version on its own date as the audit reads them
           oldContext = await contextStops(a.feed, a.patterns, context);
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
           if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations }));
           a = { ...a, feed: comparedPart(a.feed, a.patterns) };
-          b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
+          b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           newContext = await contextStops(b.feed, b.patterns, context);
         } finally {
           progress.done();
