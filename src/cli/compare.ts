@@ -57,7 +57,7 @@ export function registerCompare(program: Command): void {
         const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
         const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
+        const [{ auditBrief, compareFeeds, comparedPart, comparedPatterns }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }] = await Promise.all([
           import('../compare/compare.js'),
           import('../audit/runAudit.js'),
           import('../audit/contextStations.js'),
@@ -81,7 +81,7 @@ export function registerCompare(program: Command): void {
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
           if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations }));
-          a = { ...a, feed: comparedPart(a.feed, a.patterns) };
+          a = { ...a, feed: comparedPart(a.feed, a.patterns), patterns: comparedPatterns(a.patterns) };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           newContext = await contextStops(b.feed, b.patterns, context);
         } finally {
