@@ -81,7 +81,8 @@ export function registerCompare(program: Command): void {
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
           if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations }));
-          a = { ...a, feed: comparedPart(a.feed, a.patterns), patterns: comparedPatterns(a.patterns) };
+          const oldPatterns = comparedPatterns(a.patterns);
+          a = { ...a, feed: comparedPart(a.feed, oldPatterns), patterns: oldPatterns };
           b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           newContext = await contextStops(b.feed, b.patterns, context);
         } finally {

@@ -366,11 +366,17 @@ function comparePatterns(
  * first departure, its trips and shapes dropped (the patterns name their trips). The trips leaving at one time share one row, which holds that
  * time alone (its other fields are those of the first such trip; the comparison reads only the time). The
  * compare command holds the older feed so while it reads the newer one, instead of two whole feeds at once.
- * The trip_ids are keyed by their own copies (see ownCopy), the ones comparedPatterns gives the patterns.
+ * The trip_ids are keyed as the patterns name them: given comparedPatterns' patterns, by the same own
+ * copies, held once.
  */
 export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
   const firstRow = new Map<number, TripStopTimes>();
   const stopTimes = new Map<string, TripStopTimes>();
+  // what every such row holds alike, held once
+  const seq = Int32Array.of(0);
+  const shapeDist = Float64Array.of(NaN);
+  const timepoint = Uint8Array.of(1);
+  const noService = Uint8Array.of(0);
   for (const p of patterns.patterns) {
     for (const id of p.tripIds) {
       const st = feed.stopTimes.get(id);
@@ -379,10 +385,10 @@ export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
       let row = firstRow.get(t);
       if (!row) {
         const one = Int32Array.of(t);
-        row = { stopIdx: Int32Array.of(st.stopIdx[0]), seq: Int32Array.of(0), arrS: one, depS: one, shapeDist: Float64Array.of(NaN), timepoint: Uint8Array.of(1), noService: Uint8Array.of(0) };
+        row = { stopIdx: Int32Array.of(st.stopIdx[0]), seq, arrS: one, depS: one, shapeDist, timepoint, noService };
         firstRow.set(t, row);
       }
-      stopTimes.set(ownCopy(id), row);
+      stopTimes.set(id, row);
     }
   }
   return { ...feed, stopTimes, shapes: new Map(), trips: new Map() };
