@@ -67,7 +67,7 @@ export function registerCompare(program: Command): void {
         if (o.landUse !== undefined && !o.audit) throw new StopspanError('bad-option', 'option --land-use needs the audits: leave out --no-audit', { value: o.landUse });
         const landUseColumns = o.landUseWeights !== undefined ? parseLandUseWeights(o.landUseWeights) : null;
         // the comparison loads when the command runs, not at every start-up of the CLI
-        const [{ auditBrief, compareFeeds, comparedPart }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }, { readLandUseAside }] = await Promise.all([
+        const [{ auditBrief, compareFeeds, comparedPart, comparedPatterns }, { runAudit }, { contextStops }, { comparisonHtml, comparisonText, comparisonTripsCsv }, { checkOutFolder, writeFolder }, { readLandUseAside }] = await Promise.all([
           import('../compare/compare.js'),
           import('../audit/runAudit.js'),
           import('../audit/contextStations.js'),
@@ -90,15 +90,16 @@ export function registerCompare(program: Command): void {
         let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
         let newContext: ContextStops = oldContext;
         try {
-          a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress });
+          a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           // context feeds (--context), read for each version on its own date as the audit reads them
           oldContext = await contextStops(a.feed, a.patterns, context);
           // the older feed is audited, then cut to what the comparison reads, before the newer one is read
           // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
           landUse = await landUseRead;
           if (params && a.patterns.patterns.length > 0) oldAudit = auditBrief(runAudit(a.feed, a.patterns, { params, ridership: o.ridership, stations: oldContext.near, contextStations: oldContext.stations, landUse }));
-          a = { ...a, feed: comparedPart(a.feed, a.patterns) };
-          b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress });
+          const oldPatterns = comparedPatterns(a.patterns);
+          a = { ...a, feed: comparedPart(a.feed, oldPatterns), patterns: oldPatterns };
+          b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
           newContext = await contextStops(b.feed, b.patterns, context);
         } finally {
           progress.done();

@@ -19,14 +19,41 @@ export interface LoadedFeed {
  * Reads every trip of a feed and builds its patterns on the date chooseAnalysisDate picks (--date, else the
  * run date's service day when `today` is given, else the default analysis date). A feed with nothing to
  * analyse still loads, with no patterns, so that check can report it; a --date on which nothing runs is an
- * error, as for the audit.
+ * error, as for the audit. With `dayOnly` (and no `today`), only the analysis date's trips are kept, as the
+ * audit keeps them: the patterns, the date and its reason are the same, and the rest of the feed's trips
+ * are neither held nor checked (a feed with no such date is read whole, as without it).
  */
-export async function loadFeed(source: string, options: { date?: string; today?: string; onProgress?: OnProgress } = {}): Promise<LoadedFeed> {
-  const { date: asked, today, onProgress } = options;
+export async function loadFeed(source: string, options: { date?: string; today?: string; onProgress?: OnProgress; dayOnly?: boolean } = {}): Promise<LoadedFeed> {
+  const { date: asked, today, onProgress, dayOnly = false } = options;
   if (asked !== undefined) isoToGtfsDate(asked, '--date');
   if (today !== undefined) isoToGtfsDate(today, '--today');
   // loaded here, not with the module: the commands that import this one register at every start-up
   const [{ readFeed }, { buildPatterns }, { tripRunsPerDay }] = await Promise.all([import('../gtfs/readFeed.js'), import('../network/buildPatterns.js'), import('../gtfs/frequencies.js')]);
+  if (dayOnly && today === undefined) {
+    // the reader picks the date by the same rule (the busiest Monday-Friday date, or the one asked for)
+    // and keeps that day's trips only: a whole city's other days are a hundred megabytes held for nothing
+    let day: Feed | undefined;
+    try {
+      day = await readFeed(source, { date: asked ?? 'auto', onProgress });
+    } catch (e) {
+      if (!(isStopspanError(e) && e.code === 'empty-feed')) throw e;
+    }
+    if (day?.date) {
+      // the kept trips run on the date, so it stays the busiest of its weekdays: the same date and reason
+      const runs = tripRunsPerDay(day.frequencies);
+      const runsPerService = new Map<string, number>();
+      for (const t of day.trips.values()) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
+      const analysis = chooseAnalysisDate(day, runsPerService, { date: asked });
+      if (analysis.date === day.date) {
+        try {
+          return { feed: day, patterns: buildPatterns(day, { date: day.date, onProgress }), date: day.date, analysis };
+        } catch (e) {
+          if (!(isStopspanError(e) && e.code === 'empty-feed')) throw e;
+        }
+      }
+    }
+    // nothing to analyse (no day qualifies, or no pattern on it): read it whole, as below, for the same answer
+  }
   const feed = await readFeed(source, { date: 'all', onProgress });
   // trip runs per service, frequencies expanded: the count the audit's default date uses too
   const runs = tripRunsPerDay(feed.frequencies);

@@ -401,10 +401,17 @@ function comparePatterns(
  * first departure, its trips and shapes dropped (the patterns name their trips). The trips leaving at one time share one row, which holds that
  * time alone (its other fields are those of the first such trip; the comparison reads only the time). The
  * compare command holds the older feed so while it reads the newer one, instead of two whole feeds at once.
+ * The trip_ids are keyed as the patterns name them: given comparedPatterns' patterns, by the same own
+ * copies, held once.
  */
 export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
   const firstRow = new Map<number, TripStopTimes>();
   const stopTimes = new Map<string, TripStopTimes>();
+  // what every such row holds alike, held once
+  const seq = Int32Array.of(0);
+  const shapeDist = Float64Array.of(NaN);
+  const timepoint = Uint8Array.of(1);
+  const noService = Uint8Array.of(0);
   for (const p of patterns.patterns) {
     for (const id of p.tripIds) {
       const st = feed.stopTimes.get(id);
@@ -413,13 +420,35 @@ export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
       let row = firstRow.get(t);
       if (!row) {
         const one = Int32Array.of(t);
-        row = { stopIdx: Int32Array.of(st.stopIdx[0]), seq: Int32Array.of(0), arrS: one, depS: one, shapeDist: Float64Array.of(NaN), timepoint: Uint8Array.of(1), noService: Uint8Array.of(0) };
+        row = { stopIdx: Int32Array.of(st.stopIdx[0]), seq, arrS: one, depS: one, shapeDist, timepoint, noService };
         firstRow.set(t, row);
       }
       stopTimes.set(id, row);
     }
   }
   return { ...feed, stopTimes, shapes: new Map(), trips: new Map() };
+}
+
+/**
+ * What compareFeeds reads of the patterns, and no more: each pattern's ids, stops, distances, passenger
+ * stops and trips; the map path, per-stop and per-gap times and offsets are left empty, and routesAtStop
+ * with them. The trip_ids are own copies: a trip_id read from trips.txt is a piece of a decoded chunk of
+ * the table, and while any piece is held its whole chunk is (on a city's network, most of trips.txt).
+ */
+export function comparedPatterns(set: PatternSet): PatternSet {
+  const patterns = set.patterns.map(
+    (p): Pattern => ({ ...p, tripIds: p.tripIds.map(ownCopy), path: [], offsetFromShapeM: [], timepoint: [], gapRunTimeS: [], gapTimeInterpolated: [], scheduledDwellS: [] }),
+  );
+  return { date: set.date, patterns, routesAtStop: new Map() };
+}
+
+/**
+ * A string equal to s that holds its own characters. V8 cuts a substring of 13 or more characters as a
+ * view into the string it came from: a copy is made by slicing a one-character-longer string that the
+ * engine first makes whole (its own characters; the view is then into that copy alone).
+ */
+export function ownCopy(s: string): string {
+  return s.length < 13 ? s : (' ' + s).slice(1);
 }
 
 /** Departures from the first stop of each trip of a pattern, seconds, sorted; a trip with frequencies.txt rows departs at each run's start. */

@@ -39,6 +39,12 @@ describe('the default analysis date', () => {
     expect(loaded.date).toBe(audit.date);
     expect(loaded.analysis.basis).toBe('busiest-weekday');
     expect(loaded.patterns.patterns[0].tripsPerDay).toBe(6);
+    // compare's day-only read: the same day and reason, the patterns, and Tuesday's trip alone held
+    const day = await loadFeed(feed, { dayOnly: true });
+    expect(day.analysis).toEqual(loaded.analysis);
+    expect(day.patterns.patterns).toEqual(loaded.patterns.patterns);
+    expect([...day.feed.trips.keys()]).toEqual(['T3']);
+    expect(loaded.feed.trips.size).toBe(3);
     // and through the built command: compare's dates and the audit's summary.json agree
     const cmp = await runCli(['compare', feed, feed, '--no-audit', '--json']);
     expect(cmp.code).toBe(0);
