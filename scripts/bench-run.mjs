@@ -72,7 +72,11 @@ async function openStopTimes(feedPath, { readerWay = false } = {}) {
         if (!readerWay || entry.compressionMethod !== 8) return zip.openReadStream(entry, (e, stream) => (e ? reject(e) : resolve(stream)));
         zip.readLocalFileHeader(entry, { minimal: true }, (e, h) => {
           if (e) return reject(e);
-          const body = fs.createReadStream(feedPath, { start: h.fileDataStart, end: h.fileDataStart + entry.compressedSize - 1, highWaterMark: 1 << 20 });
+          const body = fs.createReadStream(feedPath, {
+            start: h.fileDataStart,
+            end: h.fileDataStart + entry.compressedSize - 1,
+            highWaterMark: 1 << 20,
+          });
           resolve(body.pipe(createInflateRaw({ chunkSize: 1 << 20 })));
         });
       });

@@ -50,17 +50,18 @@ function parseArgs(argv) {
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     const v = argv[i + 1];
-    if (a === '--runs') (opts.runs = Number(v)), i++;
-    else if (a === '--feeds') (opts.feeds = v), i++;
-    else if (a === '--only') (opts.only = v.split(',')), i++;
+    if (a === '--runs') ((opts.runs = Number(v)), i++);
+    else if (a === '--feeds') ((opts.feeds = v), i++);
+    else if (a === '--only') ((opts.only = v.split(',')), i++);
     else if (a === '--no-build') opts.build = false;
     else if (a === '--no-stages') opts.stages = false;
-    else if (a === '--profile') (opts.profile = v), i++;
-    else if (a === '--top') (opts.top = Number(v)), i++;
-    else if (a === '--report') (opts.report = v), i++;
+    else if (a === '--profile') ((opts.profile = v), i++);
+    else if (a === '--top') ((opts.top = Number(v)), i++);
+    else if (a === '--report') ((opts.report = v), i++);
     else throw new Error(`invalid option ${a}: expected --runs, --feeds, --only, --no-build, --no-stages, --profile, --report or --top`);
   }
-  if (!Number.isInteger(opts.runs) || opts.runs < 1) throw new Error(`invalid option --runs: expected a whole number >= 1, got ${opts.runs}`);
+  if (!Number.isInteger(opts.runs) || opts.runs < 1)
+    throw new Error(`invalid option --runs: expected a whole number >= 1, got ${opts.runs}`);
   return opts;
 }
 
@@ -81,7 +82,8 @@ function build() {
   const tsc = path.join(repoDir, 'node_modules/typescript/bin/tsc');
   fs.rmSync(benchDist, { recursive: true, force: true });
   const r = spawnSync(process.execPath, [tsc, '-p', 'tsconfig.json', '--outDir', benchDist], { cwd: repoDir, encoding: 'utf8' });
-  if (r.status !== 0) note(`bench: tsc reported errors (the build may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
+  if (r.status !== 0)
+    note(`bench: tsc reported errors (the build may be partial):\n${(r.stdout + r.stderr).split('\n').slice(0, 10).join('\n')}`);
   // then the command's bundle, as npm run build makes it (scripts/bundle-cli.mjs)
   const b = spawnSync(process.execPath, [path.join(repoDir, 'scripts/bundle-cli.mjs'), benchDist], { cwd: repoDir, encoding: 'utf8' });
   if (b.status !== 0) note(`bench: bundling the command failed:\n${(b.stdout + b.stderr).split('\n').slice(0, 10).join('\n')}`);
@@ -158,7 +160,11 @@ function collectInputs(opts) {
   const demo = path.join(repoDir, 'fixtures/demo/demo-feed.zip');
   if (!fs.existsSync(demo)) note(`bench: no demo feed at ${demo} (npm run demo:generate); no scaling series`);
   else if (['demo-x1', 'demo-x4', 'demo-x16'].some((n) => want('scaled', n))) {
-    const r = spawnSync(process.execPath, [path.join(repoDir, 'scripts/make-scaled.mjs'), '--in', demo, '--out', path.join(benchOut, 'scaled'), '--scales', '1,4,16'], { cwd: repoDir, encoding: 'utf8' });
+    const r = spawnSync(
+      process.execPath,
+      [path.join(repoDir, 'scripts/make-scaled.mjs'), '--in', demo, '--out', path.join(benchOut, 'scaled'), '--scales', '1,4,16'],
+      { cwd: repoDir, encoding: 'utf8' },
+    );
     if (r.status !== 0) note(`bench: make-scaled failed: ${r.stderr.trim()}`);
     else {
       for (const l of r.stdout.trim().split('\n')) {
@@ -192,7 +198,9 @@ async function benchInput(input, runs, withStages) {
       raw.stages.push(await measure('stages', input.file, stDir));
       fs.rmSync(stDir, { recursive: true, force: true });
     }
-    note(`bench: ${input.name} run ${i + 1}/${runs}: inflate ${fmtS(raw.inflate[i].wallMs)} s, reader-like ${raw.inflateReader[i].error ? 'n/a' : fmtS(raw.inflateReader[i].wallMs) + ' s'}, csv ${raw.csv[i].error ? 'n/a' : fmtS(raw.csv[i].wallMs) + ' s'}, audit ${a.error ? 'n/a' : fmtS(a.wallMs) + ' s'}`);
+    note(
+      `bench: ${input.name} run ${i + 1}/${runs}: inflate ${fmtS(raw.inflate[i].wallMs)} s, reader-like ${raw.inflateReader[i].error ? 'n/a' : fmtS(raw.inflateReader[i].wallMs) + ' s'}, csv ${raw.csv[i].error ? 'n/a' : fmtS(raw.csv[i].wallMs) + ' s'}, audit ${a.error ? 'n/a' : fmtS(a.wallMs) + ' s'}`,
+    );
   }
   const inflate = summarise(raw.inflate);
   const inflateReader = summarise(raw.inflateReader);
@@ -221,30 +229,63 @@ const fmtX = (x) => (Number.isFinite(x) ? x.toFixed(2) + 'x' : 'n/a');
 const usPerRow = (m, rows) => (m && !m.error && rows ? (m.wallMs * 1000) / rows : NaN);
 
 function pad(cells, widths, right) {
-  return cells.map((c, i) => (right[i] ? String(c).padStart(widths[i]) : String(c).padEnd(widths[i]))).join('  ').trimEnd();
+  return cells
+    .map((c, i) => (right[i] ? String(c).padStart(widths[i]) : String(c).padEnd(widths[i])))
+    .join('  ')
+    .trimEnd();
 }
 
 function printTable(header, rows, right) {
   const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => String(r[i]).length)));
   log(pad(header, widths, right));
-  log(widths.map((w) => '-'.repeat(w)).join('  ').trimEnd());
+  log(
+    widths
+      .map((w) => '-'.repeat(w))
+      .join('  ')
+      .trimEnd(),
+  );
   for (const r of rows) log(pad(r, widths, right));
 }
 
 function report(results, opts) {
-  const machine = opts.machine ?? `${os.cpus().length} cores, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${os.platform()} ${os.arch()}`;
+  const machine =
+    opts.machine ??
+    `${os.cpus().length} cores, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${os.platform()} ${os.arch()}`;
   const date = opts.date ?? new Date().toISOString().slice(0, 10);
   log('');
   log(`stopspan benchmark, ${date}, ${machine}; median of ${opts.runs} run(s) (the scaling series at least 5), each in its own process`);
-  log(`load average at the start ${opts.loadAtStart.map((x) => x.toFixed(2)).join(' ')}, at the end ${os.loadavg().map((x) => x.toFixed(2)).join(' ')} (other work on the machine inflates wall times)`);
-  log("floor (a): inflate stop_times.txt and count its lines; floor (b): the project CSV reader over stop_times.txt; reader-like: floor (a) inflating the audit reader's way (reference only)");
+  log(
+    `load average at the start ${opts.loadAtStart.map((x) => x.toFixed(2)).join(' ')}, at the end ${os
+      .loadavg()
+      .map((x) => x.toFixed(2))
+      .join(' ')} (other work on the machine inflates wall times)`,
+  );
+  log(
+    "floor (a): inflate stop_times.txt and count its lines; floor (b): the project CSV reader over stop_times.txt; reader-like: floor (a) inflating the audit reader's way (reference only)",
+  );
   log('');
   const rows = [];
   for (const r of results) {
-    for (const [label, m] of [['floor (a) inflate', r.inflate], ['reader-like inflate', r.inflateReader], ['floor (b) csv', r.csv], ['audit', r.audit]]) {
+    for (const [label, m] of [
+      ['floor (a) inflate', r.inflate],
+      ['reader-like inflate', r.inflateReader],
+      ['floor (b) csv', r.csv],
+      ['audit', r.audit],
+    ]) {
       if (!m) continue; // figures saved before the reader-like measure existed
       if (m.error) rows.push([r.name, fmtInt(r.rows), label, 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
-      else rows.push([r.name, fmtInt(r.rows), label, fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), label === 'floor (a) inflate' ? '' : fmtX(m.wallMs / r.inflate.wallMs), '']);
+      else
+        rows.push([
+          r.name,
+          fmtInt(r.rows),
+          label,
+          fmtS(m.wallMs),
+          fmtS(m.cpuMs),
+          fmtMB(m.maxRssMB),
+          usPerRow(m, r.rows).toFixed(2),
+          label === 'floor (a) inflate' ? '' : fmtX(m.wallMs / r.inflate.wallMs),
+          '',
+        ]);
     }
   }
   for (const r of results) {
@@ -252,11 +293,33 @@ function report(results, opts) {
     const m = r.stages;
     if (m.error) rows.push([r.name, fmtInt(r.rows), 'stages', 'n/a', 'n/a', 'n/a', 'n/a', '', m.error.slice(0, 70)]);
     else {
-      const st = Object.entries(m.stageMs).map(([k, ms]) => `${k} ${fmtS(ms)} (CPU ${fmtS(m.stageCpuMs[k])})`).join(', ');
-      rows.push([r.name, fmtInt(r.rows), 'stages', fmtS(m.wallMs), fmtS(m.cpuMs), fmtMB(m.maxRssMB), usPerRow(m, r.rows).toFixed(2), fmtX(m.wallMs / r.inflate.wallMs), st]);
+      const st = Object.entries(m.stageMs)
+        .map(([k, ms]) => `${k} ${fmtS(ms)} (CPU ${fmtS(m.stageCpuMs[k])})`)
+        .join(', ');
+      rows.push([
+        r.name,
+        fmtInt(r.rows),
+        'stages',
+        fmtS(m.wallMs),
+        fmtS(m.cpuMs),
+        fmtMB(m.maxRssMB),
+        usPerRow(m, r.rows).toFixed(2),
+        fmtX(m.wallMs / r.inflate.wallMs),
+        st,
+      ]);
     }
   }
-  printTable(['input', 'stop_times rows', 'measure', 'wall s', 'CPU s', 'peak MB', 'µs/row', 'x floor a', 'note'], rows, [false, true, false, true, true, true, true, true, false]);
+  printTable(['input', 'stop_times rows', 'measure', 'wall s', 'CPU s', 'peak MB', 'µs/row', 'x floor a', 'note'], rows, [
+    false,
+    true,
+    false,
+    true,
+    true,
+    true,
+    true,
+    true,
+    false,
+  ]);
 
   // Targets.
   log('');
@@ -282,10 +345,18 @@ function report(results, opts) {
     const okMem = big.audit.error ? null : big.audit.maxRssMB < TARGETS.maxPeakMB;
     verdicts.push({ target: 'audit-within-3x-inflate', ok: okRatio, value: ratio });
     verdicts.push({ target: 'audit-peak-under-400MB', ok: okMem, value: big.audit.maxRssMB });
-    log(`${pf(okRatio)}  ${big.name}${star(big)}: audit wall ${fmtS(big.audit.wallMs)} s = ${fmtX(ratio)} floor (a) ${fmtS(big.inflate.wallMs)} s (target <= ${TARGETS.maxRatioToInflate}x)`);
-    if (!big.audit.error) log(`      by CPU time, less sensitive to other load: audit ${fmtS(big.audit.cpuMs)} s = ${fmtX(big.audit.cpuMs / big.inflate.cpuMs)} floor (a) ${fmtS(big.inflate.cpuMs)} s`);
+    log(
+      `${pf(okRatio)}  ${big.name}${star(big)}: audit wall ${fmtS(big.audit.wallMs)} s = ${fmtX(ratio)} floor (a) ${fmtS(big.inflate.wallMs)} s (target <= ${TARGETS.maxRatioToInflate}x)`,
+    );
+    if (!big.audit.error)
+      log(
+        `      by CPU time, less sensitive to other load: audit ${fmtS(big.audit.cpuMs)} s = ${fmtX(big.audit.cpuMs / big.inflate.cpuMs)} floor (a) ${fmtS(big.inflate.cpuMs)} s`,
+      );
     // floor (a) uses yauzl's stream and zlib's 16 KiB buffers; the audit's reader inflates faster than that
-    if (!big.audit.error && big.inflateReader && !big.inflateReader.error) log(`      for reference, against inflating the reader's way (1 MiB reads and buffers, ${fmtS(big.inflateReader.wallMs)} s): ${fmtX(ratio * (big.inflate.wallMs / big.inflateReader.wallMs))}`);
+    if (!big.audit.error && big.inflateReader && !big.inflateReader.error)
+      log(
+        `      for reference, against inflating the reader's way (1 MiB reads and buffers, ${fmtS(big.inflateReader.wallMs)} s): ${fmtX(ratio * (big.inflate.wallMs / big.inflateReader.wallMs))}`,
+      );
     log(`${pf(okMem)}  ${big.name}${star(big)}: audit peak memory ${fmtMB(big.audit.maxRssMB)} MB (target < ${TARGETS.maxPeakMB} MB)`);
   } else log(`n/a   ${TARGETS.bigFeed}: not measured`);
 
@@ -306,11 +377,21 @@ function report(results, opts) {
       m416 = ((s16.audit.cpuMs - s4.audit.cpuMs) * 1000) / (s16.rows - s4.rows);
       marginal = m416 / m14;
     }
-    const okScale = Number.isFinite(ratio) && Number.isFinite(marginal) ? ratio <= TARGETS.maxPerRowRatio16x && marginal > 0 && marginal <= TARGETS.maxPerRowRatio16x : null;
+    const okScale =
+      Number.isFinite(ratio) && Number.isFinite(marginal)
+        ? ratio <= TARGETS.maxPerRowRatio16x && marginal > 0 && marginal <= TARGETS.maxPerRowRatio16x
+        : null;
     verdicts.push({ target: 'time-per-row-16x-within-1.2x', ok: okScale, value: ratio, marginalRatio: marginal });
-    log(`${pf(okScale)}  scaling${star(s1) || star(s16)}: audit wall time per stop_times row ${per1.toFixed(2)} µs at 1x, ${s4 ? usPerRow(s4.audit, s4.rows).toFixed(2) + ' µs at 4x, ' : ''}${per16.toFixed(2)} µs at 16x: 16x/1x = ${fmtX(ratio)} (target <= ${TARGETS.maxPerRowRatio16x}x)`);
-    log(`      and marginal CPU time per added row ${m14.toFixed(2)} µs (1x->4x), ${m416.toFixed(2)} µs (4x->16x): ${fmtX(marginal)} (must also be <= ${TARGETS.maxPerRowRatio16x}x: no growth faster than the rows)`);
-    if (s4 && !s4.inflate.error && !s16.inflate.error) log(`      floor (a) marginal CPU per added row: ${(((s16.inflate.cpuMs - s4.inflate.cpuMs) * 1000) / (s16.rows - s4.rows)).toFixed(2)} µs`);
+    log(
+      `${pf(okScale)}  scaling${star(s1) || star(s16)}: audit wall time per stop_times row ${per1.toFixed(2)} µs at 1x, ${s4 ? usPerRow(s4.audit, s4.rows).toFixed(2) + ' µs at 4x, ' : ''}${per16.toFixed(2)} µs at 16x: 16x/1x = ${fmtX(ratio)} (target <= ${TARGETS.maxPerRowRatio16x}x)`,
+    );
+    log(
+      `      and marginal CPU time per added row ${m14.toFixed(2)} µs (1x->4x), ${m416.toFixed(2)} µs (4x->16x): ${fmtX(marginal)} (must also be <= ${TARGETS.maxPerRowRatio16x}x: no growth faster than the rows)`,
+    );
+    if (s4 && !s4.inflate.error && !s16.inflate.error)
+      log(
+        `      floor (a) marginal CPU per added row: ${(((s16.inflate.cpuMs - s4.inflate.cpuMs) * 1000) / (s16.rows - s4.rows)).toFixed(2)} µs`,
+      );
     // Judged on what the audit holds once done (heap and buffers in use after a full collection, from the
     // stages run), not on peak RSS: the peak also holds the garbage collector's slack, and V8 widens its
     // young generation (up to 16 MiB semi-spaces) as more is allocated, which alone adds tens of MB
@@ -321,9 +402,13 @@ function report(results, opts) {
     const okMem = Number.isFinite(perRowB) ? perRowB <= TARGETS.maxBytesPerAddedRow : null;
     verdicts.push({ target: 'memory-not-growing-with-rows', ok: okMem, value: perRowB });
     const fmtHeld = (r) => (Number.isFinite(held(r)) ? held(r).toFixed(1) : 'n/a');
-    log(`${pf(okMem)}  scaling${star(s1) || star(s16)}: memory held after the audit ${fmtHeld(s1)} MB at 1x, ${s4 ? fmtHeld(s4) + ' MB at 4x, ' : ''}${fmtHeld(s16)} MB at 16x: ${Number.isFinite(perRowB) ? perRowB.toFixed(1) : 'n/a (needs the stages run)'} bytes per added stop_times row (target <= ${TARGETS.maxBytesPerAddedRow}: rows not retained)`);
+    log(
+      `${pf(okMem)}  scaling${star(s1) || star(s16)}: memory held after the audit ${fmtHeld(s1)} MB at 1x, ${s4 ? fmtHeld(s4) + ' MB at 4x, ' : ''}${fmtHeld(s16)} MB at 16x: ${Number.isFinite(perRowB) ? perRowB.toFixed(1) : 'n/a (needs the stages run)'} bytes per added stop_times row (target <= ${TARGETS.maxBytesPerAddedRow}: rows not retained)`,
+    );
     const grewMB = s16.audit.maxRssMB - s1.audit.maxRssMB;
-    log(`      peak memory (max RSS, with the collector's slack) ${fmtMB(s1.audit.maxRssMB)} MB at 1x, ${s4 ? fmtMB(s4.audit.maxRssMB) + ' MB at 4x, ' : ''}${fmtMB(s16.audit.maxRssMB)} MB at 16x: ${((grewMB * 2 ** 20) / (s16.rows - s1.rows)).toFixed(1)} bytes per added row`);
+    log(
+      `      peak memory (max RSS, with the collector's slack) ${fmtMB(s1.audit.maxRssMB)} MB at 1x, ${s4 ? fmtMB(s4.audit.maxRssMB) + ' MB at 4x, ' : ''}${fmtMB(s16.audit.maxRssMB)} MB at 16x: ${((grewMB * 2 ** 20) / (s16.rows - s1.rows)).toFixed(1)} bytes per added row`,
+    );
   } else log('n/a   scaling series: not measured');
 
   // The README table.
@@ -338,7 +423,9 @@ function report(results, opts) {
         ? `| ${r.name} | ${fmtInt(r.rows)} | n/a | n/a | n/a | ${heldCell} | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | n/a |`
         : `| ${r.name}${star(r)} | ${fmtInt(r.rows)} | ${fmtS(r.audit.wallMs)} s | ${fmtS(r.audit.cpuMs)} s | ${fmtMB(r.audit.maxRssMB)} MB | ${heldCell} | ${fmtS(r.inflate.wallMs)} s | ${r.csv.error ? 'n/a' : fmtS(r.csv.wallMs) + ' s'} | ${fmtX(r.audit.wallMs / r.inflate.wallMs)} |`;
     }),
-    ...(fallback ? ['', '\\* the library stages (readFeed, buildPatterns, runAudit, writeReport) in one process, as `stopspan audit` did not run.'] : []),
+    ...(fallback
+      ? ['', '\\* the library stages (readFeed, buildPatterns, runAudit, writeReport) in one process, as `stopspan audit` did not run.']
+      : []),
   ].join('\n');
   log('');
   log('README table');
@@ -346,7 +433,16 @@ function report(results, opts) {
   if (opts.noSave) return;
   fs.mkdirSync(benchOut, { recursive: true });
   fs.writeFileSync(path.join(benchOut, 'bench-results.md'), md + '\n');
-  const saved = { date, machine, runs: opts.runs, loadAtStart: opts.loadAtStart, loadAtEnd: os.loadavg(), targets: TARGETS, verdicts, results };
+  const saved = {
+    date,
+    machine,
+    runs: opts.runs,
+    loadAtStart: opts.loadAtStart,
+    loadAtEnd: os.loadavg(),
+    targets: TARGETS,
+    verdicts,
+    results,
+  };
   fs.writeFileSync(path.join(benchOut, 'bench-results.json'), JSON.stringify(saved, null, 2) + '\n');
 }
 
@@ -384,7 +480,10 @@ async function profileAudit(opts) {
   fs.mkdirSync(profDir, { recursive: true });
   const before = new Set(fs.readdirSync(profDir));
   const outDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stopspan-prof-'));
-  const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${profDir}`, mainJs(), 'audit', feed, '--out', outDir, '--force'], { cwd: repoDir, encoding: 'utf8' });
+  const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${profDir}`, mainJs(), 'audit', feed, '--out', outDir, '--force'], {
+    cwd: repoDir,
+    encoding: 'utf8',
+  });
   fs.rmSync(outDir, { recursive: true, force: true });
   if (r.status !== 0) note(`bench: audit exited ${r.status}: ${r.stderr.trim().split('\n').slice(-3).join(' | ')}`);
   const made = fs.readdirSync(profDir).filter((f) => f.endsWith('.cpuprofile') && !before.has(f));
@@ -410,7 +509,14 @@ async function main() {
   const opts = parseArgs(process.argv.slice(2));
   if (opts.report) {
     const saved = JSON.parse(fs.readFileSync(opts.report, 'utf8'));
-    return report(saved.results, { ...opts, runs: saved.runs, loadAtStart: saved.loadAtStart ?? [NaN, NaN, NaN], date: saved.date, machine: saved.machine, noSave: true });
+    return report(saved.results, {
+      ...opts,
+      runs: saved.runs,
+      loadAtStart: saved.loadAtStart ?? [NaN, NaN, NaN],
+      date: saved.date,
+      machine: saved.machine,
+      noSave: true,
+    });
   }
   if (opts.build) build();
   else distDir = path.join(repoDir, 'dist');
@@ -421,7 +527,8 @@ async function main() {
   if (!fs.existsSync(mainJs())) note(`bench: ${mainJs()} is missing; the audit column will be n/a`);
   const results = [];
   // the scaling series is cheap and its steps are small beside start-up, so it gets at least 5 runs
-  for (const input of inputs) results.push(await benchInput(input, input.kind === 'scaled' ? Math.max(5, opts.runs) : opts.runs, opts.stages));
+  for (const input of inputs)
+    results.push(await benchInput(input, input.kind === 'scaled' ? Math.max(5, opts.runs) : opts.runs, opts.stages));
   report(results, opts);
 }
 

@@ -49,7 +49,16 @@ export function serviceDayOriginS(date, timeZone) {
   const guess = Date.UTC(y, mo - 1, d, 12) / 1000;
   const off = (t) => {
     const parts = {};
-    const f = new Intl.DateTimeFormat('en-US', { timeZone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit' });
+    const f = new Intl.DateTimeFormat('en-US', {
+      timeZone,
+      hourCycle: 'h23',
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      hour: '2-digit',
+      minute: '2-digit',
+      second: '2-digit',
+    });
     for (const p of f.formatToParts(new Date(t * 1000))) if (p.type !== 'literal') parts[p.type] = Number(p.value);
     return Date.UTC(parts.year, parts.month - 1, parts.day, parts.hour, parts.minute, parts.second) / 1000 - t;
   };
@@ -145,15 +154,24 @@ export function simulateArchive(network, options, write) {
       for (let i = 0; i < n; i++) {
         const sched = trip.stops[i];
         if (dep[i] <= tS) {
-          if (dep[i] >= tS - keepPastS) stus.push({ stopSequence: sched.seq, stopId: sched.stopId, arrival: { time: arr[i] }, departure: { time: dep[i] } });
+          if (dep[i] >= tS - keepPastS)
+            stus.push({ stopSequence: sched.seq, stopId: sched.stopId, arrival: { time: arr[i] }, departure: { time: dep[i] } });
         } else if (arr[i] <= tS) {
-          stus.push({ stopSequence: sched.seq, stopId: sched.stopId, arrival: { time: arr[i] }, departure: { delay: Math.round(dep[i] - (originS + sched.schedDepS)) } });
+          stus.push({
+            stopSequence: sched.seq,
+            stopId: sched.stopId,
+            arrival: { time: arr[i] },
+            departure: { delay: Math.round(dep[i] - (originS + sched.schedDepS)) },
+          });
         } else if (future < futureStops) {
           future++;
           stus.push({ stopSequence: sched.seq, stopId: sched.stopId, arrival: { delay: delayS }, departure: { delay: delayS } });
         }
       }
-      tuEntities.push({ id: `tu-${run.vehicleId}`, tripUpdate: { trip: td, vehicle: { id: run.vehicleId }, stopTimeUpdate: stus, timestamp: tS } });
+      tuEntities.push({
+        id: `tu-${run.vehicleId}`,
+        tripUpdate: { trip: td, vehicle: { id: run.vehicleId }, stopTimeUpdate: stus, timestamp: tS },
+      });
       // VehiclePosition
       let status;
       let pos;
@@ -171,7 +189,8 @@ export function simulateArchive(network, options, write) {
         if (tS < dep[pos] && stops[pos]) status = rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
         else {
           pos++;
-          status = arr[pos] - tS <= 10 ? rt.VehiclePosition.VehicleStopStatus.INCOMING_AT : rt.VehiclePosition.VehicleStopStatus.IN_TRANSIT_TO;
+          status =
+            arr[pos] - tS <= 10 ? rt.VehiclePosition.VehicleStopStatus.INCOMING_AT : rt.VehiclePosition.VehicleStopStatus.IN_TRANSIT_TO;
         }
       }
       if (status === rt.VehiclePosition.VehicleStopStatus.STOPPED_AT || pos === 0) {
@@ -200,7 +219,10 @@ export function simulateArchive(network, options, write) {
     }
     const header = { gtfsRealtimeVersion: '2.0', incrementality: rt.FeedHeader.Incrementality.FULL_DATASET, timestamp: tS };
     const stamp = String(tS);
-    for (const [kind, entity] of [['trip-updates', tuEntities], ['vehicle-positions', vpEntities]]) {
+    for (const [kind, entity] of [
+      ['trip-updates', tuEntities],
+      ['vehicle-positions', vpEntities],
+    ]) {
       const msg = rt.FeedMessage.fromObject({ header, entity });
       let bytes = Buffer.from(rt.FeedMessage.encode(msg).finish());
       const gz = gzipEvery > 0 && k % gzipEvery === 1;
@@ -208,7 +230,10 @@ export function simulateArchive(network, options, write) {
       files.push({ name: `${kind}/${stamp}.pb${gz ? '.gz' : ''}`, bytes });
     }
     if (differential && k === 10) {
-      const msg = rt.FeedMessage.fromObject({ header: { ...header, incrementality: rt.FeedHeader.Incrementality.DIFFERENTIAL }, entity: tuEntities.slice(0, 1) });
+      const msg = rt.FeedMessage.fromObject({
+        header: { ...header, incrementality: rt.FeedHeader.Incrementality.DIFFERENTIAL },
+        entity: tuEntities.slice(0, 1),
+      });
       files.push({ name: `trip-updates/${stamp}-diff.pb`, bytes: Buffer.from(rt.FeedMessage.encode(msg).finish()) });
     }
     if (files.length > 200 && !shuffle) {
@@ -228,7 +253,16 @@ export function simulateArchive(network, options, write) {
   for (const [id, [s, v]] of served) stopShare[id] = { served: s, visits: v, poissonP: 1 - Math.exp(-lambda(id)) };
   return {
     originS,
-    runs: keepEvents ? runs.map((r) => ({ tripId: r.trip.tripId, startTime: r.trip.startTime, routeId: r.trip.routeId, arr: Array.from(r.arr), dep: Array.from(r.dep), stops: Array.from(r.stops) })) : [],
+    runs: keepEvents
+      ? runs.map((r) => ({
+          tripId: r.trip.tripId,
+          startTime: r.trip.startTime,
+          routeId: r.trip.routeId,
+          arr: Array.from(r.arr),
+          dep: Array.from(r.dep),
+          stops: Array.from(r.stops),
+        }))
+      : [],
     stopShare,
   };
 }
@@ -247,7 +281,12 @@ function readZipTables(file) {
           const chunks = [];
           stream.on('data', (c) => chunks.push(c));
           stream.on('end', () => {
-            tables[e.fileName] = parse(Buffer.concat(chunks).toString('utf8'), { columns: true, bom: true, skip_empty_lines: true, trim: true });
+            tables[e.fileName] = parse(Buffer.concat(chunks).toString('utf8'), {
+              columns: true,
+              bom: true,
+              skip_empty_lines: true,
+              trim: true,
+            });
             zip.readEntry();
           });
         });
@@ -326,8 +365,10 @@ export async function buildDemoNetwork(feedZip, date) {
   const wd = (new Date(Date.UTC(y, Number(date.slice(4, 6)) - 1, Number(date.slice(6, 8)))).getUTCDay() + 6) % 7;
   const dayCols = ['monday', 'tuesday', 'wednesday', 'thursday', 'friday', 'saturday', 'sunday'];
   const running = new Set();
-  for (const c of t['calendar.txt'] ?? []) if (c[dayCols[wd]] === '1' && date >= c.start_date && date <= c.end_date) running.add(c.service_id);
-  for (const c of t['calendar_dates.txt'] ?? []) if (c.date === date) (c.exception_type === '1' ? running.add(c.service_id) : running.delete(c.service_id));
+  for (const c of t['calendar.txt'] ?? [])
+    if (c[dayCols[wd]] === '1' && date >= c.start_date && date <= c.end_date) running.add(c.service_id);
+  for (const c of t['calendar_dates.txt'] ?? [])
+    if (c.date === date) c.exception_type === '1' ? running.add(c.service_id) : running.delete(c.service_id);
   const shapes = new Map();
   for (const r of t['shapes.txt'] ?? []) {
     if (!shapes.has(r.shape_id)) shapes.set(r.shape_id, []);
@@ -351,7 +392,13 @@ export async function buildDemoNetwork(feedZip, date) {
     if (rows.length < 2) continue;
     const coords = rows.map((r) => stops.get(r.stop_id));
     const shp = shapes.get(tr.shape_id);
-    const distM = shp && shp.length > 1 ? alongShape(coords, shp.map((p) => [p[1], p[2]])) : coords.map((c, i) => 0);
+    const distM =
+      shp && shp.length > 1
+        ? alongShape(
+            coords,
+            shp.map((p) => [p[1], p[2]]),
+          )
+        : coords.map((c, i) => 0);
     if (!(shp && shp.length > 1)) for (let i = 1; i < coords.length; i++) distM[i] = distM[i - 1] + greatCircleM(coords[i - 1], coords[i]);
     // blank times: interpolate by distance between timed stops
     const arr = rows.map((r) => (r.arrival_time ? hmsToS(r.arrival_time) : -1));
@@ -383,7 +430,12 @@ export async function buildDemoNetwork(feedZip, date) {
         const hw = Number(f.headway_secs);
         for (let s0 = a; s0 < b; s0 += hw) {
           const shift = s0 - base[0].schedDepS;
-          trips.push({ tripId: tr.trip_id, routeId: tr.route_id, startTime: hms(s0), stops: base.map((s) => ({ ...s, schedArrS: s.schedArrS + shift, schedDepS: s.schedDepS + shift })) });
+          trips.push({
+            tripId: tr.trip_id,
+            routeId: tr.route_id,
+            startTime: hms(s0),
+            stops: base.map((s) => ({ ...s, schedArrS: s.schedArrS + shift, schedDepS: s.schedDepS + shift })),
+          });
         }
       }
     } else {
@@ -429,7 +481,19 @@ async function main() {
   }
   writeFileSync(
     join(out, 'realtime-truth.json'),
-    JSON.stringify({ date, timeZone: network.timeZone, windowLocal: ['07:00:00', '10:00:00'], pollS: 30, dwellJitterS: 3, routes, stopShare: truth.stopShare }, null, 1) + '\n',
+    JSON.stringify(
+      {
+        date,
+        timeZone: network.timeZone,
+        windowLocal: ['07:00:00', '10:00:00'],
+        pollS: 30,
+        dwellJitterS: 3,
+        routes,
+        stopShare: truth.stopShare,
+      },
+      null,
+      1,
+    ) + '\n',
   );
 }
 

@@ -87,7 +87,7 @@ function densify(points, stepM) {
 function circle(cx, cy, r, startDeg, n, clockwise) {
   const pts = [];
   for (let k = 0; k <= n; k++) {
-    const a = ((startDeg + (clockwise ? -1 : 1) * (360 * k) / n) * Math.PI) / 180;
+    const a = ((startDeg + ((clockwise ? -1 : 1) * (360 * k)) / n) * Math.PI) / 180;
     pts.push([cx + r * Math.cos(a), cy + r * Math.sin(a)]);
   }
   return pts;
@@ -97,14 +97,63 @@ function circle(cx, cy, r, startDeg, n, clockwise) {
 // The city: invented street names and the ten routes
 
 const CROSS_STREETS = [
-  'Linden Ave', 'Brackwater Ln', 'Fenwick St', 'Oriel St', 'Pellham Rd', 'Tallow Row', 'Quill St', 'Sorrel Way',
-  'Ashgrove Rd', 'Candlemere St', 'Dunmarsh Ave', 'Elverly Rd', 'Foxhollow Ln', 'Gannet St', 'Harrowgate Ave',
-  'Ivybridge Rd', 'Juniper Walk', 'Kestrel St', 'Larkspur Ave', 'Millrace Rd', 'Nettlefold St', 'Orchard Vale',
-  'Pennywort Ln', 'Quarry Hill Rd', 'Rookery St', 'Saltmarsh Rd', 'Thistledown Ave', 'Upperton St', 'Vicarage Ln',
-  'Wheelwright St', 'Yarrow Rd', 'Alderholt Ave', 'Bellfounder St', 'Copperbeech Rd', 'Dovecote Ln', 'Eastwold Rd',
-  'Fallowfield St', 'Glebe Rd', 'Hazelmere Ave', 'Inkpen St', 'Kingfisher Rd', 'Lanternhill St', 'Maltings Ln',
-  'Northcross Rd', 'Oakapple St', 'Pilgrim Way', 'Ropewalk St', 'Stonechat Ave', 'Tannery Ln', 'Underhill Rd',
-  'Weavers Row', 'Withy Bed Ln', 'Beacon Rise', 'Chandlers Ct', 'Drovers Rd', 'Ferrymans Ln', 'Gorse Hill Rd',
+  'Linden Ave',
+  'Brackwater Ln',
+  'Fenwick St',
+  'Oriel St',
+  'Pellham Rd',
+  'Tallow Row',
+  'Quill St',
+  'Sorrel Way',
+  'Ashgrove Rd',
+  'Candlemere St',
+  'Dunmarsh Ave',
+  'Elverly Rd',
+  'Foxhollow Ln',
+  'Gannet St',
+  'Harrowgate Ave',
+  'Ivybridge Rd',
+  'Juniper Walk',
+  'Kestrel St',
+  'Larkspur Ave',
+  'Millrace Rd',
+  'Nettlefold St',
+  'Orchard Vale',
+  'Pennywort Ln',
+  'Quarry Hill Rd',
+  'Rookery St',
+  'Saltmarsh Rd',
+  'Thistledown Ave',
+  'Upperton St',
+  'Vicarage Ln',
+  'Wheelwright St',
+  'Yarrow Rd',
+  'Alderholt Ave',
+  'Bellfounder St',
+  'Copperbeech Rd',
+  'Dovecote Ln',
+  'Eastwold Rd',
+  'Fallowfield St',
+  'Glebe Rd',
+  'Hazelmere Ave',
+  'Inkpen St',
+  'Kingfisher Rd',
+  'Lanternhill St',
+  'Maltings Ln',
+  'Northcross Rd',
+  'Oakapple St',
+  'Pilgrim Way',
+  'Ropewalk St',
+  'Stonechat Ave',
+  'Tannery Ln',
+  'Underhill Rd',
+  'Weavers Row',
+  'Withy Bed Ln',
+  'Beacon Rise',
+  'Chandlers Ct',
+  'Drovers Rd',
+  'Ferrymans Ln',
+  'Gorse Hill Rd',
 ];
 
 // Shared stops: the same stop_id is served by several routes (transfers).
@@ -123,62 +172,228 @@ const STATIONS = [
 // shapeDist: 'm' metres, 'km' kilometres, null: shapes without shape_dist_traveled; noShape: no shape at all
 const ROUTES = [
   {
-    id: 'R1', ends: ['Westgate Terminus', 'Eastgate Terminus'], short: '1', long: 'Market Street Crosstown', code: 'MKT', street: 'Market St', color: 'C0392B',
-    path: [[-4200, 0], [4200, 0]], zones: [[0, 3300, 320, 420], [3300, 5100, 70, 130, 'old'], [5100, 8400, 320, 420]],
-    shared: [{ stop: 'CSQ', at: 4200 }], shapeDist: 'm', cruiseMps: 8.5, headways: 'trunk', shortTurnAtM: 6000,
+    id: 'R1',
+    ends: ['Westgate Terminus', 'Eastgate Terminus'],
+    short: '1',
+    long: 'Market Street Crosstown',
+    code: 'MKT',
+    street: 'Market St',
+    color: 'C0392B',
+    path: [
+      [-4200, 0],
+      [4200, 0],
+    ],
+    zones: [
+      [0, 3300, 320, 420],
+      [3300, 5100, 70, 130, 'old'],
+      [5100, 8400, 320, 420],
+    ],
+    shared: [{ stop: 'CSQ', at: 4200 }],
+    shapeDist: 'm',
+    cruiseMps: 8.5,
+    headways: 'trunk',
+    shortTurnAtM: 6000,
     seqStep: 1,
   },
   {
-    id: 'R2', ends: ['Northfield Terminus', 'Southmead Terminus'], short: '2', long: 'Cathedral Avenue', code: 'CAT', street: 'Cathedral Ave', color: '2471A3',
-    path: [[0, 3400], [0, -3600]], zones: [[0, 2500, 300, 380], [2500, 4300, 70, 130, 'old'], [4300, 7000, 300, 400]],
-    shared: [{ stop: 'CSQ', at: 3400 }, { stop: 'HRBCATH', at: 5400 }], shapeDist: null, cruiseMps: 8,
-    headways: 'trunk', seqStep: 5,
+    id: 'R2',
+    ends: ['Northfield Terminus', 'Southmead Terminus'],
+    short: '2',
+    long: 'Cathedral Avenue',
+    code: 'CAT',
+    street: 'Cathedral Ave',
+    color: '2471A3',
+    path: [
+      [0, 3400],
+      [0, -3600],
+    ],
+    zones: [
+      [0, 2500, 300, 380],
+      [2500, 4300, 70, 130, 'old'],
+      [4300, 7000, 300, 400],
+    ],
+    shared: [
+      { stop: 'CSQ', at: 3400 },
+      { stop: 'HRBCATH', at: 5400 },
+    ],
+    shapeDist: null,
+    cruiseMps: 8,
+    headways: 'trunk',
+    seqStep: 5,
   },
   {
-    id: 'R10', ends: ['Harbour West Terminus', 'Saltings Terminus'], short: '10', long: 'Harbour Road', code: 'HRB', street: 'Harbour Rd', color: '148F77',
-    path: [[-10500, -2400], [-7000, -2100], [-3000, -2000], [4500, -2000], [5200, -1600]],
-    zones: [[0, 16000, 260, 460]], shared: [{ stop: 'HRBCATH', at: 10514 }], shapeDist: 'km', cruiseMps: 10,
-    headways: 'trunk', timepointEvery: 5, holdAtTimepointsS: 60, seqStep: 1,
-  },
-  {
-    id: 'R20', ends: [null, 'Northbank Terminus'], short: '20', long: 'Estuary Bridge to Northbank', code: 'BRG', street: 'Bridge Approach', color: 'D68910',
-    path: [[6, 6], [2200, 3700], [2300, 6300], [2300, 8200]],
-    zones: [[0, 4300, 280, 340], [4300, 6900, 0, 0], [6900, 8800, 320, 380]],
-    shared: [{ stop: 'CSQ', at: 0 }], shapeDist: 'm', cruiseMps: 10, headways: 'regular', markTimepoints: true,
+    id: 'R10',
+    ends: ['Harbour West Terminus', 'Saltings Terminus'],
+    short: '10',
+    long: 'Harbour Road',
+    code: 'HRB',
+    street: 'Harbour Rd',
+    color: '148F77',
+    path: [
+      [-10500, -2400],
+      [-7000, -2100],
+      [-3000, -2000],
+      [4500, -2000],
+      [5200, -1600],
+    ],
+    zones: [[0, 16000, 260, 460]],
+    shared: [{ stop: 'HRBCATH', at: 10514 }],
+    shapeDist: 'km',
+    cruiseMps: 10,
+    headways: 'trunk',
+    timepointEvery: 5,
+    holdAtTimepointsS: 60,
     seqStep: 1,
   },
   {
-    id: 'R30', short: '30', long: 'Ring Loop (clockwise)', code: 'RNG', street: 'Ring Rd', color: '7D3C98',
-    loop: { cx: 0, cy: 0, r: 1600, startDeg: 0, n: 96 }, zones: [[0, 10100, 280, 360]], shared: [], shapeDist: null,
-    cruiseMps: 8, headways: 'regular', oneDirection: true, seqStep: 1,
-  },
-  {
-    id: 'R40', ends: [null, 'University Campus'], short: '40', long: 'University Line', code: 'UNI', street: 'College Rd', color: '1F618D',
-    path: [[-300, 600], [-2400, 1300], [-5500, 2500]], zones: [[0, 6000, 300, 450]],
-    shared: [{ stop: 'CSTN', at: 0 }], shapeDist: null, cruiseMps: 9,
-    frequency: { exactTimes: 1, periods: [['06:00:00', '20:00:00', 600], ['20:00:00', '23:00:00', 1200]] },
+    id: 'R20',
+    ends: [null, 'Northbank Terminus'],
+    short: '20',
+    long: 'Estuary Bridge to Northbank',
+    code: 'BRG',
+    street: 'Bridge Approach',
+    color: 'D68910',
+    path: [
+      [6, 6],
+      [2200, 3700],
+      [2300, 6300],
+      [2300, 8200],
+    ],
+    zones: [
+      [0, 4300, 280, 340],
+      [4300, 6900, 0, 0],
+      [6900, 8800, 320, 380],
+    ],
+    shared: [{ stop: 'CSQ', at: 0 }],
+    shapeDist: 'm',
+    cruiseMps: 10,
+    headways: 'regular',
+    markTimepoints: true,
     seqStep: 1,
   },
   {
-    id: 'R41', ends: [null, 'Vellmoor Infirmary'], short: '41', long: 'Infirmary Road (hospital)', code: 'INF', street: 'Infirmary Rd', color: '117864',
-    path: [[-300, 600], [900, 400], [2000, -300], [3500, -900]], zones: [[0, 5000, 280, 400]],
-    shared: [{ stop: 'CSTN', at: 0 }], shapeDist: null, cruiseMps: 8.5,
-    frequency: { exactTimes: 0, periods: [['06:00:00', '22:00:00', 720]] }, seqStep: 1,
+    id: 'R30',
+    short: '30',
+    long: 'Ring Loop (clockwise)',
+    code: 'RNG',
+    street: 'Ring Rd',
+    color: '7D3C98',
+    loop: { cx: 0, cy: 0, r: 1600, startDeg: 0, n: 96 },
+    zones: [[0, 10100, 280, 360]],
+    shared: [],
+    shapeDist: null,
+    cruiseMps: 8,
+    headways: 'regular',
+    oneDirection: true,
+    seqStep: 1,
   },
   {
-    id: 'R50', ends: ['Old Town Gate', 'Abbey Steps'], short: '50', long: 'Old Town Hopper', code: 'OLD', street: 'Old Town', color: 'A04000',
-    path: [[-900, -200], [-900, -1200], [-200, -1200], [-200, -400]], zones: [[0, 2600, 200, 260]], shared: [],
-    noShape: true, cruiseMps: 6, headways: 'regular', seqStep: 1,
+    id: 'R40',
+    ends: [null, 'University Campus'],
+    short: '40',
+    long: 'University Line',
+    code: 'UNI',
+    street: 'College Rd',
+    color: '1F618D',
+    path: [
+      [-300, 600],
+      [-2400, 1300],
+      [-5500, 2500],
+    ],
+    zones: [[0, 6000, 300, 450]],
+    shared: [{ stop: 'CSTN', at: 0 }],
+    shapeDist: null,
+    cruiseMps: 9,
+    frequency: {
+      exactTimes: 1,
+      periods: [
+        ['06:00:00', '20:00:00', 600],
+        ['20:00:00', '23:00:00', 1200],
+      ],
+    },
+    seqStep: 1,
   },
   {
-    id: 'R60', ends: ['Eastfield Gate', 'Eastfield Depot Yard'], short: '60', long: 'Eastfield Industrial Estate', code: 'EFD', street: 'Eastfield Rd', color: '566573',
-    path: [[900, -600], [6000, -600], [6000, -3000]], zones: [[0, 7600, 380, 600]], shared: [], shapeDist: null,
-    cruiseMps: 11, headways: 'regular', closedStopOnOneTrip: 6, seqStep: 1,
+    id: 'R41',
+    ends: [null, 'Vellmoor Infirmary'],
+    short: '41',
+    long: 'Infirmary Road (hospital)',
+    code: 'INF',
+    street: 'Infirmary Rd',
+    color: '117864',
+    path: [
+      [-300, 600],
+      [900, 400],
+      [2000, -300],
+      [3500, -900],
+    ],
+    zones: [[0, 5000, 280, 400]],
+    shared: [{ stop: 'CSTN', at: 0 }],
+    shapeDist: null,
+    cruiseMps: 8.5,
+    frequency: { exactTimes: 0, periods: [['06:00:00', '22:00:00', 720]] },
+    seqStep: 1,
   },
   {
-    id: 'R70', ends: [null, 'Winter Fairground'], short: '70', long: 'Winter Fair Shuttle', code: 'FAR', street: 'Fairground Rd', color: 'CB4335',
-    path: [[6, 6], [-2500, -3500]], zones: [[0, 4400, 450, 550]], shared: [{ stop: 'CSQ', at: 0 }], shapeDist: null,
-    cruiseMps: 9, services: ['FAIR'], seqStep: 1,
+    id: 'R50',
+    ends: ['Old Town Gate', 'Abbey Steps'],
+    short: '50',
+    long: 'Old Town Hopper',
+    code: 'OLD',
+    street: 'Old Town',
+    color: 'A04000',
+    path: [
+      [-900, -200],
+      [-900, -1200],
+      [-200, -1200],
+      [-200, -400],
+    ],
+    zones: [[0, 2600, 200, 260]],
+    shared: [],
+    noShape: true,
+    cruiseMps: 6,
+    headways: 'regular',
+    seqStep: 1,
+  },
+  {
+    id: 'R60',
+    ends: ['Eastfield Gate', 'Eastfield Depot Yard'],
+    short: '60',
+    long: 'Eastfield Industrial Estate',
+    code: 'EFD',
+    street: 'Eastfield Rd',
+    color: '566573',
+    path: [
+      [900, -600],
+      [6000, -600],
+      [6000, -3000],
+    ],
+    zones: [[0, 7600, 380, 600]],
+    shared: [],
+    shapeDist: null,
+    cruiseMps: 11,
+    headways: 'regular',
+    closedStopOnOneTrip: 6,
+    seqStep: 1,
+  },
+  {
+    id: 'R70',
+    ends: [null, 'Winter Fairground'],
+    short: '70',
+    long: 'Winter Fair Shuttle',
+    code: 'FAR',
+    street: 'Fairground Rd',
+    color: 'CB4335',
+    path: [
+      [6, 6],
+      [-2500, -3500],
+    ],
+    zones: [[0, 4400, 450, 550]],
+    shared: [{ stop: 'CSQ', at: 0 }],
+    shapeDist: null,
+    cruiseMps: 9,
+    services: ['FAIR'],
+    seqStep: 1,
   },
 ];
 
@@ -191,12 +406,23 @@ const NEXT_RENAMED = { id: 'HRB-20-a', name: 'Harbour Rd / Saltmarsh Market' };
 const H = (h, m = 0) => h * 3600 + m * 60;
 const HEADWAYS = {
   trunk: {
-    WKDY: [[H(5, 30), H(7), 1200], [H(7), H(9, 30), 600], [H(9, 30), H(15, 30), 900], [H(15, 30), H(18, 30), 600], [H(18, 30), H(24, 40), 1800]],
+    WKDY: [
+      [H(5, 30), H(7), 1200],
+      [H(7), H(9, 30), 600],
+      [H(9, 30), H(15, 30), 900],
+      [H(15, 30), H(18, 30), 600],
+      [H(18, 30), H(24, 40), 1800],
+    ],
     SAT: [[H(6, 30), H(23, 30), 1200]],
     SUN: [[H(7, 30), H(23), 1800]],
   },
   regular: {
-    WKDY: [[H(6), H(9), 900], [H(9), H(16), 1200], [H(16), H(19), 900], [H(19), H(23, 30), 2400]],
+    WKDY: [
+      [H(6), H(9), 900],
+      [H(9), H(16), 1200],
+      [H(16), H(19), 900],
+      [H(19), H(23, 30), 2400],
+    ],
     SAT: [[H(7), H(22), 1800]],
     SUN: [[H(8), H(21), 2400]],
   },
@@ -260,14 +486,31 @@ function buildFeed({ next }) {
 
   for (const st of STATIONS) {
     const [lat, lon] = toLatLon(st.xy);
-    stops.set(st.id, { stop_id: st.id, stop_code: '', stop_name: st.name, stop_lat: fmt6(lat), stop_lon: fmt6(lon), location_type: 1, parent_station: '', wheelchair_boarding: 1 });
+    stops.set(st.id, {
+      stop_id: st.id,
+      stop_code: '',
+      stop_name: st.name,
+      stop_lat: fmt6(lat),
+      stop_lon: fmt6(lon),
+      location_type: 1,
+      parent_station: '',
+      wheelchair_boarding: 1,
+    });
   }
 
   for (const route of ROUTES) {
     // each route draws from its own streams (stop gaps and demand; cross-street names)
     const rand = prng(seedOf(`${route.id}:20261102`));
     const streetPick = prng(seedOf(`${route.id}:names`));
-    routesRows.push({ route_id: route.id, agency_id: 'VTA', route_short_name: route.short, route_long_name: route.long, route_type: 3, route_color: route.color, route_text_color: 'FFFFFF' });
+    routesRows.push({
+      route_id: route.id,
+      agency_id: 'VTA',
+      route_short_name: route.short,
+      route_long_name: route.long,
+      route_type: 3,
+      route_color: route.color,
+      route_text_color: 'FFFFFF',
+    });
     const line = roadLine(route);
     const placed = placeStops(route, line, rand);
     const dirs = route.oneDirection ? [0] : [0, 1];
@@ -321,7 +564,16 @@ function buildFeed({ next }) {
           xy = sh.xy;
           if (!stops.has(id)) {
             const [lat, lon] = toLatLon(xy);
-            stops.set(id, { stop_id: id, stop_code: '', stop_name: sh.name, stop_lat: fmt6(lat), stop_lon: fmt6(lon), location_type: 0, parent_station: sh.parent ?? '', wheelchair_boarding: 1 });
+            stops.set(id, {
+              stop_id: id,
+              stop_code: '',
+              stop_name: sh.name,
+              stop_lat: fmt6(lat),
+              stop_lon: fmt6(lon),
+              location_type: 0,
+              parent_station: sh.parent ?? '',
+              wheelchair_boarding: 1,
+            });
           }
         } else {
           const side = route.loop ? 'a' : dir === 0 ? 'a' : 'b';
@@ -336,7 +588,16 @@ function buildFeed({ next }) {
           const wheelchair = rand() < 0.85 ? 1 : 2;
           if (!stops.has(id) && !(next && NEXT_REMOVED.includes(id))) {
             const [lat, lon] = toLatLon(xy);
-            stops.set(id, { stop_id: id, stop_code: String(stopCode), stop_name: name, stop_lat: fmt6(lat), stop_lon: fmt6(lon), location_type: 0, parent_station: '', wheelchair_boarding: wheelchair });
+            stops.set(id, {
+              stop_id: id,
+              stop_code: String(stopCode),
+              stop_name: name,
+              stop_lat: fmt6(lat),
+              stop_lon: fmt6(lon),
+              location_type: 0,
+              parent_station: '',
+              wheelchair_boarding: wheelchair,
+            });
           }
         }
         if (next && NEXT_REMOVED.includes(id)) continue;
@@ -354,7 +615,13 @@ function buildFeed({ next }) {
       if (shapeId) {
         const unit = route.shapeDist === 'km' ? 1000 : 1;
         ll.forEach(([lat, lon], i) => {
-          shapes.push({ shape_id: shapeId, shape_pt_lat: fmt6(lat), shape_pt_lon: fmt6(lon), shape_pt_sequence: i + 1, shape_dist_traveled: route.shapeDist ? (cumGeo[i] / unit).toFixed(route.shapeDist === 'km' ? 4 : 1) : '' });
+          shapes.push({
+            shape_id: shapeId,
+            shape_pt_lat: fmt6(lat),
+            shape_pt_lon: fmt6(lon),
+            shape_pt_sequence: i + 1,
+            shape_dist_traveled: route.shapeDist ? (cumGeo[i] / unit).toFixed(route.shapeDist === 'km' ? 4 : 1) : '',
+          });
         });
       }
 
@@ -386,11 +653,22 @@ function buildFeed({ next }) {
           // route 1: alternate weekday peak trips short-turn downtown (a second pattern)
           let sts = patternStops;
           if (route.shortTurnAtM && svc === 'WKDY' && peak && n % 2 === 1) {
-            sts = dir === 0 ? patternStops.filter((s) => s.alongPlanar <= route.shortTurnAtM) : patternStops.filter((s) => s.alongPlanar >= L - route.shortTurnAtM);
+            sts =
+              dir === 0
+                ? patternStops.filter((s) => s.alongPlanar <= route.shortTurnAtM)
+                : patternStops.filter((s) => s.alongPlanar >= L - route.shortTurnAtM);
           }
           const base = patternStops.indexOf(sts[0]);
           const t0 = offsets[base];
-          trips.push({ route_id: route.id, service_id: svc, trip_id: tripId, trip_headsign: sts === patternStops ? headsign : sts[sts.length - 1].name, direction_id: dir, shape_id: shapeId, wheelchair_accessible: 1 });
+          trips.push({
+            route_id: route.id,
+            service_id: svc,
+            trip_id: tripId,
+            trip_headsign: sts === patternStops ? headsign : sts[sts.length - 1].name,
+            direction_id: dir,
+            shape_id: shapeId,
+            wheelchair_accessible: 1,
+          });
           if (svc === 'WKDY') tripsOnWeekday += 1;
           let heldS = 0;
           sts.forEach((s, i) => {
@@ -411,18 +689,32 @@ function buildFeed({ next }) {
             } else if (route.markTimepoints) {
               timepoint = i === 0 || last || i % 4 === 0 ? 1 : 0;
             }
-            const closed = route.closedStopOnOneTrip !== undefined && svc === 'WKDY' && dir === 0 && n === 0 && i === route.closedStopOnOneTrip;
+            const closed =
+              route.closedStopOnOneTrip !== undefined && svc === 'WKDY' && dir === 0 && n === 0 && i === route.closedStopOnOneTrip;
             stopTimes.push({
-              trip_id: tripId, arrival_time: arr, departure_time: dep, stop_id: s.id, stop_sequence: (i + 1) * route.seqStep,
-              pickup_type: closed ? 1 : '', drop_off_type: closed ? 1 : '',
-              shape_dist_traveled: route.shapeDist ? (s.distM / (route.shapeDist === 'km' ? 1000 : 1)).toFixed(route.shapeDist === 'km' ? 4 : 1) : '',
+              trip_id: tripId,
+              arrival_time: arr,
+              departure_time: dep,
+              stop_id: s.id,
+              stop_sequence: (i + 1) * route.seqStep,
+              pickup_type: closed ? 1 : '',
+              drop_off_type: closed ? 1 : '',
+              shape_dist_traveled: route.shapeDist
+                ? (s.distM / (route.shapeDist === 'km' ? 1000 : 1)).toFixed(route.shapeDist === 'km' ? 4 : 1)
+                : '',
               timepoint,
             });
           });
         });
         if (route.frequency) {
           for (const [from, to, hw] of route.frequency.periods) {
-            frequencies.push({ trip_id: `${route.id}-${svc}-${dir}-001`, start_time: from, end_time: to, headway_secs: hw, exact_times: route.frequency.exactTimes });
+            frequencies.push({
+              trip_id: `${route.id}-${svc}-${dir}-001`,
+              start_time: from,
+              end_time: to,
+              headway_secs: hw,
+              exact_times: route.frequency.exactTimes,
+            });
           }
           if (svc === 'WKDY') {
             tripsOnWeekday = 0;
@@ -450,11 +742,53 @@ function buildFeed({ next }) {
     }
   }
 
-  const agency = [{ agency_id: 'VTA', agency_name: 'Vellmoor Transit Authority', agency_url: 'https://transit.vellmoor.example/', agency_timezone: 'Etc/GMT-1', agency_lang: 'en', agency_phone: '' }];
+  const agency = [
+    {
+      agency_id: 'VTA',
+      agency_name: 'Vellmoor Transit Authority',
+      agency_url: 'https://transit.vellmoor.example/',
+      agency_timezone: 'Etc/GMT-1',
+      agency_lang: 'en',
+      agency_phone: '',
+    },
+  ];
   const calendar = [
-    { service_id: 'WKDY', monday: 1, tuesday: 1, wednesday: 1, thursday: 1, friday: 1, saturday: 0, sunday: 0, start_date: SERVICE_START, end_date: SERVICE_END },
-    { service_id: 'SAT', monday: 0, tuesday: 0, wednesday: 0, thursday: 0, friday: 0, saturday: 1, sunday: 0, start_date: SERVICE_START, end_date: SERVICE_END },
-    { service_id: 'SUN', monday: 0, tuesday: 0, wednesday: 0, thursday: 0, friday: 0, saturday: 0, sunday: 1, start_date: SERVICE_START, end_date: SERVICE_END },
+    {
+      service_id: 'WKDY',
+      monday: 1,
+      tuesday: 1,
+      wednesday: 1,
+      thursday: 1,
+      friday: 1,
+      saturday: 0,
+      sunday: 0,
+      start_date: SERVICE_START,
+      end_date: SERVICE_END,
+    },
+    {
+      service_id: 'SAT',
+      monday: 0,
+      tuesday: 0,
+      wednesday: 0,
+      thursday: 0,
+      friday: 0,
+      saturday: 1,
+      sunday: 0,
+      start_date: SERVICE_START,
+      end_date: SERVICE_END,
+    },
+    {
+      service_id: 'SUN',
+      monday: 0,
+      tuesday: 0,
+      wednesday: 0,
+      thursday: 0,
+      friday: 0,
+      saturday: 0,
+      sunday: 1,
+      start_date: SERVICE_START,
+      end_date: SERVICE_END,
+    },
   ];
   const calendarDates = [
     // Midwinter holiday and New Year's Day (both Fridays): weekday service removed, Sunday service added
@@ -466,19 +800,57 @@ function buildFeed({ next }) {
     { service_id: 'FAIR', date: '20261212', exception_type: 1 },
     { service_id: 'FAIR', date: '20261213', exception_type: 1 },
   ];
-  const feedInfo = [{ feed_publisher_name: 'Vellmoor Transit Authority', feed_publisher_url: 'https://transit.vellmoor.example/', feed_lang: 'en', feed_start_date: SERVICE_START, feed_end_date: SERVICE_END, feed_version: next ? '2026.12.1' : '2026.11.1', feed_contact_email: 'data@transit.vellmoor.example' }];
+  const feedInfo = [
+    {
+      feed_publisher_name: 'Vellmoor Transit Authority',
+      feed_publisher_url: 'https://transit.vellmoor.example/',
+      feed_lang: 'en',
+      feed_start_date: SERVICE_START,
+      feed_end_date: SERVICE_END,
+      feed_version: next ? '2026.12.1' : '2026.11.1',
+      feed_contact_email: 'data@transit.vellmoor.example',
+    },
+  ];
 
-  const ridershipRows = [...ridership.values()].map((r) => ({ stop_id: r.stop_id, route_id: r.route_id, direction_id: r.direction_id, boardings: Math.round(r.b), alightings: Math.round(r.a) }));
+  const ridershipRows = [...ridership.values()].map((r) => ({
+    stop_id: r.stop_id,
+    route_id: r.route_id,
+    direction_id: r.direction_id,
+    boardings: Math.round(r.b),
+    alightings: Math.round(r.a),
+  }));
 
   const files = [
     ['agency.txt', table(Object.keys(agency[0]), agency)],
     ['feed_info.txt', table(Object.keys(feedInfo[0]), feedInfo)],
     ['routes.txt', table(Object.keys(routesRows[0]), routesRows)],
-    ['stops.txt', table(['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station', 'wheelchair_boarding'], [...stops.values()])],
+    [
+      'stops.txt',
+      table(
+        ['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station', 'wheelchair_boarding'],
+        [...stops.values()],
+      ),
+    ],
     ['calendar.txt', table(Object.keys(calendar[0]), calendar)],
     ['calendar_dates.txt', table(Object.keys(calendarDates[0]), calendarDates)],
     ['trips.txt', table(Object.keys(trips[0]), trips)],
-    ['stop_times.txt', table(['trip_id', 'arrival_time', 'departure_time', 'stop_id', 'stop_sequence', 'pickup_type', 'drop_off_type', 'shape_dist_traveled', 'timepoint'], stopTimes)],
+    [
+      'stop_times.txt',
+      table(
+        [
+          'trip_id',
+          'arrival_time',
+          'departure_time',
+          'stop_id',
+          'stop_sequence',
+          'pickup_type',
+          'drop_off_type',
+          'shape_dist_traveled',
+          'timepoint',
+        ],
+        stopTimes,
+      ),
+    ],
     ['shapes.txt', table(['shape_id', 'shape_pt_lat', 'shape_pt_lon', 'shape_pt_sequence', 'shape_dist_traveled'], shapes)],
     ['frequencies.txt', table(['trip_id', 'start_time', 'end_time', 'headway_secs', 'exact_times'], frequencies)],
   ];
@@ -493,7 +865,12 @@ function buildFeed({ next }) {
 const BLOCK_M = 250;
 const LAND_USE_REACH_M = 700;
 const ESTUARY = { yFrom: 3950, yTo: 6150 }; // no blocks between these northings: water under route 20's bridge
-const PARK = [[-2600, 700], [-1300, 700], [-1300, 1700], [-2600, 1700]]; // along College Rd (route 40)
+const PARK = [
+  [-2600, 700],
+  [-1300, 700],
+  [-1300, 1700],
+  [-2600, 1700],
+]; // along College Rd (route 40)
 
 function nearRoad(x, y, lines) {
   for (const line of lines) {
@@ -536,11 +913,25 @@ function buildLandUse() {
       features.push({
         type: 'Feature',
         properties: { block: `B${x}_${y}`, population, jobs },
-        geometry: { type: 'Polygon', coordinates: [ringOf([[x, y], [x + BLOCK_M, y], [x + BLOCK_M, y + BLOCK_M], [x, y + BLOCK_M]])] },
+        geometry: {
+          type: 'Polygon',
+          coordinates: [
+            ringOf([
+              [x, y],
+              [x + BLOCK_M, y],
+              [x + BLOCK_M, y + BLOCK_M],
+              [x, y + BLOCK_M],
+            ]),
+          ],
+        },
       });
     }
   }
-  features.push({ type: 'Feature', properties: { block: 'Brackwater Park', population: 0, jobs: 0 }, geometry: { type: 'Polygon', coordinates: [ringOf(PARK)] } });
+  features.push({
+    type: 'Feature',
+    properties: { block: 'Brackwater Park', population: 0, jobs: 0 },
+    geometry: { type: 'Polygon', coordinates: [ringOf(PARK)] },
+  });
   // one feature a line: small diffs when the generator changes
   return `{"type":"FeatureCollection","features":[\n${features.map((f) => JSON.stringify(f)).join(',\n')}\n]}\n`;
 }
@@ -548,7 +939,8 @@ function buildLandUse() {
 function writeZip(path, files) {
   return new Promise((resolvePromise, reject) => {
     const zip = new yazl.ZipFile();
-    for (const [name, text] of files) zip.addBuffer(Buffer.from(text, 'utf8'), name, { mtime: ZIP_MTIME, mode: 0o100644, compress: true, compressionLevel: 9 });
+    for (const [name, text] of files)
+      zip.addBuffer(Buffer.from(text, 'utf8'), name, { mtime: ZIP_MTIME, mode: 0o100644, compress: true, compressionLevel: 9 });
     zip.end();
     const out = createWriteStream(path);
     zip.outputStream.pipe(out).on('close', resolvePromise).on('error', reject);

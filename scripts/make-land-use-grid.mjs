@@ -68,11 +68,19 @@ for (let j = 0; j < ny; j++) {
     const lat = minLat + j * dLat;
     const lon = minLon + i * dLon;
     // the block leaves a street's width of its cell empty on two sides
-    const ring = [[lon, lat], [lon + dLon * 0.85, lat], [lon + dLon * 0.85, lat + dLat * 0.85], [lon, lat + dLat * 0.85], [lon, lat]].map(([x, y]) => [r6(x), r6(y)]);
+    const ring = [
+      [lon, lat],
+      [lon + dLon * 0.85, lat],
+      [lon + dLon * 0.85, lat + dLat * 0.85],
+      [lon, lat + dLat * 0.85],
+      [lon, lat],
+    ].map(([x, y]) => [r6(x), r6(y)]);
     const population = Math.round(rand() * 120);
     const jobs = Math.round(rand() * rand() * 300);
     lines.push(JSON.stringify({ type: 'Feature', properties: { population, jobs }, geometry: { type: 'Polygon', coordinates: [ring] } }));
   }
 }
 writeFileSync(outPath, `{"type":"FeatureCollection","features":[\n${lines.join(',\n')}\n]}\n`);
-console.error(`${lines.length} blocks of about ${Math.round(dLat * 0.85 * 111_000)} m over ${minLat.toFixed(4)},${minLon.toFixed(4)} - ${maxLat.toFixed(4)},${maxLon.toFixed(4)} written to ${outPath}`);
+console.error(
+  `${lines.length} blocks of about ${Math.round(dLat * 0.85 * 111_000)} m over ${minLat.toFixed(4)},${minLon.toFixed(4)} - ${maxLat.toFixed(4)},${maxLon.toFixed(4)} written to ${outPath}`,
+);

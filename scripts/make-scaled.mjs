@@ -151,18 +151,25 @@ export async function writeZipFile(zip, outFile) {
 }
 
 function parseArgs(argv) {
-  const opts = { in: path.join(repoDir, 'fixtures/demo/demo-feed.zip'), out: path.join(repoDir, 'bench-out/scaled'), scales: [1, 4, 16], shiftS: 60 };
+  const opts = {
+    in: path.join(repoDir, 'fixtures/demo/demo-feed.zip'),
+    out: path.join(repoDir, 'bench-out/scaled'),
+    scales: [1, 4, 16],
+    shiftS: 60,
+  };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     const v = argv[i + 1];
-    if (a === '--in') (opts.in = v), i++;
-    else if (a === '--out') (opts.out = v), i++;
-    else if (a === '--scales') (opts.scales = v.split(',').map(Number)), i++;
-    else if (a === '--shift-s') (opts.shiftS = Number(v)), i++;
+    if (a === '--in') ((opts.in = v), i++);
+    else if (a === '--out') ((opts.out = v), i++);
+    else if (a === '--scales') ((opts.scales = v.split(',').map(Number)), i++);
+    else if (a === '--shift-s') ((opts.shiftS = Number(v)), i++);
     else throw new Error(`invalid option ${a}: expected --in, --out, --scales or --shift-s`);
   }
-  for (const k of opts.scales) if (!Number.isInteger(k) || k < 1) throw new Error(`invalid option --scales: expected whole numbers >= 1, got ${k}`);
-  if (!Number.isInteger(opts.shiftS) || opts.shiftS < 0) throw new Error(`invalid option --shift-s: expected a whole number of seconds >= 0, got ${opts.shiftS}`);
+  for (const k of opts.scales)
+    if (!Number.isInteger(k) || k < 1) throw new Error(`invalid option --scales: expected whole numbers >= 1, got ${k}`);
+  if (!Number.isInteger(opts.shiftS) || opts.shiftS < 0)
+    throw new Error(`invalid option --shift-s: expected a whole number of seconds >= 0, got ${opts.shiftS}`);
   return opts;
 }
 
@@ -170,7 +177,10 @@ async function main() {
   const opts = parseArgs(process.argv.slice(2));
   if (!fs.existsSync(opts.in)) throw new Error(`no input feed at ${opts.in}`);
   const entries = await readZip(opts.in);
-  const stem = path.basename(opts.in).replace(/\.zip$/i, '').replace(/-feed$/, '');
+  const stem = path
+    .basename(opts.in)
+    .replace(/\.zip$/i, '')
+    .replace(/-feed$/, '');
   for (const k of opts.scales) {
     const file = path.join(opts.out, `${stem}-x${k}.zip`);
     const stopTimesRows = await writeScaled(entries, k, file, { shiftS: opts.shiftS });

@@ -12,7 +12,19 @@ export { WARNINGS, type WarningCode, type WarningEntry } from './common/warningC
 // the feed, its patterns and observed data: the stages a program may call one by one
 export { readFeed, type ReadFeedOptions } from './gtfs/readFeed.js';
 export { tripProfiles, type StopTimesStore, type TripProfile } from './gtfs/stopTimesStore.js';
-export type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './gtfs/types.js';
+export type {
+  Agency,
+  CalendarDate,
+  CalendarRow,
+  Feed,
+  FeedInfo,
+  Frequency,
+  Route,
+  Shape,
+  Stop,
+  Trip,
+  TripStopTimes,
+} from './gtfs/types.js';
 export { buildPatterns, type BuildPatternsOptions } from './network/buildPatterns.js';
 export type { DistanceBacktrack, DistanceSource, Pattern, PatternSet } from './network/types.js';
 export { observeArchive, type ObserveArchiveOptions } from './realtime/calibrate.js';
@@ -32,7 +44,16 @@ export {
   type StoppingModel,
   type StoppingModelParam,
 } from './model/params.js';
-export type { DemandSource, FixedReason, LostTimeSource, ObservedFigures, ObservedLostTimePart, ParamValue, ParamsReport, SourceLabel } from './model/types.js';
+export type {
+  DemandSource,
+  FixedReason,
+  LostTimeSource,
+  ObservedFigures,
+  ObservedLostTimePart,
+  ParamValue,
+  ParamsReport,
+  SourceLabel,
+} from './model/types.js';
 
 // the audit and its result
 export { auditFeed, type AuditFeedOptions, type AuditFeedOutput } from './audit/auditFeed.js';
@@ -119,6 +140,12 @@ export { summaryJson, SUMMARY_SCHEMA_VERSION } from './report/summaryJson.js';
 export type { Units } from './report/units.js';
 
 // the land-use layer: where people live and work (read by auditFeed and whatif with --land-use)
-export { readLandUse, parseLandUseWeights, DEFAULT_LAND_USE_COLUMNS, type LandUseColumn, type LandUseLayer } from './landuse/readLandUse.js';
+export {
+  readLandUse,
+  parseLandUseWeights,
+  DEFAULT_LAND_USE_COLUMNS,
+  type LandUseColumn,
+  type LandUseLayer,
+} from './landuse/readLandUse.js';
 
 export { version } from './version.js';

@@ -29,7 +29,10 @@ function table(entries: Entry[], name: string): string[][] {
 
 function runScaled(input: string, outDir: string, scales: string): { scale: number; file: string; stopTimesRows: number }[] {
   const out = execFileSync(process.execPath, [makeScaled, '--in', input, '--out', outDir, '--scales', scales], { encoding: 'utf8' });
-  return out.trim().split('\n').map((l) => JSON.parse(l));
+  return out
+    .trim()
+    .split('\n')
+    .map((l) => JSON.parse(l));
 }
 
 let tmp: string;
@@ -65,7 +68,8 @@ describe('make-scaled on a hand-built Vellmoor feed', () => {
     'trips.txt': 'route_id,service_id,trip_id,direction_id,shape_id,block_id\nR1,WK,T1,0,SH1,B1\nR1,WK,T2,1,SH1,\n',
     'stops.txt': 'stop_id,stop_name,stop_lat,stop_lon\nS1,Harbour,52.0,9.0\nS2,Market,52.001,9.0\nS3,Mill,52.002,9.0\n',
     'shapes.txt': 'shape_id,shape_pt_lat,shape_pt_lon,shape_pt_sequence\nSH1,52.0,9.0,1\nSH1,52.002,9.0,2\n',
-    'calendar.txt': 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n',
+    'calendar.txt':
+      'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n',
     'frequencies.txt': 'trip_id,start_time,end_time,headway_secs,exact_times\nT2,23:00:00,23:59:00,600,1\n',
     'stop_times.txt': stopTimes,
   };
@@ -146,7 +150,7 @@ describe.skipIf(!fs.existsSync(lirr))('on a real feed', () => {
     expect(b.rows).toBe(2 * 22730);
   });
 
-  it('inflating the reader\'s way counts the same rows as floor (a), on the real zip and on a scaled copy', () => {
+  it("inflating the reader's way counts the same rows as floor (a), on the real zip and on a scaled copy", () => {
     const c = JSON.parse(execFileSync(process.execPath, [benchRun, 'inflate-reader', lirr], { encoding: 'utf8' }));
     expect(c.error).toBeNull();
     expect(c.rows).toBe(22730); // the same documented count as above

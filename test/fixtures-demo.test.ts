@@ -188,7 +188,10 @@ describe('the demo city shows each feature', () => {
     };
     // a block apart, as in an old city grid: well under the ~400 m (quarter-mile) spacing that transit
     // guidelines commonly give for local buses (common practice, from memory)
-    for (const [tripId, minClose] of [['R1-WKDY-0-001', 16], ['R2-WKDY-0-001', 14]] as const) {
+    for (const [tripId, minClose] of [
+      ['R1-WKDY-0-001', 16],
+      ['R2-WKDY-0-001', 14],
+    ] as const) {
       const g = gaps(tripId);
       const oldTown = g.filter((x) => x < 230);
       expect(oldTown.length, tripId).toBeGreaterThanOrEqual(minClose);
@@ -198,14 +201,19 @@ describe('the demo city shows each feature', () => {
       // most gaps a block long; the few longer ones flank Central Square, which keeps other stops 110 m off
       expect(oldTown.filter((x) => x <= 145).length / oldTown.length, tripId).toBeGreaterThan(0.75);
       // and the rest of the route is spaced wider: more than 300 m outside the old town
-      expect(g.filter((x) => x >= 230).every((x) => x > 300), tripId).toBe(true);
+      expect(
+        g.filter((x) => x >= 230).every((x) => x > 300),
+        tripId,
+      ).toBe(true);
     }
     expect(Math.max(...gaps('R20-WKDY-0-001'))).toBeGreaterThan(2000);
   });
 
   it('alternates busy and quiet stops in the old town: quiet ones between busy neighbours', () => {
     const rows = parse(readFileSync(join(DEMO, 'ridership.csv')), { columns: true }) as Row[];
-    const use = new Map(rows.filter((r) => r.route_id === 'R1' && r.direction_id === '0').map((r) => [r.stop_id, Number(r.boardings) + Number(r.alightings)]));
+    const use = new Map(
+      rows.filter((r) => r.route_id === 'R1' && r.direction_id === '0').map((r) => [r.stop_id, Number(r.boardings) + Number(r.alightings)]),
+    );
     const ll = stopLL();
     const sts = timesOf('R1-WKDY-0-001').map((s) => s.stop_id);
     let quietBetweenBusy = 0;
@@ -223,7 +231,10 @@ describe('the demo city shows each feature', () => {
       const pts = shapeRows.filter((p) => p.shape_id === shapeId);
       let lenM = 0;
       for (let i = 1; i < pts.length; i++) {
-        lenM += geoM([Number(pts[i - 1].shape_pt_lat), Number(pts[i - 1].shape_pt_lon)], [Number(pts[i].shape_pt_lat), Number(pts[i].shape_pt_lon)]);
+        lenM += geoM(
+          [Number(pts[i - 1].shape_pt_lat), Number(pts[i - 1].shape_pt_lon)],
+          [Number(pts[i].shape_pt_lat), Number(pts[i].shape_pt_lon)],
+        );
       }
       const declared = Number(pts[pts.length - 1].shape_dist_traveled) * unitM;
       expect(Math.abs(declared - lenM) / lenM).toBeLessThan(0.005); // within 0.5 % of the geodesic length
@@ -244,7 +255,11 @@ describe('the demo city shows each feature', () => {
 
   it('shares a transfer stop among several routes, runs a loop and closes one stop on one trip', () => {
     const routeOfTrip = new Map(col(feed, 'trips').map((t) => [t.trip_id, t.route_id]));
-    const routesAt = new Set(col(feed, 'stop_times').filter((s) => s.stop_id === 'CSQ').map((s) => routeOfTrip.get(s.trip_id)));
+    const routesAt = new Set(
+      col(feed, 'stop_times')
+        .filter((s) => s.stop_id === 'CSQ')
+        .map((s) => routeOfTrip.get(s.trip_id)),
+    );
     expect(routesAt.size).toBeGreaterThanOrEqual(3);
     const loop = timesOf('R30-WKDY-0-001');
     expect(loop[0].stop_id).toBe(loop[loop.length - 1].stop_id);

@@ -80,8 +80,16 @@ describe('the public API', () => {
     expect(pkg.exports['./schema/*']).toBe('./schema/*');
     expect(pkg.files).toEqual(expect.arrayContaining(['dist', 'schema']));
     const schemas = readdirSync(join(ROOT, 'schema')).filter((f) => f.endsWith('.schema.json'));
-    expect(schemas.sort()).toEqual(['check.schema.json', 'compare.schema.json', 'error.schema.json', 'history.schema.json', 'summary.schema.json']);
-    const tsconfig = JSON.parse(readFileSync(join(ROOT, 'tsconfig.json'), 'utf8')) as { compilerOptions: { rootDir?: string; outDir?: string; declaration?: boolean } };
+    expect(schemas.sort()).toEqual([
+      'check.schema.json',
+      'compare.schema.json',
+      'error.schema.json',
+      'history.schema.json',
+      'summary.schema.json',
+    ]);
+    const tsconfig = JSON.parse(readFileSync(join(ROOT, 'tsconfig.json'), 'utf8')) as {
+      compilerOptions: { rootDir?: string; outDir?: string; declaration?: boolean };
+    };
     expect(tsconfig.compilerOptions).toMatchObject({ rootDir: 'src', outDir: 'dist', declaration: true });
   });
 });
@@ -89,12 +97,15 @@ describe('the public API', () => {
 describe('parameters at the entry points', () => {
   const { feed, patterns } = handmadeNetwork({ tripsPerDay: 40 });
 
-  it('take a partial object: the names given are the user\'s, the rest their defaults', () => {
+  it("take a partial object: the names given are the user's, the rest their defaults", () => {
     const params: Partial<ModelParams> = { walk_weight: 2.2, stopping_model: 'always' };
     const r = runAudit(feed, patterns, { params, generatedAt: '2026-10-14T00:00:00Z' });
     expect(r.params.walk_weight).toMatchObject({ value: 2.2, source: 'user' });
     expect(r.params.stopping_model).toMatchObject({ value: 'always', source: 'user' });
-    expect(r.params.walk_speed_mps).toMatchObject({ value: stopspan.PARAM_SPECS.walk_speed_mps.default, source: stopspan.PARAM_SPECS.walk_speed_mps.source });
+    expect(r.params.walk_speed_mps).toMatchObject({
+      value: stopspan.PARAM_SPECS.walk_speed_mps.default,
+      source: stopspan.PARAM_SPECS.walk_speed_mps.source,
+    });
     const w = evaluateScenario(feed, patterns, { remove: [feed.stops[patterns.patterns[0].stopIdx[3]].id] }, { params });
     expect(w.params.walk_weight).toMatchObject({ value: 2.2, source: 'user' });
   });
@@ -114,8 +125,9 @@ describe('parameters at the entry points', () => {
     expect(bad).toBeInstanceOf(StopspanError);
     expect((bad as StopspanError).code).toBe('bad-option');
     expect((bad as StopspanError).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got -1');
+    const removed = { remove: [feed.stops[patterns.patterns[0].stopIdx[3]].id] };
     // @ts-expect-error: an unknown name is refused by the type as well as at run time
-    const unknown = thrown(() => evaluateScenario(feed, patterns, { remove: [feed.stops[patterns.patterns[0].stopIdx[3]].id] }, { params: { walk_speed: 1.2 } }));
+    const unknown = thrown(() => evaluateScenario(feed, patterns, removed, { params: { walk_speed: 1.2 } }));
     expect(unknown).toBeInstanceOf(StopspanError);
     expect((unknown as StopspanError).message).toMatch(/^invalid parameter walk_speed: expected one of walk_speed_mps, /);
     // @ts-expect-error: a stopping model outside the list is refused by the type as well as at run time

@@ -111,9 +111,18 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite, pe
   if (people) {
     const n = Math.round(people.people);
     if (people.people >= MIN_PEOPLE_FOR_ADDITION) {
-      return { ok: true, witnessStops: 0, witnessRoutes: [], text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, ${Math.round(people.newlyCovered)} of them beyond every stop's walk today` };
+      return {
+        ok: true,
+        witnessStops: 0,
+        witnessRoutes: [],
+        text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, ${Math.round(people.newlyCovered)} of them beyond every stop's walk today`,
+      };
     }
-    return { ok: false, reason: 'no-people-near', text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, fewer than ${MIN_PEOPLE_FOR_ADDITION}` };
+    return {
+      ok: false,
+      reason: 'no-people-near',
+      text: `${n} people (land use) within a ${WALK_RADIUS_M} m walk would have it as their nearest stop, fewer than ${MIN_PEOPLE_FOR_ADDITION}`,
+    };
   }
   const witnesses: number[] = [];
   const routes = new Set<string>();
@@ -140,9 +149,18 @@ export function additionEvidence(feed: Feed, index: StopIndex, site: GapSite, pe
   if (witnesses.length + stations.length >= MIN_WITNESS_STOPS) {
     const rs = [...routes].sort();
     const said: string[] = [];
-    if (witnesses.length) said.push(`${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`);
+    if (witnesses.length)
+      said.push(
+        `${witnesses.length} stop${witnesses.length === 1 ? '' : 's'} of route${rs.length === 1 ? '' : 's'} ${rs.join(' ')} within a walk of the site`,
+      );
     if (stations.length) said.push(`${stations.map((x) => x.note).join('; ')} from the site, within a walk`);
-    return { ok: true, witnessStops: witnesses.length, witnessRoutes: rs, ...(stations.length ? { witnessStations: stations.map((x) => x.note) } : {}), text: said.join('; ') };
+    return {
+      ok: true,
+      witnessStops: witnesses.length,
+      witnessRoutes: rs,
+      ...(stations.length ? { witnessStations: stations.map((x) => x.note) } : {}),
+      text: said.join('; '),
+    };
   }
   const nothing = index.stations.length > 0 ? 'no stop of another route nor station of a context feed' : 'no stop of another route';
   const chordM = from && to ? haversineM(from.lat, from.lon, to.lat, to.lon) : 0;

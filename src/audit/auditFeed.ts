@@ -37,7 +37,20 @@ export interface AuditFeedOutput {
 }
 
 export async function auditFeed(source: string, options: AuditFeedOptions = {}): Promise<AuditFeedOutput> {
-  const { date, routes, excludeRoutes, routeTypes, params, ridership, observed: observedPath, keep, onProgress, context = [], landUse: landUsePath, landUseColumns = null } = options;
+  const {
+    date,
+    routes,
+    excludeRoutes,
+    routeTypes,
+    params,
+    ridership,
+    observed: observedPath,
+    keep,
+    onProgress,
+    context = [],
+    landUse: landUsePath,
+    landUseColumns = null,
+  } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
   }
@@ -57,15 +70,31 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   const [{ buildPatterns }, { runAudit }] = await stages;
   const patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress });
   if (patterns.patterns.length === 0 || (reportRoutes !== null && !patterns.patterns.some((p) => reportRoutes.has(p.routeId)))) {
-    throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}${reportRoutes !== null ? ' for the routes asked for' : ''}`, {
-      file: 'trips.txt',
-    });
+    throw new StopspanError(
+      'empty-feed',
+      `no route patterns run on ${patterns.date}${reportRoutes !== null ? ' for the routes asked for' : ''}`,
+      {
+        file: 'trips.txt',
+      },
+    );
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
   const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
   const landUse = await landUseRead;
   // the realtime reader (and its protobuf library) loads only when an archive is given
-  const observed = observedPath ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress }) : null;
-  const result = await runAudit(feed, patterns, { params: checkedParams, ridership, keep, observed: observed ?? undefined, onProgress, reportRoutes, stations, contextStations, landUse });
+  const observed = observedPath
+    ? await (await import('../realtime/calibrate.js')).observeArchive(observedPath, feed, patterns, { onProgress })
+    : null;
+  const result = await runAudit(feed, patterns, {
+    params: checkedParams,
+    ridership,
+    keep,
+    observed: observed ?? undefined,
+    onProgress,
+    reportRoutes,
+    stations,
+    contextStations,
+    landUse,
+  });
   return { feed, patterns, observed, result };
 }

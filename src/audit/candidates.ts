@@ -39,7 +39,11 @@ export function candidateKey(c: Pick<Candidate, 'action' | 'stopId' | 'lat' | 'l
   return c.action === 'remove' ? `remove:${c.stopId}` : `add:${c.lat.toFixed(6)},${c.lon.toFixed(6)}`;
 }
 
-export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGapM, reviewGaps, contextStations = [], peopleNear, onlyStopPeople }: CandidateOptions): Candidate[] {
+export function buildCandidates(
+  feed: Feed,
+  analyses: PatternAnalysis[],
+  { maxGapM, reviewGaps, contextStations = [], peopleNear, onlyStopPeople }: CandidateOptions,
+): Candidate[] {
   const fixed = new Set<number>();
   for (const a of analyses) for (const s of a.fixedStopIdx) fixed.add(s);
   const byPattern = new Map(analyses.map((a) => [a.result.patternId, a]));
@@ -85,7 +89,11 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
   const out: Candidate[] = [];
   for (const [stopIdx, g] of accepted) {
     const stop = feed.stops[stopIdx];
-    const c = toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, { fromStopId: '', toStopId: '', gapM: null });
+    const c = toCandidate('remove', stop?.id ?? '', stop?.name ?? '', stop?.lat ?? NaN, stop?.lon ?? NaN, g.effects, {
+      fromStopId: '',
+      toStopId: '',
+      gapM: null,
+    });
     if (onlyStopPeople) c.peopleUncovered = onlyStopPeople(stopIdx);
     out.push(c);
   }
@@ -112,19 +120,43 @@ export function buildCandidates(feed: Feed, analyses: PatternAnalysis[], { maxGa
     const name = `between ${from?.name ?? '?'} and ${to?.name ?? '?'}`;
     // the fastest schedule over the gap speaks for the stretch: an express run is what a bridge allows
     let scheduledS: number | null = null;
-    for (const e of g.effects) if (e.scheduledS !== null && e.scheduledS > 0 && (scheduledS === null || e.scheduledS < scheduledS)) scheduledS = e.scheduledS;
+    for (const e of g.effects)
+      if (e.scheduledS !== null && e.scheduledS > 0 && (scheduledS === null || e.scheduledS < scheduledS)) scheduledS = e.scheduledS;
     const ev = additionEvidence(
       feed,
       stopIndex!,
-      { lat: e0.lat, lon: e0.lon, fromStopIdx: e0.fromStopIdx, toStopIdx: e0.toStopIdx, gapM: e0.gapM, scheduledS, ownRoutes: new Set(g.effects.map((e) => e.routeId)) },
+      {
+        lat: e0.lat,
+        lon: e0.lon,
+        fromStopIdx: e0.fromStopIdx,
+        toStopIdx: e0.toStopIdx,
+        gapM: e0.gapM,
+        scheduledS,
+        ownRoutes: new Set(g.effects.map((e) => e.routeId)),
+      },
       peopleNear?.(e0.lat, e0.lon),
     );
     if (!ev.ok) {
-      review.push({ fromStopId: from?.id ?? '', toStopId: to?.id ?? '', name, lat: e0.lat, lon: e0.lon, gapM: e0.gapM, routeIds: [...new Set(g.effects.map((e) => e.routeId))].sort(), patternIds: g.effects.map((e) => e.patternId), reason: ev.reason, detail: ev.text });
+      review.push({
+        fromStopId: from?.id ?? '',
+        toStopId: to?.id ?? '',
+        name,
+        lat: e0.lat,
+        lon: e0.lon,
+        gapM: e0.gapM,
+        routeIds: [...new Set(g.effects.map((e) => e.routeId))].sort(),
+        patternIds: g.effects.map((e) => e.patternId),
+        reason: ev.reason,
+        detail: ev.text,
+      });
       continue;
     }
     if (!(g.net < 0)) continue;
-    const c = toCandidate('add', '', name, e0.lat, e0.lon, g.effects, { fromStopId: from?.id ?? '', toStopId: to?.id ?? '', gapM: e0.gapM });
+    const c = toCandidate('add', '', name, e0.lat, e0.lon, g.effects, {
+      fromStopId: from?.id ?? '',
+      toStopId: to?.id ?? '',
+      gapM: e0.gapM,
+    });
     c.evidence = ev.text;
     out.push(c);
   }

@@ -35,7 +35,12 @@ export function stationNote(s: StationPoint, distanceM: number): string {
 }
 
 /** Stop index -> note ("station 59 St (nyct-subway), 60 m") for every served stop near a context station. */
-export function stopsNearStations(feed: Feed, patterns: PatternSet, contexts: ContextFeed[], radiusM = CONTEXT_STATION_RADIUS_M): Map<number, string> {
+export function stopsNearStations(
+  feed: Feed,
+  patterns: PatternSet,
+  contexts: ContextFeed[],
+  radiusM = CONTEXT_STATION_RADIUS_M,
+): Map<number, string> {
   const out = new Map<number, string>();
   if (contexts.length === 0) return out;
   const cell = (lat: number, lon: number) => `${Math.floor(lat / CELL_DEG)},${Math.floor(lon / CELL_DEG)}`;

@@ -28,7 +28,13 @@ export function wideGapCounts(analyses: PatternAnalysis[]): { distinct: number; 
  * Per pattern id, the passenger-minutes a day the candidate additions save its riders (positive = saved),
  * all the additions on the pattern weighed together, at the base walk weight.
  */
-export function additionsAtStake(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, candidates: Candidate[]): Map<string, number> {
+export function additionsAtStake(
+  feed: Feed,
+  date: string,
+  preps: PreparedPattern[],
+  params: ModelParams,
+  candidates: Candidate[],
+): Map<string, number> {
   const edits = new Map<string, PatternEdit>();
   for (const c of candidates) {
     if (c.action !== 'add') continue;

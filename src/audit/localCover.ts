@@ -100,7 +100,11 @@ export function localCoverByGap(feed: Feed, patternSet: PatternSet, preps: Prepa
             if (q.passengerStop[j] === false) continue;
             const sj = q.stopIdx[j];
             if (nearEndB[sj] === gen) {
-              if (between > 0) by = q.routeId === p.routeId ? `${feed.routes.get(q.routeId)?.shortName || q.routeId} (pattern ${q.id})` : feed.routes.get(q.routeId)?.shortName || q.routeId;
+              if (between > 0)
+                by =
+                  q.routeId === p.routeId
+                    ? `${feed.routes.get(q.routeId)?.shortName || q.routeId} (pattern ${q.id})`
+                    : feed.routes.get(q.routeId)?.shortName || q.routeId;
               break;
             }
             if (nearEndA[sj] !== gen) between++;

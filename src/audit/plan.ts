@@ -11,9 +11,14 @@ import { weighScenario, type ScenarioInput } from '../model/scenario.js';
 
 export type { NetworkPlan };
 
-
 /** The plan from the stops the optimiser drops (keptByOptimiser false); null when it keeps every stop. */
-export function optimiserPlan(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, stops: StopResult[]): NetworkPlan | null {
+export function optimiserPlan(
+  feed: Feed,
+  date: string,
+  preps: PreparedPattern[],
+  params: ModelParams,
+  stops: StopResult[],
+): NetworkPlan | null {
   const byStop = new Map<string, Set<string>>();
   let drops = 0;
   for (const s of stops) {
@@ -24,8 +29,16 @@ export function optimiserPlan(feed: Feed, date: string, preps: PreparedPattern[]
     set.add(s.patternId);
   }
   if (byStop.size === 0) return null;
-  const remove = [...byStop.entries()].sort((a, b) => a[0].localeCompare(b[0])).map(([stop, pats]) => ({ stop, patterns: [...pats].sort() }));
+  const remove = [...byStop.entries()]
+    .sort((a, b) => a[0].localeCompare(b[0]))
+    .map(([stop, pats]) => ({ stop, patterns: [...pats].sort() }));
   const scenario: ScenarioInput = { remove };
   const figures = weighScenario(feed, date, preps, params, scenario);
-  return { scenario, stopsDropped: byStop.size, dropsOnPatterns: drops, patternsChanged: new Set(stops.filter((s) => !s.keptByOptimiser).map((s) => s.patternId)).size, figures };
+  return {
+    scenario,
+    stopsDropped: byStop.size,
+    dropsOnPatterns: drops,
+    patternsChanged: new Set(stops.filter((s) => !s.keptByOptimiser).map((s) => s.patternId)).size,
+    figures,
+  };
 }

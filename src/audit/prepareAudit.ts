@@ -42,15 +42,22 @@ export interface PreparedAudit {
   catchments: Catchments | null;
 }
 
-export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations, landUse }: PrepareAuditOptions = {}): PreparedAudit {
+export function prepareAudit(
+  feed: Feed,
+  patterns: PatternSet,
+  { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, stations, landUse }: PrepareAuditOptions = {},
+): PreparedAudit {
   // the one place a library call's parameters are checked (the command's come checked, and pass as they are)
   const np = normalizeParams(rawParams);
   const params = np.values;
-  if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string')) throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
+  if (!Array.isArray(keep) || keep.some((k) => typeof k !== 'string'))
+    throw new StopspanError('bad-option', 'invalid option keep: expected a list of stop_ids', { value: String(keep) });
   for (const id of keep) {
-    if (!feed.stopIndex.has(id)) throw new StopspanError('bad-option', `invalid option keep: unknown stop_id ${id}`, { column: 'keep', value: id });
+    if (!feed.stopIndex.has(id))
+      throw new StopspanError('bad-option', `invalid option keep: unknown stop_id ${id}`, { column: 'keep', value: id });
   }
-  if (patterns.patterns.length === 0) throw new StopspanError('empty-feed', `no patterns to analyse on ${patterns.date}`, { file: feed.source });
+  if (patterns.patterns.length === 0)
+    throw new StopspanError('empty-feed', `no patterns to analyse on ${patterns.date}`, { file: feed.source });
   const warnings = new WarningSink();
 
   onProgress?.({ stage: 'demand' });
@@ -63,13 +70,19 @@ export function prepareAudit(feed: Feed, patterns: PatternSet, { params: rawPara
     ? buildCatchments(
         landUse,
         feed,
-        layouts.filter((l) => l.modelStops.length >= 2).map((l) => ({ patternId: l.pattern.id, stops: l.modelStops.map((j) => l.pattern.stopIdx[j]) })),
+        layouts
+          .filter((l) => l.modelStops.length >= 2)
+          .map((l) => ({ patternId: l.pattern.id, stops: l.modelStops.map((j) => l.pattern.stopIdx[j]) })),
       )
     : null;
   let observedDemand: Map<string, PatternDemand> | null = null;
   if (ridership !== undefined) {
     const rows = loadRidership(ridership, feed, { warnings });
-    observedDemand = ridershipDemand(rows, layouts.filter((l) => l.modelStops.length >= 2), { warnings });
+    observedDemand = ridershipDemand(
+      rows,
+      layouts.filter((l) => l.modelStops.length >= 2),
+      { warnings },
+    );
     if (params.mean_trip_length_m !== null) {
       warnings.add('mean-trip-from-counts', undefined, 1, { meanTripLengthM: params.mean_trip_length_m });
     }

@@ -12,11 +12,25 @@ import type { PreparedPattern } from '../model/preparePattern.js';
 import type { Candidate } from './types.js';
 import { costSettings } from '../model/preparePattern.js';
 import type { CostSettings } from '../model/corridor.js';
-import { effectTerms, reachAround, reachOf, resolveChanges, servedAfter, touchedSpan, type Window, type EffectTerms, type PatternEdit, type ScenarioInput, type ScenarioPatternEffect } from '../model/scenario.js';
+import {
+  effectTerms,
+  reachAround,
+  reachOf,
+  resolveChanges,
+  servedAfter,
+  touchedSpan,
+  type Window,
+  type EffectTerms,
+  type PatternEdit,
+  type ScenarioInput,
+  type ScenarioPatternEffect,
+} from '../model/scenario.js';
 
 /** The scenario item of one candidate: a removal on its patterns, or an addition on its patterns. */
 export function candidateScenario(c: Candidate): ScenarioInput {
-  return c.action === 'remove' ? { remove: [{ stop: c.stopId, patterns: [...c.patternIds] }] } : { add: [{ lat: c.lat, lon: c.lon, patterns: [...c.patternIds] }] };
+  return c.action === 'remove'
+    ? { remove: [{ stop: c.stopId, patterns: [...c.patternIds] }] }
+    : { add: [{ lat: c.lat, lon: c.lon, patterns: [...c.patternIds] }] };
 }
 
 /** The scenario of a set of candidates (e.g. a prefix of the programme), for whatif. */
@@ -32,12 +46,28 @@ export function programmeScenario(list: Candidate[]): ScenarioInput {
 
 function merged(a: PatternEdit | undefined, b: PatternEdit): PatternEdit {
   if (!a) return b;
-  return { prep: a.prep, removed: new Set([...a.removed, ...b.removed]), moved: new Map([...a.moved, ...b.moved]), added: [...a.added, ...b.added] };
+  return {
+    prep: a.prep,
+    removed: new Set([...a.removed, ...b.removed]),
+    moved: new Map([...a.moved, ...b.moved]),
+    added: [...a.added, ...b.added],
+  };
 }
 
-type Figures = Pick<ScenarioPatternEffect, 'netPaxMinPerDay' | 'ridersAffectedPerDay' | 'walkAddedPaxMinPerDay' | 'rideSavedPaxMinPerDay' | 'vehicleHoursPerDay' | 'tripsPerDay'> & { busSPerDay: number };
+type Figures = Pick<
+  ScenarioPatternEffect,
+  'netPaxMinPerDay' | 'ridersAffectedPerDay' | 'walkAddedPaxMinPerDay' | 'rideSavedPaxMinPerDay' | 'vehicleHoursPerDay' | 'tripsPerDay'
+> & { busSPerDay: number };
 
-const ZERO: Figures = { netPaxMinPerDay: 0, ridersAffectedPerDay: 0, walkAddedPaxMinPerDay: 0, rideSavedPaxMinPerDay: 0, vehicleHoursPerDay: 0, tripsPerDay: 0, busSPerDay: 0 };
+const ZERO: Figures = {
+  netPaxMinPerDay: 0,
+  ridersAffectedPerDay: 0,
+  walkAddedPaxMinPerDay: 0,
+  rideSavedPaxMinPerDay: 0,
+  vehicleHoursPerDay: 0,
+  tripsPerDay: 0,
+  busSPerDay: 0,
+};
 
 /** As the candidate columns count them: walk added net of walk saved, ride saved net of neighbours' extra stopping. */
 function figuresOf(t: EffectTerms, s: CostSettings, tripsPerDay: number): Figures {
@@ -82,7 +112,13 @@ export function programmeWork(preps: PreparedPattern[], candidates: Candidate[])
  * those that no longer save riders time once the others are in are left out. `robust` is judged after,
  * on this list as accepted (judgeRobust in sensitivity.ts).
  */
-export function programmeCandidates(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, candidates: Candidate[]): Candidate[] {
+export function programmeCandidates(
+  feed: Feed,
+  date: string,
+  preps: PreparedPattern[],
+  params: ModelParams,
+  candidates: Candidate[],
+): Candidate[] {
   const w = params.walk_weight;
   // each candidate's own edits, by pattern
   const edits = candidates.map((c) => {

@@ -21,13 +21,15 @@ const FAMILIES: readonly SpeedFamily[] = ['bus', 'tram', 'metro', 'rail', 'ferry
 function routesNamed(feed: Feed, list: string[], option: string): Set<string> {
   const out = new Set<string>();
   for (const want of list) {
-    if (typeof want !== 'string') throw new StopspanError('bad-option', `invalid option ${option}: expected route ids`, { value: String(want) });
+    if (typeof want !== 'string')
+      throw new StopspanError('bad-option', `invalid option ${option}: expected route ids`, { value: String(want) });
     if (feed.routes.has(want)) {
       out.add(want);
       continue;
     }
     const hits = [...feed.routes.values()].filter((r) => r.shortName === want);
-    if (hits.length === 0) throw new StopspanError('bad-option', `invalid option ${option}: no route has id or short name ${want}`, { value: want });
+    if (hits.length === 0)
+      throw new StopspanError('bad-option', `invalid option ${option}: no route has id or short name ${want}`, { value: want });
     for (const r of hits) out.add(r.id);
   }
   return out;
@@ -41,7 +43,10 @@ function typeTest(list: string[]): (routeType: number) => boolean {
     const v = String(raw).trim().toLowerCase();
     if (/^\d{1,4}$/.test(v)) numbers.add(Number(v));
     else if ((FAMILIES as readonly string[]).includes(v)) families.add(v as SpeedFamily);
-    else throw new StopspanError('bad-option', `invalid option --route-types: expected GTFS route_type numbers or ${FAMILIES.join(', ')}`, { value: String(raw) });
+    else
+      throw new StopspanError('bad-option', `invalid option --route-types: expected GTFS route_type numbers or ${FAMILIES.join(', ')}`, {
+        value: String(raw),
+      });
   }
   return (t) => numbers.has(t) || families.has(speedFamily(t));
 }

@@ -84,15 +84,47 @@ function countBy(values: string[]): Map<string, number> {
 function stoppingAssumption(param: string, used: string[]): string {
   const models = new Set(used);
   const parts: string[] = [];
-  if (models.has('always')) parts.push(param === 'always' ? 'The bus is assumed to stop at every stop (as set).' : 'Where demand is assumed, the bus is assumed to stop at every stop: a chance of skipping a stop is only as good as the counts behind it.');
-  if (models.has('poisson')) parts.push('A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat).');
-  if (models.has('observed')) parts.push('Where realtime data covers a pattern, the observed share of trips stopping at each stop is used; a stop without one is served on assumed demand and follows Poisson on counted demand, as without the archive.');
+  if (models.has('always'))
+    parts.push(
+      param === 'always'
+        ? 'The bus is assumed to stop at every stop (as set).'
+        : 'Where demand is assumed, the bus is assumed to stop at every stop: a chance of skipping a stop is only as good as the counts behind it.',
+    );
+  if (models.has('poisson'))
+    parts.push(
+      'A bus stops at a stop only when someone boards or alights there: probability 1 - exp(-riders per trip), Poisson (it overstates stopping somewhat).',
+    );
+  if (models.has('observed'))
+    parts.push(
+      'Where realtime data covers a pattern, the observed share of trips stopping at each stop is used; a stop without one is served on assumed demand and follows Poisson on counted demand, as without the archive.',
+    );
   return parts.join(' ') || 'No pattern was modelled.';
 }
 
 export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOptions = {}): AuditResult {
-  const { params: rawParams, ridership, keep = [], observed, onProgress, forceTransfers = true, generatedAt = new Date().toISOString(), reportRoutes = null, stations, contextStations = [], landUse } = options;
-  const { np, params, preps, warnings, catchments } = prepareAudit(feed, patterns, { params: rawParams, ridership, keep, observed, onProgress, forceTransfers, stations, landUse });
+  const {
+    params: rawParams,
+    ridership,
+    keep = [],
+    observed,
+    onProgress,
+    forceTransfers = true,
+    generatedAt = new Date().toISOString(),
+    reportRoutes = null,
+    stations,
+    contextStations = [],
+    landUse,
+  } = options;
+  const { np, params, preps, warnings, catchments } = prepareAudit(feed, patterns, {
+    params: rawParams,
+    ridership,
+    keep,
+    observed,
+    onProgress,
+    forceTransfers,
+    stations,
+    landUse,
+  });
 
   onProgress?.({ stage: 'verdicts' });
   // what no walk weight changes, once per pattern for the base audit and the sensitivity cases
@@ -105,7 +137,11 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   const reviewGaps: ReviewGap[] = [];
   // what candidates are built with besides the walking policy: the evidence for additions (context stations, land use)
   const candidateOptions: Omit<CandidateOptions, 'maxGapM' | 'reviewGaps'> = catchments
-    ? { contextStations, peopleNear: (lat, lon) => peopleForNewStop(catchments, lat, lon), onlyStopPeople: (s) => catchments.onlyStop.get(s) ?? 0 }
+    ? {
+        contextStations,
+        peopleNear: (lat, lon) => peopleForNewStop(catchments, lat, lon),
+        onlyStopPeople: (s) => catchments.onlyStop.get(s) ?? 0,
+      }
     : { contextStations };
   const generated = buildCandidates(feed, analyses, { ...candidateOptions, maxGapM: params.max_gap_m, reviewGaps });
   // what is reported: the routes asked for; everything above was computed on the whole network
@@ -119,7 +155,13 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
   if (!joint) warnings.add('candidates-weighed-alone', `${generated.length} candidates`);
   // the cases, and robustness judged on the programme as accepted (its candidates' robust set there)
   onProgress?.({ stage: 'sensitivity' });
-  const { cases } = runSensitivity(feed, preps, params, generated, { baseAnalyses: analyses, parts, reported: shownRoute, programme: candidates, candidateOptions });
+  const { cases } = runSensitivity(feed, preps, params, generated, {
+    baseAnalyses: analyses,
+    parts,
+    reported: shownRoute,
+    programme: candidates,
+    candidateOptions,
+  });
   // what the accepted additions have at stake on each pattern, beside the optimiser's removals
   const adds = additionsAtStake(feed, patterns.date, preps, params, candidates);
   for (const a of analyses) {
@@ -132,7 +174,13 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
 
   // the optimiser's plan over the whole network, weighed jointly by the scenario engine on this preparation
   onProgress?.({ stage: 'plan' });
-  const plan = optimiserPlan(feed, patterns.date, preps, params, analyses.flatMap((a) => a.stops));
+  const plan = optimiserPlan(
+    feed,
+    patterns.date,
+    preps,
+    params,
+    analyses.flatMap((a) => a.stops),
+  );
 
   const headline = headlineOf(shown);
   const anyObservedLost = preps.some((p) => p.lostTimeSource === 'observed');
@@ -152,7 +200,12 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
 
   return {
     tool: { name: 'stopspan', version },
-    feed: { source: feed.source, contentHash: feed.contentHash, version: feed.feedInfo?.version ?? '', publisher: feed.feedInfo?.publisherName || feed.agencies[0]?.name || '' },
+    feed: {
+      source: feed.source,
+      contentHash: feed.contentHash,
+      version: feed.feedInfo?.version ?? '',
+      publisher: feed.feedInfo?.publisherName || feed.agencies[0]?.name || '',
+    },
     date: patterns.date,
     generatedAt,
     demandSource,
@@ -170,7 +223,13 @@ export function runAudit(feed: Feed, patterns: PatternSet, options: RunAuditOpti
     assumptions,
     landUse: catchments ? landUseSummary(catchments) : null,
     observed: observed
-      ? { source: observed.source, snapshotsRead: observed.snapshotsRead, snapshotsSkipped: observed.snapshotsSkipped, tripsMatched: observed.tripsMatched, tripsUnmatched: observed.tripsUnmatched }
+      ? {
+          source: observed.source,
+          snapshotsRead: observed.snapshotsRead,
+          snapshotsSkipped: observed.snapshotsSkipped,
+          tripsMatched: observed.tripsMatched,
+          tripsUnmatched: observed.tripsUnmatched,
+        }
       : null,
   };
 }
@@ -180,20 +239,16 @@ function warnShownPatterns(shown: PatternAnalysis[], warnings: WarningSink): voi
   for (const a of shown) {
     const family = speedFamily(a.result.routeType);
     if (family !== 'bus' && family !== 'tram') {
-      warnings.add(
-        'bus-model-off-street',
-        `${a.result.patternId} (${family})`,
-      );
+      warnings.add('bus-model-off-street', `${a.result.patternId} (${family})`);
     }
     for (const g of a.gaps) {
       if (g.expressStretch && a.result.optimalSpacingM > 0 && g.gapM > a.result.bandHighM) {
-        warnings.add('express-stretch', `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`, 1, { stretchM: EXPRESS_STRETCH_M });
+        warnings.add('express-stretch', `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (${Math.round(g.gapM)} m)`, 1, {
+          stretchM: EXPRESS_STRETCH_M,
+        });
       }
       if (g.coveredByLocal === null || !(a.result.optimalSpacingM > 0) || g.gapM <= a.result.bandHighM) continue;
-      warnings.add(
-        'gap-served-by-local',
-        `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`,
-      );
+      warnings.add('gap-served-by-local', `${a.result.patternId} ${g.fromStopId}-${g.toStopId} (local ${g.coveredByLocal})`);
     }
   }
 }
@@ -280,7 +335,10 @@ function auditAssumptions(
       ? `Cruise speed is estimated per pattern from the schedule: the slowest cruise that keeps to the scheduled run time given the stops served and boarding (${BOARDING_TIME_PER_PAX_S} s per boarding, Levinson 1983), or the route type's typical cruise speed (bus ${cruiseSpeedBoundsMps(3).typicalMps.toFixed(1)} m/s, 25 mph) when the schedule is slower than that, or faster than any plausible speed explains (warning schedule-too-fast); the rest of a slow schedule is taken as traffic and signal delay (traffic_delay_s in patterns.csv), not as slow cruising.`
       : `Cruise speed is ${params.cruise_speed_mps} m/s on every pattern, as set.`,
     `Lost time per stop served = door time ${params.door_time_s} s + braking and accelerating from cruise speed at ${params.decel_mps2} and ${params.accel_mps2} m/s2 + re-entry delay ${params.reentry_delay_s} s${anyObservedLost ? ' (observed from realtime data where available)' : ''}.`,
-    stoppingAssumption(params.stopping_model, preps.map((p) => p.stoppingModel)),
+    stoppingAssumption(
+      params.stopping_model,
+      preps.map((p) => p.stoppingModel),
+    ),
     `A gap that another route, or a local pattern of the same route and direction, serves as a local (it calls within ${LOCAL_NEAR_M} m of both ends, in order, with stops of its own between them, and runs at least ${LOCAL_MIN_TRIP_SHARE * 100} % as many trips) is not flagged wide and gets no proposed stop: the limited-stop service runs past those riders by design.`,
     ...(catchments
       ? [
@@ -288,9 +346,13 @@ function auditAssumptions(
         ]
       : []),
     `A stop is proposed in a wide gap only with evidence that people are there and a bus can stop there${catchments ? ' (without a land-use layer)' : ''}: a stop of any route${contextStations.length > 0 ? ' or a station of a context feed' : ''} within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of the site, in the middle of the gap rather than by its ends, on a stretch the schedule runs no faster than ${Math.round(FAST_STRETCH_MPS * 3.6)} km/h; other wide gaps are listed for review with their length and reason and no passenger-minute figure.`,
-    'Riders are spread evenly over each stop\'s catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.',
+    "Riders are spread evenly over each stop's catchment (midpoint to midpoint along the route) and walk along the route to the nearest stop; street grids, crossings and barriers are not modelled.",
     `Terminals, the keep-list${forceTransfers ? ', transfer points (where routes cross, or meet and part: fixed_note names them)' : ''} and timepoints (where a pattern marks only some stops) are never proposed for removal; no proposal opens a gap above ${params.max_gap_m} m.`,
-    ...(stations && stations.size > 0 ? [`${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`] : []),
+    ...(stations && stations.size > 0
+      ? [
+          `${stations.size} stops within ${CONTEXT_STATION_RADIUS_M} m of a station of a context feed (another mode given with --context) are transfer points and are kept (fixed_reason station, fixed_note naming it).`,
+        ]
+      : []),
     `A gap of ${EXPRESS_STRETCH_M} m or more that the schedule runs at the route type's typical cruise speed or faster (an express or commuter run no local makes), and every gap of a route typed express or coach (route_type 702, 200-299), is left out of the spacing verdicts: not flagged wide, no stop proposed (warning express-stretch).`,
     `A stop where routes run together (the stops before and after it are theirs too, within ${TRUNK_WINDOW} stops, so a limited-stop route along a local counts) is a trunk stop: its removal is one candidate, weighed over every pattern serving it, each with its own gaps and walking limit.`,
     `A stop is close, or a gap wide, only outside the band of spacings costing riders at most ${(params.band_tolerance * 100).toFixed(0)} % more than the optimum; sensitivity repeats the audit at walk weights 1.5 and 2.5 and band tolerances 5 % and 10 %, and a candidate is robust when, in the ranked list as accepted and weighed again in the same order in each case, it still saves riders time given those ranked above it (candidatesKept compares the top ${SENSITIVITY_TOP_CANDIDATES}).`,
@@ -298,7 +360,9 @@ function auditAssumptions(
     `Passenger-minutes at stake: removals (the optimiser's drops, today's cost minus its optimum) and additions (the proposed stops in wide gaps, weighed together on each pattern) are shown apart and added together; wide gaps are counted once per pair of stops, however many patterns run them, with the count per pattern beside it. Timing points where no one boards or alights are not stops for spacing: gaps, verdicts, candidates and the optimiser run past them.`,
     ...(reported === null
       ? []
-      : [`Reported: ${reported.shown} of ${reported.of} patterns (the routes asked for); every figure, transfer, trunk and local is computed on the whole network, so a route's verdicts are the same whichever routes are reported, and a candidate touching a reported route is shown with its effect on every route it touches.`]),
+      : [
+          `Reported: ${reported.shown} of ${reported.of} patterns (the routes asked for); every figure, transfer, trunk and local is computed on the whole network, so a route's verdicts are the same whichever routes are reported, and a candidate touching a reported route is shown with its effect on every route it touches.`,
+        ]),
     ...CAUTIONS,
   ];
 }

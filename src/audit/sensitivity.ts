@@ -59,7 +59,11 @@ export interface ProgrammeUnderCase {
  * robustness.test.ts checks it against the scenario engine's joint weighing of every prefix at w'.) The
  * same holds for a list weighed alone (candidates-weighed-alone): each figure is then its own net.
  */
-export function programmeUnderCases(programme: Candidate[], params: ModelParams, settings: SensitivitySetting[] = sensitivitySettings(params)): ProgrammeUnderCase[] {
+export function programmeUnderCases(
+  programme: Candidate[],
+  params: ModelParams,
+  settings: SensitivitySetting[] = sensitivitySettings(params),
+): ProgrammeUnderCase[] {
   return settings.map((s) => {
     const scale = s.walkWeight / params.walk_weight;
     const marginal = programme.map((c) => (scale === 1 ? c.netPaxMinPerDay : scale * c.walkAddedPaxMinPerDay - c.rideSavedPaxMinPerDay));
@@ -68,7 +72,11 @@ export function programmeUnderCases(programme: Candidate[], params: ModelParams,
 }
 
 /** Marks each candidate of the programme robust when its marginal net is a saving in every case; returns the cases' figures. */
-export function judgeRobust(programme: Candidate[], params: ModelParams, settings: SensitivitySetting[] = sensitivitySettings(params)): ProgrammeUnderCase[] {
+export function judgeRobust(
+  programme: Candidate[],
+  params: ModelParams,
+  settings: SensitivitySetting[] = sensitivitySettings(params),
+): ProgrammeUnderCase[] {
   const cases = programmeUnderCases(programme, params, settings);
   programme.forEach((c, i) => (c.robust = cases.every((k) => k.marginalNetPaxMinPerDay[i] < 0)));
   return cases;
@@ -100,13 +108,20 @@ export function runSensitivity(
     programme?: Candidate[];
   } = {},
 ): { cases: SensitivityCase[] } {
-  const top = baseCandidates.filter((c) => c.routeIds.some(reported)).slice(0, SENSITIVITY_TOP_CANDIDATES).map(candidateKey);
+  const top = baseCandidates
+    .filter((c) => c.routeIds.some(reported))
+    .slice(0, SENSITIVITY_TOP_CANDIDATES)
+    .map(candidateKey);
   const underCases = judgeRobust(programme, params, settings);
   const shownAt = programme.flatMap((c, i) => (c.routeIds.some(reported) ? [i] : []));
   const cases: SensitivityCase[] = [];
   settings.forEach((s, k) => {
     const isBase = baseAnalyses !== undefined && s.walkWeight === params.walk_weight && s.bandTolerance === params.band_tolerance;
-    const analyses = isBase ? baseAnalyses : preps.map((p, i) => analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }));
+    const analyses = isBase
+      ? baseAnalyses
+      : preps.map((p, i) =>
+          analysePattern(feed, p, params, { walkWeight: s.walkWeight, bandTolerance: s.bandTolerance, parts: parts[i], detail: false }),
+        );
     const cands = isBase ? baseCandidates : buildCandidates(feed, analyses, { ...candidateOptions, maxGapM: params.max_gap_m });
     const keys = new Set(cands.map(candidateKey));
     const shown = analyses.filter((a) => reported(a.result.routeId));

@@ -14,10 +14,18 @@ export interface VerdictKind {
 }
 
 export const VERDICTS: Record<Verdict, VerdictKind> = {
-  close: { letter: 'C', legend: 'close stop (below the band): triangle', meaning: 'its spacing is below the band and removing it saves riders time' },
+  close: {
+    letter: 'C',
+    legend: 'close stop (below the band): triangle',
+    meaning: 'its spacing is below the band and removing it saves riders time',
+  },
   wide: { letter: 'W', legend: 'next to a wide gap: diamond', meaning: 'its spacing is above the band' },
   ok: { letter: 'O', legend: 'within the band: open circle', meaning: 'its spacing is within the band' },
-  fixed: { letter: 'F', legend: 'fixed (terminal, timepoint, transfer point, station nearby or kept): square', meaning: 'terminal, timepoint, transfer point, station nearby or kept' },
+  fixed: {
+    letter: 'F',
+    legend: 'fixed (terminal, timepoint, transfer point, station nearby or kept): square',
+    meaning: 'terminal, timepoint, transfer point, station nearby or kept',
+  },
 };
 
 /** A stop's own verdict (stops.csv stop_verdict): what the stop is, whatever the gaps beside it are. */
@@ -25,7 +33,8 @@ export const STOP_VERDICTS: Record<StopOwnVerdict, string> = {
   close: 'its spacing is below the band and removing it saves riders time',
   ok: 'a passenger stop neither close nor fixed; the gaps beside it have verdicts of their own',
   fixed: 'terminal, timepoint, transfer point, station nearby or kept',
-  'timing-only': 'a timing point where no one boards or alights, pickup_type=1 and drop_off_type=1: no stop for spacing, its gaps are measured past it',
+  'timing-only':
+    'a timing point where no one boards or alights, pickup_type=1 and drop_off_type=1: no stop for spacing, its gaps are measured past it',
 };
 
 /** A gap's verdict (stops.csv gap_before_verdict and gap_after_verdict): the gap between two passenger stops. */

@@ -88,7 +88,12 @@ function servedToday(prep: PreparedPattern, settings: CostSettings): (ServedStop
  * The walk-weight-free parts of removing model stop m (0 < m < n-1) with both neighbours kept. `today`
  * (servedToday of the same settings) saves computing again what each stop costs as it is served now.
  */
-export function removalParts(prep: PreparedPattern, m: number, settings: CostSettings, today: (ServedStop | null)[] = servedToday(prep, settings)): ChangeParts {
+export function removalParts(
+  prep: PreparedPattern,
+  m: number,
+  settings: CostSettings,
+  today: (ServedStop | null)[] = servedToday(prep, settings),
+): ChangeParts {
   const c = prep.corridor;
   const x = c.posM;
   const n = c.n;
@@ -153,7 +158,10 @@ export function additionParts(prep: PreparedPattern, m: number, q: number, setti
 function changeEffect(parts: ChangeParts, { walkSpeedMps, walkWeight }: CostSettings, sign: 1 | -1): ChangeEffect {
   const k = walkWeight / walkSpeedMps;
   // a removal joins two stretches into one, an addition splits one into two
-  const walkAdded = sign === 1 ? k * parts.walkJoinedM - k * parts.walkSplitLeftM - k * parts.walkSplitRightM : k * parts.walkSplitLeftM + k * parts.walkSplitRightM - k * parts.walkJoinedM;
+  const walkAdded =
+    sign === 1
+      ? k * parts.walkJoinedM - k * parts.walkSplitLeftM - k * parts.walkSplitRightM
+      : k * parts.walkSplitLeftM + k * parts.walkSplitRightM - k * parts.walkJoinedM;
   return {
     netPaxMinPerDay: (walkAdded - parts.rideSavedS) * S_TO_MIN,
     walkAddedPaxMinPerDay: walkAdded * S_TO_MIN,
@@ -218,7 +226,22 @@ export function patternParts(prep: PreparedPattern, params: ModelParams, walkWei
   };
 }
 
-type StopBase = Pick<StopResult, 'patternId' | 'routeId' | 'directionId' | 'stopIndex' | 'stopId' | 'stopName' | 'stopLat' | 'stopLon' | 'distAlongM' | 'tripsPerDay' | 'demandSource' | 'timepoint' | 'offsetFromShapeM'>;
+type StopBase = Pick<
+  StopResult,
+  | 'patternId'
+  | 'routeId'
+  | 'directionId'
+  | 'stopIndex'
+  | 'stopId'
+  | 'stopName'
+  | 'stopLat'
+  | 'stopLon'
+  | 'distAlongM'
+  | 'tripsPerDay'
+  | 'demandSource'
+  | 'timepoint'
+  | 'offsetFromShapeM'
+>;
 
 /**
  * One stop's result from its pattern fields and its model figures, every field written out. (Tried as a
@@ -315,7 +338,12 @@ export function analysePattern(
   const paxMinLostPerDay = lostS > 1e-9 * Math.max(1, todayCostS) ? lostS * S_TO_MIN : 0;
   const keptSet = detail ? new Set(best.kept) : null;
   const gapVerdicts = detail ? gapVerdictsOf(prep, parts.gapsM, optimum) : [];
-  const { stops, removals, fixedStopIdx, closeStops } = stopRows(feed, prep, params, parts, settings, optimum, { walkWeight, detail, gapVerdicts, keptSet });
+  const { stops, removals, fixedStopIdx, closeStops } = stopRows(feed, prep, params, parts, settings, optimum, {
+    walkWeight,
+    detail,
+    gapVerdicts,
+    keptSet,
+  });
   const { gaps, additions, wideGaps } = gapRows(feed, prep, params, parts, settings, optimum, { detail, gapVerdicts });
   const result = patternResult(prep, parts, optimum, { best, paxMinLostPerDay, closeStops, wideGaps, costCurve });
   return { result, stops, gaps, removals, additions, fixedStopIdx, feedStopsByModelPos: parts.feedStopsByModelPos, modelPosM: prep.posM };
@@ -341,7 +369,12 @@ function patternOptimum(
   });
   const hasOptimum = opt.spacingM > 0 && Number.isFinite(opt.spacingM);
   const band = hasOptimum ? bandM(opt.spacingM, bandTolerance) : { lowM: 0, highM: Infinity };
-  const lawInput: SqrtLawInput = { walkSpeedMps: params.walk_speed_mps, walkWeight, lostTimePerStopS: opt.effectiveLostTimeS, meanTripLengthM: prep.meanTripLengthM };
+  const lawInput: SqrtLawInput = {
+    walkSpeedMps: params.walk_speed_mps,
+    walkWeight,
+    lostTimePerStopS: opt.effectiveLostTimeS,
+    meanTripLengthM: prep.meanTripLengthM,
+  };
   return { opt, hasOptimum, band, lawInput };
 }
 
@@ -368,7 +401,9 @@ function optimisedAt(prep: PreparedPattern, params: ModelParams, parts: PatternP
   const optSettings = weights.map((w) => costSettings(prep, params, { walkWeight: w, withOperatingCost: true }));
   const forced = prep.fixedReason.map((r) => r !== '');
   const bests = optimiseStopsAt(corridor, optSettings, { forced, maxGapM: params.max_gap_m });
-  weights.forEach((w, q) => parts.optimised.set(w, { best: bests[q], todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings[q]) }));
+  weights.forEach((w, q) =>
+    parts.optimised.set(w, { best: bests[q], todayCostS: servedSetCostS(corridor, [...Array(n).keys()], optSettings[q]) }),
+  );
   return parts.optimised.get(walkWeight)!;
 }
 
@@ -378,7 +413,17 @@ function gapVerdictsOf(prep: PreparedPattern, gapsM: number[], { hasOptimum, ban
   const gapVerdicts: GapVerdict[] = [];
   for (let g = 0; g + 1 < n; g++) {
     const above = hasOptimum && gapsM[g] > band.highM;
-    gapVerdicts.push(above ? (prep.expressGap[g] === true ? 'express' : prep.gapLocalCover(g) === null ? 'wide' : 'local') : hasOptimum && gapsM[g] < band.lowM ? 'short' : 'ok');
+    gapVerdicts.push(
+      above
+        ? prep.expressGap[g] === true
+          ? 'express'
+          : prep.gapLocalCover(g) === null
+            ? 'wide'
+            : 'local'
+        : hasOptimum && gapsM[g] < band.lowM
+          ? 'short'
+          : 'ok',
+    );
   }
   return gapVerdicts;
 }
@@ -410,7 +455,12 @@ function stopRows(
   parts: PatternParts,
   settings: CostSettings,
   { hasOptimum, band }: PatternOptimum,
-  { walkWeight, detail, gapVerdicts, keptSet }: { walkWeight: number; detail: boolean; gapVerdicts: GapVerdict[]; keptSet: Set<number> | null },
+  {
+    walkWeight,
+    detail,
+    gapVerdicts,
+    keptSet,
+  }: { walkWeight: number; detail: boolean; gapVerdicts: GapVerdict[]; keptSet: Set<number> | null },
 ): StopRows {
   const { pattern, corridor, demand } = prep;
   const n = prep.modelStops.length;
@@ -418,7 +468,8 @@ function stopRows(
   const stops: StopResult[] = [];
   const removals: RemovalEffect[] = [];
   // gap g (between model stops g and g+1) is wide: above the band, and no other route serves it locally
-  const wideGap = (g: number): boolean => g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
+  const wideGap = (g: number): boolean =>
+    g >= 0 && g + 1 < n && gapsM[g] > band.highM && prep.expressGap[g] !== true && prep.gapLocalCover(g) === null;
   const fixedStopIdx: number[] = [];
   let closeStops = 0;
   for (let j = 0; j < pattern.stopIdx.length; j++) {
@@ -428,7 +479,27 @@ function stopRows(
     if (m === undefined) {
       // not a passenger stop: kept for geometry only, and no reason to keep the stop on a pattern that
       // serves riders there (a timing point of one route does not fix another route's stop)
-      if (detail) stops.push(stopResult(stopBase(prep, j, stop), { gapBeforeM: null, gapAfterM: null, boardingsPerDay: 0, alightingsPerDay: 0, loadDepartingPerDay: 0, stopProbability: 0, localOptimalSpacingM: null, verdict: 'fixed', stopVerdict: 'timing-only', gapBeforeVerdict: null, gapAfterVerdict: null, fixedReason: '', fixedNote: '', keptByOptimiser: true, removalNetPaxMinPerDay: null, removalRunTimeSavedS: null }));
+      if (detail)
+        stops.push(
+          stopResult(stopBase(prep, j, stop), {
+            gapBeforeM: null,
+            gapAfterM: null,
+            boardingsPerDay: 0,
+            alightingsPerDay: 0,
+            loadDepartingPerDay: 0,
+            stopProbability: 0,
+            localOptimalSpacingM: null,
+            verdict: 'fixed',
+            stopVerdict: 'timing-only',
+            gapBeforeVerdict: null,
+            gapAfterVerdict: null,
+            fixedReason: '',
+            fixedNote: '',
+            keptByOptimiser: true,
+            removalNetPaxMinPerDay: null,
+            removalRunTimeSavedS: null,
+          }),
+        );
       continue;
     }
     const gapBeforeM = m > 0 ? gapsM[m - 1] : null;
@@ -436,7 +507,14 @@ function stopRows(
     const ends = corridor.boardPerDay[m] + corridor.alightPerDay[m];
     const prob = parts.probability[m];
     const catchmentM = ((gapBeforeM ?? 0) + (gapAfterM ?? 0)) / 2;
-    const local = detail && catchmentM > 0 ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, { walkSpeedMps: params.walk_speed_mps, lostTimePerStopS: prep.lostTimePerStopS * prob, walkWeight }) : null;
+    const local =
+      detail && catchmentM > 0
+        ? localOptimalSpacingM(demand.loadDepartingPerDay[m], ends / catchmentM, {
+            walkSpeedMps: params.walk_speed_mps,
+            lostTimePerStopS: prep.lostTimePerStopS * prob,
+            walkWeight,
+          })
+        : null;
     const reason = prep.fixedReason[m];
     let verdict: Verdict = 'ok';
     let removal: ChangeEffect | null = null;
@@ -450,28 +528,40 @@ function stopRows(
       // uses the pattern's average demand, the removal figure this stop's own riders and neighbours
       if (hasOptimum && spacing < band.lowM && removal.netPaxMinPerDay < 0) verdict = 'close';
       else if (hasOptimum && spacing > band.highM && (wideGap(m - 1) || wideGap(m))) verdict = 'wide';
-      removals.push({ netPaxMinPerDay: removal.netPaxMinPerDay, walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay, runTimeSavedPerTripS: removal.runTimeSavedPerTripS, ridersAffectedPerDay: removal.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, stopIdx, modelPos: m, gapAfterRemovalM: gapBeforeM! + gapAfterM! });
+      removals.push({
+        netPaxMinPerDay: removal.netPaxMinPerDay,
+        walkAddedPaxMinPerDay: removal.walkAddedPaxMinPerDay,
+        rideSavedPaxMinPerDay: removal.rideSavedPaxMinPerDay,
+        runTimeSavedPerTripS: removal.runTimeSavedPerTripS,
+        ridersAffectedPerDay: removal.ridersAffectedPerDay,
+        patternId: pattern.id,
+        routeId: pattern.routeId,
+        tripsPerDay: pattern.tripsPerDay,
+        stopIdx,
+        modelPos: m,
+        gapAfterRemovalM: gapBeforeM! + gapAfterM!,
+      });
     }
     if (verdict === 'close') closeStops++;
     if (!detail) continue;
     stops.push(
       stopResult(stopBase(prep, j, stop), {
-      gapBeforeM,
-      gapAfterM,
-      boardingsPerDay: corridor.boardPerDay[m],
-      alightingsPerDay: corridor.alightPerDay[m],
-      loadDepartingPerDay: demand.loadDepartingPerDay[m],
-      stopProbability: prob,
-      localOptimalSpacingM: local,
-      verdict,
-      stopVerdict: verdict === 'wide' ? 'ok' : verdict,
-      gapBeforeVerdict: m > 0 ? gapVerdicts[m - 1] : null,
-      gapAfterVerdict: m + 1 < n ? gapVerdicts[m] : null,
-      fixedReason: reason,
-      fixedNote: prep.fixedNote[m],
-      keptByOptimiser: keptSet !== null && keptSet.has(m),
-      removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
-      removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,
+        gapBeforeM,
+        gapAfterM,
+        boardingsPerDay: corridor.boardPerDay[m],
+        alightingsPerDay: corridor.alightPerDay[m],
+        loadDepartingPerDay: demand.loadDepartingPerDay[m],
+        stopProbability: prob,
+        localOptimalSpacingM: local,
+        verdict,
+        stopVerdict: verdict === 'wide' ? 'ok' : verdict,
+        gapBeforeVerdict: m > 0 ? gapVerdicts[m - 1] : null,
+        gapAfterVerdict: m + 1 < n ? gapVerdicts[m] : null,
+        fixedReason: reason,
+        fixedNote: prep.fixedNote[m],
+        keptByOptimiser: keptSet !== null && keptSet.has(m),
+        removalNetPaxMinPerDay: removal ? removal.netPaxMinPerDay : null,
+        removalRunTimeSavedS: removal ? removal.runTimeSavedPerTripS : null,
       }),
     );
   }
@@ -522,7 +612,22 @@ function gapRows(
       lat = from && to ? (from.lat + to.lat) / 2 : null;
       lon = from && to ? (from.lon + to.lon) / 2 : null;
       const scheduledS = scheduledGapS(prep, m);
-      additions.push({ scheduledS, netPaxMinPerDay: add.netPaxMinPerDay, walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay, rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay, runTimeSavedPerTripS: add.runTimeSavedPerTripS, ridersAffectedPerDay: add.ridersAffectedPerDay, patternId: pattern.id, routeId: pattern.routeId, tripsPerDay: pattern.tripsPerDay, fromStopIdx: feedStopsByModelPos[m], toStopIdx: feedStopsByModelPos[m + 1], lat: lat ?? NaN, lon: lon ?? NaN, gapM });
+      additions.push({
+        scheduledS,
+        netPaxMinPerDay: add.netPaxMinPerDay,
+        walkAddedPaxMinPerDay: add.walkAddedPaxMinPerDay,
+        rideSavedPaxMinPerDay: add.rideSavedPaxMinPerDay,
+        runTimeSavedPerTripS: add.runTimeSavedPerTripS,
+        ridersAffectedPerDay: add.ridersAffectedPerDay,
+        patternId: pattern.id,
+        routeId: pattern.routeId,
+        tripsPerDay: pattern.tripsPerDay,
+        fromStopIdx: feedStopsByModelPos[m],
+        toStopIdx: feedStopsByModelPos[m + 1],
+        lat: lat ?? NaN,
+        lon: lon ?? NaN,
+        gapM,
+      });
     }
     if (!detail) continue;
     gaps.push({
@@ -549,7 +654,13 @@ function patternResult(
   prep: PreparedPattern,
   parts: PatternParts,
   { opt, hasOptimum, band, lawInput }: PatternOptimum,
-  { best, paxMinLostPerDay, closeStops, wideGaps, costCurve }: { best: OptimiseResult; paxMinLostPerDay: number; closeStops: number; wideGaps: number; costCurve: CostCurvePoint[] },
+  {
+    best,
+    paxMinLostPerDay,
+    closeStops,
+    wideGaps,
+    costCurve,
+  }: { best: OptimiseResult; paxMinLostPerDay: number; closeStops: number; wideGaps: number; costCurve: CostCurvePoint[] },
 ): PatternResult {
   const { pattern, posM, demand } = prep;
   const n = prep.modelStops.length;

@@ -84,7 +84,11 @@ export interface CheckOptions {
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
 export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOptions = {}): CheckReport {
   const { today = new Date().toISOString().slice(0, 10), thresholds: thresholdOptions, maxExamples = 5, severities = {} } = options;
-  const analysis: AnalysisDay = options.analysis ?? (patterns.date ? { date: patterns.date, basis: 'asked', because: 'the date the patterns were built for' } : { date: null, basis: 'none', because: 'no analysis date' });
+  const analysis: AnalysisDay =
+    options.analysis ??
+    (patterns.date
+      ? { date: patterns.date, basis: 'asked', because: 'the date the patterns were built for' }
+      : { date: null, basis: 'none', because: 'no analysis date' });
   if (!/^\d{4}-\d{2}-\d{2}$/.test(today) || Number.isNaN(Date.parse(today + 'T00:00:00Z'))) {
     throw new StopspanError('bad-option', `invalid option today: expected YYYY-MM-DD, got ${today}`, { value: today });
   }
@@ -112,7 +116,11 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
 
   if (patterns.patterns.length === 0) {
     // a check that looked at no pattern has checked nothing: say so at error severity
-    add('no-service', { file: 'calendar.txt', ids: analysis.date ? { date: analysis.date } : {}, detail: analysis.date ? `no trip with stop_times runs on ${analysis.date} (${analysis.because})` : analysis.because });
+    add('no-service', {
+      file: 'calendar.txt',
+      ids: analysis.date ? { date: analysis.date } : {},
+      detail: analysis.date ? `no trip with stop_times runs on ${analysis.date} (${analysis.because})` : analysis.because,
+    });
   }
   checkPatternGeometry(feed, patterns, t, add);
   checkTrips(feed, add);
@@ -134,7 +142,9 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     bySeverity[severity]++;
     findings.push({ code, title: kind.title, severity, explanation: kind.explanation, count, examples });
   }
-  findings.sort((a, b) => SEVERITY_RANK[b.severity] - SEVERITY_RANK[a.severity] || FINDING_CODES.indexOf(a.code) - FINDING_CODES.indexOf(b.code));
+  findings.sort(
+    (a, b) => SEVERITY_RANK[b.severity] - SEVERITY_RANK[a.severity] || FINDING_CODES.indexOf(a.code) - FINDING_CODES.indexOf(b.code),
+  );
 
   return {
     feed: {
@@ -160,13 +170,23 @@ function contextFigures(feed: Feed, context: NonNullable<CheckOptions['context']
     .map(([i, station]) => ({ stopId: feed.stops[i]?.id ?? '', stopName: feed.stops[i]?.name ?? '', station }))
     .sort((a, b) => a.stopId.localeCompare(b.stopId))
     .slice(0, maxExamples);
-  return { feeds: context.feeds.map((f) => ({ label: f.label, stations: f.stations, servicesOnDate: f.servicesOnDate })), stopsNearStations: context.near.size, examples };
+  return {
+    feeds: context.feeds.map((f) => ({ label: f.label, stations: f.stations, servicesOnDate: f.servicesOnDate })),
+    stopsNearStations: context.near.size,
+    examples,
+  };
 }
 
 function networkFigures(set: PatternSet): CheckReport['network'] {
   let trips = 0;
   for (const p of set.patterns) trips += p.tripsPerDay;
-  return { date: set.date, patterns: set.patterns.length, stopsServed: passengerStopsServed(set), tripsPerDay: trips, medianGapM: medianGapM(set) };
+  return {
+    date: set.date,
+    patterns: set.patterns.length,
+    stopsServed: passengerStopsServed(set),
+    tripsPerDay: trips,
+    medianGapM: medianGapM(set),
+  };
 }
 
 type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
@@ -504,7 +524,12 @@ function checkReferences(feed: Feed, add: Add): void {
     const m = /^([^:\s]+\.txt)(?::(\d+))?/.exec(where);
     add(
       'dangling-reference',
-      { file: m?.[1] ?? '', line: m?.[2] ? Number(m[2]) : undefined, ids: { warning: w.code }, detail: `${w.message} (${w.count}x${where ? ', e.g. ' + where : ''})` },
+      {
+        file: m?.[1] ?? '',
+        line: m?.[2] ? Number(m[2]) : undefined,
+        ids: { warning: w.code },
+        detail: `${w.message} (${w.count}x${where ? ', e.g. ' + where : ''})`,
+      },
       w.count,
     );
   }

@@ -58,7 +58,8 @@ export const FINDINGS: Record<FindingCode, FindingKind> = {
   },
   'implausible-speed': {
     title: 'Implausible scheduled speed',
-    explanation: "The scheduled speed between timed stops is faster or slower than the route type allows, or a pattern's whole run time is shorter than any plausible cruise speed explains once the bus stops and riders board.",
+    explanation:
+      "The scheduled speed between timed stops is faster or slower than the route type allows, or a pattern's whole run time is shorter than any plausible cruise speed explains once the bus stops and riders board.",
     severity: 'warning',
   },
   'coordinate-fault': {
@@ -68,7 +69,8 @@ export const FINDINGS: Record<FindingCode, FindingKind> = {
   },
   'service-ending-soon': {
     title: 'Service ending soon',
-    explanation: "The feed's last day of service is less than the required number of days after the run date (GTFS best practice: at least 7, ideally 30).",
+    explanation:
+      "The feed's last day of service is less than the required number of days after the run date (GTFS best practice: at least 7, ideally 30).",
     severity: 'error',
   },
   'service-ended': {
@@ -169,9 +171,13 @@ export function normaliseThresholds(options: ThresholdOptions = {}): CheckThresh
   out.serviceMinDays = num('serviceMinDays', options.serviceMinDays, 0) ?? out.serviceMinDays;
   for (const [fam, lim] of Object.entries(options.speedKmh ?? {})) {
     if (!(fam in out.speedKmh)) {
-      throw new StopspanError('bad-option', `invalid option speedKmh: expected one of ${Object.keys(out.speedKmh).join(', ')}, got ${fam}`, {
-        value: fam,
-      });
+      throw new StopspanError(
+        'bad-option',
+        `invalid option speedKmh: expected one of ${Object.keys(out.speedKmh).join(', ')}, got ${fam}`,
+        {
+          value: fam,
+        },
+      );
     }
     const f = fam as SpeedFamily;
     const minKmh = num(`speedKmh.${f}.minKmh`, lim?.minKmh, 0) ?? out.speedKmh[f].minKmh;

@@ -9,10 +9,4 @@ import { registerWhatif } from './whatif.js';
 
 export type RegisterCommand = (program: Command) => void;
 
-export const commands: RegisterCommand[] = [
-  registerAudit,
-  registerCheck,
-  registerCompare,
-  registerHistory,
-  registerWhatif,
-];
+export const commands: RegisterCommand[] = [registerAudit, registerCheck, registerCompare, registerHistory, registerWhatif];

@@ -35,4 +35,5 @@ export function interruptBudgetGiven(execArgv: readonly string[], nodeOptions: s
 }
 
 if (!interruptBudgetGiven(process.execArgv, process.env.NODE_OPTIONS)) setFlagsFromString(`--interrupt-budget=${CLI_INTERRUPT_BUDGET}`);
-if (!engineFlagGiven('heap-growing-percent', process.execArgv, process.env.NODE_OPTIONS)) setFlagsFromString(`--heap-growing-percent=${CLI_HEAP_GROWING_PERCENT}`);
+if (!engineFlagGiven('heap-growing-percent', process.execArgv, process.env.NODE_OPTIONS))
+  setFlagsFromString(`--heap-growing-percent=${CLI_HEAP_GROWING_PERCENT}`);

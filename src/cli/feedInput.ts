@@ -23,12 +23,19 @@ export interface LoadedFeed {
  * audit keeps them: the patterns, the date and its reason are the same, and the rest of the feed's trips
  * are neither held nor checked (a feed with no such date is read whole, as without it).
  */
-export async function loadFeed(source: string, options: { date?: string; today?: string; onProgress?: OnProgress; dayOnly?: boolean } = {}): Promise<LoadedFeed> {
+export async function loadFeed(
+  source: string,
+  options: { date?: string; today?: string; onProgress?: OnProgress; dayOnly?: boolean } = {},
+): Promise<LoadedFeed> {
   const { date: asked, today, onProgress, dayOnly = false } = options;
   if (asked !== undefined) isoToGtfsDate(asked, '--date');
   if (today !== undefined) isoToGtfsDate(today, '--today');
   // loaded here, not with the module: the commands that import this one register at every start-up
-  const [{ readFeed }, { buildPatterns }, { tripRunsPerDay }] = await Promise.all([import('../gtfs/readFeed.js'), import('../network/buildPatterns.js'), import('../gtfs/frequencies.js')]);
+  const [{ readFeed }, { buildPatterns }, { tripRunsPerDay }] = await Promise.all([
+    import('../gtfs/readFeed.js'),
+    import('../network/buildPatterns.js'),
+    import('../gtfs/frequencies.js'),
+  ]);
   if (dayOnly && today === undefined) {
     // the reader picks the date by the same rule (the busiest Monday-Friday date, or the one asked for)
     // and keeps that day's trips only: a whole city's other days are a hundred megabytes held for nothing
@@ -42,7 +49,8 @@ export async function loadFeed(source: string, options: { date?: string; today?:
       // the kept trips run on the date, so it stays the busiest of its weekdays: the same date and reason
       const runs = tripRunsPerDay(day.frequencies);
       const runsPerService = new Map<string, number>();
-      for (const t of day.trips.values()) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
+      for (const t of day.trips.values())
+        runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
       const analysis = chooseAnalysisDate(day, runsPerService, { date: asked });
       if (analysis.date === day.date) {
         try {
@@ -58,7 +66,8 @@ export async function loadFeed(source: string, options: { date?: string; today?:
   // trip runs per service, frequencies expanded: the count the audit's default date uses too
   const runs = tripRunsPerDay(feed.frequencies);
   const runsPerService = new Map<string, number>();
-  for (const t of feed.trips.values()) runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
+  for (const t of feed.trips.values())
+    runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
   const analysis = chooseAnalysisDate(feed, runsPerService, { date: asked, today });
   const date = analysis.date;
   const empty: PatternSet = { date: date ?? '', patterns: [], routesAtStop: new Map() };

@@ -28,33 +28,40 @@ export function registerHistory(program: Command): void {
     .option('--json', 'print the runs as JSON on stdout')
     .option('--out <dir>', 'also write history.html into this folder')
     .option('--command <name>', 'only runs of this command (check, audit)')
-    .option('--feed <name>', "only runs of this feed: its publisher (feed_info.txt), or its source when it names none")
+    .option('--feed <name>', 'only runs of this feed: its publisher (feed_info.txt), or its source when it names none')
     .option('--limit <n>', 'only the newest n runs')
     .option('--force', 'replace the output folder if it holds a previous output of stopspan')
     .option('-q, --quiet', 'say nothing on stderr')
     .option('--verbose', 'stack traces for internal errors')
     .action((file: string, o: HistoryCliOptions) =>
-      runAction(o.verbose === true, async () => {
-        const limit = numberOption('--limit', o.limit, 1);
-        if (!existsSync(file)) throw new StopspanError('history-db', 'no such history database', { file });
-        const { checkOutFolder, writeFolder } = await import('../report/writeFolder.js');
-        const outOptions = { force: o.force === true, inputs: [file] };
-        if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
-        const { openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
-        const [{ historyHtml }, { historyText }] = await Promise.all([import('../report/historyHtml.js'), import('../report/historyText.js')]);
-        const db = openHistory(file, { readOnly: true }); // reading changes nothing in the file
-        let rows;
-        try {
-          rows = readHistory(db, { command: o.command, feed: o.feed, limit: limit === undefined ? undefined : Math.floor(limit) });
-        } finally {
-          db.close();
-        }
-        if (o.out) {
-          const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
-          if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
-        }
-        process.stdout.write(o.json ? JSON.stringify(historyDocument(rows), null, 2) + '\n' : historyText(rows));
-        return EXIT.clean;
-      }, { json: o.json === true }),
+      runAction(
+        o.verbose === true,
+        async () => {
+          const limit = numberOption('--limit', o.limit, 1);
+          if (!existsSync(file)) throw new StopspanError('history-db', 'no such history database', { file });
+          const { checkOutFolder, writeFolder } = await import('../report/writeFolder.js');
+          const outOptions = { force: o.force === true, inputs: [file] };
+          if (o.out) await checkOutFolder(o.out, outOptions); // before the database is read
+          const { openHistory, readHistory } = await import('../history/index.js'); // the SQLite binding loads only for this command
+          const [{ historyHtml }, { historyText }] = await Promise.all([
+            import('../report/historyHtml.js'),
+            import('../report/historyText.js'),
+          ]);
+          const db = openHistory(file, { readOnly: true }); // reading changes nothing in the file
+          let rows;
+          try {
+            rows = readHistory(db, { command: o.command, feed: o.feed, limit: limit === undefined ? undefined : Math.floor(limit) });
+          } finally {
+            db.close();
+          }
+          if (o.out) {
+            const written = await writeFolder(o.out, [['history.html', () => historyHtml(rows)]], outOptions);
+            if (!o.quiet) process.stderr.write(`wrote ${terminalText(written.join(', '))}\n`);
+          }
+          process.stdout.write(o.json ? JSON.stringify(historyDocument(rows), null, 2) + '\n' : historyText(rows));
+          return EXIT.clean;
+        },
+        { json: o.json === true },
+      ),
     );
 }

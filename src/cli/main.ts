@@ -32,7 +32,7 @@ function onSignal(signal: keyof typeof SIGNAL_EXIT): void {
 }
 let handling = false;
 watchInterruptUndo((count) => {
-  if ((count > 0) === handling) return;
+  if (count > 0 === handling) return;
   handling = count > 0;
   for (const signal of Object.keys(SIGNAL_EXIT) as (keyof typeof SIGNAL_EXIT)[]) {
     if (handling) process.on(signal, onSignal);

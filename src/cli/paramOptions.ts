@@ -11,7 +11,12 @@ const OPTIONS: { flag: string; key: string; help: string; numeric: boolean }[] =
   { flag: '--cruise-speed <m/s>', key: 'cruise_speed_mps', help: 'bus cruise speed, m/s (default: estimated per pattern)', numeric: true },
   { flag: '--band-tolerance <e>', key: 'band_tolerance', help: 'cost tolerance of the near-optimal band (0.05 = 5 %)', numeric: true },
   { flag: '--max-gap <m>', key: 'max_gap_m', help: 'largest gap between stops the walking policy allows, m', numeric: true },
-  { flag: '--stopping-model <name>', key: 'stopping_model', help: 'auto (default: observed, else poisson with a ridership file, else always), always, poisson or observed', numeric: false },
+  {
+    flag: '--stopping-model <name>',
+    key: 'stopping_model',
+    help: 'auto (default: observed, else poisson with a ridership file, else always), always, poisson or observed',
+    numeric: false,
+  },
 ];
 
 export function addParamOptions(cmd: Command): void {
@@ -22,7 +27,10 @@ export function addParamOptions(cmd: Command): void {
 export function paramOverrides(opts: Record<string, unknown>): Record<string, unknown> {
   const out: Record<string, unknown> = {};
   for (const o of OPTIONS) {
-    const attr = o.flag.replace(/^--/, '').replace(/ .*$/, '').replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
+    const attr = o.flag
+      .replace(/^--/, '')
+      .replace(/ .*$/, '')
+      .replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
     const v = opts[attr];
     if (v === undefined) continue;
     out[o.key] = o.numeric && typeof v === 'string' ? (parseDecimal(v) ?? v) : v;

@@ -76,5 +76,10 @@ export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefin
 
 /** Parses a comma-separated list option. */
 export function listOption(value: string, previous: string[] = []): string[] {
-  return previous.concat(value.split(',').map((s) => s.trim()).filter(Boolean));
+  return previous.concat(
+    value
+      .split(',')
+      .map((s) => s.trim())
+      .filter(Boolean),
+  );
 }

@@ -7,7 +7,15 @@ import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { buildPatterns } from '../network/buildPatterns.js';
 import { contextStops } from '../audit/contextStations.js';
-import { evaluateScenario, loadScenarioFile, parseScenario, scenarioFromOptions, type ScenarioInput, type ScenarioResult, type StopFilter } from '../whatif/whatif.js';
+import {
+  evaluateScenario,
+  loadScenarioFile,
+  parseScenario,
+  scenarioFromOptions,
+  type ScenarioInput,
+  type ScenarioResult,
+  type StopFilter,
+} from '../whatif/whatif.js';
 import { snakeKeys } from '../common/snakeKeys.js';
 import { StopspanError } from '../common/errors.js';
 import type { Feed } from '../gtfs/types.js';
@@ -48,7 +56,16 @@ export interface WhatifOpts {
 }
 
 /** The scenario from a file and the command-line options together, checked as one. */
-export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: string[]; scenario?: string; route?: string[]; direction?: string; headsign?: string; bothDirections?: boolean }): ScenarioInput {
+export function scenarioOf(opts: {
+  remove?: string[];
+  add?: string[];
+  move?: string[];
+  scenario?: string;
+  route?: string[];
+  direction?: string;
+  headsign?: string;
+  bothDirections?: boolean;
+}): ScenarioInput {
   const fromFile: ScenarioInput = opts.scenario ? loadScenarioFile(opts.scenario) : {};
   const given = Boolean(opts.remove?.length || opts.add?.length || opts.move?.length);
   if (!opts.scenario && !given) {
@@ -61,7 +78,10 @@ export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: str
     ...(opts.bothDirections ? { both_directions: true } : {}),
   };
   if (Object.keys(filter).length && !opts.remove?.length && !opts.move?.length) {
-    throw new StopspanError('bad-option', '--route, --direction, --headsign and --both-directions choose the stops of --remove or --move; give one of those');
+    throw new StopspanError(
+      'bad-option',
+      '--route, --direction, --headsign and --both-directions choose the stops of --remove or --move; give one of those',
+    );
   }
   const fromOpts: ScenarioInput = given ? scenarioFromOptions({ remove: opts.remove, add: opts.add, move: opts.move, filter }) : {};
   const merged: Record<string, unknown[]> = {};
@@ -73,7 +93,8 @@ export function scenarioOf(opts: { remove?: string[]; add?: string[]; move?: str
 }
 
 function directionOption(v: string): number {
-  if (v.trim() !== '0' && v.trim() !== '1') throw new StopspanError('bad-option', 'invalid option --direction: expected direction_id 0 or 1', { value: v });
+  if (v.trim() !== '0' && v.trim() !== '1')
+    throw new StopspanError('bad-option', 'invalid option --direction: expected direction_id 0 or 1', { value: v });
   return Number(v.trim());
 }
 
@@ -102,57 +123,86 @@ export function whatifDocument(feed: Feed, scenario: ScenarioInput, result: Scen
 
 /** Runs the command: the action registered by registerWhatif. */
 export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void> {
-  await runAction(Boolean(opts.verbose), async () => {
-    const scenario = scenarioOf(opts);
-    const units = checkUnits(opts.units ?? 'metric');
-    if (opts.date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(opts.date)) {
-      throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
-    }
-    const params = loadParams(opts.params, paramOverrides(opts));
-    const outOptions = { force: Boolean(opts.force), inputs: [feedArg, opts.scenario, opts.ridership, opts.landUse, opts.observed, opts.params, ...(opts.context ?? [])] };
-    if (opts.landUseWeights !== undefined && opts.landUse === undefined) throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: opts.landUseWeights });
-    const landUseColumns = opts.landUseWeights !== undefined ? parseLandUseWeights(opts.landUseWeights) : null;
-    if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
-    const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
-    let feed: Feed;
-    let patterns: PatternSet;
-    let result: ScenarioResult;
-    try {
-      // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
-      const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
-      landUseRead?.catch(() => undefined); // a failure surfaces at the await below
-      feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
-      patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
-      if (patterns.patterns.length === 0) {
-        throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
+  await runAction(
+    Boolean(opts.verbose),
+    async () => {
+      const scenario = scenarioOf(opts);
+      const units = checkUnits(opts.units ?? 'metric');
+      if (opts.date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(opts.date)) {
+        throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
       }
-      // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
-      const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
-      const observed = opts.observed ? await (await import('../realtime/calibrate.js')).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress }) : undefined;
-      const landUse = await landUseRead;
-      progress.onProgress?.({ stage: 'weighing the scenario' });
-      result = evaluateScenario(feed, patterns, scenario, { params, ridership: opts.ridership, observed, stations, landUse, onProgress: progress.onProgress });
-    } finally {
-      progress.done();
-    }
-    const doc = whatifDocument(feed, scenario, result);
-    let written: string[] = [];
-    if (opts.out) {
-      // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
-      const { whatifStrips } = await import('../report/whatifStrips.js');
-      const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
-      written = await writeFolder(
-        opts.out,
-        [
-          ['index.html', html],
-          ['result.json', JSON.stringify(doc, null, 2) + '\n'],
-          ['scenario.json', JSON.stringify(scenario, null, 2) + '\n'],
-        ],
-        outOptions,
+      const params = loadParams(opts.params, paramOverrides(opts));
+      const outOptions = {
+        force: Boolean(opts.force),
+        inputs: [feedArg, opts.scenario, opts.ridership, opts.landUse, opts.observed, opts.params, ...(opts.context ?? [])],
+      };
+      if (opts.landUseWeights !== undefined && opts.landUse === undefined)
+        throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: opts.landUseWeights });
+      const landUseColumns = opts.landUseWeights !== undefined ? parseLandUseWeights(opts.landUseWeights) : null;
+      if (opts.out) await checkOutFolder(opts.out, outOptions); // before the feed is read
+      const progress = makeProgress(Boolean(opts.quiet) || Boolean(opts.json));
+      let feed: Feed;
+      let patterns: PatternSet;
+      let result: ScenarioResult;
+      try {
+        // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
+        const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
+        landUseRead?.catch(() => undefined); // a failure surfaces at the await below
+        feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
+        patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
+        if (patterns.patterns.length === 0) {
+          throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
+        }
+        // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
+        const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
+        const observed = opts.observed
+          ? await (
+              await import('../realtime/calibrate.js')
+            ).observeArchive(opts.observed, feed, patterns, { onProgress: progress.onProgress })
+          : undefined;
+        const landUse = await landUseRead;
+        progress.onProgress?.({ stage: 'weighing the scenario' });
+        result = evaluateScenario(feed, patterns, scenario, {
+          params,
+          ridership: opts.ridership,
+          observed,
+          stations,
+          landUse,
+          onProgress: progress.onProgress,
+        });
+      } finally {
+        progress.done();
+      }
+      const doc = whatifDocument(feed, scenario, result);
+      let written: string[] = [];
+      if (opts.out) {
+        // loaded here, not at start-up: it pulls in @turf/turf, about 0.27 s of CPU on every CLI run (bench)
+        const { whatifStrips } = await import('../report/whatifStrips.js');
+        const html = whatifHtml(result, whatifStrips(feed, patterns, scenario, result), { feedSource: feed.source, units });
+        written = await writeFolder(
+          opts.out,
+          [
+            ['index.html', html],
+            ['result.json', JSON.stringify(doc, null, 2) + '\n'],
+            ['scenario.json', JSON.stringify(scenario, null, 2) + '\n'],
+          ],
+          outOptions,
+        );
+      }
+      process.stdout.write(
+        opts.json
+          ? JSON.stringify(doc) + '\n'
+          : whatifText(result, {
+              feedSource: feed.source,
+              labels: labelsOf(feed, patterns, result),
+              routeNames: new Map([...feed.routes].map(([id, r]) => [id, r.shortName || id])),
+              units,
+            }),
       );
-    }
-    process.stdout.write(opts.json ? JSON.stringify(doc) + '\n' : whatifText(result, { feedSource: feed.source, labels: labelsOf(feed, patterns, result), routeNames: new Map([...feed.routes].map(([id, r]) => [id, r.shortName || id])), units }));
-    if (written.length && !opts.quiet && !opts.json) process.stderr.write(`wrote ${written.length} files to ${terminalText(String(opts.out))}\n`);
-    return EXIT.clean;
-  }, { json: Boolean(opts.json) });
+      if (written.length && !opts.quiet && !opts.json)
+        process.stderr.write(`wrote ${written.length} files to ${terminalText(String(opts.out))}\n`);
+      return EXIT.clean;
+    },
+    { json: Boolean(opts.json) },
+  );
 }

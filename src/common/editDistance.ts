@@ -22,7 +22,11 @@ export function editDistance(a: string, b: string, max: number): number {
  * The names in `names` nearest to `wanted` (compared as `key` makes them, e.g. lower case), closest first,
  * at most `limit`, none further than `max` edits.
  */
-export function nearestNames(wanted: string, names: Iterable<string>, { max, limit, key = (s: string) => s }: { max: number; limit: number; key?: (s: string) => string }): string[] {
+export function nearestNames(
+  wanted: string,
+  names: Iterable<string>,
+  { max, limit, key = (s: string) => s }: { max: number; limit: number; key?: (s: string) => string },
+): string[] {
   const w = key(wanted);
   const scored: [string, number][] = [];
   for (const n of new Set(names)) {

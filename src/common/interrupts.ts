@@ -56,7 +56,12 @@ export function pidAlive(pid: number): boolean {
  * matches (the run's pid in capture group pidGroup), that run no longer alive, and holding nothing but
  * plain files that fileOk accepts. Never throws: a parent or folder it cannot read gives nothing.
  */
-export async function staleRunFolders(parent: string, nameRe: RegExp, pidGroup: number, fileOk: (name: string) => boolean = () => true): Promise<{ path: string; match: RegExpExecArray }[]> {
+export async function staleRunFolders(
+  parent: string,
+  nameRe: RegExp,
+  pidGroup: number,
+  fileOk: (name: string) => boolean = () => true,
+): Promise<{ path: string; match: RegExpExecArray }[]> {
   const out: { path: string; match: RegExpExecArray }[] = [];
   let entries;
   try {

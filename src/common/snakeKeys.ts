@@ -4,7 +4,10 @@
 
 /** The key in snake_case. */
 export function snakeKey(key: string): string {
-  return key.replace(/([a-z0-9])([A-Z])/g, '$1_$2').replace(/([A-Z])([A-Z][a-z])/g, '$1_$2').toLowerCase();
+  return key
+    .replace(/([a-z0-9])([A-Z])/g, '$1_$2')
+    .replace(/([A-Z])([A-Z][a-z])/g, '$1_$2')
+    .toLowerCase();
 }
 
 /** A deep copy of a JSON-like value with every object key in snake_case. */

@@ -157,7 +157,13 @@ export interface CompareOptions {
   stationStops?: { old: ReadonlyMap<number, string>; new: ReadonlyMap<number, string> };
 }
 
-export function compareFeeds(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, options: CompareOptions = {}): Comparison {
+export function compareFeeds(
+  oldFeed: Feed,
+  newFeed: Feed,
+  oldPatterns: PatternSet,
+  newPatterns: PatternSet,
+  options: CompareOptions = {},
+): Comparison {
   const { moveThresholdM = 10, audits, minSharedShare = 0.5, listCap = 10, stationStops } = options;
   if (!(typeof moveThresholdM === 'number' && moveThresholdM >= 0 && Number.isFinite(moveThresholdM))) {
     throw new StopspanError('bad-option', `invalid option moveThresholdM: expected a number >= 0, got ${moveThresholdM}`, {
@@ -204,8 +210,15 @@ function compareCoverage(before: LandUseSummary | null, after: LandUseSummary | 
 }
 
 /** Stops near a context station in one version and not in the other, by stop_id, sorted by stop_id. */
-function compareStationLinks(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternSet, newPatterns: PatternSet, near: { old: ReadonlyMap<number, string>; new: ReadonlyMap<number, string> }): { lost: StationLink[]; gained: StationLink[] } {
-  const byId = (feed: Feed, m: ReadonlyMap<number, string>) => new Map([...m].map(([i, note]) => [feed.stops[i]?.id ?? '', { note, name: feed.stops[i]?.name ?? '' }]));
+function compareStationLinks(
+  oldFeed: Feed,
+  newFeed: Feed,
+  oldPatterns: PatternSet,
+  newPatterns: PatternSet,
+  near: { old: ReadonlyMap<number, string>; new: ReadonlyMap<number, string> },
+): { lost: StationLink[]; gained: StationLink[] } {
+  const byId = (feed: Feed, m: ReadonlyMap<number, string>) =>
+    new Map([...m].map(([i, note]) => [feed.stops[i]?.id ?? '', { note, name: feed.stops[i]?.name ?? '' }]));
   const served = (feed: Feed, ps: PatternSet) => new Set(ps.patterns.flatMap((p) => [...p.stopIdx].map((i) => feed.stops[i]?.id ?? '')));
   const oldNear = byId(oldFeed, near.old);
   const newNear = byId(newFeed, near.new);
@@ -214,7 +227,12 @@ function compareStationLinks(oldFeed: Feed, newFeed: Feed, oldPatterns: PatternS
   const only = (a: typeof oldNear, b: typeof oldNear, otherServed: Set<string>): StationLink[] =>
     [...a]
       .filter(([id]) => id !== '' && !b.has(id))
-      .map(([stopId, x]) => ({ stopId, name: x.name, station: x.note, reason: otherServed.has(stopId) ? ('moved' as const) : ('not-served' as const) }))
+      .map(([stopId, x]) => ({
+        stopId,
+        name: x.name,
+        station: x.note,
+        reason: otherServed.has(stopId) ? ('moved' as const) : ('not-served' as const),
+      }))
       .sort((x, y) => x.stopId.localeCompare(y.stopId));
   return { lost: only(oldNear, newNear, newServed), gained: only(newNear, oldNear, oldServed) };
 }
@@ -238,7 +256,8 @@ function compareStops(oldFeed: Feed, newFeed: Feed, moveThresholdM: number): Com
     }
     const t = newFeed.stops[j];
     const movedM = Number.isFinite(s.lat + s.lon + t.lat + t.lon) ? haversineM(s.lat, s.lon, t.lat, t.lon) : 0;
-    if (movedM > moveThresholdM) moved.push({ stopId: s.id, name: t.name, fromLat: s.lat, fromLon: s.lon, toLat: t.lat, toLon: t.lon, movedM });
+    if (movedM > moveThresholdM)
+      moved.push({ stopId: s.id, name: t.name, fromLat: s.lat, fromLon: s.lon, toLat: t.lat, toLon: t.lon, movedM });
     if (s.name !== t.name) renamed.push({ stopId: s.id, oldName: s.name, newName: t.name });
   }
   for (const t of newFeed.stops) if (!oldFeed.stopIndex.has(t.id)) added.push(brief(t));
@@ -393,7 +412,10 @@ function comparePatterns(
   }
   const byRoute = <T extends { routeId: string; directionId: number }>(a: T, b: T) =>
     a.routeId < b.routeId ? -1 : a.routeId > b.routeId ? 1 : a.directionId - b.directionId;
-  return { patterns: { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged }, pairs: matched };
+  return {
+    patterns: { added: added.sort(byRoute), removed: removed.sort(byRoute), changed: changed.sort(byRoute), unchanged },
+    pairs: matched,
+  };
 }
 
 /**
@@ -436,9 +458,16 @@ export function comparedPart(feed: Feed, patterns: PatternSet): Feed {
  * the table, and while any piece is held its whole chunk is (on a city's network, most of trips.txt).
  */
 export function comparedPatterns(set: PatternSet): PatternSet {
-  const patterns = set.patterns.map(
-    (p): Pattern => ({ ...p, tripIds: p.tripIds.map(ownCopy), path: [], offsetFromShapeM: [], timepoint: [], gapRunTimeS: [], gapTimeInterpolated: [], scheduledDwellS: [] }),
-  );
+  const patterns = set.patterns.map((p): Pattern => ({
+    ...p,
+    tripIds: p.tripIds.map(ownCopy),
+    path: [],
+    offsetFromShapeM: [],
+    timepoint: [],
+    gapRunTimeS: [],
+    gapTimeInterpolated: [],
+    scheduledDwellS: [],
+  }));
   return { date: set.date, patterns, routesAtStop: new Map() };
 }
 
@@ -478,10 +507,17 @@ function frequenciesByTrip(feed: Feed): Map<string, Feed['frequencies']> {
 }
 
 const clockOf = (s: number | undefined): string | null =>
-  s === undefined ? null : `${Math.floor(s / 3600)}:${String(Math.floor((s % 3600) / 60)).padStart(2, '0')}:${String(s % 60).padStart(2, '0')}`;
+  s === undefined
+    ? null
+    : `${Math.floor(s / 3600)}:${String(Math.floor((s % 3600) / 60)).padStart(2, '0')}:${String(s % 60).padStart(2, '0')}`;
 
 /** The matched patterns whose trips changed: a different count of trips a day or different departure times. */
-function patternTripChanges(oldFeed: Feed, newFeed: Feed, pairs: PatternPair[], listCap: number): { change: PatternTripChange; sameStops: boolean }[] {
+function patternTripChanges(
+  oldFeed: Feed,
+  newFeed: Feed,
+  pairs: PatternPair[],
+  listCap: number,
+): { change: PatternTripChange; sameStops: boolean }[] {
   const fo = frequenciesByTrip(oldFeed);
   const fn = frequenciesByTrip(newFeed);
   const out: { change: PatternTripChange; sameStops: boolean }[] = [];
@@ -513,11 +549,15 @@ function patternTripChanges(oldFeed: Feed, newFeed: Feed, pairs: PatternPair[], 
       },
     });
   }
-  out.sort((a, b) => relChange(a.change) - relChange(b.change) || (a.change.routeId < b.change.routeId ? -1 : a.change.routeId > b.change.routeId ? 1 : 0));
+  out.sort(
+    (a, b) =>
+      relChange(a.change) - relChange(b.change) || (a.change.routeId < b.change.routeId ? -1 : a.change.routeId > b.change.routeId ? 1 : 0),
+  );
   return out;
 }
 
-const relChange = (x: { tripsBefore: number; tripsAfter: number }): number => (x.tripsBefore > 0 ? (x.tripsAfter - x.tripsBefore) / x.tripsBefore : Infinity);
+const relChange = (x: { tripsBefore: number; tripsAfter: number }): number =>
+  x.tripsBefore > 0 ? (x.tripsAfter - x.tripsBefore) / x.tripsBefore : Infinity;
 
 /** Trips a day per route on each side (every pattern of the route), for the routes where they differ; biggest cuts first. */
 function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newSet: PatternSet): RouteTripChange[] {
@@ -534,7 +574,13 @@ function routeTripChanges(oldFeed: Feed, newFeed: Feed, oldSet: PatternSet, newS
     const tripsAfter = a.get(routeId) ?? 0;
     if (tripsBefore === tripsAfter) continue;
     const shortName = newFeed.routes.get(routeId)?.shortName ?? oldFeed.routes.get(routeId)?.shortName ?? '';
-    out.push({ routeId, shortName, tripsBefore, tripsAfter, changePct: tripsBefore > 0 ? ((tripsAfter - tripsBefore) / tripsBefore) * 100 : null });
+    out.push({
+      routeId,
+      shortName,
+      tripsBefore,
+      tripsAfter,
+      changePct: tripsBefore > 0 ? ((tripsAfter - tripsBefore) / tripsBefore) * 100 : null,
+    });
   }
   return out.sort((x, y) => relChange(x) - relChange(y) || (x.routeId < y.routeId ? -1 : x.routeId > y.routeId ? 1 : 0));
 }
@@ -563,10 +609,17 @@ function spacingPicture(set: PatternSet, audit: AuditBrief | undefined): Spacing
 
 function compareCandidates(before: Candidate[], after: Candidate[]): { appeared: CandidateBrief[]; disappeared: CandidateBrief[] } {
   // a removal is known by its stop; an addition by the gap it fills (its name names both ends) and routes
-  const key = (c: Candidate) => (c.action === 'remove' ? `remove\u0000${c.stopId}` : `add\u0000${c.stopName}\u0000${[...c.routeIds].sort().join(',')}`);
+  const key = (c: Candidate) =>
+    c.action === 'remove' ? `remove\u0000${c.stopId}` : `add\u0000${c.stopName}\u0000${[...c.routeIds].sort().join(',')}`;
   const b = new Map(before.map((c) => [key(c), c]));
   const a = new Map(after.map((c) => [key(c), c]));
-  const cb = (c: Candidate): CandidateBrief => ({ action: c.action, stopId: c.stopId, stopName: c.stopName, routeIds: c.routeIds, netPaxMinPerDay: c.netPaxMinPerDay });
+  const cb = (c: Candidate): CandidateBrief => ({
+    action: c.action,
+    stopId: c.stopId,
+    stopName: c.stopName,
+    routeIds: c.routeIds,
+    netPaxMinPerDay: c.netPaxMinPerDay,
+  });
   return {
     appeared: [...a].filter(([k]) => !b.has(k)).map(([, c]) => cb(c)),
     disappeared: [...b].filter(([k]) => !a.has(k)).map(([, c]) => cb(c)),

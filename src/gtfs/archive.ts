@@ -71,12 +71,17 @@ export interface OpenFeedOptions {
 }
 
 /** Opens a .zip path, a folder or an http(s) URL. Throws 'feed-unreadable', 'feed-too-large' or 'download-failed'. */
-export async function openFeed(source: string, { limits = {}, download, warnings, onProgress }: OpenFeedOptions = {}): Promise<FeedArchive> {
+export async function openFeed(
+  source: string,
+  { limits = {}, download, warnings, onProgress }: OpenFeedOptions = {},
+): Promise<FeedArchive> {
   const lim = { ...DEFAULT_ARCHIVE_LIMITS, ...limits };
   for (const [k, v] of Object.entries(lim)) {
-    if (!(typeof v === 'number' && v > 0)) throw new StopspanError('bad-option', `invalid option limits.${k}: expected a positive number`, { value: String(v) });
+    if (!(typeof v === 'number' && v > 0))
+      throw new StopspanError('bad-option', `invalid option limits.${k}: expected a positive number`, { value: String(v) });
   }
-  if (typeof source !== 'string' || source === '') throw new StopspanError('bad-option', 'invalid option source: expected a path or URL', { value: String(source) });
+  if (typeof source !== 'string' || source === '')
+    throw new StopspanError('bad-option', 'invalid option source: expected a path or URL', { value: String(source) });
   if (isUrl(source)) {
     const dl = await downloadFeed(source, { limits: download, onProgress });
     try {
@@ -110,14 +115,26 @@ function unreadable(file: string, why: string): StopspanError {
 async function openFolder(dir: string, lim: Required<ArchiveLimits>): Promise<FeedArchive> {
   let files: string[];
   try {
-    files = (await readdir(dir, { withFileTypes: true })).filter((d) => d.isFile() && d.name.endsWith('.txt')).map((d) => d.name).sort();
+    files = (await readdir(dir, { withFileTypes: true }))
+      .filter((d) => d.isFile() && d.name.endsWith('.txt'))
+      .map((d) => d.name)
+      .sort();
   } catch (e) {
     throw unreadable(dir, (e as Error).message.split('\n')[0]);
   }
   const sizes = new Map<string, number>();
   for (const f of files) sizes.set(f, (await stat(join(dir, f))).size);
   let total = 0;
-  const counter = (name: string, readAheadBytes?: number) => new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, undefined, readAheadBytes);
+  const counter = (name: string, readAheadBytes?: number) =>
+    new ByteCap(
+      name,
+      lim.maxEntryBytes,
+      () => total,
+      (n) => (total += n),
+      lim.maxTotalBytes,
+      undefined,
+      readAheadBytes,
+    );
   return {
     kind: 'folder',
     names: () => [...files],
@@ -192,9 +209,11 @@ class ByteCap extends Transform {
   }
   override _flush(cb: TransformCallback): void {
     const d = this.declared;
-    if (d && this.seen !== d.bytes) return cb(unreadable(d.file, `corrupt or truncated zip entry (${this.seen} bytes inflated, ${d.bytes} declared)`));
+    if (d && this.seen !== d.bytes)
+      return cb(unreadable(d.file, `corrupt or truncated zip entry (${this.seen} bytes inflated, ${d.bytes} declared)`));
     // [PKWARE APPNOTE 4.4.7: the CRC-32 of the uncompressed data]
-    if (d && this.crc >>> 0 !== d.crc >>> 0) return cb(unreadable(d.file, 'corrupt zip entry (CRC-32 of the inflated bytes differs from the one recorded)'));
+    if (d && this.crc >>> 0 !== d.crc >>> 0)
+      return cb(unreadable(d.file, 'corrupt zip entry (CRC-32 of the inflated bytes differs from the one recorded)'));
     cb();
   }
 }
@@ -237,7 +256,9 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
   // the count comes from the end record, before any entry is listed: a flood of entries costs nothing
   if (zf.entryCount > lim.maxEntries) {
     zf.close();
-    throw new StopspanError('feed-too-large', `the archive lists ${zf.entryCount} entries, over the cap of ${lim.maxEntries}`, { file: label });
+    throw new StopspanError('feed-too-large', `the archive lists ${zf.entryCount} entries, over the cap of ${lim.maxEntries}`, {
+      file: label,
+    });
   }
   try {
     entries = await listEntries(zf);
@@ -290,22 +311,35 @@ async function openZip(path: string, label: string, lim: Required<ArchiveLimits>
       const u = entry.uncompressedSize;
       const c = entry.compressedSize;
       if (u > lim.maxEntryBytes) throw tooLarge(name, `declared size ${u} bytes exceeds the per-entry cap of ${lim.maxEntryBytes}`);
-      if (u > RATIO_FROM_BYTES && c > 0 && u / c > lim.maxRatio) throw tooLarge(name, `compression ratio ${Math.round(u / c)} exceeds the cap of ${lim.maxRatio}`);
+      if (u > RATIO_FROM_BYTES && c > 0 && u / c > lim.maxRatio)
+        throw tooLarge(name, `compression ratio ${Math.round(u / c)} exceeds the cap of ${lim.maxRatio}`);
       if (u > RATIO_FROM_BYTES && c === 0) throw tooLarge(name, `declares ${u} bytes from an empty compressed body`);
       // a deflated entry is read raw and inflated here, with an output buffer of 1 MiB instead of zlib's
       // 16 KiB: each buffer is a round trip between the thread pool and this thread, and with small ones
       // those round trips, not inflating, set the pace (measured on a 75 MB stop_times.txt: inflating and
       // counting lines took 675 ms of CPU with 16 KiB buffers, 405 ms with 1 MiB)
       const deflated = entry.compressionMethod === 8;
-      const raw = deflated ? await deflatedBody(zf, path, entry, `${label}:${name}`) : await new Promise<Readable>((resolve, reject) => {
-        zf.openReadStream(entry, {}, (err, rs) => {
-          if (err || !rs) reject(unreadable(`${label}:${name}`, `corrupt zip entry (${oneLineOf(err)})`));
-          else resolve(rs);
-        });
-      });
-      const cap = new ByteCap(name, lim.maxEntryBytes, () => total, (n) => (total += n), lim.maxTotalBytes, { bytes: u, file: `${label}:${name}`, crc: entry.crc32 }, readAheadBytes);
+      const raw = deflated
+        ? await deflatedBody(zf, path, entry, `${label}:${name}`)
+        : await new Promise<Readable>((resolve, reject) => {
+            zf.openReadStream(entry, {}, (err, rs) => {
+              if (err || !rs) reject(unreadable(`${label}:${name}`, `corrupt zip entry (${oneLineOf(err)})`));
+              else resolve(rs);
+            });
+          });
+      const cap = new ByteCap(
+        name,
+        lim.maxEntryBytes,
+        () => total,
+        (n) => (total += n),
+        lim.maxTotalBytes,
+        { bytes: u, file: `${label}:${name}`, crc: entry.crc32 },
+        readAheadBytes,
+      );
       const fail = (err: unknown): void => {
-        cap.destroy(err instanceof StopspanError ? err : unreadable(`${label}:${name}`, `corrupt or truncated zip entry (${oneLineOf(err)})`));
+        cap.destroy(
+          err instanceof StopspanError ? err : unreadable(`${label}:${name}`, `corrupt or truncated zip entry (${oneLineOf(err)})`),
+        );
       };
       raw.on('error', fail);
       if (!deflated) return raw.pipe(cap);
@@ -356,7 +390,10 @@ const HASH_WHOLE_BYTES = 64 << 20;
  */
 export async function fileSha256(path: string, wholeUpTo = HASH_WHOLE_BYTES): Promise<string> {
   const { size } = await stat(path);
-  if (size <= wholeUpTo) return createHash('sha256').update(await readFile(path)).digest('hex');
+  if (size <= wholeUpTo)
+    return createHash('sha256')
+      .update(await readFile(path))
+      .digest('hex');
   const h = createHash('sha256');
   for await (const chunk of createReadStream(path, { highWaterMark: 1 << 20 })) h.update(chunk as Buffer);
   return h.digest('hex');

@@ -141,7 +141,11 @@ export function chooseAnalysisDate(
       if (runsOn(ymd) === 0) continue;
       return k === 0
         ? { date: today, basis: 'run-date', because: `the run date ${today}` }
-        : { date: gtfsToIsoDate(ymd), basis: 'next-service-day', because: `the first day with service after the run date ${today}, on which nothing runs` };
+        : {
+            date: gtfsToIsoDate(ymd),
+            basis: 'next-service-day',
+            because: `the first day with service after the run date ${today}, on which nothing runs`,
+          };
     }
     return { date: null, basis: 'none', because: `nothing runs on the run date ${today} or in the ${windowDays} days after it` };
   }

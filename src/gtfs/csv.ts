@@ -138,7 +138,11 @@ export class CsvTableParser {
   constructor(
     private readonly file: string,
     onRow: (row: CsvRow) => void,
-    { maxRecordChars = DEFAULT_MAX_RECORD_CHARS, onHeader, groupKey }: { maxRecordChars?: number; onHeader?: (header: string[]) => void; groupKey?: CsvGroupKey } = {},
+    {
+      maxRecordChars = DEFAULT_MAX_RECORD_CHARS,
+      onHeader,
+      groupKey,
+    }: { maxRecordChars?: number; onHeader?: (header: string[]) => void; groupKey?: CsvGroupKey } = {},
   ) {
     const stats = this.stats;
     let keyColumn = -1; // the group key's column, once the header is known (-1: no key)
@@ -264,7 +268,14 @@ export async function readCsv(
   const header = parser.columns;
   if (header === null) onHeader([]);
   if (warnings) reportCsvStats(warnings, file, header ?? [], stats);
-  return { records: stats.records, paddedValues: stats.paddedValues, shortRows: stats.shortRows, longRows: stats.longRows, invalidUtf8: stats.invalidUtf8, bytes: stats.bytes };
+  return {
+    records: stats.records,
+    paddedValues: stats.paddedValues,
+    shortRows: stats.shortRows,
+    longRows: stats.longRows,
+    invalidUtf8: stats.invalidUtf8,
+    bytes: stats.bytes,
+  };
 }
 
 /**

@@ -53,7 +53,11 @@ export class CsvRow {
   }
 
   private tooLong(i: number): never {
-    throw new StopspanError('feed-too-large', `value longer than the cap of ${MAX_FIELD_CHARS} characters`, { file: this.file, line: this.line, column: this.names?.[i] ?? String(i + 1) });
+    throw new StopspanError('feed-too-large', `value longer than the cap of ${MAX_FIELD_CHARS} characters`, {
+      file: this.file,
+      line: this.line,
+      column: this.names?.[i] ?? String(i + 1),
+    });
   }
 
   /** Whether the field's value is exactly `value`. */
@@ -208,7 +212,12 @@ export class CsvCore {
         fieldStart = false;
       }
     }
-    throw new StopspanError('csv-syntax', 'NUL byte in the CSV text', { file: this.file, line, column: this.columnName(field), value: '\0' });
+    throw new StopspanError('csv-syntax', 'NUL byte in the CSV text', {
+      file: this.file,
+      line,
+      column: this.columnName(field),
+      value: '\0',
+    });
   }
 
   private failTooLong(line: number): never {
@@ -354,7 +363,11 @@ export class CsvCore {
           const q = buf.indexOf('"', k);
           if (q < 0) {
             if (!final) return -1;
-            throw new StopspanError('csv-syntax', 'unterminated quoted field', { file: this.file, line: this.line, column: this.columnName(nf) });
+            throw new StopspanError('csv-syntax', 'unterminated quoted field', {
+              file: this.file,
+              line: this.line,
+              column: this.columnName(nf),
+            });
           }
           if (q + 1 >= n && !final) return -1;
           if (q + 1 < n && buf.charCodeAt(q + 1) === QUOTE) {

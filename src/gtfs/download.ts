@@ -47,7 +47,8 @@ export async function downloadFeed(
 ): Promise<DownloadedFile> {
   const { maxRedirects, timeoutMs, maxBytes } = { ...DEFAULT_DOWNLOAD_LIMITS, ...limits };
   if (!isUrl(url)) throw new StopspanError('bad-option', 'invalid option source: expected an http(s) URL', { value: url });
-  if (!(maxRedirects >= 0)) throw new StopspanError('bad-option', 'invalid option maxRedirects: expected >= 0', { value: String(maxRedirects) });
+  if (!(maxRedirects >= 0))
+    throw new StopspanError('bad-option', 'invalid option maxRedirects: expected >= 0', { value: String(maxRedirects) });
   if (!(timeoutMs > 0)) throw new StopspanError('bad-option', 'invalid option timeoutMs: expected > 0', { value: String(timeoutMs) });
   if (!(maxBytes > 0)) throw new StopspanError('bad-option', 'invalid option maxBytes: expected > 0', { value: String(maxBytes) });
 
@@ -82,7 +83,13 @@ export async function downloadFeed(
         res.destroy();
         fail(url, `body of ${declared} bytes exceeds the cap of ${maxBytes} bytes`);
       }
-      const bytes = await saveBody(res, path, { deadline, maxBytes, url, onProgress, total: Number.isFinite(declared) ? declared : undefined });
+      const bytes = await saveBody(res, path, {
+        deadline,
+        maxBytes,
+        url,
+        onProgress,
+        total: Number.isFinite(declared) ? declared : undefined,
+      });
       return { path, bytes, cleanup };
     }
   } catch (e) {
@@ -119,7 +126,9 @@ function fail(url: string, why: string): never {
 
 /** The http or https module, loaded on the first download: loading both costs every other run start-up time. */
 async function client(target: string): Promise<typeof http> {
-  return target.startsWith('https:') ? ((await import('node:https')).default as unknown as typeof http) : (await import('node:http')).default;
+  return target.startsWith('https:')
+    ? ((await import('node:https')).default as unknown as typeof http)
+    : (await import('node:http')).default;
 }
 
 async function request(target: string, deadline: number, original: string): Promise<http.IncomingMessage> {
@@ -145,7 +154,13 @@ async function request(target: string, deadline: number, original: string): Prom
 function saveBody(
   res: http.IncomingMessage,
   path: string,
-  { deadline, maxBytes, url, onProgress, total }: { deadline: number; maxBytes: number; url: string; onProgress?: OnProgress; total?: number },
+  {
+    deadline,
+    maxBytes,
+    url,
+    onProgress,
+    total,
+  }: { deadline: number; maxBytes: number; url: string; onProgress?: OnProgress; total?: number },
 ): Promise<number> {
   return new Promise((resolve, reject) => {
     const out = createWriteStream(path, { flags: 'wx', mode: 0o600 });
@@ -165,16 +180,24 @@ function saveBody(
       }
       out.end(() => resolve(bytes));
     };
-    const timer = setTimeout(() => finish(new StopspanError('download-failed', 'cannot download the feed: timed out while reading the body', { file: url })), Math.max(1, deadline - Date.now()));
+    const timer = setTimeout(
+      () => finish(new StopspanError('download-failed', 'cannot download the feed: timed out while reading the body', { file: url })),
+      Math.max(1, deadline - Date.now()),
+    );
     res.on('data', (chunk: Buffer) => {
       if (done) return;
       bytes += chunk.length;
-      if (bytes > maxBytes) return finish(new StopspanError('download-failed', `cannot download the feed: body exceeds the cap of ${maxBytes} bytes`, { file: url }));
+      if (bytes > maxBytes)
+        return finish(
+          new StopspanError('download-failed', `cannot download the feed: body exceeds the cap of ${maxBytes} bytes`, { file: url }),
+        );
       if (head.length < 4) {
         head = Buffer.concat([head, chunk.subarray(0, 4 - head.length)]);
         if (head.length >= 4 && !head.equals(ZIP_SIGNATURE)) {
           const type = String(res.headers['content-type'] ?? 'unknown type');
-          return finish(new StopspanError('download-failed', `cannot download the feed: the body is not a zip archive (${type})`, { file: url }));
+          return finish(
+            new StopspanError('download-failed', `cannot download the feed: the body is not a zip archive (${type})`, { file: url }),
+          );
         }
       }
       if (!out.write(chunk)) {
@@ -188,11 +211,16 @@ function saveBody(
     });
     res.on('end', () => {
       if (done) return;
-      if (head.length < 4) return finish(new StopspanError('download-failed', 'cannot download the feed: the body is not a zip archive (too short)', { file: url }));
+      if (head.length < 4)
+        return finish(
+          new StopspanError('download-failed', 'cannot download the feed: the body is not a zip archive (too short)', { file: url }),
+        );
       finish(null);
     });
     res.on('error', (err) => finish(new StopspanError('download-failed', `cannot download the feed: ${err.message}`, { file: url })));
-    res.on('aborted', () => finish(new StopspanError('download-failed', 'cannot download the feed: connection closed early', { file: url })));
+    res.on('aborted', () =>
+      finish(new StopspanError('download-failed', 'cannot download the feed: connection closed early', { file: url })),
+    );
     out.on('error', (err) => finish(new StopspanError('download-failed', `cannot save the download: ${err.message}`, { file: url })));
   });
 }

@@ -30,7 +30,10 @@ export function tripRunsPerDay(frequencies: Frequency[]): Map<string, TripRuns> 
 }
 
 /** The runs on date (YYYY-MM-DD) of every trip whose service runs that day, frequencies expanded. */
-export function tripInstancesOnDate(feed: Pick<Feed, 'trips' | 'calendar' | 'calendarDates' | 'frequencies'>, date: string): Map<string, TripRuns> {
+export function tripInstancesOnDate(
+  feed: Pick<Feed, 'trips' | 'calendar' | 'calendarDates' | 'frequencies'>,
+  date: string,
+): Map<string, TripRuns> {
   const on = servicesOn(feed, date);
   const freq = tripRunsPerDay(feed.frequencies);
   const out = new Map<string, TripRuns>();

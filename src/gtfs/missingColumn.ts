@@ -20,10 +20,17 @@ function seenAs(name: string): string {
  * (the table's other columns, such as stop_lat beside a missing stop_lon) are columns in their own right,
  * never a slip for this one.
  */
-export function nearColumn(header: readonly string[], column: string, known: ReadonlySet<string> = new Set()): { name: string; how: string } | null {
+export function nearColumn(
+  header: readonly string[],
+  column: string,
+  known: ReadonlySet<string> = new Set(),
+): { name: string; how: string } | null {
   for (const h of header) {
     if (h === column || seenAs(h) !== column) continue;
-    return { name: h, how: h.replace(UNSEEN_CHARS, '') !== h ? 'by unseen characters' : h.toLowerCase() === column ? 'in case' : 'by spaces' };
+    return {
+      name: h,
+      how: h.replace(UNSEEN_CHARS, '') !== h ? 'by unseen characters' : h.toLowerCase() === column ? 'in case' : 'by spaces',
+    };
   }
   let best: { name: string; d: number } | null = null;
   for (const h of header) {
@@ -35,7 +42,12 @@ export function nearColumn(header: readonly string[], column: string, known: Rea
 }
 
 /** 'missing-column' for `column` of `file`, naming the header's names and the near match if any (`known`: see nearColumn). */
-export function missingColumn(file: string, header: readonly string[], column: string, { why = '', known = new Set<string>() }: { why?: string; known?: ReadonlySet<string> } = {}): StopspanError {
+export function missingColumn(
+  file: string,
+  header: readonly string[],
+  column: string,
+  { why = '', known = new Set<string>() }: { why?: string; known?: ReadonlySet<string> } = {},
+): StopspanError {
   const names = header.filter((h) => h !== '');
   const listed = names.slice(0, SHOWN_NAMES).map((h) => JSON.stringify(h));
   const more = names.length > SHOWN_NAMES ? ` and ${names.length - SHOWN_NAMES} more` : '';

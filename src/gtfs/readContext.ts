@@ -42,7 +42,15 @@ export function contextLabel(source: string): string {
  * Reads one table of a context feed. An optional table (the calendars) with no header, zero bytes or only a
  * byte-order mark or blank lines, reads as absent and is counted under empty-table, as the feed reader does.
  */
-async function readTable(archive: FeedArchive, file: string, required: readonly string[], optional: readonly string[], onRow: (row: CsvRow, c: Record<string, number>) => void, warnings: WarningSink, emptyAs?: string): Promise<void> {
+async function readTable(
+  archive: FeedArchive,
+  file: string,
+  required: readonly string[],
+  optional: readonly string[],
+  onRow: (row: CsvRow, c: Record<string, number>) => void,
+  warnings: WarningSink,
+  emptyAs?: string,
+): Promise<void> {
   let c: Record<string, number> = {};
   let empty = false;
   await readCsv(await archive.open(file), {
@@ -74,35 +82,61 @@ async function readTable(archive: FeedArchive, file: string, required: readonly 
  * station), and the count of its services running on `date` (YYYY-MM-DD) when given. An error names the
  * context feed: "context feed <source>: ...".
  */
-export async function readContextFeed(source: string, { date, warnings, label = contextLabel(source) }: { date?: string; warnings: WarningSink; label?: string }): Promise<ContextFeed> {
+export async function readContextFeed(
+  source: string,
+  { date, warnings, label = contextLabel(source) }: { date?: string; warnings: WarningSink; label?: string },
+): Promise<ContextFeed> {
   let archive: FeedArchive | null = null;
   try {
     archive = await openFeed(source, { warnings });
     if (!archive.has('stops.txt')) throw new StopspanError('missing-table', 'stops.txt is missing', { file: 'stops.txt' });
     const stations: ContextStation[] = [];
-    await readTable(archive, 'stops.txt', ['stop_id', 'stop_lat', 'stop_lon'], ['stop_name', 'location_type', 'parent_station'], (row, c) => {
-      const type = intField('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
-      const parent = c.parent_station >= 0 ? row.get(c.parent_station) : '';
-      if (!(type === 1 || (type === 0 && parent === ''))) return;
-      const lat = fieldNumber(row, c.stop_lat);
-      const lon = fieldNumber(row, c.stop_lon);
-      if (lat === null || lon === null || coordinateFault(lat, lon) !== '') {
-        warnings.add('context-station-no-position', `${label} stops.txt:${row.line}`);
-        return;
-      }
-      const id = row.get(c.stop_id);
-      stations.push({ id: `${label}:${id}`, name: c.stop_name >= 0 ? row.get(c.stop_name) || id : id, lat, lon });
-    }, warnings);
+    await readTable(
+      archive,
+      'stops.txt',
+      ['stop_id', 'stop_lat', 'stop_lon'],
+      ['stop_name', 'location_type', 'parent_station'],
+      (row, c) => {
+        const type = intField('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
+        const parent = c.parent_station >= 0 ? row.get(c.parent_station) : '';
+        if (!(type === 1 || (type === 0 && parent === ''))) return;
+        const lat = fieldNumber(row, c.stop_lat);
+        const lon = fieldNumber(row, c.stop_lon);
+        if (lat === null || lon === null || coordinateFault(lat, lon) !== '') {
+          warnings.add('context-station-no-position', `${label} stops.txt:${row.line}`);
+          return;
+        }
+        const id = row.get(c.stop_id);
+        stations.push({ id: `${label}:${id}`, name: c.stop_name >= 0 ? row.get(c.stop_name) || id : id, lat, lon });
+      },
+      warnings,
+    );
     let servicesOnDate: number | null = null;
     if (date !== undefined) {
       const calendar: CalendarRow[] = [];
       const calendarDates: CalendarDate[] = [];
       // the feed reader's row converters: a context feed's calendar is read by the same rule as the audited feed's
       if (archive.has('calendar.txt')) {
-        await readTable(archive, 'calendar.txt', CALENDAR_COLUMNS, [], (row, c) => calendar.push(calendarRow(row, c, warnings, `${label} `)), warnings, `${label} calendar.txt`);
+        await readTable(
+          archive,
+          'calendar.txt',
+          CALENDAR_COLUMNS,
+          [],
+          (row, c) => calendar.push(calendarRow(row, c, warnings, `${label} `)),
+          warnings,
+          `${label} calendar.txt`,
+        );
       }
       if (archive.has('calendar_dates.txt')) {
-        await readTable(archive, 'calendar_dates.txt', CALENDAR_DATES_COLUMNS, [], (row, c) => calendarDates.push(calendarDateRow(row, c)), warnings, `${label} calendar_dates.txt`);
+        await readTable(
+          archive,
+          'calendar_dates.txt',
+          CALENDAR_DATES_COLUMNS,
+          [],
+          (row, c) => calendarDates.push(calendarDateRow(row, c)),
+          warnings,
+          `${label} calendar_dates.txt`,
+        );
       }
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
       if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);
@@ -111,7 +145,10 @@ export async function readContextFeed(source: string, { date, warnings, label = 
   } catch (e) {
     if (isStopspanError(e)) {
       const ctx = e.context;
-      throw new StopspanError(e.code, `context feed ${source}: ${e.message}`, { ...ctx, file: ctx.file && ctx.file !== source ? `${label}/${ctx.file}` : ctx.file });
+      throw new StopspanError(e.code, `context feed ${source}: ${e.message}`, {
+        ...ctx,
+        file: ctx.file && ctx.file !== source ? `${label}/${ctx.file}` : ctx.file,
+      });
     }
     throw e;
   } finally {
@@ -123,7 +160,10 @@ export async function readContextFeed(source: string, { date, warnings, label = 
  * Every context feed given (--context, repeatable), in order, labels made distinct ("rail", "rail-2"), their
  * warnings counted in `warnings`: the one reading of context feeds for every command that takes them.
  */
-export async function readContextFeeds(sources: readonly string[], { date, warnings }: { date?: string; warnings: WarningSink }): Promise<ContextFeed[]> {
+export async function readContextFeeds(
+  sources: readonly string[],
+  { date, warnings }: { date?: string; warnings: WarningSink },
+): Promise<ContextFeed[]> {
   const contexts: ContextFeed[] = [];
   const labels = new Set<string>();
   for (const source of sources) {

@@ -19,7 +19,16 @@ import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Rout
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
 import { missingColumn } from './missingColumn.js';
 import { StopTimesStore, TripFolder } from './stopTimesStore.js';
-import { badField as bad, checkDate, fieldNumber, fieldTimeS, fieldUint, intField as intIn, requiredField as need, TIME_EXPECTED } from './values.js';
+import {
+  badField as bad,
+  checkDate,
+  fieldNumber,
+  fieldTimeS,
+  fieldUint,
+  intField as intIn,
+  requiredField as need,
+  TIME_EXPECTED,
+} from './values.js';
 import { CALENDAR_COLUMNS, CALENDAR_DATES_COLUMNS, calendarDateRow, calendarRow } from './calendarRows.js';
 import { STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesLookup } from './stopTimesRows.js';
 
@@ -52,9 +61,14 @@ export const SHAPE_CAPS = { pointsPerShape: 200_000, points: 4_000_000 } as cons
 export const MAX_TRIPS = 500_000;
 
 /** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
-export async function readFeed(source: string, { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {}): Promise<Feed> {
+export async function readFeed(
+  source: string,
+  { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {},
+): Promise<Feed> {
   if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
-    throw new StopspanError('bad-option', `invalid option date: expected 'auto', 'all' or YYYY-MM-DD, got ${String(date)}`, { value: String(date) });
+    throw new StopspanError('bad-option', `invalid option date: expected 'auto', 'all' or YYYY-MM-DD, got ${String(date)}`, {
+      value: String(date),
+    });
   }
   if (date !== 'auto' && date !== 'all') isoToGtfsDate(date);
   if (routes !== undefined && (!Array.isArray(routes) || routes.some((r) => typeof r !== 'string'))) {
@@ -67,7 +81,11 @@ export async function readFeed(source: string, { date = 'auto', routes, onProgre
     return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings, early });
   } finally {
     // a table opened early and never read (the reading stopped at an error before it) is let go
-    for (const p of early.values()) p.then((s) => s.destroy(), () => {});
+    for (const p of early.values())
+      p.then(
+        (s) => s.destroy(),
+        () => {},
+      );
     await archive.close();
   }
 }
@@ -85,7 +103,12 @@ interface Ctx {
 type Columns<R extends string, O extends string> = Record<R, number> & Record<O, number>;
 
 /** Column indices by name from a table's header; -1 for an absent optional column; a missing required one is an error. */
-function columnIndex<R extends string, O extends string>(file: string, header: string[], required: readonly R[], optional: readonly O[]): Columns<R, O> {
+function columnIndex<R extends string, O extends string>(
+  file: string,
+  header: string[],
+  required: readonly R[],
+  optional: readonly O[],
+): Columns<R, O> {
   const at = new Map(header.map((h, i) => [h, i]));
   const c: Record<string, number> = {};
   for (const r of required) {
@@ -191,7 +214,14 @@ async function readArchive(
     maxRecordChars,
     warnings,
     early,
-  }: { date: string; routes?: string[]; onProgress?: OnProgress; maxRecordChars?: number; warnings: WarningSink; early: Map<string, Promise<Readable>> },
+  }: {
+    date: string;
+    routes?: string[];
+    onProgress?: OnProgress;
+    maxRecordChars?: number;
+    warnings: WarningSink;
+    early: Map<string, Promise<Readable>>;
+  },
 ): Promise<Feed> {
   checkTables(archive);
   const ctx: Ctx = { archive, warnings, onProgress, maxRecordChars, rowCounts: {}, early };
@@ -283,7 +313,13 @@ async function readRoutes(ctx: Ctx): Promise<Map<string, Route>> {
     const type = intIn('routes.txt', row, c.route_type, 'route_type', 0, 1702, -1);
     if (type < 0) bad('routes.txt', row, c.route_type, 'route_type', 'a route type');
     if (routes.has(id)) return warnings.add('duplicate-route-id', `routes.txt:${row.line}`);
-    routes.set(id, { id, agencyId: row.get(c.agency_id), shortName: row.get(c.route_short_name), longName: row.get(c.route_long_name), type });
+    routes.set(id, {
+      id,
+      agencyId: row.get(c.agency_id),
+      shortName: row.get(c.route_short_name),
+      longName: row.get(c.route_long_name),
+      type,
+    });
   });
   return routes;
 }
@@ -294,28 +330,45 @@ async function readStops(ctx: Ctx): Promise<{ stops: Stop[]; stopIndex: Map<stri
   const stops: Stop[] = [];
   const stopIndex = new Map<string, number>();
   const STOPS_COLUMNS = new Set(['stop_id', 'stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station']);
-  await table(ctx, 'stops.txt', ['stop_id'], ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'], (row, c, stopsHeader) => {
-    const id = need('stops.txt', row, c.stop_id, 'stop_id');
-    const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
-    if (locationType <= 2 && (c.stop_lat < 0 || c.stop_lon < 0)) {
-      throw missingColumn('stops.txt', stopsHeader, c.stop_lat < 0 ? 'stop_lat' : 'stop_lon', { why: ' (stops need coordinates)', known: STOPS_COLUMNS });
-    }
-    const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
-    const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
-    // [GTFS Schedule reference: stop_lat/stop_lon required for location_type 0, 1 and 2]
-    if (locationType <= 2 && (Number.isNaN(lat) || Number.isNaN(lon))) {
-      const i = Number.isNaN(lat) ? c.stop_lat : c.stop_lon;
-      throw new StopspanError('bad-value', `${Number.isNaN(lat) ? 'stop_lat' : 'stop_lon'} is required for a stop, station or entrance`, {
-        file: 'stops.txt',
-        line: row.line,
-        column: Number.isNaN(lat) ? 'stop_lat' : 'stop_lon',
-        value: row.get(i),
+  await table(
+    ctx,
+    'stops.txt',
+    ['stop_id'],
+    ['stop_code', 'stop_name', 'stop_lat', 'stop_lon', 'location_type', 'parent_station'],
+    (row, c, stopsHeader) => {
+      const id = need('stops.txt', row, c.stop_id, 'stop_id');
+      const locationType = intIn('stops.txt', row, c.location_type, 'location_type', 0, 4, 0);
+      if (locationType <= 2 && (c.stop_lat < 0 || c.stop_lon < 0)) {
+        throw missingColumn('stops.txt', stopsHeader, c.stop_lat < 0 ? 'stop_lat' : 'stop_lon', {
+          why: ' (stops need coordinates)',
+          known: STOPS_COLUMNS,
+        });
+      }
+      const lat = c.stop_lat < 0 ? NaN : coord('stops.txt', row, c.stop_lat, 'stop_lat', 90);
+      const lon = c.stop_lon < 0 ? NaN : coord('stops.txt', row, c.stop_lon, 'stop_lon', 180);
+      // [GTFS Schedule reference: stop_lat/stop_lon required for location_type 0, 1 and 2]
+      if (locationType <= 2 && (Number.isNaN(lat) || Number.isNaN(lon))) {
+        const i = Number.isNaN(lat) ? c.stop_lat : c.stop_lon;
+        throw new StopspanError('bad-value', `${Number.isNaN(lat) ? 'stop_lat' : 'stop_lon'} is required for a stop, station or entrance`, {
+          file: 'stops.txt',
+          line: row.line,
+          column: Number.isNaN(lat) ? 'stop_lat' : 'stop_lon',
+          value: row.get(i),
+        });
+      }
+      if (stopIndex.has(id)) return warnings.add('duplicate-stop-id', `stops.txt:${row.line}`);
+      stopIndex.set(id, stops.length);
+      stops.push({
+        id,
+        code: row.get(c.stop_code),
+        name: row.get(c.stop_name),
+        lat,
+        lon,
+        locationType,
+        parentStation: row.get(c.parent_station),
       });
-    }
-    if (stopIndex.has(id)) return warnings.add('duplicate-stop-id', `stops.txt:${row.line}`);
-    stopIndex.set(id, stops.length);
-    stops.push({ id, code: row.get(c.stop_code), name: row.get(c.stop_name), lat, lon, locationType, parentStation: row.get(c.parent_station) });
-  });
+    },
+  );
   return { stops, stopIndex };
 }
 
@@ -384,7 +437,12 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
     }
     if (tripRow.has(id)) return warnings.add('duplicate-trip-id', `trips.txt:${row.line}`);
     if (tripId.length >= MAX_TRIPS) {
-      throw new StopspanError('feed-too-large', `trips.txt has more than ${MAX_TRIPS} trips, the cap`, { file: 'trips.txt', line: row.line, column: 'trip_id', value: id });
+      throw new StopspanError('feed-too-large', `trips.txt has more than ${MAX_TRIPS} trips, the cap`, {
+        file: 'trips.txt',
+        line: row.line,
+        column: 'trip_id',
+        value: id,
+      });
     }
     tripRow.set(id, tripId.length);
     tripId.push(id);
@@ -395,14 +453,24 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
     tripShape.push(sharedField(row, c.shape_id, lastShape));
   });
   if (tripId.length === 0 && unknownRoute > 0) {
-    throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', { file: 'trips.txt', column: 'route_id' });
+    throw new StopspanError('bad-reference', 'every trip names a route_id that is not in routes.txt', {
+      file: 'trips.txt',
+      column: 'route_id',
+    });
   }
   return { tripId, tripRoute, tripService, tripHeadsign, tripShape, tripDirection };
 }
 
 /** The trip at row k of the trip columns, as a record. */
 function tripAt({ tripId, tripRoute, tripService, tripDirection, tripHeadsign, tripShape }: TripColumns, k: number): Trip {
-  return { id: tripId[k], routeId: tripRoute[k], serviceId: tripService[k], directionId: tripDirection[k], headsign: tripHeadsign[k], shapeId: tripShape[k] };
+  return {
+    id: tripId[k],
+    routeId: tripRoute[k],
+    serviceId: tripService[k],
+    directionId: tripDirection[k],
+    headsign: tripHeadsign[k],
+    shapeId: tripShape[k],
+  };
 }
 
 /** frequencies.txt [GTFS Schedule reference: exact_times 0 or empty = frequency-based, 1 = schedule-based] */
@@ -430,7 +498,12 @@ async function readFeedInfo(ctx: Ctx): Promise<FeedInfo | null> {
   let feedInfo: FeedInfo | null = null;
   if (ctx.archive.has('feed_info.txt')) {
     await table(ctx, 'feed_info.txt', [], ['feed_publisher_name', 'feed_version', 'feed_start_date', 'feed_end_date'], (row, c) => {
-      feedInfo ??= { publisherName: row.get(c.feed_publisher_name), version: row.get(c.feed_version), startDate: row.get(c.feed_start_date), endDate: row.get(c.feed_end_date) };
+      feedInfo ??= {
+        publisherName: row.get(c.feed_publisher_name),
+        version: row.get(c.feed_version),
+        startDate: row.get(c.feed_start_date),
+        endDate: row.get(c.feed_end_date),
+      };
     });
   }
   return feedInfo;
@@ -441,7 +514,8 @@ function routeIdsKept(routes: Map<string, Route>, routeFilter: string[]): Set<st
   const routeKeep = new Set<string>();
   for (const want of routeFilter) {
     const hits = [...routes.values()].filter((r) => r.id === want || r.shortName === want);
-    if (hits.length === 0) throw new StopspanError('bad-option', `invalid option routes: no route has id or short name ${want}`, { value: want });
+    if (hits.length === 0)
+      throw new StopspanError('bad-option', `invalid option routes: no route has id or short name ${want}`, { value: want });
     for (const r of hits) routeKeep.add(r.id);
   }
   return routeKeep;
@@ -464,9 +538,11 @@ function tripsKept(
     if (date === 'auto') {
       const freq = tripRunsPerDay(frequencies);
       const runsPerService = new Map<string, number>();
-      for (const k of candidates) runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
+      for (const k of candidates)
+        runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
       analysisDate = defaultAnalysisDate({ calendar, calendarDates }, runsPerService);
-      if (!analysisDate) throw new StopspanError('empty-feed', 'no Monday-Friday date in the service range has any trip', { file: 'calendar.txt' });
+      if (!analysisDate)
+        throw new StopspanError('empty-feed', 'no Monday-Friday date in the service range has any trip', { file: 'calendar.txt' });
     } else {
       analysisDate = date;
     }
@@ -479,7 +555,13 @@ function tripsKept(
 }
 
 /** Blank optional fields the later stages lean on, counted: direction_id, a known service_id, shape_id. */
-function warnBlankFields(kept: Trip[], { tripId, tripService }: TripColumns, candidates: number[], { calendar, calendarDates }: Calendars, warnings: WarningSink): void {
+function warnBlankFields(
+  kept: Trip[],
+  { tripId, tripService }: TripColumns,
+  candidates: number[],
+  { calendar, calendarDates }: Calendars,
+  warnings: WarningSink,
+): void {
   const noDirection = kept.filter((t) => t.directionId < 0);
   if (noDirection.length > 0) warnings.add('blank-direction-id', noDirection[0].id, noDirection.length);
   const known = new Set([...calendar.map((c) => c.serviceId), ...calendarDates.map((d) => d.serviceId)]);
@@ -503,7 +585,10 @@ async function readStopTimes(ctx: Ctx, kept: Trip[], stops: Stop[], stopIndex: M
   // two worker threads as well was measured slower in total and no faster in wall time on two cores.
   // Rows of trips not kept are passed over by the CSV reader, a trip's run at a time.
   const reader = new StopTimesRowReader(lookup, folder);
-  await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => reader.read(row, c), { column: 'trip_id', keep: (id) => reader.startTrip(id) });
+  await table(ctx, F, STOP_TIMES_REQUIRED, STOP_TIMES_OPTIONAL, (row, c) => reader.read(row, c), {
+    column: 'trip_id',
+    keep: (id) => reader.startTrip(id),
+  });
   folder.finish();
   if (reader.atStation > 0) warnings.add('stop-time-at-station', F, reader.atStation);
   if (folder.scattered) warnings.add('stop-times-not-grouped', F);
@@ -562,14 +647,18 @@ async function readShapes(ctx: Ctx, trips: Map<string, Trip>): Promise<Map<strin
       const g = wanted.get(row.get(c.shape_id));
       if (g === undefined) return;
       if (++pointsOf[g] > SHAPE_CAPS.pointsPerShape || owner.length >= SHAPE_CAPS.points) {
-        const what = pointsOf[g] > SHAPE_CAPS.pointsPerShape ? `a shape has more than ${SHAPE_CAPS.pointsPerShape} points` : `the shapes in use have more than ${SHAPE_CAPS.points} points`;
+        const what =
+          pointsOf[g] > SHAPE_CAPS.pointsPerShape
+            ? `a shape has more than ${SHAPE_CAPS.pointsPerShape} points`
+            : `the shapes in use have more than ${SHAPE_CAPS.points} points`;
         throw new StopspanError('feed-too-large', `${what}, the cap`, { file: S, line: row.line, column: 'shape_id', value: shapeIds[g] });
       }
       const seq = fieldUint(row, c.shape_pt_sequence);
       if (seq < 0) bad(S, row, c.shape_pt_sequence, 'shape_pt_sequence', 'a non-negative integer');
       const la = coord(S, row, c.shape_pt_lat, 'shape_pt_lat', 90);
       const lo = coord(S, row, c.shape_pt_lon, 'shape_pt_lon', 180);
-      if (Number.isNaN(la) || Number.isNaN(lo)) bad(S, row, Number.isNaN(la) ? c.shape_pt_lat : c.shape_pt_lon, Number.isNaN(la) ? 'shape_pt_lat' : 'shape_pt_lon', 'a coordinate');
+      if (Number.isNaN(la) || Number.isNaN(lo))
+        bad(S, row, Number.isNaN(la) ? c.shape_pt_lat : c.shape_pt_lon, Number.isNaN(la) ? 'shape_pt_lat' : 'shape_pt_lon', 'a coordinate');
       let d = NaN;
       if (c.shape_dist_traveled >= 0 && !row.isBlank(c.shape_dist_traveled)) {
         const v = fieldNumber(row, c.shape_dist_traveled);

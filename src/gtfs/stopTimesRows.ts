@@ -8,7 +8,14 @@ import { badField, BLANK, fieldNumber, fieldTimeS, fieldUint, intField, MALFORME
 
 export const STOP_TIMES_FILE = 'stop_times.txt';
 export const STOP_TIMES_REQUIRED = ['trip_id', 'stop_id', 'stop_sequence'] as const;
-export const STOP_TIMES_OPTIONAL = ['arrival_time', 'departure_time', 'shape_dist_traveled', 'timepoint', 'pickup_type', 'drop_off_type'] as const;
+export const STOP_TIMES_OPTIONAL = [
+  'arrival_time',
+  'departure_time',
+  'shape_dist_traveled',
+  'timepoint',
+  'pickup_type',
+  'drop_off_type',
+] as const;
 /**
  * Most stop_times rows one trip may have: 10 000. The longest real trips serve a few hundred stops (a
  * long bus route about 150, a long-distance train under 100); beyond this the feed is refused as too large
@@ -65,7 +72,13 @@ export class StopTimesRowReader {
     const t = this.trip;
     const stopId = row.get(c.stop_id);
     const s = this.lookup.stopIndex.get(stopId);
-    if (s === undefined) throw new StopspanError('bad-reference', 'stop_id is not in stops.txt', { file: F, line: row.line, column: 'stop_id', value: stopId });
+    if (s === undefined)
+      throw new StopspanError('bad-reference', 'stop_id is not in stops.txt', {
+        file: F,
+        line: row.line,
+        column: 'stop_id',
+        value: stopId,
+      });
     const seq = fieldUint(row, c.stop_sequence);
     if (seq < 0) badField(F, row, c.stop_sequence, 'stop_sequence', 'a non-negative integer');
     let arr = c.arrival_time < 0 ? BLANK : fieldTimeS(row, c.arrival_time);
@@ -92,10 +105,14 @@ export class StopTimesRowReader {
     }
     this.lastSeq = seq;
     if (++this.runRows > MAX_STOPS_PER_TRIP) {
-      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, { file: F, line: row.line, column: 'trip_id', value: this.tripId });
+      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, {
+        file: F,
+        line: row.line,
+        column: 'trip_id',
+        value: this.tripId,
+      });
     }
     if (this.lookup.station[s] === 1) this.atStation++;
     this.sink.push(t, s, seq, arr, dep, dist, exact ? 1 : 0, pickup === 1 && dropOff === 1 ? 1 : 0);
   }
 }
-

@@ -241,7 +241,14 @@ export function tripProfiles(stopTimes: ReadonlyMap<string, TripStopTimes>): Pic
   const interner = new ProfileInterner();
   const of = new Map<string, { profileId: number; baseS: number }>();
   for (const [id, st] of stopTimes) {
-    of.set(id, interner.intern({ stop: st.stopIdx, seq: st.seq, arr: st.arrS, dep: st.depS, dist: st.shapeDist, tp: st.timepoint, ns: st.noService }, 0, st.stopIdx.length));
+    of.set(
+      id,
+      interner.intern(
+        { stop: st.stopIdx, seq: st.seq, arr: st.arrS, dep: st.depS, dist: st.shapeDist, tp: st.timepoint, ns: st.noService },
+        0,
+        st.stopIdx.length,
+      ),
+    );
   }
   return {
     profile(tripId: string): TripProfile | undefined {
@@ -322,7 +329,10 @@ export class TripFolder implements StopTimesSink {
     this.repeated += s.sortAndDedupe();
     // the reader caps each run of a trip's rows; a trip gathered from several runs is held to the same cap
     if (s.used > MAX_STOPS_PER_TRIP) {
-      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, { file: STOP_TIMES_FILE, column: 'trip_id' });
+      throw new StopspanError('feed-too-large', `a trip has more than ${MAX_STOPS_PER_TRIP} stop_times rows, the cap per trip`, {
+        file: STOP_TIMES_FILE,
+        column: 'trip_id',
+      });
     }
     const { profileId, baseS } = this.interner.intern(s, 0, s.used);
     this.profileOfTrip[t] = profileId;
@@ -334,7 +344,17 @@ export class TripFolder implements StopTimesSink {
   private unfold(t: number): void {
     const p = this.interner.profiles[this.profileOfTrip[t]];
     const st = materialise(p, this.baseOfTrip[t]);
-    for (let q = 0; q < st.stopIdx.length; q++) (this.spill as RowColumns).push(t, st.stopIdx[q], st.seq[q], st.arrS[q], st.depS[q], st.shapeDist[q], st.timepoint[q], st.noService[q]);
+    for (let q = 0; q < st.stopIdx.length; q++)
+      (this.spill as RowColumns).push(
+        t,
+        st.stopIdx[q],
+        st.seq[q],
+        st.arrS[q],
+        st.depS[q],
+        st.shapeDist[q],
+        st.timepoint[q],
+        st.noService[q],
+      );
     this.profileOfTrip[t] = -1;
   }
 }

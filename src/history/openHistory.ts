@@ -62,7 +62,9 @@ const HISTORY_TABLES = ['schema_version', 'runs', 'run_findings'];
 export function openHistory(path: string, options: OpenHistoryOptions = {}): HistoryDb {
   const { busyTimeoutMs = 10_000, readOnly = false } = options;
   if (typeof path !== 'string' || path === '') {
-    throw new StopspanError('bad-option', `invalid option history: expected a file path, got ${JSON.stringify(path)}`, { value: String(path) });
+    throw new StopspanError('bad-option', `invalid option history: expected a file path, got ${JSON.stringify(path)}`, {
+      value: String(path),
+    });
   }
   if (!Number.isInteger(busyTimeoutMs) || busyTimeoutMs < 0) {
     throw new StopspanError('bad-option', `invalid option busyTimeoutMs: expected an integer >= 0, got ${busyTimeoutMs}`, {
@@ -120,12 +122,19 @@ function whileBusy<T>(f: () => T, timeoutMs: number): T {
  */
 function checkIsHistory(db: HistoryDb, path: string): boolean {
   const appId = Number(db.pragma('application_id', { simple: true }));
-  const names = (db.prepare("SELECT name FROM sqlite_master WHERE name NOT LIKE 'sqlite_%'").all() as { name: string }[]).map((r) => r.name);
+  const names = (db.prepare("SELECT name FROM sqlite_master WHERE name NOT LIKE 'sqlite_%'").all() as { name: string }[]).map(
+    (r) => r.name,
+  );
   if (appId === HISTORY_APPLICATION_ID) return false;
   if (appId === 0 && names.length === 0) return true;
   if (appId === 0 && HISTORY_TABLES.every((t) => names.includes(t))) return false;
-  const what = appId !== 0 ? `another program's (application id ${appId})` : `another program's (it holds ${names.slice(0, 3).join(', ')}${names.length > 3 ? ', …' : ''})`;
-  throw new StopspanError('history-db', `not a stopspan history database: it is ${what}; give a new file or one stopspan wrote`, { file: path });
+  const what =
+    appId !== 0
+      ? `another program's (application id ${appId})`
+      : `another program's (it holds ${names.slice(0, 3).join(', ')}${names.length > 3 ? ', …' : ''})`;
+  throw new StopspanError('history-db', `not a stopspan history database: it is ${what}; give a new file or one stopspan wrote`, {
+    file: path,
+  });
 }
 
 /** Throws history-db when the schema is newer than this stopspan's, or (to read only) older: that needs a write to migrate. */
@@ -140,10 +149,14 @@ function checkVersion(db: HistoryDb, path: string, readOnly: boolean): number {
     );
   }
   if (readOnly && current < SCHEMA_VERSION) {
-    throw new StopspanError('history-db', `the history database has schema version ${current}, older than this stopspan's (${SCHEMA_VERSION}); record a run in it to upgrade it`, {
-      file: path,
-      value: String(current),
-    });
+    throw new StopspanError(
+      'history-db',
+      `the history database has schema version ${current}, older than this stopspan's (${SCHEMA_VERSION}); record a run in it to upgrade it`,
+      {
+        file: path,
+        value: String(current),
+      },
+    );
   }
   return current;
 }
@@ -157,6 +170,7 @@ function migrate(db: HistoryDb, path: string): void {
     for (let v = current; v < SCHEMA_VERSION; v++) db.exec(MIGRATIONS[v]);
     if (!row) db.prepare('INSERT INTO schema_version (version) VALUES (?)').run(SCHEMA_VERSION);
     else if (current !== SCHEMA_VERSION) db.prepare('UPDATE schema_version SET version = ?').run(SCHEMA_VERSION);
-    if (Number(db.pragma('application_id', { simple: true })) !== HISTORY_APPLICATION_ID) db.pragma(`application_id = ${HISTORY_APPLICATION_ID}`);
+    if (Number(db.pragma('application_id', { simple: true })) !== HISTORY_APPLICATION_ID)
+      db.pragma(`application_id = ${HISTORY_APPLICATION_ID}`);
   }).immediate();
 }

@@ -79,7 +79,12 @@ function validate(row: RunRow): void {
   if (!row || typeof row !== 'object') bad('row', 'an object', row);
   if (typeof row.runDate !== 'string' || !/^\d{4}-\d{2}-\d{2}$/.test(row.runDate)) bad('runDate', 'YYYY-MM-DD', row.runDate);
   if (typeof row.command !== 'string' || row.command === '') bad('command', 'a command name', row.command);
-  if (!row.feed || typeof row.feed.contentHash !== 'string' || typeof row.feed.source !== 'string' || typeof row.feed.version !== 'string') {
+  if (
+    !row.feed ||
+    typeof row.feed.contentHash !== 'string' ||
+    typeof row.feed.source !== 'string' ||
+    typeof row.feed.version !== 'string'
+  ) {
     bad('feed', '{ source, contentHash, version } strings', row.feed);
   }
   for (const [code, count] of Object.entries(row.findings ?? {})) {

@@ -32,7 +32,12 @@ export function auditRunRow(result: AuditResult, options: { runDate?: string; ch
   return {
     runDate,
     command,
-    feed: { source: result.feed.source, contentHash: result.feed.contentHash, version: result.feed.version, publisher: result.feed.publisher },
+    feed: {
+      source: result.feed.source,
+      contentHash: result.feed.contentHash,
+      version: result.feed.version,
+      publisher: result.feed.publisher,
+    },
     headline: {
       analysisDate: result.date,
       patterns: h.patterns,

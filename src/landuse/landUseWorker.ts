@@ -9,7 +9,9 @@ import { readLandUse, type LandUseColumn } from './readLandUse.js';
 const { file, columns } = workerData as { file: string; columns: LandUseColumn[] | null };
 try {
   const layer = readLandUse(file, { columns });
-  const buffers = [layer.featureRef, layer.lat, layer.lon, layer.featureOf, layer.people, ...layer.amounts].map((a) => a.buffer as ArrayBuffer);
+  const buffers = [layer.featureRef, layer.lat, layer.lon, layer.featureOf, layer.people, ...layer.amounts].map(
+    (a) => a.buffer as ArrayBuffer,
+  );
   parentPort!.postMessage({ layer }, buffers);
 } catch (e) {
   if (isStopspanError(e)) parentPort!.postMessage({ error: { code: e.code, message: e.message, context: e.context } });

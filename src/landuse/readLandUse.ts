@@ -71,13 +71,20 @@ export function parseLandUseWeights(text: string): LandUseColumn[] {
     const name = (eq < 0 ? p : p.slice(0, eq)).trim();
     const w = eq < 0 ? 1 : parseDecimal(p.slice(eq + 1));
     if (name === '' || w === null || w < 0) {
-      throw new StopspanError('bad-option', 'invalid option --land-use-weights: expected column=weight pairs with weights of 0 or more, comma-separated', { value: p });
+      throw new StopspanError(
+        'bad-option',
+        'invalid option --land-use-weights: expected column=weight pairs with weights of 0 or more, comma-separated',
+        { value: p },
+      );
     }
-    if (out.some((c) => c.name === name)) throw new StopspanError('bad-option', `invalid option --land-use-weights: column ${name} given twice`, { value: text });
+    if (out.some((c) => c.name === name))
+      throw new StopspanError('bad-option', `invalid option --land-use-weights: column ${name} given twice`, { value: text });
     out.push({ name, weight: w });
   }
   if (out.length === 0 || !out.some((c) => c.weight > 0)) {
-    throw new StopspanError('bad-option', 'invalid option --land-use-weights: name at least one column with a weight above 0', { value: text });
+    throw new StopspanError('bad-option', 'invalid option --land-use-weights: name at least one column with a weight above 0', {
+      value: text,
+    });
   }
   return out;
 }
@@ -117,7 +124,10 @@ class LayerBuilder {
 
   feature(ref: string, refNo: number): number {
     if (this.featureRef.length >= MAX_LAND_USE_FEATURES) {
-      throw new StopspanError('feed-too-large', `land-use file has more than ${MAX_LAND_USE_FEATURES} features, the cap`, { file: this.file, column: ref });
+      throw new StopspanError('feed-too-large', `land-use file has more than ${MAX_LAND_USE_FEATURES} features, the cap`, {
+        file: this.file,
+        column: ref,
+      });
     }
     this.featureRef.push(refNo);
     return this.featureRef.length - 1;
@@ -125,7 +135,10 @@ class LayerBuilder {
 
   point(k: number, lat: number, lon: number, values: number[], share: number, ref: string): void {
     if (this.lat.length >= MAX_LAND_USE_POINTS) {
-      throw new StopspanError('feed-too-large', `land-use file's features make more than ${MAX_LAND_USE_POINTS} points, the cap`, { file: this.file, column: ref });
+      throw new StopspanError('feed-too-large', `land-use file's features make more than ${MAX_LAND_USE_POINTS} points, the cap`, {
+        file: this.file,
+        column: ref,
+      });
     }
     this.lat.push(lat);
     this.lon.push(lon);
@@ -136,7 +149,10 @@ class LayerBuilder {
   addVertices(n: number, ref: string): void {
     this.vertices += n;
     if (this.vertices > MAX_LAND_USE_VERTICES) {
-      throw new StopspanError('feed-too-large', `land-use file has more than ${MAX_LAND_USE_VERTICES} polygon vertices, the cap`, { file: this.file, column: ref });
+      throw new StopspanError('feed-too-large', `land-use file has more than ${MAX_LAND_USE_VERTICES} polygon vertices, the cap`, {
+        file: this.file,
+        column: ref,
+      });
     }
   }
 
@@ -169,8 +185,20 @@ class LayerBuilder {
 function count(value: unknown, file: string, where: { line?: number; feature?: string }, column: string): number {
   const n = typeof value === 'number' ? (Number.isFinite(value) ? value : null) : typeof value === 'string' ? parseDecimal(value) : null;
   const at = where.feature ? `${where.feature}: ` : '';
-  if (n === null) throw new StopspanError('bad-land-use', `${at}invalid ${column}: expected a number`, { file, line: where.line, column, value: String(value) });
-  if (n < 0) throw new StopspanError('bad-land-use', `${at}invalid ${column}: a count cannot be negative`, { file, line: where.line, column, value: String(value) });
+  if (n === null)
+    throw new StopspanError('bad-land-use', `${at}invalid ${column}: expected a number`, {
+      file,
+      line: where.line,
+      column,
+      value: String(value),
+    });
+  if (n < 0)
+    throw new StopspanError('bad-land-use', `${at}invalid ${column}: a count cannot be negative`, {
+      file,
+      line: where.line,
+      column,
+      value: String(value),
+    });
   return n;
 }
 
@@ -179,7 +207,11 @@ function coordinate(value: unknown, file: string, where: { line?: number; featur
   const limit = column === 'lat' ? 90 : 180;
   const at = where.feature ? `${where.feature}: ` : '';
   if (n === null || n < -limit || n > limit) {
-    throw new StopspanError('bad-land-use', `${at}invalid ${column}: expected a ${column === 'lat' ? 'latitude from -90 to 90' : 'longitude from -180 to 180'}`, { file, line: where.line, column, value: String(value) });
+    throw new StopspanError(
+      'bad-land-use',
+      `${at}invalid ${column}: expected a ${column === 'lat' ? 'latitude from -90 to 90' : 'longitude from -180 to 180'}`,
+      { file, line: where.line, column, value: String(value) },
+    );
   }
   return n;
 }
@@ -203,7 +235,12 @@ class CsvLandUseReader {
     const file = this.file;
     const col = new Map(header.map((h, i) => [h.trim().toLowerCase(), i]));
     for (const name of ['lat', 'lon'] as const) {
-      if (!col.has(name)) throw new StopspanError('bad-land-use', `land-use file lacks the column ${name}: every row needs coordinates (lat, lon)`, { file, line: 1, column: name });
+      if (!col.has(name))
+        throw new StopspanError('bad-land-use', `land-use file lacks the column ${name}: every row needs coordinates (lat, lon)`, {
+          file,
+          line: 1,
+          column: name,
+        });
     }
     this.iLat = col.get('lat')!;
     this.iLon = col.get('lon')!;
@@ -231,21 +268,35 @@ class CsvLandUseReader {
 }
 
 /** The columns to read: those asked for (each must exist), or the defaults the file has (at least one). */
-function chooseColumns(asked: LandUseColumn[] | null, has: (name: string) => boolean, file: string, where: { line?: number; feature?: string }): LandUseColumn[] {
+function chooseColumns(
+  asked: LandUseColumn[] | null,
+  has: (name: string) => boolean,
+  file: string,
+  where: { line?: number; feature?: string },
+): LandUseColumn[] {
   const at = where.feature ? `${where.feature}: ` : '';
   if (asked) {
     for (const c of asked) {
-      if (!has(c.name)) throw new StopspanError('bad-land-use', `${at}land-use file lacks the column ${c.name} named in --land-use-weights`, { file, line: where.line, column: c.name });
+      if (!has(c.name))
+        throw new StopspanError('bad-land-use', `${at}land-use file lacks the column ${c.name} named in --land-use-weights`, {
+          file,
+          line: where.line,
+          column: c.name,
+        });
     }
     return asked;
   }
   const found = DEFAULT_LAND_USE_COLUMNS.filter((c) => has(c.name));
   if (found.length === 0) {
-    throw new StopspanError('bad-land-use', `${at}land-use file has neither ${DEFAULT_LAND_USE_COLUMNS.map((c) => c.name).join(' nor ')}; name its columns with --land-use-weights`, {
-      file,
-      line: where.line,
-      column: DEFAULT_LAND_USE_COLUMNS[0].name,
-    });
+    throw new StopspanError(
+      'bad-land-use',
+      `${at}land-use file has neither ${DEFAULT_LAND_USE_COLUMNS.map((c) => c.name).join(' nor ')}; name its columns with --land-use-weights`,
+      {
+        file,
+        line: where.line,
+        column: DEFAULT_LAND_USE_COLUMNS[0].name,
+      },
+    );
   }
   return found.map((c) => ({ ...c }));
 }
@@ -257,7 +308,11 @@ function isObject(x: unknown): x is Record<string, unknown> {
 /** A GeoJSON position checked: [lon, lat] numbers in range (the array itself, an altitude after them allowed). */
 function position(p: unknown, file: string, feature: string): number[] {
   if (!Array.isArray(p) || p.length < 2 || typeof p[0] !== 'number' || typeof p[1] !== 'number') {
-    throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a position must be [lon, lat] numbers`, { file, column: 'geometry', value: JSON.stringify(p)?.slice(0, 80) });
+    throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a position must be [lon, lat] numbers`, {
+      file,
+      column: 'geometry',
+      value: JSON.stringify(p)?.slice(0, 80),
+    });
   }
   if (!(p[0] >= -180 && p[0] <= 180)) coordinate(p[0], file, { feature }, 'lon');
   if (!(p[1] >= -90 && p[1] <= 90)) coordinate(p[1], file, { feature }, 'lat');
@@ -266,7 +321,8 @@ function position(p: unknown, file: string, feature: string): number[] {
 
 /** A polygon's rings checked (arrays of four or more positions, closed, with an area above zero), and its area. */
 function polygonRings(coords: unknown, file: string, feature: string, b: LayerBuilder): { areaM2: number; pieces: PolygonPiece[] } {
-  const bad = (why: string): StopspanError => new StopspanError('bad-land-use', `${feature}: invalid geometry: ${why}`, { file, column: 'geometry' });
+  const bad = (why: string): StopspanError =>
+    new StopspanError('bad-land-use', `${feature}: invalid geometry: ${why}`, { file, column: 'geometry' });
   if (!Array.isArray(coords) || coords.length === 0) throw bad('a polygon needs at least one ring');
   const rings: Ring[] = [];
   coords.forEach((ring, r) => {
@@ -279,7 +335,10 @@ function polygonRings(coords: unknown, file: string, feature: string, b: LayerBu
     rings.push(ring as number[][]);
   });
   const { areaM2, pieces } = polygonAreaAndPieces(rings);
-  if (!(areaM2 > 0)) throw bad(rings.length > 1 && polygonAreaM2(rings.slice(0, 1)) > 0 ? 'the holes cover the whole polygon' : 'the outer ring encloses no area');
+  if (!(areaM2 > 0))
+    throw bad(
+      rings.length > 1 && polygonAreaM2(rings.slice(0, 1)) > 0 ? 'the holes cover the whole polygon' : 'the outer ring encloses no area',
+    );
   return { areaM2, pieces };
 }
 
@@ -392,7 +451,12 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
   } catch (e) {
     throw new StopspanError('bad-land-use', `cannot read land-use file: ${(e as Error).message}`, { file });
   }
-  if (size > MAX_GEOJSON_BYTES) throw new StopspanError('feed-too-large', `land-use GeoJSON file is larger than ${MAX_GEOJSON_BYTES >> 20} MiB, the cap (use CSV points, which are streamed)`, { file });
+  if (size > MAX_GEOJSON_BYTES)
+    throw new StopspanError(
+      'feed-too-large',
+      `land-use GeoJSON file is larger than ${MAX_GEOJSON_BYTES >> 20} MiB, the cap (use CSV points, which are streamed)`,
+      { file },
+    );
   let text: string;
   try {
     const bytes = readFileSync(file);
@@ -408,7 +472,12 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
   if (spans) {
     try {
       const envelope: unknown = JSON.parse(text.slice(0, spans.start) + '[]' + text.slice(spans.end));
-      if (isObject(envelope) && envelope.type === 'FeatureCollection' && Array.isArray(envelope.features) && envelope.features.length === 0) {
+      if (
+        isObject(envelope) &&
+        envelope.type === 'FeatureCollection' &&
+        Array.isArray(envelope.features) &&
+        envelope.features.length === 0
+      ) {
         const at = spans.items;
         return layerOfFeatures(file, asked, at.length / 2, (i) => JSON.parse(text.slice(at[2 * i], at[2 * i + 1])));
       }
@@ -422,9 +491,22 @@ function readGeoJson(file: string, asked: LandUseColumn[] | null): LandUseLayer 
   } catch (e) {
     throw new StopspanError('bad-land-use', `land-use file is not valid JSON: ${(e as Error).message}`, { file });
   }
-  const features: unknown[] = isObject(doc) && doc.type === 'FeatureCollection' && Array.isArray(doc.features) ? doc.features : isObject(doc) && doc.type === 'Feature' ? [doc] : [];
-  if (!isObject(doc) || (doc.type !== 'FeatureCollection' && doc.type !== 'Feature') || (doc.type === 'FeatureCollection' && !Array.isArray(doc.features))) {
-    throw new StopspanError('bad-land-use', 'land-use GeoJSON must be a FeatureCollection (or one Feature)', { file, column: 'type', value: isObject(doc) ? String(doc.type) : typeof doc });
+  const features: unknown[] =
+    isObject(doc) && doc.type === 'FeatureCollection' && Array.isArray(doc.features)
+      ? doc.features
+      : isObject(doc) && doc.type === 'Feature'
+        ? [doc]
+        : [];
+  if (
+    !isObject(doc) ||
+    (doc.type !== 'FeatureCollection' && doc.type !== 'Feature') ||
+    (doc.type === 'FeatureCollection' && !Array.isArray(doc.features))
+  ) {
+    throw new StopspanError('bad-land-use', 'land-use GeoJSON must be a FeatureCollection (or one Feature)', {
+      file,
+      column: 'type',
+      value: isObject(doc) ? String(doc.type) : typeof doc,
+    });
   }
   return layerOfFeatures(file, asked, features.length, (i) => features[i]);
 }
@@ -435,16 +517,22 @@ function layerOfFeatures(file: string, asked: LandUseColumn[] | null, n: number,
   for (let i = 0; i < n; i++) {
     const f = feature_(i);
     const feature = `feature ${i + 1}`;
-    if (!isObject(f) || f.type !== 'Feature') throw new StopspanError('bad-land-use', `${feature}: not a GeoJSON Feature`, { file, column: 'type' });
+    if (!isObject(f) || f.type !== 'Feature')
+      throw new StopspanError('bad-land-use', `${feature}: not a GeoJSON Feature`, { file, column: 'type' });
     const props = isObject(f.properties) ? f.properties : {};
-    if (!b) b = new LayerBuilder(file, chooseColumns(asked, (name) => name in props, file, { feature }));
+    if (!b)
+      b = new LayerBuilder(
+        file,
+        chooseColumns(asked, (name) => name in props, file, { feature }),
+      );
     const builder: LayerBuilder = b;
     const values = builder.columns.map((c) => {
       if (!(c.name in props)) throw new StopspanError('bad-land-use', `${feature}: lacks the property ${c.name}`, { file, column: c.name });
       return count(props[c.name], file, { feature }, c.name);
     });
     const g = f.geometry;
-    if (!isObject(g)) throw new StopspanError('bad-land-use', `${feature}: invalid geometry: none given (no coordinates)`, { file, column: 'geometry' });
+    if (!isObject(g))
+      throw new StopspanError('bad-land-use', `${feature}: invalid geometry: none given (no coordinates)`, { file, column: 'geometry' });
     const k = builder.feature(feature, i + 1);
     const coords = g.coordinates;
     switch (g.type) {
@@ -454,7 +542,11 @@ function layerOfFeatures(file: string, asked: LandUseColumn[] | null, n: number,
         break;
       }
       case 'MultiPoint': {
-        if (!Array.isArray(coords) || coords.length === 0) throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a MultiPoint needs at least one position`, { file, column: 'geometry' });
+        if (!Array.isArray(coords) || coords.length === 0)
+          throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a MultiPoint needs at least one position`, {
+            file,
+            column: 'geometry',
+          });
         builder.addVertices(coords.length, feature);
         const pts = coords.map((p) => position(p, file, feature));
         for (const [lon, lat] of pts) builder.point(k, lat, lon, values, 1 / pts.length, feature);
@@ -463,7 +555,11 @@ function layerOfFeatures(file: string, asked: LandUseColumn[] | null, n: number,
       case 'Polygon':
       case 'MultiPolygon': {
         const polys = g.type === 'Polygon' ? [coords] : coords;
-        if (!Array.isArray(polys) || polys.length === 0) throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a MultiPolygon needs at least one polygon`, { file, column: 'geometry' });
+        if (!Array.isArray(polys) || polys.length === 0)
+          throw new StopspanError('bad-land-use', `${feature}: invalid geometry: a MultiPolygon needs at least one polygon`, {
+            file,
+            column: 'geometry',
+          });
         const parts = polys.map((c) => polygonRings(c, file, feature, builder));
         // the people over the parts by area, then over each part's pieces
         const total = parts.reduce((s, p) => s + p.areaM2, 0);
@@ -473,7 +569,11 @@ function layerOfFeatures(file: string, asked: LandUseColumn[] | null, n: number,
         break;
       }
       default:
-        throw new StopspanError('bad-land-use', `${feature}: invalid geometry: expected Point, MultiPoint, Polygon or MultiPolygon`, { file, column: 'geometry', value: String(g.type) });
+        throw new StopspanError('bad-land-use', `${feature}: invalid geometry: expected Point, MultiPoint, Polygon or MultiPolygon`, {
+          file,
+          column: 'geometry',
+          value: String(g.type),
+        });
     }
   }
   if (!b) throw new StopspanError('bad-land-use', 'land-use file has no features', { file });
@@ -502,7 +602,10 @@ function looksLikeGeoJson(file: string): boolean {
  * Reads a land-use layer from a CSV or GeoJSON file. `columns` names the numeric columns and their weights
  * (parseLandUseWeights); absent, population and jobs, whichever the file has, at a weight of 1 each.
  */
-export function readLandUse(file: string, { columns = null, warnings }: { columns?: LandUseColumn[] | null; warnings?: WarningSink } = {}): LandUseLayer {
+export function readLandUse(
+  file: string,
+  { columns = null, warnings }: { columns?: LandUseColumn[] | null; warnings?: WarningSink } = {},
+): LandUseLayer {
   if (looksLikeGeoJson(file)) return readGeoJson(file, columns);
   const r = new CsvLandUseReader(file, columns);
   let fd: number;

@@ -31,13 +31,16 @@ export function readLandUseAside(file: string, { columns = null }: { columns?: L
       return;
     }
     let settled = false;
-    worker.once('message', (m: { layer?: LandUseLayer; error?: { code: ErrorCode; message: string; context: ErrorContext }; bug?: string }) => {
-      settled = true;
-      if (m.layer) resolve(m.layer);
-      else if (m.error) reject(new StopspanError(m.error.code, m.error.message, m.error.context));
-      else reject(new Error(`land-use reader failed: ${m.bug}`));
-      void worker.terminate();
-    });
+    worker.once(
+      'message',
+      (m: { layer?: LandUseLayer; error?: { code: ErrorCode; message: string; context: ErrorContext }; bug?: string }) => {
+        settled = true;
+        if (m.layer) resolve(m.layer);
+        else if (m.error) reject(new StopspanError(m.error.code, m.error.message, m.error.context));
+        else reject(new Error(`land-use reader failed: ${m.bug}`));
+        void worker.terminate();
+      },
+    );
     worker.once('error', (e) => {
       if (!settled) reject(e);
       settled = true;

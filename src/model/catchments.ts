@@ -84,17 +84,23 @@ function checkNearStops(layer: LandUseLayer, feed: Feed): void {
     if (!near) {
       // the shortcut refused a point it may accept: measure to every stop of the window
       let best = Infinity;
-      for (let a = ci - 1; a <= ci + 1; a++) for (let b = cj - spanJ; b <= cj + spanJ; b++) for (const s of cells.get(`${a},${b}`) ?? []) best = Math.min(best, haversineM(lat, lon, feed.stops[s].lat, feed.stops[s].lon));
+      for (let a = ci - 1; a <= ci + 1; a++)
+        for (let b = cj - spanJ; b <= cj + spanJ; b++)
+          for (const s of cells.get(`${a},${b}`) ?? []) best = Math.min(best, haversineM(lat, lon, feed.stops[s].lat, feed.stops[s].lon));
       if (best < LAND_USE_FAR_M) continue;
       const k = layer.featureOf[i];
       const ref = layer.format === 'csv' ? { line: layer.featureRef[k] } : {};
       const at = layer.format === 'csv' ? '' : `feature ${layer.featureRef[k]}: `;
-      throw new StopspanError('bad-land-use', `${at}coordinates ${LAND_USE_FAR_M / 1000} km or more from every stop of the feed (a layer of another place, or lat and lon swapped?)`, {
-        file: layer.file,
-        ...ref,
-        column: layer.format === 'csv' ? 'lat' : 'geometry',
-        value: `${lat.toFixed(6)},${lon.toFixed(6)}`,
-      });
+      throw new StopspanError(
+        'bad-land-use',
+        `${at}coordinates ${LAND_USE_FAR_M / 1000} km or more from every stop of the feed (a layer of another place, or lat and lon swapped?)`,
+        {
+          file: layer.file,
+          ...ref,
+          column: layer.format === 'csv' ? 'lat' : 'geometry',
+          value: `${lat.toFixed(6)},${lon.toFixed(6)}`,
+        },
+      );
     }
   }
 }
@@ -280,7 +286,8 @@ export function densityGrid(c: Catchments): DensityGrid {
     const sums = new Map<number, number>();
     for (let i = 0; i < layer.lat.length; i++) {
       if (!(layer.people[i] > 0)) continue;
-      const key = (Math.floor((layer.lat[i] - lat0) / latStep) + KEY_OFFSET) * KEY_ROW + Math.floor((layer.lon[i] - lon0) / lonStep) + KEY_OFFSET;
+      const key =
+        (Math.floor((layer.lat[i] - lat0) / latStep) + KEY_OFFSET) * KEY_ROW + Math.floor((layer.lon[i] - lon0) / lonStep) + KEY_OFFSET;
       sums.set(key, (sums.get(key) ?? 0) + layer.people[i]);
     }
     // the squares near a stop served: around each stop, those whose centre is within the reach (metres in the

@@ -66,7 +66,8 @@ export class Corridor {
     const n = posM.length;
     if (n < 2) throw new RangeError(`Corridor: expected at least 2 stops, got ${n}`);
     if (boardPerDay.length !== n || alightPerDay.length !== n) throw new RangeError('Corridor: demand arrays must match the stops');
-    for (let j = 1; j < n; j++) if (!(posM[j] >= posM[j - 1])) throw new RangeError(`Corridor: positions must be non-decreasing (stop ${j})`);
+    for (let j = 1; j < n; j++)
+      if (!(posM[j] >= posM[j - 1])) throw new RangeError(`Corridor: positions must be non-decreasing (stop ${j})`);
     this.n = n;
     this.posM = Float64Array.from(posM);
     this.tripsPerDay = tripsPerDay;
@@ -350,7 +351,14 @@ export function walkCostS(corridor: Corridor, xi: number, xk: number, { walkSpee
  * Cost of the bus serving an intermediate stop at `pos` between served neighbours (rider-seconds per day):
  * p * P(lambda) * riders passing through. `existingIndex` is the stop's index in the corridor, or -1 for a new stop.
  */
-export function servedStopCost(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): ServedStop {
+export function servedStopCost(
+  corridor: Corridor,
+  prevM: number,
+  pos: number,
+  nextM: number,
+  existingIndex: number,
+  settings: CostSettings,
+): ServedStop {
   corridor.catchmentInto(prevM, pos, nextM);
   const endsPerDay = corridor.catchEndsPerDay;
   const throughPerDay = corridor.catchThroughPerDay;
@@ -362,7 +370,14 @@ export function servedStopCost(corridor: Corridor, prevM: number, pos: number, n
 }
 
 /** servedStopCost(...).costS alone, building no object. */
-export function servedStopCostS(corridor: Corridor, prevM: number, pos: number, nextM: number, existingIndex: number, settings: CostSettings): number {
+export function servedStopCostS(
+  corridor: Corridor,
+  prevM: number,
+  pos: number,
+  nextM: number,
+  existingIndex: number,
+  settings: CostSettings,
+): number {
   corridor.catchmentInto(prevM, pos, nextM);
   return caughtStopCostS(corridor, existingIndex, settings);
 }
@@ -395,7 +410,14 @@ export function servedSetCostS(corridor: Corridor, kept: number[], settings: Cos
   let total = 0;
   for (let t = 0; t + 1 < kept.length; t++) total += walkCostS(corridor, corridor.posM[kept[t]], corridor.posM[kept[t + 1]], settings);
   for (let t = 1; t + 1 < kept.length; t++) {
-    total += servedStopCost(corridor, corridor.posM[kept[t - 1]], corridor.posM[kept[t]], corridor.posM[kept[t + 1]], kept[t], settings).costS;
+    total += servedStopCost(
+      corridor,
+      corridor.posM[kept[t - 1]],
+      corridor.posM[kept[t]],
+      corridor.posM[kept[t + 1]],
+      kept[t],
+      settings,
+    ).costS;
   }
   return total;
 }

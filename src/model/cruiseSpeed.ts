@@ -26,12 +26,18 @@ export const BOARDING_TIME_PER_PAX_S = 2.75;
  */
 export function cruiseSpeedBoundsMps(routeType: number): { typicalMps: number; maxMps: number } {
   switch (speedFamily(routeType)) {
-    case 'bus': return { typicalMps: MPH25, maxMps: 25 }; // bus, trolleybus, coach
-    case 'tram': return { typicalMps: MPH25, maxMps: 22 }; // on street
-    case 'metro': return { typicalMps: 15, maxMps: 30 };
-    case 'rail': return { typicalMps: 25, maxMps: 70 };
-    case 'ferry': return { typicalMps: 8, maxMps: 20 };
-    default: return { typicalMps: 8, maxMps: 30 }; // cable cars, funiculars, other
+    case 'bus':
+      return { typicalMps: MPH25, maxMps: 25 }; // bus, trolleybus, coach
+    case 'tram':
+      return { typicalMps: MPH25, maxMps: 22 }; // on street
+    case 'metro':
+      return { typicalMps: 15, maxMps: 30 };
+    case 'rail':
+      return { typicalMps: 25, maxMps: 70 };
+    case 'ferry':
+      return { typicalMps: 8, maxMps: 20 };
+    default:
+      return { typicalMps: 8, maxMps: 30 }; // cable cars, funiculars, other
   }
 }
 
@@ -57,7 +63,17 @@ export interface CruiseSpeedEstimate {
   trafficDelayS: number;
 }
 
-export function estimateCruiseSpeed({ runTimeS, lengthM, expectedStopsServed, boardingsPerTrip, doorTimeS, reentryDelayS, accelMps2, decelMps2, routeType }: CruiseSpeedInput): CruiseSpeedEstimate {
+export function estimateCruiseSpeed({
+  runTimeS,
+  lengthM,
+  expectedStopsServed,
+  boardingsPerTrip,
+  doorTimeS,
+  reentryDelayS,
+  accelMps2,
+  decelMps2,
+  routeType,
+}: CruiseSpeedInput): CruiseSpeedEstimate {
   const { typicalMps, maxMps } = cruiseSpeedBoundsMps(routeType);
   if (!(runTimeS > 0) || !(lengthM > 0)) return { cruiseSpeedMps: typicalMps, solvedMps: NaN, basis: 'typical', trafficDelayS: 0 };
   const n = Math.max(0, expectedStopsServed);
@@ -68,7 +84,8 @@ export function estimateCruiseSpeed({ runTimeS, lengthM, expectedStopsServed, bo
   const disc = available * available - 4 * qa * lengthM;
   let solved = NaN;
   if (available > 0 && disc >= 0) solved = (2 * lengthM) / (available + Math.sqrt(disc)); // smaller root, stable form
-  if (!Number.isFinite(solved) || solved > maxMps) return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'implausible', trafficDelayS: 0 };
+  if (!Number.isFinite(solved) || solved > maxMps)
+    return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'implausible', trafficDelayS: 0 };
   if (solved >= typicalMps) return { cruiseSpeedMps: solved, solvedMps: solved, basis: 'schedule', trafficDelayS: 0 };
   const explained = lengthM / typicalMps + fixed + qa * typicalMps;
   return { cruiseSpeedMps: typicalMps, solvedMps: solved, basis: 'typical', trafficDelayS: Math.max(0, runTimeS - explained) };

@@ -27,7 +27,13 @@ const MILE_M = 1609.344;
  * unlinked trips [M, APTA Public Transportation Fact Book, from memory: bus about 5 250, heavy rail about
  * 3 700, light rail about 460, commuter rail about 465, ferry about 78 million].
  */
-export const NATIONAL_MEAN_TRIP_MI = { bus: 19_883 / 5_250, tram: 2_198 / 460, metro: 17_317 / 3_700, rail: 11_314 / 465, ferry: 389 / 78 } as const;
+export const NATIONAL_MEAN_TRIP_MI = {
+  bus: 19_883 / 5_250,
+  tram: 2_198 / 460,
+  metro: 17_317 / 3_700,
+  rail: 11_314 / 465,
+  ferry: 389 / 78,
+} as const;
 
 /**
  * The typical mean in-vehicle trip on a city's local buses: about 2 miles (3.2 km) [M, from memory: large
@@ -46,12 +52,18 @@ export const CITY_BUS_MEAN_TRIP_M = 2 * MILE_M;
  */
 export function typicalTripLengthM(routeType: number): number {
   switch (speedFamily(routeType)) {
-    case 'bus': return CITY_BUS_MEAN_TRIP_M;
-    case 'tram': return NATIONAL_MEAN_TRIP_MI.tram * MILE_M;
-    case 'metro': return NATIONAL_MEAN_TRIP_MI.metro * MILE_M;
-    case 'rail': return NATIONAL_MEAN_TRIP_MI.rail * MILE_M;
-    case 'ferry': return NATIONAL_MEAN_TRIP_MI.ferry * MILE_M;
-    default: return CITY_BUS_MEAN_TRIP_M;
+    case 'bus':
+      return CITY_BUS_MEAN_TRIP_M;
+    case 'tram':
+      return NATIONAL_MEAN_TRIP_MI.tram * MILE_M;
+    case 'metro':
+      return NATIONAL_MEAN_TRIP_MI.metro * MILE_M;
+    case 'rail':
+      return NATIONAL_MEAN_TRIP_MI.rail * MILE_M;
+    case 'ferry':
+      return NATIONAL_MEAN_TRIP_MI.ferry * MILE_M;
+    default:
+      return CITY_BUS_MEAN_TRIP_M;
   }
 }
 
@@ -84,7 +96,9 @@ export interface PatternDemand {
 export function catchmentLengths(posM: number[], catchmentHalfMaxM: number): number[] {
   const n = posM.length;
   return posM.map(
-    (x, j) => (j === n - 1 ? x : Math.min((x + posM[j + 1]) / 2, x + catchmentHalfMaxM)) - (j === 0 ? x : Math.max((posM[j - 1] + x) / 2, x - catchmentHalfMaxM)),
+    (x, j) =>
+      (j === n - 1 ? x : Math.min((x + posM[j + 1]) / 2, x + catchmentHalfMaxM)) -
+      (j === 0 ? x : Math.max((posM[j - 1] + x) / 2, x - catchmentHalfMaxM)),
   );
 }
 
@@ -251,7 +265,14 @@ export function ridershipDemand(
   return out;
 }
 
-function finish(patternId: string, posM: number[], boardPerDay: number[], alightPerDay: number[], demandSource: DemandSource, fallbackTripM: number): PatternDemand {
+function finish(
+  patternId: string,
+  posM: number[],
+  boardPerDay: number[],
+  alightPerDay: number[],
+  demandSource: DemandSource,
+  fallbackTripM: number,
+): PatternDemand {
   const n = posM.length;
   const loadDepartingPerDay: number[] = new Array(n).fill(0);
   let load = 0;

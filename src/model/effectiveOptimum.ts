@@ -15,7 +15,11 @@ export interface EffectiveOptimum {
 
 export function effectiveOptimum(
   settings: CostSettings,
-  { meanTripLengthM, tripEndsPerTripPerM, meanObservedShare = null }: { meanTripLengthM: number; tripEndsPerTripPerM: number; meanObservedShare?: number | null },
+  {
+    meanTripLengthM,
+    tripEndsPerTripPerM,
+    meanObservedShare = null,
+  }: { meanTripLengthM: number; tripEndsPerTripPerM: number; meanObservedShare?: number | null },
 ): EffectiveOptimum {
   const base = { walkSpeedMps: settings.walkSpeedMps, walkWeight: settings.walkWeight, meanTripLengthM: Math.max(meanTripLengthM, 0) };
   const prob = (s: number) => {

@@ -81,7 +81,12 @@ export function headways(deps: number[]): { peakS: number; meanS: number } | nul
  * Per route touched by a change: effects give each changed pattern's run time saved per trip and
  * vehicle-hours; preps are every pattern (a route's unchanged patterns count in its means).
  */
-export function routeFleet(feed: Feed, preps: PreparedPattern[], effects: { patternId: string; routeId: string; runTimeSavedPerTripS: number; vehicleHoursPerDay: number }[], costPerVehicleHour: number | null): RouteFleet[] {
+export function routeFleet(
+  feed: Feed,
+  preps: PreparedPattern[],
+  effects: { patternId: string; routeId: string; runTimeSavedPerTripS: number; vehicleHoursPerDay: number }[],
+  costPerVehicleHour: number | null,
+): RouteFleet[] {
   const saved = new Map(effects.map((e) => [e.patternId, e.runTimeSavedPerTripS]));
   const routes = [...new Set(effects.map((e) => e.routeId))].sort();
   return routes.map((routeId) => {
@@ -97,7 +102,7 @@ export function routeFleet(feed: Feed, preps: PreparedPattern[], effects: { patt
       if (!(trips > 0)) continue;
       roundTripS += list.reduce((s, p) => s + p.pattern.runTimeS * p.pattern.tripsPerDay, 0) / trips;
       savedS += list.reduce((s, p) => s + (saved.get(p.pattern.id) ?? 0) * p.pattern.tripsPerDay, 0) / trips;
-      if (trips > busiestTrips) (busiestTrips = trips), (busiest = list);
+      if (trips > busiestTrips) ((busiestTrips = trips), (busiest = list));
     }
     const h = headways(busiest.flatMap((p) => departures(feed, p)).sort((a, b) => a - b));
     const f = h && roundTripS > 0 ? fleetFigures(roundTripS, savedS, h.peakS) : null;

@@ -43,7 +43,9 @@ export function chooseStopping(
     return { stoppingModel: 'observed', observedShare: modelStops.map((j) => observed.stopShare[j] ?? fill) };
   }
   if (params.stopping_model === 'observed') {
-    warnings.add('no-observed-stopping', patternId, 1, { used: withoutArchive === 'always' ? 'every stop served (demand assumed)' : 'Poisson on the counted demand' });
+    warnings.add('no-observed-stopping', patternId, 1, {
+      used: withoutArchive === 'always' ? 'every stop served (demand assumed)' : 'Poisson on the counted demand',
+    });
     return { stoppingModel: withoutArchive, observedShare: undefined };
   }
   if (hasShares) {
@@ -69,7 +71,13 @@ export interface RunningInputs {
 const fmt = (x: number): string => String(Math.round(x * 100) / 100);
 
 /** The one warning per overridden input, its message naming the value set; examples name pattern and observed value. */
-function overridden(warnings: WarningSink, code: 'observed-overridden-door-time-s' | 'observed-overridden-cruise-speed-mps', setText: string, patternId: string, observedText: string): void {
+function overridden(
+  warnings: WarningSink,
+  code: 'observed-overridden-door-time-s' | 'observed-overridden-cruise-speed-mps',
+  setText: string,
+  patternId: string,
+  observedText: string,
+): void {
   warnings.add(code, `${patternId}: set ${setText}, observed ${observedText}`, 1, { set: setText });
 }
 
@@ -81,7 +89,13 @@ export function chooseRunningInputs(
   params: ModelParams,
   given: ReadonlySet<ParamName>,
   pattern: Pattern,
-  { lengthM, routeType, expectedStopsServed, boardingsPerTrip, modelStops }: { lengthM: number; routeType: number; expectedStopsServed: number; boardingsPerTrip: number; modelStops: number[] },
+  {
+    lengthM,
+    routeType,
+    expectedStopsServed,
+    boardingsPerTrip,
+    modelStops,
+  }: { lengthM: number; routeType: number; expectedStopsServed: number; boardingsPerTrip: number; modelStops: number[] },
   observed: ObservedPattern | undefined,
   warnings: WarningSink,
 ): RunningInputs {
@@ -93,7 +107,8 @@ export function chooseRunningInputs(
   // door time: the fixed part of the observed dwells, unless the user set one
   let doorTimeS = params.door_time_s;
   if (obsDoor !== null) {
-    if (given.has('door_time_s')) overridden(warnings, 'observed-overridden-door-time-s', `${fmt(params.door_time_s)} s`, pattern.id, `${fmt(obsDoor)} s`);
+    if (given.has('door_time_s'))
+      overridden(warnings, 'observed-overridden-door-time-s', `${fmt(params.door_time_s)} s`, pattern.id, `${fmt(obsDoor)} s`);
     else {
       doorTimeS = obsDoor;
       parts.push('door_time');
@@ -108,7 +123,8 @@ export function chooseRunningInputs(
   if (params.cruise_speed_mps !== null) {
     cruiseSpeedMps = params.cruise_speed_mps;
     cruiseSpeedSource = 'user';
-    if (obsV !== null) overridden(warnings, 'observed-overridden-cruise-speed-mps', `${fmt(params.cruise_speed_mps)} m/s`, pattern.id, `${fmt(obsV)} m/s`);
+    if (obsV !== null)
+      overridden(warnings, 'observed-overridden-cruise-speed-mps', `${fmt(params.cruise_speed_mps)} m/s`, pattern.id, `${fmt(obsV)} m/s`);
   } else if (obsV !== null) {
     cruiseSpeedMps = obsV;
     cruiseSpeedSource = 'observed';
@@ -137,7 +153,9 @@ export function chooseRunningInputs(
       parts.push('stop_loss');
     } else if (setTerms.length > 0) {
       const setText = setTerms.map((n) => `${n}=${fmt(params[n] as number)}`).join(', ');
-      warnings.add('observed-overridden-stop-loss', `${pattern.id}: set ${fmt(kinematicLossS)} s, observed ${fmt(obsLoss)} s`, 1, { set: setText });
+      warnings.add('observed-overridden-stop-loss', `${pattern.id}: set ${fmt(kinematicLossS)} s, observed ${fmt(obsLoss)} s`, 1, {
+        set: setText,
+      });
     }
   }
 

@@ -43,7 +43,11 @@ export function optimiseStops(corridor: Corridor, settings: CostSettings, option
  * and offered to every setting's programme, instead of once per setting. Each result is bit for bit
  * that of optimiseStops alone: the same offers in the same order, the same arithmetic.
  */
-export function optimiseStopsAt(corridor: Corridor, settingsList: readonly CostSettings[], { forced = [], maxGapM = Infinity, maxWindowStops = MAX_WINDOW_STOPS }: OptimiseOptions = {}): OptimiseResult[] {
+export function optimiseStopsAt(
+  corridor: Corridor,
+  settingsList: readonly CostSettings[],
+  { forced = [], maxGapM = Infinity, maxWindowStops = MAX_WINDOW_STOPS }: OptimiseOptions = {},
+): OptimiseResult[] {
   const n = corridor.n;
   const m = settingsList.length;
   if (!(maxGapM > 0)) throw new RangeError(`optimiseStops: maxGapM must be above 0, got ${maxGapM}`);

@@ -55,20 +55,75 @@ interface ParamSpec {
 
 /** Every parameter with its default, source label and note. The one table docs and reports draw on. */
 export const PARAM_SPECS: Record<ParamName, ParamSpec> = {
-  walk_speed_mps: { default: 1.2, source: 'M', kind: 'positive', note: 'common practice: pedestrian design speed of about 1.2 m/s (4 ft/s); value from memory' },
-  walk_weight: { default: 2, source: 'M', kind: 'positive', note: 'common practice: riders weigh walking about twice in-vehicle time; value from memory' },
-  door_time_s: { default: 5, source: 'C', kind: 'nonnegative', note: 'fixed part of dwell, 5 s (Levinson 1983, TRR 915); door opening and closing alone is 2-5 s (TCQSM, from memory)' },
+  walk_speed_mps: {
+    default: 1.2,
+    source: 'M',
+    kind: 'positive',
+    note: 'common practice: pedestrian design speed of about 1.2 m/s (4 ft/s); value from memory',
+  },
+  walk_weight: {
+    default: 2,
+    source: 'M',
+    kind: 'positive',
+    note: 'common practice: riders weigh walking about twice in-vehicle time; value from memory',
+  },
+  door_time_s: {
+    default: 5,
+    source: 'C',
+    kind: 'nonnegative',
+    note: 'fixed part of dwell, 5 s (Levinson 1983, TRR 915); door opening and closing alone is 2-5 s (TCQSM, from memory)',
+  },
   accel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   decel_mps2: { default: 1.22, source: 'S', kind: 'positive', note: '4.0 ft/s2, HCM 2010 transit delay expression, via the design notes' },
   reentry_delay_s: { default: 2, source: 'M', kind: 'nonnegative', note: 'assumption: wait to re-enter traffic, chosen within 0-3 s' },
-  cruise_speed_mps: { default: null, source: 'estimated', kind: 'positive-or-null', note: 'estimated per pattern: the slowest cruise that keeps to the schedule, or the typical speed of the route type (bus 25 mph, from memory) when the schedule is slower, the rest taken as traffic delay' },
-  mean_trip_length_m: { default: null, source: 'M', kind: 'positive-or-null', note: 'mean in-vehicle trip: from the ridership load profile, else typical for the route type (city bus 2 mi, 3.2 km, from memory; other modes US national passenger-miles over unlinked trips), trip lengths exponential, truncated by the pattern\'s ends' },
-  band_tolerance: { default: 0.05, source: 'D', kind: 'fraction', note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal' },
-  max_gap_m: { default: 800, source: 'M', kind: 'positive', note: 'common practice walking policy (about half a mile between stops); from memory' },
-  stopping_model: { default: 'auto', source: 'D', kind: 'stopping', note: 'auto: observed stop shares where realtime data covers a pattern, Poisson P = 1 - exp(-lambda) where demand comes from a ridership file, always (every stop served) where demand is assumed, since a chance of skipping a stop is only as good as the counts behind it' },
-  assumed_boardings_per_trip_km: { default: 3, source: 'M', kind: 'positive', note: 'assumption used only without a ridership file: boardings per trip per km of pattern; it scales the passenger-minutes, and moves the optimum only when stopping_model=poisson is set' },
-  operating_cost_per_vehicle_hour: { default: null, source: 'D', kind: 'nonnegative-or-null', note: 'not set: operating cost left out of the optimiser' },
-  value_of_time_per_hour: { default: null, source: 'D', kind: 'positive-or-null', note: 'not set: needed with operating_cost_per_vehicle_hour to weigh it against riders\' time' },
+  cruise_speed_mps: {
+    default: null,
+    source: 'estimated',
+    kind: 'positive-or-null',
+    note: 'estimated per pattern: the slowest cruise that keeps to the schedule, or the typical speed of the route type (bus 25 mph, from memory) when the schedule is slower, the rest taken as traffic delay',
+  },
+  mean_trip_length_m: {
+    default: null,
+    source: 'M',
+    kind: 'positive-or-null',
+    note: "mean in-vehicle trip: from the ridership load profile, else typical for the route type (city bus 2 mi, 3.2 km, from memory; other modes US national passenger-miles over unlinked trips), trip lengths exponential, truncated by the pattern's ends",
+  },
+  band_tolerance: {
+    default: 0.05,
+    source: 'D',
+    kind: 'fraction',
+    note: 'design choice: spacings costing riders at most 5 % more than the optimum count as near-optimal',
+  },
+  max_gap_m: {
+    default: 800,
+    source: 'M',
+    kind: 'positive',
+    note: 'common practice walking policy (about half a mile between stops); from memory',
+  },
+  stopping_model: {
+    default: 'auto',
+    source: 'D',
+    kind: 'stopping',
+    note: 'auto: observed stop shares where realtime data covers a pattern, Poisson P = 1 - exp(-lambda) where demand comes from a ridership file, always (every stop served) where demand is assumed, since a chance of skipping a stop is only as good as the counts behind it',
+  },
+  assumed_boardings_per_trip_km: {
+    default: 3,
+    source: 'M',
+    kind: 'positive',
+    note: 'assumption used only without a ridership file: boardings per trip per km of pattern; it scales the passenger-minutes, and moves the optimum only when stopping_model=poisson is set',
+  },
+  operating_cost_per_vehicle_hour: {
+    default: null,
+    source: 'D',
+    kind: 'nonnegative-or-null',
+    note: 'not set: operating cost left out of the optimiser',
+  },
+  value_of_time_per_hour: {
+    default: null,
+    source: 'D',
+    kind: 'positive-or-null',
+    note: "not set: needed with operating_cost_per_vehicle_hour to weigh it against riders' time",
+  },
 };
 
 export const PARAM_NAMES: readonly ParamName[] = Object.freeze(Object.keys(PARAM_SPECS) as ParamName[]);
@@ -123,13 +178,21 @@ export function normalizeParams(input: unknown, { file }: { file?: string } = {}
   if (typeof input === 'object' && input !== null && CHECKED.has(input)) return input as NormalizedParams;
   if (input === undefined || input === null) return checked(defaultParams(), []);
   if (typeof input !== 'object' || Array.isArray(input)) {
-    throw new StopspanError('bad-option', `invalid parameters: expected an object of named values, got ${Array.isArray(input) ? 'an array' : typeof input}`, { file });
+    throw new StopspanError(
+      'bad-option',
+      `invalid parameters: expected an object of named values, got ${Array.isArray(input) ? 'an array' : typeof input}`,
+      { file },
+    );
   }
   const values = defaultParams() as unknown as Record<string, unknown>;
   const given: ParamName[] = [];
   for (const [key, raw] of Object.entries(input as Record<string, unknown>)) {
     if (!(key in PARAM_SPECS)) {
-      throw new StopspanError('bad-option', `invalid parameter ${key}: expected one of ${PARAM_NAMES.join(', ')}, got an unknown name`, { file, column: key, value: key });
+      throw new StopspanError('bad-option', `invalid parameter ${key}: expected one of ${PARAM_NAMES.join(', ')}, got an unknown name`, {
+        file,
+        column: key,
+        value: key,
+      });
     }
     if (raw === undefined) continue;
     values[key] = check(key as ParamName, raw, file);
@@ -166,7 +229,10 @@ export function loadParams(path: string | undefined, overrides: Readonly<Record<
 }
 
 /** The parameters used, each with its value, source label (user when set) and note, for summary.json. */
-export function paramsReport(params: NormalizedParams, overrides: Partial<Record<ParamName, { value: number | string | null; source: SourceLabel; note: string }>> = {}): ParamsReport {
+export function paramsReport(
+  params: NormalizedParams,
+  overrides: Partial<Record<ParamName, { value: number | string | null; source: SourceLabel; note: string }>> = {},
+): ParamsReport {
   const out: ParamsReport = {};
   for (const name of PARAM_NAMES) {
     const spec = PARAM_SPECS[name];

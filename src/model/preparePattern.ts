@@ -74,7 +74,13 @@ export function preparePattern(
   const routeType = route?.type ?? 3;
   const demand = demandOf(modelStops, posM);
   const trips = pattern.tripsPerDay > 0 ? pattern.tripsPerDay : 1;
-  const corridor = new Corridor({ posM, boardPerDay: demand.boardPerDay, alightPerDay: demand.alightPerDay, tripsPerDay: trips, catchmentHalfMaxM: params.max_gap_m / 2 });
+  const corridor = new Corridor({
+    posM,
+    boardPerDay: demand.boardPerDay,
+    alightPerDay: demand.alightPerDay,
+    tripsPerDay: trips,
+    catchmentHalfMaxM: params.max_gap_m / 2,
+  });
   if (demand.tooShortForTrip) {
     warnings.add(
       'pattern-short-for-trip',
@@ -89,7 +95,13 @@ export function preparePattern(
     params,
     given,
     pattern,
-    { lengthM: posM[posM.length - 1] - posM[0], routeType, expectedStopsServed: expectedStopsServed(demand, trips, stopping), boardingsPerTrip: demand.ridersPerDay / trips, modelStops },
+    {
+      lengthM: posM[posM.length - 1] - posM[0],
+      routeType,
+      expectedStopsServed: expectedStopsServed(demand, trips, stopping),
+      boardingsPerTrip: demand.ridersPerDay / trips,
+      modelStops,
+    },
     observed,
     warnings,
   );
@@ -149,8 +161,15 @@ export function preparePattern(
 }
 
 /** The cost settings of a prepared pattern at a walk weight (operating cost off unless asked). */
-export function costSettings(prep: PreparedPattern, params: ModelParams, { walkWeight = params.walk_weight, withOperatingCost = false }: { walkWeight?: number; withOperatingCost?: boolean } = {}): CostSettings {
-  const op = withOperatingCost && params.operating_cost_per_vehicle_hour !== null && params.value_of_time_per_hour !== null ? params.operating_cost_per_vehicle_hour / params.value_of_time_per_hour : 0;
+export function costSettings(
+  prep: PreparedPattern,
+  params: ModelParams,
+  { walkWeight = params.walk_weight, withOperatingCost = false }: { walkWeight?: number; withOperatingCost?: boolean } = {},
+): CostSettings {
+  const op =
+    withOperatingCost && params.operating_cost_per_vehicle_hour !== null && params.value_of_time_per_hour !== null
+      ? params.operating_cost_per_vehicle_hour / params.value_of_time_per_hour
+      : 0;
   return {
     walkSpeedMps: params.walk_speed_mps,
     walkWeight,

@@ -42,7 +42,12 @@ export const MAX_RIDERSHIP_ROWS = 1_000_000;
 function count(text: string, file: string, line: number, column: string): number {
   const n = parseDecimal(text);
   if (n === null || n < 0) {
-    throw new StopspanError('bad-ridership', `invalid ${column}: expected a number of 0 or more per day`, { file, line, column, value: text });
+    throw new StopspanError('bad-ridership', `invalid ${column}: expected a number of 0 or more per day`, {
+      file,
+      line,
+      column,
+      value: text,
+    });
   }
   return n;
 }
@@ -73,7 +78,11 @@ class RidershipReader {
     const col = new Map(header.map((h, i) => [h.trim().toLowerCase(), i]));
     for (const name of REQUIRED) {
       if (!col.has(name)) {
-        throw new StopspanError('bad-ridership', `ridership file lacks the required column ${name} (needs ${REQUIRED.join(', ')}; route_id and direction_id optional)`, { file, line: 1, column: name });
+        throw new StopspanError(
+          'bad-ridership',
+          `ridership file lacks the required column ${name} (needs ${REQUIRED.join(', ')}; route_id and direction_id optional)`,
+          { file, line: 1, column: name },
+        );
       }
     }
     this.iStop = col.get('stop_id')!;
@@ -90,14 +99,21 @@ class RidershipReader {
       throw new StopspanError('feed-too-large', `ridership file has more than ${MAX_RIDERSHIP_ROWS} data rows, the cap`, { file, line });
     }
     const stopId = f.get(this.iStop).trim();
-    if (stopId === '') throw new StopspanError('bad-ridership', 'blank stop_id', { file, line, column: 'stop_id', value: f.get(this.iStop) });
+    if (stopId === '')
+      throw new StopspanError('bad-ridership', 'blank stop_id', { file, line, column: 'stop_id', value: f.get(this.iStop) });
     const boardingsPerDay = count(f.get(this.iB), file, line, 'boardings');
     const alightingsPerDay = count(f.get(this.iA), file, line, 'alightings');
     const routeRaw = this.iRoute === undefined ? '' : f.get(this.iRoute).trim();
     const dirRaw = this.iDir === undefined ? '' : f.get(this.iDir).trim();
     let directionId: number | null = null;
     if (dirRaw !== '') {
-      if (dirRaw !== '0' && dirRaw !== '1') throw new StopspanError('bad-ridership', 'invalid direction_id: expected 0, 1 or blank', { file, line, column: 'direction_id', value: dirRaw });
+      if (dirRaw !== '0' && dirRaw !== '1')
+        throw new StopspanError('bad-ridership', 'invalid direction_id: expected 0, 1 or blank', {
+          file,
+          line,
+          column: 'direction_id',
+          value: dirRaw,
+        });
       directionId = Number(dirRaw);
     }
     const routeId = routeRaw === '' ? null : routeRaw;
@@ -113,13 +129,22 @@ class RidershipReader {
     const key = `${stopId}\u0000${routeId ?? ''}\u0000${directionId ?? ''}`;
     const dupLine = this.seen.get(key);
     if (dupLine !== undefined) {
-      throw new StopspanError('bad-ridership', `duplicate ridership row for stop ${stopId}${routeId ? ` route ${routeId}` : ''}${directionId !== null ? ` direction ${directionId}` : ''} (first on line ${dupLine}); combine the rows`, { file, line, column: 'stop_id', value: stopId });
+      throw new StopspanError(
+        'bad-ridership',
+        `duplicate ridership row for stop ${stopId}${routeId ? ` route ${routeId}` : ''}${directionId !== null ? ` direction ${directionId}` : ''} (first on line ${dupLine}); combine the rows`,
+        { file, line, column: 'stop_id', value: stopId },
+      );
     }
     this.seen.set(key, line);
     const scope = routeId === null && directionId === null ? 'all' : 'route';
     const prior = this.stopScope.get(stopId);
     if (prior !== undefined && prior !== scope) {
-      throw new StopspanError('bad-ridership', `stop ${stopId} is given both for all routes and per route; the counts would be double`, { file, line, column: 'route_id', value: routeRaw });
+      throw new StopspanError('bad-ridership', `stop ${stopId} is given both for all routes and per route; the counts would be double`, {
+        file,
+        line,
+        column: 'route_id',
+        value: routeRaw,
+      });
     }
     this.stopScope.set(stopId, scope);
     this.rows.push({ stopIdx, stopId, routeId, directionId, boardingsPerDay, alightingsPerDay, line });

@@ -60,10 +60,14 @@ export interface StopChange {
  * each (a stop on several patterns is one line), for the renderers' warning: the audit keeps such a stop as a
  * transfer point to another mode.
  */
-export function changesNearStations(result: Pick<ScenarioResult, 'patterns'>): { stopId: string; stopName: string; action: StopChange['action']; nearStation: string }[] {
+export function changesNearStations(
+  result: Pick<ScenarioResult, 'patterns'>,
+): { stopId: string; stopName: string; action: StopChange['action']; nearStation: string }[] {
   const out = new Map<string, { stopId: string; stopName: string; action: StopChange['action']; nearStation: string }>();
   for (const e of result.patterns) {
-    for (const c of e.changes) if (c.nearStation && !out.has(c.stopId)) out.set(c.stopId, { stopId: c.stopId, stopName: c.stopName, action: c.action, nearStation: c.nearStation });
+    for (const c of e.changes)
+      if (c.nearStation && !out.has(c.stopId))
+        out.set(c.stopId, { stopId: c.stopId, stopName: c.stopName, action: c.action, nearStation: c.nearStation });
   }
   return [...out.values()];
 }
@@ -97,7 +101,19 @@ export interface ScenarioPatternEffect {
   coverageAfter: number;
 }
 
-export type ScenarioTotals = Omit<ScenarioPatternEffect, 'patternId' | 'routeId' | 'tripsPerDay' | 'demandSource' | 'removedStopIds' | 'movedStopIds' | 'addedCount' | 'changes' | 'coverageBefore' | 'coverageAfter'> & { patternsAffected: number; overPolicyAfter: number };
+export type ScenarioTotals = Omit<
+  ScenarioPatternEffect,
+  | 'patternId'
+  | 'routeId'
+  | 'tripsPerDay'
+  | 'demandSource'
+  | 'removedStopIds'
+  | 'movedStopIds'
+  | 'addedCount'
+  | 'changes'
+  | 'coverageBefore'
+  | 'coverageAfter'
+> & { patternsAffected: number; overPolicyAfter: number };
 
 export interface ScenarioSensitivity {
   label: string;
@@ -161,24 +177,29 @@ const FILTER_KEYS = ['patterns', 'routes', 'direction', 'headsign', 'both_direct
 function parseFilter(r: Record<string, unknown>, where: string, file?: string): StopFilter {
   const out: StopFilter = {};
   if (r.routes !== undefined) {
-    if (!Array.isArray(r.routes) || r.routes.some((x) => typeof x !== 'string')) throw bad(`invalid scenario ${where}.routes: expected a list of route ids`, JSON.stringify(r.routes), file);
+    if (!Array.isArray(r.routes) || r.routes.some((x) => typeof x !== 'string'))
+      throw bad(`invalid scenario ${where}.routes: expected a list of route ids`, JSON.stringify(r.routes), file);
     out.routes = r.routes as string[];
   }
   if (r.patterns !== undefined) {
-    if (!Array.isArray(r.patterns) || r.patterns.some((x) => typeof x !== 'string')) throw bad(`invalid scenario ${where}.patterns: expected a list of pattern ids`, JSON.stringify(r.patterns), file);
+    if (!Array.isArray(r.patterns) || r.patterns.some((x) => typeof x !== 'string'))
+      throw bad(`invalid scenario ${where}.patterns: expected a list of pattern ids`, JSON.stringify(r.patterns), file);
     out.patterns = r.patterns as string[];
   }
   if (r.direction !== undefined) {
     const d = typeof r.direction === 'string' ? Number(r.direction) : r.direction;
-    if (d !== 0 && d !== 1) throw bad(`invalid scenario ${where}.direction: expected direction_id 0 or 1`, JSON.stringify(r.direction), file);
+    if (d !== 0 && d !== 1)
+      throw bad(`invalid scenario ${where}.direction: expected direction_id 0 or 1`, JSON.stringify(r.direction), file);
     out.direction = d;
   }
   if (r.headsign !== undefined) {
-    if (typeof r.headsign !== 'string' || r.headsign.trim() === '') throw bad(`invalid scenario ${where}.headsign: expected text`, JSON.stringify(r.headsign), file);
+    if (typeof r.headsign !== 'string' || r.headsign.trim() === '')
+      throw bad(`invalid scenario ${where}.headsign: expected text`, JSON.stringify(r.headsign), file);
     out.headsign = r.headsign;
   }
   if (r.both_directions !== undefined) {
-    if (typeof r.both_directions !== 'boolean') throw bad(`invalid scenario ${where}.both_directions: expected true or false`, JSON.stringify(r.both_directions), file);
+    if (typeof r.both_directions !== 'boolean')
+      throw bad(`invalid scenario ${where}.both_directions: expected true or false`, JSON.stringify(r.both_directions), file);
     out.both_directions = r.both_directions;
   }
   return out;
@@ -187,15 +208,19 @@ function parseFilter(r: Record<string, unknown>, where: string, file?: string): 
 /** Checks a scenario object (from a file or built from options); unknown keys are errors. */
 export function parseScenario(input: unknown, { file }: { file?: string } = {}): ScenarioInput {
   if (!isObject(input)) throw bad('invalid scenario: expected an object with remove, add and/or move', undefined, file);
-  for (const k of Object.keys(input)) if (!KNOWN_KEYS.includes(k)) throw bad(`invalid scenario key ${k}: expected one of ${KNOWN_KEYS.join(', ')}`, k, file);
+  for (const k of Object.keys(input))
+    if (!KNOWN_KEYS.includes(k)) throw bad(`invalid scenario key ${k}: expected one of ${KNOWN_KEYS.join(', ')}`, k, file);
   const out: ScenarioInput = {};
   if (input.remove !== undefined) {
     if (!Array.isArray(input.remove)) throw bad('invalid scenario remove: expected a list', undefined, file);
     out.remove = input.remove.map((r, i) => {
       if (typeof r === 'string') return r;
       if (!isObject(r)) throw bad(`invalid scenario remove[${i}]: expected a stop id or {stop, routes}`, JSON.stringify(r), file);
-      for (const k of Object.keys(r)) if (k !== 'stop' && !FILTER_KEYS.includes(k)) throw bad(`invalid scenario key remove[${i}].${k}: expected stop, ${FILTER_KEYS.join(', ')}`, k, file);
-      if (typeof r.stop !== 'string' || r.stop === '') throw bad(`invalid scenario remove[${i}].stop: expected a stop id or name`, JSON.stringify(r.stop), file);
+      for (const k of Object.keys(r))
+        if (k !== 'stop' && !FILTER_KEYS.includes(k))
+          throw bad(`invalid scenario key remove[${i}].${k}: expected stop, ${FILTER_KEYS.join(', ')}`, k, file);
+      if (typeof r.stop !== 'string' || r.stop === '')
+        throw bad(`invalid scenario remove[${i}].stop: expected a stop id or name`, JSON.stringify(r.stop), file);
       return { stop: r.stop, ...parseFilter(r, `remove[${i}]`, file) };
     });
   }
@@ -203,28 +228,52 @@ export function parseScenario(input: unknown, { file }: { file?: string } = {}):
     if (!Array.isArray(input.add)) throw bad('invalid scenario add: expected a list', undefined, file);
     out.add = input.add.map((a, i) => {
       if (!isObject(a)) throw bad(`invalid scenario add[${i}]: expected {lat, lon, route?, name?}`, JSON.stringify(a), file);
-      for (const k of Object.keys(a)) if (!['lat', 'lon', 'route', 'name', 'patterns'].includes(k)) throw bad(`invalid scenario key add[${i}].${k}: expected lat, lon, route, name or patterns`, k, file);
-      if (a.patterns !== undefined && (!Array.isArray(a.patterns) || a.patterns.some((x) => typeof x !== 'string'))) throw bad(`invalid scenario add[${i}].patterns: expected a list of pattern ids`, JSON.stringify(a.patterns), file);
-      if (a.route !== undefined && typeof a.route !== 'string') throw bad(`invalid scenario add[${i}].route: expected a route id`, JSON.stringify(a.route), file);
-      if (a.name !== undefined && typeof a.name !== 'string') throw bad(`invalid scenario add[${i}].name: expected text`, JSON.stringify(a.name), file);
-      return { ...latLon(a.lat, a.lon, `add[${i}]`, file), ...(a.route !== undefined ? { route: a.route as string } : {}), ...(a.name !== undefined ? { name: a.name as string } : {}), ...(a.patterns !== undefined ? { patterns: a.patterns as string[] } : {}) };
+      for (const k of Object.keys(a))
+        if (!['lat', 'lon', 'route', 'name', 'patterns'].includes(k))
+          throw bad(`invalid scenario key add[${i}].${k}: expected lat, lon, route, name or patterns`, k, file);
+      if (a.patterns !== undefined && (!Array.isArray(a.patterns) || a.patterns.some((x) => typeof x !== 'string')))
+        throw bad(`invalid scenario add[${i}].patterns: expected a list of pattern ids`, JSON.stringify(a.patterns), file);
+      if (a.route !== undefined && typeof a.route !== 'string')
+        throw bad(`invalid scenario add[${i}].route: expected a route id`, JSON.stringify(a.route), file);
+      if (a.name !== undefined && typeof a.name !== 'string')
+        throw bad(`invalid scenario add[${i}].name: expected text`, JSON.stringify(a.name), file);
+      return {
+        ...latLon(a.lat, a.lon, `add[${i}]`, file),
+        ...(a.route !== undefined ? { route: a.route as string } : {}),
+        ...(a.name !== undefined ? { name: a.name as string } : {}),
+        ...(a.patterns !== undefined ? { patterns: a.patterns as string[] } : {}),
+      };
     });
   }
   if (input.move !== undefined) {
     if (!Array.isArray(input.move)) throw bad('invalid scenario move: expected a list', undefined, file);
     out.move = input.move.map((m, i) => {
       if (!isObject(m)) throw bad(`invalid scenario move[${i}]: expected {stop, lat, lon}`, JSON.stringify(m), file);
-      for (const k of Object.keys(m)) if (!['stop', 'lat', 'lon', ...FILTER_KEYS].includes(k)) throw bad(`invalid scenario key move[${i}].${k}: expected stop, lat, lon, ${FILTER_KEYS.join(', ')}`, k, file);
-      if (typeof m.stop !== 'string' || m.stop === '') throw bad(`invalid scenario move[${i}].stop: expected a stop id or name`, JSON.stringify(m.stop), file);
+      for (const k of Object.keys(m))
+        if (!['stop', 'lat', 'lon', ...FILTER_KEYS].includes(k))
+          throw bad(`invalid scenario key move[${i}].${k}: expected stop, lat, lon, ${FILTER_KEYS.join(', ')}`, k, file);
+      if (typeof m.stop !== 'string' || m.stop === '')
+        throw bad(`invalid scenario move[${i}].stop: expected a stop id or name`, JSON.stringify(m.stop), file);
       return { stop: m.stop, ...latLon(m.lat, m.lon, `move[${i}]`, file), ...parseFilter(m, `move[${i}]`, file) };
     });
   }
-  if (!out.remove?.length && !out.add?.length && !out.move?.length) throw bad('invalid scenario: nothing to remove, add or move', undefined, file);
+  if (!out.remove?.length && !out.add?.length && !out.move?.length)
+    throw bad('invalid scenario: nothing to remove, add or move', undefined, file);
   return out;
 }
 
 /** Builds a scenario from command-line strings: remove STOP; add LAT,LON[:ROUTE]; move STOP:LAT,LON. */
-export function scenarioFromOptions({ remove = [], add = [], move = [], filter = {} }: { remove?: string[]; add?: string[]; move?: string[]; filter?: StopFilter }): ScenarioInput {
+export function scenarioFromOptions({
+  remove = [],
+  add = [],
+  move = [],
+  filter = {},
+}: {
+  remove?: string[];
+  add?: string[];
+  move?: string[];
+  filter?: StopFilter;
+}): ScenarioInput {
   const hasFilter = Object.keys(filter).length > 0;
   const addOut = add.map((s) => {
     const m = /^\s*([-+0-9.eE]+)\s*,\s*([-+0-9.eE]+)\s*(?::\s*(.+))?$/.exec(s);
@@ -237,7 +286,11 @@ export function scenarioFromOptions({ remove = [], add = [], move = [], filter =
     return { stop: m[1].trim(), lat: Number(m[2]), lon: Number(m[3]), ...filter };
   });
   const removeOut = hasFilter ? remove.map((stop) => ({ stop, ...filter })) : remove;
-  return parseScenario({ ...(removeOut.length ? { remove: removeOut } : {}), ...(addOut.length ? { add: addOut } : {}), ...(moveOut.length ? { move: moveOut } : {}) });
+  return parseScenario({
+    ...(removeOut.length ? { remove: removeOut } : {}),
+    ...(addOut.length ? { add: addOut } : {}),
+    ...(moveOut.length ? { move: moveOut } : {}),
+  });
 }
 
 /** Reads a scenario JSON file. */
@@ -268,7 +321,9 @@ function describeStop(feed: Feed, preps: PreparedPattern[], stopIdx: number): st
   for (const prep of preps) {
     if (!prep.modelStops.some((j) => prep.pattern.stopIdx[j] === stopIdx)) continue;
     const route = feed.routes.get(prep.pattern.routeId);
-    served.add(`route ${route?.shortName || prep.pattern.routeId} direction ${prep.pattern.directionId < 0 ? '-' : prep.pattern.directionId}${prep.pattern.headsign ? ` to ${prep.pattern.headsign}` : ''}`);
+    served.add(
+      `route ${route?.shortName || prep.pattern.routeId} direction ${prep.pattern.directionId < 0 ? '-' : prep.pattern.directionId}${prep.pattern.headsign ? ` to ${prep.pattern.headsign}` : ''}`,
+    );
   }
   return `${s.id}  ${s.name}: ${served.size ? [...served].sort().join('; ') : 'no pattern on the analysis date'}`;
 }
@@ -287,25 +342,57 @@ function resolveStops(feed: Feed, preps: PreparedPattern[], ref: string, f: Stop
   feed.stops.forEach((s, i) => {
     if (isStop(i) && nameKey(s.name) === wanted) hits.push(i);
   });
-  const list = (idx: number[]) => [...idx.slice(0, LISTED).map((i) => describeStop(feed, preps, i)), ...(idx.length > LISTED ? [`... and ${idx.length - LISTED} more`] : [])];
+  const list = (idx: number[]) => [
+    ...idx.slice(0, LISTED).map((i) => describeStop(feed, preps, i)),
+    ...(idx.length > LISTED ? [`... and ${idx.length - LISTED} more`] : []),
+  ];
   if (hits.length === 0) {
-    const near = nearestNames(ref, feed.stops.filter((_, i) => isStop(i)).map((s) => s.name), { max: Math.max(2, Math.floor(wanted.length / 4)), limit: LISTED, key: nameKey });
-    throw new StopspanError('bad-scenario', `${where}: unknown stop "${ref}" (neither a stop_id nor a stop name of the feed)${near.length ? '; nearest names:' : ''}`, { value: ref, choices: near });
+    const near = nearestNames(
+      ref,
+      feed.stops.filter((_, i) => isStop(i)).map((s) => s.name),
+      { max: Math.max(2, Math.floor(wanted.length / 4)), limit: LISTED, key: nameKey },
+    );
+    throw new StopspanError(
+      'bad-scenario',
+      `${where}: unknown stop "${ref}" (neither a stop_id nor a stop name of the feed)${near.length ? '; nearest names:' : ''}`,
+      { value: ref, choices: near },
+    );
   }
-  const serving = (i: number) => preps.some((prep) => patternPasses(feed, prep, f) && prep.modelStops.some((j) => prep.pattern.stopIdx[j] === i));
+  const serving = (i: number) =>
+    preps.some((prep) => patternPasses(feed, prep, f) && prep.modelStops.some((j) => prep.pattern.stopIdx[j] === i));
   const matching = hits.filter(serving);
-  const filterText = [f.routes ? `route ${f.routes.join(', ')}` : '', f.direction !== undefined ? `direction ${f.direction}` : '', f.headsign ? `headsign "${f.headsign}"` : ''].filter(Boolean).join(', ');
+  const filterText = [
+    f.routes ? `route ${f.routes.join(', ')}` : '',
+    f.direction !== undefined ? `direction ${f.direction}` : '',
+    f.headsign ? `headsign "${f.headsign}"` : '',
+  ]
+    .filter(Boolean)
+    .join(', ');
   if (matching.length === 0) {
-    throw new StopspanError('bad-scenario', `${where}: no stop named "${ref}" is served${filterText ? ` by ${filterText}` : ''} on the analysis date; stops of that name:`, { value: ref, choices: list(hits) });
+    throw new StopspanError(
+      'bad-scenario',
+      `${where}: no stop named "${ref}" is served${filterText ? ` by ${filterText}` : ''} on the analysis date; stops of that name:`,
+      { value: ref, choices: list(hits) },
+    );
   }
   if (matching.length === 1 || f.both_directions) return matching;
-  throw new StopspanError('bad-scenario', `${where}: stop name "${ref}" is ambiguous (${matching.length} stops${filterText ? ` on ${filterText}` : ''}); give the stop_id, --route with --direction or --headsign, or --both-directions:`, { value: ref, choices: list(matching) });
+  throw new StopspanError(
+    'bad-scenario',
+    `${where}: stop name "${ref}" is ambiguous (${matching.length} stops${filterText ? ` on ${filterText}` : ''}); give the stop_id, --route with --direction or --headsign, or --both-directions:`,
+    { value: ref, choices: list(matching) },
+  );
 }
 
 /** Nearest point of a pattern's line of stops to (lat, lon): distance along and offset, metres. */
 function project(feed: Feed, prep: PreparedPattern, lat: number, lon: number): { posM: number; offsetM: number } {
   const stops = prep.modelStops.map((j) => feed.stops[prep.pattern.stopIdx[j]]);
-  return nearestOnStopLine(stops.map((s) => s.lat), stops.map((s) => s.lon), prep.posM, lat, lon);
+  return nearestOnStopLine(
+    stops.map((s) => s.lat),
+    stops.map((s) => s.lon),
+    prep.posM,
+    lat,
+    lon,
+  );
 }
 
 interface Served {
@@ -320,7 +407,13 @@ export interface PatternEdit {
   added: number[]; // distances along
 }
 
-function totalStops(c: Corridor, served: Served[], s: CostSettings, loM = -Infinity, hiM = Infinity): { costS: Float64Array; busS: Float64Array } {
+function totalStops(
+  c: Corridor,
+  served: Served[],
+  s: CostSettings,
+  loM = -Infinity,
+  hiM = Infinity,
+): { costS: Float64Array; busS: Float64Array } {
   // only the stops from loM to hiM (the stretch a change can reach); the others stay 0
   const costS = new Float64Array(served.length);
   const busS = new Float64Array(served.length);
@@ -447,7 +540,7 @@ export function effectTerms(change: PatternEdit, settings: CostSettings, window:
   let affected = 0;
   // the tiles that meet the window (tiles are in order along the line; the others are the same in both states)
   let m0 = 0;
-  for (let h = c.n; m0 < h; ) {
+  for (let h = c.n; m0 < h;) {
     const mid = (m0 + h) >> 1;
     if (c.tileBounds(mid).hiM < window.loM) m0 = mid + 1;
     else h = mid;
@@ -592,7 +685,15 @@ export function effectOf(feed: Feed, change: PatternEdit, params: ModelParams, w
 }
 
 /** Each stop changed on a pattern, with the spacing around its place before and after the change. */
-function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxGapM: number, stopId: (m: number) => string, stopName: (m: number) => string, nearStation: (m: number) => string): StopChange[] {
+function stopChanges(
+  change: PatternEdit,
+  today: Served[],
+  after: Served[],
+  maxGapM: number,
+  stopId: (m: number) => string,
+  stopName: (m: number) => string,
+  nearStation: (m: number) => string,
+): StopChange[] {
   // each list's positions sorted once, and each stop's neighbours found by halving: a scan of the list per
   // changed stop made a plan removing most of a long pattern's stops quadratic in its stops
   const sorted = (list: Served[]): Float64Array => Float64Array.from(list.map((s) => s.pos).filter((x) => !Number.isNaN(x))).sort();
@@ -628,10 +729,28 @@ function stopChanges(change: PatternEdit, today: Served[], after: Served[], maxG
   };
   const { prep, removed, moved, added } = change;
   for (const m of [...removed].sort((a, b) => a - b)) {
-    mark({ action: 'remove', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: around(afterPos, prep.posM[m]) }, nearStation(m));
+    mark(
+      {
+        action: 'remove',
+        stopId: stopId(m),
+        stopName: stopName(m),
+        gapsBeforeM: split(todayPos, prep.posM[m]),
+        gapsAfterM: around(afterPos, prep.posM[m]),
+      },
+      nearStation(m),
+    );
   }
   for (const [m, to] of [...moved].sort((a, b) => a[0] - b[0])) {
-    mark({ action: 'move', stopId: stopId(m), stopName: stopName(m), gapsBeforeM: split(todayPos, prep.posM[m]), gapsAfterM: split(afterPos, to) }, nearStation(m));
+    mark(
+      {
+        action: 'move',
+        stopId: stopId(m),
+        stopName: stopName(m),
+        gapsBeforeM: split(todayPos, prep.posM[m]),
+        gapsAfterM: split(afterPos, to),
+      },
+      nearStation(m),
+    );
   }
   for (const pos of added) {
     mark({ action: 'add', stopId: '', stopName: '', gapsBeforeM: around(todayPos, pos), gapsAfterM: split(afterPos, pos) });
@@ -664,9 +783,14 @@ function totalsOf(effects: ScenarioPatternEffect[], maxGapM: number, walkSpeedMp
   };
 }
 
-
 /** A pattern's net passenger-minutes with the walk weight scaled by `scale` (walk added and saved in proportion, ride and stopping as they are). */
-export function netAtWalkWeight(e: Pick<ScenarioPatternEffect, 'walkAddedPaxMinPerDay' | 'walkSavedPaxMinPerDay' | 'rideSavedPaxMinPerDay' | 'neighboursExtraPaxMinPerDay'>, scale: number): number {
+export function netAtWalkWeight(
+  e: Pick<
+    ScenarioPatternEffect,
+    'walkAddedPaxMinPerDay' | 'walkSavedPaxMinPerDay' | 'rideSavedPaxMinPerDay' | 'neighboursExtraPaxMinPerDay'
+  >,
+  scale: number,
+): number {
   return scale * (e.walkAddedPaxMinPerDay - e.walkSavedPaxMinPerDay) - e.rideSavedPaxMinPerDay + e.neighboursExtraPaxMinPerDay;
 }
 
@@ -674,7 +798,13 @@ export function netAtWalkWeight(e: Pick<ScenarioPatternEffect, 'walkAddedPaxMinP
  * A checked scenario weighed on patterns already prepared (the audit weighs its own plan this way, on the
  * same preparation): per pattern, in total, and at the sensitivity walk weights.
  */
-export function weighScenario(feed: Feed, date: string, preps: PreparedPattern[], params: ModelParams, sc: ScenarioInput): Pick<ScenarioResult, 'patterns' | 'totals' | 'sensitivity' | 'fleet'> {
+export function weighScenario(
+  feed: Feed,
+  date: string,
+  preps: PreparedPattern[],
+  params: ModelParams,
+  sc: ScenarioInput,
+): Pick<ScenarioResult, 'patterns' | 'totals' | 'sensitivity' | 'fleet'> {
   const changes = resolveChanges(feed, date, preps, sc);
   const list = [...changes.values()].sort((a, b) => a.prep.pattern.id.localeCompare(b.prep.pattern.id));
   const effects = list.map((ch) => effectOf(feed, ch, params, params.walk_weight));
@@ -716,10 +846,13 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
     return at.get(stopIdx) ?? [];
   };
   const checkRoutes = (routes: string[] | undefined, where: string) => {
-    for (const r of routes ?? []) if (!feed.routes.has(r) && ![...feed.routes.values()].some((x) => x.shortName === r)) throw bad(`${where}: unknown route ${r} (neither a route_id nor a route_short_name)`, r);
+    for (const r of routes ?? [])
+      if (!feed.routes.has(r) && ![...feed.routes.values()].some((x) => x.shortName === r))
+        throw bad(`${where}: unknown route ${r} (neither a route_id nor a route_short_name)`, r);
   };
   const checkPatterns = (ids: string[] | undefined, where: string) => {
-    for (const id of ids ?? []) if (!preps.some((p) => p.pattern.id === id)) throw bad(`${where}: unknown pattern ${id} on ${patterns.date}`, id);
+    for (const id of ids ?? [])
+      if (!preps.some((p) => p.pattern.id === id)) throw bad(`${where}: unknown pattern ${id} on ${patterns.date}`, id);
   };
   const touched = new Set<string>(); // stop index | pattern id: a stop changed twice on one pattern is refused
   const touch = (stopIdx: number, prep: PreparedPattern, where: string, ref: string) => {
@@ -728,7 +861,15 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
     touched.add(key);
   };
   const filterOf = (item: string | ({ stop: string } & StopFilter)): StopFilter => (typeof item === 'string' ? {} : item);
-  const describeFilter = (f: StopFilter) => [f.patterns ? `pattern ${f.patterns.join(', ')}` : '', f.routes ? `route ${f.routes.join(', ')}` : '', f.direction !== undefined ? `direction ${f.direction}` : '', f.headsign ? `headsign "${f.headsign}"` : ''].filter(Boolean).join(', ');
+  const describeFilter = (f: StopFilter) =>
+    [
+      f.patterns ? `pattern ${f.patterns.join(', ')}` : '',
+      f.routes ? `route ${f.routes.join(', ')}` : '',
+      f.direction !== undefined ? `direction ${f.direction}` : '',
+      f.headsign ? `headsign "${f.headsign}"` : '',
+    ]
+      .filter(Boolean)
+      .join(', ');
 
   (sc.remove ?? []).forEach((item, i) => {
     const ref = typeof item === 'string' ? item : item.stop;
@@ -741,13 +882,18 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
       for (const prep of preps) {
         if (!patternPasses(feed, prep, f)) continue;
         for (const m of positionsOf(prep, stopIdx)) {
-          if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be removed`, ref);
+          if (m === 0 || m === prep.modelStops.length - 1)
+            throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be removed`, ref);
           touch(stopIdx, prep, where, ref);
           changeOf(prep).removed.add(m);
           hit++;
         }
       }
-      if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(f) ? ` of ${describeFilter(f)}` : ''} on ${patterns.date}`, ref);
+      if (hit === 0)
+        throw bad(
+          `${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(f) ? ` of ${describeFilter(f)}` : ''} on ${patterns.date}`,
+          ref,
+        );
     }
   });
 
@@ -760,15 +906,27 @@ export function resolveChanges(feed: Feed, date: string, preps: PreparedPattern[
       for (const prep of preps) {
         if (!patternPasses(feed, prep, item)) continue;
         for (const m of positionsOf(prep, stopIdx)) {
-          if (m === 0 || m === prep.modelStops.length - 1) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be moved`, item.stop);
+          if (m === 0 || m === prep.modelStops.length - 1)
+            throw bad(
+              `${where}: stop ${feed.stops[stopIdx].id} is a terminal of pattern ${prep.pattern.id} and cannot be moved`,
+              item.stop,
+            );
           const p = project(feed, prep, item.lat, item.lon);
-          if (p.offsetM > SNAP_LIMIT_M) throw bad(`${where}: ${item.lat},${item.lon} is ${Math.round(p.offsetM)} m from pattern ${prep.pattern.id} (limit ${SNAP_LIMIT_M} m)`, `${item.lat},${item.lon}`);
+          if (p.offsetM > SNAP_LIMIT_M)
+            throw bad(
+              `${where}: ${item.lat},${item.lon} is ${Math.round(p.offsetM)} m from pattern ${prep.pattern.id} (limit ${SNAP_LIMIT_M} m)`,
+              `${item.lat},${item.lon}`,
+            );
           touch(stopIdx, prep, where, item.stop);
           changeOf(prep).moved.set(m, p.posM);
           hit++;
         }
       }
-      if (hit === 0) throw bad(`${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(item) ? ` of ${describeFilter(item)}` : ''} on ${patterns.date}`, item.stop);
+      if (hit === 0)
+        throw bad(
+          `${where}: stop ${feed.stops[stopIdx].id} is not served by any pattern${describeFilter(item) ? ` of ${describeFilter(item)}` : ''} on ${patterns.date}`,
+          item.stop,
+        );
     }
   });
 

@@ -9,7 +9,10 @@ export interface SqrtLawInput {
 }
 
 /** s* = sqrt(2 v p L / w); with `oneEndFixed` (one trip end at a stop) sqrt(4 v p L / w). Metres. */
-export function sqrtLawSpacingM({ walkSpeedMps, lostTimePerStopS, meanTripLengthM, walkWeight }: SqrtLawInput, { oneEndFixed = false }: { oneEndFixed?: boolean } = {}): number {
+export function sqrtLawSpacingM(
+  { walkSpeedMps, lostTimePerStopS, meanTripLengthM, walkWeight }: SqrtLawInput,
+  { oneEndFixed = false }: { oneEndFixed?: boolean } = {},
+): number {
   if (!(walkSpeedMps > 0) || !(lostTimePerStopS >= 0) || !(meanTripLengthM >= 0) || !(walkWeight > 0)) {
     throw new RangeError(`sqrtLawSpacingM: bad input v=${walkSpeedMps} p=${lostTimePerStopS} L=${meanTripLengthM} w=${walkWeight}`);
   }

@@ -13,13 +13,22 @@ export function poissonStopProbability(lambdaPerTrip: number): number {
  */
 export function stopProbability(
   lambdaPerTrip: number,
-  { model, observedShare = null, baseLambda = null }: { model: 'always' | 'poisson' | 'observed'; observedShare?: number | null; baseLambda?: number | null },
+  {
+    model,
+    observedShare = null,
+    baseLambda = null,
+  }: { model: 'always' | 'poisson' | 'observed'; observedShare?: number | null; baseLambda?: number | null },
 ): number {
   return stoppingProbability(lambdaPerTrip, model, observedShare, baseLambda);
 }
 
 /** stopProbability with its options as arguments, for the model's inner loops (no object a call). */
-export function stoppingProbability(lambdaPerTrip: number, model: 'always' | 'poisson' | 'observed', observedShare: number | null, baseLambda: number | null): number {
+export function stoppingProbability(
+  lambdaPerTrip: number,
+  model: 'always' | 'poisson' | 'observed',
+  observedShare: number | null,
+  baseLambda: number | null,
+): number {
   if (model === 'always') return 1;
   if (model === 'observed' && observedShare !== null && observedShare >= 0 && observedShare <= 1) {
     if (baseLambda === null || !(baseLambda > 0)) return observedShare;

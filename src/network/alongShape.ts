@@ -73,7 +73,8 @@ export interface AlongShapeResult {
 export function projectAlongShape(shape: PreparedShape, stops: LatLon[], options: AlongShapeOptions = {}): AlongShapeResult {
   const { minLookAheadM = 300, lookAheadFactor = 2.5, slackM = 10, fallbackM = 50, fallbackLookAheadM = 3000 } = options;
   for (const [name, v] of Object.entries({ minLookAheadM, lookAheadFactor, slackM, fallbackM, fallbackLookAheadM })) {
-    if (!(Number.isFinite(v) && v >= 0)) throw new RangeError(`projectAlongShape: invalid option ${name}: expected a number >= 0, got ${v}`);
+    if (!(Number.isFinite(v) && v >= 0))
+      throw new RangeError(`projectAlongShape: invalid option ${name}: expected a number >= 0, got ${v}`);
   }
   const { lat, lon, cumM, lonScaleM } = shape;
   const nSeg = lat.length - 1;

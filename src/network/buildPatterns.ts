@@ -89,10 +89,13 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
     throw new StopspanError('bad-option', 'invalid option date: expected YYYY-MM-DD (the feed was read without a date), got nothing');
   }
   if (feed.date !== null && feed.date !== date) {
-    throw new StopspanError('bad-option', `invalid option date: expected the date the feed was read for (${feed.date}), got ${date}`, { value: date });
+    throw new StopspanError('bad-option', `invalid option date: expected the date the feed was read for (${feed.date}), got ${date}`, {
+      value: date,
+    });
   }
   const routeSet = routes !== undefined ? routeIdsOf(feed, routes) : null;
-  if (!(pathToleranceM >= 0)) throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);
+  if (!(pathToleranceM >= 0))
+    throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);
 
   const instances = tripInstancesOnDate(feed, date);
   const groups = groupTrips(feed, instances, routeSet, date, warnings);
@@ -107,10 +110,17 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
   for (const d of drafts) {
     patterns.push(measurePattern(feed, d, shapes, units, tally, { pathToleranceM, warnings }));
     done++;
-    if (onProgress && (done % 50 === 0 || done === drafts.length)) onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
+    if (onProgress && (done % 50 === 0 || done === drafts.length))
+      onProgress({ stage: 'patterns', done, total: drafts.length, unit: 'patterns' });
   }
   warnMeasureTally(feed, tally, warnings);
-  const set: PatternSet = { date, patterns, routesAtStop: tally.routesAtStop, shapeDistUnit: units.unitFit, distanceBacktracks: tally.backtracks };
+  const set: PatternSet = {
+    date,
+    patterns,
+    routesAtStop: tally.routesAtStop,
+    shapeDistUnit: units.unitFit,
+    distanceBacktracks: tally.backtracks,
+  };
   if (!givenSink) set.warnings = warnings.list();
   return set;
 }
@@ -124,14 +134,23 @@ function routeIdsOf(feed: Feed, routes: string[]): Set<string> {
       continue;
     }
     const byName = [...feed.routes.values()].filter((x) => x.shortName === r);
-    if (byName.length === 0) throw new StopspanError('bad-option', `invalid option routes: expected route_ids or route_short_names of the feed, got ${r}`, { value: r });
+    if (byName.length === 0)
+      throw new StopspanError('bad-option', `invalid option routes: expected route_ids or route_short_names of the feed, got ${r}`, {
+        value: r,
+      });
     for (const x of byName) routeSet.add(x.id);
   }
   return routeSet;
 }
 
 /** 1. Group trips by (route, direction, ordered stop list), from the trips' shared profiles. */
-function groupTrips(feed: Feed, instances: Map<string, TripInstances>, routeSet: Set<string> | null, date: string, warnings: WarningSink): Map<string, Group> {
+function groupTrips(
+  feed: Feed,
+  instances: Map<string, TripInstances>,
+  routeSet: Set<string> | null,
+  date: string,
+  warnings: WarningSink,
+): Map<string, Group> {
   const profiles = tripProfiles(feed.stopTimes);
   const groups = new Map<string, Group>();
   let patternStops = 0;
@@ -158,7 +177,9 @@ function groupTrips(feed: Feed, instances: Map<string, TripInstances>, routeSet:
     g.profiles.push(tp);
   }
   if (groups.size === 0) {
-    throw new StopspanError('empty-feed', `no trips with stop_times run on ${date}${routeSet ? ' on the routes asked for' : ''}`, { value: date });
+    throw new StopspanError('empty-feed', `no trips with stop_times run on ${date}${routeSet ? ' on the routes asked for' : ''}`, {
+      value: date,
+    });
   }
   return groups;
 }
@@ -284,10 +305,16 @@ function measurePattern(
   const { g } = d;
   const shapeId = shapes.shapeOf.get(d)!;
   const n = g.stopIdx.length;
-  const repAt = Math.max(0, g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId));
+  const repAt = Math.max(
+    0,
+    g.tripIds.findIndex((t) => feed.trips.get(t)!.shapeId === shapeId),
+  );
   const rep = g.profiles[repAt].profile;
   const ps = shapeId !== '' ? shapes.prepared.get(shapeId) : undefined;
-  const { distanceSource, distAlongM, offsetFromShapeM, path } = patternDistances(feed, d, shapeId, repAt, ps, units, tally, { pathToleranceM, warnings });
+  const { distanceSource, distAlongM, offsetFromShapeM, path } = patternDistances(feed, d, shapeId, repAt, ps, units, tally, {
+    pathToleranceM,
+    warnings,
+  });
   const times = patternTimes(g, distAlongM, warnings);
 
   const headCounts = new Map<string, number>();
@@ -371,7 +398,8 @@ function patternDistances(
     distanceSource = 'great_circle';
     warnings.add('pattern-without-shape', d.id);
     distAlongM = [0];
-    for (let i = 1; i < stops.length; i++) distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
+    for (let i = 1; i < stops.length; i++)
+      distAlongM.push(distAlongM[i - 1] + haversineM(stops[i - 1].lat, stops[i - 1].lon, stops[i].lat, stops[i].lon));
     if (good.length < n) distAlongM = placeBetween(distAlongM, good, n);
     offsetFromShapeM = new Array(n).fill(null);
     path = stops.map((s) => [s.lon, s.lat] as [number, number]);
@@ -380,7 +408,14 @@ function patternDistances(
 }
 
 /** 4b. The representative trip's shape_dist_traveled in metres when usable (no trip backtracks), else null. */
-function shapeDistMetres(d: Draft, shapeId: string, repAt: number, units: ShapeUnits, tally: MeasureTally, warnings: WarningSink): number[] | null {
+function shapeDistMetres(
+  d: Draft,
+  shapeId: string,
+  repAt: number,
+  units: ShapeUnits,
+  tally: MeasureTally,
+  warnings: WarningSink,
+): number[] | null {
   const { g } = d;
   const metresPerUnit = units.shapeMetresPerUnit.get(shapeId);
   if (!units.unitFit || !metresPerUnit) return null;

@@ -45,7 +45,15 @@ export function localFrame(lat0: number, lon0: number): LocalFrame {
  * Nearest point to P on the segment A-B, all in one planar frame (metres). Returns the fraction t along
  * the segment (0 at A, 1 at B), clamped to [tMin, 1], and the squared distance from P to that point.
  */
-export function nearestOnSegment(px: number, py: number, ax: number, ay: number, bx: number, by: number, tMin = 0): { t: number; d2: number } {
+export function nearestOnSegment(
+  px: number,
+  py: number,
+  ax: number,
+  ay: number,
+  bx: number,
+  by: number,
+  tMin = 0,
+): { t: number; d2: number } {
   const d2 = nearestOnSegmentInto(NEAREST, px, py, ax, ay, bx, by, tMin);
   return { t: NEAREST[0], d2 };
 }
@@ -56,7 +64,16 @@ const NEAREST = new Float64Array(1);
  * The same without an object per call, for the loops that project stops and simplify shapes (their
  * result objects were 14 MB of garbage per Manhattan audit): returns d2 and writes t into out[0].
  */
-export function nearestOnSegmentInto(out: Float64Array, px: number, py: number, ax: number, ay: number, bx: number, by: number, tMin = 0): number {
+export function nearestOnSegmentInto(
+  out: Float64Array,
+  px: number,
+  py: number,
+  ax: number,
+  ay: number,
+  bx: number,
+  by: number,
+  tMin = 0,
+): number {
   const dx = bx - ax;
   const dy = by - ay;
   const len2 = dx * dx + dy * dy;

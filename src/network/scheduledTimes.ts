@@ -31,7 +31,10 @@ export function scheduledTimes(
   options: { warnings?: WarningSink; tripIds?: string[] } = {},
 ): ScheduledTimes {
   const { warnings, tripIds } = options;
-  const { times, untimed } = scheduledTimesOfRuns(trips.map((st) => ({ arrS: st.arrS, depS: st.depS, trips: 1 })), distAlongM);
+  const { times, untimed } = scheduledTimesOfRuns(
+    trips.map((st) => ({ arrS: st.arrS, depS: st.depS, trips: 1 })),
+    distAlongM,
+  );
   untimed.forEach((u, k) => {
     if (u && warnings) warnUntimedTrip(warnings, tripIds?.[k]);
   });
@@ -165,4 +168,3 @@ class WeightedMedian {
     return NaN;
   }
 }
-

@@ -44,7 +44,9 @@ export function inferShapeDistUnit(
 ): ShapeDistUnitFit | null {
   const { goodFit = 0.03, acceptFit = 0.15 } = options;
   if (!(goodFit >= 0 && acceptFit >= goodFit)) {
-    throw new RangeError(`inferShapeDistUnit: invalid options goodFit/acceptFit: expected 0 <= goodFit <= acceptFit, got ${goodFit}/${acceptFit}`);
+    throw new RangeError(
+      `inferShapeDistUnit: invalid options goodFit/acceptFit: expected 0 <= goodFit <= acceptFit, got ${goodFit}/${acceptFit}`,
+    );
   }
   const ratios: number[] = [];
   for (const { distRange, lengthM } of samples) {

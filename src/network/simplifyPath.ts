@@ -10,11 +10,7 @@ const T_OUT = new Float64Array(1); // nearestOnSegmentInto's fraction, not neede
  * The first and last points are always kept.
  * @example simplifyPath([52.0, 52.0005, 52.001], [4.0, 4.0, 4.0], { toleranceM: 5 }) // two points
  */
-export function simplifyPath(
-  lat: ArrayLike<number>,
-  lon: ArrayLike<number>,
-  options: { toleranceM?: number } = {},
-): [number, number][] {
+export function simplifyPath(lat: ArrayLike<number>, lon: ArrayLike<number>, options: { toleranceM?: number } = {}): [number, number][] {
   const { toleranceM = 5 } = options;
   if (!(toleranceM >= 0)) throw new RangeError(`simplifyPath: invalid option toleranceM: expected a number >= 0, got ${toleranceM}`);
   const n = lat.length;

@@ -197,7 +197,9 @@ export async function* readArchive(archivePath: string, options: ReadArchiveOpti
     throw new StopspanError('bad-option', 'invalid option archivePath: expected a folder or zip path', { value: String(archivePath) });
   }
   if (!(Number.isFinite(maxSnapshotBytes) && maxSnapshotBytes > 0)) {
-    throw new StopspanError('bad-option', 'invalid option maxSnapshotBytes: expected a positive number', { value: String(maxSnapshotBytes) });
+    throw new StopspanError('bad-option', 'invalid option maxSnapshotBytes: expected a positive number', {
+      value: String(maxSnapshotBytes),
+    });
   }
   const { refs, zip } = await listArchive(archivePath, maxSnapshotBytes);
   try {
@@ -249,7 +251,12 @@ async function listArchive(archivePath: string, maxSnapshotBytes: number): Promi
 /** The first pass: each file's header read, the unusable counted and left out, the rest in time order (ties by name). */
 async function indexSnapshots(
   refs: EntryRef[],
-  { warnings, stats, onProgress, maxSnapshotBytes }: { warnings: WarningSink; stats: ArchiveStats; onProgress?: OnProgress; maxSnapshotBytes: number },
+  {
+    warnings,
+    stats,
+    onProgress,
+    maxSnapshotBytes,
+  }: { warnings: WarningSink; stats: ArchiveStats; onProgress?: OnProgress; maxSnapshotBytes: number },
 ): Promise<Indexed[]> {
   const indexed: Indexed[] = [];
   let order = 0;

@@ -80,7 +80,9 @@ function shifted(a: Int32Array, by: number): Int32Array {
 }
 
 /** The options that shape what is counted as observed, checked. */
-type ObserveSettings = Required<Pick<ObserveArchiveOptions, 'minTrips' | 'minDwellS' | 'passMaxGapS' | 'dwellFixedQuantile' | 'maxGapSpeedMps' | 'measuredOnly'>>;
+type ObserveSettings = Required<
+  Pick<ObserveArchiveOptions, 'minTrips' | 'minDwellS' | 'passMaxGapS' | 'dwellFixedQuantile' | 'maxGapSpeedMps' | 'measuredOnly'>
+>;
 
 /** What reading the snapshots gathered besides the trip instances. */
 interface ReadTally {
@@ -153,12 +155,17 @@ function observeSettings(options: ObserveArchiveOptions): ObserveSettings {
   if (!(Number.isInteger(minTrips) && minTrips >= 1)) {
     throw new StopspanError('bad-option', 'invalid option minTrips: expected an integer of at least 1', { value: String(minTrips) });
   }
-  if (!(minDwellS >= 0)) throw new StopspanError('bad-option', 'invalid option minDwellS: expected a number >= 0', { value: String(minDwellS) });
-  if (!(passMaxGapS >= 0)) throw new StopspanError('bad-option', 'invalid option passMaxGapS: expected a number >= 0', { value: String(passMaxGapS) });
+  if (!(minDwellS >= 0))
+    throw new StopspanError('bad-option', 'invalid option minDwellS: expected a number >= 0', { value: String(minDwellS) });
+  if (!(passMaxGapS >= 0))
+    throw new StopspanError('bad-option', 'invalid option passMaxGapS: expected a number >= 0', { value: String(passMaxGapS) });
   if (!(dwellFixedQuantile >= 0 && dwellFixedQuantile <= 1)) {
-    throw new StopspanError('bad-option', 'invalid option dwellFixedQuantile: expected a number in [0, 1]', { value: String(dwellFixedQuantile) });
+    throw new StopspanError('bad-option', 'invalid option dwellFixedQuantile: expected a number in [0, 1]', {
+      value: String(dwellFixedQuantile),
+    });
   }
-  if (!(maxGapSpeedMps > 0)) throw new StopspanError('bad-option', 'invalid option maxGapSpeedMps: expected a positive number', { value: String(maxGapSpeedMps) });
+  if (!(maxGapSpeedMps > 0))
+    throw new StopspanError('bad-option', 'invalid option maxGapSpeedMps: expected a positive number', { value: String(maxGapSpeedMps) });
   return { minTrips, minDwellS, passMaxGapS, dwellFixedQuantile, maxGapSpeedMps, measuredOnly };
 }
 
@@ -297,7 +304,13 @@ class TripMatcher {
 }
 
 /** Every snapshot of the archive, in time order, folded into the trip instances it reports on. */
-async function readObservations(archivePath: string, feed: Feed, matcher: TripMatcher, warnings: WarningSink, onProgress: OnProgress | undefined): Promise<ReadTally> {
+async function readObservations(
+  archivePath: string,
+  feed: Feed,
+  matcher: TripMatcher,
+  warnings: WarningSink,
+  onProgress: OnProgress | undefined,
+): Promise<ReadTally> {
   const read: ReadTally = {
     stats: { filesSeen: 0, snapshotsRead: 0, snapshotsSkipped: 0 },
     otherFeedSnapshots: 0,
@@ -395,7 +408,10 @@ function observePosition(e: IFeedEntity, snapS: number, matcher: TripMatcher, re
 }
 
 /** Per pattern aggregates: each trip instance's stop verdicts, dwells and gap run times summed on its pattern. */
-function aggregateInstances(instances: Iterable<Instance>, { minDwellS, passMaxGapS, measuredOnly, maxGapSpeedMps }: ObserveSettings): Aggregates {
+function aggregateInstances(
+  instances: Iterable<Instance>,
+  { minDwellS, passMaxGapS, measuredOnly, maxGapSpeedMps }: ObserveSettings,
+): Aggregates {
   const out: Aggregates = { aggs: new Map(), implausible: 0, vpDwells: 0, tuDwells: 0, predictedOnly: 0 };
   const vopts = { minDwellS, passMaxGapS, measuredOnly };
   for (const inst of instances) {
@@ -454,7 +470,12 @@ function aggregateInstances(instances: Iterable<Instance>, { minDwellS, passMaxG
 }
 
 /** The archive-wide warnings: implausible run times, predictions only, polling too coarse to see short dwells. */
-function warnAggregates(a: Aggregates, read: ReadTally, { maxGapSpeedMps, measuredOnly, passMaxGapS }: ObserveSettings, warnings: WarningSink): void {
+function warnAggregates(
+  a: Aggregates,
+  read: ReadTally,
+  { maxGapSpeedMps, measuredOnly, passMaxGapS }: ObserveSettings,
+  warnings: WarningSink,
+): void {
   if (a.implausible > 0) {
     warnings.add('realtime-implausible-run-time', undefined, a.implausible, { maxMps: maxGapSpeedMps });
   }
@@ -464,12 +485,21 @@ function warnAggregates(a: Aggregates, read: ReadTally, { maxGapSpeedMps, measur
   }
   const meanVpIntervalS = read.vpIntervals > 0 ? read.vpIntervalSumS / read.vpIntervals : NaN;
   if (a.vpDwells > 0 && meanVpIntervalS > passMaxGapS) {
-    warnings.add('realtime-coarse-polling', undefined, 1, { fromVp: a.vpDwells, all: a.vpDwells + a.tuDwells, intervalS: Math.round(meanVpIntervalS) });
+    warnings.add('realtime-coarse-polling', undefined, 1, {
+      fromVp: a.vpDwells,
+      all: a.vpDwells + a.tuDwells,
+      intervalS: Math.round(meanVpIntervalS),
+    });
   }
 }
 
 /** Each observed pattern's figures: dwell, door time and stop loss from the run-time fit, shares, run times. */
-function observedPatterns(patterns: PatternSet, aggs: Map<string, Agg>, { minTrips, dwellFixedQuantile, passMaxGapS }: ObserveSettings, warnings: WarningSink): Map<string, ObservedPattern> {
+function observedPatterns(
+  patterns: PatternSet,
+  aggs: Map<string, Agg>,
+  { minTrips, dwellFixedQuantile, passMaxGapS }: ObserveSettings,
+  warnings: WarningSink,
+): Map<string, ObservedPattern> {
   let unidentified = 0;
   const byPattern = new Map<string, ObservedPattern>();
   for (const p of patterns.patterns) {
@@ -484,10 +514,7 @@ function observedPatterns(patterns: PatternSet, aggs: Map<string, Agg>, { minTri
     // its cruise speed and its stop loss are dropped, not the loss alone
     const fit = solved && solved.lossPerStopS >= 0 ? solved : null;
     if (solved && !fit) {
-      warnings.add(
-        'realtime-fit-rejected',
-        `${p.id}: ${solved.cruiseSpeedMps.toFixed(2)} m/s, ${solved.lossPerStopS.toFixed(2)} s`,
-      );
+      warnings.add('realtime-fit-rejected', `${p.id}: ${solved.cruiseSpeedMps.toFixed(2)} m/s, ${solved.lossPerStopS.toFixed(2)} s`);
     }
     const dwellFixedS = allDwells.length >= minTrips ? quantile(allDwells, dwellFixedQuantile) : null;
     byPattern.set(p.id, {

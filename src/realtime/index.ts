@@ -11,7 +11,15 @@ export {
   type TripSchedule,
   type StopEvents,
 } from './resolveStopTimeUpdates.js';
-export { TripInstanceState, observeTripUpdate, observeVehiclePosition, stopVerdict, gapRunTime, type StopVerdict, type VerdictOptions } from './observe.js';
+export {
+  TripInstanceState,
+  observeTripUpdate,
+  observeVehiclePosition,
+  stopVerdict,
+  gapRunTime,
+  type StopVerdict,
+  type VerdictOptions,
+} from './observe.js';
 export { RunTimeFit } from './fitRunTimes.js';
 export { observeArchive, type ObserveArchiveOptions } from './calibrate.js';
 export { serviceRunsOn, serviceDayOriginS, localDate, addDays, parseGtfsTime } from './serviceDay.js';

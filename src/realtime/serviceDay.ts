@@ -5,12 +5,7 @@ import { timeOfString } from '../gtfs/values.js';
 import type { CalendarDate, CalendarRow } from '../gtfs/types.js';
 
 /** True when serviceId runs on date (YYYYMMDD): calendar_dates type 1 adds, type 2 removes, end_date inclusive. */
-export function serviceRunsOn(
-  serviceId: string,
-  date: string,
-  calendar: CalendarRow[],
-  calendarDates: CalendarDate[],
-): boolean {
+export function serviceRunsOn(serviceId: string, date: string, calendar: CalendarRow[], calendarDates: CalendarDate[]): boolean {
   for (const cd of calendarDates) {
     if (cd.serviceId === serviceId && cd.date === date) return cd.exceptionType === 1;
   }

@@ -18,8 +18,12 @@ export function checkText(report: CheckReport): string {
   );
   const c = report.context;
   if (c) {
-    const feeds = c.feeds.map((x) => `${oneLine(x.label)} (${x.stations} stations${x.servicesOnDate === 0 ? ', no service on the date' : ''})`).join(', ');
-    lines.push(`context ${feeds}: ${c.stopsNearStations} stop(s) served within ${CONTEXT_STATION_RADIUS_M} m of a station, transfer points the audit keeps`);
+    const feeds = c.feeds
+      .map((x) => `${oneLine(x.label)} (${x.stations} stations${x.servicesOnDate === 0 ? ', no service on the date' : ''})`)
+      .join(', ');
+    lines.push(
+      `context ${feeds}: ${c.stopsNearStations} stop(s) served within ${CONTEXT_STATION_RADIUS_M} m of a station, transfer points the audit keeps`,
+    );
     for (const e of c.examples) lines.push(`        ${oneLine(e.stopId)} ${oneLine(e.stopName)}: ${oneLine(e.station)}`);
     if (c.stopsNearStations > c.examples.length) lines.push(`        ... and ${c.stopsNearStations - c.examples.length} more`);
   }

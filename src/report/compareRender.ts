@@ -16,7 +16,8 @@ const signed = (v: number): string => {
   return r > 0 ? `+${r}` : String(r === 0 ? 0 : r);
 };
 const routeName = (r: RouteTripChange): string => (r.shortName && r.shortName !== r.routeId ? `${r.routeId} (${r.shortName})` : r.routeId);
-const idList = (ids: string[], count: number): string => (count === 0 ? '' : ids.join(' ') + (count > ids.length ? ` ... (${count} in all)` : ''));
+const idList = (ids: string[], count: number): string =>
+  count === 0 ? '' : ids.join(' ') + (count > ids.length ? ` ... (${count} in all)` : '');
 const span = (x: PatternTripChange, side: 'before' | 'after'): string => `${x.firstDeparture[side] ?? '-'}-${x.lastDeparture[side] ?? '-'}`;
 
 const SPACING_ROWS: [string, keyof SpacingPicture, (v: number | null) => string][] = [
@@ -36,7 +37,9 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   out.push(`new ${term(c.new.source)} (${term(c.new.version) || 'no version'}, ${c.new.contentHash.slice(0, 8)})`);
   out.push('');
   const s = c.stops;
-  out.push(`stops: ${s.added.length} added, ${s.removed.length} removed, ${s.moved.length} moved more than ${c.moveThresholdM} m, ${s.renamed.length} renamed`);
+  out.push(
+    `stops: ${s.added.length} added, ${s.removed.length} removed, ${s.moved.length} moved more than ${c.moveThresholdM} m, ${s.renamed.length} renamed`,
+  );
   const list = <T>(items: T[], fmt: (x: T) => string) => {
     for (const x of items.slice(0, maxRows)) out.push('  ' + term(fmt(x)));
     if (items.length > maxRows) out.push(`  ... and ${items.length - maxRows} more`);
@@ -47,20 +50,29 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   list(s.renamed, (x) => `" ${x.stopId}  ${x.oldName} -> ${x.newName}`);
   const p = c.patterns;
   const tp = c.trips.byPattern;
-  out.push(`patterns: ${p.added.length} added, ${p.removed.length} removed, ${p.changed.length} changed, ${tp.length} with changed trips, ${p.unchanged} unchanged`);
+  out.push(
+    `patterns: ${p.added.length} added, ${p.removed.length} removed, ${p.changed.length} changed, ${tp.length} with changed trips, ${p.unchanged} unchanged`,
+  );
   list(p.added, (x) => `+ ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
   list(p.removed, (x) => `- ${x.patternId}  ${x.headsign}  ${x.stopCount} stops, ${x.tripsPerDay} trips/day`);
-  list(p.changed, (x) =>
-    `~ ${x.oldPatternId} -> ${x.newPatternId}${x.merged ? ' (merged)' : ''}` +
-    (x.inserted.length ? `  inserted ${x.inserted.join(' ')}` : '') +
-    (x.dropped.length ? `  dropped ${x.dropped.join(' ')}` : ''),
+  list(
+    p.changed,
+    (x) =>
+      `~ ${x.oldPatternId} -> ${x.newPatternId}${x.merged ? ' (merged)' : ''}` +
+      (x.inserted.length ? `  inserted ${x.inserted.join(' ')}` : '') +
+      (x.dropped.length ? `  dropped ${x.dropped.join(' ')}` : ''),
   );
   out.push(`trips per day: ${c.trips.byRoute.length} route(s) changed`);
-  list(c.trips.byRoute, (r) => `${r.tripsAfter < r.tripsBefore ? '-' : '+'} route ${routeName(r)}  ${r.tripsBefore} -> ${r.tripsAfter} (${pct(r.changePct)})`);
-  list(tp, (x) =>
-    `~ ${x.oldPatternId === x.newPatternId ? x.newPatternId : `${x.oldPatternId} -> ${x.newPatternId}`}  ${x.tripsBefore} -> ${x.tripsAfter} trips, ${span(x, 'before')} -> ${span(x, 'after')}` +
-    (x.tripIdsAddedCount ? `  added ${idList(x.tripIdsAdded, x.tripIdsAddedCount)}` : '') +
-    (x.tripIdsRemovedCount ? `  removed ${idList(x.tripIdsRemoved, x.tripIdsRemovedCount)}` : ''),
+  list(
+    c.trips.byRoute,
+    (r) => `${r.tripsAfter < r.tripsBefore ? '-' : '+'} route ${routeName(r)}  ${r.tripsBefore} -> ${r.tripsAfter} (${pct(r.changePct)})`,
+  );
+  list(
+    tp,
+    (x) =>
+      `~ ${x.oldPatternId === x.newPatternId ? x.newPatternId : `${x.oldPatternId} -> ${x.newPatternId}`}  ${x.tripsBefore} -> ${x.tripsAfter} trips, ${span(x, 'before')} -> ${span(x, 'after')}` +
+      (x.tripIdsAddedCount ? `  added ${idList(x.tripIdsAdded, x.tripIdsAddedCount)}` : '') +
+      (x.tripIdsRemovedCount ? `  removed ${idList(x.tripIdsRemoved, x.tripIdsRemovedCount)}` : ''),
   );
   out.push('');
   out.push(`${'spacing'.padEnd(22)}${'before'.padStart(12)}${'after'.padStart(12)}`);
@@ -69,10 +81,15 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   }
   if (c.coverage) {
     const v = c.coverage;
-    out.push(`coverage: people within a ${v.walkRadiusM} m walk of a stop served (land use ${term(v.file)}, ${n0(v.people)} people in all)`);
+    out.push(
+      `coverage: people within a ${v.walkRadiusM} m walk of a stop served (land use ${term(v.file)}, ${n0(v.people)} people in all)`,
+    );
     out.push(`${''.padEnd(22)}${'before'.padStart(12)}${'after'.padStart(12)}${'change'.padStart(12)}`);
     out.push(`${'people covered'.padEnd(22)}${n0(v.before).padStart(12)}${n0(v.after).padStart(12)}${signed(v.change).padStart(12)}`);
-    for (const col of v.columns) out.push(`${term(`  ${col.name}`).padEnd(22)}${n0(col.before).padStart(12)}${n0(col.after).padStart(12)}${signed(col.change).padStart(12)}`);
+    for (const col of v.columns)
+      out.push(
+        `${term(`  ${col.name}`).padEnd(22)}${n0(col.before).padStart(12)}${n0(col.after).padStart(12)}${signed(col.change).padStart(12)}`,
+      );
   }
   if (c.candidates) {
     out.push(`candidates: ${c.candidates.appeared.length} appeared, ${c.candidates.disappeared.length} disappeared`);
@@ -83,9 +100,14 @@ export function comparisonText(c: Comparison, options: { maxRows?: number } = {}
   }
   if (c.stationLinks) {
     const why = (x: StationLink, side: string) => (x.reason === 'moved' ? `moved away ${side}` : `not served ${side}`);
-    out.push(`links to other modes (stops beside a context station): ${c.stationLinks.lost.length} lost, ${c.stationLinks.gained.length} gained`);
+    out.push(
+      `links to other modes (stops beside a context station): ${c.stationLinks.lost.length} lost, ${c.stationLinks.gained.length} gained`,
+    );
     list(c.stationLinks.lost, (x) => `- ${x.stopId}  ${x.name}  was beside ${x.station}; ${why(x, 'in the new version')}`);
-    list(c.stationLinks.gained, (x) => `+ ${x.stopId}  ${x.name}  now beside ${x.station}; ${x.reason === 'moved' ? 'moved there' : 'not served in the old version'}`);
+    list(
+      c.stationLinks.gained,
+      (x) => `+ ${x.stopId}  ${x.name}  now beside ${x.station}; ${x.reason === 'moved' ? 'moved there' : 'not served in the old version'}`,
+    );
   }
   return out.join('\n') + '\n';
 }
@@ -101,28 +123,73 @@ export function comparisonHtml(c: Comparison): string {
   const p = c.patterns;
   const sections = [
     `<h2>Stops added (${s.added.length})</h2>`,
-    table(['stop_id', 'name', 'lat', 'lon'], s.added.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)])),
+    table(
+      ['stop_id', 'name', 'lat', 'lon'],
+      s.added.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)]),
+    ),
     `<h2>Stops removed (${s.removed.length})</h2>`,
-    table(['stop_id', 'name', 'lat', 'lon'], s.removed.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)])),
+    table(
+      ['stop_id', 'name', 'lat', 'lon'],
+      s.removed.map((x) => [x.stopId, x.name, x.lat.toFixed(6), x.lon.toFixed(6)]),
+    ),
     `<h2>Stops moved more than ${esc(String(c.moveThresholdM))} m (${s.moved.length})</h2>`,
-    table(['stop_id', 'name', 'moved m'], s.moved.map((x) => [x.stopId, x.name, x.movedM.toFixed(1)])),
+    table(
+      ['stop_id', 'name', 'moved m'],
+      s.moved.map((x) => [x.stopId, x.name, x.movedM.toFixed(1)]),
+    ),
     `<h2>Stops renamed (${s.renamed.length})</h2>`,
-    table(['stop_id', 'old name', 'new name'], s.renamed.map((x) => [x.stopId, x.oldName, x.newName])),
+    table(
+      ['stop_id', 'old name', 'new name'],
+      s.renamed.map((x) => [x.stopId, x.oldName, x.newName]),
+    ),
     `<h2>Patterns added (${p.added.length})</h2>`,
-    table(['pattern', 'headsign', 'stops', 'trips per day'], p.added.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)])),
+    table(
+      ['pattern', 'headsign', 'stops', 'trips per day'],
+      p.added.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)]),
+    ),
     `<h2>Patterns removed (${p.removed.length})</h2>`,
-    table(['pattern', 'headsign', 'stops', 'trips per day'], p.removed.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)])),
+    table(
+      ['pattern', 'headsign', 'stops', 'trips per day'],
+      p.removed.map((x) => [x.patternId, x.headsign, String(x.stopCount), String(x.tripsPerDay)]),
+    ),
     `<h2>Patterns changed (${p.changed.length}; ${p.unchanged} unchanged)</h2>`,
-    table(['old pattern', 'new pattern', 'inserted', 'dropped', 'merged'], p.changed.map((x) => [x.oldPatternId, x.newPatternId, x.inserted.join(' '), x.dropped.join(' '), x.merged ? 'yes' : ''])),
+    table(
+      ['old pattern', 'new pattern', 'inserted', 'dropped', 'merged'],
+      p.changed.map((x) => [x.oldPatternId, x.newPatternId, x.inserted.join(' '), x.dropped.join(' '), x.merged ? 'yes' : '']),
+    ),
     `<h2>Trips per day by route, where they changed (${c.trips.byRoute.length})</h2>`,
-    table(['route', 'short name', 'trips before', 'trips after', 'change'], c.trips.byRoute.map((r) => [r.routeId, r.shortName, String(r.tripsBefore), String(r.tripsAfter), pct(r.changePct)])),
+    table(
+      ['route', 'short name', 'trips before', 'trips after', 'change'],
+      c.trips.byRoute.map((r) => [r.routeId, r.shortName, String(r.tripsBefore), String(r.tripsAfter), pct(r.changePct)]),
+    ),
     `<h2>Patterns whose trips changed (${c.trips.byPattern.length})</h2>`,
     table(
-      ['old pattern', 'new pattern', 'trips before', 'trips after', 'departures before', 'departures after', 'trip_ids added', 'trip_ids removed'],
-      c.trips.byPattern.map((x) => [x.oldPatternId, x.newPatternId, String(x.tripsBefore), String(x.tripsAfter), span(x, 'before'), span(x, 'after'), idList(x.tripIdsAdded, x.tripIdsAddedCount), idList(x.tripIdsRemoved, x.tripIdsRemovedCount)]),
+      [
+        'old pattern',
+        'new pattern',
+        'trips before',
+        'trips after',
+        'departures before',
+        'departures after',
+        'trip_ids added',
+        'trip_ids removed',
+      ],
+      c.trips.byPattern.map((x) => [
+        x.oldPatternId,
+        x.newPatternId,
+        String(x.tripsBefore),
+        String(x.tripsAfter),
+        span(x, 'before'),
+        span(x, 'after'),
+        idList(x.tripIdsAdded, x.tripIdsAddedCount),
+        idList(x.tripIdsRemoved, x.tripIdsRemovedCount),
+      ]),
     ),
     '<h2>Spacing before and after</h2>',
-    table(['', 'before', 'after'], SPACING_ROWS.map(([label, key, f]) => [label, f(c.spacing.before[key]), f(c.spacing.after[key])])),
+    table(
+      ['', 'before', 'after'],
+      SPACING_ROWS.map(([label, key, f]) => [label, f(c.spacing.before[key]), f(c.spacing.after[key])]),
+    ),
     ...(c.coverage
       ? [
           '<h2>Coverage before and after</h2>',
@@ -131,7 +198,13 @@ export function comparisonHtml(c: Comparison): string {
             ['', 'in the layer', 'covered before', 'covered after', 'change'],
             [
               ['people', n0(c.coverage.people), n0(c.coverage.before), n0(c.coverage.after), signed(c.coverage.change)],
-              ...c.coverage.columns.map((col) => [`${col.name} (weight ${col.weight})`, n0(col.total), n0(col.before), n0(col.after), signed(col.change)]),
+              ...c.coverage.columns.map((col) => [
+                `${col.name} (weight ${col.weight})`,
+                n0(col.total),
+                n0(col.before),
+                n0(col.after),
+                signed(col.change),
+              ]),
             ],
           ),
         ]
@@ -152,8 +225,20 @@ export function comparisonHtml(c: Comparison): string {
           table(
             ['', 'stop_id', 'name', 'context station', 'why'],
             [
-              ...c.stationLinks.lost.map((x) => ['lost', x.stopId, x.name, x.station, x.reason === 'moved' ? 'moved away' : 'not served in the new version']),
-              ...c.stationLinks.gained.map((x) => ['gained', x.stopId, x.name, x.station, x.reason === 'moved' ? 'moved there' : 'not served in the old version']),
+              ...c.stationLinks.lost.map((x) => [
+                'lost',
+                x.stopId,
+                x.name,
+                x.station,
+                x.reason === 'moved' ? 'moved away' : 'not served in the new version',
+              ]),
+              ...c.stationLinks.gained.map((x) => [
+                'gained',
+                x.stopId,
+                x.name,
+                x.station,
+                x.reason === 'moved' ? 'moved there' : 'not served in the old version',
+              ]),
             ],
           ),
         ]
@@ -211,7 +296,21 @@ const TRIP_COLUMNS: CsvColumn<TripRow>[] = [
 /** compare-trips.csv: every route, then every pattern, whose trips a day changed. */
 export function comparisonTripsCsv(c: Comparison): string {
   const rows: TripRow[] = [
-    ...c.trips.byRoute.map((r): TripRow => ({ level: 'route', routeId: r.routeId, oldPatternId: '', newPatternId: '', tripsBefore: r.tripsBefore, tripsAfter: r.tripsAfter, changePct: r.changePct, added: null, removed: null, firstBefore: null, firstAfter: null, lastBefore: null, lastAfter: null })),
+    ...c.trips.byRoute.map((r): TripRow => ({
+      level: 'route',
+      routeId: r.routeId,
+      oldPatternId: '',
+      newPatternId: '',
+      tripsBefore: r.tripsBefore,
+      tripsAfter: r.tripsAfter,
+      changePct: r.changePct,
+      added: null,
+      removed: null,
+      firstBefore: null,
+      firstAfter: null,
+      lastBefore: null,
+      lastAfter: null,
+    })),
     ...c.trips.byPattern.map((x): TripRow => ({
       level: 'pattern',
       routeId: x.routeId,

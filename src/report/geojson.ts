@@ -193,7 +193,8 @@ export function* candidateFeatures(result: AuditResult): Generator<Feature<Point
     const properties: Feature<Point>['properties'] = {};
     for (const col of columns) {
       const v = col.get(c);
-      properties[col.name] = col.kind === 'number' ? (typeof v === 'number' ? cellNumber(v, col.digits) : null) : v === null ? '' : String(v);
+      properties[col.name] =
+        col.kind === 'number' ? (typeof v === 'number' ? cellNumber(v, col.digits) : null) : v === null ? '' : String(v);
     }
     yield { type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties };
   }
@@ -211,7 +212,14 @@ export function stopPointsGeoJson(result: AuditResult): FeatureCollection<Point>
 
 /** The features of stop_points.geojson one at a time (the stops are gathered first: a stop's routes come from every pattern). */
 export function* stopPointFeatures(result: AuditResult): Generator<Feature<Point>> {
-  interface Acc { first: StopResult; routes: Set<string>; patterns: Set<string>; trips: number; close: number; fixedReason: string }
+  interface Acc {
+    first: StopResult;
+    routes: Set<string>;
+    patterns: Set<string>;
+    trips: number;
+    close: number;
+    fixedReason: string;
+  }
   const byStop = new Map<string, Acc>();
   for (const s of result.stops) {
     if (s.stopVerdict === 'timing-only') continue; // passed without service: not a stop served on that pattern

@@ -26,7 +26,8 @@ export function seriesOf(rows: RunRecord[]): Series[] {
     { title: 'Kinds of finding at error severity', values: rows.map((r) => checked(r, r.severities.error)) },
     { title: 'Kinds of finding at warning severity', values: rows.map((r) => checked(r, r.severities.warning)) },
   ];
-  for (const code of codes) out.push({ title: `Finding ${code} (count)`, values: rows.map((r) => (ranChecks(r) ? (r.findings[code] ?? 0) : null)) });
+  for (const code of codes)
+    out.push({ title: `Finding ${code} (count)`, values: rows.map((r) => (ranChecks(r) ? (r.findings[code] ?? 0) : null)) });
   return out;
 }
 
@@ -75,7 +76,9 @@ export function lineChartSvg(series: Series, dates: string[], feeds: string[], w
     series.values.forEach((v, i) => {
       if (v === null || feeds[i] !== feed) return;
       pts.push(`${x(i).toFixed(1)},${y(v).toFixed(1)}`);
-      dots.push(`<circle cx="${x(i).toFixed(1)}" cy="${y(v).toFixed(1)}" r="3" fill="${colour}"><title>${escapeHtml(feed)}, ${escapeHtml(dates[i])}: ${escapeHtml(String(round(v)))}</title></circle>`);
+      dots.push(
+        `<circle cx="${x(i).toFixed(1)}" cy="${y(v).toFixed(1)}" r="3" fill="${colour}"><title>${escapeHtml(feed)}, ${escapeHtml(dates[i])}: ${escapeHtml(String(round(v)))}</title></circle>`,
+      );
     });
     if (pts.length > 1) lines.push(`<polyline points="${pts.join(' ')}" class="ln" stroke="${colour}"/>`);
   }
@@ -115,17 +118,20 @@ export function historyHtml(rows: RunRecord[], options: { title?: string } = {})
       : '';
   const charts = !rows.length
     ? '<p>No runs recorded yet.</p>'
-    : (shown.length ? legend + shown.map((s) => `<figure>${lineChartSvg(s, dates, feeds)}</figure>`).join('\n') : '<p>No figure changed over these runs.</p>') +
+    : (shown.length
+        ? legend + shown.map((s) => `<figure>${lineChartSvg(s, dates, feeds)}</figure>`).join('\n')
+        : '<p>No figure changed over these runs.</p>') +
       (flat.length
         ? `\n<p class="flat">The same in every run: ${flat.map((s) => `${escapeHtml(s.title)} ${escapeHtml(String(round(s.values.find((v): v is number => v !== null)!)))}`).join('; ')}.</p>`
         : '');
   const cell = (r: RunRecord, v: number) => (ranChecks(r) ? String(v) : '');
   const tr = rows
-    .map((r) =>
-      `<tr><td>${escapeHtml(r.runDate)}</td><td>${escapeHtml(r.command)}</td><td>${escapeHtml(feedKey(r))}</td><td>${escapeHtml(r.feed.version)}</td>` +
-      `<td><code>${escapeHtml(r.feed.contentHash.slice(0, 12))}</code></td><td>${escapeHtml(r.headline.analysisDate ?? '')}</td>` +
-      `<td class="n">${r.headline.medianGapM === null ? '' : r.headline.medianGapM.toFixed(1)}</td>` +
-      `<td class="n">${cell(r, r.severities.error)}</td><td class="n">${cell(r, r.severities.warning)}</td><td class="n">${cell(r, r.severities.info)}</td></tr>`,
+    .map(
+      (r) =>
+        `<tr><td>${escapeHtml(r.runDate)}</td><td>${escapeHtml(r.command)}</td><td>${escapeHtml(feedKey(r))}</td><td>${escapeHtml(r.feed.version)}</td>` +
+        `<td><code>${escapeHtml(r.feed.contentHash.slice(0, 12))}</code></td><td>${escapeHtml(r.headline.analysisDate ?? '')}</td>` +
+        `<td class="n">${r.headline.medianGapM === null ? '' : r.headline.medianGapM.toFixed(1)}</td>` +
+        `<td class="n">${cell(r, r.severities.error)}</td><td class="n">${cell(r, r.severities.warning)}</td><td class="n">${cell(r, r.severities.info)}</td></tr>`,
     )
     .join('\n');
   return `<!doctype html>

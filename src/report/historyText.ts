@@ -7,7 +7,19 @@ const num = (v: number | null, digits = 0): string => (v === null ? '-' : v.toFi
 
 export function historyText(rows: RunRecord[]): string {
   if (rows.length === 0) return 'no runs recorded yet\n';
-  const header = ['run date', 'command', 'feed version', 'hash', 'median gap m', 'close', 'wide', 'pax-min lost/day', 'errors', 'warnings', 'findings'];
+  const header = [
+    'run date',
+    'command',
+    'feed version',
+    'hash',
+    'median gap m',
+    'close',
+    'wide',
+    'pax-min lost/day',
+    'errors',
+    'warnings',
+    'findings',
+  ];
   const body = rows.map((r) => [
     r.runDate,
     r.command,
@@ -22,7 +34,11 @@ export function historyText(rows: RunRecord[]): string {
     ranChecks(r) ? String(Object.values(r.findings).reduce((a, b) => a + b, 0)) : '-',
   ]);
   const widths = header.map((h, i) => Math.max(h.length, ...body.map((b) => b[i].length)));
-  const line = (cells: string[]) => cells.map((c, i) => (i < 4 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ').trimEnd();
+  const line = (cells: string[]) =>
+    cells
+      .map((c, i) => (i < 4 ? c.padEnd(widths[i]) : c.padStart(widths[i])))
+      .join('  ')
+      .trimEnd();
   return [line(header), ...body.map(line), ...changeLines(rows)].join('\n') + '\n';
 }
 
@@ -40,11 +56,16 @@ const HEADLINE: [string, keyof RunRecord['headline'], number][] = [
 function changeLines(rows: RunRecord[]): string[] {
   if (rows.length < 2) return [];
   const b = rows[rows.length - 1];
-  const a = rows.slice(0, -1).reverse().find((r) => feedKey(r) === feedKey(b) && r.command === b.command);
+  const a = rows
+    .slice(0, -1)
+    .reverse()
+    .find((r) => feedKey(r) === feedKey(b) && r.command === b.command);
   if (!a) return [];
   const out: string[] = [];
   out.push('');
-  out.push(`since the previous run (${a.runDate}): ${a.feed.contentHash === b.feed.contentHash ? 'same feed content' : 'new feed content'}`);
+  out.push(
+    `since the previous run (${a.runDate}): ${a.feed.contentHash === b.feed.contentHash ? 'same feed content' : 'new feed content'}`,
+  );
   for (const [label, key, digits] of HEADLINE) {
     const x = a.headline[key];
     const y = b.headline[key];

@@ -29,7 +29,8 @@ table.wf th:first-child, table.wf td:first-child { text-align:left; }
 `;
 
 const fmt0 = (v: number): string => (Number.isFinite(v) ? Math.round(v).toLocaleString('en-US') : '–');
-const fmt1 = (v: number): string => (Number.isFinite(v) ? (Math.round(v * 10) / 10).toLocaleString('en-US', { minimumFractionDigits: 1 }) : '–');
+const fmt1 = (v: number): string =>
+  Number.isFinite(v) ? (Math.round(v * 10) / 10).toLocaleString('en-US', { minimumFractionDigits: 1 }) : '–';
 const fmt2 = (v: number): string => (Number.isFinite(v) ? (Math.abs(v) < 0.005 ? 0 : v).toFixed(2) : '–');
 const pct = (v: number): string => (Number.isFinite(v) ? `${(v * 100).toFixed(1)} %` : '–');
 
@@ -55,14 +56,18 @@ export function whatifStripSvg(strip: WhatifStrip, maxGapM: number, units: Units
     for (let i = 0; i + 1 < served.length; i++) {
       const gapM = served[i + 1].posM - served[i].posM;
       if (gapM > maxGapM) {
-        parts.push(`<line class="gap-over" x1="${x(served[i].posM)}" x2="${x(served[i + 1].posM)}" y1="${y}" y2="${y}"><title>${h(`gap ${formatShortDistance(gapM, units)}, above the policy's ${formatShortDistance(maxGapM, units)}`)}</title></line>`);
+        parts.push(
+          `<line class="gap-over" x1="${x(served[i].posM)}" x2="${x(served[i + 1].posM)}" y1="${y}" y2="${y}"><title>${h(`gap ${formatShortDistance(gapM, units)}, above the policy's ${formatShortDistance(maxGapM, units)}`)}</title></line>`,
+        );
       }
     }
     for (const s of stops) {
       const tip = `<title>${h(`${s.name}${s.stopId ? ` (${s.stopId})` : ''}: ${s.change}, ${formatShortDistance(s.posM, units)} along`)}</title>`;
       if (s.change === 'removed') {
         const cx = Number(x(s.posM));
-        parts.push(`<g class="removed">${tip}<line x1="${cx - 5}" x2="${cx + 5}" y1="${y - 5}" y2="${y + 5}"/><line x1="${cx - 5}" x2="${cx + 5}" y1="${y + 5}" y2="${y - 5}"/></g>`);
+        parts.push(
+          `<g class="removed">${tip}<line x1="${cx - 5}" x2="${cx + 5}" y1="${y - 5}" y2="${y + 5}"/><line x1="${cx - 5}" x2="${cx + 5}" y1="${y + 5}" y2="${y - 5}"/></g>`,
+        );
       } else {
         parts.push(`<circle class="${s.change}" cx="${x(s.posM)}" cy="${y}" r="${s.change === 'kept' ? 4 : 5.5}">${tip}</circle>`);
       }
@@ -75,7 +80,8 @@ export function whatifStripSvg(strip: WhatifStrip, maxGapM: number, units: Units
 type Row = [string, (e: ScenarioPatternEffect | null, t: ScenarioResult['totals']) => string];
 
 function rows(maxGapM: number, units: Units): Row[] {
-  const gap = (a: number, b: number): string => `${formatShortDistance(a, units)} → ${formatShortDistance(b, units)}${b > maxGapM && b > a ? ' (over policy)' : ''}`;
+  const gap = (a: number, b: number): string =>
+    `${formatShortDistance(a, units)} → ${formatShortDistance(b, units)}${b > maxGapM && b > a ? ' (over policy)' : ''}`;
   return [
     ['Riders whose stop changes, per day', (e, t) => fmt0((e ?? t).ridersAffectedPerDay)],
     ['Walk added, passenger-minutes per day', (e, t) => fmt0((e ?? t).walkAddedPaxMinPerDay)],
@@ -85,7 +91,10 @@ function rows(maxGapM: number, units: Units): Row[] {
     ['Net, passenger-minutes per day (negative: riders save)', (e, t) => fmt0((e ?? t).netPaxMinPerDay)],
     ['Run time saved per trip, s', (e, t) => fmt1((e ?? t).runTimeSavedPerTripS)],
     ['Vehicle-hours saved per day', (e, t) => fmt2((e ?? t).vehicleHoursPerDay)],
-    [`Largest gap before → after (policy ${formatShortDistance(maxGapM, units)})`, (e, t) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM)],
+    [
+      `Largest gap before → after (policy ${formatShortDistance(maxGapM, units)})`,
+      (e, t) => gap((e ?? t).largestGapBeforeM, (e ?? t).largestGapAfterM),
+    ],
     ["Share of length within the policy's walk, before → after", (e) => (e ? `${pct(e.coverageBefore)} → ${pct(e.coverageAfter)}` : '–')],
   ];
 }
@@ -140,14 +149,19 @@ ${whatifStripSvg(s, maxGapM, units)}
 <h2 id="headline-h">The answer</h2>
 <p class="${net <= 0 ? 'net-save' : 'net-cost'}">${h(headline)}${tag}</p>
 <p class="note">Sensitivity, net passenger-minutes per day: ${h(result.sensitivity.map((s) => `${s.label}: ${fmt0(s.netPaxMinPerDay)}`).join('; '))}.</p>${
-  result.landUse
-    ? `\n<p class="note">Land use: ${h(fmt0(result.landUse.peopleCoveredBefore))} of ${h(fmt0(result.landUse.people))} people within a walk of a stop before the change, ${h(fmt0(result.landUse.peopleCoveredAfter))} after.</p>`
-    : ''
-}
+    result.landUse
+      ? `\n<p class="note">Land use: ${h(fmt0(result.landUse.peopleCoveredBefore))} of ${h(fmt0(result.landUse.people))} people within a walk of a stop before the change, ${h(fmt0(result.landUse.peopleCoveredAfter))} after.</p>`
+      : ''
+  }
 </section>
 <section class="cautions" id="cautions" aria-labelledby="cautions-h">
 <h2 id="cautions-h">Before acting on this scenario</h2>
-<ul>${changesNearStations(result).map((x) => `<li class="near-station">${h(`${x.stopName || x.stopId} (${x.stopId}) ${x.action === 'remove' ? 'removed' : 'moved'} beside ${x.nearStation}: a transfer point to another mode, which the audit keeps.`)}</li>`).join('')}${result.cautions.map((c) => `<li>${h(c)}</li>`).join('')}</ul>
+<ul>${changesNearStations(result)
+    .map(
+      (x) =>
+        `<li class="near-station">${h(`${x.stopName || x.stopId} (${x.stopId}) ${x.action === 'remove' ? 'removed' : 'moved'} beside ${x.nearStation}: a transfer point to another mode, which the audit keeps.`)}</li>`,
+    )
+    .join('')}${result.cautions.map((c) => `<li>${h(c)}</li>`).join('')}</ul>
 </section>
 <section id="figures" aria-labelledby="figures-h">
 <h2 id="figures-h">Per pattern and in total</h2>

@@ -29,7 +29,13 @@ export interface WhatifStrip {
 /** Distance along the pattern of the point of its line of stops nearest to (lat, lon), and the offset, metres. */
 function snap(feed: Feed, pattern: Pattern, model: number[], lat: number, lon: number): { posM: number; offsetM: number } {
   const stops = model.map((j) => feed.stops[pattern.stopIdx[j]]);
-  return nearestOnStopLine(stops.map((s) => s.lat), stops.map((s) => s.lon), model.map((j) => pattern.distAlongM[j]), lat, lon);
+  return nearestOnStopLine(
+    stops.map((s) => s.lat),
+    stops.map((s) => s.lon),
+    model.map((j) => pattern.distAlongM[j]),
+    lat,
+    lon,
+  );
 }
 
 function stopMatches(feed: Feed, stopIdx: number, ref: string): boolean {
@@ -78,7 +84,14 @@ export function whatifStrips(feed: Feed, patterns: PatternSet, scenario: Scenari
     }
     after.sort((x, y) => x.posM - y.posM);
     const route = feed.routes.get(pattern.routeId);
-    out.push({ patternId: pattern.id, routeLabel: route?.shortName || pattern.routeId, headsign: pattern.headsign, lengthM: pattern.lengthM, before, after });
+    out.push({
+      patternId: pattern.id,
+      routeLabel: route?.shortName || pattern.routeId,
+      headsign: pattern.headsign,
+      lengthM: pattern.lengthM,
+      before,
+      after,
+    });
   }
   return out;
 }

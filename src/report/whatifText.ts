@@ -74,8 +74,14 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
     ['net, pax-min/day (- = riders save)', (e) => n0((e ?? t).netPaxMinPerDay)],
     ['run time saved per trip, s', (e) => n1((e ?? t).runTimeSavedPerTripS)],
     ['vehicle-hours saved per day', (e) => n2((e ?? t).vehicleHoursPerDay)],
-    [`widest gap a change makes, ${unit} (policy ${dist(maxGapM)})`, (e) => newGap(e ? e.changes : result.patterns.flatMap((x) => x.changes))],
-    [`within ${dist(maxGapM / 2)} ${unit} of a stop, before -> after`, (e) => (e ? `${pc(e.coverageBefore)} -> ${pc(e.coverageAfter)}` : '')],
+    [
+      `widest gap a change makes, ${unit} (policy ${dist(maxGapM)})`,
+      (e) => newGap(e ? e.changes : result.patterns.flatMap((x) => x.changes)),
+    ],
+    [
+      `within ${dist(maxGapM / 2)} ${unit} of a stop, before -> after`,
+      (e) => (e ? `${pc(e.coverageBefore)} -> ${pc(e.coverageAfter)}` : ''),
+    ],
     ['demand', (e) => (e ? e.demandSource : '')],
   ];
   const columns: { head: string; e: ScenarioPatternEffect | null }[] = [
@@ -85,8 +91,12 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
   const labelW = Math.max(...rows.map(([l]) => l.length));
   const lines: string[] = [];
   const assumed = result.patterns.some((e) => e.demandSource !== 'observed');
-  const modelled = result.patterns.some((e) => e.demandSource === 'land-use') ? ' (demand assumed and placed by land use, not counted)' : ' (demand assumed, not counted)';
-  lines.push(`what-if on ${safe(feedSource)} for ${result.date}: ${t.patternsAffected} pattern${t.patternsAffected === 1 ? '' : 's'} affected${assumed ? modelled : ''}`);
+  const modelled = result.patterns.some((e) => e.demandSource === 'land-use')
+    ? ' (demand assumed and placed by land use, not counted)'
+    : ' (demand assumed, not counted)';
+  lines.push(
+    `what-if on ${safe(feedSource)} for ${result.date}: ${t.patternsAffected} pattern${t.patternsAffected === 1 ? '' : 's'} affected${assumed ? modelled : ''}`,
+  );
   for (let b = 0; b < columns.length; b += columnsPerBlock) {
     const block = columns.slice(b, b + columnsPerBlock);
     const cells = block.map((c) => rows.map(([, f]) => f(c.e, t)));
@@ -102,8 +112,15 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
     for (const c of e.changes) {
       const verb = c.action === 'remove' ? 'removes' : c.action === 'move' ? 'moves' : 'adds a stop';
       const who = c.stopId ? ` ${c.stopId} ${c.stopName}` : '';
-      const gaps = c.action === 'add' ? `splits a ${gapText(c.gapsBeforeM)} ${unit} gap into ${gapText(c.gapsAfterM)} ${unit}` : `gaps ${gapText(c.gapsBeforeM)} ${unit} become ${gapText(c.gapsAfterM)} ${unit}`;
-      const policy = c.gapsAfterM.some((g) => g > maxGapM) ? (c.overPolicy ? `above the ${dist(maxGapM)} ${unit} policy !` : `above the ${dist(maxGapM)} ${unit} policy, as before`) : `within the ${dist(maxGapM)} ${unit} policy`;
+      const gaps =
+        c.action === 'add'
+          ? `splits a ${gapText(c.gapsBeforeM)} ${unit} gap into ${gapText(c.gapsAfterM)} ${unit}`
+          : `gaps ${gapText(c.gapsBeforeM)} ${unit} become ${gapText(c.gapsAfterM)} ${unit}`;
+      const policy = c.gapsAfterM.some((g) => g > maxGapM)
+        ? c.overPolicy
+          ? `above the ${dist(maxGapM)} ${unit} policy !`
+          : `above the ${dist(maxGapM)} ${unit} policy, as before`
+        : `within the ${dist(maxGapM)} ${unit} policy`;
       lines.push(safe(`  ${verb}${who}: ${gaps}, ${policy}${c.nearStation ? `; beside ${c.nearStation} !` : ''}`));
     }
   }
@@ -132,7 +149,9 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
     lines.push(
       `${head}; at the peak headway of ${n1(f.peakHeadwayS / 60)} min that frees ${f.peakVehiclesFreed} of ${f.peakVehiclesBefore} peak vehicles (${n2(f.vehicleShareFreed ?? 0)} of a vehicle), ` +
         `or the same fleet runs every ${n1(f.headwaySameFleetS / 60)} min` +
-        (f.waitSavedPaxMinPerDay !== null ? `, saving riders about ${n0(f.waitSavedPaxMinPerDay)} minutes of waiting a day (half the headway change per boarding, common planning practice)` : '') +
+        (f.waitSavedPaxMinPerDay !== null
+          ? `, saving riders about ${n0(f.waitSavedPaxMinPerDay)} minutes of waiting a day (half the headway change per boarding, common planning practice)`
+          : '') +
         cost,
     );
   }
@@ -153,8 +172,9 @@ export function whatifText(result: ScenarioResult, options: WhatifTextOptions = 
   const near = changesNearStations(result);
   if (near.length) {
     lines.push(
-      safe(`other modes: ${near.length} stop${near.length === 1 ? '' : 's'} ${near.length === 1 ? 'this changes lies' : 'these change lie'} within walking distance of a station of a context feed, a transfer point the audit keeps (marked !): `) +
-        near.map((x) => safe(`${x.stopId} ${x.stopName} (${x.nearStation})`)).join('; '),
+      safe(
+        `other modes: ${near.length} stop${near.length === 1 ? '' : 's'} ${near.length === 1 ? 'this changes lies' : 'these change lie'} within walking distance of a station of a context feed, a transfer point the audit keeps (marked !): `,
+      ) + near.map((x) => safe(`${x.stopId} ${x.stopName} (${x.nearStation})`)).join('; '),
     );
   }
   if (result.warnings.length) lines.push(`${result.warnings.length} feed warning${result.warnings.length === 1 ? '' : 's'} (see --json)`);

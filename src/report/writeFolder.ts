@@ -101,7 +101,8 @@ async function notAReport(folder: string): Promise<string | null> {
   const names = await markedNames(folder);
   // an empty folder (made ready for the output, as by mkdtemp) holds nothing to lose
   if (names === null && (await readdir(folder)).length === 0) return null;
-  if (names === null) return `it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`;
+  if (names === null)
+    return `it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`;
   for (const entry of await readdir(folder, { withFileTypes: true })) {
     if (entry.name === REPORT_MARKER) continue;
     if (!entry.isFile() || !names.has(entry.name)) {
@@ -144,7 +145,9 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
   }
   // "-" reads as "standard output" in most tools; a folder of that name would surprise, so it is refused
   if (outDir === '-') {
-    throw new StopspanError('bad-option', 'invalid option --out: "-" is not a folder; for the summary on standard output use --json', { value: outDir });
+    throw new StopspanError('bad-option', 'invalid option --out: "-" is not a folder; for the summary on standard output use --json', {
+      value: outDir,
+    });
   }
   const target = resolve(outDir);
   if (dirname(target) === target) refuse(outDir, 'it is the root folder');
@@ -174,7 +177,9 @@ export async function checkOutFolder(outDir: string, { force = false, inputs = [
     }
     if (why !== null) refuse(outDir, why);
     if (!force) {
-      throw new StopspanError('output-exists', 'the output folder already exists; choose another folder or pass --force to replace it', { file: outDir });
+      throw new StopspanError('output-exists', 'the output folder already exists; choose another folder or pass --force to replace it', {
+        file: outDir,
+      });
     }
   }
   // the nearest folder that exists on the way up must be a folder this run can write in
@@ -237,7 +242,11 @@ export async function writeFolder(
     try {
       await mkdir(tmp);
       // the marker first: a temporary folder holding it is recognisably this tool's
-      await writeFile(join(tmp, REPORT_MARKER), JSON.stringify({ writtenBy: 'stopspan', version, files: files.map(([n]) => n) }, null, 2) + '\n', 'utf8');
+      await writeFile(
+        join(tmp, REPORT_MARKER),
+        JSON.stringify({ writtenBy: 'stopspan', version, files: files.map(([n]) => n) }, null, 2) + '\n',
+        'utf8',
+      );
       for (const [name, content] of files) {
         const body = typeof content === 'function' ? content() : content;
         if (typeof body === 'string') await writeFile(join(tmp, name), body, 'utf8');

@@ -60,17 +60,25 @@ export async function writeReport(result: AuditResult, outDir: string, options: 
   const { formats = [...DEFAULT_FORMATS], units = 'metric', force = false, inputs } = options;
   checkUnits(units);
   if (!Array.isArray(formats) || formats.length === 0) {
-    throw new StopspanError('bad-option', `invalid option formats: expected one or more of ${REPORT_FORMATS.join(', ')}, got none`, { value: String(formats) });
+    throw new StopspanError('bad-option', `invalid option formats: expected one or more of ${REPORT_FORMATS.join(', ')}, got none`, {
+      value: String(formats),
+    });
   }
   for (const f of formats) {
     if (!REPORT_FORMATS.includes(f)) {
-      throw new StopspanError('bad-option', `invalid option formats: expected one of ${REPORT_FORMATS.join(', ')}, got ${JSON.stringify(f)}`, { value: String(f) });
+      throw new StopspanError(
+        'bad-option',
+        `invalid option formats: expected one of ${REPORT_FORMATS.join(', ')}, got ${JSON.stringify(f)}`,
+        { value: String(f) },
+      );
     }
   }
   const wanted = REPORT_FORMATS.filter((f) => formats.includes(f)); // fixed order, no duplicates
   if (wanted.includes('gpkg')) loadGeoPackageSqlite();
   const files: [string, () => string | FileWriter][] = wanted.flatMap((f) =>
-    FILES[f].flatMap(([name, render]) => (name === 'plan.json' && !result.plan ? [] : [[name, () => render(result, units) ?? ''] as [string, () => string | FileWriter]])),
+    FILES[f].flatMap(([name, render]) =>
+      name === 'plan.json' && !result.plan ? [] : [[name, () => render(result, units) ?? ''] as [string, () => string | FileWriter]],
+    ),
   );
   return writeFolder(outDir, files, { force, inputs });
 }

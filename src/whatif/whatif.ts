@@ -16,7 +16,12 @@ export * from '../model/scenario.js';
 export interface EvaluateScenarioOptions extends PrepareAuditOptions {}
 
 /** Weighs a scenario on every pattern it touches; throws 'bad-scenario' before computing if any item is not understood. */
-export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: ScenarioInput, options: EvaluateScenarioOptions = {}): ScenarioResult {
+export function evaluateScenario(
+  feed: Feed,
+  patterns: PatternSet,
+  scenario: ScenarioInput,
+  options: EvaluateScenarioOptions = {},
+): ScenarioResult {
   const sc = parseScenario(scenario);
   const { np, params, preps, warnings, catchments } = prepareAudit(feed, patterns, options);
   const weighed = weighScenario(feed, patterns.date, preps, params, sc);
@@ -36,9 +41,13 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
     for (const [id, pats] of dropped) {
       const s = feed.stopIndex.get(id);
       if (s === undefined) continue;
-      if (preps.every((p) => !p.pattern.stopIdx.some((x, j) => x === s && p.modelStops.includes(j)) || pats.has(p.pattern.id))) closed.add(s);
+      if (preps.every((p) => !p.pattern.stopIdx.some((x, j) => x === s && p.modelStops.includes(j)) || pats.has(p.pattern.id)))
+        closed.add(s);
     }
-    const opened = [...(sc.add ?? []).map((a) => ({ lat: a.lat, lon: a.lon })), ...(sc.move ?? []).map((m) => ({ lat: m.lat, lon: m.lon }))];
+    const opened = [
+      ...(sc.add ?? []).map((a) => ({ lat: a.lat, lon: a.lon })),
+      ...(sc.move ?? []).map((m) => ({ lat: m.lat, lon: m.lon })),
+    ];
     landUse = {
       file: catchments.layer.file,
       people: catchments.layer.totalPeople,
@@ -61,12 +70,14 @@ export function evaluateScenario(feed: Feed, patterns: PatternSet, scenario: Sce
           : 'Some or all demand is assumed uniform along the pattern (no ridership file for it): figures marked demand_source=assumed.'
         : 'Demand comes from the ridership file.',
       ...(catchments
-        ? [`Coverage: people in the land-use layer within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of a stop served, before and after the change; a stop closes when no pattern serves it any more.`]
+        ? [
+            `Coverage: people in the land-use layer within a ${WALK_RADIUS_M} m walk (straight line times ${WALK_DETOUR}) of a stop served, before and after the change; a stop closes when no pattern serves it any more.`,
+          ]
         : []),
-      'Riders are spread evenly over each stop\'s catchment and walk along the route to the nearest stop served after the change; in-vehicle time between stops is not changed.',
+      "Riders are spread evenly over each stop's catchment and walk along the route to the nearest stop served after the change; in-vehicle time between stops is not changed.",
       `Added and moved stops are placed on the line between the pattern's stops nearest to the given point (at most ${SNAP_LIMIT_M} m away).`,
-      'The band tolerance does not enter a scenario\'s figures; sensitivity shows the net at walk weights 1.5 and 2.5.',
-      'Fleet: a route\'s round trip is its scheduled run time out and back (no layover); peak vehicles = round trip / peak headway, rounded up; the same fleet on the shorter round trip could run round trip / vehicles; waiting saved = half the headway change per boarding (common planning practice; an upper estimate where headways are long enough that riders time their arrival), at the day\'s mean headway.',
+      "The band tolerance does not enter a scenario's figures; sensitivity shows the net at walk weights 1.5 and 2.5.",
+      "Fleet: a route's round trip is its scheduled run time out and back (no layover); peak vehicles = round trip / peak headway, rounded up; the same fleet on the shorter round trip could run round trip / vehicles; waiting saved = half the headway change per boarding (common planning practice; an upper estimate where headways are long enough that riders time their arrival), at the day's mean headway.",
     ],
     cautions: [...CAUTIONS],
     warnings: [...feed.warnings, ...warnings.list()],

@@ -41,7 +41,9 @@ describe.skipIf(!have)('nyct-bus-manhattan.zip with nyct-subway.zip as context',
     expect(named.length).toBeGreaterThan(5);
     for (const c of named) {
       const [, name, metres] = /station (.+?) \(nyct-subway\), (\d+) m/.exec(c.evidence!)!;
-      const nearest = Math.min(...rows.filter((r) => r.stop_name === name).map((r) => haversineM(c.lat, c.lon, Number(r.stop_lat), Number(r.stop_lon))));
+      const nearest = Math.min(
+        ...rows.filter((r) => r.stop_name === name).map((r) => haversineM(c.lat, c.lon, Number(r.stop_lat), Number(r.stop_lon))),
+      );
       expect(nearest, `${c.stopName}: ${c.evidence}`).toBeLessThanOrEqual(WALK_REACH_M + 1);
       expect(Math.abs(nearest - Number(metres)), `${c.stopName}: ${c.evidence}`).toBeLessThanOrEqual(1);
     }

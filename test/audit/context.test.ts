@@ -27,13 +27,19 @@ function railFolder(name: string, { calendarStart = '20260101', stopId = 'S6' } 
     join(dir, 'stops.txt'),
     `stop_id,stop_name,stop_lat,stop_lon,location_type,parent_station\n${stopId},Vellmoor Central,${station.lat},${station.lon},1,\n${stopId}-p1,Vellmoor Central platform 1,${station.lat},${station.lon},0,${stopId}\nFAR,Vellmoor Docks,${station.lat + 0.05},${station.lon},1,\n`,
   );
-  writeFileSync(join(dir, 'calendar.txt'), `service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,${calendarStart},20261231\n`);
+  writeFileSync(
+    join(dir, 'calendar.txt'),
+    `service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,${calendarStart},20261231\n`,
+  );
   return dir;
 }
 
 function busNetwork() {
   const ids = bus.map((s) => s.id);
-  const net = buildFeed({ stops: bus, trips: [{ id: 'b1', routeId: 'R1', times: ids.map((s, k) => [s, 28800 + 30 * k, 28800 + 30 * k] as [string, number, number]) }] });
+  const net = buildFeed({
+    stops: bus,
+    trips: [{ id: 'b1', routeId: 'R1', times: ids.map((s, k) => [s, 28800 + 30 * k, 28800 + 30 * k] as [string, number, number]) }],
+  });
   for (const p of net.patterns.patterns) p.tripsPerDay = 60;
   return net;
 }

@@ -19,7 +19,10 @@ afterAll(() => rmSync(work, { recursive: true, force: true }));
 const LAT0 = 52.37;
 // [D] metres per degree on a sphere of radius 6 378 km: 2 pi R / 360 = 111 320 m of latitude, times cos(lat) of longitude
 const M_PER_DEG_LAT = 111_320;
-const place = (eastM: number, northM = 0) => ({ lat: LAT0 + northM / M_PER_DEG_LAT, lon: 4.9 + eastM / (M_PER_DEG_LAT * Math.cos((LAT0 * Math.PI) / 180)) });
+const place = (eastM: number, northM = 0) => ({
+  lat: LAT0 + northM / M_PER_DEG_LAT,
+  lon: 4.9 + eastM / (M_PER_DEG_LAT * Math.cos((LAT0 * Math.PI) / 180)),
+});
 const ALONG = [0, 150, 300, 450, 600, 750, 2150, 2300, 2450]; // the gap: 750 -> 2150 m, 1.4 km, middle at 1450 m
 
 function quayRoad() {
@@ -39,14 +42,23 @@ function railFolder(name: string, at: { lat: number; lon: number }): string {
   const dir = join(work, name);
   mkdirSync(dir, { recursive: true });
   writeFileSync(join(dir, 'stops.txt'), `stop_id,stop_name,stop_lat,stop_lon,location_type\nQS,Vellmoor Quay,${at.lat},${at.lon},1\n`);
-  writeFileSync(join(dir, 'calendar.txt'), 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n');
+  writeFileSync(
+    join(dir, 'calendar.txt'),
+    'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n',
+  );
   return dir;
 }
 
 async function audit(context: string[]) {
   const { feed, patterns } = quayRoad();
   const { near, stations } = await contextStops(feed, patterns, context);
-  return runAudit(feed, patterns, { generatedAt: '2026-10-14T00:00:00Z', forceTransfers: false, params: { cruise_speed_mps: 11.176, assumed_boardings_per_trip_km: 6 }, stations: near, contextStations: stations });
+  return runAudit(feed, patterns, {
+    generatedAt: '2026-10-14T00:00:00Z',
+    forceTransfers: false,
+    params: { cruise_speed_mps: 11.176, assumed_boardings_per_trip_km: 6 },
+    stations: near,
+    contextStations: stations,
+  });
 }
 
 /** East of the gap's first stop and west of its last: where an addition in the gap would be. */
@@ -60,7 +72,9 @@ describe('context stations as evidence for additions', () => {
     const r = await audit([]);
     expect(r.gaps.find((g) => g.fromStopId === 'm5')?.wide).toBe(true);
     expect(r.candidates.filter((c) => c.action === 'add' && inGap(c.lat, c.lon))).toEqual([]);
-    expect(r.reviewGaps.filter((x) => x.fromStopId === 'm5').map((x) => [x.reason, x.detail])).toEqual([['long-straight-empty', '1.4 km straight with no stop of another route within a 400 m walk of its middle']]);
+    expect(r.reviewGaps.filter((x) => x.fromStopId === 'm5').map((x) => [x.reason, x.detail])).toEqual([
+      ['long-straight-empty', '1.4 km straight with no stop of another route within a 400 m walk of its middle'],
+    ]);
   });
 
   it('takes a context station within a walk of the middle as evidence, naming the station', async () => {
@@ -74,9 +88,20 @@ describe('context stations as evidence for additions', () => {
     // the rule itself, at the gap's middle: the station is the witness, and the evidence names it
     const { feed, patterns } = quayRoad();
     const { stations } = await contextStops(feed, patterns, [railFolder('vellmoor-rail', station)]);
-    const index = buildStopIndex(feed, patterns.patterns[0].stopIdx.map((s) => [s, 'Q'] as [number, string]), stations);
+    const index = buildStopIndex(
+      feed,
+      patterns.patterns[0].stopIdx.map((s) => [s, 'Q'] as [number, string]),
+      stations,
+    );
     const mid = place(1450);
-    const site = { ...mid, fromStopIdx: feed.stopIndex.get('m5')!, toStopIdx: feed.stopIndex.get('m6')!, gapM: 1400, scheduledS: 280, ownRoutes: new Set(['Q']) };
+    const site = {
+      ...mid,
+      fromStopIdx: feed.stopIndex.get('m5')!,
+      toStopIdx: feed.stopIndex.get('m6')!,
+      gapM: 1400,
+      scheduledS: 280,
+      ownRoutes: new Set(['Q']),
+    };
     const d = haversineM(mid.lat, mid.lon, station.lat, station.lon);
     expect(Math.round(d)).toBe(120);
     expect(additionEvidence(feed, index, site)).toEqual({
@@ -87,12 +112,23 @@ describe('context stations as evidence for additions', () => {
       text: 'station Vellmoor Quay (vellmoor-rail), 120 m from the site, within a walk',
     });
     // without the stations on the index the same site has no witness
-    expect(additionEvidence(feed, buildStopIndex(feed, patterns.patterns[0].stopIdx.map((s) => [s, 'Q'] as [number, string])), site).ok).toBe(false);
+    expect(
+      additionEvidence(
+        feed,
+        buildStopIndex(
+          feed,
+          patterns.patterns[0].stopIdx.map((s) => [s, 'Q'] as [number, string]),
+        ),
+        site,
+      ).ok,
+    ).toBe(false);
   });
 
   it("counts a station by the gap's end as no evidence for its middle", async () => {
     const r = await audit([railFolder('vellmoor-rail-end', place(800, 60))]);
     expect(r.candidates.filter((c) => c.action === 'add' && inGap(c.lat, c.lon))).toEqual([]);
-    expect(r.reviewGaps.filter((x) => x.fromStopId === 'm5').map((x) => x.detail)).toEqual(['1.4 km straight with no stop of another route nor station of a context feed within a 400 m walk of its middle']);
+    expect(r.reviewGaps.filter((x) => x.fromStopId === 'm5').map((x) => x.detail)).toEqual([
+      '1.4 km straight with no stop of another route nor station of a context feed within a 400 m walk of its middle',
+    ]);
   });
 });

@@ -39,7 +39,10 @@ interface Line {
 }
 
 /** A feed and pattern set from stops along a street and the patterns that call at them (4 m/s run times). */
-function network(stops: Stop[], lines: Line[]): { feed: Feed; patterns: { date: string; patterns: Pattern[]; routesAtStop: Map<number, Set<string>> } } {
+function network(
+  stops: Stop[],
+  lines: Line[],
+): { feed: Feed; patterns: { date: string; patterns: Pattern[]; routesAtStop: Map<number, Set<string>> } } {
   const index = new Map(stops.map((s, i) => [s.id, i]));
   const pats = lines.map((l) =>
     handPattern({
@@ -53,7 +56,13 @@ function network(stops: Stop[], lines: Line[]): { feed: Feed; patterns: { date: 
       passengerStop: l.stops.map((_, j) => !(l.timingOnly ?? []).includes(j)),
     }),
   );
-  const routes = [...new Set(lines.map((l) => l.route))].map((id) => ({ id, agencyId: 'VT', shortName: id, longName: `${id} line`, type: 3 }));
+  const routes = [...new Set(lines.map((l) => l.route))].map((id) => ({
+    id,
+    agencyId: 'VT',
+    shortName: id,
+    longName: `${id} line`,
+    type: 3,
+  }));
   const feed = assembleFeed({
     source: 'vellmoor-headline',
     date: '2026-10-14',
@@ -76,7 +85,8 @@ function along(n: number, gapsM: Record<number, number> = {}): number[] {
 }
 const ids = (prefix: string, n: number, from = 0): string[] => Array.from({ length: n }, (_, k) => `${prefix}${from + k}`);
 
-const rows = (text: string): Record<string, string>[] => parse(text, { columns: true, record_delimiter: '\r\n' }) as Record<string, string>[];
+const rows = (text: string): Record<string, string>[] =>
+  parse(text, { columns: true, record_delimiter: '\r\n' }) as Record<string, string>[];
 const GEN = '2026-01-01T00:00:00Z';
 
 describe('one count of wide gaps', () => {
@@ -135,7 +145,10 @@ describe('one count of wide gaps', () => {
     expect(r.headline.paxMinAdditionsPerDay).toBeCloseTo(-w.totals.netPaxMinPerDay, 9);
     expect(r.headline.paxMinAtStakePerDay).toBeCloseTo(r.headline.paxMinLostPerDay + r.headline.paxMinAdditionsPerDay, 9);
     const sum = summaryObject(r) as { headline: Record<string, number> };
-    expect(sum.headline.pax_min_at_stake_per_day).toBeCloseTo(sum.headline.pax_min_lost_per_day + sum.headline.pax_min_additions_per_day, 0);
+    expect(sum.headline.pax_min_at_stake_per_day).toBeCloseTo(
+      sum.headline.pax_min_lost_per_day + sum.headline.pax_min_additions_per_day,
+      0,
+    );
     expect(indexHtml(r)).toContain('Passenger-minutes at stake per day');
   });
 });
@@ -146,14 +159,21 @@ describe('a timing point mid-gap', () => {
   // its neighbours.
   const cd = along(30, { 10: 300, 11: 300 });
   const dd = along(30, { 18: 150, 19: 100, 20: 100 });
-  const stops = [...cd.map((d, k) => stopAt(`t${k}`, d)), ...ids('d', 30).filter((id) => id !== 'd20').map((id) => stopAt(id, cd[11], dd[20] - dd[Number(id.slice(1))]))];
+  const stops = [
+    ...cd.map((d, k) => stopAt(`t${k}`, d)),
+    ...ids('d', 30)
+      .filter((id) => id !== 'd20')
+      .map((id) => stopAt(id, cd[11], dd[20] - dd[Number(id.slice(1))])),
+  ];
   const dIds = ids('d', 30).map((id) => (id === 'd20' ? 't11' : id));
   const { feed, patterns } = network(stops, [
     { id: 'C:0:1', route: 'C', stops: ids('t', 30), distM: cd, timingOnly: [11] },
     { id: 'D:0:1', route: 'D', stops: dIds, distM: dd },
   ]);
   const r = runAudit(feed, patterns, { generatedAt: GEN });
-  const c = rows(stopsCsv(r)).filter((s) => s.pattern_id === 'C:0:1').slice(9, 14); // t9 to t13
+  const c = rows(stopsCsv(r))
+    .filter((s) => s.pattern_id === 'C:0:1')
+    .slice(9, 14); // t9 to t13
 
   it('leaves it out of the gaps in stops.csv, with its own stop verdict and no gap verdicts', () => {
     expect(c.map((s) => s.stop_id)).toEqual(['t9', 't10', 't11', 't12', 't13']);
@@ -172,7 +192,10 @@ describe('a timing point mid-gap', () => {
   });
 
   it("leaves it out of the page's stop list, so the page's gaps are stops.csv's", () => {
-    const data = pageData(r, 'metric', 400) as { stopTable: [string, ...unknown[]][]; patterns: { id: string; stops: number[][]; gaps: number[][] }[] };
+    const data = pageData(r, 'metric', 400) as {
+      stopTable: [string, ...unknown[]][];
+      patterns: { id: string; stops: number[][]; gaps: number[][] }[];
+    };
     const p = data.patterns.find((x) => x.id === 'C:0:1')!;
     // a pattern's stop rows name their stop by its place in the page's one stop table: [ref, dist, ...]
     expect(p.stops.map((s) => data.stopTable[s[0]][0])).toEqual(ids('t', 30).filter((id) => id !== 't11'));

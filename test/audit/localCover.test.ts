@@ -32,10 +32,30 @@ function withLimited({ localTrips = 60, limitedTrips = 60, offsetNorthM = 0, rev
     });
   }
   const d = LIMITED_AT.map((j) => LOCAL_AT[j]);
-  const x: Pattern = { ...v1, id: 'X:0:1', routeId: 'X', stopIdx, distAlongM: d, offsetFromShapeM: d.map(() => null), passengerStop: d.map(() => true), timepoint: d.map(() => false), gapRunTimeS: d.slice(1).map(() => 120), gapTimeInterpolated: d.slice(1).map(() => false), scheduledDwellS: d.map(() => 0), tripsPerDay: limitedTrips, tripIds: [], runTimeS: 240, lengthM: d[d.length - 1] };
+  const x: Pattern = {
+    ...v1,
+    id: 'X:0:1',
+    routeId: 'X',
+    stopIdx,
+    distAlongM: d,
+    offsetFromShapeM: d.map(() => null),
+    passengerStop: d.map(() => true),
+    timepoint: d.map(() => false),
+    gapRunTimeS: d.slice(1).map(() => 120),
+    gapTimeInterpolated: d.slice(1).map(() => false),
+    scheduledDwellS: d.map(() => 0),
+    tripsPerDay: limitedTrips,
+    tripIds: [],
+    runTimeS: 240,
+    lengthM: d[d.length - 1],
+  };
   if (reverseLocal) {
     const n = v1.stopIdx.length;
-    patterns.patterns[0] = { ...v1, stopIdx: [...v1.stopIdx].reverse(), distAlongM: v1.distAlongM.map((_, j) => v1.distAlongM[n - 1] - v1.distAlongM[n - 1 - j]) };
+    patterns.patterns[0] = {
+      ...v1,
+      stopIdx: [...v1.stopIdx].reverse(),
+      distAlongM: v1.distAlongM.map((_, j) => v1.distAlongM[n - 1] - v1.distAlongM[n - 1 - j]),
+    };
   }
   feed.routes.set('X', { id: 'X', agencyId: 'VT', shortName: '1X', longName: 'Harbour limited', type: 3 });
   patterns.patterns.push(x);
@@ -78,14 +98,16 @@ describe('gaps served by a local', () => {
     expect(coverOfX(near)).toEqual(['1', '1']);
     const far = withLimited({ offsetNorthM: 2 * LOCAL_NEAR_M });
     const s = far.feed.stops;
-    expect(haversineM(s[far.patterns.patterns[2].stopIdx[0]].lat, s[far.patterns.patterns[2].stopIdx[0]].lon, s[0].lat, s[0].lon)).toBeGreaterThan(LOCAL_NEAR_M);
+    expect(
+      haversineM(s[far.patterns.patterns[2].stopIdx[0]].lat, s[far.patterns.patterns[2].stopIdx[0]].lon, s[0].lat, s[0].lon),
+    ).toBeGreaterThan(LOCAL_NEAR_M);
     expect(coverOfX(far)).toEqual([null, null]);
     const r = runAudit(far.feed, far.patterns, { params });
     expect(r.patterns.find((p) => p.patternId === 'X:0:1')!.wideGaps).toBe(2);
   });
 });
 
-describe('a limited variant under its local\'s route_id', () => {
+describe("a limited variant under its local's route_id", () => {
   it('is judged against that local: its long gaps are covered, not wide, and get no proposed stop', () => {
     const net = withLimited();
     // the limited pattern X:0:1 moved under route V1, as a feed with one route_id for both services has it

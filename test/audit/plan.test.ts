@@ -54,15 +54,19 @@ describe('the optimiser plan', () => {
     expect(sum.plan.fleet.length).toBeGreaterThan(0);
   });
 
-  it.skipIf(!existsSync(MANHATTAN))('on nyct-bus-manhattan.zip, whatif of the plan gives the plan figures', async () => {
-    const feed = await readFeed(MANHATTAN, { date: 'auto' });
-    const patterns = buildPatterns(feed, { date: feed.date ?? undefined });
-    const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
-    const plan = r.plan!;
-    expect(plan.stopsDropped).toBeGreaterThan(0);
-    const w = evaluateScenario(feed, patterns, parseScenario(JSON.parse(JSON.stringify(plan.scenario))), {});
-    expect(w.totals.netPaxMinPerDay).toBeCloseTo(plan.figures.totals.netPaxMinPerDay, 3);
-    const lost = r.patterns.reduce((s, p) => s + p.paxMinLostPerDay, 0);
-    expect(Math.abs(w.totals.netPaxMinPerDay + lost) / lost).toBeLessThan(0.01);
-  }, 600_000);
+  it.skipIf(!existsSync(MANHATTAN))(
+    'on nyct-bus-manhattan.zip, whatif of the plan gives the plan figures',
+    async () => {
+      const feed = await readFeed(MANHATTAN, { date: 'auto' });
+      const patterns = buildPatterns(feed, { date: feed.date ?? undefined });
+      const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
+      const plan = r.plan!;
+      expect(plan.stopsDropped).toBeGreaterThan(0);
+      const w = evaluateScenario(feed, patterns, parseScenario(JSON.parse(JSON.stringify(plan.scenario))), {});
+      expect(w.totals.netPaxMinPerDay).toBeCloseTo(plan.figures.totals.netPaxMinPerDay, 3);
+      const lost = r.patterns.reduce((s, p) => s + p.paxMinLostPerDay, 0);
+      expect(Math.abs(w.totals.netPaxMinPerDay + lost) / lost).toBeLessThan(0.01);
+    },
+    600_000,
+  );
 });

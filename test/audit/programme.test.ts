@@ -20,7 +20,10 @@ describe('programmeCandidates', () => {
     ['uneven stops with a wide gap', [0, 90, 170, 260, 330, 900, 980, 1050, 1130, 1210, 1290, 1800, 1870, 1950]],
     // long enough that most accepted edits lie beyond the reach of the other candidates, whose figures are
     // then kept rather than weighed again: the prefixes must still add up exactly
-    ['a long corridor of close stops and wide gaps', Array.from({ length: 60 }, (_, k) => k * 70 + (k % 9 === 0 ? 0 : 25 * (k % 3)) + Math.floor(k / 15) * 900)],
+    [
+      'a long corridor of close stops and wide gaps',
+      Array.from({ length: 60 }, (_, k) => k * 70 + (k % 9 === 0 ? 0 : 25 * (k % 3)) + Math.floor(k / 15) * 900),
+    ],
   ])('%s: every prefix sum equals whatif of the same set', (_, distM) => {
     const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 80, sharedAt: 4 });
     const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
@@ -35,21 +38,25 @@ describe('programmeCandidates', () => {
     }
   });
 
-  it.skipIf(!existsSync(MANHATTAN))('on nyct-bus-manhattan.zip, whatif of the top 20 removals together equals the list sum within 1 %', async () => {
-    const feed = await readFeed(MANHATTAN, { date: 'auto' });
-    const patterns = buildPatterns(feed, { date: feed.date ?? undefined });
-    const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
-    const top = r.candidates.filter((c) => c.action === 'remove').slice(0, 20);
-    expect(top.length).toBe(20);
-    // removals only: the marginals of removals ranked among additions still add up per set when the
-    // additions between them are left out only if they share no pattern; so weigh the whole prefix up to the 20th removal
-    const last = r.candidates.indexOf(top[19]);
-    const prefix = r.candidates.slice(0, last + 1);
-    const listSum = prefix.reduce((s, c) => s + c.netPaxMinPerDay, 0);
-    const joint = evaluateScenario(feed, patterns, programmeScenario(prefix), {}).totals.netPaxMinPerDay;
-    expect(Math.abs(joint - listSum) / Math.abs(listSum)).toBeLessThan(0.01);
-    const onlyRemovals = evaluateScenario(feed, patterns, programmeScenario(top), {}).totals.netPaxMinPerDay;
-    const removalSum = top.reduce((s, c) => s + c.netPaxMinPerDay, 0);
-    expect(Math.abs(onlyRemovals - removalSum) / Math.abs(removalSum)).toBeLessThan(0.01);
-  }, 600_000);
+  it.skipIf(!existsSync(MANHATTAN))(
+    'on nyct-bus-manhattan.zip, whatif of the top 20 removals together equals the list sum within 1 %',
+    async () => {
+      const feed = await readFeed(MANHATTAN, { date: 'auto' });
+      const patterns = buildPatterns(feed, { date: feed.date ?? undefined });
+      const r = runAudit(feed, patterns, { generatedAt: '2026-01-01T00:00:00Z' });
+      const top = r.candidates.filter((c) => c.action === 'remove').slice(0, 20);
+      expect(top.length).toBe(20);
+      // removals only: the marginals of removals ranked among additions still add up per set when the
+      // additions between them are left out only if they share no pattern; so weigh the whole prefix up to the 20th removal
+      const last = r.candidates.indexOf(top[19]);
+      const prefix = r.candidates.slice(0, last + 1);
+      const listSum = prefix.reduce((s, c) => s + c.netPaxMinPerDay, 0);
+      const joint = evaluateScenario(feed, patterns, programmeScenario(prefix), {}).totals.netPaxMinPerDay;
+      expect(Math.abs(joint - listSum) / Math.abs(listSum)).toBeLessThan(0.01);
+      const onlyRemovals = evaluateScenario(feed, patterns, programmeScenario(top), {}).totals.netPaxMinPerDay;
+      const removalSum = top.reduce((s, c) => s + c.netPaxMinPerDay, 0);
+      expect(Math.abs(onlyRemovals - removalSum) / Math.abs(removalSum)).toBeLessThan(0.01);
+    },
+    600_000,
+  );
 });

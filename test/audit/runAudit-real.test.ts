@@ -90,7 +90,8 @@ describe.skipIf(!have)('runAudit on nyct-bus-manhattan.zip', () => {
 
   it('ranks candidates and never removes a fixed stop', () => {
     const fixed = new Set(r.stops.filter((s) => s.verdict === 'fixed').map((s) => s.stopId));
-    for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay);
+    for (let i = 1; i < r.candidates.length; i++)
+      expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay);
     for (const c of r.candidates) if (c.action === 'remove') expect(fixed.has(c.stopId)).toBe(false);
   });
 });

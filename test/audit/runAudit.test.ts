@@ -69,7 +69,8 @@ describe('runAudit', () => {
   it('ranks candidates by net passenger-minutes, never a fixed stop, never opening a gap above the policy', () => {
     expect(r.candidates.length).toBeGreaterThan(0);
     // in the order accepted, each the best marginal saving left (rounding noise aside)
-    for (let i = 1; i < r.candidates.length; i++) expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay - 1e-9);
+    for (let i = 1; i < r.candidates.length; i++)
+      expect(r.candidates[i].netPaxMinPerDay).toBeGreaterThanOrEqual(r.candidates[i - 1].netPaxMinPerDay - 1e-9);
     r.candidates.forEach((c, i) => expect(c.rank).toBe(i + 1));
     const fixed = new Set(r.stops.filter((s) => s.verdict === 'fixed').map((s) => s.stopId));
     const removed = new Set(r.candidates.filter((c) => c.action === 'remove').map((c) => c.stopId));
@@ -115,14 +116,37 @@ describe('runAudit', () => {
       snapshotsSkipped: 0,
       tripsMatched: 5,
       tripsUnmatched: 0,
-      byPattern: new Map([[v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 12, lostTimePerStopS: 17.5, dwellFixedS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null) }]]),
+      byPattern: new Map([
+        [
+          v1.id,
+          {
+            patternId: v1.id,
+            tripsObserved: 5,
+            meanDwellS: 12,
+            lostTimePerStopS: 17.5,
+            dwellFixedS: 10.5,
+            stopLossS: 7,
+            cruiseSpeedMps: 7,
+            stopShare: v1.stopIdx.map(() => 0.5),
+            gapRunTimeS: v1.stopIdx.slice(1).map(() => null),
+          },
+        ],
+      ]),
       warnings: [],
     };
     const o = runAudit(feed, patterns, { params: {}, observed });
     const p = o.patterns.find((x) => x.patternId === v1.id)!;
     expect(p).toMatchObject({ lostTimeSource: 'observed', lostTimePerStopS: 17.5, cruiseSpeedMps: 7, cruiseSpeedSource: 'observed' });
     expect(o.lostTimeSource).toBe('observed');
-    expect(p.observed).toEqual({ tripsObserved: 5, dwellS: 12, doorTimeS: 10.5, stopLossS: 7, cruiseSpeedMps: 7, stopShare: 0.5, lostTimeParts: ['door_time', 'stop_loss'] });
+    expect(p.observed).toEqual({
+      tripsObserved: 5,
+      dwellS: 12,
+      doorTimeS: 10.5,
+      stopLossS: 7,
+      cruiseSpeedMps: 7,
+      stopShare: 0.5,
+      lostTimeParts: ['door_time', 'stop_loss'],
+    });
     const mid = o.stops.find((s) => s.patternId === v1.id && s.stopIndex === 3)!;
     expect(mid.stopProbability).toBeCloseTo(0.5, 9);
   });
@@ -185,7 +209,21 @@ describe('runAudit with observed data beside set values and the schedule', () =>
     tripsMatched: 5,
     tripsUnmatched: 0,
     byPattern: new Map([
-      [v1.id, { patternId: v1.id, tripsObserved: 5, meanDwellS: 14, lostTimePerStopS: 19, dwellFixedS: 9, stopLossS: 10, cruiseSpeedMps: 8, stopShare: v1.stopIdx.map(() => 0.5), gapRunTimeS: v1.stopIdx.slice(1).map(() => null), ...o }],
+      [
+        v1.id,
+        {
+          patternId: v1.id,
+          tripsObserved: 5,
+          meanDwellS: 14,
+          lostTimePerStopS: 19,
+          dwellFixedS: 9,
+          stopLossS: 10,
+          cruiseSpeedMps: 8,
+          stopShare: v1.stopIdx.map(() => 0.5),
+          gapRunTimeS: v1.stopIdx.slice(1).map(() => null),
+          ...o,
+        },
+      ],
     ]),
     warnings: [],
   });

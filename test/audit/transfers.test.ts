@@ -23,9 +23,21 @@ function network(stops: StopSpec[], tripList: TripSpec[], routes: { id: string; 
 /** S1..S40 60 m apart along the street; route 1 along all of it, route 2 along S1..S12, then north (N1..N20). */
 function trunkNetwork() {
   const s = street(40, 60);
-  const north: StopSpec[] = Array.from({ length: 20 }, (_, k) => ({ id: `N${k + 1}`, lat: s[11].lat + ((k + 1) * 60) / 111_320, lon: s[11].lon, name: `Vellmoor North ${k + 1}` }));
+  const north: StopSpec[] = Array.from({ length: 20 }, (_, k) => ({
+    id: `N${k + 1}`,
+    lat: s[11].lat + ((k + 1) * 60) / 111_320,
+    lon: s[11].lon,
+    name: `Vellmoor North ${k + 1}`,
+  }));
   const ids = s.map((x) => x.id);
-  return network([...s, ...north], [trip('a', 'R1', ids), trip('b', 'R2', [...ids.slice(0, 12), ...north.map((x) => x.id)])], [{ id: 'R1', shortName: '1' }, { id: 'R2', shortName: '2' }]);
+  return network(
+    [...s, ...north],
+    [trip('a', 'R1', ids), trip('b', 'R2', [...ids.slice(0, 12), ...north.map((x) => x.id)])],
+    [
+      { id: 'R1', shortName: '1' },
+      { id: 'R2', shortName: '2' },
+    ],
+  );
 }
 
 describe('trunks and transfers', () => {
@@ -63,13 +75,41 @@ describe('trunks and transfers', () => {
   it('keeps a stop where routes cross, naming them', () => {
     const s = street(7, 150);
     const cross: StopSpec[] = [-2, -1, 1, 2].map((k) => ({ id: `C${k}`, lat: s[3].lat + (k * 150) / 111_320, lon: s[3].lon }));
-    const { feed, patterns } = network([...s, ...cross], [trip('a', 'R1', s.map((x) => x.id)), trip('b', 'R2', ['C-2', 'C-1', 'S4', 'C1', 'C2'])], [{ id: 'R1', shortName: '1' }, { id: 'R2', shortName: '2' }]);
+    const { feed, patterns } = network(
+      [...s, ...cross],
+      [
+        trip(
+          'a',
+          'R1',
+          s.map((x) => x.id),
+        ),
+        trip('b', 'R2', ['C-2', 'C-1', 'S4', 'C1', 'C2']),
+      ],
+      [
+        { id: 'R1', shortName: '1' },
+        { id: 'R2', shortName: '2' },
+      ],
+    );
     expect(transferPoints(feed, patterns).get(feed.stopIndex.get('S4')!)).toBe('routes 1 and 2 cross here');
   });
 
   it('does not freeze a local stop because a limited route calls there too', () => {
     const s = street(10, 150);
-    const { feed, patterns } = network(s, [trip('l', 'L', s.map((x) => x.id)), trip('x', 'LX', ['S1', 'S4', 'S7', 'S10'], 60)], [{ id: 'L', shortName: '7' }, { id: 'LX', shortName: '7X' }]);
+    const { feed, patterns } = network(
+      s,
+      [
+        trip(
+          'l',
+          'L',
+          s.map((x) => x.id),
+        ),
+        trip('x', 'LX', ['S1', 'S4', 'S7', 'S10'], 60),
+      ],
+      [
+        { id: 'L', shortName: '7' },
+        { id: 'LX', shortName: '7X' },
+      ],
+    );
     const notes = transferPoints(feed, patterns);
     expect(notes.has(feed.stopIndex.get('S4')!)).toBe(false);
     expect(notes.has(feed.stopIndex.get('S7')!)).toBe(false);

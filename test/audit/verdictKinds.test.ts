@@ -25,7 +25,8 @@ describe('the verdict table', () => {
   });
 
   it("is the README's for the stop's own verdict and the gaps' verdicts too, each with its meaning", () => {
-    for (const [v, meaning] of [...Object.entries(STOP_VERDICTS), ...Object.entries(GAP_VERDICTS)]) expect(README, v).toContain(`\`${v}\` (${meaning})`);
+    for (const [v, meaning] of [...Object.entries(STOP_VERDICTS), ...Object.entries(GAP_VERDICTS)])
+      expect(README, v).toContain(`\`${v}\` (${meaning})`);
   });
 
   it("is the page's: the letters the script reads and the legend it draws", () => {

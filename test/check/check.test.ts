@@ -154,7 +154,9 @@ describe('checkFeed', () => {
     // no span between timed stops is flagged; the whole run, 1 600 m with three stops in 20 s, still is (see below)
     const r = run(spec);
     expect(r.counts['implausible-speed']).toBe(1);
-    expect(r.findings.find((f) => f.code === 'implausible-speed')!.examples[0].detail).toMatch(/^pattern \S+ \(rail\): 1600 m with 3 stops between in 20 s/);
+    expect(r.findings.find((f) => f.code === 'implausible-speed')!.examples[0].detail).toMatch(
+      /^pattern \S+ \(rail\): 1600 m with 3 stops between in 20 s/,
+    );
   });
 
   it('implausible-speed: a whole run faster than any plausible speed explains once the bus stops, as the audit judges it', () => {
@@ -199,7 +201,10 @@ describe('checkFeed', () => {
     const r = run(spec);
     expect(r.counts['coordinate-fault']).toBe(2);
     const details = r.findings[0].examples.map((e) => e.detail);
-    expect(details.every((d) => d.endsWith('near a pole')), JSON.stringify(details)).toBe(true);
+    expect(
+      details.every((d) => d.endsWith('near a pole')),
+      JSON.stringify(details),
+    ).toBe(true);
     expect(coordinateFault(89.99, 4.9)).toBe('near a pole');
     // the northernmost bus towns lie below 79 degrees (Longyearbyen, 78.2 N [M]): not a fault
     expect(coordinateFault(78.22, 15.65)).toBe('');
@@ -233,7 +238,9 @@ describe('checkFeed', () => {
     spec.stops[0].parentStation = 'NO-SUCH-STATION';
     spec.trips.push({ id: 'T2', shapeId: 'NO-SHAPE', serviceId: 'NO-SERVICE', times: spec.trips[0].times });
     // the reader's own code for trips dropped for their route (the warning table marks it as counted by check)
-    spec.warnings = [{ code: 'trip-unknown-route', message: WARNINGS['trip-unknown-route'].explanation, count: 4, examples: ['trips.txt:7 route_id R9'] }];
+    spec.warnings = [
+      { code: 'trip-unknown-route', message: WARNINGS['trip-unknown-route'].explanation, count: 4, examples: ['trips.txt:7 route_id R9'] },
+    ];
     const r = run(spec);
     expect(r.counts['dangling-reference']).toBe(1 + 2 + 4);
     const ex = r.findings.find((f) => f.code === 'dangling-reference')!.examples;

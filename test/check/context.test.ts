@@ -20,8 +20,14 @@ function metroFolder(name: string, endDate = '20271231'): string {
   const dir = join(work, name);
   mkdirSync(dir, { recursive: true });
   // 60 m north of S3 (Vellmoor Havenstraat), and one far away
-  writeFileSync(join(dir, 'stops.txt'), `stop_id,stop_name,stop_lat,stop_lon,location_type\nH,Havenplein,${52.37 + DEG_60M},4.9117835,1\nF,Vellmoor Noord,52.40,4.90,1\n`);
-  writeFileSync(join(dir, 'calendar.txt'), `service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,${endDate}\n`);
+  writeFileSync(
+    join(dir, 'stops.txt'),
+    `stop_id,stop_name,stop_lat,stop_lon,location_type\nH,Havenplein,${52.37 + DEG_60M},4.9117835,1\nF,Vellmoor Noord,52.40,4.90,1\n`,
+  );
+  writeFileSync(
+    join(dir, 'calendar.txt'),
+    `service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,${endDate}\n`,
+  );
   return dir;
 }
 
@@ -33,7 +39,9 @@ describe('stopspan check --context', () => {
     expect(r.code).toBe(0);
     const doc = JSON.parse(r.stdout);
     // JSON Schema 2020-12 [C], checked by ajv
-    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(JSON.parse(readFileSync(join(ROOT, 'schema/check.schema.json'), 'utf8')));
+    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(
+      JSON.parse(readFileSync(join(ROOT, 'schema/check.schema.json'), 'utf8')),
+    );
     validate(doc);
     expect(validate.errors ?? []).toEqual([]);
     expect(doc.context).toEqual({
@@ -42,7 +50,9 @@ describe('stopspan check --context', () => {
       examples: [{ stop_id: 'S3', stop_name: 'Vellmoor Havenstraat', station: 'station Havenplein (vellmoor-metro), 60 m' }],
     });
     const text = await runCli(['check', CLEAN, '--today', '2026-10-14', '--context', metro]);
-    expect(text.stdout).toContain('context vellmoor-metro (2 stations): 1 stop(s) served within 150 m of a station, transfer points the audit keeps\n        S3 Vellmoor Havenstraat: station Havenplein (vellmoor-metro), 60 m\n');
+    expect(text.stdout).toContain(
+      'context vellmoor-metro (2 stations): 1 stop(s) served within 150 m of a station, transfer points the audit keeps\n        S3 Vellmoor Havenstraat: station Havenplein (vellmoor-metro), 60 m\n',
+    );
     const plain = JSON.parse((await runCli(['check', CLEAN, '--today', '2026-10-14', '--json'])).stdout);
     expect(plain.context).toBeNull();
   });

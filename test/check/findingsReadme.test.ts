@@ -13,7 +13,10 @@ describe("the README's findings", () => {
     const start = readme.indexOf('| finding | severity | what it means | threshold |');
     expect(start).toBeGreaterThan(0);
     const rows = readme.slice(start).split('\n').slice(2);
-    const table = rows.slice(0, rows.findIndex((l) => !l.startsWith('|')));
+    const table = rows.slice(
+      0,
+      rows.findIndex((l) => !l.startsWith('|')),
+    );
     const listed = table.map((l) => {
       const m = /^\| `([a-z-]+)` \| (error|warning|info) \|/.exec(l);
       expect(m, l).not.toBeNull();

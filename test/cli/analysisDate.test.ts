@@ -21,8 +21,14 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 function splitFeed(): string {
   const feed = join(dir, 'split');
   cpSync(join(ROOT, 'fixtures/check/clean'), feed, { recursive: true });
-  writeFileSync(join(feed, 'calendar.txt'), 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nMON,1,0,0,0,0,0,0,20261012,20261018\nTUE,0,1,0,0,0,0,0,20261012,20261018\n');
-  writeFileSync(join(feed, 'trips.txt'), 'route_id,service_id,trip_id,trip_headsign,direction_id,shape_id\nR1,MON,T1,Kanaalbrug,0,SH1\nR1,MON,T2,Kanaalbrug,0,SH1\nR1,TUE,T3,Kanaalbrug,0,SH1\n');
+  writeFileSync(
+    join(feed, 'calendar.txt'),
+    'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nMON,1,0,0,0,0,0,0,20261012,20261018\nTUE,0,1,0,0,0,0,0,20261012,20261018\n',
+  );
+  writeFileSync(
+    join(feed, 'trips.txt'),
+    'route_id,service_id,trip_id,trip_headsign,direction_id,shape_id\nR1,MON,T1,Kanaalbrug,0,SH1\nR1,MON,T2,Kanaalbrug,0,SH1\nR1,TUE,T3,Kanaalbrug,0,SH1\n',
+  );
   const times = readFileSync(join(feed, 'stop_times.txt'), 'utf8').trim().split('\n');
   const t1 = times.filter((l) => l.startsWith('T1,'));
   writeFileSync(join(feed, 'stop_times.txt'), [...times, ...t1.map((l) => l.replace(/^T1,/, 'T3,'))].join('\n') + '\n');

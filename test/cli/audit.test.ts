@@ -31,7 +31,19 @@ describe('stopspan audit', () => {
     const out = join(dir, 'full');
     const r = await runCli(['audit', DEMO, '--ridership', RIDERSHIP, '--out', out, '--quiet']);
     expect(r.code, r.stderr).toBe(0);
-    expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'plan.json', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json']);
+    expect(readdirSync(out).sort()).toEqual([
+      REPORT_MARKER,
+      'candidates.csv',
+      'candidates.geojson',
+      'index.html',
+      'patterns.csv',
+      'patterns.geojson',
+      'plan.json',
+      'stop_points.geojson',
+      'stops.csv',
+      'stops.geojson',
+      'summary.json',
+    ]);
     expect(r.stdout).toMatch(/patterns, \d+ stops, median gap \d+ m/);
     expect(r.stderr).toBe(''); // not a TTY: no progress drawn
     const summary = JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
@@ -49,8 +61,13 @@ describe('stopspan audit', () => {
     expect(w.totals.run_time_saved_per_trip_s).toBeCloseTo(summary.plan.totals.run_time_saved_per_trip_s, 6);
     expect(w.fleet).toEqual(summary.plan.fleet);
     // stops.csv marks each stop the plan drops: optimiser_keeps=no exactly on its (stop, pattern) pairs
-    const drops = stops.filter((s) => s.optimiser_keeps === 'no').map((s) => `${s.stop_id}|${s.pattern_id}`).sort();
-    const planned = (JSON.parse(readFileSync(join(out, 'plan.json'), 'utf8')).remove as { stop: string; patterns: string[] }[]).flatMap((x) => x.patterns.map((p) => `${x.stop}|${p}`)).sort();
+    const drops = stops
+      .filter((s) => s.optimiser_keeps === 'no')
+      .map((s) => `${s.stop_id}|${s.pattern_id}`)
+      .sort();
+    const planned = (JSON.parse(readFileSync(join(out, 'plan.json'), 'utf8')).remove as { stop: string; patterns: string[] }[])
+      .flatMap((x) => x.patterns.map((p) => `${x.stop}|${p}`))
+      .sort();
     expect(drops).toEqual(planned);
   });
 

@@ -35,7 +35,17 @@ const BROKEN = join(ROOT, 'fixtures', 'broken');
 const CLI = process.env.STOPSPAN_CLI ?? BUILT_CLI;
 const committedCases: BrokenCase[] = JSON.parse(readFileSync(join(BROKEN, 'cases.json'), 'utf8'));
 // the files every audit writes (the output contract in the design notes, section 5)
-const REPORT_FILES = ['patterns.csv', 'stops.csv', 'candidates.csv', 'stops.geojson', 'patterns.geojson', 'stop_points.geojson', 'candidates.geojson', 'summary.json', 'index.html'];
+const REPORT_FILES = [
+  'patterns.csv',
+  'stops.csv',
+  'candidates.csv',
+  'stops.geojson',
+  'patterns.geojson',
+  'stop_points.geojson',
+  'candidates.geojson',
+  'summary.json',
+  'index.html',
+];
 
 function cliHasAudit(): boolean {
   if (!existsSync(CLI)) return false;
@@ -46,7 +56,9 @@ const HAS_AUDIT = cliHasAudit();
 
 // the large cases are generated here, when the tests are collected, so that every one of them is a test
 const tmp = mkdtempSync(join(tmpdir(), 'stopspan-broken-'));
-const made = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], { encoding: 'utf8' });
+const made = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], {
+  encoding: 'utf8',
+});
 if (made.status !== 0) throw new Error(`make-broken --large failed: ${made.stderr}`);
 const largeCases: BrokenCase[] = JSON.parse(readFileSync(join(tmp, 'large', 'cases-large.json'), 'utf8'));
 // the committed list names the first large cases; the generated list holds them all, with their bounds
@@ -64,7 +76,11 @@ afterAll(() => {
 
 type ZipOpen = { entries: Map<string, ZipRecord> } | { error: Error };
 /** The central directory as yauzl reads it, or the error with which yauzl refuses the archive. */
-const openZip = (path: string): Promise<ZipOpen> => zipDirectory(path).then((entries) => ({ entries }), (error: Error) => ({ error }));
+const openZip = (path: string): Promise<ZipOpen> =>
+  zipDirectory(path).then(
+    (entries) => ({ entries }),
+    (error: Error) => ({ error }),
+  );
 
 describe('the broken corpus', () => {
   it('lists every case with an exit code, the words its error must carry and an existing file', () => {
@@ -84,7 +100,9 @@ describe('the broken corpus', () => {
     const r = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--out', out], { encoding: 'utf8', env });
     expect(r.status, r.stderr).toBe(0);
     const list = (d: string, pre = ''): string[] =>
-      readdirSync(join(d, pre), { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? list(d, join(pre, e.name)) : [join(pre, e.name)]));
+      readdirSync(join(d, pre), { withFileTypes: true }).flatMap((e) =>
+        e.isDirectory() ? list(d, join(pre, e.name)) : [join(pre, e.name)],
+      );
     const committed = list(BROKEN).sort();
     expect(list(out).sort()).toEqual(committed);
     for (const f of committed) expect(readFileSync(join(out, f)).equals(readFileSync(join(BROKEN, f))), f).toBe(true);
@@ -206,7 +224,9 @@ describe('the broken corpus', () => {
     expect((parse(await text('hex-coordinate', 'stops.txt'), { columns: true }) as Record<string, string>[])[1].stop_lat).toBe('0x2D');
     expect((parse(await text('binary-coordinate', 'stops.txt'), { columns: true }) as Record<string, string>[])[1].stop_lon).toBe('0b1010');
     // 596 524 h is past 2^31 s [D: 596524 * 3600 = 2 147 486 400 > 2 147 483 647]
-    expect((parse(await text('time-overflow', 'stop_times.txt'), { columns: true }) as Record<string, string>[])[1].arrival_time).toBe('596524:00:00');
+    expect((parse(await text('time-overflow', 'stop_times.txt'), { columns: true }) as Record<string, string>[])[1].arrival_time).toBe(
+      '596524:00:00',
+    );
     expect(596524 * 3600).toBeGreaterThan(2 ** 31 - 1);
     // the NUL sits on physical line 4, inside the quoted headsign that starts on line 3
     const nulLines = (await text('nul-in-quoted-lines', 'trips.txt')).toString('latin1').split('\n');
@@ -257,7 +277,10 @@ describe.skipIf(!HAS_AUDIT)(`broken feeds through the CLI${HAS_AUDIT ? '' : ` ($
       const summary = JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
       if (c.warning) {
         const w = (summary.warnings as { code: string; count: number }[]).find((x) => x.code === c.warning);
-        expect(w?.count ?? 0, `${c.name} counts the warning ${c.warning}; got ${JSON.stringify(summary.warnings.map((x: { code: string }) => x.code))}`).toBeGreaterThan(0);
+        expect(
+          w?.count ?? 0,
+          `${c.name} counts the warning ${c.warning}; got ${JSON.stringify(summary.warnings.map((x: { code: string }) => x.code))}`,
+        ).toBeGreaterThan(0);
         for (const x of summary.warnings) expect(x.count).toBeGreaterThan(0);
       }
     }

@@ -23,7 +23,15 @@ function importsOf(code: string): string[] {
     if (Array.isArray(node)) return node.forEach(visit);
     if (!node || typeof node !== 'object') return;
     const n = node as { type?: string; source?: { type?: string; value?: unknown } };
-    if ((n.type === 'ImportDeclaration' || n.type === 'ImportExpression' || n.type === 'ExportAllDeclaration' || n.type === 'ExportNamedDeclaration') && n.source && typeof n.source.value === 'string') out.push(n.source.value);
+    if (
+      (n.type === 'ImportDeclaration' ||
+        n.type === 'ImportExpression' ||
+        n.type === 'ExportAllDeclaration' ||
+        n.type === 'ExportNamedDeclaration') &&
+      n.source &&
+      typeof n.source.value === 'string'
+    )
+      out.push(n.source.value);
     for (const v of Object.values(n)) if (v && typeof v === 'object') visit(v);
   };
   visit(parseAst(code));
@@ -33,7 +41,19 @@ function importsOf(code: string): string[] {
 function audit(cli: string, out: string): void {
   const r = spawnSync(
     process.execPath,
-    [cli, 'audit', 'fixtures/demo/demo-feed.zip', '--ridership', 'fixtures/demo/ridership.csv', '--observed', 'fixtures/demo/realtime.zip', '--out', out, '--force', '-q'],
+    [
+      cli,
+      'audit',
+      'fixtures/demo/demo-feed.zip',
+      '--ridership',
+      'fixtures/demo/ridership.csv',
+      '--observed',
+      'fixtures/demo/realtime.zip',
+      '--out',
+      out,
+      '--force',
+      '-q',
+    ],
     { cwd: ROOT, encoding: 'utf8' },
   );
   expect(r.status, r.stderr).toBe(0);

@@ -23,7 +23,14 @@ beforeAll(() => {
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-const finding = (severity: Finding['severity']): Finding => ({ code: 'twin-stops', title: '', severity, explanation: '', count: 1, examples: [] });
+const finding = (severity: Finding['severity']): Finding => ({
+  code: 'twin-stops',
+  title: '',
+  severity,
+  explanation: '',
+  count: 1,
+  examples: [],
+});
 
 describe('checkExitCode', () => {
   it('is 1 only when a finding at or above --fail-on exists (exit codes of DESIGN.md section 6)', () => {
@@ -38,7 +45,13 @@ describe('checkExitCode', () => {
 });
 
 describe('compareExitCode', () => {
-  const route = (tripsBefore: number, tripsAfter: number) => ({ routeId: 'R', shortName: '', tripsBefore, tripsAfter, changePct: tripsBefore ? ((tripsAfter - tripsBefore) / tripsBefore) * 100 : null });
+  const route = (tripsBefore: number, tripsAfter: number) => ({
+    routeId: 'R',
+    shortName: '',
+    tripsBefore,
+    tripsAfter,
+    changePct: tripsBefore ? ((tripsAfter - tripsBefore) / tripsBefore) * 100 : null,
+  });
   const c = (...byRoute: ReturnType<typeof route>[]) => ({ trips: { byRoute, byPattern: [], listCap: 10 } });
   it('is 1 only when asked and a route lost more than the share asked for (a route gone lost 100 %)', () => {
     expect(compareExitCode(c(route(10, 0)), undefined)).toBe(0);
@@ -92,7 +105,9 @@ describe('stopspan check', () => {
     const nz = await cli(['check', notZip]);
     expect(nz.code).toBe(2);
     expect(nz.stderr).toMatch(/^error: /);
-    expect((await cli(['check', join(FIX, 'clean'), '--fail-on', 'sometimes'])).stderr).toMatch(/--fail-on: expected one of error, warning, info, never, got sometimes/);
+    expect((await cli(['check', join(FIX, 'clean'), '--fail-on', 'sometimes'])).stderr).toMatch(
+      /--fail-on: expected one of error, warning, info, never, got sometimes/,
+    );
     expect((await cli(['check', join(FIX, 'clean'), '--twin-stop-m', 'x'])).code).toBe(2);
     expect((await cli(['check', join(FIX, 'clean'), '--speed', 'bus=fast'])).code).toBe(2);
     expect((await cli(['check', join(FIX, 'clean'), '--today', 'tomorrow'])).code).toBe(2);
@@ -128,7 +143,9 @@ describe('stopspan check', () => {
     // weekday-only service; 2026-09-12 is a Saturday, 2026-09-14 the Monday after [C, ECMAScript Date]
     const sat = await cli(['check', join(FIX, 'clean'), '--today', '2026-09-12']);
     expect(sat.code).toBe(0);
-    expect(sat.stdout).toContain('patterns checked on 2026-09-14 (the first day with service after the run date 2026-09-12, on which nothing runs)');
+    expect(sat.stdout).toContain(
+      'patterns checked on 2026-09-14 (the first day with service after the run date 2026-09-12, on which nothing runs)',
+    );
     const j = JSON.parse((await cli(['check', join(FIX, 'clean'), '--today', '2026-09-12', '--json'])).stdout);
     expect(j.analysis_date).toBe('2026-09-14');
     expect(j.analysis).toMatchObject({ date: '2026-09-14', basis: 'next-service-day' });
@@ -155,7 +172,11 @@ describe('stopspan check', () => {
 
   it('--json on a failure prints an error document on stdout as well as the line on stderr', async () => {
     const missing = join(FIX, 'no-such-feed.zip');
-    for (const args of [['check', missing, '--json'], ['compare', missing, missing, '--json'], ['check', join(FIX, 'clean'), '--date', '2030-01-01', '--json']]) {
+    for (const args of [
+      ['check', missing, '--json'],
+      ['compare', missing, missing, '--json'],
+      ['check', join(FIX, 'clean'), '--date', '2030-01-01', '--json'],
+    ]) {
       const r = await cli(args);
       expect(r.code).toBe(2);
       expect(r.stderr).toMatch(/^error: .+\n$/);
@@ -174,7 +195,19 @@ describe('stopspan check', () => {
   it('--help lists every finding from the table', async () => {
     const r = await cli(['check', '--help']);
     expect(r.code).toBe(0);
-    for (const code of ['twin-stops', 'stop-off-path', 'pathless-trip', 'distance-backtrack', 'time-backtrack', 'implausible-speed', 'coordinate-fault', 'service-ending-soon', 'service-ended', 'no-service', 'dangling-reference']) {
+    for (const code of [
+      'twin-stops',
+      'stop-off-path',
+      'pathless-trip',
+      'distance-backtrack',
+      'time-backtrack',
+      'implausible-speed',
+      'coordinate-fault',
+      'service-ending-soon',
+      'service-ended',
+      'no-service',
+      'dangling-reference',
+    ]) {
       expect(r.stdout).toContain(code);
     }
   });
@@ -189,7 +222,9 @@ describe('stopspan check --history and stopspan history', () => {
     const text = await cli(['history', db]);
     expect(text.code).toBe(0);
     const lines = text.stdout.split('\n\n')[0].trim().split('\n');
-    expect(text.stdout).toMatch(/since the previous run \(2026-10-13\): new feed content\n  stops served 5 -> 6 \(\+1\)\n  twin-stops \+1 \(now 1\)\n$/); // the twin stop is a sixth stop [D]
+    expect(text.stdout).toMatch(
+      /since the previous run \(2026-10-13\): new feed content\n  stops served 5 -> 6 \(\+1\)\n  twin-stops \+1 \(now 1\)\n$/,
+    ); // the twin stop is a sixth stop [D]
     expect(lines).toHaveLength(3); // header + two runs
     expect(lines[1]).toMatch(/^2026-10-13\s+check\s+clean\s+\w{8}\s+400\.0\s/); // the clean street's 400 m gaps [D]
     expect(lines[2]).toMatch(/^2026-10-14\s+check\s+twin-stops\b.*\s1$/);
@@ -225,7 +260,9 @@ describe('stopspan compare', () => {
     expect(html).toContain('Stops added (1)');
     const doc = JSON.parse(readFileSync(join(out, 'compare.json'), 'utf8'));
     expect(doc.stops.added.map((s: { stop_id: string }) => s.stop_id)).toEqual(['S2b']);
-    const j = JSON.parse((await cli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json', '--move-threshold', '50'])).stdout);
+    const j = JSON.parse(
+      (await cli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json', '--move-threshold', '50'])).stdout,
+    );
     expect(j.stops.moved.map((s: { stop_id: string }) => s.stop_id)).toEqual(['S3']);
     expect(j.stops.moved[0].moved_m).toBeCloseTo(300, 0);
   });
@@ -241,8 +278,15 @@ describe('stopspan compare', () => {
       return d;
     };
     const head = 'route_id,service_id,trip_id,trip_headsign,direction_id,shape_id\n';
-    const t1 = readFileSync(join(base, 'stop_times.txt'), 'utf8').trim().split('\n').filter((l) => l.startsWith('T1,'));
-    const more = copy('more', head + 'R1,WK,T1,Kanaalbrug,0,SH1\nR1,WK,T2,Kanaalbrug,0,SH1\nR1,WK,T9,Kanaalbrug,0,SH1\n', t1.map((l) => l.replace(/^T1,/, 'T9,').replace(/08:/g, '23:')));
+    const t1 = readFileSync(join(base, 'stop_times.txt'), 'utf8')
+      .trim()
+      .split('\n')
+      .filter((l) => l.startsWith('T1,'));
+    const more = copy(
+      'more',
+      head + 'R1,WK,T1,Kanaalbrug,0,SH1\nR1,WK,T2,Kanaalbrug,0,SH1\nR1,WK,T9,Kanaalbrug,0,SH1\n',
+      t1.map((l) => l.replace(/^T1,/, 'T9,').replace(/08:/g, '23:')),
+    );
     const fewer = copy('fewer', head + 'R1,WK,T1,Kanaalbrug,0,SH1\n');
     const added = await cli(['compare', base, more, '--no-audit']);
     expect(added.code).toBe(0);
@@ -253,7 +297,14 @@ describe('stopspan compare', () => {
     expect(cut.code).toBe(1);
     const doc = JSON.parse(cut.stdout);
     expect(doc.trips.by_route).toEqual([{ route_id: 'R1', short_name: '1', trips_before: 2, trips_after: 1, change_pct: -50 }]);
-    expect(doc.trips.by_pattern[0]).toMatchObject({ old_pattern_id: 'R1:0:1', trips_before: 2, trips_after: 1, trip_ids_removed: ['T2'], trip_ids_removed_count: 1, trip_ids_added_count: 0 });
+    expect(doc.trips.by_pattern[0]).toMatchObject({
+      old_pattern_id: 'R1:0:1',
+      trips_before: 2,
+      trips_after: 1,
+      trip_ids_removed: ['T2'],
+      trip_ids_removed_count: 1,
+      trip_ids_added_count: 0,
+    });
     expect(doc.exit_code).toBe(1);
     expect((await cli(['compare', base, fewer, '--no-audit', '--fail-on-trip-loss', '60'])).code).toBe(0);
     expect((await cli(['compare', base, fewer, '--no-audit'])).code).toBe(0);
@@ -263,7 +314,9 @@ describe('stopspan compare', () => {
     expect((await cli(['compare', base, fewer, '--no-audit', '--out', out, '--quiet'])).code).toBe(0);
     expect(readFileSync(join(out, 'compare.html'), 'utf8')).toContain('Trips per day by route, where they changed (1)');
     const csv = readFileSync(join(out, 'compare-trips.csv'), 'utf8').split('\r\n');
-    expect(csv[0]).toBe('level,route_id,old_pattern_id,new_pattern_id,trips_before,trips_after,change_pct,trip_ids_added,trip_ids_removed,first_departure_before,first_departure_after,last_departure_before,last_departure_after');
+    expect(csv[0]).toBe(
+      'level,route_id,old_pattern_id,new_pattern_id,trips_before,trips_after,change_pct,trip_ids_added,trip_ids_removed,first_departure_before,first_departure_after,last_departure_before,last_departure_after',
+    );
     expect(csv[1]).toBe('route,R1,,,2,1,-50,,,,,,');
     expect(csv[2]).toMatch(/^pattern,R1,R1:0:1,R1:0:1,2,1,-50,0,1,8:00:00,8:00:00,/);
   });

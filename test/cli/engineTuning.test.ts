@@ -26,7 +26,9 @@ describe('engine tuning of the command line', () => {
     const optimised = async (nodeArgs: string[]): Promise<number> => {
       const out = mkdtempSync(join(tmpdir(), 'stopspan-engine-'));
       dirs.push(out);
-      const r = await runCli(['audit', join(ROOT, 'fixtures/demo/demo-feed.zip'), '--out', join(out, 'r'), '-q'], { nodeArgs: ['--trace-opt', ...nodeArgs] });
+      const r = await runCli(['audit', join(ROOT, 'fixtures/demo/demo-feed.zip'), '--out', join(out, 'r'), '-q'], {
+        nodeArgs: ['--trace-opt', ...nodeArgs],
+      });
       expect(r.code).toBe(0);
       return (r.stdout.match(/^\[completed compiling .*TURBOFAN/gm) ?? []).length;
     };
@@ -45,26 +47,33 @@ describe('engine tuning of the command line', () => {
   });
 
   const MANHATTAN = join(ROOT, '../shared/feeds/nyct-bus-manhattan.zip');
-  it.skipIf(!existsSync(MANHATTAN))("keeps the audit's peak memory on a real feed below V8's own heap growth", async () => {
-    const out = mkdtempSync(join(tmpdir(), 'stopspan-engine-'));
-    dirs.push(out);
-    // the kernel's peak resident set of the process, written as it exits
-    const preload = join(out, 'peak.mjs');
-    writeFileSync(preload, "import { writeFileSync } from 'node:fs';\nprocess.on('exit', () => writeFileSync(process.env.PEAK_FILE, String(process.resourceUsage().maxRSS)));\n");
-    const peakKb = async (tag: string, nodeArgs: string[]): Promise<number> => {
-      process.env.PEAK_FILE = join(out, `${tag}.kb`);
-      const r = await runCli(['audit', MANHATTAN, '--out', join(out, tag), '-q'], { nodeArgs: ['--import', preload, ...nodeArgs] });
-      expect(r.code, r.stderr).toBe(0);
-      return Number(readFileSync(join(out, `${tag}.kb`), 'utf8'));
-    };
-    try {
-      const tuned = await peakKb('tuned', []);
-      // 0 is V8's own rule (grow by up to four times what survived), left as given
-      const v8Default = await peakKb('default', ['--heap-growing-percent=0']);
-      // measured: about 170 MB against 189 MB; the live heap is the same, only the garbage held differs
-      expect(tuned).toBeLessThan(v8Default * 0.95);
-    } finally {
-      delete process.env.PEAK_FILE;
-    }
-  }, 120_000);
+  it.skipIf(!existsSync(MANHATTAN))(
+    "keeps the audit's peak memory on a real feed below V8's own heap growth",
+    async () => {
+      const out = mkdtempSync(join(tmpdir(), 'stopspan-engine-'));
+      dirs.push(out);
+      // the kernel's peak resident set of the process, written as it exits
+      const preload = join(out, 'peak.mjs');
+      writeFileSync(
+        preload,
+        "import { writeFileSync } from 'node:fs';\nprocess.on('exit', () => writeFileSync(process.env.PEAK_FILE, String(process.resourceUsage().maxRSS)));\n",
+      );
+      const peakKb = async (tag: string, nodeArgs: string[]): Promise<number> => {
+        process.env.PEAK_FILE = join(out, `${tag}.kb`);
+        const r = await runCli(['audit', MANHATTAN, '--out', join(out, tag), '-q'], { nodeArgs: ['--import', preload, ...nodeArgs] });
+        expect(r.code, r.stderr).toBe(0);
+        return Number(readFileSync(join(out, `${tag}.kb`), 'utf8'));
+      };
+      try {
+        const tuned = await peakKb('tuned', []);
+        // 0 is V8's own rule (grow by up to four times what survived), left as given
+        const v8Default = await peakKb('default', ['--heap-growing-percent=0']);
+        // measured: about 170 MB against 189 MB; the live heap is the same, only the garbage held differs
+        expect(tuned).toBeLessThan(v8Default * 0.95);
+      } finally {
+        delete process.env.PEAK_FILE;
+      }
+    },
+    120_000,
+  );
 });

@@ -29,10 +29,16 @@ interface Spawned {
 }
 
 function start(args: string[], env: Record<string, string> = {}): Spawned {
-  const child = spawn(process.execPath, [CLI, ...args], { cwd: work, env: { ...process.env, NO_COLOR: '1', ...env }, stdio: ['ignore', 'ignore', 'pipe'] });
+  const child = spawn(process.execPath, [CLI, ...args], {
+    cwd: work,
+    env: { ...process.env, NO_COLOR: '1', ...env },
+    stdio: ['ignore', 'ignore', 'pipe'],
+  });
   let stderr = '';
   child.stderr!.on('data', (d) => (stderr += d));
-  const done = new Promise<{ code: number | null; signal: NodeJS.Signals | null; stderr: string }>((ok) => child.on('close', (code, signal) => ok({ code, signal, stderr })));
+  const done = new Promise<{ code: number | null; signal: NodeJS.Signals | null; stderr: string }>((ok) =>
+    child.on('close', (code, signal) => ok({ code, signal, stderr })),
+  );
   return { child, done };
 }
 
@@ -57,7 +63,10 @@ async function frozenWhileWriting(extra: string[] = []): Promise<Spawned> {
 }
 
 describe('an interrupt while the report is written', () => {
-  for (const [signal, exit] of [['SIGTERM', 143], ['SIGINT', 130]] as const) {
+  for (const [signal, exit] of [
+    ['SIGTERM', 143],
+    ['SIGINT', 130],
+  ] as const) {
     it(`${signal}: removes the temporary folder, writes no report, exits ${exit}`, async () => {
       const run = await frozenWhileWriting();
       run.child.kill(signal);
@@ -133,7 +142,10 @@ describe('an interrupt while a feed downloads', () => {
     await new Promise((ok) => server.close(ok));
   });
 
-  for (const [signal, exit] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
+  for (const [signal, exit] of [
+    ['SIGINT', 130],
+    ['SIGTERM', 143],
+  ] as const) {
     it(`${signal}: removes the partial download and exits ${exit}`, async () => {
       const tmp = join(work, 'tmp');
       mkdirSync(tmp);
@@ -152,7 +164,11 @@ describe('an interrupt while a feed downloads', () => {
     const tmp = join(work, 'tmp');
     mkdirSync(tmp);
     const run = start(['check', url], { TMPDIR: tmp });
-    await until(() => readdirSync(tmp).length > 0 && readdirSync(join(tmp, readdirSync(tmp)[0])).length > 0, 60_000, 'the partial download');
+    await until(
+      () => readdirSync(tmp).length > 0 && readdirSync(join(tmp, readdirSync(tmp)[0])).length > 0,
+      60_000,
+      'the partial download',
+    );
     run.child.kill('SIGKILL');
     await run.done;
     const left = readdirSync(tmp);
@@ -160,7 +176,11 @@ describe('an interrupt while a feed downloads', () => {
     writeFileSync(join(tmp, 'stopspan-dl-notes.txt'), 'not a download folder'); // other names stay
     const next = start(['check', url], { TMPDIR: tmp });
     const own = () => readdirSync(tmp).find((n) => n.startsWith(`stopspan-dl-${next.child.pid}-`));
-    await until(() => !readdirSync(tmp).includes(left[0]) && own() !== undefined && readdirSync(join(tmp, own()!)).length > 0, 60_000, 'the sweep and the new download');
+    await until(
+      () => !readdirSync(tmp).includes(left[0]) && own() !== undefined && readdirSync(join(tmp, own()!)).length > 0,
+      60_000,
+      'the sweep and the new download',
+    );
     next.child.kill('SIGTERM');
     expect((await next.done).code).toBe(143);
     expect(readdirSync(tmp)).toEqual(['stopspan-dl-notes.txt']);

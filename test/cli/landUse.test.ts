@@ -22,17 +22,99 @@ function file(name: string, text: string): string {
 
 const feature = (properties: Record<string, unknown>, geometry: unknown) => ({ type: 'Feature', properties, geometry });
 const collection = (...features: unknown[]) => JSON.stringify({ type: 'FeatureCollection', features });
-const square = (lat: number, lon: number, d = 0.001) => [[[lon, lat], [lon + d, lat], [lon + d, lat + d], [lon, lat + d], [lon, lat]]];
+const square = (lat: number, lon: number, d = 0.001) => [
+  [
+    [lon, lat],
+    [lon + d, lat],
+    [lon + d, lat + d],
+    [lon, lat + d],
+    [lon, lat],
+  ],
+];
 
 const BAD: [string, string, string[], RegExp][] = [
   ['no coordinates', file('no-coords.csv', 'x,y,population,jobs\n1,2,3,4\n'), [], /no-coords\.csv:1 column lat: .*coordinates/],
-  ['an unknown weight column', file('unknown.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n`), ['--land-use-weights', 'residents=1'], /unknown\.csv:1 column residents: .*--land-use-weights/],
-  ['a non-numeric count', file('words.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n${CSQ.lat},${CSQ.lon},many,5\n`), [], /words\.csv:3 column population: invalid population: expected a number \(got "many"\)/],
-  ['a negative count', file('negative.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,-5\n`), [], /negative\.csv:2 column jobs: .*cannot be negative/],
-  ['a ring that is not closed', file('open.geojson', collection(feature({ population: 5, jobs: 1 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }), feature({ population: 5, jobs: 1 }, { type: 'Polygon', coordinates: [[[CSQ.lon, CSQ.lat], [CSQ.lon + 0.001, CSQ.lat], [CSQ.lon, CSQ.lat + 0.001], [CSQ.lon + 0.001, CSQ.lat + 0.001]]] }))), [], /open\.geojson column geometry: feature 2: invalid geometry: ring 1 is not closed/],
-  ['a geometry of another kind', file('line.geojson', collection(feature({ population: 5 }, { type: 'LineString', coordinates: [[CSQ.lon, CSQ.lat], [CSQ.lon + 0.01, CSQ.lat]] }))), [], /line\.geojson column geometry: feature 1: invalid geometry: expected Point, MultiPoint, Polygon or MultiPolygon/],
-  ['a feature without its property', file('lacks.geojson', collection(feature({ population: 5, jobs: 2 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }), feature({ population: 5 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }))), [], /lacks\.geojson column jobs: feature 2: lacks the property jobs/],
-  ['latitude and longitude swapped', file('swapped.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n${CSQ.lon},${CSQ.lat},10,5\n`), [], /swapped\.csv:3 column lat: coordinates 25 km or more from every stop/],
+  [
+    'an unknown weight column',
+    file('unknown.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n`),
+    ['--land-use-weights', 'residents=1'],
+    /unknown\.csv:1 column residents: .*--land-use-weights/,
+  ],
+  [
+    'a non-numeric count',
+    file('words.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n${CSQ.lat},${CSQ.lon},many,5\n`),
+    [],
+    /words\.csv:3 column population: invalid population: expected a number \(got "many"\)/,
+  ],
+  [
+    'a negative count',
+    file('negative.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,-5\n`),
+    [],
+    /negative\.csv:2 column jobs: .*cannot be negative/,
+  ],
+  [
+    'a ring that is not closed',
+    file(
+      'open.geojson',
+      collection(
+        feature({ population: 5, jobs: 1 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }),
+        feature(
+          { population: 5, jobs: 1 },
+          {
+            type: 'Polygon',
+            coordinates: [
+              [
+                [CSQ.lon, CSQ.lat],
+                [CSQ.lon + 0.001, CSQ.lat],
+                [CSQ.lon, CSQ.lat + 0.001],
+                [CSQ.lon + 0.001, CSQ.lat + 0.001],
+              ],
+            ],
+          },
+        ),
+      ),
+    ),
+    [],
+    /open\.geojson column geometry: feature 2: invalid geometry: ring 1 is not closed/,
+  ],
+  [
+    'a geometry of another kind',
+    file(
+      'line.geojson',
+      collection(
+        feature(
+          { population: 5 },
+          {
+            type: 'LineString',
+            coordinates: [
+              [CSQ.lon, CSQ.lat],
+              [CSQ.lon + 0.01, CSQ.lat],
+            ],
+          },
+        ),
+      ),
+    ),
+    [],
+    /line\.geojson column geometry: feature 1: invalid geometry: expected Point, MultiPoint, Polygon or MultiPolygon/,
+  ],
+  [
+    'a feature without its property',
+    file(
+      'lacks.geojson',
+      collection(
+        feature({ population: 5, jobs: 2 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }),
+        feature({ population: 5 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat] }),
+      ),
+    ),
+    [],
+    /lacks\.geojson column jobs: feature 2: lacks the property jobs/,
+  ],
+  [
+    'latitude and longitude swapped',
+    file('swapped.csv', `lat,lon,population,jobs\n${CSQ.lat},${CSQ.lon},10,5\n${CSQ.lon},${CSQ.lat},10,5\n`),
+    [],
+    /swapped\.csv:3 column lat: coordinates 25 km or more from every stop/,
+  ],
 ];
 
 describe('stopspan audit --land-use with a bad file', () => {
@@ -68,7 +150,16 @@ describe('stopspan audit --land-use with a good file', () => {
       'good.geojson',
       collection(
         feature({ population: 800, jobs: 200 }, { type: 'Polygon', coordinates: square(CSQ.lat - 0.0005, CSQ.lon - 0.0005) }),
-        feature({ population: 50, jobs: 0 }, { type: 'MultiPoint', coordinates: [[CSQ.lon + 0.0003, CSQ.lat], [CSQ.lon - 0.0003, CSQ.lat]] }),
+        feature(
+          { population: 50, jobs: 0 },
+          {
+            type: 'MultiPoint',
+            coordinates: [
+              [CSQ.lon + 0.0003, CSQ.lat],
+              [CSQ.lon - 0.0003, CSQ.lat],
+            ],
+          },
+        ),
         feature({ population: 120, jobs: 30 }, { type: 'Point', coordinates: [CSQ.lon, CSQ.lat + 0.045] }),
       ),
     );
@@ -88,7 +179,9 @@ describe('stopspan audit --land-use with a good file', () => {
     const w = await runCli(['whatif', DEMO, '--remove', 'MKT-12-a', '--land-use', layer, '--out', page, '-q']);
     expect(w.code, w.stderr).toBe(0);
     expect(w.stdout).toMatch(/land use: 1,050 of 1,200 people within a walk of a stop before, [\d,]+ after/);
-    expect(readFileSync(join(page, 'index.html'), 'utf8')).toMatch(/Land use: 1,050 of 1,200 people within a walk of a stop before the change, [\d,]+ after\./);
+    expect(readFileSync(join(page, 'index.html'), 'utf8')).toMatch(
+      /Land use: 1,050 of 1,200 people within a walk of a stop before the change, [\d,]+ after\./,
+    );
     expect(JSON.parse(readFileSync(join(page, 'result.json'), 'utf8')).land_use.people_covered_before).toBe(1050);
   });
 });

@@ -48,7 +48,9 @@ describe('--force replaces only a previous output', () => {
     for (const out of ['.', '..', work]) {
       const r = await run(['audit', 'feed.zip', '--out', out, '--force']);
       expect(r.code).toBe(2);
-      expect(oneErrorLine(r.stderr)).toBe(`error: ${out}: cannot use this as the output folder: it is the working folder or a folder above it`);
+      expect(oneErrorLine(r.stderr)).toBe(
+        `error: ${out}: cannot use this as the output folder: it is the working folder or a folder above it`,
+      );
     }
     expect(snapshot(work)).toEqual(before);
   });
@@ -56,7 +58,9 @@ describe('--force replaces only a previous output', () => {
   it('refuses a file given as --out, and a folder holding the input feed', async () => {
     let r = await run(['audit', 'feed.zip', '--out', 'notes.txt', '--force']);
     expect(r.code).toBe(2);
-    expect(oneErrorLine(r.stderr)).toBe('error: notes.txt: cannot use this as the output folder: it is a file, not a folder; only a folder stopspan wrote is ever replaced');
+    expect(oneErrorLine(r.stderr)).toBe(
+      'error: notes.txt: cannot use this as the output folder: it is a file, not a folder; only a folder stopspan wrote is ever replaced',
+    );
     // a folder dressed as a previous output, but holding the feed this run reads
     mkdirSync(join(work, 'sub'));
     copyFileSync(DEMO, join(work, 'sub', 'feed.zip'));
@@ -75,7 +79,9 @@ describe('--force replaces only a previous output', () => {
     for (const force of [[], ['--force']]) {
       const r = await run(['audit', 'feed.zip', '--out', 'gis', ...force]);
       expect(r.code).toBe(2);
-      expect(oneErrorLine(r.stderr)).toMatch(/^error: gis: cannot use this as the output folder: it exists and is not a stopspan output folder/);
+      expect(oneErrorLine(r.stderr)).toMatch(
+        /^error: gis: cannot use this as the output folder: it exists and is not a stopspan output folder/,
+      );
     }
     expect(snapshot(work)).toEqual(before);
   });
@@ -84,7 +90,9 @@ describe('--force replaces only a previous output', () => {
     expect((await run(['audit', 'feed.zip', '--out', 'rep', '--format', 'csv', '-q'])).code).toBe(0);
     const again = await run(['audit', 'feed.zip', '--out', 'rep', '--format', 'json', '-q']);
     expect(again.code).toBe(2);
-    expect(oneErrorLine(again.stderr)).toBe('error: rep: the output folder already exists; choose another folder or pass --force to replace it');
+    expect(oneErrorLine(again.stderr)).toBe(
+      'error: rep: the output folder already exists; choose another folder or pass --force to replace it',
+    );
     expect((await run(['audit', 'feed.zip', '--out', 'rep', '--format', 'json', '-q', '--force'])).code).toBe(0);
     // json: summary.json and the optimiser's plan.json (this feed has stops the optimiser drops)
     expect(readdirSync(join(work, 'rep')).sort()).toEqual([REPORT_MARKER, 'plan.json', 'summary.json']);
@@ -150,7 +158,10 @@ describe('an output that cannot be written fails before the work, with exit 2 na
       ['bad.sqlite', /bad\.sqlite: cannot prepare the history database: file is not a database/],
       ['other.sqlite', /other\.sqlite: not a stopspan history database: it is another program's \(it holds depots\)/],
     ] as const) {
-      for (const cmd of [['audit', 'feed.zip', '--out', 'rep'], ['check', 'feed.zip']]) {
+      for (const cmd of [
+        ['audit', 'feed.zip', '--out', 'rep'],
+        ['check', 'feed.zip'],
+      ]) {
         const r = await run([...cmd, '--history', db]);
         expect(r.code).toBe(2);
         expect(oneErrorLine(r.stderr)).toMatch(why);
@@ -171,7 +182,9 @@ describe('history, a reading command, changes nothing in the database', () => {
     const before = snapshot(work);
     const r = await run(['history', 'other.sqlite']);
     expect(r.code).toBe(2);
-    expect(oneErrorLine(r.stderr)).toBe("error: other.sqlite: not a stopspan history database: it is another program's (it holds depots); give a new file or one stopspan wrote");
+    expect(oneErrorLine(r.stderr)).toBe(
+      "error: other.sqlite: not a stopspan history database: it is another program's (it holds depots); give a new file or one stopspan wrote",
+    );
     expect(snapshot(work)).toEqual(before); // no tables added, no -wal or -shm file
     const again = new Database(path, { readonly: true });
     expect(again.pragma('journal_mode', { simple: true })).toBe('delete');

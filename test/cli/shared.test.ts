@@ -27,7 +27,12 @@ afterEach(() => vi.restoreAllMocks());
 describe('runAction', () => {
   it('turns the engine refusing a string or buffer into one line and exit 2', async () => {
     // the messages V8 and Node give when a string or ArrayBuffer cannot be made [M]
-    for (const msg of ['Invalid string length', 'Array buffer allocation failed', 'Invalid typed array length: 9999999999999', 'Invalid array length']) {
+    for (const msg of [
+      'Invalid string length',
+      'Array buffer allocation failed',
+      'Invalid typed array length: 9999999999999',
+      'Invalid array length',
+    ]) {
       const r = await run(() => {
         throw new RangeError(msg);
       });

@@ -41,11 +41,27 @@ describe('stopspan whatif on the demo feed', () => {
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^ +R1:0:1 +R1:0:2 +total$/m);
-    for (const row of ['riders whose stop changes /day', 'walk added, real minutes/day', 'walk added, pax-min/day (x2.0 walk weight)', 'walk saved, pax-min/day', 'ride time saved, pax-min/day', "neighbours' extra stopping", 'net, pax-min/day', 'run time saved per trip, s', 'vehicle-hours saved per day', 'widest gap a change makes, m (policy 800)', 'within 400 m of a stop, before -> after']) {
+    for (const row of [
+      'riders whose stop changes /day',
+      'walk added, real minutes/day',
+      'walk added, pax-min/day (x2.0 walk weight)',
+      'walk saved, pax-min/day',
+      'ride time saved, pax-min/day',
+      "neighbours' extra stopping",
+      'net, pax-min/day',
+      'run time saved per trip, s',
+      'vehicle-hours saved per day',
+      'widest gap a change makes, m (policy 800)',
+      'within 400 m of a stop, before -> after',
+    ]) {
       expect(r.stdout).toContain(row);
     }
-    expect(r.stdout).toMatch(/^R1:0:1: route 1 to Eastgate Terminus\n  removes MKT-05-a Market St \/ Gorse Hill Rd: gaps \d+ \+ \d+ m become \d+ m, within the 800 m policy$/m);
-    expect(r.stdout).toMatch(/^walking: each of about [\d,]+ riders a day whose stop changes walks about \d+ m, \d+ s, further on average; [\d,]+ real minutes a day in all, counted as [\d,]+ passenger-minutes at walk weight 2\.0$/m);
+    expect(r.stdout).toMatch(
+      /^R1:0:1: route 1 to Eastgate Terminus\n  removes MKT-05-a Market St \/ Gorse Hill Rd: gaps \d+ \+ \d+ m become \d+ m, within the 800 m policy$/m,
+    );
+    expect(r.stdout).toMatch(
+      /^walking: each of about [\d,]+ riders a day whose stop changes walks about \d+ m, \d+ s, further on average; [\d,]+ real minutes a day in all, counted as [\d,]+ passenger-minutes at walk weight 2\.0$/m,
+    );
     expect(r.stdout).toMatch(/sensitivity \(net pax-min\/day\): walk_weight=1\.5 [\d,-]+, walk_weight=2\.5 [\d,-]+/);
     expect(r.stdout).toMatch(/demand assumed, not counted/);
     expect(r.stdout.replace(/\s+/g, ' ')).toContain(CAUTIONS.join(' '));
@@ -60,7 +76,10 @@ describe('stopspan whatif on the demo feed', () => {
 
   it('refuses an ambiguous name, an unknown stop, a terminal and a far point, naming the item, and prints nothing on stdout', async () => {
     const cases: [string[], RegExp][] = [
-      [['--remove', 'Market St / Yarrow Rd'], /remove\[0\]: stop name "Market St \/ Yarrow Rd" is ambiguous \(2 stops\); give the stop_id[^\n]*\n  MKT-02-a  Market St \/ Yarrow Rd: route 1 direction 0 to [^\n]+\n  MKT-02-b  Market St \/ Yarrow Rd: route 1 direction 1 to Westgate Terminus\n/],
+      [
+        ['--remove', 'Market St / Yarrow Rd'],
+        /remove\[0\]: stop name "Market St \/ Yarrow Rd" is ambiguous \(2 stops\); give the stop_id[^\n]*\n  MKT-02-a  Market St \/ Yarrow Rd: route 1 direction 0 to [^\n]+\n  MKT-02-b  Market St \/ Yarrow Rd: route 1 direction 1 to Westgate Terminus\n/,
+      ],
       [['--remove', 'MKT-05-a,VELL-NOWHERE'], /remove\[1\]: unknown stop "VELL-NOWHERE"/],
       [['--remove', 'MKT-01-a'], /remove\[0\]: stop MKT-01-a is a terminal of pattern R1:0:\d and cannot be removed/],
       [['--add', '45.1,10.0:R1'], /add\[0\]: 45\.1,10 is \d+ m from the nearest pattern of route R1 \(limit 200 m/],
@@ -93,7 +112,20 @@ describe('stopspan whatif on the demo feed', () => {
     expect(doc.tool.name).toBe('stopspan');
     expect(doc.scenario.remove).toEqual(['MKT-05-a', { stop: 'Ring Rd / Glebe Rd', routes: ['R30'] }]);
     const t = doc.totals;
-    for (const k of ['patterns_affected', 'riders_affected_per_day', 'walk_added_pax_min_per_day', 'walk_saved_pax_min_per_day', 'ride_saved_pax_min_per_day', 'neighbours_extra_pax_min_per_day', 'net_pax_min_per_day', 'run_time_saved_per_trip_s', 'vehicle_hours_per_day', 'largest_gap_before_m', 'largest_gap_after_m', 'over_policy_after']) {
+    for (const k of [
+      'patterns_affected',
+      'riders_affected_per_day',
+      'walk_added_pax_min_per_day',
+      'walk_saved_pax_min_per_day',
+      'ride_saved_pax_min_per_day',
+      'neighbours_extra_pax_min_per_day',
+      'net_pax_min_per_day',
+      'run_time_saved_per_trip_s',
+      'vehicle_hours_per_day',
+      'largest_gap_before_m',
+      'largest_gap_after_m',
+      'over_policy_after',
+    ]) {
       expect(typeof t[k], k).toBe('number');
     }
     expect(t.patterns_affected).toBe(doc.patterns.length);
@@ -130,7 +162,9 @@ describe('stopspan whatif on the demo feed', () => {
     expect(heavy.params.walk_weight).toMatchObject({ value: 3, source: 'user' });
     expect(heavy.totals.net_pax_min_per_day).toBeGreaterThan(base.totals.net_pax_min_per_day);
     expect(heavy.totals.ride_saved_pax_min_per_day).toBeCloseTo(base.totals.ride_saved_pax_min_per_day, 6);
-    const counted = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json', '--ridership', join(ROOT, 'fixtures/demo/ridership.csv')])).stdout);
+    const counted = JSON.parse(
+      (await cli([DEMO, '--remove', 'MKT-05-a', '--json', '--ridership', join(ROOT, 'fixtures/demo/ridership.csv')])).stdout,
+    );
     expect(counted.patterns.every((p: any) => p.demand_source === 'observed')).toBe(true);
     const bad = await cli([DEMO, '--remove', 'MKT-05-a', '--walk-weight', 'brisk']);
     expect(bad.code).toBe(2);
@@ -146,7 +180,9 @@ describe('stopspan whatif on the demo feed', () => {
     expect(html).toMatch(/^<!doctype html>/);
     expect(html).toContain('Market St / Gorse Hill Rd (MKT-05-a): removed');
     expect(html).toContain('Market St / Quarry Hill Rd west: added');
-    expect((html.match(/<svg class="chart strip wf-strip"/g) ?? []).length).toBe(JSON.parse(readFileSync(join(out, 'result.json'), 'utf8')).patterns.length);
+    expect((html.match(/<svg class="chart strip wf-strip"/g) ?? []).length).toBe(
+      JSON.parse(readFileSync(join(out, 'result.json'), 'utf8')).patterns.length,
+    );
     expect(html).not.toMatch(/<script|https?:\/\//);
     const again = await cli([DEMO, '--remove', 'MKT-05-a', '--out', out]);
     expect(again.code).toBe(2);
@@ -177,9 +213,13 @@ describe('stopspan whatif on the demo feed', () => {
 
 describe('stopspan whatif: stops as people name them, and answers people can quote', () => {
   it('finds a shared name by route and direction, by headsign, or on both sides of the street', async () => {
-    const one = JSON.parse((await cli([DEMO, '--remove', 'Market St / Glebe Rd', '--route', '1', '--direction', '0', '--json', '-q'])).stdout);
+    const one = JSON.parse(
+      (await cli([DEMO, '--remove', 'Market St / Glebe Rd', '--route', '1', '--direction', '0', '--json', '-q'])).stdout,
+    );
     expect([...new Set(one.patterns.flatMap((p: any) => p.removed_stop_ids))]).toEqual(['MKT-09-a']);
-    const byHeadsign = JSON.parse((await cli([DEMO, '--remove', 'market st /  glebe rd', '--headsign', 'Westgate Terminus', '--json', '-q'])).stdout);
+    const byHeadsign = JSON.parse(
+      (await cli([DEMO, '--remove', 'market st /  glebe rd', '--headsign', 'Westgate Terminus', '--json', '-q'])).stdout,
+    );
     expect([...new Set(byHeadsign.patterns.flatMap((p: any) => p.removed_stop_ids))]).toEqual(['MKT-09-b']);
     const both = JSON.parse((await cli([DEMO, '--remove', 'Market St / Glebe Rd', '--both-directions', '--json', '-q'])).stdout);
     expect([...new Set(both.patterns.flatMap((p: any) => p.removed_stop_ids))].sort()).toEqual(['MKT-09-a', 'MKT-09-b']);
@@ -235,21 +275,40 @@ describe('stopspan whatif: stops as people name them, and answers people can quo
 
   it('scenario.json written by --out is a scenario: read back, it gives the same figures', async () => {
     const out = join(dir, 'roundtrip');
-    const first = await cli([DEMO, '--remove', 'Market St / Glebe Rd', '--route', '1', '--direction', '0', '--add', '45.019919,10.0008:R1', '--out', out, '--json', '-q']);
+    const first = await cli([
+      DEMO,
+      '--remove',
+      'Market St / Glebe Rd',
+      '--route',
+      '1',
+      '--direction',
+      '0',
+      '--add',
+      '45.019919,10.0008:R1',
+      '--out',
+      out,
+      '--json',
+      '-q',
+    ]);
     expect(first.code).toBe(0);
     const again = await cli([DEMO, '--scenario', join(out, 'scenario.json'), '--json', '-q']);
     expect(again.code).toBe(0);
     expect(JSON.parse(again.stdout).totals).toEqual(JSON.parse(first.stdout).totals);
   });
 
-  it('fleet and frequency per route: round trip saved, peak vehicles, the same fleet\'s headway, waiting, operating cost', async () => {
+  it("fleet and frequency per route: round trip saved, peak vehicles, the same fleet's headway, waiting, operating cost", async () => {
     const doc = JSON.parse((await cli([DEMO, '--remove', 'MKT-05-a', '--json', '-q', '--params', join(FIX, 'cost.json')])).stdout);
     const f = doc.fleet.find((x: any) => x.route_id === 'R1');
     expect(f.run_time_saved_per_round_trip_s).toBeGreaterThan(0);
-    expect(f.headway_same_fleet_s).toBeCloseTo((f.peak_headway_s * (f.round_trip_s - f.run_time_saved_per_round_trip_s)) / f.round_trip_s, 6);
+    expect(f.headway_same_fleet_s).toBeCloseTo(
+      (f.peak_headway_s * (f.round_trip_s - f.run_time_saved_per_round_trip_s)) / f.round_trip_s,
+      6,
+    );
     expect(f.peak_vehicles_before).toBe(Math.ceil(f.round_trip_s / f.peak_headway_s - 1e-9));
     expect(f.operating_cost_saved_per_day).toBeCloseTo(f.vehicle_hours_per_day * 90, 6);
     const text = (await cli([DEMO, '--remove', 'MKT-05-a', '-q'])).stdout;
-    expect(text).toMatch(/^fleet, route 1: \d+ s saved per round trip of [\d.]+ min; at the peak headway of [\d.]+ min that frees \d+ of \d+ peak vehicles \([\d.]+ of a vehicle\), or the same fleet runs every [\d.]+ min, saving riders about [\d,]+ minutes of waiting a day \(half the headway change per boarding, common planning practice\)$/m);
+    expect(text).toMatch(
+      /^fleet, route 1: \d+ s saved per round trip of [\d.]+ min; at the peak headway of [\d.]+ min that frees \d+ of \d+ peak vehicles \([\d.]+ of a vehicle\), or the same fleet runs every [\d.]+ min, saving riders about [\d,]+ minutes of waiting a day \(half the headway change per boarding, common planning practice\)$/m,
+    );
   });
 });

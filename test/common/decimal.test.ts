@@ -20,7 +20,23 @@ describe('parseDecimal', () => {
 
   it('refuses what Number() would read as something else', () => {
     // each of these is 10, Infinity or 0 to Number() [C] ECMA-262 StringToNumber
-    for (const s of ['0x0A', '0X0a', '0b1010', '0o12', 'Infinity', '-Infinity', '', ' ', '\t', '1_000', '1,5', 'NaN', '1e', '--1', '1e400']) {
+    for (const s of [
+      '0x0A',
+      '0X0a',
+      '0b1010',
+      '0o12',
+      'Infinity',
+      '-Infinity',
+      '',
+      ' ',
+      '\t',
+      '1_000',
+      '1,5',
+      'NaN',
+      '1e',
+      '--1',
+      '1e400',
+    ]) {
       expect(parseDecimal(s), JSON.stringify(s)).toBeNull();
     }
     expect(Number('0x0A')).toBe(10); // the reason for the rule

@@ -24,6 +24,8 @@ describe('snakeKeys', () => {
     expect(snakeKey('walkAddedPaxMinPerDay')).toBe('walk_added_pax_min_per_day');
     expect(snakeKey('runTimeSavedPerTripS')).toBe('run_time_saved_per_trip_s');
     expect(snakeKey('max_gap_m')).toBe('max_gap_m');
-    expect(snakeKeys({ patterns: [{ patternId: 'R1:0:1', removedStopIds: ['camelStop'] }] })).toEqual({ patterns: [{ pattern_id: 'R1:0:1', removed_stop_ids: ['camelStop'] }] });
+    expect(snakeKeys({ patterns: [{ patternId: 'R1:0:1', removedStopIds: ['camelStop'] }] })).toEqual({
+      patterns: [{ pattern_id: 'R1:0:1', removed_stop_ids: ['camelStop'] }],
+    });
   });
 });

@@ -42,8 +42,13 @@ describe('terminalText', () => {
 describe('one escaping rule in the code', () => {
   it('no module but terminalText.ts writes its own pattern of control characters', () => {
     const SRC = join(import.meta.dirname, '..', '..', 'src');
-    const files = (d: string): string[] => readdirSync(d, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? files(join(d, e.name)) : e.name.endsWith('.ts') ? [join(d, e.name)] : []));
-    const own = files(SRC).filter((f) => !f.endsWith('terminalText.ts') && /\\u007f-\\u009f|\\x7f-\\x9f|\\p\{Cc\}/.test(readFileSync(f, 'utf8')));
+    const files = (d: string): string[] =>
+      readdirSync(d, { withFileTypes: true }).flatMap((e) =>
+        e.isDirectory() ? files(join(d, e.name)) : e.name.endsWith('.ts') ? [join(d, e.name)] : [],
+      );
+    const own = files(SRC).filter(
+      (f) => !f.endsWith('terminalText.ts') && /\\u007f-\\u009f|\\x7f-\\x9f|\\p\{Cc\}/.test(readFileSync(f, 'utf8')),
+    );
     expect(own.map((f) => f.slice(SRC.length + 1))).toEqual([]);
   });
 });

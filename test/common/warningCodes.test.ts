@@ -49,8 +49,18 @@ describe('the warning table', () => {
     sink.add('shape-dist-unit-poor-fit', 'a', 2, { unit: 'ft', misfitPct: '1.0' });
     sink.add('trip-unknown-route', 'trips.txt:4 route_id R9');
     expect(sink.list()).toEqual([
-      { code: 'shape-dist-unit-poor-fit', message: 'shape_dist_traveled read as km, but shapes are 12.5 % off that on the median', count: 3, examples: ['a'] },
-      { code: 'trip-unknown-route', message: 'trips whose route_id is not in routes.txt were dropped', count: 1, examples: ['trips.txt:4 route_id R9'] },
+      {
+        code: 'shape-dist-unit-poor-fit',
+        message: 'shape_dist_traveled read as km, but shapes are 12.5 % off that on the median',
+        count: 3,
+        examples: ['a'],
+      },
+      {
+        code: 'trip-unknown-route',
+        message: 'trips whose route_id is not in routes.txt were dropped',
+        count: 1,
+        examples: ['trips.txt:4 route_id R9'],
+      },
     ]);
   });
 
@@ -64,7 +74,10 @@ describe('the warning table', () => {
     const { feed, patterns } = buildFeed({ ...cleanSpec(), warnings: raised });
     const report = checkFeed(feed, patterns, { today: TODAY, maxExamples: 100 });
     const dangling = report.findings.find((f) => f.code === 'dangling-reference');
-    const counted = (dangling?.examples ?? []).map((e) => e.ids?.warning).filter(Boolean).sort();
+    const counted = (dangling?.examples ?? [])
+      .map((e) => e.ids?.warning)
+      .filter(Boolean)
+      .sort();
     expect(counted).toEqual(CODES.filter((c) => WARNINGS[c].check).sort());
     expect(counted).toContain('trip-unknown-route');
     // a code that merely has "unknown" in its name is not a dangling reference
@@ -78,8 +91,13 @@ describe("the README's warnings", () => {
     const start = readme.indexOf('| warning | title | what it means | counted by `check` |');
     expect(start).toBeGreaterThan(0);
     const rows = readme.slice(start).split('\n').slice(2);
-    const table = rows.slice(0, rows.findIndex((l) => !l.startsWith('|')));
-    const expected = CODES.map((c) => `| \`${c}\` | ${WARNINGS[c].title} | ${WARNINGS[c].explanation.replace(/\|/g, '\\|')} | ${WARNINGS[c].check ? 'yes' : ''} |`);
+    const table = rows.slice(
+      0,
+      rows.findIndex((l) => !l.startsWith('|')),
+    );
+    const expected = CODES.map(
+      (c) => `| \`${c}\` | ${WARNINGS[c].title} | ${WARNINGS[c].explanation.replace(/\|/g, '\\|')} | ${WARNINGS[c].check ? 'yes' : ''} |`,
+    );
     expect(table).toEqual(expected);
   });
 });

@@ -54,26 +54,28 @@ describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
       const lines = stopsText.split('\n');
       let moveFrom: [number, number] = [0, 0];
       let moveTo: [number, number] = [0, 0];
-      const outLines = lines.filter((line, k) => {
-        if (k === 0 || line === '') return true;
-        const cells = line.split(',');
-        return !removedIds.includes(cells[iId]);
-      }).map((line, k) => {
-        if (k === 0 || line === '') return line;
-        const cells = line.split(',');
-        if (cells[iId] === movedId) {
-          const lat = Number(cells[iLat]);
-          const lon = Number(cells[iLon]);
-          // the point 50 m due north on the WGS84 ellipsoid (geographiclib Direct) [C]
-          const d = Geodesic.WGS84.Direct(lat, lon, 0, 50);
-          moveFrom = [lat, lon];
-          moveTo = [d.lat2, d.lon2];
-          cells[iLat] = d.lat2.toFixed(7);
-          cells[iLon] = d.lon2.toFixed(7);
-        }
-        if (cells[iId] === renamedId) cells[iName] = 'VELLMOOR TEST NAME';
-        return cells.join(',');
-      });
+      const outLines = lines
+        .filter((line, k) => {
+          if (k === 0 || line === '') return true;
+          const cells = line.split(',');
+          return !removedIds.includes(cells[iId]);
+        })
+        .map((line, k) => {
+          if (k === 0 || line === '') return line;
+          const cells = line.split(',');
+          if (cells[iId] === movedId) {
+            const lat = Number(cells[iLat]);
+            const lon = Number(cells[iLon]);
+            // the point 50 m due north on the WGS84 ellipsoid (geographiclib Direct) [C]
+            const d = Geodesic.WGS84.Direct(lat, lon, 0, 50);
+            moveFrom = [lat, lon];
+            moveTo = [d.lat2, d.lon2];
+            cells[iLat] = d.lat2.toFixed(7);
+            cells[iLon] = d.lon2.toFixed(7);
+          }
+          if (cells[iId] === renamedId) cells[iName] = 'VELLMOOR TEST NAME';
+          return cells.join(',');
+        });
       expect(rows.length - 1 - 3).toBe(outLines.filter((l, k) => k > 0 && l !== '').length);
       const tLines = timesText.split('\n');
       const iStop = tLines[0].split(',').indexOf('stop_id');
@@ -95,11 +97,16 @@ describe.skipIf(!existsSync(BUS))('compare on the Manhattan bus feed', () => {
       const g = Geodesic.WGS84.Inverse(moveFrom[0], moveFrom[1], moveTo[0], moveTo[1]).s12;
       expect(Math.abs(g - 50)).toBeLessThan(0.01);
       expect(Math.abs(c.stops.moved[0].movedM - 50) / 50).toBeLessThan(0.005);
-      expect(c.stops.renamed).toEqual([{ stopId: renamedId, oldName: oldFeed.stops[oldFeed.stopIndex.get(renamedId)!].name, newName: 'VELLMOOR TEST NAME' }]);
+      expect(c.stops.renamed).toEqual([
+        { stopId: renamedId, oldName: oldFeed.stops[oldFeed.stopIndex.get(renamedId)!].name, newName: 'VELLMOOR TEST NAME' },
+      ]);
 
       // patterns: exactly those serving a removed stop changed, each dropping only removed stops
       const idsOf = (p: { stopIdx: number[] }) => p.stopIdx.map((i) => oldFeed.stops[i].id);
-      const touched = oldPatterns.patterns.filter((p) => idsOf(p).some((x) => removedIds.includes(x))).map((p) => p.id).sort();
+      const touched = oldPatterns.patterns
+        .filter((p) => idsOf(p).some((x) => removedIds.includes(x)))
+        .map((p) => p.id)
+        .sort();
       expect(touched.length).toBeGreaterThanOrEqual(3);
       expect(c.patterns.changed.map((x) => x.oldPatternId).sort()).toEqual(touched);
       for (const ch of c.patterns.changed) {
@@ -140,7 +147,11 @@ describe.skipIf(!existsSync(BUS))('compare names trips added, cancelled and cut 
       const oldFeed = await readFeed(BUS, { date: 'all' });
       const oldPatterns = buildPatterns(oldFeed, { date: DATE });
       const routes = [...new Set(oldPatterns.patterns.map((p) => p.routeId))].sort();
-      const tripsOf = (routeId: string) => oldPatterns.patterns.filter((p) => p.routeId === routeId).flatMap((p) => p.tripIds).sort();
+      const tripsOf = (routeId: string) =>
+        oldPatterns.patterns
+          .filter((p) => p.routeId === routeId)
+          .flatMap((p) => p.tripIds)
+          .sort();
       const [halved, cancelled, grown] = [routes[0], routes[1], routes[2]];
       const drop = new Set(tripsOf(halved).filter((_, k) => k % 2 === 1)); // every second trip of the day
       const cancelledTrip = tripsOf(cancelled)[0];
@@ -153,7 +164,14 @@ describe.skipIf(!existsSync(BUS))('compare names trips added, cancelled and cut 
       const iTrip = trips[0].split(',').indexOf('trip_id');
       const tripLine = trips.find((l) => l.split(',')[iTrip] === copied)!;
       const keptTrips = trips.filter((l, k) => k === 0 || l === '' || !drop.has(l.split(',')[iTrip]));
-      keptTrips.splice(1, 0, tripLine.split(',').map((x, i) => (i === iTrip ? addedTrip : x)).join(','));
+      keptTrips.splice(
+        1,
+        0,
+        tripLine
+          .split(',')
+          .map((x, i) => (i === iTrip ? addedTrip : x))
+          .join(','),
+      );
       const times = files.get('stop_times.txt')!.toString('utf8').split('\n');
       const keptTimes = times.filter((l, k) => k === 0 || l === '' || !drop.has(l.slice(0, l.indexOf(','))));
       // the added trip runs an hour after the one it copies (times only move; the pattern stays)

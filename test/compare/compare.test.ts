@@ -29,7 +29,12 @@ describe('compareFeeds', () => {
     const spec = twoRoutes();
     spec.stops = spec.stops.filter((s) => s.id !== 'S3');
     spec.trips[0].times = spec.trips[0].times.filter((t) => t[0] !== 'S3');
-    spec.stops.push({ id: 'B5', lat: spec.stops[spec.stops.length - 1].lat, lon: spec.stops[spec.stops.length - 1].lon + 0.004, name: 'Vellmoor Haven' });
+    spec.stops.push({
+      id: 'B5',
+      lat: spec.stops[spec.stops.length - 1].lat,
+      lon: spec.stops[spec.stops.length - 1].lon + 0.004,
+      name: 'Vellmoor Haven',
+    });
     spec.trips[1].times.push(['B5', 30300, 30300]);
     const b1 = spec.stops.find((s) => s.id === 'B1')!;
     b1.lat += 30 / 111_250; // 30 m north
@@ -82,7 +87,10 @@ describe('compareFeeds', () => {
     const withFreq = (headwayS: number) => {
       const runs = Math.ceil(3600 / headwayS); // GTFS Schedule reference: runs start at start_time + k * headway_secs before end_time [C]
       const feed = { ...a.feed, frequencies: [{ tripId: 'T1', startS: 7 * 3600, endS: 8 * 3600, headwayS, exactTimes: 1 as const }] };
-      const patterns = { ...a.patterns, patterns: a.patterns.patterns.map((p) => (p.tripIds.includes('T1') ? { ...p, tripsPerDay: runs } : p)) };
+      const patterns = {
+        ...a.patterns,
+        patterns: a.patterns.patterns.map((p) => (p.tripIds.includes('T1') ? { ...p, tripsPerDay: runs } : p)),
+      };
       return { feed, patterns };
     };
     const before = withFreq(600); // 6 runs, 07:00 to 07:50 [D]
@@ -90,7 +98,14 @@ describe('compareFeeds', () => {
     const c = compareFeeds(before.feed, after.feed, before.patterns, after.patterns);
     expect(c.trips.byRoute).toEqual([{ routeId: 'R1', shortName: expect.any(String), tripsBefore: 6, tripsAfter: 3, changePct: -50 }]);
     expect(c.trips.byPattern).toHaveLength(1);
-    expect(c.trips.byPattern[0]).toMatchObject({ tripsBefore: 6, tripsAfter: 3, tripIdsAddedCount: 0, tripIdsRemovedCount: 0, firstDeparture: { before: '7:00:00', after: '7:00:00' }, lastDeparture: { before: '7:50:00', after: '7:40:00' } });
+    expect(c.trips.byPattern[0]).toMatchObject({
+      tripsBefore: 6,
+      tripsAfter: 3,
+      tripIdsAddedCount: 0,
+      tripIdsRemovedCount: 0,
+      firstDeparture: { before: '7:00:00', after: '7:00:00' },
+      lastDeparture: { before: '7:50:00', after: '7:40:00' },
+    });
     expect(c.patterns.unchanged).toBe(1); // R2's pattern only
 
     // the same trip leaving ten minutes later: same count, different departures
@@ -99,7 +114,9 @@ describe('compareFeeds', () => {
     const later = buildFeed(spec);
     const r = compareFeeds(a.feed, later.feed, a.patterns, later.patterns);
     expect(r.trips.byRoute).toEqual([]);
-    expect(r.trips.byPattern.map((x) => [x.routeId, x.tripsBefore, x.tripsAfter, x.firstDeparture.before, x.firstDeparture.after])).toEqual([['R2', 1, 1, '8:20:00', '8:30:00']]);
+    expect(r.trips.byPattern.map((x) => [x.routeId, x.tripsBefore, x.tripsAfter, x.firstDeparture.before, x.firstDeparture.after])).toEqual(
+      [['R2', 1, 1, '8:20:00', '8:30:00']],
+    );
     expect(r.patterns.unchanged).toBe(1);
   });
 
@@ -121,7 +138,17 @@ describe('compareFeeds', () => {
   it('takes close stops, wide gaps, passenger-minutes and candidates from the two audits', () => {
     const a = buildFeed(cleanSpec());
     const cand = (action: 'remove' | 'add', stopId: string, stopName: string, net: number) =>
-      ({ rank: 1, action, stopId, stopName, lat: 0, lon: 0, routeIds: ['R1'], patternIds: [], netPaxMinPerDay: net }) as unknown as Candidate;
+      ({
+        rank: 1,
+        action,
+        stopId,
+        stopName,
+        lat: 0,
+        lon: 0,
+        routeIds: ['R1'],
+        patternIds: [],
+        netPaxMinPerDay: net,
+      }) as unknown as Candidate;
     const audit = (closeStops: number, wideGaps: number, paxMinLostPerDay: number, candidates: Candidate[]) =>
       ({ headline: { closeStops, wideGaps, paxMinLostPerDay }, candidates }) as unknown as AuditResult;
     const c = compareFeeds(a.feed, a.feed, a.patterns, a.patterns, {
@@ -138,9 +165,23 @@ describe('compareFeeds', () => {
 
   it('compares as the whole audits do from their brief, which holds the headline, candidates and land-use figures alone', () => {
     const a = buildFeed(cleanSpec());
-    const cand = { rank: 1, action: 'remove', stopId: 'S2', stopName: 'Vellmoor S2', routeIds: ['R1'], netPaxMinPerDay: -30 } as unknown as Candidate;
+    const cand = {
+      rank: 1,
+      action: 'remove',
+      stopId: 'S2',
+      stopName: 'Vellmoor S2',
+      routeIds: ['R1'],
+      netPaxMinPerDay: -30,
+    } as unknown as Candidate;
     const whole = (closeStops: number, candidates: Candidate[]) =>
-      ({ headline: { closeStops, wideGaps: 1, paxMinLostPerDay: 60 }, candidates, stops: [{}], gaps: [{}], patterns: [{}], sensitivity: [{}] }) as unknown as AuditResult;
+      ({
+        headline: { closeStops, wideGaps: 1, paxMinLostPerDay: 60 },
+        candidates,
+        stops: [{}],
+        gaps: [{}],
+        patterns: [{}],
+        sensitivity: [{}],
+      }) as unknown as AuditResult;
     const audits = { old: whole(4, [cand]), new: whole(2, []) };
     const brief = auditBrief(audits.old);
     expect(Object.keys(brief).sort()).toEqual(['candidates', 'headline', 'landUse']);
@@ -160,7 +201,11 @@ describe('comparedPart', () => {
     const a = buildFeed(twoRoutes());
     const spec = twoRoutes();
     // R1 gains a trip later in the day, R2's trip leaves a minute later, with its stops the same
-    spec.trips.push({ ...spec.trips[0], id: 'T1b', times: spec.trips[0].times.map(([s, arr, dep]) => [s, arr + 3600, dep + 3600] as [string, number, number]) });
+    spec.trips.push({
+      ...spec.trips[0],
+      id: 'T1b',
+      times: spec.trips[0].times.map(([s, arr, dep]) => [s, arr + 3600, dep + 3600] as [string, number, number]),
+    });
     spec.trips[1].times = spec.trips[1].times.map(([s, arr, dep]) => [s, arr + 60, dep + 60] as [string, number, number]);
     const b = buildFeed(spec);
     const whole = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);

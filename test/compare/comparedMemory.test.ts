@@ -59,7 +59,9 @@ describe('ownCopy', () => {
     // the pieces as cut keep every text (4 x 2 MiB); the copies about 2 000 x 70 bytes [D]
     expect(heldMB((s) => s)).toBeGreaterThan(6);
     expect(heldMB(ownCopy)).toBeLessThan(1);
-    expect(ownCopy('nyct-bus-manhattan3:OH_D6-Weekday-SDon-110500_M101_111')).toBe('nyct-bus-manhattan3:OH_D6-Weekday-SDon-110500_M101_111');
+    expect(ownCopy('nyct-bus-manhattan3:OH_D6-Weekday-SDon-110500_M101_111')).toBe(
+      'nyct-bus-manhattan3:OH_D6-Weekday-SDon-110500_M101_111',
+    );
     expect(ownCopy('T1')).toBe('T1');
   });
 });
@@ -69,7 +71,11 @@ describe('comparedPatterns with comparedPart', () => {
     const a = buildFeed(twoRoutes());
     const spec = twoRoutes();
     // R1 gains a trip later in the day, R2's trip leaves a minute later, with its stops the same
-    spec.trips.push({ ...spec.trips[0], id: 'T1b', times: spec.trips[0].times.map(([s, arr, dep]) => [s, arr + 3600, dep + 3600] as [string, number, number]) });
+    spec.trips.push({
+      ...spec.trips[0],
+      id: 'T1b',
+      times: spec.trips[0].times.map(([s, arr, dep]) => [s, arr + 3600, dep + 3600] as [string, number, number]),
+    });
     spec.trips[1].times = spec.trips[1].times.map(([s, arr, dep]) => [s, arr + 60, dep + 60] as [string, number, number]);
     const b = buildFeed(spec);
     const whole = compareFeeds(a.feed, b.feed, a.patterns, b.patterns);
@@ -89,8 +95,19 @@ describe.skipIf(!existsSync(BUS))('the older feed as compare holds it, on the Ma
     // the feeds' README: 37 872 trips in trips.txt [real feed fact]
     expect(all.feed.trips.size).toBe(37872);
     // a route's trips halved in the newer version
-    const halved = new Set(all.patterns.patterns.filter((p) => p.routeId === all.patterns.patterns[0].routeId).flatMap((p) => p.tripIds.filter((_, k) => k % 2 === 1)));
-    const newPatterns = { ...all.patterns, patterns: all.patterns.patterns.map((p) => ({ ...p, tripIds: p.tripIds.filter((t) => !halved.has(t)), tripsPerDay: p.tripsPerDay - p.tripIds.filter((t) => halved.has(t)).length })) };
+    const halved = new Set(
+      all.patterns.patterns
+        .filter((p) => p.routeId === all.patterns.patterns[0].routeId)
+        .flatMap((p) => p.tripIds.filter((_, k) => k % 2 === 1)),
+    );
+    const newPatterns = {
+      ...all.patterns,
+      patterns: all.patterns.patterns.map((p) => ({
+        ...p,
+        tripIds: p.tripIds.filter((t) => !halved.has(t)),
+        tripsPerDay: p.tripsPerDay - p.tripIds.filter((t) => halved.has(t)).length,
+      })),
+    };
     const whole = compareFeeds(all.feed, all.feed, all.patterns, newPatterns);
     expect(whole.trips.byRoute.length).toBe(1);
 
@@ -98,7 +115,12 @@ describe.skipIf(!existsSync(BUS))('the older feed as compare holds it, on the Ma
     const older = async () => {
       const day = await loadFeed(BUS, { dayOnly: true });
       const patterns = comparedPatterns(day.patterns);
-      return { day: { date: day.date, analysis: day.analysis, patterns: day.patterns, trips: day.feed.trips.size }, part: comparedPart(day.feed, patterns), patterns, store: new WeakRef(day.feed.stopTimes) };
+      return {
+        day: { date: day.date, analysis: day.analysis, patterns: day.patterns, trips: day.feed.trips.size },
+        part: comparedPart(day.feed, patterns),
+        patterns,
+        store: new WeakRef(day.feed.stopTimes),
+      };
     };
     const { day, part, patterns, store } = await older();
     expect(day.date).toBe(all.date);

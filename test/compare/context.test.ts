@@ -22,8 +22,14 @@ const DEG_60M = 60 / 111_320;
 function railFolder(name: string, stations: { id: string; name: string; lat: number; lon: number }[]): string {
   const dir = join(work, name);
   mkdirSync(dir, { recursive: true });
-  writeFileSync(join(dir, 'stops.txt'), 'stop_id,stop_name,stop_lat,stop_lon,location_type\n' + stations.map((s) => `${s.id},${s.name},${s.lat},${s.lon},1\n`).join(''));
-  writeFileSync(join(dir, 'calendar.txt'), 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20271231\n');
+  writeFileSync(
+    join(dir, 'stops.txt'),
+    'stop_id,stop_name,stop_lat,stop_lon,location_type\n' + stations.map((s) => `${s.id},${s.name},${s.lat},${s.lon},1\n`).join(''),
+  );
+  writeFileSync(
+    join(dir, 'calendar.txt'),
+    'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20271231\n',
+  );
   return dir;
 }
 
@@ -62,15 +68,30 @@ describe('stopspan compare --context', () => {
     // 60 m south of S3 in the clean version; the stop-off-path version has S3 300 m north
     const rail = railFolder('vellmoor-metro', [{ id: 'H', name: 'Havenplein', lat: 52.37 - DEG_60M, lon: 4.9117835 }]);
     const out = join(work, 'page');
-    const r = await runCli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--context', rail, '--json', '--out', out, '--quiet']);
+    const r = await runCli([
+      'compare',
+      join(FIX, 'clean'),
+      join(FIX, 'stop-off-path'),
+      '--context',
+      rail,
+      '--json',
+      '--out',
+      out,
+      '--quiet',
+    ]);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
     const doc = JSON.parse(r.stdout);
     // the document still meets its published schema (JSON Schema 2020-12 [C], checked by ajv)
-    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(JSON.parse(readFileSync(join(ROOT, 'schema/compare.schema.json'), 'utf8')));
+    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(
+      JSON.parse(readFileSync(join(ROOT, 'schema/compare.schema.json'), 'utf8')),
+    );
     validate(doc);
     expect(validate.errors ?? []).toEqual([]);
-    expect(doc.station_links).toEqual({ lost: [{ stop_id: 'S3', name: 'Vellmoor Havenstraat', station: 'station Havenplein (vellmoor-metro), 60 m', reason: 'moved' }], gained: [] });
+    expect(doc.station_links).toEqual({
+      lost: [{ stop_id: 'S3', name: 'Vellmoor Havenstraat', station: 'station Havenplein (vellmoor-metro), 60 m', reason: 'moved' }],
+      gained: [],
+    });
     expect(readFileSync(join(out, 'compare.html'), 'utf8')).toContain('<h2>Links to other modes lost (1) and gained (0)</h2>');
     const plain = JSON.parse((await runCli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json'])).stdout);
     expect(plain.station_links).toBeNull();

@@ -30,9 +30,15 @@ const north = (m: number): number => (m * 180) / (Math.PI * EARTH_RADIUS_M);
  * Before (S1 to S5 served): 300 + 500 = 800 people covered (600 residents, 200 jobs). After (S3 no longer
  * served): 500 (400 residents, 100 jobs). Change: -300 (-200 residents, -100 jobs). Total 840 people.
  */
-function layerCsv(name: string, s1: { lat: number; lon: number }, s2: { lat: number; lon: number }, s3: { lat: number; lon: number }): string {
+function layerCsv(
+  name: string,
+  s1: { lat: number; lon: number },
+  s2: { lat: number; lon: number },
+  s3: { lat: number; lon: number },
+): string {
   const f = join(work, `${name}.csv`);
-  const row = (p: { lat: number; lon: number }, dNorthM: number, population: number, jobs: number) => `${(p.lat + north(dNorthM)).toFixed(7)},${p.lon.toFixed(7)},${population},${jobs}\n`;
+  const row = (p: { lat: number; lon: number }, dNorthM: number, population: number, jobs: number) =>
+    `${(p.lat + north(dNorthM)).toFixed(7)},${p.lon.toFixed(7)},${population},${jobs}\n`;
   writeFileSync(f, 'lat,lon,population,jobs\n' + row(s3, 20, 200, 100) + row(s1, 20, 400, 100) + row(s2, 1000, 40, 0));
   return f;
 }
@@ -43,11 +49,19 @@ describe('compare: coverage before and after from one land-use layer', () => {
     const stops = street(5, 400);
     const times = (ids: string[]) => ids.map((s, k) => [s, 28800 + 60 * k, 28800 + 60 * k] as [string, number, number]);
     const ids = stops.map((s) => s.id);
-    const trips = (served: string[]) => [1, 2, 3, 4].map((k) => ({ id: `t${k}`, routeId: 'R1', times: times(served).map(([s, a, d]) => [s, a + 3600 * k, d + 3600 * k] as [string, number, number]) }));
+    const trips = (served: string[]) =>
+      [1, 2, 3, 4].map((k) => ({
+        id: `t${k}`,
+        routeId: 'R1',
+        times: times(served).map(([s, a, d]) => [s, a + 3600 * k, d + 3600 * k] as [string, number, number]),
+      }));
     const old = buildFeed({ stops, trips: trips(ids) });
     const neu = buildFeed({ stops, trips: trips(ids.filter((s) => s !== 'S3')) });
     const layer = readLandUse(layerCsv('street-layer', stops[0], stops[1], stops[2]));
-    const audits = { old: auditBrief(runAudit(old.feed, old.patterns, { landUse: layer })), new: auditBrief(runAudit(neu.feed, neu.patterns, { landUse: layer })) };
+    const audits = {
+      old: auditBrief(runAudit(old.feed, old.patterns, { landUse: layer })),
+      new: auditBrief(runAudit(neu.feed, neu.patterns, { landUse: layer })),
+    };
     const c = compareFeeds(old.feed, neu.feed, old.patterns, neu.patterns, { audits });
     expect(c.coverage).not.toBeNull();
     const v = c.coverage!;
@@ -65,7 +79,9 @@ describe('compare: coverage before and after from one land-use layer', () => {
     expect(text).toMatch(/ {2}population\s+600\s+400\s+-200\n/);
     expect(comparisonHtml(c)).toContain('<tr><td>people</td><td>840</td><td>800</td><td>500</td><td>-300</td></tr>');
     // without the layer on either side, nothing is said of coverage
-    const plain = compareFeeds(old.feed, neu.feed, old.patterns, neu.patterns, { audits: { old: auditBrief(runAudit(old.feed, old.patterns)), new: audits.new } });
+    const plain = compareFeeds(old.feed, neu.feed, old.patterns, neu.patterns, {
+      audits: { old: auditBrief(runAudit(old.feed, old.patterns)), new: audits.new },
+    });
     expect(plain.coverage).toBeNull();
     expect(comparisonText(plain)).not.toContain('coverage:');
   });
@@ -77,7 +93,13 @@ describe('stopspan compare --land-use', () => {
   const neu = join(work, 'without-s3');
   cpSync(CLEAN, neu, { recursive: true });
   const stopTimes = readFileSync(join(CLEAN, 'stop_times.txt'), 'utf8');
-  writeFileSync(join(neu, 'stop_times.txt'), stopTimes.split('\n').filter((l) => !l.includes(',S3,')).join('\n'));
+  writeFileSync(
+    join(neu, 'stop_times.txt'),
+    stopTimes
+      .split('\n')
+      .filter((l) => !l.includes(',S3,'))
+      .join('\n'),
+  );
   const at = (lon: number) => ({ lat: 52.37, lon });
   const layer = layerCsv('clean-layer', at(4.9), at(4.9058918), at(4.9117835));
 
@@ -88,7 +110,9 @@ describe('stopspan compare --land-use', () => {
     expect(r.code).toBe(0);
     const doc = JSON.parse(r.stdout);
     // the document meets its published schema (JSON Schema 2020-12 [C], checked by ajv)
-    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(JSON.parse(readFileSync(join(ROOT, 'schema/compare.schema.json'), 'utf8')));
+    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, validateFormats: false }).compile(
+      JSON.parse(readFileSync(join(ROOT, 'schema/compare.schema.json'), 'utf8')),
+    );
     validate(doc);
     expect(validate.errors ?? []).toEqual([]);
     expect(doc.coverage).toMatchObject({ walk_radius_m: 400, people: 840, before: 800, after: 500, change: -300 });

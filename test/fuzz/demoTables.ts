@@ -90,5 +90,8 @@ export function writeFeedFolder(t: Tables, dir: string): void {
 
 /** Writes the tables as a zip (yazl, fixed timestamps), the form agencies publish. */
 export async function writeFeedZip(t: Tables, path: string): Promise<void> {
-  await writeZip(path, Object.entries(t).map(([name, tab]) => [name, tableText(tab)] as const));
+  await writeZip(
+    path,
+    Object.entries(t).map(([name, tab]) => [name, tableText(tab)] as const),
+  );
 }

@@ -27,7 +27,9 @@ const PATH = process.env.STOPSPAN_FUZZ_PATH; // fast-check's replay path, printe
 const RUNS = Number(process.env.STOPSPAN_FUZZ_RUNS ?? 50);
 const MAX_MUTATIONS = Number(process.env.STOPSPAN_FUZZ_MAX_MUTATIONS ?? 4);
 const CLI_RUNS = 4;
-console.log(`test/fuzz/mutate-demo.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED}), ${RUNS} in-process runs, ${CLI_RUNS} CLI runs`);
+console.log(
+  `test/fuzz/mutate-demo.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED}), ${RUNS} in-process runs, ${CLI_RUNS} CLI runs`,
+);
 
 // ---------------------------------------------------------------------------------------------------
 // Mutations
@@ -174,12 +176,18 @@ function inconsistencies(dir: string): string[] {
     list.push(s);
     byPattern.set(s.pattern_id, list);
   }
-  for (const [f, rows] of [['patterns.csv', patterns], ['stops.csv', stops]] as const) {
+  for (const [f, rows] of [
+    ['patterns.csv', patterns],
+    ['stops.csv', stops],
+  ] as const) {
     for (const r of rows) for (const [k, v] of Object.entries(r)) if (/^-?(NaN|Infinity)$/.test(v)) bad.push(`${f} ${k} = ${v}`);
   }
-  if (summary.counts?.patterns !== patterns.length) bad.push(`summary.json counts.patterns ${summary.counts?.patterns}, patterns.csv has ${patterns.length}`);
-  if (summary.counts?.stop_rows !== stops.length) bad.push(`summary.json counts.stop_rows ${summary.counts?.stop_rows}, stops.csv has ${stops.length}`);
-  for (const s of stops) if (!['close', 'wide', 'ok', 'fixed'].includes(s.verdict)) bad.push(`stops.csv verdict ${JSON.stringify(s.verdict)}`);
+  if (summary.counts?.patterns !== patterns.length)
+    bad.push(`summary.json counts.patterns ${summary.counts?.patterns}, patterns.csv has ${patterns.length}`);
+  if (summary.counts?.stop_rows !== stops.length)
+    bad.push(`summary.json counts.stop_rows ${summary.counts?.stop_rows}, stops.csv has ${stops.length}`);
+  for (const s of stops)
+    if (!['close', 'wide', 'ok', 'fixed'].includes(s.verdict)) bad.push(`stops.csv verdict ${JSON.stringify(s.verdict)}`);
   const html = readFileSync(join(dir, 'index.html'), 'utf8');
   const block = /<script type="application\/json" id="report-data">([^<]*)<\/script>/.exec(html);
   if (!block) bad.push('index.html has no data block');
@@ -193,10 +201,15 @@ function inconsistencies(dir: string): string[] {
       if (i === 0) return;
       const step = Number(r.dist_along_m) - Number(ordered[i - 1].dist_along_m);
       if (step < -0.05) bad.push(`pattern ${p.pattern_id}: dist_along_m falls from ${ordered[i - 1].dist_along_m} to ${r.dist_along_m}`);
-      if (r.gap_before_m !== '' && Math.abs(step - Number(r.gap_before_m)) > 0.1 + 1e-6) bad.push(`pattern ${p.pattern_id}: gap_before_m ${r.gap_before_m} at index ${i}, distance step ${step.toFixed(2)}`);
+      if (r.gap_before_m !== '' && Math.abs(step - Number(r.gap_before_m)) > 0.1 + 1e-6)
+        bad.push(`pattern ${p.pattern_id}: gap_before_m ${r.gap_before_m} at index ${i}, distance step ${step.toFixed(2)}`);
     });
-    if (Number(p.stop_count) !== rows.length) bad.push(`pattern ${p.pattern_id}: stop_count ${p.stop_count} but ${rows.length} rows in stops.csv`);
-    const gaps = rows.map((r) => r.gap_before_m).filter((g) => g !== '').map(Number);
+    if (Number(p.stop_count) !== rows.length)
+      bad.push(`pattern ${p.pattern_id}: stop_count ${p.stop_count} but ${rows.length} rows in stops.csv`);
+    const gaps = rows
+      .map((r) => r.gap_before_m)
+      .filter((g) => g !== '')
+      .map(Number);
     const sum = gaps.reduce((a, b) => a + b, 0);
     const lengthM = Number(p.length_m);
     // each written gap and the length are rounded to 0.1 m, so they may differ by up to 0.05 m per figure
@@ -225,7 +238,9 @@ beforeAll(async () => {
 afterAll(() => {
   if (work) rmSync(work, { recursive: true, force: true });
   if (tally.ok + tally.refused > 0) {
-    console.log(`fuzz outcome: ${tally.ok} audited, ${tally.refused} refused (${[...tally.codes].map(([c, n]) => `${c} ${n}`).join(', ')})`);
+    console.log(
+      `fuzz outcome: ${tally.ok} audited, ${tally.refused} refused (${[...tally.codes].map(([c, n]) => `${c} ${n}`).join(', ')})`,
+    );
   }
 });
 
@@ -267,7 +282,8 @@ describe('the demo feed mutated', () => {
           try {
             ({ result } = await auditFeed(feed));
           } catch (e) {
-            if (!isStopspanError(e)) throw new Error(`not a StopspanError after ${describeMutations(ms)}: ${(e as Error)?.stack ?? String(e)}`);
+            if (!isStopspanError(e))
+              throw new Error(`not a StopspanError after ${describeMutations(ms)}: ${(e as Error)?.stack ?? String(e)}`);
             if (/[\r\n]/.test(e.oneLine())) throw new Error(`error message spans lines: ${JSON.stringify(e.oneLine())}`);
             tally.refused++;
             tally.codes.set(e.code, (tally.codes.get(e.code) ?? 0) + 1);
@@ -289,41 +305,44 @@ describe('the demo feed mutated', () => {
 
   const haveCli = existsSync(CLI);
   if (!haveCli) console.warn(`test/fuzz/mutate-demo.test.ts: CLI runs skipped: ${CLI} is absent (npm run build)`);
-  it.skipIf(!haveCli)(`through the built CLI: exit 0 with a consistent report, or exit 2 with one line and no folder (seed ${SEED + 1}, ${CLI_RUNS} runs)`, async () => {
-    const names = Object.keys(base).sort();
-    const seen = { 0: 0, 2: 0 };
-    await fc.assert(
-      fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: MAX_MUTATIONS }), (ms) => {
-        const k = counter++;
-        const tables = cloneTables(base);
-        for (const m of ms) apply(tables, m);
-        const feed = join(work, `cli-feed-${k}`);
-        const out = join(work, `cli-out-${k}`);
-        writeFeedFolder(tables, feed);
-        try {
-          const r = spawnSync(process.execPath, [CLI, 'audit', feed, '--out', out], { encoding: 'utf8', timeout: 60_000 });
-          const what = `after ${describeMutations(ms)}: exit ${r.status}, signal ${r.signal}, stderr ${JSON.stringify(r.stderr)}`;
-          if (r.signal !== null) throw new Error(`CLI killed ${what}`);
-          if (/^\s+at /m.test(r.stderr)) throw new Error(`stack frames on stderr ${what}`);
-          if (r.status === 2) {
-            const lines = r.stderr.trimEnd().split('\n');
-            if (lines.length !== 1 || !lines[0].startsWith('error: ')) throw new Error(`not one error line ${what}`);
-            if (existsSync(out)) throw new Error(`output folder left behind ${what}`);
-            const leftovers = readdirSync(work).filter((f) => f.includes(`cli-out-${k}.`));
-            if (leftovers.length) throw new Error(`temporary folders left behind: ${leftovers.join(', ')} ${what}`);
-            seen[2]++;
-          } else if (r.status === 0) {
-            const bad = inconsistencies(out);
-            if (bad.length) throw new Error(`inconsistent report ${what}:\n${bad.slice(0, 5).join('\n')}`);
-            seen[0]++;
-          } else throw new Error(`unexpected exit ${what}`);
-        } finally {
-          rmSync(feed, { recursive: true, force: true });
-          rmSync(out, { recursive: true, force: true });
-        }
-      }),
-      { seed: SEED + 1, numRuns: CLI_RUNS, path: process.env.STOPSPAN_FUZZ_CLI_PATH, endOnFailure: true },
-    );
-    expect(seen[0] + seen[2]).toBeGreaterThan(0);
-  });
+  it.skipIf(!haveCli)(
+    `through the built CLI: exit 0 with a consistent report, or exit 2 with one line and no folder (seed ${SEED + 1}, ${CLI_RUNS} runs)`,
+    async () => {
+      const names = Object.keys(base).sort();
+      const seen = { 0: 0, 2: 0 };
+      await fc.assert(
+        fc.property(fc.array(mutationArb(names), { minLength: 1, maxLength: MAX_MUTATIONS }), (ms) => {
+          const k = counter++;
+          const tables = cloneTables(base);
+          for (const m of ms) apply(tables, m);
+          const feed = join(work, `cli-feed-${k}`);
+          const out = join(work, `cli-out-${k}`);
+          writeFeedFolder(tables, feed);
+          try {
+            const r = spawnSync(process.execPath, [CLI, 'audit', feed, '--out', out], { encoding: 'utf8', timeout: 60_000 });
+            const what = `after ${describeMutations(ms)}: exit ${r.status}, signal ${r.signal}, stderr ${JSON.stringify(r.stderr)}`;
+            if (r.signal !== null) throw new Error(`CLI killed ${what}`);
+            if (/^\s+at /m.test(r.stderr)) throw new Error(`stack frames on stderr ${what}`);
+            if (r.status === 2) {
+              const lines = r.stderr.trimEnd().split('\n');
+              if (lines.length !== 1 || !lines[0].startsWith('error: ')) throw new Error(`not one error line ${what}`);
+              if (existsSync(out)) throw new Error(`output folder left behind ${what}`);
+              const leftovers = readdirSync(work).filter((f) => f.includes(`cli-out-${k}.`));
+              if (leftovers.length) throw new Error(`temporary folders left behind: ${leftovers.join(', ')} ${what}`);
+              seen[2]++;
+            } else if (r.status === 0) {
+              const bad = inconsistencies(out);
+              if (bad.length) throw new Error(`inconsistent report ${what}:\n${bad.slice(0, 5).join('\n')}`);
+              seen[0]++;
+            } else throw new Error(`unexpected exit ${what}`);
+          } finally {
+            rmSync(feed, { recursive: true, force: true });
+            rmSync(out, { recursive: true, force: true });
+          }
+        }),
+        { seed: SEED + 1, numRuns: CLI_RUNS, path: process.env.STOPSPAN_FUZZ_CLI_PATH, endOnFailure: true },
+      );
+      expect(seen[0] + seen[2]).toBeGreaterThan(0);
+    },
+  );
 });

@@ -31,7 +31,8 @@ type Damage =
 /** Offsets where zip structures start: local headers (PK\3\4), central records (PK\1\2), the end record (PK\5\6). */
 function structureOffsets(zip: Buffer): number[] {
   const out: number[] = [];
-  for (let i = zip.indexOf('PK'); i >= 0; i = zip.indexOf('PK', i + 1)) if ([1, 3, 5].includes(zip[i + 2]) && zip[i + 3] === zip[i + 2] + 1) out.push(i);
+  for (let i = zip.indexOf('PK'); i >= 0; i = zip.indexOf('PK', i + 1))
+    if ([1, 3, 5].includes(zip[i + 2]) && zip[i + 3] === zip[i + 2] + 1) out.push(i);
   return out;
 }
 const STRUCTS = structureOffsets(ZIP);
@@ -42,8 +43,16 @@ const position = fc.oneof(
   fc.tuple(fc.constantFrom(...STRUCTS), fc.nat({ max: 45 })).map(([s, k]) => Math.min(s + k, ZIP.length - 1)),
 );
 const damage: fc.Arbitrary<Damage> = fc.oneof(
-  fc.record({ kind: fc.constant('overwrite' as const), at: position, bytes: fc.array(fc.integer({ min: 0, max: 255 }), { minLength: 1, maxLength: 4 }) }),
-  fc.record({ kind: fc.constant('overwrite' as const), at: position, bytes: fc.constantFrom([0xff, 0xff, 0xff, 0xff], [0, 0, 0, 0], [0xff, 0xff], [0x7f]) }),
+  fc.record({
+    kind: fc.constant('overwrite' as const),
+    at: position,
+    bytes: fc.array(fc.integer({ min: 0, max: 255 }), { minLength: 1, maxLength: 4 }),
+  }),
+  fc.record({
+    kind: fc.constant('overwrite' as const),
+    at: position,
+    bytes: fc.constantFrom([0xff, 0xff, 0xff, 0xff], [0, 0, 0, 0], [0xff, 0xff], [0x7f]),
+  }),
   fc.record({ kind: fc.constant('zero-run' as const), at: position, length: fc.integer({ min: 1, max: 64 }) }),
   fc.record({ kind: fc.constant('truncate' as const), at: position }),
 );
@@ -66,7 +75,9 @@ beforeAll(() => {
 });
 afterAll(() => {
   if (work) rmSync(work, { recursive: true, force: true });
-  console.log(`zip fuzz outcome: ${tally.ok} audited, ${tally.refused} refused (${[...tally.codes].map(([c, n]) => `${c} ${n}`).join(', ')})`);
+  console.log(
+    `zip fuzz outcome: ${tally.ok} audited, ${tally.refused} refused (${[...tally.codes].map(([c, n]) => `${c} ${n}`).join(', ')})`,
+  );
 });
 
 describe('the minimal zip with damaged bytes', () => {
@@ -86,7 +97,8 @@ describe('the minimal zip with damaged bytes', () => {
           try {
             ({ result } = await auditFeed(feed));
           } catch (e) {
-            if (!isStopspanError(e)) throw new Error(`not a StopspanError after ${JSON.stringify(ds)}: ${(e as Error)?.stack ?? String(e)}`);
+            if (!isStopspanError(e))
+              throw new Error(`not a StopspanError after ${JSON.stringify(ds)}: ${(e as Error)?.stack ?? String(e)}`);
             tally.refused++;
             tally.codes.set(e.code, (tally.codes.get(e.code) ?? 0) + 1);
             return;
@@ -98,7 +110,8 @@ describe('the minimal zip with damaged bytes', () => {
           const ids = new Set(patterns.map((p) => p.pattern_id));
           for (const s of stops) {
             if (!ids.has(s.pattern_id)) throw new Error(`stop row names unknown pattern ${s.pattern_id} after ${JSON.stringify(ds)}`);
-            if (s.gap_before_m !== '' && !(Number(s.gap_before_m) >= 0)) throw new Error(`gap ${s.gap_before_m} after ${JSON.stringify(ds)}`);
+            if (s.gap_before_m !== '' && !(Number(s.gap_before_m) >= 0))
+              throw new Error(`gap ${s.gap_before_m} after ${JSON.stringify(ds)}`);
           }
           JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8'));
           tally.ok++;
@@ -117,7 +130,8 @@ describe('the minimal zip with damaged bytes', () => {
 async function storedStopTimes(): Promise<{ zip: Buffer; start: number; length: number }> {
   const dir = join(ROOT, 'fixtures', 'broken', 'minimal');
   const zip = new yazl.ZipFile();
-  for (const f of readdirSync(dir).sort()) zip.addBuffer(readFileSync(join(dir, f)), f, { compress: f !== 'stop_times.txt', mtime: new Date(Date.UTC(2026, 10, 1)) });
+  for (const f of readdirSync(dir).sort())
+    zip.addBuffer(readFileSync(join(dir, f)), f, { compress: f !== 'stop_times.txt', mtime: new Date(Date.UTC(2026, 10, 1)) });
   zip.end();
   const chunks: Buffer[] = [];
   for await (const c of zip.outputStream) chunks.push(c as Buffer);
@@ -134,27 +148,31 @@ describe('the minimal zip with bytes of a stored table changed', () => {
     // CRC-32 detects every burst of errors up to 32 bits long, so any such change must be caught [M: a
     // property of every degree-32 CRC polynomial, common practice in zip and Ethernet checks]
     await fc.assert(
-      fc.asyncProperty(fc.nat({ max: length - 4 }), fc.array(fc.integer({ min: 1, max: 255 }), { minLength: 1, maxLength: 4 }), async (at, xors) => {
-        const b = Buffer.from(zip);
-        xors.forEach((x, i) => (b[start + at + i] ^= x));
-        const path = join(work, `stored-${k++}.zip`);
-        writeFileSync(path, b);
-        const archive = await openFeed(path);
-        try {
-          let failed: unknown = null;
+      fc.asyncProperty(
+        fc.nat({ max: length - 4 }),
+        fc.array(fc.integer({ min: 1, max: 255 }), { minLength: 1, maxLength: 4 }),
+        async (at, xors) => {
+          const b = Buffer.from(zip);
+          xors.forEach((x, i) => (b[start + at + i] ^= x));
+          const path = join(work, `stored-${k++}.zip`);
+          writeFileSync(path, b);
+          const archive = await openFeed(path);
           try {
-            for await (const chunk of await archive.open('stop_times.txt')) void chunk;
-          } catch (e) {
-            failed = e;
+            let failed: unknown = null;
+            try {
+              for await (const chunk of await archive.open('stop_times.txt')) void chunk;
+            } catch (e) {
+              failed = e;
+            }
+            if (!isStopspanError(failed) || failed.code !== 'feed-unreadable' || !failed.message.includes('CRC-32')) {
+              throw new Error(`changed bytes at ${at} (${JSON.stringify(xors)}) were not refused by the CRC-32: ${String(failed)}`);
+            }
+          } finally {
+            await archive.close();
+            rmSync(path, { force: true });
           }
-          if (!isStopspanError(failed) || failed.code !== 'feed-unreadable' || !failed.message.includes('CRC-32')) {
-            throw new Error(`changed bytes at ${at} (${JSON.stringify(xors)}) were not refused by the CRC-32: ${String(failed)}`);
-          }
-        } finally {
-          await archive.close();
-          rmSync(path, { force: true });
-        }
-      }),
+        },
+      ),
       { seed: SEED, numRuns: RUNS, endOnFailure: true },
     );
   });

@@ -78,7 +78,18 @@ describe('openFeed on zips', () => {
     patchBytes(zip, 'Qtrips.txt', '/trips.txt');
     const w = new WarningSink();
     const archive = await openFeed(zip, { warnings: w });
-    expect(archive.names()).toEqual(['agency.txt', 'calendar.txt', 'calendar_dates.txt', 'feed_info.txt', 'frequencies.txt', 'routes.txt', 'shapes.txt', 'stop_times.txt', 'stops.txt', 'trips.txt']);
+    expect(archive.names()).toEqual([
+      'agency.txt',
+      'calendar.txt',
+      'calendar_dates.txt',
+      'feed_info.txt',
+      'frequencies.txt',
+      'routes.txt',
+      'shapes.txt',
+      'stop_times.txt',
+      'stops.txt',
+      'trips.txt',
+    ]);
     await archive.close();
     const unsafe = w.list().find((x) => x.code === 'unsafe-zip-path')!;
     expect(unsafe.count).toBe(2);
@@ -105,7 +116,11 @@ describe('openFeed on zips', () => {
     const zip = await zipFolder(BASIC);
     const buf = readFileSync(zip);
     // central directory header: signature 0x02014b50, uncompressed size at +24, name length at +28, name at +46 [C, PKWARE APPNOTE 4.3.12]
-    for (let p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02])); p >= 0; p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]), p + 4)) {
+    for (
+      let p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]));
+      p >= 0;
+      p = buf.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]), p + 4)
+    ) {
       const name = buf.toString('latin1', p + 46, p + 46 + buf.readUInt16LE(p + 28));
       if (name === 'agency.txt') buf.writeUInt32LE(10, p + 24);
     }
@@ -149,7 +164,13 @@ describe('openFeed on zips', () => {
 
   it('reads stored (uncompressed) entries as it reads deflated ones', async () => {
     const stored = join(tmp, 'stored.zip');
-    await writeZip(stored, readdirSync(BASIC).filter((n) => n.endsWith('.txt')).map((f) => [f, readFileSync(join(BASIC, f))] as const), { compress: false });
+    await writeZip(
+      stored,
+      readdirSync(BASIC)
+        .filter((n) => n.endsWith('.txt'))
+        .map((f) => [f, readFileSync(join(BASIC, f))] as const),
+      { compress: false },
+    );
     const a = await readFeed(stored);
     const b = await readFeed(await zipFolder(BASIC));
     expect(a.rowCounts).toEqual(b.rowCounts);
@@ -197,7 +218,10 @@ describe('openFeed on zips', () => {
 
 describe('openFeed on zips that lie or are damaged', () => {
   /** The basic feed's tables as name and bytes, in folder order. */
-  const basicTables = (): [string, Buffer][] => readdirSync(BASIC).filter((n) => n.endsWith('.txt')).map((f) => [f, readFileSync(join(BASIC, f))]);
+  const basicTables = (): [string, Buffer][] =>
+    readdirSync(BASIC)
+      .filter((n) => n.endsWith('.txt'))
+      .map((f) => [f, readFileSync(join(BASIC, f))]);
 
   /** A zip of the basic feed with stop_times.txt stored (not deflated), so its bytes can be edited in place. */
   async function storedZip(): Promise<Buffer> {

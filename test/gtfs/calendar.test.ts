@@ -13,7 +13,10 @@ const trip = (id: string, serviceId: string): Trip => ({ id, routeId: 'R1', serv
 
 describe('servicesOn', () => {
   const feed = {
-    calendar: [cal('WK', WEEKDAYS, '20260907', '20260930'), cal('SUN', [false, false, false, false, false, false, true], '20260901', '20261231')],
+    calendar: [
+      cal('WK', WEEKDAYS, '20260907', '20260930'),
+      cal('SUN', [false, false, false, false, false, false, true], '20260901', '20261231'),
+    ],
     calendarDates: [ex('WK', '20260914', 2), ex('HOL', '20260914', 1), ex('WK', '20260912', 1)],
   };
   it('runs a calendar row on its weekdays from start_date to end_date inclusive', () => {
@@ -42,7 +45,10 @@ describe('servicesOn', () => {
 
 describe('serviceRange and defaultAnalysisDate', () => {
   it('spans calendar rows and added dates, not removed ones', () => {
-    const feed = { calendar: [cal('WK', WEEKDAYS, '20260907', '20260930')], calendarDates: [ex('X', '20261003', 1), ex('WK', '20261231', 2)] };
+    const feed = {
+      calendar: [cal('WK', WEEKDAYS, '20260907', '20260930')],
+      calendarDates: [ex('X', '20261003', 1), ex('WK', '20261231', 2)],
+    };
     expect(serviceRange(feed)).toEqual({ start: '2026-09-07', end: '2026-10-03' });
     expect(serviceRange({ calendar: [], calendarDates: [] })).toBeNull();
   });
@@ -101,7 +107,10 @@ describe('chooseAnalysisDate: one rule for every command', () => {
   const feed = { calendar: [cal('WK', WEEKDAYS, '20261001', '20261031')], calendarDates: [ex('WK', '20261015', 2)] };
   const runs = new Map([['WK', 40]]);
   it('analyses --date when something runs on it, and refuses one on which nothing runs', () => {
-    expect(chooseAnalysisDate(feed, runs, { date: '2026-10-14', today: '2026-10-01' })).toMatchObject({ date: '2026-10-14', basis: 'asked' });
+    expect(chooseAnalysisDate(feed, runs, { date: '2026-10-14', today: '2026-10-01' })).toMatchObject({
+      date: '2026-10-14',
+      basis: 'asked',
+    });
     expect(() => chooseAnalysisDate(feed, runs, { date: '2030-01-01' })).toThrow(/no trip runs on 2030-01-01/);
     expect(() => chooseAnalysisDate(feed, runs, { date: '2026-10-15' })).toThrow(/no trip runs/); // removed by calendar_dates [C, GTFS Schedule reference, exception_type 2]
   });

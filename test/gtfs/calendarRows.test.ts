@@ -38,11 +38,13 @@ describe('calendar rows in a context feed', () => {
         value: main.context.value,
       });
       // the one line a user reads differs only by naming the context feed
-      expect(context.oneLine()).toBe(main.oneLine().replace(`${main.context.file}:`, `rail/${main.context.file}:`).replace(': ', `: context feed ${dir}: `));
+      expect(context.oneLine()).toBe(
+        main.oneLine().replace(`${main.context.file}:`, `rail/${main.context.file}:`).replace(': ', `: context feed ${dir}: `),
+      );
     });
   }
 
-  it('reads an empty calendar_dates.txt as absent, counted, as the audited feed\'s reader does', async () => {
+  it("reads an empty calendar_dates.txt as absent, counted, as the audited feed's reader does", async () => {
     const dir = feedCopy({ 'calendar_dates.txt': '' });
     const main = await readFeed(dir, { date: '2026-09-15' });
     expect(main.warnings.find((w) => w.code === 'empty-table')?.examples).toEqual(['calendar_dates.txt']);

@@ -62,7 +62,7 @@ const CASES: Record<string, string> = {
   'blank trailing lines': 'a,b\n1,2\n\n\n\r\n',
   'no final line break': 'a,b\n1,2',
   'empty fields': 'a,b,c\n,,\n1,,3\n',
-  'unicode': 'stop_id,stop_name\nV1,Vellmoor Strandpromenade – Süd\nV2,"Café ""Am Tor"""\nV3,東口\n',
+  unicode: 'stop_id,stop_name\nV1,Vellmoor Strandpromenade – Süd\nV2,"Café ""Am Tor"""\nV3,東口\n',
   'trailing commas in header and rows': 'a,b,,\n1,2,,\n',
   'CR only line breaks': 'a,b\r1,2\r3,4\r',
 };
@@ -81,7 +81,11 @@ function cutAt(bytes: Buffer, cuts: number[]): Buffer[] {
 }
 
 /** The records our reader hands on when it skips groups by the key column: header, then the kept rows. */
-async function oursGrouped(pieces: Array<string | Buffer>, column: string, keep: (v: string) => boolean): Promise<{ records: string[][]; lines: number[]; asked: string[]; count: number }> {
+async function oursGrouped(
+  pieces: Array<string | Buffer>,
+  column: string,
+  keep: (v: string) => boolean,
+): Promise<{ records: string[][]; lines: number[]; asked: string[]; count: number }> {
   const records: string[][] = [];
   const lines: number[] = [];
   const asked: string[] = [];
@@ -130,14 +134,21 @@ describe('the CSV reader skipping groups of rows by a key column', () => {
   it('with the key in a later column, by the same rule', async () => {
     const text = 'n,trip_id\n1,A\n2,B\n3,B\n4,A\n';
     const got = await oursGrouped([text], 'trip_id', (v) => v === 'A');
-    expect(got.records).toEqual([['n', 'trip_id'], ['1', 'A'], ['4', 'A']]);
+    expect(got.records).toEqual([
+      ['n', 'trip_id'],
+      ['1', 'A'],
+      ['4', 'A'],
+    ]);
     expect(got.asked).toEqual(['A', 'B', 'A']);
     expect(got.count).toBe(4);
   });
 
   it('on random grouped tables in random chunks', async () => {
     const key = fc.constantFrom('T1', 'T2', 'T10', 'T1x', '"T1"', ' T2');
-    const cell = fc.oneof(fc.stringMatching(/^[a-z0-9]{0,6}$/), fc.stringMatching(/^[a-z,\n ]{0,6}$/).map((s) => `"${s}"`));
+    const cell = fc.oneof(
+      fc.stringMatching(/^[a-z0-9]{0,6}$/),
+      fc.stringMatching(/^[a-z,\n ]{0,6}$/).map((s) => `"${s}"`),
+    );
     const row = fc.tuple(key, cell, cell).map((r) => r.join(','));
     await fc.assert(
       fc.asyncProperty(fc.array(row, { minLength: 1, maxLength: 30 }), fc.array(fc.nat(400), { maxLength: 4 }), async (rows, cuts) => {
@@ -297,12 +308,15 @@ describe('the CSV reader refuses', () => {
     expect(e1.code).toBe('csv-syntax');
     expect(e1.context).toMatchObject({ file: 'stops.txt', line: 3 });
     const e2 = await rejected(
-      readCsv(['a,b\n1,2\n3,', long.slice(0, 1500), long.slice(1500), '\n'].map((s) => Buffer.from(s)), {
-        file: 'stops.txt',
-        maxRecordChars: 1000,
-        onHeader: () => {},
-        onRow: () => {},
-      }),
+      readCsv(
+        ['a,b\n1,2\n3,', long.slice(0, 1500), long.slice(1500), '\n'].map((s) => Buffer.from(s)),
+        {
+          file: 'stops.txt',
+          maxRecordChars: 1000,
+          onHeader: () => {},
+          onRow: () => {},
+        },
+      ),
     );
     expect(e2.code).toBe('csv-syntax');
     expect(e2.context).toMatchObject({ file: 'stops.txt', line: 3 });
@@ -323,7 +337,9 @@ describe('the CSV reader says where and what, whatever the text', () => {
 
   it('a NUL inside a quoted field spanning lines: its own line and its field, whole or in pieces', async () => {
     // csv-parse reads the headsign as the third field, starting on line 2 with two line breaks before "Quay": line 4 [D]
-    expect((parse(text.replace('\0', ''), { columns: true }) as Record<string, string>[])[0].trip_headsign).toBe('Harbour\nvia "Mill"\nand Quay');
+    expect((parse(text.replace('\0', ''), { columns: true }) as Record<string, string>[])[0].trip_headsign).toBe(
+      'Harbour\nvia "Mill"\nand Quay',
+    );
     const e = thrown(() => parseCsv(text, { file: 'trips.txt' }));
     expect(e.context).toMatchObject({ file: 'trips.txt', line: 4, column: 'trip_headsign' });
     for (const cut of [30, 45, 50, 60]) {
@@ -368,7 +384,12 @@ describe('the CSV reader over a Node stream', () => {
     const rows: string[][] = [];
     const seen: number[] = [];
     let header: string[] = [];
-    await readCsv(buffered(40), { file: 't.csv', onHeader: (h) => (header = h), onRow: (r) => rows.push(r.toArray()), onBytes: (n) => seen.push(n) });
+    await readCsv(buffered(40), {
+      file: 't.csv',
+      onHeader: (h) => (header = h),
+      onRow: (r) => rows.push(r.toArray()),
+      onBytes: (n) => seen.push(n),
+    });
     expect([header, ...rows]).toEqual(oracle(table)); // csv-parse, the reference reader
     expect(seen[seen.length - 1]).toBe(Buffer.byteLength(table));
   });

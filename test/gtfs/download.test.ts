@@ -66,7 +66,10 @@ afterAll(async () => {
   cleanupCopies();
 });
 
-const ours = () => readdirSync(tmpdir()).filter((n) => n.startsWith('stopspan-dl-')).sort();
+const ours = () =>
+  readdirSync(tmpdir())
+    .filter((n) => n.startsWith('stopspan-dl-'))
+    .sort();
 
 describe('downloadFeed', () => {
   it('saves a zip to a temporary file that cleanup removes', async () => {

@@ -32,10 +32,16 @@ export function editTable(name: string, line: number, edit: (old: string) => str
 }
 
 /** Zips a folder's .txt files (optionally under a prefix such as 'gtfs/') into a temp .zip; returns its path. */
-export async function zipFolder(dir: string, { prefix = '', extra = {} }: { prefix?: string; extra?: Record<string, Buffer | string> } = {}): Promise<string> {
+export async function zipFolder(
+  dir: string,
+  { prefix = '', extra = {} }: { prefix?: string; extra?: Record<string, Buffer | string> } = {},
+): Promise<string> {
   const out = join(mkdtempSync(join(tmpdir(), 'stopspan-zip-')), 'feed.zip');
   made.push(out.slice(0, out.lastIndexOf('/')));
-  const files: [string, Buffer | string][] = readdirSync(dir).filter((n) => n.endsWith('.txt')).sort().map((f) => [prefix + f, readFileSync(join(dir, f))]);
+  const files: [string, Buffer | string][] = readdirSync(dir)
+    .filter((n) => n.endsWith('.txt'))
+    .sort()
+    .map((f) => [prefix + f, readFileSync(join(dir, f))]);
   await writeZip(out, [...files, ...Object.entries(extra)]);
   return out;
 }

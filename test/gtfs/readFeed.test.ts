@@ -66,7 +66,15 @@ describe('readFeed on the Vellmoor fixture', () => {
   it('reads stops, trimming padded coordinates and counting them', async () => {
     const feed = await readFeed(BASIC);
     const s1 = feed.stops[feed.stopIndex.get('S1')!];
-    expect(s1).toEqual({ id: 'S1', code: '101', name: 'Harbour Station Bay A', lat: 52.5001, lon: 13.4001, locationType: 0, parentStation: 'ST1' });
+    expect(s1).toEqual({
+      id: 'S1',
+      code: '101',
+      name: 'Harbour Station Bay A',
+      lat: 52.5001,
+      lon: 13.4001,
+      locationType: 0,
+      parentStation: 'ST1',
+    });
     // [C, GTFS Schedule reference, location_type: empty means 0, a stop or platform]
     expect(feed.stops[feed.stopIndex.get('S2')!]).toMatchObject({ name: 'Quay Street, North', locationType: 0 });
     expect(feed.stops[feed.stopIndex.get('ST1')!].locationType).toBe(1);
@@ -95,15 +103,13 @@ describe('readFeed on the Vellmoor fixture', () => {
     const feed = await readFeed(feedCopy({ 'trips.txt': trips + '\n' }), { date: 'all' });
     expect(warning(feed, 'trip-unknown-route')?.count).toBe(2);
     const got = [...feed.trips.values()].map((t) => [t.id, t.routeId, t.serviceId, t.directionId, t.shapeId, t.headsign]);
-    expect(got.sort()).toEqual(
-      [
-        ['T1', 'R1', 'WK', 0, 'SH1', 'Harbour'],
-        ['T2', 'R1', 'WK', 1, '', 'Harbour'],
-        ['T3', 'R2', 'EXTRA', 0, 'SH1', 'Old Town'],
-        ['T4', 'R1', 'WK', 0, 'SH1', 'Harbour'],
-        ['TF', 'R2', 'WK', 0, 'SH1', ''],
-      ],
-    );
+    expect(got.sort()).toEqual([
+      ['T1', 'R1', 'WK', 0, 'SH1', 'Harbour'],
+      ['T2', 'R1', 'WK', 1, '', 'Harbour'],
+      ['T3', 'R2', 'EXTRA', 0, 'SH1', 'Old Town'],
+      ['T4', 'R1', 'WK', 0, 'SH1', 'Harbour'],
+      ['TF', 'R2', 'WK', 0, 'SH1', ''],
+    ]);
   });
 
   it("with date 'all' keeps every trip and sets no date", async () => {
@@ -157,7 +163,8 @@ describe('readFeed on the Vellmoor fixture', () => {
     const events: ProgressEvent[] = [];
     await readFeed(BASIC, { onProgress: (e) => events.push(e) });
     const stages = new Set(events.map((e) => e.stage));
-    for (const t of ['agency.txt', 'routes.txt', 'stops.txt', 'trips.txt', 'stop_times.txt', 'shapes.txt']) expect(stages.has(`read ${t}`)).toBe(true);
+    for (const t of ['agency.txt', 'routes.txt', 'stops.txt', 'trips.txt', 'stop_times.txt', 'shapes.txt'])
+      expect(stages.has(`read ${t}`)).toBe(true);
     const st = events.filter((e) => e.stage === 'read stop_times.txt');
     expect(st[st.length - 1].done).toBe(readFileSync(join(BASIC, 'stop_times.txt')).length);
   });
@@ -199,7 +206,8 @@ describe('readFeed on the Vellmoor fixture', () => {
     for (const r of rows) byTrip.set(r.split(',')[0], [...(byTrip.get(r.split(',')[0]) ?? []), r]);
     const groupedReversed = [...byTrip.values()].reverse().flatMap((rs) => [...rs].reverse());
     const interleaved = [...rows].sort((a, b) => a.split(',')[4].localeCompare(b.split(',')[4]) || a.localeCompare(b));
-    const plain = (f: Feed) => [...f.stopTimes].map(([id, st]) => [id, Object.fromEntries(Object.entries(st).map(([k, v]) => [k, [...v]]))]);
+    const plain = (f: Feed) =>
+      [...f.stopTimes].map(([id, st]) => [id, Object.fromEntries(Object.entries(st).map(([k, v]) => [k, [...v]]))]);
     const base = await readFeed(BASIC, { date: 'all' });
     for (const order of [groupedReversed, interleaved]) {
       const feed = await readFeed(feedCopy({ 'stop_times.txt': [head, ...order].join('\n') + '\n' }), { date: 'all' });
@@ -226,7 +234,9 @@ describe('readFeed on the Vellmoor fixture', () => {
   });
 
   it('counts blank direction_id and trips on a service no calendar defines', async () => {
-    const trips = readFileSync(join(BASIC, 'trips.txt'), 'utf8').replace('R1,WK,T1,Uplands,0,SH1', 'R1,WK,T1,Uplands,,SH1') + 'R1,GHOST,TG,Nowhere,0,SH1\n';
+    const trips =
+      readFileSync(join(BASIC, 'trips.txt'), 'utf8').replace('R1,WK,T1,Uplands,0,SH1', 'R1,WK,T1,Uplands,,SH1') +
+      'R1,GHOST,TG,Nowhere,0,SH1\n';
     const feed = await readFeed(feedCopy({ 'trips.txt': trips }), { date: 'all' });
     expect(feed.trips.get('T1')!.directionId).toBe(-1);
     expect(warning(feed, 'blank-direction-id')).toMatchObject({ count: 1, examples: ['T1'] });
@@ -257,7 +267,9 @@ describe('readFeed refuses', () => {
     const e = await rejected(readFeed(feedCopy({ 'trips.txt': 'route_id,service_id,headsign\nR1,WK,x\n' })));
     expect(e.code).toBe('missing-column');
     expect(e.context).toMatchObject({ file: 'trips.txt', column: 'trip_id' });
-    expect(e.oneLine()).toBe('trips.txt:1 column trip_id: required column trip_id is missing: the header has "route_id", "service_id", "headsign"');
+    expect(e.oneLine()).toBe(
+      'trips.txt:1 column trip_id: required column trip_id is missing: the header has "route_id", "service_id", "headsign"',
+    );
   });
 
   it('a header whose name carries an unseen character: shows the names it saw, escaped, and the near match', async () => {
@@ -280,13 +292,20 @@ describe('readFeed refuses', () => {
   it('times past the bound of 168 hours, which 32-bit columns could not hold at 596 524 hours', async () => {
     // 596 524 h = 2 147 486 400 s > 2^31 - 1 = 2 147 483 647 [D]
     for (const bad of ['596524:00:00', '168:00:01', '999999:59:59']) {
-      const e = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 4, (l) => l.replace('08:00:00,08:00:00', `${bad},08:00:00`)) })));
+      const e = await rejected(
+        readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 4, (l) => l.replace('08:00:00,08:00:00', `${bad},08:00:00`)) })),
+      );
       expect(e.code, bad).toBe('bad-value');
       expect(e.context).toEqual({ file: 'stop_times.txt', line: 4, column: 'arrival_time', value: bad });
       expect(e.message).toContain('168:00:00');
     }
-    const freq = await rejected(readFeed(feedCopy({ 'frequencies.txt': editTable('frequencies.txt', 2, (l) => l.replace('08:00:00', '600000:00:00')) })));
-    expect(freq).toMatchObject({ code: 'bad-value', context: { file: 'frequencies.txt', line: 2, column: 'end_time', value: '600000:00:00' } });
+    const freq = await rejected(
+      readFeed(feedCopy({ 'frequencies.txt': editTable('frequencies.txt', 2, (l) => l.replace('08:00:00', '600000:00:00')) })),
+    );
+    expect(freq).toMatchObject({
+      code: 'bad-value',
+      context: { file: 'frequencies.txt', line: 2, column: 'end_time', value: '600000:00:00' },
+    });
   });
 
   it('numbers that are not decimal, and a quoted blank coordinate, instead of reading 10 or 0', async () => {
@@ -298,8 +317,13 @@ describe('readFeed refuses', () => {
       const e = await rejected(readFeed(feedCopy({ 'stops.txt': editTable('stops.txt', 5, (l) => l.replace('52.5060', blank)) })));
       expect(e, blank).toMatchObject({ code: 'bad-value', context: { file: 'stops.txt', line: 5, column: 'stop_lat' } });
     }
-    const dist = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 2, (l) => l.replace('1200.5', '0x4B0')) })));
-    expect(dist).toMatchObject({ code: 'bad-value', context: { file: 'stop_times.txt', line: 2, column: 'shape_dist_traveled', value: '0x4B0' } });
+    const dist = await rejected(
+      readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 2, (l) => l.replace('1200.5', '0x4B0')) })),
+    );
+    expect(dist).toMatchObject({
+      code: 'bad-value',
+      context: { file: 'stop_times.txt', line: 2, column: 'shape_dist_traveled', value: '0x4B0' },
+    });
   });
 });
 
@@ -316,7 +340,9 @@ describe('readFeed reads an optional table with no header as absent, however it 
 
   it('malformed times, naming file, line, column and value', async () => {
     for (const bad of ['25:99:00', '-1:00:00', '8:0:00', 'noon']) {
-      const e = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 4, (l) => l.replace('08:00:00,08:00:00', `${bad},08:00:00`)) })));
+      const e = await rejected(
+        readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 4, (l) => l.replace('08:00:00,08:00:00', `${bad},08:00:00`)) })),
+      );
       expect(e.code, bad).toBe('bad-value');
       expect(e.context).toEqual({ file: 'stop_times.txt', line: 4, column: 'arrival_time', value: bad });
     }
@@ -327,7 +353,9 @@ describe('readFeed reads an optional table with no header as absent, however it 
     expect(lon).toMatchObject({ code: 'bad-value', context: { file: 'stops.txt', line: 4, column: 'stop_lon', value: '13.4O4O' } });
     const nan = await rejected(readFeed(feedCopy({ 'stops.txt': editTable('stops.txt', 5, (l) => l.replace('52.5060', 'north')) })));
     expect(nan).toMatchObject({ code: 'bad-value', context: { file: 'stops.txt', line: 5, column: 'stop_lat', value: 'north' } });
-    const seq = await rejected(readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 2, (l) => l.replace(',S4,10,', ',S4,ten,')) })));
+    const seq = await rejected(
+      readFeed(feedCopy({ 'stop_times.txt': editTable('stop_times.txt', 2, (l) => l.replace(',S4,10,', ',S4,ten,')) })),
+    );
     expect(seq).toMatchObject({ code: 'bad-value', context: { file: 'stop_times.txt', line: 2, column: 'stop_sequence', value: 'ten' } });
   });
 
@@ -378,7 +406,7 @@ describe.skipIf(!HAVE_FEEDS)('readFeed on the real feeds', () => {
     expect(served(feed)).toBe(989);
   });
 
-  it("gives every kept trip the route, service, headsign, shape and direction its trips.txt row has", async () => {
+  it('gives every kept trip the route, service, headsign, shape and direction its trips.txt row has', async () => {
     // csv-parse (the reference reader) over trips.txt as the oracle: the reader reuses a column's string
     // from the row before when the value repeats, and this checks that it never carries one over wrongly
     const file = join(FEEDS, 'nyct-bus-manhattan.zip');
@@ -396,7 +424,14 @@ describe.skipIf(!HAVE_FEEDS)('readFeed on the real feeds', () => {
     for (const r of rows) {
       const t = feed.trips.get(r.trip_id);
       if (!t) continue;
-      expect(t, r.trip_id).toEqual({ id: r.trip_id, routeId: r.route_id, serviceId: r.service_id, directionId: r.direction_id === '' ? -1 : Number(r.direction_id), headsign: r.trip_headsign ?? '', shapeId: r.shape_id ?? '' });
+      expect(t, r.trip_id).toEqual({
+        id: r.trip_id,
+        routeId: r.route_id,
+        serviceId: r.service_id,
+        directionId: r.direction_id === '' ? -1 : Number(r.direction_id),
+        headsign: r.trip_headsign ?? '',
+        shapeId: r.shape_id ?? '',
+      });
       checked++;
     }
     expect(checked).toBe(feed.trips.size);
@@ -436,9 +471,12 @@ describe('readFeed cap on trips', () => {
       for (let k = 0; k < n; k++) lines.push(`R1,WK,FLOOD-${k},Uplands,0,`);
       return lines.join('\n') + '\n';
     };
-    const stopTimes = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nFLOOD-0,08:00:00,08:00:00,S1,1\nFLOOD-0,08:05:00,08:05:00,S2,2\n';
+    const stopTimes =
+      'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nFLOOD-0,08:00:00,08:00:00,S1,1\nFLOOD-0,08:05:00,08:05:00,S2,2\n';
     const started = Date.now();
-    const e = await rejected(readFeed(feedCopy({ 'trips.txt': trips(MAX_TRIPS + 1), 'stop_times.txt': stopTimes, 'frequencies.txt': null })));
+    const e = await rejected(
+      readFeed(feedCopy({ 'trips.txt': trips(MAX_TRIPS + 1), 'stop_times.txt': stopTimes, 'frequencies.txt': null })),
+    );
     expect(e.code).toBe('feed-too-large');
     expect(e.context.file).toBe('trips.txt');
     expect(e.context.line).toBe(MAX_TRIPS + 2);

@@ -7,7 +7,13 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { readCsv } from '../../src/gtfs/csv.js';
 import { PROFILE_CAPS, StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
-import { MAX_STOPS_PER_TRIP, STOP_TIMES_OPTIONAL, STOP_TIMES_REQUIRED, StopTimesRowReader, type StopTimesColumns } from '../../src/gtfs/stopTimesRows.js';
+import {
+  MAX_STOPS_PER_TRIP,
+  STOP_TIMES_OPTIONAL,
+  STOP_TIMES_REQUIRED,
+  StopTimesRowReader,
+  type StopTimesColumns,
+} from '../../src/gtfs/stopTimesRows.js';
 import { rejected } from '../helpers/errors.js';
 import type { TripStopTimes } from '../../src/gtfs/types.js';
 
@@ -18,7 +24,13 @@ function fold(rows: Row[], trips: number): { store: StopTimesStore; folder: Trip
   for (const r of rows) folder.push(r.t, r.stop, r.seq, r.arr, r.dep, r.dist, r.tp, r.ns);
   folder.finish();
   const ids = Array.from({ length: trips }, (_, k) => `T${k}`);
-  const store = new StopTimesStore(ids, new Map(ids.map((id, k) => [id, k])), folder.profileOfTrip, folder.baseOfTrip, folder.interner.profiles);
+  const store = new StopTimesStore(
+    ids,
+    new Map(ids.map((id, k) => [id, k])),
+    folder.profileOfTrip,
+    folder.baseOfTrip,
+    folder.interner.profiles,
+  );
   return { store, folder };
 }
 
@@ -36,7 +48,15 @@ function reference(rows: Row[], trips: number): { byTrip: Map<string, Row[]>; dr
 }
 
 function plain(st: TripStopTimes): Omit<Row, 't'>[] {
-  return Array.from(st.stopIdx, (stop, q) => ({ stop, seq: st.seq[q], arr: st.arrS[q], dep: st.depS[q], dist: st.shapeDist[q], tp: st.timepoint[q], ns: st.noService[q] }));
+  return Array.from(st.stopIdx, (stop, q) => ({
+    stop,
+    seq: st.seq[q],
+    arr: st.arrS[q],
+    dep: st.depS[q],
+    dist: st.shapeDist[q],
+    tp: st.timepoint[q],
+    ns: st.noService[q],
+  }));
 }
 
 const rowArb = fc.record({
@@ -108,7 +128,12 @@ describe('the folded stop_times store', () => {
       timepoint: Uint8Array.from([1, 1]),
       noService: Uint8Array.from([0, 0]),
     });
-    const of = tripProfiles(new Map([['a', st(100)], ['b', st(700)]]));
+    const of = tripProfiles(
+      new Map([
+        ['a', st(100)],
+        ['b', st(700)],
+      ]),
+    );
     expect(of.profile('a')!.profileId).toBe(of.profile('b')!.profileId);
     expect(of.profile('b')!.baseS).toBe(700);
     expect([...of.profile('b')!.profile.arrRel]).toEqual([0, 90]);
@@ -116,7 +141,10 @@ describe('the folded stop_times store', () => {
 });
 
 /** Reads stop_times text (given in pieces) through the row reader into a folder; counts the rows handed on. */
-async function readThrough(pieces: Iterable<string>, tripIds: string[]): Promise<{ folder: TripFolder; reader: StopTimesRowReader; handed: number }> {
+async function readThrough(
+  pieces: Iterable<string>,
+  tripIds: string[],
+): Promise<{ folder: TripFolder; reader: StopTimesRowReader; handed: number }> {
   const folder = new TripFolder(tripIds.length);
   let handed = 0;
   const sink = {
@@ -159,19 +187,36 @@ describe('the stop_times row reader on floods of rows', () => {
   });
 
   it('folds random tables with floods of repeated rows as the rows without the repeats (seeded)', async () => {
-    const hms = (x: number) => `${String(Math.floor(x / 3600)).padStart(2, '0')}:${String(Math.floor(x / 60) % 60).padStart(2, '0')}:${String(x % 60).padStart(2, '0')}`;
-    const floodRow = fc.record({ t: fc.nat(3), stop: fc.nat(8), seq: fc.integer({ min: 0, max: 6 }), arr: fc.integer({ min: 0, max: 90_000 }), times: fc.oneof(fc.constant(1), fc.integer({ min: 2, max: 400 })) });
+    const hms = (x: number) =>
+      `${String(Math.floor(x / 3600)).padStart(2, '0')}:${String(Math.floor(x / 60) % 60).padStart(2, '0')}:${String(x % 60).padStart(2, '0')}`;
+    const floodRow = fc.record({
+      t: fc.nat(3),
+      stop: fc.nat(8),
+      seq: fc.integer({ min: 0, max: 6 }),
+      arr: fc.integer({ min: 0, max: 90_000 }),
+      times: fc.oneof(fc.constant(1), fc.integer({ min: 2, max: 400 })),
+    });
     await fc.assert(
       fc.asyncProperty(fc.array(floodRow, { maxLength: 30 }), fc.boolean(), async (raw, grouped) => {
         const runs = grouped ? [...raw].sort((a, b) => a.t - b.t) : raw;
-        const rows: Row[] = runs.flatMap((r) => Array.from({ length: r.times }, () => ({ t: r.t, stop: r.stop, seq: r.seq, arr: r.arr, dep: r.arr, dist: NaN, tp: 1, ns: 0 })));
-        const text = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n' + rows.map((r) => `T${r.t},${hms(r.arr)},${hms(r.arr)},S${r.stop + 1},${r.seq}\n`).join('');
+        const rows: Row[] = runs.flatMap((r) =>
+          Array.from({ length: r.times }, () => ({ t: r.t, stop: r.stop, seq: r.seq, arr: r.arr, dep: r.arr, dist: NaN, tp: 1, ns: 0 })),
+        );
+        const text =
+          'trip_id,arrival_time,departure_time,stop_id,stop_sequence\n' +
+          rows.map((r) => `T${r.t},${hms(r.arr)},${hms(r.arr)},S${r.stop + 1},${r.seq}\n`).join('');
         const ids = ['T0', 'T1', 'T2', 'T3'];
         const { folder, reader, handed } = await readThrough([text], ids);
         const want = reference(rows, 4);
         expect(reader.repeated + folder.repeated).toBe(want.dropped);
         expect(handed).toBeLessThanOrEqual(runs.length); // a flood reaches the folder as one row
-        const store = new StopTimesStore(ids, new Map(ids.map((id, k) => [id, k])), folder.profileOfTrip, folder.baseOfTrip, folder.interner.profiles);
+        const store = new StopTimesStore(
+          ids,
+          new Map(ids.map((id, k) => [id, k])),
+          folder.profileOfTrip,
+          folder.baseOfTrip,
+          folder.interner.profiles,
+        );
         expect([...store.keys()].sort()).toEqual([...want.byTrip.keys()].map((k) => `T${k.slice(1)}`).sort());
         for (const [id, mine] of want.byTrip) expect(plain(store.get(id)!)).toEqual(mine.map(({ t: _t, ...r }) => r));
       }),
@@ -180,7 +225,8 @@ describe('the stop_times row reader on floods of rows', () => {
   });
 
   it('keeps the first row of a repeated stop_sequence whether repeats are adjacent or not, as sorting did', async () => {
-    const text = 'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nT1,08:00:00,08:00:00,S1,1\nT1,09:00:00,09:00:00,S2,1\nT1,08:05:00,08:05:00,S2,2\nT1,10:00:00,10:00:00,S1,1\n';
+    const text =
+      'trip_id,arrival_time,departure_time,stop_id,stop_sequence\nT1,08:00:00,08:00:00,S1,1\nT1,09:00:00,09:00:00,S2,1\nT1,08:05:00,08:05:00,S2,2\nT1,10:00:00,10:00:00,S1,1\n';
     const { folder, reader } = await readThrough([text], ['T1']);
     expect(reader.repeated + folder.repeated).toBe(2);
     const p = folder.interner.profiles[folder.profileOfTrip[0]];

@@ -41,7 +41,12 @@ export interface FeedSpec {
 export function street(n: number, spacingM = 400, prefix = 'S'): StopSpec[] {
   const lat = 52.37;
   const mPerDegLon = haversineM(lat, 0, lat, 1);
-  return Array.from({ length: n }, (_, k) => ({ id: `${prefix}${k + 1}`, lat, lon: 4.9 + (k * spacingM) / mPerDegLon, name: `Vellmoor ${prefix}${k + 1}` }));
+  return Array.from({ length: n }, (_, k) => ({
+    id: `${prefix}${k + 1}`,
+    lat,
+    lon: 4.9 + (k * spacingM) / mPerDegLon,
+    name: `Vellmoor ${prefix}${k + 1}`,
+  }));
 }
 
 export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } {
@@ -56,7 +61,14 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
   }));
   const stopIndex = new Map(stops.map((s, i) => [s.id, i]));
   const trips: TripRows[] = spec.trips.map((t) => ({
-    trip: { id: t.id, routeId: t.routeId ?? 'R1', serviceId: t.serviceId ?? 'WK', directionId: t.directionId ?? 0, headsign: 'Vellmoor Centraal', shapeId: t.shapeId ?? '' },
+    trip: {
+      id: t.id,
+      routeId: t.routeId ?? 'R1',
+      serviceId: t.serviceId ?? 'WK',
+      directionId: t.directionId ?? 0,
+      headsign: 'Vellmoor Centraal',
+      shapeId: t.shapeId ?? '',
+    },
     stopIdx: t.times.map((x) => stopIndex.get(x[0]) ?? -1),
     seq: t.times.map((_, i) => i + 1),
     arrS: t.times.map((x) => x[1]),
@@ -70,7 +82,13 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
     date: null,
     contentHash: 'h' + spec.stops.length,
     stops,
-    routes: (spec.routes ?? [{ id: 'R1' }]).map((r) => ({ id: r.id!, agencyId: r.agencyId ?? '', shortName: r.shortName ?? r.id!, longName: r.longName ?? '', type: r.type ?? 3 })),
+    routes: (spec.routes ?? [{ id: 'R1' }]).map((r) => ({
+      id: r.id!,
+      agencyId: r.agencyId ?? '',
+      shortName: r.shortName ?? r.id!,
+      longName: r.longName ?? '',
+      type: r.type ?? 3,
+    })),
     trips,
     shapes: (spec.shapes ?? []).map((sh) => ({ id: sh.id, lat: sh.pts.map((q) => q[0]), lon: sh.pts.map((q) => q[1]), dist: sh.dist })),
     calendar: spec.calendar,
@@ -96,7 +114,7 @@ export function buildFeed(spec: FeedSpec): { feed: Feed; patterns: PatternSet } 
       tripIds: [t.id],
       stopIdx: idx,
       distAlongM: dist,
-      offsetFromShapeM: t.times.map((x) => (t.shapeId ? spec.offsets?.[x[0]] ?? 0 : null)),
+      offsetFromShapeM: t.times.map((x) => (t.shapeId ? (spec.offsets?.[x[0]] ?? 0) : null)),
       distanceSource: t.shapeId ? 'shape_projection' : 'great_circle',
       timepoint: idx.map(() => t.timepoint !== false),
       gapRunTimeS,

@@ -55,7 +55,14 @@ export function handFeed(spec: FeedSpec): Feed {
   const trips: TripRows[] = spec.trips.map((t) => {
     const arr = t.times.map((s) => (s.arr === null || s.arr === undefined ? -1 : s.arr));
     return {
-      trip: { id: t.id, routeId: t.route ?? 'V1', serviceId: t.service ?? 'WK', directionId: t.dir ?? 0, headsign: t.headsign ?? 'Vellmoor Harbour', shapeId: t.shape ?? '' },
+      trip: {
+        id: t.id,
+        routeId: t.route ?? 'V1',
+        serviceId: t.service ?? 'WK',
+        directionId: t.dir ?? 0,
+        headsign: t.headsign ?? 'Vellmoor Harbour',
+        shapeId: t.shape ?? '',
+      },
       stopIdx: t.times.map((s) => {
         const i = stopIndex.get(s.stop);
         if (i === undefined) throw new Error(`handFeed: unknown stop ${s.stop}`);

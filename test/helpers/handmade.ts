@@ -8,7 +8,15 @@ const LAT0 = 52.1;
 const M_PER_DEG_LAT = 111_320;
 
 function stopAt(id: string, name: string, eastM: number, northM = 0): Stop {
-  return { id, code: '', name, lat: LAT0 + northM / M_PER_DEG_LAT, lon: 4.3 + eastM / (M_PER_DEG_LAT * Math.cos((LAT0 * Math.PI) / 180)), locationType: 0, parentStation: '' };
+  return {
+    id,
+    code: '',
+    name,
+    lat: LAT0 + northM / M_PER_DEG_LAT,
+    lon: 4.3 + eastM / (M_PER_DEG_LAT * Math.cos((LAT0 * Math.PI) / 180)),
+    locationType: 0,
+    parentStation: '',
+  };
 }
 
 export interface Handmade {
@@ -25,7 +33,13 @@ export interface HandmadeOptions {
   sharedAt?: number;
 }
 
-export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700], tripsPerDay = 60, runTimeS, timepoints = [], sharedAt = 5 }: HandmadeOptions = {}): Handmade {
+export function handmadeNetwork({
+  distM = [0, 150, 260, 420, 520, 700, 860, 1000, 1120, 1300, 1550, 1700],
+  tripsPerDay = 60,
+  runTimeS,
+  timepoints = [],
+  sharedAt = 5,
+}: HandmadeOptions = {}): Handmade {
   const stops: Stop[] = distM.map((d, j) => stopAt(`v1-${j}`, `Vellmoor Street ${j}`, d));
   const v2 = [stopAt('v2-n', 'North Gate', distM[sharedAt], 600), stopAt('v2-s', 'South Gate', distM[sharedAt], -600)];
   stops.push(...v2);
@@ -43,7 +57,14 @@ export function handmadeNetwork({ distM = [0, 150, 260, 420, 520, 700, 860, 1000
       gapRunTimeS: d.slice(1).map((x, j) => ((x - d[j]) / d[d.length - 1]) * rt),
       runTimeS: rt,
     });
-  const v1 = mk('V1:0:1', 'V1', distM.map((_, j) => j), distM, tripsPerDay, runTimeS ?? distM[n - 1] / 4);
+  const v1 = mk(
+    'V1:0:1',
+    'V1',
+    distM.map((_, j) => j),
+    distM,
+    tripsPerDay,
+    runTimeS ?? distM[n - 1] / 4,
+  );
   const v2p = mk('V2:0:1', 'V2', [stopIndex.get('v2-n')!, sharedAt, stopIndex.get('v2-s')!], [0, 600, 1200], 20, 300);
   const routesAtStop = routesAtStopOf([v1, v2p]);
   const feed: Feed = assembleFeed({

@@ -47,7 +47,15 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
       stopIndex.set(id, stops.length);
       idx.push(stops.length);
       // a straight line northwards, one line per 0.01 degree of longitude
-      stops.push({ id, code: '', name: `Vellmoor ${id}`, lat: 45 + dist[i] / M_PER_DEG_LAT, lon: 10 + li * 0.01, locationType: 0, parentStation: '' });
+      stops.push({
+        id,
+        code: '',
+        name: `Vellmoor ${id}`,
+        lat: 45 + dist[i] / M_PER_DEG_LAT,
+        lon: 10 + li * 0.01,
+        locationType: 0,
+        parentStation: '',
+      });
     }
     // schedule: 7 m/s between stops plus 20 s dwell at interior stops
     const rel: { arr: number[]; dep: number[] } = { arr: [], dep: [] };
@@ -74,7 +82,10 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
         noService: idx.map(() => 0),
       });
       const instanceStarts = line.frequency
-        ? Array.from({ length: Math.ceil((line.frequency.endS - line.frequency.startS) / line.frequency.headwayS) }, (_, j) => line.frequency!.startS + j * line.frequency!.headwayS)
+        ? Array.from(
+            { length: Math.ceil((line.frequency.endS - line.frequency.startS) / line.frequency.headwayS) },
+            (_, j) => line.frequency!.startS + j * line.frequency!.headwayS,
+          )
         : [s0];
       for (const st of instanceStarts) {
         simTrips.push({
@@ -94,7 +105,14 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
         });
       }
     });
-    if (line.frequency) frequencies.push({ tripId: tripIds[0], startS: line.frequency.startS, endS: line.frequency.endS, headwayS: line.frequency.headwayS, exactTimes: 1 });
+    if (line.frequency)
+      frequencies.push({
+        tripId: tripIds[0],
+        startS: line.frequency.startS,
+        endS: line.frequency.endS,
+        headwayS: line.frequency.headwayS,
+        exactTimes: 1,
+      });
     patterns.push(
       handPattern({
         id: `${line.routeId}:0:1`,
@@ -126,5 +144,9 @@ export function buildNetwork(lines: LineSpec[], { timeZone = 'Etc/GMT-1', date =
   });
   const routesAtStop = new Map<number, Set<string>>();
   for (const p of patterns) for (const s of p.stopIdx) routesAtStop.set(s, new Set([p.id]));
-  return { feed, patterns: { date: `${date.slice(0, 4)}-${date.slice(4, 6)}-${date.slice(6)}`, patterns, routesAtStop }, sim: { timeZone, date, trips: simTrips } };
+  return {
+    feed,
+    patterns: { date: `${date.slice(0, 4)}-${date.slice(4, 6)}-${date.slice(6)}`, patterns, routesAtStop },
+    sim: { timeZone, date, trips: simTrips },
+  };
 }

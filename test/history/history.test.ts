@@ -7,7 +7,16 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { spawn, spawnSync } from 'node:child_process';
 import Database from 'better-sqlite3';
-import { openHistory, recordRun, readHistory, checkRunRow, auditRunRow, SCHEMA_VERSION, type RunRecord, type RunRow } from '../../src/history/index.js';
+import {
+  openHistory,
+  recordRun,
+  readHistory,
+  checkRunRow,
+  auditRunRow,
+  SCHEMA_VERSION,
+  type RunRecord,
+  type RunRow,
+} from '../../src/history/index.js';
 import { historyHtml, lineChartSvg, seriesOf, varies, yRange } from '../../src/report/historyHtml.js';
 import { historyText } from '../../src/report/historyText.js';
 import { HISTORY_APPLICATION_ID } from '../../src/history/openHistory.js';
@@ -38,7 +47,7 @@ describe('openHistory', () => {
     const db = openHistory(path);
     expect(db.pragma('journal_mode', { simple: true })).toBe('wal');
     expect(Number(db.pragma('busy_timeout', { simple: true }))).toBe(10_000);
-    expect((db.prepare('SELECT version FROM schema_version').all() as { version: number }[])).toEqual([{ version: SCHEMA_VERSION }]);
+    expect(db.prepare('SELECT version FROM schema_version').all() as { version: number }[]).toEqual([{ version: SCHEMA_VERSION }]);
     db.close();
     const again = openHistory(path);
     expect(again.prepare('SELECT COUNT(*) AS n FROM schema_version').get()).toEqual({ n: 1 });
@@ -61,7 +70,12 @@ describe('openHistory', () => {
     other.close();
     const bytes = readFileSync(path);
     for (const readOnly of [false, true]) {
-      expect(() => openHistory(path, { readOnly })).toThrow(expect.objectContaining({ code: 'history-db', message: expect.stringMatching(/not a stopspan history database: it is another program's \(it holds depots\)/) }));
+      expect(() => openHistory(path, { readOnly })).toThrow(
+        expect.objectContaining({
+          code: 'history-db',
+          message: expect.stringMatching(/not a stopspan history database: it is another program's \(it holds depots\)/),
+        }),
+      );
     }
     expect(readFileSync(path).equals(bytes)).toBe(true);
     expect(existsSync(path + '-wal')).toBe(false);
@@ -114,7 +128,7 @@ describe('recordRun and readHistory', () => {
     db.close();
   });
 
-  it('keeps one feed\'s runs with feed: its publisher, or its source when it names none', () => {
+  it("keeps one feed's runs with feed: its publisher, or its source when it names none", () => {
     const db = openHistory(join(dir, 'feeds.sqlite'));
     recordRun(db, row(0));
     recordRun(db, row(1, { feed: { source: 'kanaal.zip', contentHash: 'k', version: 'v', publisher: '' } }));
@@ -129,7 +143,9 @@ describe('recordRun and readHistory', () => {
     const db = openHistory(join(dir, 'atomic.sqlite'));
     recordRun(db, row(1));
     db.exec(`CREATE TRIGGER boom BEFORE INSERT ON run_findings WHEN NEW.code = 'boom' BEGIN SELECT RAISE(ABORT, 'boom'); END`);
-    expect(() => recordRun(db, row(2, { findings: { 'twin-stops': 1, boom: 1 } }))).toThrow(expect.objectContaining({ code: 'history-db' }));
+    expect(() => recordRun(db, row(2, { findings: { 'twin-stops': 1, boom: 1 } }))).toThrow(
+      expect.objectContaining({ code: 'history-db' }),
+    );
     expect(db.prepare('SELECT COUNT(*) AS n FROM runs').get()).toEqual({ n: 1 });
     expect(db.prepare('SELECT COUNT(*) AS n FROM run_findings').get()).toEqual({ n: 2 });
     db.close();
@@ -178,7 +194,9 @@ describe('rendering', () => {
     // wide gaps (2, 2), errors (0, 0) and coordinate-fault (0, 0) are flat and said in a sentence instead
     expect(html.match(/<svg /g)!.length).toBe(5);
     expect(html).not.toContain('aria-label="Wide gaps"');
-    expect(html).toMatch(/The same in every run: Wide gaps 2; Kinds of finding at error severity 0; Finding coordinate-fault \(count\) 0\./);
+    expect(html).toMatch(
+      /The same in every run: Wide gaps 2; Kinds of finding at error severity 0; Finding coordinate-fault \(count\) 0\./,
+    );
     expect(html).toContain('<polyline');
     expect(historyText(rows).split('\n')[1]).toMatch(/^2026-10-10\s+check\s+v0\s+hash0\s+300\.0\s+10\s+2\s+0\s+0\s+0\s+0$/);
     expect(historyText([])).toMatch(/no runs/);
@@ -195,7 +213,17 @@ const record = (runDate: string, extra: Partial<RunRecord> = {}): RunRecord => (
   runDate,
   command: 'check',
   feed: { source: 'vellmoor.zip', contentHash: 'h', version: 'v', publisher: 'Vellmoor Transit' },
-  headline: { analysisDate: runDate, patterns: 40, stops: 1186, trips: 900, medianGapM: 300, meanOptimalSpacingM: null, closeStops: null, wideGaps: null, paxMinLostPerDay: null },
+  headline: {
+    analysisDate: runDate,
+    patterns: 40,
+    stops: 1186,
+    trips: 900,
+    medianGapM: 300,
+    meanOptimalSpacingM: null,
+    closeStops: null,
+    wideGaps: null,
+    paxMinLostPerDay: null,
+  },
   severities: { error: 0, warning: 0, info: 0 },
   findings: { 'twin-stops': 0 },
   ...extra,
@@ -205,7 +233,11 @@ const cy = (svg: string): number[] => [...svg.matchAll(/<circle cx="([\d.]+)" cy
 
 describe('the history page shows change', () => {
   it('places runs by date: a run ten days after the second sits ten times as far along as the second from the first', () => {
-    const svg = lineChartSvg({ title: 'Stops served', values: [1186, 1187, 1189] }, ['2026-10-01', '2026-10-02', '2026-10-12'], ['A', 'A', 'A']);
+    const svg = lineChartSvg(
+      { title: 'Stops served', values: [1186, 1187, 1189] },
+      ['2026-10-01', '2026-10-02', '2026-10-12'],
+      ['A', 'A', 'A'],
+    );
     const [a, b, c] = cx(svg);
     expect((c - a) / (b - a)).toBeCloseTo(11, 6); // 11 days against 1 day [D]
   });
@@ -221,12 +253,22 @@ describe('the history page shows change', () => {
   it('draws one line per feed and never joins runs of different feeds', () => {
     const rows = [
       record('2026-10-01'),
-      record('2026-10-02', { feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' }, headline: { ...record('x').headline, stops: 300 } }),
+      record('2026-10-02', {
+        feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' },
+        headline: { ...record('x').headline, stops: 300 },
+      }),
       record('2026-10-03', { headline: { ...record('x').headline, stops: 1189 } }),
-      record('2026-10-04', { feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' }, headline: { ...record('x').headline, stops: 310 } }),
+      record('2026-10-04', {
+        feed: { source: 'other.zip', contentHash: 'o', version: 'v', publisher: 'Kanaalbus' },
+        headline: { ...record('x').headline, stops: 310 },
+      }),
     ];
     const stops = seriesOf(rows).find((s) => s.title === 'Stops served')!;
-    const svg = lineChartSvg(stops, rows.map((r) => r.runDate), rows.map((r) => r.feed.publisher));
+    const svg = lineChartSvg(
+      stops,
+      rows.map((r) => r.runDate),
+      rows.map((r) => r.feed.publisher),
+    );
     const lines = [...svg.matchAll(/<polyline points="([^"]+)"/g)].map((m) => m[1].split(' ').length);
     expect(lines).toEqual([2, 2]);
     expect(historyHtml(rows)).toContain('2 feeds');
@@ -235,7 +277,10 @@ describe('the history page shows change', () => {
   });
 
   it('does not plot audit runs as zero errors: they ran no checks', () => {
-    const rows = [record('2026-10-01', { severities: { error: 1, warning: 0, info: 0 }, findings: { 'service-ended': 1 } }), record('2026-10-02', { command: 'audit', findings: {} })];
+    const rows = [
+      record('2026-10-01', { severities: { error: 1, warning: 0, info: 0 }, findings: { 'service-ended': 1 } }),
+      record('2026-10-02', { command: 'audit', findings: {} }),
+    ];
     const errors = seriesOf(rows).find((s) => s.title === 'Kinds of finding at error severity')!;
     expect(errors.values).toEqual([1, null]);
     expect(varies(errors)).toBe(false);
@@ -307,7 +352,9 @@ describe('without the optional SQLite binding', () => {
     const bin = join(copy, 'dist/bin/stopspan.js');
     const r = spawnSync(process.execPath, [bin, 'history', db], { cwd: copy, encoding: 'utf8', env: { ...process.env, NO_COLOR: '1' } });
     expect(r.status).toBe(2);
-    expect(r.stderr).toBe(`error: ${db}: the run history needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12\n`);
+    expect(r.stderr).toBe(
+      `error: ${db}: the run history needs the optional package better-sqlite3 (version 12), which is not installed here: run npm install better-sqlite3@12\n`,
+    );
     const v = spawnSync(process.execPath, [bin, '--version'], { cwd: copy, encoding: 'utf8' });
     expect(v.status).toBe(0);
     expect(v.stdout).toMatch(/^\d+\.\d+\.\d+/);

@@ -23,9 +23,15 @@ describe('history tables in the README', () => {
   it('lists exactly the columns of every table a new history holds', () => {
     const db = openHistory(join(dir, 'h.sqlite'));
     try {
-      const tables = (db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as { name: string }[]).map((t) => t.name);
+      const tables = (
+        db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as {
+          name: string;
+        }[]
+      ).map((t) => t.name);
       expect(tables).toEqual(['run_findings', 'runs', 'schema_version']);
-      const actual = tables.flatMap((t) => (db.prepare(`PRAGMA table_info(${t})`).all() as { name: string }[]).map((c) => `${t}.${c.name}`));
+      const actual = tables.flatMap((t) =>
+        (db.prepare(`PRAGMA table_info(${t})`).all() as { name: string }[]).map((c) => `${t}.${c.name}`),
+      );
       expect(documentedColumns().sort()).toEqual(actual.sort());
     } finally {
       db.close();

@@ -18,7 +18,15 @@ const M_PER_DEG_LAT = 111_320;
 const M_PER_DEG_LON = M_PER_DEG_LAT * Math.cos((LAT0 * Math.PI) / 180);
 const lat = (northM: number) => LAT0 + northM / M_PER_DEG_LAT;
 const lon = (eastM: number) => 4.3 + eastM / M_PER_DEG_LON;
-const stopAt = (id: string, eastM: number): Stop => ({ id, code: '', name: `Vellmoor ${id}`, lat: lat(0), lon: lon(eastM), locationType: 0, parentStation: '' });
+const stopAt = (id: string, eastM: number): Stop => ({
+  id,
+  code: '',
+  name: `Vellmoor ${id}`,
+  lat: lat(0),
+  lon: lon(eastM),
+  locationType: 0,
+  parentStation: '',
+});
 
 const MAIN_M = [0, 150, 300, 450, 600, 750, 2150, 2300, 2450]; // the gap: 750 -> 2150 m, 1.4 km
 
@@ -28,7 +36,10 @@ afterAll(() => rmSync(tmp, { recursive: true, force: true }));
 /** A land-use CSV of [east m, north m, population, jobs] rows. */
 function layer(name: string, rows: [number, number, number, number][]) {
   const file = join(tmp, `${name}.csv`);
-  writeFileSync(file, ['lat,lon,population,jobs', ...rows.map(([e, n, p, j]) => `${lat(n).toFixed(7)},${lon(e).toFixed(7)},${p},${j}`)].join('\n') + '\n');
+  writeFileSync(
+    file,
+    ['lat,lon,population,jobs', ...rows.map(([e, n, p, j]) => `${lat(n).toFixed(7)},${lon(e).toFixed(7)},${p},${j}`)].join('\n') + '\n',
+  );
   return readLandUse(file);
 }
 

@@ -34,7 +34,11 @@ describe('readLandUse', () => {
       JSON.stringify({
         type: 'FeatureCollection',
         features: [
-          { type: 'Feature', properties: { population: 90 }, geometry: { type: 'MultiPoint', coordinates: [pt(10.03, 45.02), pt(10.031, 45.02), pt(10.032, 45.02)] } },
+          {
+            type: 'Feature',
+            properties: { population: 90 },
+            geometry: { type: 'MultiPoint', coordinates: [pt(10.03, 45.02), pt(10.031, 45.02), pt(10.032, 45.02)] },
+          },
           { type: 'Feature', properties: { population: 10, jobs: 7 }, geometry: { type: 'Point', coordinates: pt(10.03, 45.021) } },
         ],
       }),
@@ -58,7 +62,8 @@ describe('readLandUse', () => {
   });
 
   describe('a FeatureCollection read a feature at a time reads as the whole document parsed at once', () => {
-    const feat = (population: number, lon: number) => `{"type":"Feature","geometry":{"type":"Point","coordinates":[${lon},45.02]},"properties":{"population":${population},"note":"a \\"quoted\\" [name] {x}"}}`;
+    const feat = (population: number, lon: number) =>
+      `{"type":"Feature","geometry":{"type":"Point","coordinates":[${lon},45.02]},"properties":{"population":${population},"note":"a \\"quoted\\" [name] {x}"}}`;
     const write = (name: string, text: string) => {
       const f = join(tmp, name);
       writeFileSync(f, text);
@@ -68,21 +73,33 @@ describe('readLandUse', () => {
     const people = (f: string) => [...readLandUse(f).amounts[0]];
 
     it('with other members around the features, spaces and line breaks', () => {
-      const f = write('members.geojson', `\n { "name" : "Vellmoor blocks", "features" :\n [ ${feat(5, 10.03)} ,\n\t${feat(7, 10.031)} ] , "crs": {"type": "name", "properties": {"name": "urn:ogc:def:crs:OGC:1.3:CRS84"}}, "type":"FeatureCollection" }\n`);
+      const f = write(
+        'members.geojson',
+        `\n { "name" : "Vellmoor blocks", "features" :\n [ ${feat(5, 10.03)} ,\n\t${feat(7, 10.031)} ] , "crs": {"type": "name", "properties": {"name": "urn:ogc:def:crs:OGC:1.3:CRS84"}}, "type":"FeatureCollection" }\n`,
+      );
       expect(people(f)).toEqual(people(plain));
       expect(people(f)).toEqual([5, 7]);
     });
 
     it('with the key written with an escape, or given twice (the last one counts, as in JSON)', () => {
       expect(people(write('escaped.geojson', `{"type":"FeatureCollection","feat\\u0075res":[${feat(5, 10.03)}]}`))).toEqual([5]);
-      expect(people(write('twice.geojson', `{"type":"FeatureCollection","features":[${feat(5, 10.03)}],"features":[${feat(9, 10.03)},${feat(1, 10.03)}]}`))).toEqual([9, 1]);
+      expect(
+        people(
+          write(
+            'twice.geojson',
+            `{"type":"FeatureCollection","features":[${feat(5, 10.03)}],"features":[${feat(9, 10.03)},${feat(1, 10.03)}]}`,
+          ),
+        ),
+      ).toEqual([9, 1]);
     });
 
     it('reports a file that is not valid JSON as such even after a bad feature, and a bad feature by its number', () => {
       const broken = write('broken.geojson', `{"type":"FeatureCollection","features":[${feat(-5, 10.03)},${feat(7, 10.031)} oops]}`);
       expect(thrown(() => readLandUse(broken)).oneLine()).toMatch(/broken\.geojson: land-use file is not valid JSON/);
       const bad = write('bad.geojson', `{"type":"FeatureCollection","features":[${feat(5, 10.03)},${feat(-7, 10.031)}]}`);
-      expect(thrown(() => readLandUse(bad)).oneLine()).toMatch(/bad\.geojson column population: feature 2: invalid population: a count cannot be negative/);
+      expect(thrown(() => readLandUse(bad)).oneLine()).toMatch(
+        /bad\.geojson column population: feature 2: invalid population: a count cannot be negative/,
+      );
     });
   });
 });

@@ -77,7 +77,7 @@ describe('removal and addition effects', () => {
     expect(after.throughPerDay).toBeLessThan(before.throughPerDay);
     expect(before.throughPerDay).toBeCloseTo(d.loadDepartingPerDay[1] - d.boardPerDay[1], 9);
   });
-  it('counts the neighbours\' extra stopping under the Poisson model', () => {
+  it("counts the neighbours' extra stopping under the Poisson model", () => {
     const pos = [0, 200, 400, 600, 800];
     const c = uniformEnds(pos, 0.02, 10); // lambda = 0.4 per stop per trip
     const s: CostSettings = { ...always, stoppingModel: 'poisson' };
@@ -95,7 +95,14 @@ describe('removal and addition effects', () => {
     const all = [0, 1, 2, 3, 4, 5, 6];
     for (const m of [1, 2, 3, 4, 5]) {
       const e = removalEffect(prepOf(c), m, s);
-      const delta = (servedSetCostS(c, all.filter((k) => k !== m), s) - servedSetCostS(c, all, s)) / 60;
+      const delta =
+        (servedSetCostS(
+          c,
+          all.filter((k) => k !== m),
+          s,
+        ) -
+          servedSetCostS(c, all, s)) /
+        60;
       expect(e.netPaxMinPerDay).toBeCloseTo(delta, 9);
     }
   });

@@ -9,7 +9,13 @@ const kin = { doorTimeS: 3, reentryDelayS: 2, accelMps2: 1.22, decelMps2: 1.22 }
 function scheduleS(V: number, D: number, n: number, boardings: number, trafficDelayS = 0): number {
   // T = D/V + n(t_doors + t_reentry) + (n+1) V (1/2a + 1/2d) + boardings * 2.75 s + traffic delay
   // [C] 2.75 s per boarding: Levinson 1983 (TRR 915), via design notes
-  return D / V + n * (kin.doorTimeS + kin.reentryDelayS) + (n + 1) * V * (1 / (2 * kin.accelMps2) + 1 / (2 * kin.decelMps2)) + boardings * 2.75 + trafficDelayS;
+  return (
+    D / V +
+    n * (kin.doorTimeS + kin.reentryDelayS) +
+    (n + 1) * V * (1 / (2 * kin.accelMps2) + 1 / (2 * kin.decelMps2)) +
+    boardings * 2.75 +
+    trafficDelayS
+  );
 }
 
 describe('estimateCruiseSpeed', () => {
@@ -40,11 +46,28 @@ describe('estimateCruiseSpeed', () => {
 
   it('keeps the lost time per stop at the typical speed however congested the schedule', () => {
     // HCM 2010 transit delay expression: 9.17 s of braking and accelerating at 25 mph with 4.0 ft/s2 [S, via design notes]
-    const slow = estimateCruiseSpeed({ runTimeS: 6000, lengthM: 8000, expectedStopsServed: 30, boardingsPerTrip: 40, ...kin, routeType: 3 });
-    const slower = estimateCruiseSpeed({ runTimeS: 9000, lengthM: 8000, expectedStopsServed: 30, boardingsPerTrip: 40, ...kin, routeType: 3 });
+    const slow = estimateCruiseSpeed({
+      runTimeS: 6000,
+      lengthM: 8000,
+      expectedStopsServed: 30,
+      boardingsPerTrip: 40,
+      ...kin,
+      routeType: 3,
+    });
+    const slower = estimateCruiseSpeed({
+      runTimeS: 9000,
+      lengthM: 8000,
+      expectedStopsServed: 30,
+      boardingsPerTrip: 40,
+      ...kin,
+      routeType: 3,
+    });
     expect(slow.cruiseSpeedMps).toBe(slower.cruiseSpeedMps);
     expect(slower.trafficDelayS - slow.trafficDelayS).toBeCloseTo(3000, 6);
-    expect(lostTimePerStopS(slow.cruiseSpeedMps, { doorTimeS: 0, reentryDelayS: 0, accelMps2: 1.22, decelMps2: 1.22 })).toBeCloseTo(9.17, 1);
+    expect(lostTimePerStopS(slow.cruiseSpeedMps, { doorTimeS: 0, reentryDelayS: 0, accelMps2: 1.22, decelMps2: 1.22 })).toBeCloseTo(
+      9.17,
+      1,
+    );
   });
 
   it('takes the typical speed, never the highest, for a schedule faster than any plausible speed explains', () => {
@@ -66,8 +89,13 @@ describe('estimateCruiseSpeed', () => {
 
   it('uses the bounds of the route type, extended types included', () => {
     const T = scheduleS(30, 40000, 5, 0);
-    expect(estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 2 }).cruiseSpeedMps).toBeCloseTo(30, 9);
-    expect(estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 700 }).basis).toBe('implausible');
+    expect(
+      estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 2 })
+        .cruiseSpeedMps,
+    ).toBeCloseTo(30, 9);
+    expect(
+      estimateCruiseSpeed({ runTimeS: T, lengthM: 40000, expectedStopsServed: 5, boardingsPerTrip: 0, ...kin, routeType: 700 }).basis,
+    ).toBe('implausible');
     expect(cruiseSpeedBoundsMps(704)).toEqual(cruiseSpeedBoundsMps(3));
   });
 });

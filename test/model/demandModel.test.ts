@@ -81,7 +81,10 @@ function randomServed(n: number, rand: () => number): number[] {
 }
 
 describe('riders passing a stop, the objective and removals against an exact enumeration of pairs', () => {
-  for (const [label, meanTripM] of [['uniform pairs', 1e9], ['exponential trip lengths', 350]] as const) {
+  for (const [label, meanTripM] of [
+    ['uniform pairs', 1e9],
+    ['exponential trip lengths', 350],
+  ] as const) {
     it(`${label}, corridors of 3 to 12 stops`, () => {
       const rand = rng(20261203);
       for (let trial = 0; trial < 40; trial++) {
@@ -108,7 +111,13 @@ describe('riders passing a stop, the objective and removals against an exact enu
         const all = [...Array(n).keys()];
         const prep = { corridor: c } as unknown as PreparedPattern;
         for (let m = 1; m < n - 1; m++) {
-          const want = (e.cost(all.filter((k) => k !== m), always) - e.cost(all, always)) / 60;
+          const want =
+            (e.cost(
+              all.filter((k) => k !== m),
+              always,
+            ) -
+              e.cost(all, always)) /
+            60;
           expect(removalEffect(prep, m, always).netPaxMinPerDay).toBeCloseTo(want, 6);
         }
       }
@@ -134,7 +143,10 @@ describe('the square-root law on a long uniform corridor', () => {
   it('12 km, stops every 100 m, mean trip 3 km: the reported optimum and the optimiser agree with sqrt(2 v p L / w)', () => {
     const distM = Array.from({ length: 121 }, (_, k) => k * 100);
     const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 100, sharedAt: 60 });
-    const r = runAudit(feed, patterns, { params: { mean_trip_length_m: 3000, cruise_speed_mps: 11.176, stopping_model: 'always' }, generatedAt: '2026-10-14T00:00:00Z' });
+    const r = runAudit(feed, patterns, {
+      params: { mean_trip_length_m: 3000, cruise_speed_mps: 11.176, stopping_model: 'always' },
+      generatedAt: '2026-10-14T00:00:00Z',
+    });
     const p = r.patterns.find((x) => x.patternId === 'V1:0:1')!;
     expect(p.meanTripLengthM).toBeCloseTo(3000, 0);
     // [C] the square-root law (uniform demand, every stop served): s* = sqrt(2 v p L / w), v walk speed,
@@ -148,7 +160,10 @@ describe('the square-root law on a long uniform corridor', () => {
 
   it('a pattern too short for the mean asked for holds what fits and says so, counted', () => {
     const { feed, patterns } = handmadeNetwork({ distM: Array.from({ length: 31 }, (_, k) => k * 100) });
-    const r = runAudit(feed, patterns, { params: { mean_trip_length_m: 3000, stopping_model: 'always' }, generatedAt: '2026-10-14T00:00:00Z' });
+    const r = runAudit(feed, patterns, {
+      params: { mean_trip_length_m: 3000, stopping_model: 'always' },
+      generatedAt: '2026-10-14T00:00:00Z',
+    });
     const w = r.warnings.find((x) => x.code === 'pattern-short-for-trip');
     expect(w?.count).toBe(2);
     const p = r.patterns.find((x) => x.patternId === 'V1:0:1')!;
@@ -156,10 +171,12 @@ describe('the square-root law on a long uniform corridor', () => {
     expect(p.meanTripLengthM).toBeLessThan(1100); // about a third of 3 km
   });
 
-  it("the optimum no longer grows with the route: 10 km and 20 km patterns with a 3 km mean trip get the same", () => {
+  it('the optimum no longer grows with the route: 10 km and 20 km patterns with a 3 km mean trip get the same', () => {
     const at = (km: number) => {
       const { feed, patterns } = handmadeNetwork({ distM: Array.from({ length: km * 10 + 1 }, (_, k) => k * 100), sharedAt: 3 });
-      return runAudit(feed, patterns, { params: { mean_trip_length_m: 3000, cruise_speed_mps: 11.176, stopping_model: 'always' } }).patterns.find((x) => x.patternId === 'V1:0:1')!;
+      return runAudit(feed, patterns, {
+        params: { mean_trip_length_m: 3000, cruise_speed_mps: 11.176, stopping_model: 'always' },
+      }).patterns.find((x) => x.patternId === 'V1:0:1')!;
     };
     expect(at(20).optimalSpacingM / at(10).optimalSpacingM).toBeCloseTo(1, 3);
   });
@@ -167,7 +184,11 @@ describe('the square-root law on a long uniform corridor', () => {
 
 describe('assumed demand where stops are far apart for the trips asked', () => {
   it('keeps every rider: the shortest trips the pattern holds, never none or infinitely many', () => {
-    for (const [posM, meanTripM] of [[[0, 44_215], 39_000], [[0, 5000, 12_000], 3000], [[0, 50, 30_000, 30_050], 200]] as const) {
+    for (const [posM, meanTripM] of [
+      [[0, 44_215], 39_000],
+      [[0, 5000, 12_000], 3000],
+      [[0, 50, 30_000, 30_050], 200],
+    ] as const) {
       const d = assumedDemand('far', [...posM], 10, { boardingsPerTripKm: 3, catchmentHalfMaxM: 400, meanTripM });
       const D = posM[posM.length - 1] - posM[0];
       expect(d.ridersPerDay).toBeCloseTo(3 * (D / 1000) * 10, 6);

@@ -95,7 +95,7 @@ describe('stopping probability', () => {
   it('is 1 under the always-stops model', () => {
     expect(stopProbability(0.01, { model: 'always' })).toBe(1);
   });
-  it('keeps an observed share at today\'s demand and scales its implied rate when demand moves', () => {
+  it("keeps an observed share at today's demand and scales its implied rate when demand moves", () => {
     expect(stopProbability(1, { model: 'observed', observedShare: 0.5, baseLambda: 1 })).toBeCloseTo(0.5, 12);
     // implied rate ln 2 doubled: 1 - exp(-2 ln 2) = 0.75
     expect(stopProbability(2, { model: 'observed', observedShare: 0.5, baseLambda: 1 })).toBeCloseTo(0.75, 12);
@@ -105,7 +105,10 @@ describe('stopping probability', () => {
 describe('local optimum', () => {
   it('reduces to the square-root law under uniform demand (N = rho L / 2)', () => {
     // [D] design notes section 4
-    const v = 1.2, p = 20, L = 3000, w = 2;
+    const v = 1.2,
+      p = 20,
+      L = 3000,
+      w = 2;
     for (const rho of [0.001, 0.01, 0.2]) {
       const N = (rho * L) / 2;
       expect(localOptimalSpacingM(N, rho, { walkSpeedMps: v, lostTimePerStopS: p, walkWeight: w })).toBeCloseTo(

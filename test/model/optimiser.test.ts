@@ -8,7 +8,6 @@ import { relativeCost } from '../../src/model/band.js';
 // @ts-expect-error: a plain ES module of the generators, without type declarations
 import { prng as rng } from '../../scripts/lib/seeded.mjs';
 
-
 function bruteForce(c: Corridor, s: CostSettings, forced: boolean[], maxGapM: number): { costS: number; kept: number[] } {
   const n = c.n;
   let best = { costS: Infinity, kept: [] as number[] };
@@ -19,7 +18,8 @@ function bruteForce(c: Corridor, s: CostSettings, forced: boolean[], maxGapM: nu
     kept.push(n - 1);
     if (forced.some((f, j) => f && !kept.includes(j))) continue;
     let ok = true;
-    for (let t = 0; t + 1 < kept.length; t++) if (kept[t + 1] !== kept[t] + 1 && c.posM[kept[t + 1]] - c.posM[kept[t]] > maxGapM) ok = false;
+    for (let t = 0; t + 1 < kept.length; t++)
+      if (kept[t + 1] !== kept[t] + 1 && c.posM[kept[t + 1]] - c.posM[kept[t]] > maxGapM) ok = false;
     if (!ok) continue;
     const cost = servedSetCostS(c, kept, s);
     if (cost < best.costS) best = { costS: cost, kept };
@@ -41,7 +41,13 @@ describe('optimiseStops', () => {
       const trips = 5 + Math.floor(rand() * 100);
       const c = new Corridor({ posM: pos, boardPerDay: board, alightPerDay: alight, tripsPerDay: trips });
       const model = (['always', 'poisson'] as const)[trial % 2];
-      const s: CostSettings = { walkSpeedMps: 1.2, walkWeight: 1 + rand() * 2, lostTimePerStopS: 5 + rand() * 25, stoppingModel: model, operatingPaxSPerBusS: trial % 3 === 0 ? rand() * 3 : 0 };
+      const s: CostSettings = {
+        walkSpeedMps: 1.2,
+        walkWeight: 1 + rand() * 2,
+        lostTimePerStopS: 5 + rand() * 25,
+        stoppingModel: model,
+        operatingPaxSPerBusS: trial % 3 === 0 ? rand() * 3 : 0,
+      };
       const forced = pos.map((_, j) => j > 0 && j < n - 1 && rand() < 0.15);
       const maxGapM = trial % 4 === 0 ? Infinity : 400 + rand() * 800;
       const dp = optimiseStops(c, s, { forced, maxGapM });

@@ -9,12 +9,38 @@ import { thrown } from '../helpers/errors.js';
 describe('normalizeParams', () => {
   it('fills every name of the design notes with its default', () => {
     expect([...PARAM_NAMES].sort()).toEqual(
-      ['walk_speed_mps', 'walk_weight', 'door_time_s', 'accel_mps2', 'decel_mps2', 'reentry_delay_s', 'cruise_speed_mps', 'mean_trip_length_m', 'band_tolerance', 'max_gap_m', 'stopping_model', 'assumed_boardings_per_trip_km', 'operating_cost_per_vehicle_hour', 'value_of_time_per_hour'].sort(),
+      [
+        'walk_speed_mps',
+        'walk_weight',
+        'door_time_s',
+        'accel_mps2',
+        'decel_mps2',
+        'reentry_delay_s',
+        'cruise_speed_mps',
+        'mean_trip_length_m',
+        'band_tolerance',
+        'max_gap_m',
+        'stopping_model',
+        'assumed_boardings_per_trip_km',
+        'operating_cost_per_vehicle_hour',
+        'value_of_time_per_hour',
+      ].sort(),
     );
     const { values, given } = normalizeParams(undefined);
     expect(given).toEqual([]);
     // [S] HCM 2010 via design notes: 4.0 ft/s2 = 1.22 m/s2; common practice 1.2 m/s walking; design band 5 %
-    expect(values).toMatchObject({ walk_speed_mps: 1.2, walk_weight: 2, door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, band_tolerance: 0.05, max_gap_m: 800, stopping_model: 'auto', cruise_speed_mps: null });
+    expect(values).toMatchObject({
+      walk_speed_mps: 1.2,
+      walk_weight: 2,
+      door_time_s: 5,
+      accel_mps2: 1.22,
+      decel_mps2: 1.22,
+      reentry_delay_s: 2,
+      band_tolerance: 0.05,
+      max_gap_m: 800,
+      stopping_model: 'auto',
+      cruise_speed_mps: null,
+    });
   });
   it('takes user values, also numbers given as strings, and reports them as user-set', () => {
     const np = normalizeParams({ walk_weight: '2.5', stopping_model: 'always', cruise_speed_mps: 9 });
@@ -33,12 +59,24 @@ describe('normalizeParams', () => {
     expect(e.message).toMatch(/^invalid parameter walk_speed: expected one of walk_speed_mps/);
   });
   it('rejects bad values with what was expected and what was given', () => {
-    expect(thrown(() => normalizeParams({ walk_speed_mps: -1 })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got -1');
-    expect(thrown(() => normalizeParams({ band_tolerance: 5 })).message).toBe('invalid parameter band_tolerance: expected a number between 0 and 1 (0.05 means 5 %), got 5');
-    expect(thrown(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe('invalid parameter stopping_model: expected "auto", "always", "poisson" or "observed", got "sometimes"');
-    expect(thrown(() => normalizeParams({ door_time_s: 'abc' })).message).toBe('invalid parameter door_time_s: expected a number of 0 or more, got "abc"');
-    expect(thrown(() => normalizeParams({ max_gap_m: null })).message).toMatch(/invalid parameter max_gap_m: expected a number above 0, got null/);
-    expect(thrown(() => normalizeParams({ operating_cost_per_vehicle_hour: 100 })).message).toMatch(/invalid parameter value_of_time_per_hour/);
+    expect(thrown(() => normalizeParams({ walk_speed_mps: -1 })).message).toBe(
+      'invalid parameter walk_speed_mps: expected a number above 0, got -1',
+    );
+    expect(thrown(() => normalizeParams({ band_tolerance: 5 })).message).toBe(
+      'invalid parameter band_tolerance: expected a number between 0 and 1 (0.05 means 5 %), got 5',
+    );
+    expect(thrown(() => normalizeParams({ stopping_model: 'sometimes' })).message).toBe(
+      'invalid parameter stopping_model: expected "auto", "always", "poisson" or "observed", got "sometimes"',
+    );
+    expect(thrown(() => normalizeParams({ door_time_s: 'abc' })).message).toBe(
+      'invalid parameter door_time_s: expected a number of 0 or more, got "abc"',
+    );
+    expect(thrown(() => normalizeParams({ max_gap_m: null })).message).toMatch(
+      /invalid parameter max_gap_m: expected a number above 0, got null/,
+    );
+    expect(thrown(() => normalizeParams({ operating_cost_per_vehicle_hour: 100 })).message).toMatch(
+      /invalid parameter value_of_time_per_hour/,
+    );
     expect(thrown(() => normalizeParams([1, 2])).code).toBe('bad-option');
   });
   it('returns fresh defaults each time', () => {
@@ -86,6 +124,8 @@ describe('loadParams', () => {
     const none = join(dir, 'null.json');
     writeFileSync(none, 'null');
     expect(loadParams(none, { walk_weight: 3 }).values.walk_weight).toBe(3);
-    expect(thrown(() => loadParams(undefined, { walk_speed_mps: 'fast' })).message).toBe('invalid parameter walk_speed_mps: expected a number above 0, got "fast"');
+    expect(thrown(() => loadParams(undefined, { walk_speed_mps: 'fast' })).message).toBe(
+      'invalid parameter walk_speed_mps: expected a number above 0, got "fast"',
+    );
   });
 });

@@ -30,7 +30,9 @@ describe('parseRidership', () => {
     const r = parseRidership(text, feed, { file: 'r.csv', warnings: w });
     // reference: csv-parse (the project's reference CSV reader) on the same text
     const ref = csvParse(text, { columns: true }) as Record<string, string>[];
-    expect(r.rows.map((x) => [x.stopId, x.boardingsPerDay, x.alightingsPerDay])).toEqual(ref.map((x) => [x.stop_id, Number(x.boardings), Number(x.alightings)]));
+    expect(r.rows.map((x) => [x.stopId, x.boardingsPerDay, x.alightingsPerDay])).toEqual(
+      ref.map((x) => [x.stop_id, Number(x.boardings), Number(x.alightings)]),
+    );
     expect(r.rows[0]).toMatchObject({ routeId: 'V1', directionId: 0, line: 2 });
     expect(r.rows[2]).toMatchObject({ routeId: null, directionId: null });
     expect(w.list()).toEqual([]);
@@ -62,7 +64,10 @@ describe('parseRidership', () => {
   });
   it('counts unknown stops and routes as warnings and skips those rows', () => {
     const w = new WarningSink();
-    const r = parseRidership('stop_id,route_id,boardings,alightings\nnowhere,V1,3,1\nv1-1,V9,3,1\nv1-2,V1,3,1\n', feed, { file: 'r.csv', warnings: w });
+    const r = parseRidership('stop_id,route_id,boardings,alightings\nnowhere,V1,3,1\nv1-1,V9,3,1\nv1-2,V1,3,1\n', feed, {
+      file: 'r.csv',
+      warnings: w,
+    });
     expect(r.rows.length).toBe(1);
     expect(w.list().map((x) => [x.code, x.count])).toEqual([
       ['ridership-unknown-stop', 1],
@@ -75,7 +80,10 @@ describe('ridershipDemand', () => {
   const layouts = patterns.patterns.map((pattern) => ({ pattern, modelStops: pattern.stopIdx.map((_, j) => j), posM: pattern.distAlongM }));
   it('splits a stop shared by two routes by trips per day and builds the load profile', () => {
     const w = new WarningSink();
-    const text = 'stop_id,boardings,alightings\n' + patterns.patterns[0].stopIdx.map((s, j) => `${feed.stops[s].id},${j < 11 ? 20 : 0},${j > 0 ? 20 : 0}`).join('\n') + '\nv2-n,10,0\nv2-s,0,10\n';
+    const text =
+      'stop_id,boardings,alightings\n' +
+      patterns.patterns[0].stopIdx.map((s, j) => `${feed.stops[s].id},${j < 11 ? 20 : 0},${j > 0 ? 20 : 0}`).join('\n') +
+      '\nv2-n,10,0\nv2-s,0,10\n';
     const d = ridershipDemand(parseRidership(text, feed, { file: 'r.csv', warnings: w }), layouts, { warnings: w });
     const v1 = d.get('V1:0:1')!;
     const v2 = d.get('V2:0:1')!;
@@ -89,11 +97,20 @@ describe('ridershipDemand', () => {
   });
   it('scales unbalanced alightings, warns, and gives stops without rows zero', () => {
     const w = new WarningSink();
-    const d = ridershipDemand(parseRidership('stop_id,route_id,boardings,alightings\nv1-0,V1,100,0\nv1-11,V1,0,50\n', feed, { file: 'r.csv', warnings: w }), layouts, { warnings: w });
+    const d = ridershipDemand(
+      parseRidership('stop_id,route_id,boardings,alightings\nv1-0,V1,100,0\nv1-11,V1,0,50\n', feed, { file: 'r.csv', warnings: w }),
+      layouts,
+      { warnings: w },
+    );
     const v1 = d.get('V1:0:1')!;
     expect(v1.alightPerDay[11]).toBeCloseTo(100, 9);
     expect(v1.meanTripLengthM).toBeCloseTo(1700, 9);
-    expect(w.list().map((x) => x.code).sort()).toEqual(['ridership-stop-missing', 'ridership-unbalanced']);
+    expect(
+      w
+        .list()
+        .map((x) => x.code)
+        .sort(),
+    ).toEqual(['ridership-stop-missing', 'ridership-unbalanced']);
   });
 });
 

@@ -128,7 +128,12 @@ describe('forward optimiser', () => {
     const models = ['always', 'poisson'] as const;
     for (let run = 0; run < 30; run++) {
       const c = corridorOf(rand, 2 + Math.floor(rand() * 120));
-      const base = { walkSpeedMps: 1.3, lostTimePerStopS: 10 + rand() * 30, stoppingModel: models[run % 2], operatingPaxSPerBusS: run % 3 === 0 ? rand() * 2 : 0 };
+      const base = {
+        walkSpeedMps: 1.3,
+        lostTimePerStopS: 10 + rand() * 30,
+        stoppingModel: models[run % 2],
+        operatingPaxSPerBusS: run % 3 === 0 ? rand() * 2 : 0,
+      };
       // the audit's own weight and its sensitivity cases' 1.5 and 2.5
       const settings: CostSettings[] = [2, 1.5, 2.5].map((walkWeight) => ({ ...base, walkWeight }));
       const forced = Array.from({ length: c.n }, () => rand() < 0.05);

@@ -15,7 +15,8 @@ const stopsAt = (xy: [number, number][]) => xy.map(([x, y]) => at(x, y));
 /** Index of the shape point closest to (x, y) among indices >= from. */
 function pointIndex(xy: [number, number][], x: number, y: number, from = 0): number {
   let best = from;
-  for (let i = from; i < xy.length; i++) if (Math.hypot(xy[i][0] - x, xy[i][1] - y) < Math.hypot(xy[best][0] - x, xy[best][1] - y) - 1e-9) best = i;
+  for (let i = from; i < xy.length; i++)
+    if (Math.hypot(xy[i][0] - x, xy[i][1] - y) < Math.hypot(xy[best][0] - x, xy[best][1] - y) - 1e-9) best = i;
   return best;
 }
 
@@ -23,7 +24,15 @@ describe('projectAlongShape', () => {
   it('measures stops on a straight street from the shape start, with their offsets', () => {
     const xy = line(0, 0, 2000, 0);
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[0, 8], [400, -8], [1250, 12], [2000, 8]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [0, 8],
+        [400, -8],
+        [1250, 12],
+        [2000, 8],
+      ]),
+    );
     // Positions: 0, 400, 1250, 2000 m of a 2000 m street (the local frame is exact to well under 0.1 %).
     expect(r.distAlongM.map((d) => Math.round(d))).toEqual([0, 400, 1250, 2000]);
     expect(r.offsetM.map((d) => Math.round(d))).toEqual([8, 8, 12, 8]);
@@ -32,9 +41,24 @@ describe('projectAlongShape', () => {
 
   it('follows a loop to its end: the last stop at the start point is at the full length', () => {
     // A 500 m square loop, starting and ending at the same corner.
-    const xy = [...line(0, 0, 500, 0), ...line(500, 0, 500, 500).slice(1), ...line(500, 500, 0, 500).slice(1), ...line(0, 500, 0, 0).slice(1)];
+    const xy = [
+      ...line(0, 0, 500, 0),
+      ...line(500, 0, 500, 500).slice(1),
+      ...line(500, 500, 0, 500).slice(1),
+      ...line(0, 500, 0, 0).slice(1),
+    ];
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[0, 0], [250, -5], [505, 250], [250, 505], [-5, 250], [0, 0]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [0, 0],
+        [250, -5],
+        [505, 250],
+        [250, 505],
+        [-5, 250],
+        [0, 0],
+      ]),
+    );
     const L = shape.lengthM;
     expect(r.distAlongM[0]).toBeCloseTo(0, 6);
     expect(r.distAlongM[5]).toBeCloseTo(L, 6);
@@ -46,7 +70,17 @@ describe('projectAlongShape', () => {
     const out = line(0, 0, 2000, 0);
     const xy = [...out, ...[...out].reverse().slice(1)];
     const shape = shapeOf(xy);
-    const legs: [number, number][] = [[0, 0], [500, 0], [1000, 0], [1500, 0], [2000, 0], [1500, 0], [1000, 0], [500, 0], [0, 0]];
+    const legs: [number, number][] = [
+      [0, 0],
+      [500, 0],
+      [1000, 0],
+      [1500, 0],
+      [2000, 0],
+      [1500, 0],
+      [1000, 0],
+      [500, 0],
+      [0, 0],
+    ];
     const r = projectAlongShape(shape, stopsAt(legs));
     const L = shape.lengthM; // about 4000 m
     expect(r.distAlongM.map((d) => Math.round((d / L) * 8))).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8]);
@@ -58,7 +92,14 @@ describe('projectAlongShape', () => {
     const xy = [...out, ...line(1000, 0, 1000, 20).slice(1), ...line(1000, 20, 0, 20).slice(1)];
     const shape = shapeOf(xy);
     // Far end first, then stops on the return side of the street (20 m north).
-    const r = projectAlongShape(shape, stopsAt([[1000, 10], [700, 22], [300, 22]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [1000, 10],
+        [700, 22],
+        [300, 22],
+      ]),
+    );
     expect(r.distAlongM[1] - r.distAlongM[0]).toBeGreaterThan(250);
     expect(r.distAlongM[2] - r.distAlongM[1]).toBeCloseTo(400, -1);
   });
@@ -76,14 +117,30 @@ describe('projectAlongShape', () => {
     const east = lobe(r0, -1); // starts at (0, 0) and goes round the east circle
     const xy = [...west, ...east.slice(1)];
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[0, 0], [-2 * r0, 0], [0, 0], [2 * r0, 0], [0, 0]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [0, 0],
+        [-2 * r0, 0],
+        [0, 0],
+        [2 * r0, 0],
+        [0, 0],
+      ]),
+    );
     const expected = [0, pointIndex(xy, -2 * r0, 0), 72, pointIndex(xy, 2 * r0, 0, 72), xy.length - 1].map((i) => shape.cumM[i]);
     r.distAlongM.forEach((d, i) => expect(d).toBeCloseTo(expected[i], 3));
   });
 
   it('never goes backwards, even for a stop that lies behind the previous one', () => {
     const shape = shapeOf(line(0, 0, 1000, 0));
-    const r = projectAlongShape(shape, stopsAt([[600, 5], [400, 5], [900, 5]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [600, 5],
+        [400, 5],
+        [900, 5],
+      ]),
+    );
     expect(r.distAlongM[1]).toBeGreaterThanOrEqual(r.distAlongM[0]);
     expect(r.distAlongM[1]).toBeCloseTo(600, 0);
     expect(r.distAlongM[2]).toBeCloseTo(900, 0);
@@ -96,7 +153,14 @@ describe('projectAlongShape', () => {
     const shape = shapeOf(xy);
     // The second stop lies 200 m north of the first: the chord is short, but along the shape it is about 2.5 km
     // ahead; it is 200 m from the outbound leg and 0 m from the inbound leg.
-    const r = projectAlongShape(shape, stopsAt([[100, 0], [100, 200]]), { minLookAheadM: 500, lookAheadFactor: 2 });
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [100, 0],
+        [100, 200],
+      ]),
+      { minLookAheadM: 500, lookAheadFactor: 2 },
+    );
     expect(r.fallbacks).toBe(1);
     expect(r.distAlongM[1]).toBeCloseTo(shape.lengthM, 0);
     expect(r.offsetM[1]).toBeLessThan(1);
@@ -105,9 +169,20 @@ describe('projectAlongShape', () => {
   it('prefers a much closer pass later in the window to a loose first pass', () => {
     // The shape passes 15 m south of the stop, turns north and comes back through the stop itself
     // about 400 m later (a jog around a block): the second pass is the stop's place.
-    const xy = [...line(0, 0, 600, 0), ...line(600, 0, 600, 15).slice(1), ...line(600, 15, 350, 15).slice(1), ...line(350, 15, 350, 100).slice(1)];
+    const xy = [
+      ...line(0, 0, 600, 0),
+      ...line(600, 0, 600, 15).slice(1),
+      ...line(600, 15, 350, 15).slice(1),
+      ...line(350, 15, 350, 100).slice(1),
+    ];
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[0, 0], [400, 15]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [0, 0],
+        [400, 15],
+      ]),
+    );
     expect(r.offsetM[1]).toBeLessThan(0.5);
     expect(r.distAlongM[1]).toBeCloseTo(600 + 15 + 200, 0);
   });
@@ -116,16 +191,34 @@ describe('projectAlongShape', () => {
     // Same street both ways, the return 8 m north; a stop 5 m north of the outbound line, then the turn.
     const xy = [...line(0, 0, 600, 0), ...line(600, 0, 600, 8).slice(1), ...line(600, 8, 0, 8).slice(1)];
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[0, 0], [500, 5]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [0, 0],
+        [500, 5],
+      ]),
+    );
     expect(r.distAlongM[1]).toBeCloseTo(500, 0);
   });
 
   it('follows a terminal loop longer than the window to the far pass of a stop', () => {
     // The bus runs 200 m east, then a 1.6 km loop north and back to a stop 140 m north of the street
     // it left; the straight line between the two stops is short, the path is long.
-    const xy = [...line(0, 0, 200, 0), ...line(200, 0, 200, 800).slice(1), ...line(200, 800, 300, 800).slice(1), ...line(300, 800, 300, 140).slice(1), ...line(300, 140, 260, 140).slice(1)];
+    const xy = [
+      ...line(0, 0, 200, 0),
+      ...line(200, 0, 200, 800).slice(1),
+      ...line(200, 800, 300, 800).slice(1),
+      ...line(300, 800, 300, 140).slice(1),
+      ...line(300, 140, 260, 140).slice(1),
+    ];
     const shape = shapeOf(xy);
-    const r = projectAlongShape(shape, stopsAt([[100, 0], [260, 140]]));
+    const r = projectAlongShape(
+      shape,
+      stopsAt([
+        [100, 0],
+        [260, 140],
+      ]),
+    );
     expect(r.fallbacks).toBe(1);
     expect(r.offsetM[1]).toBeLessThan(0.5);
     expect(r.distAlongM[1]).toBeCloseTo(shape.lengthM, 0);

@@ -126,8 +126,18 @@ describe('buildPatterns: distances from shape_dist_traveled', () => {
       },
       trips: [
         { id: 'm1', shape: 'SH1', times: ['A', 'B', 'C'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 310, 600][i] })) },
-        { id: 'm2', shape: 'SH2', dir: 1, times: ['A', 'C', 'E'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 600, 1200][i] })) },
-        { id: 'k1', shape: 'SK', route: 'R2', times: ['A', 'B', 'D'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 0.31, 0.9][i] })) },
+        {
+          id: 'm2',
+          shape: 'SH2',
+          dir: 1,
+          times: ['A', 'C', 'E'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 600, 1200][i] })),
+        },
+        {
+          id: 'k1',
+          shape: 'SK',
+          route: 'R2',
+          times: ['A', 'B', 'D'].map((stop, i) => ({ stop, arr: 3600 + i * 60, dist: [0, 0.31, 0.9][i] })),
+        },
       ],
     });
     const set = buildPatterns(feed, { warnings });
@@ -213,7 +223,11 @@ describe('buildPatterns: frequencies, stops and times', () => {
         { stop: 'E', arr: start + runS + 100 },
       ],
     });
-    const feed = handFeed({ stops: STOPS, shapes: { SH1: SHAPE }, trips: [blank('i1', 3600, 300), blank('i2', 7200, 360), blank('i3', 9000, 390)] });
+    const feed = handFeed({
+      stops: STOPS,
+      shapes: { SH1: SHAPE },
+      trips: [blank('i1', 3600, 300), blank('i2', 7200, 360), blank('i3', 9000, 390)],
+    });
     const p = buildPatterns(feed).patterns[0];
     // Median run A..D is 360 s, split evenly over three 300 m gaps [D].
     expect(p.gapRunTimeS[0]).toBeCloseTo(120, 0);
@@ -255,7 +269,11 @@ describe('buildPatterns: missing shapes and blank directions', () => {
 });
 
 describe('buildPatterns: options and errors', () => {
-  const feed = handFeed({ stops: STOPS, shapes: { SH1: SHAPE }, trips: [run('a', ['A', 'B'], 0), run('b', ['C', 'D'], 0, { route: 'V2' })] });
+  const feed = handFeed({
+    stops: STOPS,
+    shapes: { SH1: SHAPE },
+    trips: [run('a', ['A', 'B'], 0), run('b', ['C', 'D'], 0, { route: 'V2' })],
+  });
 
   it('keeps only the routes asked for', () => {
     expect(buildPatterns(feed, { routes: ['V2'] }).patterns.map((p) => p.id)).toEqual(['V2:0:1']);
@@ -281,10 +299,19 @@ describe('buildPatterns: options and errors', () => {
   });
 
   it('filters by service itself when the feed kept every trip', () => {
-    const all = handFeed({ date: null, stops: STOPS, trips: [run('wk', ['A', 'B'], 0), run('sa', ['A', 'B'], 0, { service: 'SA' })], calendar: [
-      { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' },
-      { serviceId: 'SA', days: [false, false, false, false, false, true, false], start: '20260101', end: '20271231' },
-    ], calendarDates: [{ serviceId: 'SA', date: '20261014', exceptionType: 1 }, { serviceId: 'WK', date: '20261014', exceptionType: 2 }] });
+    const all = handFeed({
+      date: null,
+      stops: STOPS,
+      trips: [run('wk', ['A', 'B'], 0), run('sa', ['A', 'B'], 0, { service: 'SA' })],
+      calendar: [
+        { serviceId: 'WK', days: [true, true, true, true, true, false, false], start: '20260101', end: '20271231' },
+        { serviceId: 'SA', days: [false, false, false, false, false, true, false], start: '20260101', end: '20271231' },
+      ],
+      calendarDates: [
+        { serviceId: 'SA', date: '20261014', exceptionType: 1 },
+        { serviceId: 'WK', date: '20261014', exceptionType: 2 },
+      ],
+    });
     // 2026-10-14 is a Wednesday: WK is removed and SA added by calendar_dates.
     expect(buildPatterns(all, { date: '2026-10-14' }).patterns.flatMap((p) => p.tripIds)).toEqual(['sa']);
     expect(buildPatterns(all, { date: '2026-10-13' }).patterns.flatMap((p) => p.tripIds)).toEqual(['wk']);
@@ -312,7 +339,14 @@ describe('buildPatterns: caps on patterns', () => {
     const specs: TripSpec[] = [];
     for (let a = 0; a < side && specs.length < trips; a++) {
       for (let b = 0; b < side && specs.length < trips; b++) {
-        if (a !== b) specs.push({ id: `t${specs.length}`, times: [{ stop: `P${a}`, arr: 3600 }, { stop: `P${b}`, arr: 3720 }] });
+        if (a !== b)
+          specs.push({
+            id: `t${specs.length}`,
+            times: [
+              { stop: `P${a}`, arr: 3600 },
+              { stop: `P${b}`, arr: 3720 },
+            ],
+          });
       }
     }
     return handFeed({ stops, trips: specs });
@@ -353,7 +387,14 @@ describe('buildPatterns: caps on patterns', () => {
 
 describe('buildPatterns: shapes with no length and stops that cannot be where they say', () => {
   it('measures straight lines for a shape whose points all lie at one place, and says so by name', () => {
-    const flat = { xy: [[600, 0], [600, 0], [600, 0], [600, 0]] as [number, number][] };
+    const flat = {
+      xy: [
+        [600, 0],
+        [600, 0],
+        [600, 0],
+        [600, 0],
+      ] as [number, number][],
+    };
     const feed = handFeed({ stops: STOPS, shapes: { SH1: flat }, trips: [run('z1', ['A', 'C', 'E'], 0)] });
     const warnings = new WarningSink();
     const p = buildPatterns(feed, { warnings }).patterns[0];

@@ -101,7 +101,10 @@ for (const c of cases) {
       for (const p of set.patterns) {
         const sh = feed.shapes.get(p.shapeId)!;
         const geo = lineString(Array.from(sh.lat, (la, i) => [sh.lon[i], la]));
-        const d = Float64Array.from(p.stopIdx, (k) => nearestPointOnLine(geo, [feed.stops[k].lon, feed.stops[k].lat], { units: 'miles' }).properties.location);
+        const d = Float64Array.from(
+          p.stopIdx,
+          (k) => nearestPointOnLine(geo, [feed.stops[k].lon, feed.stops[k].lat], { units: 'miles' }).properties.location,
+        );
         for (const t of p.tripIds) stopTimes.set(t, { ...feed.stopTimes.get(t)!, shapeDist: d });
       }
       const mi = buildPatterns({ ...feed, shapes, stopTimes });

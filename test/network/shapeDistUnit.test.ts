@@ -19,7 +19,10 @@ describe('inferShapeDistUnit', () => {
   for (const [name, unitsPerMetre, unit] of cases) {
     it(`recognises ${name}, allowing for shapes a little longer than the distances`, () => {
       // Shapes are often 0.5-2 % longer or shorter than the distances an agency computed [M, common practice].
-      const samples = [4000, 5200, 880, 12000].map((lengthM, i) => ({ lengthM, distRange: lengthM * unitsPerMetre * (1 + [0.01, -0.005, 0.02, 0][i]) }));
+      const samples = [4000, 5200, 880, 12000].map((lengthM, i) => ({
+        lengthM,
+        distRange: lengthM * unitsPerMetre * (1 + [0.01, -0.005, 0.02, 0][i]),
+      }));
       const fit = inferShapeDistUnit(samples)!;
       expect(fit.unit).toBe(unit);
       expect(fit.metresPerUnit).toBeCloseTo(1 / unitsPerMetre, 9);
@@ -37,7 +40,10 @@ describe('inferShapeDistUnit', () => {
 
   it('falls back to an arbitrary scale when no unit is near', () => {
     // Distances in units of 0.5 m (hypothetical): 2 units per metre.
-    const fit = inferShapeDistUnit([{ lengthM: 3000, distRange: 6000 }, { lengthM: 1000, distRange: 2000 }])!;
+    const fit = inferShapeDistUnit([
+      { lengthM: 3000, distRange: 6000 },
+      { lengthM: 1000, distRange: 2000 },
+    ])!;
     expect(fit.unit).toBe('scale');
     expect(fit.metresPerUnit).toBeCloseTo(0.5, 12);
     expect(fit.poorFit).toBe(true);
@@ -54,7 +60,13 @@ describe('inferShapeDistUnit', () => {
 
   it('returns null without usable samples and rejects bad options', () => {
     expect(inferShapeDistUnit([])).toBeNull();
-    expect(inferShapeDistUnit([{ lengthM: 100, distRange: 0 }, { lengthM: 0, distRange: 3 }, { lengthM: 5, distRange: NaN }])).toBeNull();
+    expect(
+      inferShapeDistUnit([
+        { lengthM: 100, distRange: 0 },
+        { lengthM: 0, distRange: 3 },
+        { lengthM: 5, distRange: NaN },
+      ]),
+    ).toBeNull();
     expect(() => inferShapeDistUnit([], { goodFit: 0.2, acceptFit: 0.1 })).toThrow(/goodFit/);
   });
 });

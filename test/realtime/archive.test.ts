@@ -43,7 +43,10 @@ beforeAll(async () => {
   );
   for (const [name, b] of files) writeFileSync(join(dir, name), b);
   zipPath = join(dir, '..', `${dir.split('/').pop()}.zip`);
-  await writeZip(zipPath, [...files].reverse().map(([name, b]) => [`snapshots/${name}`, b] as const));
+  await writeZip(
+    zipPath,
+    [...files].reverse().map(([name, b]) => [`snapshots/${name}`, b] as const),
+  );
 });
 
 afterAll(() => {

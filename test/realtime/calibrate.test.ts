@@ -16,14 +16,24 @@ const ROUTE = {
   N1: { cruiseSpeedMps: 9, dwellS: 16, accelMps2: 1.0, decelMps2: 1.25, reentryS: 2 },
   N2: { cruiseSpeedMps: 12, dwellS: 10, accelMps2: 1.1, decelMps2: 1.1, reentryS: 1 },
 } as const;
-const stopLossS = (r: (typeof ROUTE)[keyof typeof ROUTE]) => r.cruiseSpeedMps / (2 * r.accelMps2) + r.cruiseSpeedMps / (2 * r.decelMps2) + r.reentryS;
+const stopLossS = (r: (typeof ROUTE)[keyof typeof ROUTE]) =>
+  r.cruiseSpeedMps / (2 * r.accelMps2) + r.cruiseSpeedMps / (2 * r.decelMps2) + r.reentryS;
 
 // lambda per stop in [0.6, 2.2] by position, so the Poisson stopping chances are known here
-const lambdaOf = (stopId: string) => 0.6 + 1.6 * ((Number(stopId.slice(-2)) * 7) % 11) / 10;
+const lambdaOf = (stopId: string) => 0.6 + (1.6 * ((Number(stopId.slice(-2)) * 7) % 11)) / 10;
 
 const net = buildNetwork([
-  { routeId: 'N1', gapsM: [250, 410, 320, 600, 280, 350, 450, 220, 380, 510, 300, 270, 430, 360], startsS: Array.from({ length: 40 }, (_, k) => 6 * 3600 + 30 * 60 + k * 240) },
-  { routeId: 'N2', gapsM: [500, 650, 420, 800, 560, 700, 480, 610, 530, 720], startsS: [], frequency: { startS: 6 * 3600 + 30 * 60, endS: 9 * 3600 + 30 * 60, headwayS: 300 } },
+  {
+    routeId: 'N1',
+    gapsM: [250, 410, 320, 600, 280, 350, 450, 220, 380, 510, 300, 270, 430, 360],
+    startsS: Array.from({ length: 40 }, (_, k) => 6 * 3600 + 30 * 60 + k * 240),
+  },
+  {
+    routeId: 'N2',
+    gapsM: [500, 650, 420, 800, 560, 700, 480, 610, 530, 720],
+    startsS: [],
+    frequency: { startS: 6 * 3600 + 30 * 60, endS: 9 * 3600 + 30 * 60, headwayS: 300 },
+  },
 ]);
 
 let dir: string;
@@ -116,7 +126,15 @@ describe('observeArchive from VehiclePositions alone', () => {
     try {
       simulateArchive(
         net.sim,
-        { windowStartS: 6 * 3600 + 30 * 60, windowEndS: 9 * 3600 + 30 * 60, pollS: 5, routeParams: (id: 'N1' | 'N2') => ROUTE[id], lambda: lambdaOf, seed: 12, differential: false },
+        {
+          windowStartS: 6 * 3600 + 30 * 60,
+          windowEndS: 9 * 3600 + 30 * 60,
+          pollS: 5,
+          routeParams: (id: 'N1' | 'N2') => ROUTE[id],
+          lambda: lambdaOf,
+          seed: 12,
+          differential: false,
+        },
         (name: string, bytes: Uint8Array) => {
           if (name.startsWith('trip-updates/')) return;
           mkdirSync(dirname(join(vpDir, name)), { recursive: true });
@@ -144,7 +162,15 @@ describe('observeArchive from sparse VehiclePositions', () => {
     try {
       simulateArchive(
         net.sim,
-        { windowStartS: 7 * 3600, windowEndS: 8 * 3600, pollS: 30, routeParams: (id: 'N1' | 'N2') => ROUTE[id], lambda: lambdaOf, seed: 13, differential: false },
+        {
+          windowStartS: 7 * 3600,
+          windowEndS: 8 * 3600,
+          pollS: 30,
+          routeParams: (id: 'N1' | 'N2') => ROUTE[id],
+          lambda: lambdaOf,
+          seed: 13,
+          differential: false,
+        },
         (name: string, bytes: Uint8Array) => {
           if (name.startsWith('trip-updates/')) return;
           mkdirSync(dirname(join(vpDir, name)), { recursive: true });
@@ -175,12 +201,21 @@ describe('observeArchive on bad input', () => {
     try {
       const STOPPED = rt.VehiclePosition.VehicleStopStatus.STOPPED_AT;
       write(d, '1.pb', base, [
-        { id: 'a', vehicle: { trip: { tripId: 'N1-T001', startDate: '20261104' }, currentStopSequence: 10, currentStatus: STOPPED, timestamp: base } },
+        {
+          id: 'a',
+          vehicle: { trip: { tripId: 'N1-T001', startDate: '20261104' }, currentStopSequence: 10, currentStatus: STOPPED, timestamp: base },
+        },
         { id: 'b', vehicle: { vehicle: { id: 'deadhead' }, timestamp: base } },
         { id: 'c', vehicle: { trip: { tripId: 'GHOST' }, currentStopSequence: 10, timestamp: base } },
         { id: 'd', vehicle: { trip: { tripId: 'N2-T001', startDate: '20261104' }, currentStopSequence: 10, timestamp: base } },
-        { id: 'e', vehicle: { trip: { tripId: 'N2-T001', startDate: '20261104', startTime: '06:31:00' }, currentStopSequence: 10, timestamp: base } },
-        { id: 'f', tripUpdate: { trip: { tripId: 'N1-T002', startDate: '20261107' }, stopTimeUpdate: [{ stopSequence: 10, arrival: { delay: 0 } }] } },
+        {
+          id: 'e',
+          vehicle: { trip: { tripId: 'N2-T001', startDate: '20261104', startTime: '06:31:00' }, currentStopSequence: 10, timestamp: base },
+        },
+        {
+          id: 'f',
+          tripUpdate: { trip: { tripId: 'N1-T002', startDate: '20261107' }, stopTimeUpdate: [{ stopSequence: 10, arrival: { delay: 0 } }] },
+        },
       ]);
       write(d, '2.pb', base + 30, [
         { id: 'a', vehicle: { trip: { tripId: 'N1-T001', startDate: '20261104' }, currentStopSequence: 20, timestamp: base - 100 } },

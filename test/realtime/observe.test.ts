@@ -2,7 +2,15 @@
 // TripUpdate events are kept as last reported, measured or predicted.
 
 import { describe, expect, it } from 'vitest';
-import { TripInstanceState, observeTripUpdate, observeVehiclePosition, stopVerdict, gapRunTime, EVENT_EXPLICIT, EVENT_PROPAGATED } from '../../src/realtime/index.js';
+import {
+  TripInstanceState,
+  observeTripUpdate,
+  observeVehiclePosition,
+  stopVerdict,
+  gapRunTime,
+  EVENT_EXPLICIT,
+  EVENT_PROPAGATED,
+} from '../../src/realtime/index.js';
 
 const OPTS = { minDwellS: 1, passMaxGapS: 10, measuredOnly: true };
 

@@ -24,16 +24,22 @@ afterAll(() => {
 function simulate(net: ReturnType<typeof buildNetwork>, options: Record<string, unknown>): string {
   const dir = mkdtempSync(join(tmpdir(), 'stopspan-rt-use-'));
   dirs.push(dir);
-  simulateArchive(net.sim, { windowStartS: 7 * 3600, windowEndS: 8 * 3600 + 30 * 60, pollS: 30, differential: false, ...options }, (name: string, bytes: Uint8Array) => {
-    mkdirSync(dirname(join(dir, name)), { recursive: true });
-    writeFileSync(join(dir, name), bytes);
-  });
+  simulateArchive(
+    net.sim,
+    { windowStartS: 7 * 3600, windowEndS: 8 * 3600 + 30 * 60, pollS: 30, differential: false, ...options },
+    (name: string, bytes: Uint8Array) => {
+      mkdirSync(dirname(join(dir, name)), { recursive: true });
+      writeFileSync(join(dir, name), bytes);
+    },
+  );
   return dir;
 }
 
 describe('an archive whose run times cannot separate cruise speed from stop loss', () => {
   // ten equal 400 m gaps, every stop served (lambda 50 riders a trip), every dwell exactly 20 s
-  const net = buildNetwork([{ routeId: 'E1', gapsM: Array(10).fill(400), startsS: Array.from({ length: 12 }, (_, k) => 7 * 3600 + k * 300) }]);
+  const net = buildNetwork([
+    { routeId: 'E1', gapsM: Array(10).fill(400), startsS: Array.from({ length: 12 }, (_, k) => 7 * 3600 + k * 300) },
+  ]);
   const route = { cruiseSpeedMps: 10, dwellS: 20, accelMps2: 1.2, decelMps2: 1.2, reentryS: 2 };
 
   it('yields the observed dwell in the lost time per stop, labelled observed, with the kinematic term from the cruise speed in use', async () => {
@@ -52,7 +58,14 @@ describe('an archive whose run times cannot separate cruise speed from stop loss
     // p = observed door time + V/(2a) + V/(2d) + re-entry at the cruise speed in use (kinematics [D])
     const kin = brakingAcceleratingS(p.cruiseSpeedMps, { accelMps2: 1.22, decelMps2: 1.22 });
     expect(p.lostTimePerStopS).toBeCloseTo(20 + kin + 2, 9);
-    expect(p.observed).toMatchObject({ dwellS: 20, doorTimeS: 20, stopLossS: null, cruiseSpeedMps: null, stopShare: 1, lostTimeParts: ['door_time'] });
+    expect(p.observed).toMatchObject({
+      dwellS: 20,
+      doorTimeS: 20,
+      stopLossS: null,
+      cruiseSpeedMps: null,
+      stopShare: 1,
+      lostTimeParts: ['door_time'],
+    });
 
     // and the reader sees it: patterns.csv columns at the end of the row, summary.json per pattern
     const [header, row] = patternsCsv(r).split('\r\n');
@@ -68,7 +81,16 @@ describe('an archive whose run times cannot separate cruise speed from stop loss
     const s = summaryObject(r) as { observed: { patterns: Record<string, unknown>[]; trips_matched: number } };
     expect(s.observed.trips_matched).toBe(12);
     expect(s.observed.patterns).toEqual([
-      { pattern_id: 'E1:0:1', trips_observed: 12, dwell_s: 20, door_time_s: 20, stop_loss_s: null, cruise_speed_mps: null, stop_share: 1, lost_time_observed_parts: ['door_time'] },
+      {
+        pattern_id: 'E1:0:1',
+        trips_observed: 12,
+        dwell_s: 20,
+        door_time_s: 20,
+        stop_loss_s: null,
+        cruise_speed_mps: null,
+        stop_share: 1,
+        lost_time_observed_parts: ['door_time'],
+      },
     ]);
   }, 60_000);
 });
@@ -76,7 +98,13 @@ describe('an archive whose run times cannot separate cruise speed from stop loss
 describe('a run-time fit with a negative stop loss', () => {
   it('is rejected whole: neither its cruise speed nor its stop loss is kept, the dwell still is', async () => {
     // buses that gain 15 s on every gap they stop at (a negative re-entry): no physical stop loss explains that
-    const net = buildNetwork([{ routeId: 'G1', gapsM: [250, 600, 320, 800, 280, 500, 450, 220, 700, 380], startsS: Array.from({ length: 12 }, (_, k) => 7 * 3600 + k * 300) }]);
+    const net = buildNetwork([
+      {
+        routeId: 'G1',
+        gapsM: [250, 600, 320, 800, 280, 500, 450, 220, 700, 380],
+        startsS: Array.from({ length: 12 }, (_, k) => 7 * 3600 + k * 300),
+      },
+    ]);
     const route = { cruiseSpeedMps: 9, dwellS: 15, accelMps2: 1, decelMps2: 1, reentryS: -24 };
     const dir = simulate(net, { routeParams: () => route, lambda: () => 0.8, seed: 9 });
     const data = await observeArchive(dir, net.feed, net.patterns);

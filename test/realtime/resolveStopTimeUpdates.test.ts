@@ -53,7 +53,11 @@ describe('resolveStopTimeUpdates', () => {
   it('takes absolute times as given and derives the delay that propagates from them', () => {
     const sched = schedule();
     const t5 = originS + sched.schedArrS[4] + 45;
-    const ev = resolveStopTimeUpdates(roundTrip([{ stopSequence: 5, arrival: { time: t5 }, departure: { time: t5 + 10 } }]), sched, originS);
+    const ev = resolveStopTimeUpdates(
+      roundTrip([{ stopSequence: 5, arrival: { time: t5 }, departure: { time: t5 + 10 } }]),
+      sched,
+      originS,
+    );
     expect(ev.arrS[4]).toBe(t5);
     expect(ev.depS[4]).toBe(t5 + 10);
     expect(ev.arrS[5] - (originS + sched.schedArrS[5])).toBe(55); // departure delay 55 s propagates
@@ -62,7 +66,10 @@ describe('resolveStopTimeUpdates', () => {
   it('lets the delay propagate past a SKIPPED stop and matches updates by stop_id when stop_sequence is absent', () => {
     const sched = schedule();
     const ev = resolveStopTimeUpdates(
-      roundTrip([{ stopId: 'S4', arrival: { delay: 120 } }, { stopId: 'S6', scheduleRelationship: STU.SKIPPED }]),
+      roundTrip([
+        { stopId: 'S4', arrival: { delay: 120 } },
+        { stopId: 'S6', scheduleRelationship: STU.SKIPPED },
+      ]),
       sched,
       originS,
     );
@@ -72,7 +79,14 @@ describe('resolveStopTimeUpdates', () => {
   });
 
   it('counts updates that name no stop of the trip', () => {
-    const ev = resolveStopTimeUpdates(roundTrip([{ stopSequence: 99, arrival: { delay: 1 } }, { stopId: 'NOPE', arrival: { delay: 1 } }]), schedule(), originS);
+    const ev = resolveStopTimeUpdates(
+      roundTrip([
+        { stopSequence: 99, arrival: { delay: 1 } },
+        { stopId: 'NOPE', arrival: { delay: 1 } },
+      ]),
+      schedule(),
+      originS,
+    );
     expect(ev.unplaced).toBe(2);
     expect(Array.from(ev.source).every((s) => s === EVENT_UNKNOWN)).toBe(true);
   });

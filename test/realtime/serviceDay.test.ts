@@ -18,7 +18,14 @@ describe('serviceDayOriginS', () => {
 });
 
 describe('serviceRunsOn', () => {
-  const calendar = [{ serviceId: 'WKDY', days: [true, true, true, true, true, false, false] as [boolean, boolean, boolean, boolean, boolean, boolean, boolean], start: '20261102', end: '20261130' }];
+  const calendar = [
+    {
+      serviceId: 'WKDY',
+      days: [true, true, true, true, true, false, false] as [boolean, boolean, boolean, boolean, boolean, boolean, boolean],
+      start: '20261102',
+      end: '20261130',
+    },
+  ];
   const dates = [
     { serviceId: 'WKDY', date: '20261111', exceptionType: 2 as const },
     { serviceId: 'XTRA', date: '20261107', exceptionType: 1 as const },

@@ -69,7 +69,15 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
     browser = await chromium.launchPersistentContext(join(work, 'profile'), {
       executablePath: CHROMIUM,
       headless: true,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
     await writeReport(sample, join(work, 'metric'), { formats: ['html'] });
     await writeReport(sample, join(work, 'imperial'), { formats: ['html'], units: 'imperial' });
@@ -141,7 +149,9 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
     const { page } = v;
     // open every pattern so the lazily drawn strips and maps (with stop names in <title>) exist
     await page.$$eval('details.pattern', (ds) => ds.forEach((d) => ((d as HTMLDetailsElement).open = true)));
-    await page.waitForFunction(() => document.querySelectorAll('details.pattern svg.strip').length === document.querySelectorAll('details.pattern').length);
+    await page.waitForFunction(
+      () => document.querySelectorAll('details.pattern svg.strip').length === document.querySelectorAll('details.pattern').length,
+    );
     const probe = await page.evaluate(() => ({
       imgs: document.querySelectorAll('img').length,
       onerror: document.querySelectorAll('[onerror]').length,
@@ -196,7 +206,10 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
       }
       await writeFile(join(keep, 'report-pattern.png'), await v.page.locator('details.pattern').first().screenshot());
       await v.page.evaluate(() => window.scrollTo(0, 0));
-      await writeFile(join(keep, 'report-overview.png'), await v.page.screenshot({ fullPage: true, clip: { x: 0, y: 0, width: 1280, height: 2300 } }));
+      await writeFile(
+        join(keep, 'report-overview.png'),
+        await v.page.screenshot({ fullPage: true, clip: { x: 0, y: 0, width: 1280, height: 2300 } }),
+      );
       await writeFile(join(keep, 'report-top.png'), await v.page.screenshot({ fullPage: false }));
     }
   });

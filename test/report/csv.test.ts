@@ -62,7 +62,9 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
       expect(Number(r[col('dist_along_m')])).toBeCloseTo(s.distAlongM, 1);
       expect(r[col('gap_before_m')]).toBe(s.gapBeforeM === null ? '' : String(Math.round(s.gapBeforeM * 10) / 10));
       expect(r[col('verdict')]).toBe(s.verdict);
-      expect(r[col('removal_net_pax_min_per_day')]).toBe(s.removalNetPaxMinPerDay === null ? '' : String(Math.round(s.removalNetPaxMinPerDay * 10) / 10));
+      expect(r[col('removal_net_pax_min_per_day')]).toBe(
+        s.removalNetPaxMinPerDay === null ? '' : String(Math.round(s.removalNetPaxMinPerDay * 10) / 10),
+      );
     });
     // the awkward names survive: comma, quotes, newline and non-ASCII text
     const names = rows.slice(1).map((r) => r[col('stop_name')]);
@@ -84,7 +86,10 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
     expect(text).toContain(`,'-Westbank Steps,`);
     const rows = readBack(text);
     const netCol = rows[0].indexOf('removal_net_pax_min_per_day');
-    const negatives = rows.slice(1).map((r) => r[netCol]).filter((v) => v.startsWith('-'));
+    const negatives = rows
+      .slice(1)
+      .map((r) => r[netCol])
+      .filter((v) => v.startsWith('-'));
     expect(negatives.length).toBeGreaterThan(0); // a plain negative number in a numeric column stays a number
     for (const v of negatives) expect(Number.isFinite(Number(v))).toBe(true);
     expect(guardText('+1 555')).toBe("'+1 555");
@@ -118,14 +123,19 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
       { name: 'value_m', kind: 'number' as const, get: (r: { a: string; n: number }) => r.n },
     ];
     fc.assert(
-      fc.property(fc.array(fc.record({ a: fc.string({ unit: 'grapheme' }), n: fc.double({ noNaN: true, noDefaultInfinity: true }) }), { maxLength: 20 }), (rows) => {
-        const back = readBack(renderCsv(cols, rows));
-        expect(back.length).toBe(rows.length + 1);
-        rows.forEach((r, i) => {
-          expect(back[i + 1][0]).toBe(guardText(r.a));
-          expect(Number(back[i + 1][1])).toBe(Object.is(r.n, -0) ? 0 : r.n);
-        });
-      }),
+      fc.property(
+        fc.array(fc.record({ a: fc.string({ unit: 'grapheme' }), n: fc.double({ noNaN: true, noDefaultInfinity: true }) }), {
+          maxLength: 20,
+        }),
+        (rows) => {
+          const back = readBack(renderCsv(cols, rows));
+          expect(back.length).toBe(rows.length + 1);
+          rows.forEach((r, i) => {
+            expect(back[i + 1][0]).toBe(guardText(r.a));
+            expect(Number(back[i + 1][1])).toBe(Object.is(r.n, -0) ? 0 : r.n);
+          });
+        },
+      ),
       { numRuns: 200 },
     );
   });
@@ -149,7 +159,9 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
   });
 
   it('rejects an unknown units value with a coded error', () => {
-    expect(() => stopsCsv(sample, { units: 'furlongs' as never })).toThrowError(/invalid option units: expected "metric" or "imperial", got "furlongs"/);
+    expect(() => stopsCsv(sample, { units: 'furlongs' as never })).toThrowError(
+      /invalid option units: expected "metric" or "imperial", got "furlongs"/,
+    );
   });
 
   // Reference: ECMAScript's Number.prototype.toFixed (ECMA-262, section 21.1.3.3), as the engine runs it;
@@ -160,10 +172,36 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
   };
 
   it('prints number cells exactly as toFixed and back would, ties and signs included', () => {
-    const cases = [1.005, 1.015, 2.675, 0.5, 1.5, 2.5, -0.5, -2.5, -1.005, 0.05, 0.15, 1e-7, -1e-7, 0.0000005, 40.7128235, -73.9856445, 123456.75, 214748.36475, 1e15 + 0.5, 12345678901.25, 0.1 + 0.2];
+    const cases = [
+      1.005,
+      1.015,
+      2.675,
+      0.5,
+      1.5,
+      2.5,
+      -0.5,
+      -2.5,
+      -1.005,
+      0.05,
+      0.15,
+      1e-7,
+      -1e-7,
+      0.0000005,
+      40.7128235,
+      -73.9856445,
+      123456.75,
+      214748.36475,
+      1e15 + 0.5,
+      12345678901.25,
+      0.1 + 0.2,
+    ];
     for (const v of cases) for (const d of [0, 1, 2, 3, 6]) expect(formatNumber(v, d), `${v} to ${d}`).toBe(viaToFixed(v, d));
     fc.assert(
-      fc.property(fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e7, max: 1e7 }), fc.constantFrom(1, 2, 3, 6), (v, d) => formatNumber(v, d) === viaToFixed(v, d)),
+      fc.property(
+        fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e7, max: 1e7 }),
+        fc.constantFrom(1, 2, 3, 6),
+        (v, d) => formatNumber(v, d) === viaToFixed(v, d),
+      ),
       { numRuns: 20000 },
     );
     // values at exact halves of the last decimal, where rounding is decided by the binary value
@@ -178,4 +216,3 @@ describe('patterns.csv, stops.csv and candidates.csv', () => {
     expect(formatNumber(Number.NaN, 1)).toBe('');
   });
 });
-

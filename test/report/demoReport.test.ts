@@ -37,7 +37,9 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
 
   it('writes a summary.json that validates against the schema', async () => {
     const schema = JSON.parse(await readFile(new URL('../../schema/summary.schema.json', import.meta.url), 'utf8'));
-    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, formats: { 'date-time': true } }).compile(schema);
+    const validate = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, formats: { 'date-time': true } }).compile(
+      schema,
+    );
     const doc = JSON.parse(await readFile(join(out, 'summary.json'), 'utf8'));
     validate(doc);
     expect(validate.errors ?? []).toEqual([]);
@@ -59,7 +61,10 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
   });
 
   it("places every stop of stops.geojson at the feed's own stops.txt coordinates, lon then lat", async () => {
-    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
+    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<
+      string,
+      string
+    >[];
     const byId = new Map(stopsTxt.map((s) => [s.stop_id, [Number(s.stop_lon), Number(s.stop_lat)]]));
     const gj = JSON.parse(await readFile(join(out, 'stops.geojson'), 'utf8'));
     expect(gj.features.length).toBe(result.stops.length);
@@ -86,7 +91,10 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
     // each leaves its neighbours at most a few blocks apart: the straight-line gap between them, measured with
     // geographiclib (Karney's WGS84 geodesic) from the feed's own stops.txt, stays under 400 m, the
     // quarter-mile local-bus spacing many agencies use (common practice, from memory)
-    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<string, string>[];
+    const stopsTxt = parse((await readZipEntry(FEED, 'stops.txt')).toString('utf8'), { columns: true, bom: true, trim: true }) as Record<
+      string,
+      string
+    >[];
     const ll = new Map(stopsTxt.map((s) => [s.stop_id, [Number(s.stop_lat), Number(s.stop_lon)]]));
     let measured = 0;
     for (const c of removals.filter((x) => /^(MKT|CAT)-/.test(x.stopId))) {
@@ -100,7 +108,9 @@ describe.skipIf(!haveDemo)('the demo feed report folder', () => {
     }
     expect(measured).toBeGreaterThan(0);
     // busy old-town corners stay: close to a neighbour, yet removing them would cost riders time
-    const busyClose = result.stops.filter((s) => /^(MKT|CAT)-/.test(s.stopId) && s.gapBeforeM !== null && s.gapBeforeM < 130 && (s.removalNetPaxMinPerDay ?? 0) > 50);
+    const busyClose = result.stops.filter(
+      (s) => /^(MKT|CAT)-/.test(s.stopId) && s.gapBeforeM !== null && s.gapBeforeM < 130 && (s.removalNetPaxMinPerDay ?? 0) > 50,
+    );
     expect(busyClose.length).toBeGreaterThanOrEqual(5);
     // terminals and the transfer stop are fixed
     expect(result.stops.some((s) => s.stopId === 'CSQ' && s.verdict === 'fixed')).toBe(true);

@@ -48,7 +48,9 @@ describe('stops.geojson', () => {
       expect(f.properties.stop_id).toBe(s.stopId);
       expect(f.properties.stop_name).toBe(s.stopName); // raw text: GIS tools do not run formulas
       expect(f.properties.verdict).toBe(s.verdict);
-      expect(f.properties.removal_net_pax_min_per_day).toBe(s.removalNetPaxMinPerDay === null ? null : Math.round(s.removalNetPaxMinPerDay * 10) / 10);
+      expect(f.properties.removal_net_pax_min_per_day).toBe(
+        s.removalNetPaxMinPerDay === null ? null : Math.round(s.removalNetPaxMinPerDay * 10) / 10,
+      );
       expect(f.properties.demand_source).toBe('assumed');
       expect(booleanValid(f as never)).toBe(true);
     });
@@ -60,7 +62,10 @@ describe('stops.geojson', () => {
   });
 
   it('leaves out stops whose coordinates are outside WGS84 ranges', () => {
-    const bad: AuditResult = { ...sample, stops: [{ ...sample.stops[0], stopLat: 91 }, { ...sample.stops[1], stopLon: Number.NaN }, sample.stops[2]] };
+    const bad: AuditResult = {
+      ...sample,
+      stops: [{ ...sample.stops[0], stopLat: 91 }, { ...sample.stops[1], stopLon: Number.NaN }, sample.stops[2]],
+    };
     const out = stopsGeoJson(bad);
     expect(out.features.map((f) => f.properties.stop_id)).toEqual([sample.stops[2].stopId]);
   });

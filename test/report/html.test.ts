@@ -26,7 +26,14 @@ describe('escaping', () => {
         const e = escapeHtml(s);
         expect(e).not.toMatch(/[<>"']/);
         // decoding the five entities gives the text back
-        expect(e.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&')).toBe(s);
+        expect(
+          e
+            .replace(/&lt;/g, '<')
+            .replace(/&gt;/g, '>')
+            .replace(/&quot;/g, '"')
+            .replace(/&#39;/g, "'")
+            .replace(/&amp;/g, '&'),
+        ).toBe(s);
       }),
     );
   });
@@ -66,7 +73,9 @@ describe('index.html', () => {
     expect(markupOnly).toMatch(/field review of the walk \(crossings, sidewalks, grades, lighting\)/);
     expect(markupOnly).toMatch(/ADA/);
     expect(markupOnly).toMatch(/Title VI/);
-    expect(markupOnly).toMatch(/Passenger-minutes at stake per day<\/div><div class="v">[\d,]+<\/div><div class="s">[^<]*by removals[^<]*by the proposed additions <span class="badge assumed">assumed<\/span>/);
+    expect(markupOnly).toMatch(
+      /Passenger-minutes at stake per day<\/div><div class="v">[\d,]+<\/div><div class="s">[^<]*by removals[^<]*by the proposed additions <span class="badge assumed">assumed<\/span>/,
+    );
     expect(markupOnly).toContain('net passenger-min/day (assumed)');
     const observed = indexHtml({ ...sample, demandSource: 'observed' });
     expect(observed).not.toContain('net passenger-min/day (assumed)');
@@ -82,7 +91,7 @@ describe('index.html', () => {
     expect(imp).toContain('"units":"imperial"');
   });
 
-  it('draws a histogram whose bars count every gap, with the band, split by the gaps\' own verdicts', () => {
+  it("draws a histogram whose bars count every gap, with the band, split by the gaps' own verdicts", () => {
     const gapsM = [50, 120, 180, 240, 260, 310, 420, 990, 2500, 5000];
     // 420 m is above this band but served by a local; 5 000 m an express stretch: neither is wide
     const verdicts: GapVerdict[] = ['short', 'short', 'short', 'ok', 'ok', 'ok', 'local', 'wide', 'wide', 'express'];
@@ -135,7 +144,9 @@ describe('additions and removals on the page', () => {
   it('marks the gap listed for review as an empty stretch in the page data, the other wide gaps not', () => {
     const g = sample.reviewGaps[0];
     expect(g).toBeDefined();
-    const data = JSON.parse(html.slice(html.indexOf('>', dataStart) + 1, html.indexOf('</script>', dataStart))) as { patterns: { id: string; gaps: [number, number, number][] }[] };
+    const data = JSON.parse(html.slice(html.indexOf('>', dataStart) + 1, html.indexOf('</script>', dataStart))) as {
+      patterns: { id: string; gaps: [number, number, number][] }[];
+    };
     const marks = data.patterns.flatMap((p) => p.gaps.map((x) => [p.id, x[2]] as [string, number]));
     expect(marks.filter(([, m]) => m === 2)).toEqual([[g.patternIds[0], 2]]);
     expect(marks.filter(([, m]) => m === 1).length).toBeGreaterThan(0);

@@ -13,9 +13,20 @@ import { snakeKeys, snakeKey as snakeName } from '../../src/common/snakeKeys.js'
 
 // RFC 3339 section 5.6 date-time [C], the meaning JSON Schema gives "format": "date-time"
 const RFC3339 = /^\d{4}-\d{2}-\d{2}[Tt ]\d{2}:\d{2}:\d{2}(\.\d+)?([Zz]|[+-]\d{2}:\d{2})$/;
-const ajv = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, formats: { 'date-time': (s: string) => RFC3339.test(s) && !Number.isNaN(Date.parse(s)) } });
+const ajv = new Ajv2020.default({
+  allErrors: true,
+  strict: true,
+  allowUnionTypes: true,
+  formats: { 'date-time': (s: string) => RFC3339.test(s) && !Number.isNaN(Date.parse(s)) },
+});
 const validator = (name: string) => ajv.compile(JSON.parse(readFileSync(join(ROOT, 'schema', `${name}.schema.json`), 'utf8')));
-const SCHEMAS = { summary: validator('summary'), check: validator('check'), compare: validator('compare'), history: validator('history'), error: validator('error') };
+const SCHEMAS = {
+  summary: validator('summary'),
+  check: validator('check'),
+  compare: validator('compare'),
+  history: validator('history'),
+  error: validator('error'),
+};
 
 const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
 const NEXT = join(ROOT, 'fixtures/demo/demo-feed-next.zip');
@@ -77,7 +88,12 @@ describe('JSON documents against their schemas', () => {
 
   it('check --json, with findings and with a history recorded, and history --json', async () => {
     const db = join(dir, 'h.sqlite');
-    for (const [feed, today] of [[join(FIX, 'clean'), '2026-10-14'], [join(FIX, 'twin-stops'), '2026-10-14'], [DEMO, '2026-10-14'], [DEMO, '2026-11-02']]) {
+    for (const [feed, today] of [
+      [join(FIX, 'clean'), '2026-10-14'],
+      [join(FIX, 'twin-stops'), '2026-10-14'],
+      [DEMO, '2026-10-14'],
+      [DEMO, '2026-11-02'],
+    ]) {
       const r = await runCli(['check', feed, '--json', '--today', today, '--history', db]);
       expect([0, 1]).toContain(r.code);
       expectValid('check', JSON.parse(r.stdout));
@@ -97,7 +113,10 @@ describe('JSON documents against their schemas', () => {
     expectValid('compare', doc);
     expect(doc.candidates).not.toBeNull();
     expectValid('compare', JSON.parse(readFileSync(join(out, 'compare.json'), 'utf8')));
-    const lean = JSON.parse((await runCli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json', '--no-audit', '--fail-on-trip-loss', '10'])).stdout);
+    const lean = JSON.parse(
+      (await runCli(['compare', join(FIX, 'clean'), join(FIX, 'stop-off-path'), '--json', '--no-audit', '--fail-on-trip-loss', '10']))
+        .stdout,
+    );
     expectValid('compare', lean);
     expect(lean.candidates).toBeNull();
   });

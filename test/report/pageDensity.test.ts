@@ -74,7 +74,15 @@ describe.skipIf(!haveChromium)('the density squares under the maps in chromium',
     browser = await chromium.launchPersistentContext(join(work, 'profile'), {
       executablePath: CHROMIUM,
       headless: true,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
   }, 60_000);
   afterAll(async () => {

@@ -30,7 +30,15 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
     browser = await chromium.launchPersistentContext(join(work, 'profile'), {
       executablePath: CHROMIUM,
       headless: true,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
     await writeReport(sample, join(work, 'sample'), { formats: ['html'] });
     await writeReport(big, join(work, 'big'), { formats: ['html'] });
@@ -67,7 +75,8 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
     await page.click(`[id="p-${p.patternId}"] > summary`);
     await page.waitForSelector(`[id="p-${p.patternId}"] svg.map`);
     const sec = page.locator(`[id="p-${p.patternId}"]`);
-    const labels = async (where: string) => sec.locator(`svg.${where} g.cand`).evaluateAll((gs) => gs.map((g) => g.getAttribute('aria-label') ?? ''));
+    const labels = async (where: string) =>
+      sec.locator(`svg.${where} g.cand`).evaluateAll((gs) => gs.map((g) => g.getAttribute('aria-label') ?? ''));
     for (const where of ['map', 'strip']) {
       const named = await labels(where);
       expect(named.filter((l) => /^Candidate #\d+: remove /.test(l)).length, where).toBe(removals.length);
@@ -108,7 +117,13 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
         svg.remove();
         return v;
       };
-      return { ring: probe('cand-ring', 'stroke'), drop: probe('plan-drop', 'stroke'), keep: probe('plan-keep', 'stroke'), close: probe('mk-close', 'fill'), wide: probe('mk-wide', 'fill') };
+      return {
+        ring: probe('cand-ring', 'stroke'),
+        drop: probe('plan-drop', 'stroke'),
+        keep: probe('plan-keep', 'stroke'),
+        close: probe('mk-close', 'fill'),
+        wide: probe('mk-wide', 'fill'),
+      };
     });
     expect(new Set(Object.values(colours)).size).toBe(5);
     expect(errors).toEqual([]);
@@ -143,7 +158,12 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
     expect((await sectionIds(page)).sort()).toEqual(route1.sort());
     const other = big.patterns[300];
     await page.fill('#pat-find', other.routeShortName);
-    expect((await sectionIds(page)).sort()).toEqual(big.patterns.filter((p) => p.routeShortName === other.routeShortName).map((p) => p.patternId).sort());
+    expect((await sectionIds(page)).sort()).toEqual(
+      big.patterns
+        .filter((p) => p.routeShortName === other.routeShortName)
+        .map((p) => p.patternId)
+        .sort(),
+    );
     // part of a headsign: every pattern whose headsign holds it
     await page.fill('#pat-find', 'vellmoor central');
     const byHeadsign = big.patterns.filter((p) => p.headsign.toLowerCase().includes('vellmoor central')).map((p) => p.patternId);
@@ -176,7 +196,9 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
     expect(target).not.toBeNull();
     await page.click('a[data-probe="1"]');
     await page.waitForSelector(`[id="p-${target}"][open] svg.map`);
-    expect(await page.evaluate((id) => document.activeElement === document.getElementById('p-' + id)!.querySelector('summary'), target)).toBe(true);
+    expect(
+      await page.evaluate((id) => document.activeElement === document.getElementById('p-' + id)!.querySelector('summary'), target),
+    ).toBe(true);
     await page.close();
 
     // the pattern with the fewest passenger-minutes lost comes last in the list: far beyond the first chunk

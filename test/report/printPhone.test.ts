@@ -66,7 +66,15 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
     browser = await chromium.launchPersistentContext(join(work, 'profile'), {
       executablePath: CHROMIUM,
       headless: true,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
   });
   afterAll(async () => {
@@ -95,14 +103,19 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
     await page.emulateMedia({ media: 'print' });
     const m = await page.evaluate(() => {
       const bottom = (sel: string) => document.querySelector(sel)!.getBoundingClientRect().bottom + window.scrollY;
-      const shown = (sel: string) => Array.from(document.querySelectorAll(sel)).filter((e) => getComputedStyle(e).display !== 'none').length;
+      const shown = (sel: string) =>
+        Array.from(document.querySelectorAll(sel)).filter((e) => getComputedStyle(e).display !== 'none').length;
       const tables = Array.from(document.querySelectorAll('table')).filter((t) => t.getClientRects().length > 0);
       return {
         cautionsBottom: bottom('#cautions'),
         topList: document.querySelectorAll('ol.top-cands li').length,
         gapsBreak: getComputedStyle(document.querySelector('#gaps')!).breakBefore,
         controlsShown: shown('.controls'),
-        overflowing: tables.filter((t) => t.scrollWidth > document.documentElement.clientWidth + 1 || t.getBoundingClientRect().right > document.documentElement.clientWidth + 1).length,
+        overflowing: tables.filter(
+          (t) =>
+            t.scrollWidth > document.documentElement.clientWidth + 1 ||
+            t.getBoundingClientRect().right > document.documentElement.clientWidth + 1,
+        ).length,
         tables: tables.length,
         mapsShown: Array.from(document.querySelectorAll('svg.chart.map')).filter((s) => s.getBoundingClientRect().width > 100).length,
         candRowsShown: shown('#cand-table tbody tr'),
@@ -125,7 +138,10 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
     const page = await browser.newPage();
     await page.setViewportSize({ width: 800, height: 900 });
     const frameHost = join(work, 'phone.html');
-    await writeFile(frameHost, `<!doctype html><title>375 px</title><body style="margin:0"><iframe title="report" src="${html}" style="width:375px;height:800px;border:0"></iframe>`);
+    await writeFile(
+      frameHost,
+      `<!doctype html><title>375 px</title><body style="margin:0"><iframe title="report" src="${html}" style="width:375px;height:800px;border:0"></iframe>`,
+    );
     await page.goto(pathToFileURL(frameHost).href);
     const frame = await (await page.waitForSelector('iframe')).contentFrame();
     if (!frame) throw new Error('the frame did not load');
@@ -148,14 +164,19 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
           for (let a = e.parentElement; a; a = a.parentElement) if (getComputedStyle(a).overflowX !== 'visible') return false;
           return true;
         })
-        .map((e) => `${e.tagName.toLowerCase()}${e.id ? '#' + e.id : ''}.${e.getAttribute('class') ?? ''} right ${Math.round(e.getBoundingClientRect().right)}`);
+        .map(
+          (e) =>
+            `${e.tagName.toLowerCase()}${e.id ? '#' + e.id : ''}.${e.getAttribute('class') ?? ''} right ${Math.round(e.getBoundingClientRect().right)}`,
+        );
       return {
         past: past.slice(-5),
         viewport: edge,
         pageWidth: document.documentElement.scrollWidth,
         minLabelPx,
         regions: regions.length,
-        unnamed: regions.filter((r) => r.getAttribute('tabindex') !== '0' || r.getAttribute('role') !== 'region' || !r.getAttribute('aria-label')).length,
+        unnamed: regions.filter(
+          (r) => r.getAttribute('tabindex') !== '0' || r.getAttribute('role') !== 'region' || !r.getAttribute('aria-label'),
+        ).length,
         candWrapScrolls: (() => {
           const w = document.querySelector('#candidates .table-wrap')!;
           return w.scrollWidth > w.clientWidth;
@@ -178,24 +199,39 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
     expect(reached).toBe(true);
     await page.keyboard.press('ArrowRight');
     await page.keyboard.press('ArrowRight');
-    await expect.poll(() => frame.evaluate(() => document.querySelector('#candidates .table-wrap')!.scrollLeft), { timeout: 3000 }).toBeGreaterThan(0);
+    await expect
+      .poll(() => frame.evaluate(() => document.querySelector('#candidates .table-wrap')!.scrollLeft), { timeout: 3000 })
+      .toBeGreaterThan(0);
     await page.close();
   });
 
-  it.skipIf(!AXE)('has no serious or critical accessibility violation (axe-core) on a desktop and at 375 px, a pattern opened', async () => {
-    for (const [width, height] of [[1280, 900], [375, 800]]) {
-      const page = await open(width, height);
-      await page.click('details.pattern > summary');
-      await page.addScriptTag({ content: AXE! });
-      const found = (await page.evaluate(async () => {
-        const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: { id: string; impact: string; nodes: unknown[] }[] }> } }).axe;
-        const r = await axe.run(document, { resultTypes: ['violations'] });
-        return r.violations.map((v) => ({ id: v.id, impact: v.impact, nodes: v.nodes.length }));
-      })) as { id: string; impact: string; nodes: number }[];
-      expect(found.filter((v) => v.impact === 'serious' || v.impact === 'critical'), `at ${width} px`).toEqual([]);
-      await page.close();
-    }
-  });
+  it.skipIf(!AXE)(
+    'has no serious or critical accessibility violation (axe-core) on a desktop and at 375 px, a pattern opened',
+    async () => {
+      for (const [width, height] of [
+        [1280, 900],
+        [375, 800],
+      ]) {
+        const page = await open(width, height);
+        await page.click('details.pattern > summary');
+        await page.addScriptTag({ content: AXE! });
+        const found = (await page.evaluate(async () => {
+          const axe = (
+            window as unknown as {
+              axe: { run: (ctx: Document, o: object) => Promise<{ violations: { id: string; impact: string; nodes: unknown[] }[] }> };
+            }
+          ).axe;
+          const r = await axe.run(document, { resultTypes: ['violations'] });
+          return r.violations.map((v) => ({ id: v.id, impact: v.impact, nodes: v.nodes.length }));
+        })) as { id: string; impact: string; nodes: number }[];
+        expect(
+          found.filter((v) => v.impact === 'serious' || v.impact === 'critical'),
+          `at ${width} px`,
+        ).toEqual([]);
+        await page.close();
+      }
+    },
+  );
 
   it('shows a long candidate table 400 rows at a time with "show more", and a row links to its pattern, opened and drawn', async () => {
     const sample = makeSampleResult();
@@ -218,7 +254,11 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
     await page.locator('#cand-table tbody tr').first().locator('a.pat-link').click();
     const opened = await page.evaluate((id) => {
       const d = document.getElementById('p-' + id) as HTMLDetailsElement;
-      return { open: d.open, maps: d.querySelectorAll('svg.chart.map').length, focused: document.activeElement === d.querySelector('summary') };
+      return {
+        open: d.open,
+        maps: d.querySelectorAll('svg.chart.map').length,
+        focused: document.activeElement === d.querySelector('summary'),
+      };
     }, first);
     expect(opened).toEqual({ open: true, maps: 1, focused: true });
     await page.close();

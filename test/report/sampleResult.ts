@@ -3,15 +3,7 @@
 // markup, quotes and spreadsheet formulas so escaping and guarding can be checked. makeSampleResult can
 // also build a large network (hundreds of patterns) for the size checks. Deterministic: no randomness.
 
-import type {
-  AuditResult,
-  Candidate,
-  CostCurvePoint,
-  GapResult,
-  PatternResult,
-  StopResult,
-  Verdict,
-} from '../../src/audit/types.js';
+import type { AuditResult, Candidate, CostCurvePoint, GapResult, PatternResult, StopResult, Verdict } from '../../src/audit/types.js';
 import type { FixedReason } from '../../src/model/types.js';
 
 export const HOSTILE_NAMES = {
@@ -26,10 +18,34 @@ export const HOSTILE_NAMES = {
 } as const;
 
 const PLAIN_NAMES = [
-  'Vellmoor Central', 'Harbour Gate', 'Mill Lane', 'Ropewalk', 'Saltmarsh Road', 'Kiln Street', 'Old Weir',
-  'Chapel Row', 'Fenwick Park', 'Lantern Square', 'Copperfield', 'Riverside Baths', 'Hollins Cross', 'Tollbar',
-  'Beacon Hill', 'Orchard Way', 'Foundry Works', 'Stonebridge', 'Greyfriars', 'Wool Exchange', 'Tidewater',
-  'Moorside', 'Cinder Path', 'Hawthorn Close', 'Glassworks', 'Netherby', 'Ferry Landing', 'Dyers Green',
+  'Vellmoor Central',
+  'Harbour Gate',
+  'Mill Lane',
+  'Ropewalk',
+  'Saltmarsh Road',
+  'Kiln Street',
+  'Old Weir',
+  'Chapel Row',
+  'Fenwick Park',
+  'Lantern Square',
+  'Copperfield',
+  'Riverside Baths',
+  'Hollins Cross',
+  'Tollbar',
+  'Beacon Hill',
+  'Orchard Way',
+  'Foundry Works',
+  'Stonebridge',
+  'Greyfriars',
+  'Wool Exchange',
+  'Tidewater',
+  'Moorside',
+  'Cinder Path',
+  'Hawthorn Close',
+  'Glassworks',
+  'Netherby',
+  'Ferry Landing',
+  'Dyers Green',
 ];
 
 /** Uniform-demand cost per rider, seconds: walk s/2 in total at weight w and speed v, plus p*L/s on board. */
@@ -104,7 +120,9 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     const removal =
       verdict === 'fixed' || before === null || after === null
         ? null
-        : Math.round(((W / V) * ((boardings + alightings) * ((before * after) / (before + after))) / 60 - spec.tripsPerDay * 8 * (P / 60)) * 10) / 10;
+        : Math.round(
+            (((W / V) * ((boardings + alightings) * ((before * after) / (before + after)))) / 60 - spec.tripsPerDay * 8 * (P / 60)) * 10,
+          ) / 10;
     stops.push({
       patternId,
       routeId: spec.routeId,
@@ -191,8 +209,10 @@ function buildPattern(spec: PatternSpec, n: number): { pattern: PatternResult; s
     optimalStopCount: Math.max(2, Math.round(lengthM / optimal) + 1),
     // what the optimiser would win: the savings of removing close stops and filling wide gaps
     paxMinLostPerDay:
-      stops.reduce((a, s) => a + (s.verdict === 'close' && s.removalNetPaxMinPerDay !== null ? Math.max(0, -s.removalNetPaxMinPerDay) : 0), 0) +
-      gaps.reduce((a, g) => a + (g.addNetPaxMinPerDay !== null ? -g.addNetPaxMinPerDay : 0), 0),
+      stops.reduce(
+        (a, s) => a + (s.verdict === 'close' && s.removalNetPaxMinPerDay !== null ? Math.max(0, -s.removalNetPaxMinPerDay) : 0),
+        0,
+      ) + gaps.reduce((a, g) => a + (g.addNetPaxMinPerDay !== null ? -g.addNetPaxMinPerDay : 0), 0),
     paxMinAdditionsPerDay: 40 * wideGaps,
     paxMinAtStakePerDay: 0, // set below: the two together
     demandSource: 'assumed',
@@ -234,23 +254,60 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
   const hostile = Object.values(HOSTILE_NAMES);
   const specs: PatternSpec[] = [
     {
-      routeId: 'R1', routeShortName: '1', directionId: 0, headsign: 'Harbour Gate', gapsM: gapsFor(0, stopsPerPattern - 1),
-      tripsPerDay: 96, originLon: 11.2, originLat: 48.5, bearingRad: 0.3, names: [PLAIN_NAMES[0], HOSTILE_NAMES.img, ...PLAIN_NAMES.slice(1, 4), ...hostile.filter((n) => n !== HOSTILE_NAMES.img), ...PLAIN_NAMES.slice(4)],
+      routeId: 'R1',
+      routeShortName: '1',
+      directionId: 0,
+      headsign: 'Harbour Gate',
+      gapsM: gapsFor(0, stopsPerPattern - 1),
+      tripsPerDay: 96,
+      originLon: 11.2,
+      originLat: 48.5,
+      bearingRad: 0.3,
+      names: [
+        PLAIN_NAMES[0],
+        HOSTILE_NAMES.img,
+        ...PLAIN_NAMES.slice(1, 4),
+        ...hostile.filter((n) => n !== HOSTILE_NAMES.img),
+        ...PLAIN_NAMES.slice(4),
+      ],
     },
     {
-      routeId: 'R1', routeShortName: '1', directionId: 1, headsign: 'Vellmoor Central', gapsM: gapsFor(1, stopsPerPattern - 2),
-      tripsPerDay: 94, originLon: 11.26, originLat: 48.52, bearingRad: 0.3 + Math.PI, names: PLAIN_NAMES.slice(6),
+      routeId: 'R1',
+      routeShortName: '1',
+      directionId: 1,
+      headsign: 'Vellmoor Central',
+      gapsM: gapsFor(1, stopsPerPattern - 2),
+      tripsPerDay: 94,
+      originLon: 11.26,
+      originLat: 48.52,
+      bearingRad: 0.3 + Math.PI,
+      names: PLAIN_NAMES.slice(6),
     },
     {
-      routeId: 'R7<b>', routeShortName: '7 <i>Express</i>', directionId: 0, headsign: `Moorside "via" Tollbar`, gapsM: gapsFor(2, stopsPerPattern + 4),
-      tripsPerDay: 48, originLon: 11.18, originLat: 48.53, bearingRad: -0.9, names: [...PLAIN_NAMES.slice(10), HOSTILE_NAMES.img],
+      routeId: 'R7<b>',
+      routeShortName: '7 <i>Express</i>',
+      directionId: 0,
+      headsign: `Moorside "via" Tollbar`,
+      gapsM: gapsFor(2, stopsPerPattern + 4),
+      tripsPerDay: 48,
+      originLon: 11.18,
+      originLat: 48.53,
+      bearingRad: -0.9,
+      names: [...PLAIN_NAMES.slice(10), HOSTILE_NAMES.img],
     },
   ];
   for (let k = specs.length; k < nPatterns; k++) {
     specs.push({
-      routeId: `R${10 + (k >> 1)}`, routeShortName: String(10 + (k >> 1)), directionId: k % 2, headsign: PLAIN_NAMES[k % PLAIN_NAMES.length],
-      gapsM: gapsFor(k, stopsPerPattern - 1 + (k % 5)), tripsPerDay: 20 + (k % 40), originLon: 11.1 + (k % 13) * 0.01,
-      originLat: 48.45 + (k % 11) * 0.01, bearingRad: k * 0.7, names: PLAIN_NAMES.slice(k % 7),
+      routeId: `R${10 + (k >> 1)}`,
+      routeShortName: String(10 + (k >> 1)),
+      directionId: k % 2,
+      headsign: PLAIN_NAMES[k % PLAIN_NAMES.length],
+      gapsM: gapsFor(k, stopsPerPattern - 1 + (k % 5)),
+      tripsPerDay: 20 + (k % 40),
+      originLon: 11.1 + (k % 13) * 0.01,
+      originLat: 48.45 + (k % 11) * 0.01,
+      bearingRad: k * 0.7,
+      names: PLAIN_NAMES.slice(k % 7),
     });
   }
   const built = specs.map((s, i) => buildPattern(s, i < 2 ? 1 : 1 + (i % 3)));
@@ -290,7 +347,7 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       rideSavedPaxMinPerDay: Math.abs(s.removalNetPaxMinPerDay as number) * 1.6,
       runTimeSavedPerTripS: 14.5,
       vehicleHoursPerDay: (14.5 * s.tripsPerDay) / 3600,
-      robust: (s.stopIndex % 3) !== 0,
+      robust: s.stopIndex % 3 !== 0,
       evidence: '',
       fromStopId: '',
       toStopId: '',
@@ -329,7 +386,12 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
   const tripsTotal = patterns.reduce((a, p) => a + p.tripsPerDay, 0);
   return {
     tool: { name: 'stopspan', version: '0.1.0' },
-    feed: { source: 'fixtures/demo/vellmoor-gtfs.zip', contentHash: 'sha256:3f9a0c7e', version: '2026-11 <draft>', publisher: 'Vellmoor Transit & "Ferries"' },
+    feed: {
+      source: 'fixtures/demo/vellmoor-gtfs.zip',
+      contentHash: 'sha256:3f9a0c7e',
+      version: '2026-11 <draft>',
+      publisher: 'Vellmoor Transit & "Ferries"',
+    },
     date: '2026-11-18',
     generatedAt: '2026-12-01T22:00:00.000Z',
     demandSource: 'assumed',
@@ -369,17 +431,82 @@ export function makeSampleResult(options: SampleOptions = {}): AuditResult {
       ...gaps
         .filter((g) => g.wide)
         .slice(-1)
-        .map((g) => ({ fromStopId: g.fromStopId, toStopId: g.toStopId, name: 'between <Quay> & "Bridge"', lat: 50.01, lon: 4.02, gapM: g.gapM, routeIds: [stopById.get(g.fromStopId)?.routeId ?? ''], patternIds: [g.patternId], reason: 'long-straight-empty' as const, detail: '1.6 km straight with no stop of another route within a 400 m walk of its middle' })),
+        .map((g) => ({
+          fromStopId: g.fromStopId,
+          toStopId: g.toStopId,
+          name: 'between <Quay> & "Bridge"',
+          lat: 50.01,
+          lon: 4.02,
+          gapM: g.gapM,
+          routeIds: [stopById.get(g.fromStopId)?.routeId ?? ''],
+          patternIds: [g.patternId],
+          reason: 'long-straight-empty' as const,
+          detail: '1.6 km straight with no stop of another route within a 400 m walk of its middle',
+        })),
     ],
     sensitivity: [
-      { label: 'base', walkWeight: 2, bandTolerance: 0.05, meanOptimalSpacingM: 380, closeStops: 30, wideGaps: 12, paxMinLostPerDay: 5200, candidatesKept: 10 , programmeNetPaxMinPerDay: -4100, programmeStillSaving: 12 },
-      { label: 'walk_weight=1.5', walkWeight: 1.5, bandTolerance: 0.05, meanOptimalSpacingM: 439, closeStops: 38, wideGaps: 8, paxMinLostPerDay: 7100, candidatesKept: 10 , programmeNetPaxMinPerDay: -5200, programmeStillSaving: 12 },
-      { label: 'walk_weight=2.5', walkWeight: 2.5, bandTolerance: 0.05, meanOptimalSpacingM: 340, closeStops: 24, wideGaps: 15, paxMinLostPerDay: 3900, candidatesKept: 8 , programmeNetPaxMinPerDay: -3100, programmeStillSaving: 10 },
-      { label: 'band_tolerance=0.10', walkWeight: 2, bandTolerance: 0.1, meanOptimalSpacingM: 380, closeStops: 19, wideGaps: 7, paxMinLostPerDay: 5200, candidatesKept: 9 , programmeNetPaxMinPerDay: -4100, programmeStillSaving: 12 },
+      {
+        label: 'base',
+        walkWeight: 2,
+        bandTolerance: 0.05,
+        meanOptimalSpacingM: 380,
+        closeStops: 30,
+        wideGaps: 12,
+        paxMinLostPerDay: 5200,
+        candidatesKept: 10,
+        programmeNetPaxMinPerDay: -4100,
+        programmeStillSaving: 12,
+      },
+      {
+        label: 'walk_weight=1.5',
+        walkWeight: 1.5,
+        bandTolerance: 0.05,
+        meanOptimalSpacingM: 439,
+        closeStops: 38,
+        wideGaps: 8,
+        paxMinLostPerDay: 7100,
+        candidatesKept: 10,
+        programmeNetPaxMinPerDay: -5200,
+        programmeStillSaving: 12,
+      },
+      {
+        label: 'walk_weight=2.5',
+        walkWeight: 2.5,
+        bandTolerance: 0.05,
+        meanOptimalSpacingM: 340,
+        closeStops: 24,
+        wideGaps: 15,
+        paxMinLostPerDay: 3900,
+        candidatesKept: 8,
+        programmeNetPaxMinPerDay: -3100,
+        programmeStillSaving: 10,
+      },
+      {
+        label: 'band_tolerance=0.10',
+        walkWeight: 2,
+        bandTolerance: 0.1,
+        meanOptimalSpacingM: 380,
+        closeStops: 19,
+        wideGaps: 7,
+        paxMinLostPerDay: 5200,
+        candidatesKept: 9,
+        programmeNetPaxMinPerDay: -4100,
+        programmeStillSaving: 12,
+      },
     ],
     warnings: [
-      { code: 'padded-values', message: 'values padded with spaces were trimmed', count: 3648, examples: ['stops.txt:2 column stop_lat', 'stops.txt:3 column stop_lon'] },
-      { code: 'trip-without-shape', message: 'trips without a shape <img src=x onerror=alert(3)> used straight lines', count: 2, examples: ['trip T-88', '=cmd|"/c calc"!A1'] },
+      {
+        code: 'padded-values',
+        message: 'values padded with spaces were trimmed',
+        count: 3648,
+        examples: ['stops.txt:2 column stop_lat', 'stops.txt:3 column stop_lon'],
+      },
+      {
+        code: 'trip-without-shape',
+        message: 'trips without a shape <img src=x onerror=alert(3)> used straight lines',
+        count: 2,
+        examples: ['trip T-88', '=cmd|"/c calc"!A1'],
+      },
     ],
     assumptions: [
       'Demand is assumed: 2.5 boardings per trip-km spread evenly along each pattern.',
@@ -394,7 +521,19 @@ export function makeEmptyResult(): AuditResult {
   const r = makeSampleResult();
   return {
     ...r,
-    headline: { patterns: 0, stops: 0, trips: 0, medianGapM: 0, meanOptimalSpacingM: 0, closeStops: 0, wideGaps: 0, wideGapsOnPatterns: 0, paxMinLostPerDay: 0, paxMinAdditionsPerDay: 0, paxMinAtStakePerDay: 0 },
+    headline: {
+      patterns: 0,
+      stops: 0,
+      trips: 0,
+      medianGapM: 0,
+      meanOptimalSpacingM: 0,
+      closeStops: 0,
+      wideGaps: 0,
+      wideGapsOnPatterns: 0,
+      paxMinLostPerDay: 0,
+      paxMinAdditionsPerDay: 0,
+      paxMinAtStakePerDay: 0,
+    },
     patterns: [],
     stops: [],
     gaps: [],

@@ -12,7 +12,12 @@ import { makeSampleResult } from './sampleResult.js';
 const schema = JSON.parse(readFileSync(new URL('../../schema/summary.schema.json', import.meta.url), 'utf8'));
 // RFC 3339 section 5.6 date-time [C], the meaning JSON Schema gives "format": "date-time"
 const RFC3339 = /^\d{4}-\d{2}-\d{2}[Tt ]\d{2}:\d{2}:\d{2}(\.\d+)?([Zz]|[+-]\d{2}:\d{2})$/;
-const ajv = new Ajv2020.default({ allErrors: true, strict: true, allowUnionTypes: true, formats: { 'date-time': (s: string) => RFC3339.test(s) && !Number.isNaN(Date.parse(s)) } });
+const ajv = new Ajv2020.default({
+  allErrors: true,
+  strict: true,
+  allowUnionTypes: true,
+  formats: { 'date-time': (s: string) => RFC3339.test(s) && !Number.isNaN(Date.parse(s)) },
+});
 const validate = ajv.compile(schema);
 const sample = makeSampleResult();
 
@@ -33,7 +38,10 @@ describe('summary.json', () => {
     withLand.landUse = {
       file: 'vellmoor-blocks.geojson',
       format: 'geojson',
-      columns: [{ name: 'population', weight: 1, total: 1200, covered: 1000 }, { name: 'jobs', weight: 0.5, total: 400, covered: 300 }],
+      columns: [
+        { name: 'population', weight: 1, total: 1200, covered: 1000 },
+        { name: 'jobs', weight: 0.5, total: 400, covered: 300 },
+      ],
       features: 3,
       featuresOutsideCatchments: 1,
       points: 40,
@@ -59,7 +67,15 @@ describe('summary.json', () => {
   it('validates with a realtime archive read, each pattern saying what it observed, and not with a share above 1', () => {
     const withArchive = makeSampleResult();
     withArchive.observed = { source: 'rt.zip', snapshotsRead: 40, snapshotsSkipped: 1, tripsMatched: 12, tripsUnmatched: 0 };
-    withArchive.patterns[0].observed = { tripsObserved: 12, dwellS: 20, doorTimeS: 20, stopLossS: null, cruiseSpeedMps: null, stopShare: 0.75, lostTimeParts: ['door_time'] };
+    withArchive.patterns[0].observed = {
+      tripsObserved: 12,
+      dwellS: 20,
+      doorTimeS: 20,
+      stopLossS: null,
+      cruiseSpeedMps: null,
+      stopShare: 0.75,
+      lostTimeParts: ['door_time'],
+    };
     const doc = JSON.parse(summaryJson(withArchive));
     expect(doc.observed.patterns).toHaveLength(1);
     expect(validate(doc)).toBe(true);
@@ -71,13 +87,41 @@ describe('summary.json', () => {
   it('fails validation when a field is missing, misspelt or out of its range', () => {
     const base = JSON.parse(summaryJson(sample));
     const broken = [
-      (() => { const d = structuredClone(base); delete d.cautions; return d; })(),
-      (() => { const d = structuredClone(base); d.demand_source = 'guessed'; return d; })(),
-      (() => { const d = structuredClone(base); d.headline.paxMinLostPerDay = 1; return d; })(),
-      (() => { const d = structuredClone(base); d.date = '18/11/2026'; return d; })(),
-      (() => { const d = structuredClone(base); d.generated_at = 'yesterday'; return d; })(),
-      (() => { const d = structuredClone(base); d.parameters.walk_weight.source = 'guess'; return d; })(),
-      (() => { const d = structuredClone(base); d.counts.patterns = -1; return d; })(),
+      (() => {
+        const d = structuredClone(base);
+        delete d.cautions;
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.demand_source = 'guessed';
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.headline.paxMinLostPerDay = 1;
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.date = '18/11/2026';
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.generated_at = 'yesterday';
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.parameters.walk_weight.source = 'guess';
+        return d;
+      })(),
+      (() => {
+        const d = structuredClone(base);
+        d.counts.patterns = -1;
+        return d;
+      })(),
     ];
     for (const d of broken) expect(validate(d)).toBe(false);
   });
@@ -86,10 +130,11 @@ describe('summary.json', () => {
     const missing: string[] = [];
     const walk = (node: Record<string, unknown>, path: string): void => {
       const props = node.properties as Record<string, Record<string, unknown>> | undefined;
-      if (props) for (const [k, child] of Object.entries(props)) {
-        if (typeof child.description !== 'string' || child.description.length < 3) missing.push(`${path}.${k}`);
-        walk(child, `${path}.${k}`);
-      }
+      if (props)
+        for (const [k, child] of Object.entries(props)) {
+          if (typeof child.description !== 'string' || child.description.length < 3) missing.push(`${path}.${k}`);
+          walk(child, `${path}.${k}`);
+        }
       for (const key of ['items', 'additionalProperties']) {
         const c = node[key];
         if (c && typeof c === 'object') walk(c as Record<string, unknown>, `${path}[]`);

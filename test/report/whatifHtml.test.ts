@@ -59,7 +59,13 @@ describe('whatifStrips', () => {
     const model = pattern.stopIdx.map((_, j) => j).filter((j) => pattern.passengerStop[j] !== false);
     const stops = model.map((j) => feed.stops[pattern.stopIdx[j]]);
     const at = (lat: number, lon: number) =>
-      nearestOnStopLine(stops.map((x) => x.lat), stops.map((x) => x.lon), model.map((j) => pattern.distAlongM[j]), lat, lon).posM;
+      nearestOnStopLine(
+        stops.map((x) => x.lat),
+        stops.map((x) => x.lon),
+        model.map((j) => pattern.distAlongM[j]),
+        lat,
+        lon,
+      ).posM;
     const s = strips[0];
     expect(s.after.find((x) => x.change === 'added')!.posM).toBe(at(scenario.add[0].lat, scenario.add[0].lon));
     expect(s.after.find((x) => x.change === 'moved')!.posM).toBe(at(scenario.move[0].lat, scenario.move[0].lon));
@@ -136,7 +142,11 @@ describe('whatifText', () => {
     // the international foot is exactly 0.3048 m (NIST SP 811, appendix B); each figure is rounded to 1
     ft.forEach((f, i) => expect(Math.abs(f * 0.3048 - m[i])).toBeLessThanOrEqual(1));
     expect(imperial).toMatch(/walking policy: .* \d[\d,]* ft/);
-    const net = (text: string): string | undefined => text.split('\n').find((l) => l.startsWith('net, pax-min/day'))?.replace(/ +/g, ' '); // columns widen with feet
+    const net = (text: string): string | undefined =>
+      text
+        .split('\n')
+        .find((l) => l.startsWith('net, pax-min/day'))
+        ?.replace(/ +/g, ' '); // columns widen with feet
     expect(net(imperial)).toBe(net(metric));
     expect(() => whatifText(result, { units: 'furlongs' as never })).toThrow(/units/);
   });
@@ -147,7 +157,10 @@ describe('writeFolder', () => {
     const root = mkdtempSync(join(tmpdir(), 'stopspan-whatif-'));
     dirs.push(root);
     const out = join(root, 'scenario');
-    await writeFolder(out, [['index.html', html], ['scenario.json', '{}\n']]);
+    await writeFolder(out, [
+      ['index.html', html],
+      ['scenario.json', '{}\n'],
+    ]);
     expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'index.html', 'scenario.json']);
     await expect(writeFolder(out, [['index.html', 'x']])).rejects.toMatchObject({ code: 'output-exists' });
     expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe(html);
@@ -165,7 +178,16 @@ describe('writeFolder', () => {
     mkdirSync(out);
     writeFileSync(join(out, 'index.html'), 'old');
     // a file name with a folder in it is refused before anything is written or renamed
-    await expect(writeFolder(out, [['index.html', 'new'], ['sub/x.html', 'x']], { force: true })).rejects.toMatchObject({ code: 'bad-option' });
+    await expect(
+      writeFolder(
+        out,
+        [
+          ['index.html', 'new'],
+          ['sub/x.html', 'x'],
+        ],
+        { force: true },
+      ),
+    ).rejects.toMatchObject({ code: 'bad-option' });
     expect(readFileSync(join(out, 'index.html'), 'utf8')).toBe('old');
   });
 });

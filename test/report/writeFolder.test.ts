@@ -38,7 +38,10 @@ function snapshot(folder: string): Record<string, string> {
 describe('writeFolder: what it writes', () => {
   it('writes a marker naming the files written with the folder, and returns only the files', async () => {
     const out = join(work, 'report');
-    const paths = await writeFolder(out, [['a.csv', 'x\r\n'], ['b.json', () => '{}\n']]);
+    const paths = await writeFolder(out, [
+      ['a.csv', 'x\r\n'],
+      ['b.json', () => '{}\n'],
+    ]);
     expect(paths).toEqual([join(out, 'a.csv'), join(out, 'b.json')]);
     expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'a.csv', 'b.json']);
     const marker = JSON.parse(readFileSync(join(out, REPORT_MARKER), 'utf8'));
@@ -48,7 +51,10 @@ describe('writeFolder: what it writes', () => {
 
   it('replaces a previous output with force, even one with other names (another command wrote it)', async () => {
     const out = join(work, 'report');
-    await writeFolder(out, [['compare.html', 'old'], ['compare.json', '{}']]);
+    await writeFolder(out, [
+      ['compare.html', 'old'],
+      ['compare.json', '{}'],
+    ]);
     await writeFolder(out, [['history.html', 'new']], { force: true });
     expect(readdirSync(out).sort()).toEqual([REPORT_MARKER, 'history.html']);
     expect(readdirSync(work)).toEqual(['report']);
@@ -75,7 +81,9 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     for (const force of [false, true]) {
       const e = await rejected(writeFolder(out, [['index.html', 'x']], { force }));
       expect(e.code).toBe('bad-output');
-      expect(e.oneLine()).toBe(`${out}: cannot use this as the output folder: it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`);
+      expect(e.oneLine()).toBe(
+        `${out}: cannot use this as the output folder: it exists and is not a stopspan output folder (no ${REPORT_MARKER}); remove it yourself or choose another folder`,
+      );
     }
     expect(snapshot(work)).toEqual(before);
   });
@@ -96,7 +104,7 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     expect(snapshot(work)).toEqual(before);
   });
 
-  it('a marker that lists a name which is a folder, or a marker that is not this tool\'s', async () => {
+  it("a marker that lists a name which is a folder, or a marker that is not this tool's", async () => {
     const out = join(work, 'forged');
     mkdirSync(join(out, 'data'), { recursive: true });
     writeFileSync(join(out, REPORT_MARKER), JSON.stringify({ writtenBy: 'stopspan', files: ['data'] }));
@@ -115,26 +123,35 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
       expect(e.code).toBe('bad-output');
       expect(e.oneLine()).toMatch(/feed\.zip: cannot use this as the output folder: it is a file, not a folder/);
     }
-    expect((await rejected(writeFolder(join(file, 'sub'), [['a.csv', '']], { force: true }))).message).toMatch(/feed\.zip is not a folder|a part of the path is a file/);
+    expect((await rejected(writeFolder(join(file, 'sub'), [['a.csv', '']], { force: true }))).message).toMatch(
+      /feed\.zip is not a folder|a part of the path is a file/,
+    );
     expect(readFileSync(file, 'utf8')).toBe('PK');
   });
 
   it('a symbolic link, dangling or to a previous output', async () => {
     const dangling = join(work, 'dangling');
     symlinkSync(join(work, 'nowhere'), dangling);
-    expect((await rejected(writeFolder(dangling, [['a.csv', '']], { force: true }))).oneLine()).toMatch(/dangling: cannot use this as the output folder: it is a symbolic link/);
+    expect((await rejected(writeFolder(dangling, [['a.csv', '']], { force: true }))).oneLine()).toMatch(
+      /dangling: cannot use this as the output folder: it is a symbolic link/,
+    );
     const report = join(work, 'report');
     await writeFolder(report, [['a.csv', 'old']]);
     const link = join(work, 'link');
     symlinkSync(report, link);
-    expect((await rejected(writeFolder(link, [['a.csv', 'new']], { force: true }))).oneLine()).toMatch(/link: cannot use this as the output folder: it is a symbolic link/);
+    expect((await rejected(writeFolder(link, [['a.csv', 'new']], { force: true }))).oneLine()).toMatch(
+      /link: cannot use this as the output folder: it is a symbolic link/,
+    );
     expect(readFileSync(join(report, 'a.csv'), 'utf8')).toBe('old');
     expect((await rejected(writeFolder(join(dangling, 'sub'), [['a.csv', '']]))).message).toMatch(/dangling is a symbolic link to nothing/);
   });
 
   it('a previous output that holds an input of the run (the feed, or the feed inside it)', async () => {
     const out = join(work, 'report');
-    await writeFolder(out, [['feed.zip', 'PK'], ['a.csv', '']]);
+    await writeFolder(out, [
+      ['feed.zip', 'PK'],
+      ['a.csv', ''],
+    ]);
     const before = snapshot(work);
     const e = await rejected(writeFolder(out, [['a.csv', '']], { force: true, inputs: [join(out, 'feed.zip'), undefined] }));
     expect(e.oneLine()).toMatch(/report: cannot use this as the output folder: it holds the input .*report\/feed\.zip/);
@@ -148,7 +165,9 @@ describe('writeFolder: what it refuses, with or without force, leaving everythin
     await writeFolder(linked, [['a.csv', '']]);
     symlinkSync(join(elsewhere, 'gtfs.zip'), join(linked, 'gtfs.zip'));
     writeFileSync(join(linked, REPORT_MARKER), JSON.stringify({ writtenBy: 'stopspan', files: ['a.csv', 'gtfs.zip'] }));
-    expect((await rejected(writeFolder(linked, [['a.csv', '']], { force: true, inputs: [join(linked, 'gtfs.zip')] }))).message).toMatch(/it holds the input/);
+    expect((await rejected(writeFolder(linked, [['a.csv', '']], { force: true, inputs: [join(linked, 'gtfs.zip')] }))).message).toMatch(
+      /it holds the input/,
+    );
     expect(readFileSync(join(linked, 'gtfs.zip'), 'utf8')).toBe('PK');
     // a URL is not a path: it never matches
     await writeFolder(out, [['a.csv', 'new']], { force: true, inputs: ['https://data.vellmoor.example/gtfs.zip'] });
@@ -215,10 +234,22 @@ describe('sweepStaleTemp', () => {
     mk('holiday.tmp-1-a-b');
     const done = await sweepStaleTemp(work);
     expect(done.map((p) => p.slice(work.length + 1)).sort()).toEqual(
-      [`.empty.tmp-${dead}-abc-def123`, `.gone.old-${dead}-abc-def123`, `.kept.old-${dead}-abc-def123`, `.report.tmp-${dead}-abc-def123`].sort(),
+      [
+        `.empty.tmp-${dead}-abc-def123`,
+        `.gone.old-${dead}-abc-def123`,
+        `.kept.old-${dead}-abc-def123`,
+        `.report.tmp-${dead}-abc-def123`,
+      ].sort(),
     );
     expect(readdirSync(work).sort()).toEqual(
-      ['gone', 'kept', `.live.tmp-${process.pid}-abc-def123`, `.odd.tmp-${dead}-abc-def123`, `.notes.tmp-${dead}`, 'holiday.tmp-1-a-b'].sort(),
+      [
+        'gone',
+        'kept',
+        `.live.tmp-${process.pid}-abc-def123`,
+        `.odd.tmp-${dead}-abc-def123`,
+        `.notes.tmp-${dead}`,
+        'holiday.tmp-1-a-b',
+      ].sort(),
     );
     expect(readdirSync(join(work, 'gone')).sort()).toEqual([REPORT_MARKER, 'index.html']);
   });

@@ -39,7 +39,17 @@ describe('writeReport', () => {
   it('writes every format into a new folder and returns the paths', async () => {
     const out = join(work, 'reports', 'vellmoor');
     const paths = await writeReport(sample, out);
-    const names = ['index.html', 'patterns.csv', 'stops.csv', 'candidates.csv', 'patterns.geojson', 'stops.geojson', 'stop_points.geojson', 'candidates.geojson', 'summary.json'];
+    const names = [
+      'index.html',
+      'patterns.csv',
+      'stops.csv',
+      'candidates.csv',
+      'patterns.geojson',
+      'stops.geojson',
+      'stop_points.geojson',
+      'candidates.geojson',
+      'summary.json',
+    ];
     expect(paths).toEqual(names.map((n) => join(out, n)));
     expect((await readdir(out)).sort()).toEqual([...names, REPORT_MARKER].sort());
     expect(await readFile(join(out, 'stops.csv'), 'utf8')).toBe(stopsCsv(sample));

@@ -25,7 +25,12 @@ afterAll(() => {
 
 describe('the one-line error', () => {
   it('escapes control characters and separators wherever they come from', () => {
-    const e = new StopspanError('bad-value', `stop_id ${NASTY} is odd\r\nreally`, { file: `feed${NASTY}.zip`, line: 4, column: 'stop_id', value: NASTY });
+    const e = new StopspanError('bad-value', `stop_id ${NASTY} is odd\r\nreally`, {
+      file: `feed${NASTY}.zip`,
+      line: 4,
+      column: 'stop_id',
+      value: NASTY,
+    });
     const line = e.oneLine();
     expect(UNSAFE.test(line), JSON.stringify(line)).toBe(false);
     expect(line).toContain('\\u001b]0;pwned\\u0007'); // shown, not dropped: a person can still see what was there
@@ -36,7 +41,12 @@ describe('the one-line error', () => {
   });
 
   it('leaves ordinary text, non-ASCII letters included, as it was', () => {
-    const e = new StopspanError('bad-value', 'stop_lat is not a number', { file: 'stops.txt', line: 3, column: 'stop_lat', value: 'Brückenstraße 東口' });
+    const e = new StopspanError('bad-value', 'stop_lat is not a number', {
+      file: 'stops.txt',
+      line: 3,
+      column: 'stop_lat',
+      value: 'Brückenstraße 東口',
+    });
     expect(e.oneLine()).toBe('stops.txt:3 column stop_lat: stop_lat is not a number (got "Brückenstraße 東口")');
   });
 

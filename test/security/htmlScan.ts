@@ -132,6 +132,6 @@ export function scanHtml(html: string): HtmlScan {
 export function jsonStrings(v: unknown, out: string[] = []): string[] {
   if (typeof v === 'string') out.push(v);
   else if (Array.isArray(v)) for (const x of v) jsonStrings(x, out);
-  else if (v && typeof v === 'object') for (const [k, x] of Object.entries(v)) jsonStrings(k, out), jsonStrings(x, out);
+  else if (v && typeof v === 'object') for (const [k, x] of Object.entries(v)) (jsonStrings(k, out), jsonStrings(x, out));
   return out;
 }

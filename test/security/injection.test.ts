@@ -17,19 +17,78 @@ import { parse } from 'csv-parse/sync';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { ROOT } from '../fuzz/demoTables.js';
-import { AGENCY_NAME, AGENCY_URL, H, HEADSIGNS, HOSTILE, MINIMAL, ROUTE_IDS, ROUTE_SHORT, SHAPE_IDS, STOP_IDS, STOP_NAMES, writeHostileFeed } from './hostileFeed.js';
+import {
+  AGENCY_NAME,
+  AGENCY_URL,
+  H,
+  HEADSIGNS,
+  HOSTILE,
+  MINIMAL,
+  ROUTE_IDS,
+  ROUTE_SHORT,
+  SHAPE_IDS,
+  STOP_IDS,
+  STOP_NAMES,
+  writeHostileFeed,
+} from './hostileFeed.js';
 import { jsonStrings, scanHtml, type HtmlScan } from './htmlScan.js';
 import { CLI } from '../helpers/cli.js';
 import { REPORT_MARKER } from '../../src/report/writeFolder.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 // the output contract (design notes, section 5)
-const REPORT_FILES = [REPORT_MARKER, 'candidates.csv', 'candidates.geojson', 'index.html', 'patterns.csv', 'patterns.geojson', 'stop_points.geojson', 'stops.csv', 'stops.geojson', 'summary.json'];
+const REPORT_FILES = [
+  REPORT_MARKER,
+  'candidates.csv',
+  'candidates.geojson',
+  'index.html',
+  'patterns.csv',
+  'patterns.geojson',
+  'stop_points.geojson',
+  'stops.csv',
+  'stops.geojson',
+  'summary.json',
+];
 // the CSV text columns (design notes, section 5); every other column is numeric
 const TEXT_COLUMNS: Record<string, string[]> = {
-  'stops.csv': ['pattern_id', 'route_id', 'stop_id', 'stop_name', 'verdict', 'fixed_reason', 'fixed_note', 'demand_source', 'optimiser_keeps', 'stop_verdict', 'gap_before_verdict', 'gap_after_verdict'],
-  'patterns.csv': ['pattern_id', 'route_id', 'route_short_name', 'headsign', 'shape_id', 'distance_source', 'demand_source', 'lost_time_source', 'cruise_speed_source', 'stopping_model'],
-  'candidates.csv': ['action', 'stop_id', 'stop_name', 'route_ids', 'pattern_ids', 'robust', 'demand_source', 'from_stop_id', 'to_stop_id', 'evidence'],
+  'stops.csv': [
+    'pattern_id',
+    'route_id',
+    'stop_id',
+    'stop_name',
+    'verdict',
+    'fixed_reason',
+    'fixed_note',
+    'demand_source',
+    'optimiser_keeps',
+    'stop_verdict',
+    'gap_before_verdict',
+    'gap_after_verdict',
+  ],
+  'patterns.csv': [
+    'pattern_id',
+    'route_id',
+    'route_short_name',
+    'headsign',
+    'shape_id',
+    'distance_source',
+    'demand_source',
+    'lost_time_source',
+    'cruise_speed_source',
+    'stopping_model',
+  ],
+  'candidates.csv': [
+    'action',
+    'stop_id',
+    'stop_name',
+    'route_ids',
+    'pattern_ids',
+    'robust',
+    'demand_source',
+    'from_stop_id',
+    'to_stop_id',
+    'evidence',
+  ],
 };
 // cells a spreadsheet would run as a formula (OWASP "CSV Injection" lists = + - @, tab and CR; common practice)
 const FORMULA_START = /^[=+\-@\t\r]/;
@@ -137,7 +196,12 @@ describe('a feed full of hostile text', () => {
     expect(block!.body).not.toContain('<');
     expect(block!.body).not.toMatch(/[\u2028\u2029]/);
     const strings = new Set(jsonStrings(JSON.parse(block!.body)));
-    for (const v of [...Object.values(STOP_IDS), ...Object.values(STOP_NAMES), ...Object.values(ROUTE_IDS), ...Object.values(ROUTE_SHORT)]) {
+    for (const v of [
+      ...Object.values(STOP_IDS),
+      ...Object.values(STOP_NAMES),
+      ...Object.values(ROUTE_IDS),
+      ...Object.values(ROUTE_SHORT),
+    ]) {
       expect(strings, JSON.stringify(v)).toContain(v);
     }
     for (const v of Object.values(HEADSIGNS)) expect(strings, JSON.stringify(v)).toContain(v);
@@ -186,7 +250,10 @@ describe('a feed full of hostile text', () => {
     for (const r of Object.values(ROUTE_IDS)) expect(strings, r).toContain(r);
     const names = Object.values(STOP_NAMES);
     for (const c of summary.top_candidates) {
-      expect(names.some((n) => c.stop_name.includes(n)), c.stop_name).toBe(true); // "between X and Y"
+      expect(
+        names.some((n) => c.stop_name.includes(n)),
+        c.stop_name,
+      ).toBe(true); // "between X and Y"
     }
     // the URL is not echoed anywhere (the same text is also stop T4's stop_id, which the gaps for review name)
     const echoed: string[] = [];
@@ -198,7 +265,11 @@ describe('a feed full of hostile text', () => {
     };
     walk(summary, '');
     expect(echoed.filter((k) => !k.endsWith('stop_id'))).toEqual([]);
-    for (const g of summary.review_gaps) expect(names.some((n) => g.name.includes(n)), g.name).toBe(true);
+    for (const g of summary.review_gaps)
+      expect(
+        names.some((n) => g.name.includes(n)),
+        g.name,
+      ).toBe(true);
     expect(summary.review_gaps.length).toBeGreaterThan(0);
   });
 
@@ -249,7 +320,15 @@ describe.skipIf(!haveChromium)('the hostile page in chromium', () => {
     const browser = await chromium.launchPersistentContext(profile, {
       executablePath: CHROMIUM,
       headless: true,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     });
     try {
       const page = await browser.newPage();
@@ -276,11 +355,18 @@ describe.skipIf(!haveChromium)('the hostile page in chromium', () => {
       await page.waitForSelector('html[data-ready="1"]');
       // open every pattern so its lazily drawn parts (strips, maps, titles with stop names) exist
       await page.$$eval('details.pattern', (ds) => ds.forEach((d) => ((d as HTMLDetailsElement).open = true)));
-      await page.waitForFunction(() => document.querySelectorAll('details.pattern svg.strip').length === document.querySelectorAll('details.pattern').length);
+      await page.waitForFunction(
+        () => document.querySelectorAll('details.pattern svg.strip').length === document.querySelectorAll('details.pattern').length,
+      );
       // hover and click over every stop mark and table row, where a smuggled handler would fire
       for (const sel of ['svg.strip *', '#cand-table tbody tr', '#pat-table tbody tr']) {
         const n = Math.min(await page.locator(sel).count(), 20);
-        for (let i = 0; i < n; i++) await page.locator(sel).nth(i).hover({ force: true, timeout: 2000 }).catch(() => {});
+        for (let i = 0; i < n; i++)
+          await page
+            .locator(sel)
+            .nth(i)
+            .hover({ force: true, timeout: 2000 })
+            .catch(() => {});
       }
       await page.fill('#cand-search', H.img); // typed into the filter, it is a search string only
       const probe = await page.evaluate(() => {
@@ -288,8 +374,14 @@ describe.skipIf(!haveChromium)('the hostile page in chromium', () => {
         return {
           imgs: document.querySelectorAll('img, iframe, object, embed').length,
           scripts: document.querySelectorAll('script').length,
-          handlers: els.flatMap((e) => Array.from(e.attributes).filter((a) => /^on/i.test(a.name)).map((a) => `${e.tagName} ${a.name}`)),
-          jsLinks: els.filter((e) => /^\s*javascript:/i.test(e.getAttribute('href') ?? e.getAttribute('src') ?? e.getAttribute('xlink:href') ?? '')).length,
+          handlers: els.flatMap((e) =>
+            Array.from(e.attributes)
+              .filter((a) => /^on/i.test(a.name))
+              .map((a) => `${e.tagName} ${a.name}`),
+          ),
+          jsLinks: els.filter((e) =>
+            /^\s*javascript:/i.test(e.getAttribute('href') ?? e.getAttribute('src') ?? e.getAttribute('xlink:href') ?? ''),
+          ).length,
           text: document.body.innerText,
           svgTitles: Array.from(document.querySelectorAll('svg title')).map((t) => t.textContent ?? ''),
           docTitle: document.title,

@@ -29,11 +29,16 @@ let preload = '';
 
 beforeAll(() => {
   tmp = mkdtempSync(join(tmpdir(), 'stopspan-membound-'));
-  const r = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], { encoding: 'utf8' });
+  const r = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-broken.mjs'), '--large', '--out', join(tmp, 'large')], {
+    encoding: 'utf8',
+  });
   expect(r.status, r.stderr).toBe(0);
   // records the process's peak resident set (KiB) when it exits, however it exits
   preload = join(tmp, 'peak-rss.mjs');
-  writeFileSync(preload, "import { writeFileSync } from 'node:fs';\nprocess.on('exit', () => writeFileSync(process.env.PEAK_RSS_FILE, String(process.resourceUsage().maxRSS)));\n");
+  writeFileSync(
+    preload,
+    "import { writeFileSync } from 'node:fs';\nprocess.on('exit', () => writeFileSync(process.env.PEAK_RSS_FILE, String(process.resourceUsage().maxRSS)));\n",
+  );
 });
 afterAll(() => {
   if (tmp) rmSync(tmp, { recursive: true, force: true });
@@ -67,11 +72,15 @@ function lyingBomb(src: string, dest: string, size: number): void {
 function runSmallHeap(feed: string, label: string, extra: string[] = []) {
   const out = join(tmp, `out-${label}`);
   const rssFile = join(tmp, `rss-${label}`);
-  const r = spawnSync(process.execPath, [`--max-old-space-size=${HEAP_MB}`, '--import', preload, CLI, 'audit', feed, '--out', out, ...extra], {
-    encoding: 'utf8',
-    timeout: 110_000,
-    env: { ...process.env, PEAK_RSS_FILE: rssFile },
-  });
+  const r = spawnSync(
+    process.execPath,
+    [`--max-old-space-size=${HEAP_MB}`, '--import', preload, CLI, 'audit', feed, '--out', out, ...extra],
+    {
+      encoding: 'utf8',
+      timeout: 110_000,
+      env: { ...process.env, PEAK_RSS_FILE: rssFile },
+    },
+  );
   const peakMiB = existsSync(rssFile) ? Number(readFileSync(rssFile, 'utf8')) / 1024 : NaN;
   console.log(`memory-bound ${label}: exit ${r.status}, peak RSS ${peakMiB.toFixed(0)} MiB, stderr ${r.stderr.trim()}`);
   return { r, out, peakMiB };
@@ -123,7 +132,15 @@ describe.skipIf(!haveCli)(`hostile archives under a ${HEAP_MB} MB heap (built CL
     const rt = join(tmp, 'realtime-bomb');
     mkdirSync(rt);
     const MiB = Buffer.alloc(1024 * 1024);
-    await pipeline(Readable.from((function* () { for (let i = 0; i < 512; i++) yield MiB; })()), createGzip({ level: 9 }), createWriteStream(join(rt, '1793773680.pb.gz')));
+    await pipeline(
+      Readable.from(
+        (function* () {
+          for (let i = 0; i < 512; i++) yield MiB;
+        })(),
+      ),
+      createGzip({ level: 9 }),
+      createWriteStream(join(rt, '1793773680.pb.gz')),
+    );
     const run = runSmallHeap(join(ROOT, 'fixtures', 'broken', 'minimal'), 'realtime-bomb', ['--observed', rt]);
     expect(run.r.signal).toBeNull();
     expect(run.r.status, run.r.stderr).toBe(0);

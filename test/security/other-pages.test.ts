@@ -34,10 +34,16 @@ function feedPair(kind: 'hostile' | 'plain'): [string, string] {
   const b = join(work, `${kind}-b`);
   if (kind === 'hostile') {
     writeHostileFeed(a);
-    writeFileSync(join(a, 'feed_info.txt'), `feed_publisher_name,feed_publisher_url,feed_lang,feed_version\n${q(HOSTILE_PUBLISHER)},https://x.example/,en,${q(HOSTILE_VERSION)}\n`);
+    writeFileSync(
+      join(a, 'feed_info.txt'),
+      `feed_publisher_name,feed_publisher_url,feed_lang,feed_version\n${q(HOSTILE_PUBLISHER)},https://x.example/,en,${q(HOSTILE_VERSION)}\n`,
+    );
   } else {
     cpSync(MINIMAL, a, { recursive: true });
-    writeFileSync(join(a, 'feed_info.txt'), 'feed_publisher_name,feed_publisher_url,feed_lang,feed_version\nVellmoor,https://x.example/,en,2026.11\n');
+    writeFileSync(
+      join(a, 'feed_info.txt'),
+      'feed_publisher_name,feed_publisher_url,feed_lang,feed_version\nVellmoor,https://x.example/,en,2026.11\n',
+    );
   }
   cpSync(a, b, { recursive: true });
   const stopName = kind === 'hostile' ? STOP_NAMES.S2 : 'Mill Ln / Stop 2';
@@ -49,7 +55,9 @@ function feedPair(kind: 'hostile' | 'plain'): [string, string] {
   writeFileSync(join(b, 'stops.txt'), tableText({ header: grid[0], rows: grid.slice(1) }));
   // the last stop of the second route, T4, leaves both of its trips
   const t4 = kind === 'hostile' ? STOP_IDS.T4 : 'T4';
-  const st = readFileSync(join(b, 'stop_times.txt'), 'utf8').split('\n').filter((l) => !l.includes(`,${t4},`));
+  const st = readFileSync(join(b, 'stop_times.txt'), 'utf8')
+    .split('\n')
+    .filter((l) => !l.includes(`,${t4},`));
   writeFileSync(join(b, 'stop_times.txt'), st.join('\n'));
   return [a, b];
 }
@@ -83,30 +91,43 @@ describe.skipIf(!existsSync(CLI))('compare, history and what-if pages with hosti
     for (const p of Object.values(hostile)) expect(p.length).toBeGreaterThan(500);
   });
 
-  it.each(['compare.html', 'history.html', 'whatif index.html'])('%s: no raw feed markup, nothing the plain page lacks, no handlers', (page) => {
-    const html = hostile[page];
-    for (const s of [...HOSTILE, AGENCY_NAME, HOSTILE_VERSION, HOSTILE_PUBLISHER]) {
-      if (/[<>"]/.test(s)) expect(html.includes(s), `raw ${JSON.stringify(s)} in ${page}`).toBe(false);
-    }
-    const scan = scanHtml(html);
-    const base = scanHtml(plain[page]);
-    for (const n of names(scan)) expect(names(base), `${page}: element <${n}>`).toContain(n);
-    for (const a of attrNames(scan)) expect(attrNames(base), `${page}: attribute ${a}`).toContain(a);
-    const attrs = scan.tags.flatMap((t) => t.attrs);
-    expect(attrs.filter((a) => /^on/.test(a.name))).toEqual([]);
-    expect(attrs.filter((a) => ['href', 'src', 'action', 'formaction', 'srcdoc', 'xlink:href'].includes(a.name) && /^\s*javascript:/i.test(a.value))).toEqual([]);
-    expect(scan.tags.filter((t) => t.name === 'script' && !t.closing).length).toBe(base.tags.filter((t) => t.name === 'script' && !t.closing).length);
-    expect(scan.bareLessThan).toBe(0);
-    for (const r of scan.rawTexts.filter((x) => x.tag === 'script' && x.attrs.some((a) => a.name === 'type' && /json/.test(a.value)))) {
-      expect(r.body).not.toContain('<');
-      JSON.parse(r.body);
-    }
-  });
+  it.each(['compare.html', 'history.html', 'whatif index.html'])(
+    '%s: no raw feed markup, nothing the plain page lacks, no handlers',
+    (page) => {
+      const html = hostile[page];
+      for (const s of [...HOSTILE, AGENCY_NAME, HOSTILE_VERSION, HOSTILE_PUBLISHER]) {
+        if (/[<>"]/.test(s)) expect(html.includes(s), `raw ${JSON.stringify(s)} in ${page}`).toBe(false);
+      }
+      const scan = scanHtml(html);
+      const base = scanHtml(plain[page]);
+      for (const n of names(scan)) expect(names(base), `${page}: element <${n}>`).toContain(n);
+      for (const a of attrNames(scan)) expect(attrNames(base), `${page}: attribute ${a}`).toContain(a);
+      const attrs = scan.tags.flatMap((t) => t.attrs);
+      expect(attrs.filter((a) => /^on/.test(a.name))).toEqual([]);
+      expect(
+        attrs.filter(
+          (a) => ['href', 'src', 'action', 'formaction', 'srcdoc', 'xlink:href'].includes(a.name) && /^\s*javascript:/i.test(a.value),
+        ),
+      ).toEqual([]);
+      expect(scan.tags.filter((t) => t.name === 'script' && !t.closing).length).toBe(
+        base.tags.filter((t) => t.name === 'script' && !t.closing).length,
+      );
+      expect(scan.bareLessThan).toBe(0);
+      for (const r of scan.rawTexts.filter((x) => x.tag === 'script' && x.attrs.some((a) => a.name === 'type' && /json/.test(a.value)))) {
+        expect(r.body).not.toContain('<');
+        JSON.parse(r.body);
+      }
+    },
+  );
 
   it('the hostile text is there, escaped: compare shows the renamed stop, history the feed version', () => {
     const text = (page: string) => {
       const s = scanHtml(hostile[page]);
-      return [...s.texts, ...s.tags.flatMap((t) => t.attrs.map((a) => a.value)), ...s.rawTexts.filter((r) => r.tag === 'script').map((r) => r.body)].join('\n');
+      return [
+        ...s.texts,
+        ...s.tags.flatMap((t) => t.attrs.map((a) => a.value)),
+        ...s.rawTexts.filter((r) => r.tag === 'script').map((r) => r.body),
+      ].join('\n');
     };
     const compare = text('compare.html');
     expect(compare).toContain(`${H.attr}${H.img} (renamed)`);

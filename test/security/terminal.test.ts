@@ -75,7 +75,9 @@ describe.skipIf(!existsSync(CLI))('escape sequences in feed text never reach the
   it('compare: versions, names and ids are shown escaped', () => {
     const a = escapeFeed();
     const b = escapeFeed();
-    const s = readFileSync(join(b, 'stops.txt'), 'utf8').replace(`Mill${ESC_CLEAR} Ln${LS}2`, `Renamed${ESC_TITLE}`).replace(`Mill${RLO}3 potS`, `Re${RLO}named\u200b3`);
+    const s = readFileSync(join(b, 'stops.txt'), 'utf8')
+      .replace(`Mill${ESC_CLEAR} Ln${LS}2`, `Renamed${ESC_TITLE}`)
+      .replace(`Mill${RLO}3 potS`, `Re${RLO}named\u200b3`);
     writeFileSync(join(b, 'stops.txt'), s);
     const r = spawnSync(process.execPath, [CLI, 'compare', a, b], { encoding: 'utf8', timeout: 60_000 });
     expect([0, 1], r.stderr).toContain(r.status);
@@ -86,7 +88,10 @@ describe.skipIf(!existsSync(CLI))('escape sequences in feed text never reach the
   it('history: the recorded feed version is shown escaped', () => {
     const feed = escapeFeed();
     const db = join(feed, '..', 'runs.sqlite');
-    const a = spawnSync(process.execPath, [CLI, 'audit', feed, '--out', join(feed, '..', 'out-h'), '--history', db, '-q'], { encoding: 'utf8', timeout: 60_000 });
+    const a = spawnSync(process.execPath, [CLI, 'audit', feed, '--out', join(feed, '..', 'out-h'), '--history', db, '-q'], {
+      encoding: 'utf8',
+      timeout: 60_000,
+    });
     expect(a.status, a.stderr).toBe(0);
     const r = spawnSync(process.execPath, [CLI, 'history', db], { encoding: 'utf8', timeout: 60_000 });
     expect(r.status, r.stderr).toBe(0);

@@ -21,8 +21,14 @@ afterAll(() => rmSync(work, { recursive: true, force: true }));
 function railFolder(name: string, at: { lat: number; lon: number }): string {
   const dir = join(work, name);
   mkdirSync(dir, { recursive: true });
-  writeFileSync(join(dir, 'stops.txt'), `stop_id,stop_name,stop_lat,stop_lon,location_type,parent_station\nC1,Vellmoor Central,${at.lat},${at.lon},1,\nC1-p,Vellmoor Central platform,${at.lat},${at.lon},0,C1\n`);
-  writeFileSync(join(dir, 'calendar.txt'), 'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n');
+  writeFileSync(
+    join(dir, 'stops.txt'),
+    `stop_id,stop_name,stop_lat,stop_lon,location_type,parent_station\nC1,Vellmoor Central,${at.lat},${at.lon},1,\nC1-p,Vellmoor Central platform,${at.lat},${at.lon},0,C1\n`,
+  );
+  writeFileSync(
+    join(dir, 'calendar.txt'),
+    'service_id,monday,tuesday,wednesday,thursday,friday,saturday,sunday,start_date,end_date\nWK,1,1,1,1,1,0,0,20260101,20261231\n',
+  );
   return dir;
 }
 
@@ -34,7 +40,10 @@ describe('whatif with a context feed', () => {
   const rail = north60(bus[4]);
   const network = () => {
     const ids = bus.map((s) => s.id);
-    const net = buildFeed({ stops: bus, trips: [{ id: 'b1', routeId: 'R1', times: ids.map((s, k) => [s, 28800 + 40 * k, 28800 + 40 * k] as [string, number, number]) }] });
+    const net = buildFeed({
+      stops: bus,
+      trips: [{ id: 'b1', routeId: 'R1', times: ids.map((s, k) => [s, 28800 + 40 * k, 28800 + 40 * k] as [string, number, number]) }],
+    });
     for (const p of net.patterns.patterns) p.tripsPerDay = 60;
     return net;
   };
@@ -56,7 +65,9 @@ describe('whatif with a context feed', () => {
     expect(near.totals.netPaxMinPerDay).toBeCloseTo(plain.totals.netPaxMinPerDay, 9);
     const text = whatifText(near);
     expect(text).toMatch(/removes S5 Vellmoor S5: [^\n]*; beside station Vellmoor Central \(vellmoor-rail\), 60 m !$/m);
-    expect(text).toMatch(/^other modes: 1 stop this changes lies within walking distance of a station of a context feed, a transfer point the audit keeps \(marked !\): S5 Vellmoor S5 \(station Vellmoor Central \(vellmoor-rail\), 60 m\)$/m);
+    expect(text).toMatch(
+      /^other modes: 1 stop this changes lies within walking distance of a station of a context feed, a transfer point the audit keeps \(marked !\): S5 Vellmoor S5 \(station Vellmoor Central \(vellmoor-rail\), 60 m\)$/m,
+    );
     expect(whatifText(plain)).not.toContain('other modes');
   });
 });
@@ -79,9 +90,13 @@ describe('stopspan whatif --context on the demo feed', () => {
     const change = doc.patterns.flatMap((p: any) => p.changes).find((c: any) => c.stop_id === 'MKT-05-a');
     expect(change.near_station).toBe('station Vellmoor Central (vellmoor-metro), 60 m');
     const { readFileSync } = await import('node:fs');
-    expect(readFileSync(join(out, 'index.html'), 'utf8')).toContain('<li class="near-station">Market St / Gorse Hill Rd (MKT-05-a) removed beside station Vellmoor Central (vellmoor-metro), 60 m: a transfer point to another mode, which the audit keeps.</li>');
+    expect(readFileSync(join(out, 'index.html'), 'utf8')).toContain(
+      '<li class="near-station">Market St / Gorse Hill Rd (MKT-05-a) removed beside station Vellmoor Central (vellmoor-metro), 60 m: a transfer point to another mode, which the audit keeps.</li>',
+    );
     const t = await runCli(['whatif', DEMO, '--remove', 'MKT-05-a', '--context', context]);
-    expect(t.stdout).toMatch(/removes MKT-05-a Market St \/ Gorse Hill Rd: [^\n]*; beside station Vellmoor Central \(vellmoor-metro\), 60 m !$/m);
+    expect(t.stdout).toMatch(
+      /removes MKT-05-a Market St \/ Gorse Hill Rd: [^\n]*; beside station Vellmoor Central \(vellmoor-metro\), 60 m !$/m,
+    );
   });
 
   it('refuses an unreadable context feed with one line naming it', async () => {

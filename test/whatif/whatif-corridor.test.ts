@@ -10,7 +10,16 @@ import type { ModelParams } from '../../src/model/params.js';
 // stops every 200 m, except that the stop at index 5 sits 100 m after its left neighbour and 300 m before its right one
 const distM = [0, 200, 400, 600, 800, 900, 1200, 1400, 1600, 1800, 2000, 2200];
 const { feed, patterns } = handmadeNetwork({ distM, tripsPerDay: 40, sharedAt: 9 });
-const params: Partial<ModelParams> = { cruise_speed_mps: 11.176, stopping_model: 'always', door_time_s: 5, accel_mps2: 1.22, decel_mps2: 1.22, reentry_delay_s: 2, walk_speed_mps: 1.2, walk_weight: 2 };
+const params: Partial<ModelParams> = {
+  cruise_speed_mps: 11.176,
+  stopping_model: 'always',
+  door_time_s: 5,
+  accel_mps2: 1.22,
+  decel_mps2: 1.22,
+  reentry_delay_s: 2,
+  walk_speed_mps: 1.2,
+  walk_weight: 2,
+};
 
 describe('removing one stop between uneven neighbours', () => {
   const audit = runAudit(feed, patterns, { params });
@@ -40,7 +49,10 @@ describe('removing one stop between uneven neighbours', () => {
     expect(e.runTimeSavedPerTripS).toBeCloseTo(p, 6);
     expect(e.vehicleHoursPerDay).toBeCloseTo((p * 40) / 3600, 9);
     expect(e.largestGapAfterM).toBeCloseTo(400, 6);
-    expect(e.netPaxMinPerDay).toBeCloseTo(e.walkAddedPaxMinPerDay - e.walkSavedPaxMinPerDay - e.rideSavedPaxMinPerDay + e.neighboursExtraPaxMinPerDay, 9);
+    expect(e.netPaxMinPerDay).toBeCloseTo(
+      e.walkAddedPaxMinPerDay - e.walkSavedPaxMinPerDay - e.rideSavedPaxMinPerDay + e.neighboursExtraPaxMinPerDay,
+      9,
+    );
   });
 
   it('weighs the walk in the sensitivity cases in proportion to the walk weight', () => {

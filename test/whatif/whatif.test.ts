@@ -47,7 +47,11 @@ describe('evaluateScenario', () => {
     const s3 = feed.stops[feed.stopIndex.get('v1-3')!];
     const s9 = feed.stops[feed.stopIndex.get('v1-9')!];
     const s10 = feed.stops[feed.stopIndex.get('v1-10')!];
-    const sc = { remove: ['v1-6'], move: [{ stop: 'v1-3', lat: s3.lat, lon: s3.lon + 0.0008 }], add: [{ lat: (s9.lat + s10.lat) / 2, lon: (s9.lon + s10.lon) / 2, route: 'V1' }] };
+    const sc = {
+      remove: ['v1-6'],
+      move: [{ stop: 'v1-3', lat: s3.lat, lon: s3.lon + 0.0008 }],
+      add: [{ lat: (s9.lat + s10.lat) / 2, lon: (s9.lon + s10.lon) / 2, route: 'V1' }],
+    };
     const r = evaluateScenario(feed, patterns, sc, { params });
     expect(r.totals.walkSavedPaxMinPerDay).toBeGreaterThan(0);
     for (const c of r.sensitivity) {
@@ -88,10 +92,16 @@ describe('evaluateScenario', () => {
   });
 
   it('refuses unknown stops, terminals, far coordinates, ambiguous names and unknown keys before computing', () => {
-    expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['nowhere'] }, { params })).message).toMatch(/remove\[0\]: unknown stop "nowhere"/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['nowhere'] }, { params })).message).toMatch(
+      /remove\[0\]: unknown stop "nowhere"/,
+    );
     expect(thrown(() => evaluateScenario(feed, patterns, { remove: ['v1-0'] }, { params })).message).toMatch(/terminal of pattern V1:0:1/);
-    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.2, lon: 4.3, route: 'V1' }] }, { params })).message).toMatch(/add\[0\]: .* m from the nearest pattern of route V1 \(limit 200 m/);
-    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(/unknown route V7 \(neither a route_id nor a route_short_name\)/);
+    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.2, lon: 4.3, route: 'V1' }] }, { params })).message).toMatch(
+      /add\[0\]: .* m from the nearest pattern of route V1 \(limit 200 m/,
+    );
+    expect(thrown(() => evaluateScenario(feed, patterns, { add: [{ lat: 52.1, lon: 4.31, route: 'V7' }] }, { params })).message).toMatch(
+      /unknown route V7 \(neither a route_id nor a route_short_name\)/,
+    );
     expect(thrown(() => parseScenario({ remove: ['v1-3'], close: ['v1-4'] })).message).toMatch(/invalid scenario key close/);
     expect(thrown(() => parseScenario({})).code).toBe('bad-scenario');
     const twin = handmadeNetwork({ distM: even, tripsPerDay: 50, sharedAt: 12 });
@@ -99,7 +109,10 @@ describe('evaluateScenario', () => {
     const twinError = thrown(() => evaluateScenario(twin.feed, twin.patterns, { remove: [twin.feed.stops[4].name] }, { params }));
     expect(twinError.message).toMatch(/ambiguous \(2 stops\)/);
     expect(twinError.context.choices?.map((c) => c.split(' ')[0])).toEqual(['v1-3', 'v1-4']);
-    expect(evaluateScenario(twin.feed, twin.patterns, { remove: [{ stop: twin.feed.stops[4].name, both_directions: true }] }, { params }).patterns[0].removedStopIds).toEqual(['v1-3', 'v1-4']);
+    expect(
+      evaluateScenario(twin.feed, twin.patterns, { remove: [{ stop: twin.feed.stops[4].name, both_directions: true }] }, { params })
+        .patterns[0].removedStopIds,
+    ).toEqual(['v1-3', 'v1-4']);
     expect(evaluateScenario(feed, patterns, { remove: ['Vellmoor Street 7'] }, { params }).patterns[0].removedStopIds).toEqual(['v1-7']);
   });
 

@@ -82,9 +82,13 @@ export function histogramSvg(input: HistogramInput, units: Units): string {
   parts.push(`<line class="axis" x1="${PAD.left}" x2="${WIDTH - PAD.right}" y1="${axisY}" y2="${axisY}"/>`);
   const tickStepM = units === 'imperial' ? 1000 * 0.3048 : 200;
   for (let m = 0; m <= (nBins + 1) * binM + 1e-9; m += tickStepM) {
-    parts.push(`<text class="tick" x="${f1(xOf(m))}" y="${axisY + 16}" text-anchor="middle">${units === 'imperial' ? Math.round(metresToFeet(m)) : Math.round(m)}</text>`);
+    parts.push(
+      `<text class="tick" x="${f1(xOf(m))}" y="${axisY + 16}" text-anchor="middle">${units === 'imperial' ? Math.round(metresToFeet(m)) : Math.round(m)}</text>`,
+    );
   }
-  parts.push(`<text class="axis-label" x="${PAD.left + plotW / 2}" y="${HEIGHT - 6}" text-anchor="middle">gap between consecutive stops (${units === 'imperial' ? 'ft' : 'm'}); last bar: ${label(nBins * binM)} or more</text>`);
+  parts.push(
+    `<text class="axis-label" x="${PAD.left + plotW / 2}" y="${HEIGHT - 6}" text-anchor="middle">gap between consecutive stops (${units === 'imperial' ? 'ft' : 'm'}); last bar: ${label(nBins * binM)} or more</text>`,
+  );
   parts.push(`<text class="tick" x="${PAD.left - 6}" y="${PAD.top + 4}" text-anchor="end">${top}</text>`);
   parts.push(`<text class="tick" x="${PAD.left - 6}" y="${axisY}" text-anchor="end">0</text>`);
   parts.push(`<text class="axis-label" transform="translate(14 ${PAD.top + plotH / 2}) rotate(-90)" text-anchor="middle">gaps</text>`);

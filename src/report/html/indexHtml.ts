@@ -131,9 +131,18 @@ export function pageData(result: AuditResult, units: Units, maxPathPoints: numbe
   const patternPos = new Map(result.patterns.map((p, i) => [p.patternId, i]));
   const orderedStops = result.patterns.map((p) => (stopsBy.get(p.patternId) ?? []).slice().sort((a, b) => a.stopIndex - b.stopIndex));
   const candsOn = candidatesOnPatterns(result, orderedStops, patternPos);
-  const patterns = result.patterns.map((p: PatternResult, pi) => patternData(p, orderedStops[pi], wideBy.get(p.patternId) ?? [], candsOn[pi], stopTable.refOf, maxPathPoints));
+  const patterns = result.patterns.map((p: PatternResult, pi) =>
+    patternData(p, orderedStops[pi], wideBy.get(p.patternId) ?? [], candsOn[pi], stopTable.refOf, maxPathPoints),
+  );
   const candidates = result.candidates.map((c) => candidateData(c, patternPos));
-  return { units, assumed: result.demandSource !== 'observed', stopTable: stopTable.table, patterns, candidates, density: densityData(result) };
+  return {
+    units,
+    assumed: result.demandSource !== 'observed',
+    stopTable: stopTable.table,
+    patterns,
+    candidates,
+    density: densityData(result),
+  };
 }
 
 /** Each pattern's stops, without timing points where no one boards or alights. */
@@ -292,7 +301,15 @@ function densityData(result: AuditResult): Record<string, unknown> | null {
   people.sort((a, b) => a - b);
   const top = people.length ? Math.max(1, people[Math.min(people.length - 1, Math.floor(people.length * 0.95))]) : 1;
   const r9 = (v: number): number => Math.round(v * 1e9) / 1e9;
-  return { m: g.cellM, near: DENSITY_NEAR_M, max: MAP_DENSITY_CELLS, step: [r9(g.latStep), r9(g.lonStep)], o: [g.lat0, g.lon0], top, cells: g.cells };
+  return {
+    m: g.cellM,
+    near: DENSITY_NEAR_M,
+    max: MAP_DENSITY_CELLS,
+    step: [r9(g.latStep), r9(g.lonStep)],
+    o: [g.lat0, g.lon0],
+    top,
+    cells: g.cells,
+  };
 }
 
 // why a wide gap has no proposed stop, in words without units (summary.json's detail says it in metric)
@@ -322,7 +339,7 @@ function topCandidatesHtml(result: AuditResult, assumedNote: string): string {
   const topAdditions = topOf('add');
   return topRemovals.length || topAdditions.length
     ? `<h4>Stops to remove</h4>${topRemovals.length ? `<ol class="top-cands">${topRemovals.map(topItem).join('')}</ol>` : '<p class="note">No removal saves riders time under these parameters.</p>'}` +
-      `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
+        `<h4>Stops to add</h4>${topAdditions.length ? `<ol class="top-cands">${topAdditions.map(topItem).join('')}</ol>` : '<p class="note">No addition with evidence that people are there saves riders time under these parameters.</p>'}`
     : '<p class="note">No stop change saves riders time under these parameters.</p>';
 }
 
@@ -331,7 +348,10 @@ function reviewGapsHtml(result: AuditResult, d: (m: number | null) => string): s
   const reviewShown = result.reviewGaps.slice(0, 50);
   return result.reviewGaps.length
     ? `<p class="note">${h(fmt(result.reviewGaps.length))} wide gap${result.reviewGaps.length === 1 ? '' : 's'} without evidence that people are there or that a bus can stop there (a bridge, an expressway, a park, an airfield): no stop is proposed and no passenger-minute figure given. Longest first${result.reviewGaps.length > reviewShown.length ? `, the first ${reviewShown.length} (all in summary.json)` : ''}.</p><div class="table-wrap"><table><thead><tr><th scope="col">gap</th><th scope="col">routes</th><th scope="col" class="num">length</th><th scope="col">why no stop is proposed</th></tr></thead><tbody>${reviewShown
-        .map((g) => `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`)
+        .map(
+          (g) =>
+            `<tr><td>${h(g.name)}</td><td>${h(g.routeIds.join(', '))}</td><td class="num">${h(d(g.gapM))}</td><td>${h(REVIEW_REASON[g.reason])}</td></tr>`,
+        )
         .join('')}</tbody></table></div>`
     : '';
 }
@@ -374,7 +394,9 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   const { units = 'metric', maxPathPoints = 400 } = options;
   checkUnits(units);
   if (!Number.isInteger(maxPathPoints) || maxPathPoints < 2) {
-    throw new StopspanError('bad-option', `invalid option maxPathPoints: expected an integer >= 2, got ${maxPathPoints}`, { value: String(maxPathPoints) });
+    throw new StopspanError('bad-option', `invalid option maxPathPoints: expected an integer >= 2, got ${maxPathPoints}`, {
+      value: String(maxPathPoints),
+    });
   }
   const d = (m: number | null): string => formatShortDistance(m, units);
   const hl = result.headline;
@@ -387,7 +409,14 @@ export function indexHtml(result: AuditResult, options: HtmlOptions = {}): strin
   const bandLow = median(result.patterns.map((p) => p.bandLowM).filter(Number.isFinite), 0);
   const bandHigh = median(result.patterns.map((p) => p.bandHighM).filter(Number.isFinite), 0);
   const hist = histogramSvg(
-    { gapsM: result.gaps.map((g) => g.gapM), verdicts: result.gaps.map((g) => g.verdict), bandLowM: bandLow, bandHighM: bandHigh, optimalM: hl.meanOptimalSpacingM, medianGapM: hl.medianGapM },
+    {
+      gapsM: result.gaps.map((g) => g.gapM),
+      verdicts: result.gaps.map((g) => g.verdict),
+      bandLowM: bandLow,
+      bandHighM: bandHigh,
+      optimalM: hl.meanOptimalSpacingM,
+      medianGapM: hl.medianGapM,
+    },
     units,
   );
   const belowBand = result.gaps.filter((g) => g.verdict === 'short').length;
