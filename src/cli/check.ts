@@ -62,7 +62,7 @@ export function registerCheck(program: Command): void {
   const codes = FINDING_CODES.map((c) => `  ${c.padEnd(20)} ${FINDINGS[c].severity.padEnd(8)} ${FINDINGS[c].explanation}`).join('\n');
   program
     .command('check')
-    .description('Feed-quality findings for nightly jobs; exit 1 when a finding at or above --fail-on exists.')
+    .description('check a feed for nightly jobs: list its findings, exit 1 when one is at or above --fail-on')
     .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
     .option('--json', 'print the report as JSON on stdout')
     .option('--fail-on <severity>', 'exit 1 when a finding at or above this severity exists: error, warning, info or never', 'error')

@@ -42,7 +42,7 @@ interface CompareCliOptions {
 export function registerCompare(program: Command): void {
   program
     .command('compare')
-    .description('What changed between two versions of a feed: stops, patterns and spacing before and after.')
+    .description('compare two versions of a feed: stops, patterns, trips and spacing before and after')
     .argument('<old>', 'the older feed: zip, folder or http(s) URL')
     .argument('<new>', 'the newer feed')
     .option('--json', 'print the comparison as JSON on stdout')

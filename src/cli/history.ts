@@ -23,7 +23,7 @@ interface HistoryCliOptions {
 export function registerHistory(program: Command): void {
   program
     .command('history')
-    .description('The trend of runs recorded with --history, one line per feed: a table, JSON, or an HTML page with --out.')
+    .description('show the trend of runs recorded with --history, one line per feed: a table, JSON, or an HTML page with --out')
     .argument('<file>', 'the history database (SQLite)')
     .option('--json', 'print the runs as JSON on stdout')
     .option('--out <dir>', 'also write history.html into this folder')
