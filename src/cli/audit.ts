@@ -1,5 +1,6 @@
 // `stopspan audit FEED`: the whole audit, written as reports into a folder.
 
+import { isoToGtfsDate } from '../gtfs/calendar.js';
 import type { Command } from 'commander';
 import { terminalText } from '../common/terminalText.js';
 import path from 'node:path';
@@ -95,6 +96,7 @@ export function registerAudit(program: Command): void {
         if (opts.units !== 'metric' && opts.units !== 'imperial') {
           throw new StopspanError('bad-option', 'invalid option --units: expected metric or imperial', { value: opts.units });
         }
+        if (opts.date !== undefined) isoToGtfsDate(opts.date, '--date'); // the one date rule, before anything is read
         const outDir = opts.out ?? path.join('reports', feedName(feedArg));
         const params = loadParams(opts.params, paramOverrides(opts));
         const force = Boolean(opts.force);

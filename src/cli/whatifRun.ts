@@ -5,6 +5,7 @@ import { parseLandUseWeights } from '../landuse/readLandUse.js';
 import { readLandUseAside } from '../landuse/readLandUseAside.js';
 import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
+import { isoToGtfsDate } from '../gtfs/calendar.js';
 import { buildPatterns } from '../network/buildPatterns.js';
 import { contextStops } from '../audit/contextStations.js';
 import {
@@ -128,9 +129,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
     async () => {
       const scenario = scenarioOf(opts);
       const units = checkUnits(opts.units ?? 'metric');
-      if (opts.date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(opts.date)) {
-        throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: opts.date });
-      }
+      if (opts.date !== undefined) isoToGtfsDate(opts.date, '--date');
       const params = loadParams(opts.params, paramOverrides(opts));
       const outOptions = {
         force: Boolean(opts.force),

@@ -48,7 +48,9 @@ export class StopspanError extends Error {
     if (file) where += file;
     if (line !== undefined) where += `${where ? ':' : 'line '}${line}`;
     if (column) where += `${where ? ' ' : ''}column ${column}`;
-    const got = value !== undefined ? ` (got ${JSON.stringify(clip(value, 60))})` : '';
+    // the value once: a message that already quotes it (or ends "got <value>") is not followed by it again
+    const quoted = value !== undefined && (this.message.includes(JSON.stringify(value)) || this.message.includes(`got ${value}`));
+    const got = value !== undefined && !quoted ? ` (got ${JSON.stringify(clip(value, 60))})` : '';
     return terminalText(`${where ? where + ': ' : ''}${this.message.replace(/[\r\n]+/g, ' ')}${got}`);
   }
 }

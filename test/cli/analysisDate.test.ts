@@ -61,3 +61,21 @@ describe('the default analysis date', () => {
     expect(JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8')).date).toBe('2026-10-13');
   });
 });
+
+describe('a --date that is not a date', () => {
+  it('is refused by every command with the same one line, naming the option once, before the feed is read', async () => {
+    const feed = join(dir, 'no-such-feed.zip'); // never read: the date is checked first
+    const runs = await Promise.all([
+      runCli(['audit', feed, '--date', '2026-02-30', '--out', join(dir, 'bad-date')]),
+      runCli(['whatif', feed, '--date', '2026-02-30', '--remove', 'S1']),
+      runCli(['check', feed, '--date', '2026-02-30']),
+      runCli(['compare', feed, feed, '--date', '2026-02-30']),
+    ]);
+    // 2026 is not a leap year, so 30 February does not exist [C, ECMAScript Date: Date.UTC(2026, 1, 30) rolls into March]
+    expect(new Date(Date.UTC(2026, 1, 30)).getUTCMonth()).toBe(2);
+    for (const r of runs) {
+      expect(r.code).toBe(2);
+      expect(r.stderr).toBe('error: invalid option --date: expected a date YYYY-MM-DD, got 2026-02-30\n');
+    }
+  });
+});
