@@ -38,6 +38,8 @@ export function checkText(report: CheckReport): string {
   }
   const s = report.bySeverity;
   lines.push('');
-  lines.push(`${s.error} error, ${s.warning} warning, ${s.info} info finding(s)`);
+  // kinds of finding at each severity (what --fail-on and the history count), then their occurrences
+  const occurrences = report.findings.reduce((n, x) => n + x.count, 0);
+  lines.push(`kinds of finding: ${s.error} error, ${s.warning} warning, ${s.info} info (${occurrences} finding(s) in all)`);
   return lines.join('\n') + '\n';
 }

@@ -67,7 +67,7 @@ describe('stopspan check', () => {
     const r = await cli(['check', join(FIX, 'clean'), '--today', TODAY]);
     expect(r.code).toBe(0);
     expect(r.stdout).toContain('no findings');
-    expect(r.stdout).toContain('0 error, 0 warning, 0 info finding(s)');
+    expect(r.stdout).toContain('kinds of finding: 0 error, 0 warning, 0 info (0 finding(s) in all)');
     expect(r.stderr).toBe('');
   });
 

@@ -29,5 +29,13 @@ describe('renderers', () => {
     const report = checkText(checkFeed(b.feed, b.patterns, { today: '2026-10-14' }));
     expect(report).not.toContain('\u001b');
     expect(report).toMatch(/ERROR\s+coordinate-fault \(1\)/);
+    // the closing line counts kinds of finding by severity, as --fail-on does, and every occurrence beside them
+    const checked = checkFeed(b.feed, b.patterns, { today: '2026-10-14' });
+    const kinds = checked.bySeverity;
+    const all = checked.findings.reduce((n, x) => n + x.count, 0);
+    expect(checked.findings.length).toBe(kinds.error + kinds.warning + kinds.info);
+    expect(report.trimEnd().split('\n').at(-1)).toBe(
+      `kinds of finding: ${kinds.error} error, ${kinds.warning} warning, ${kinds.info} info (${all} finding(s) in all)`,
+    );
   });
 });
