@@ -3,19 +3,17 @@
 // (also from the keyboard), feed text holding markup renders literally and runs nothing, a screenshot
 // is not blank, the imperial page shows feet, and a large network stays small and usable.
 
-import { existsSync } from 'node:fs';
 import { mkdtemp, rm, stat, writeFile, mkdir } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
+import { CHROMIUM, haveChromium, launchChromium } from '../helpers/browser.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { HOSTILE_NAMES, makeEmptyResult, makeSampleResult } from './sampleResult.js';
 import { looksDrawn, pngStats } from './pngCheck.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const haveChromium = existsSync(CHROMIUM);
 if (!haveChromium) console.warn(`browser tests skipped: ${CHROMIUM} is absent (apt-get install chromium)`);
 
 interface Visit {
@@ -63,22 +61,8 @@ describe.skipIf(!haveChromium)('the HTML report in chromium', () => {
   const parseNum = (s: string): number => Number(s.replace(/[+,]/g, '').replace('–', 'NaN'));
 
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
     work = await mkdtemp(join(tmpdir(), 'stopspan-browser-'));
-    // playwright-core takes the fresh --user-data-dir as launchPersistentContext's first argument
-    browser = await chromium.launchPersistentContext(join(work, 'profile'), {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
-    });
+    browser = await launchChromium(join(work, 'profile'));
     await writeReport(sample, join(work, 'metric'), { formats: ['html'] });
     await writeReport(sample, join(work, 'imperial'), { formats: ['html'], units: 'imperial' });
   });

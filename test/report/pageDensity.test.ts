@@ -4,12 +4,13 @@
 // the same audit without the layer draws none; the empty stretches are still marked on the strip; and the
 // page grows by no more than the documented cap on the squares it carries.
 
-import { existsSync, readFileSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { BrowserContext, Page } from 'playwright-core';
+import { CHROMIUM, haveChromium, launchChromium } from '../helpers/browser.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import type { AuditResult } from '../../src/audit/types.js';
@@ -20,8 +21,6 @@ import { writeReport } from '../../src/report/writeReport.js';
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
 const LAYER = join(ROOT, 'fixtures/demo/land-use.geojson');
-const CHROMIUM = '/usr/bin/chromium';
-const haveChromium = existsSync(CHROMIUM);
 if (!haveChromium) console.warn(`page density tests skipped: ${CHROMIUM} is absent`);
 
 let work: string;
@@ -70,20 +69,7 @@ describe('the density squares in the page data', () => {
 describe.skipIf(!haveChromium)('the density squares under the maps in chromium', () => {
   let browser: BrowserContext;
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
-    browser = await chromium.launchPersistentContext(join(work, 'profile'), {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
-    });
+    browser = await launchChromium(join(work, 'profile'));
   }, 60_000);
   afterAll(async () => {
     await browser?.close();

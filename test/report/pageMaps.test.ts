@@ -4,18 +4,16 @@
 // route or name that leaves only the matching sections, an index of routes, sections made in chunks, and
 // candidate links and #p- addresses that reach a pattern whose chunk was not made yet.
 
-import { existsSync } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { BrowserContext, Page } from 'playwright-core';
+import { CHROMIUM, haveChromium, launchChromium } from '../helpers/browser.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { writeReport } from '../../src/report/writeReport.js';
 import { makeSampleResult } from './sampleResult.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const haveChromium = existsSync(CHROMIUM);
 if (!haveChromium) console.warn(`pattern map tests skipped: ${CHROMIUM} is absent`);
 
 describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => {
@@ -25,21 +23,8 @@ describe.skipIf(!haveChromium)('pattern maps and navigation in chromium', () => 
   const big = makeSampleResult({ patterns: 450, stopsPerPattern: 8 });
 
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
     work = await mkdtemp(join(tmpdir(), 'stopspan-maps-'));
-    browser = await chromium.launchPersistentContext(join(work, 'profile'), {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
-    });
+    browser = await launchChromium(join(work, 'profile'));
     await writeReport(sample, join(work, 'sample'), { formats: ['html'] });
     await writeReport(big, join(work, 'big'), { formats: ['html'] });
   });

@@ -12,13 +12,13 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { BrowserContext, Page } from 'playwright-core';
+import { CHROMIUM, haveChromium, launchChromium } from '../helpers/browser.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditFeed } from '../../src/audit/auditFeed.js';
 import { PAGE_STYLE } from '../../src/report/html/pageStyle.js';
 import { writeReport } from '../../src/report/writeReport.js';
 import { makeSampleResult } from './sampleResult.js';
 
-const CHROMIUM = '/usr/bin/chromium';
 const FEED = new URL('../../fixtures/demo/demo-feed.zip', import.meta.url).pathname;
 const RIDERSHIP = new URL('../../fixtures/demo/ridership.csv', import.meta.url).pathname;
 const ready = existsSync(CHROMIUM) && existsSync(FEED);
@@ -58,24 +58,11 @@ describe.skipIf(!ready)('the demo page printed and on a phone, in chromium', () 
   let html: string;
 
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
     work = await mkdtemp(join(tmpdir(), 'stopspan-print-'));
     const { result } = await auditFeed(FEED, { ridership: RIDERSHIP });
     await writeReport(result, join(work, 'demo'), { formats: ['html'] });
     html = pathToFileURL(join(work, 'demo', 'index.html')).href;
-    browser = await chromium.launchPersistentContext(join(work, 'profile'), {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
-    });
+    browser = await launchChromium(join(work, 'profile'));
   });
   afterAll(async () => {
     await browser?.close();

@@ -34,8 +34,8 @@ import {
 import { jsonStrings, scanHtml, type HtmlScan } from './htmlScan.js';
 import { CLI } from '../helpers/cli.js';
 import { REPORT_MARKER } from '../../src/report/writeFolder.js';
+import { CHROMIUM, haveChromium, launchChromium } from '../helpers/browser.js';
 
-const CHROMIUM = '/usr/bin/chromium';
 // the output contract (design notes, section 5)
 const REPORT_FILES = [
   REPORT_MARKER,
@@ -309,27 +309,12 @@ describe('a feed full of hostile text', () => {
   });
 });
 
-const haveChromium = existsSync(CHROMIUM);
 if (!haveChromium) console.warn(`test/security/injection.test.ts: browser check skipped: ${CHROMIUM} is absent (apt-get install chromium)`);
 
 describe.skipIf(!haveChromium)('the hostile page in chromium', () => {
   it('fires no dialog, holds no injected element or handler, and shows the feed text literally', async () => {
-    const { chromium } = await import('playwright-core');
     const profile = mkdtempSync(join(tmpdir(), 'stopspan-inject-profile-'));
-    // playwright-core takes the fresh --user-data-dir as launchPersistentContext's first argument
-    const browser = await chromium.launchPersistentContext(profile, {
-      executablePath: CHROMIUM,
-      headless: true,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
-    });
+    const browser = await launchChromium(profile);
     try {
       const page = await browser.newPage();
       const dialogs: string[] = [];
