@@ -57,16 +57,9 @@ export interface WhatifOpts {
 }
 
 /** The scenario from a file and the command-line options together, checked as one. */
-export function scenarioOf(opts: {
-  remove?: string[];
-  add?: string[];
-  move?: string[];
-  scenario?: string;
-  route?: string[];
-  direction?: string;
-  headsign?: string;
-  bothDirections?: boolean;
-}): ScenarioInput {
+export function scenarioOf(
+  opts: Pick<WhatifOpts, 'remove' | 'add' | 'move' | 'scenario' | 'route' | 'direction' | 'headsign' | 'bothDirections'>,
+): ScenarioInput {
   const fromFile: ScenarioInput = opts.scenario ? loadScenarioFile(opts.scenario) : {};
   const given = Boolean(opts.remove?.length || opts.add?.length || opts.move?.length);
   if (!opts.scenario && !given) {
