@@ -9,6 +9,7 @@
 
 import { isAscii } from 'node:buffer';
 import { closeSync, openSync, readSync, statSync, readFileSync } from 'node:fs';
+import { readInPieces } from '../common/readInPieces.js';
 import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
@@ -608,26 +609,6 @@ export function readLandUse(
 ): LandUseLayer {
   if (looksLikeGeoJson(file)) return readGeoJson(file, columns);
   const r = new CsvLandUseReader(file, columns);
-  let fd: number;
-  try {
-    fd = openSync(file, 'r');
-  } catch (e) {
-    throw new StopspanError('bad-land-use', `cannot read land-use file: ${(e as Error).message}`, { file });
-  }
-  try {
-    const buf = Buffer.alloc(1 << 20);
-    for (;;) {
-      let n: number;
-      try {
-        n = readSync(fd, buf, 0, buf.length, null);
-      } catch (e) {
-        throw new StopspanError('bad-land-use', `cannot read land-use file: ${(e as Error).message}`, { file });
-      }
-      if (n === 0) break;
-      r.parser.push(buf.subarray(0, n));
-    }
-  } finally {
-    closeSync(fd);
-  }
+  readInPieces(file, (piece) => r.parser.push(piece), 'bad-land-use', 'land-use file');
   return r.finish(warnings);
 }

@@ -7,7 +7,7 @@
 // duplicate checks, so only the rows kept are remembered. The file is read in pieces, never whole, and
 // refused past MAX_RIDERSHIP_ROWS data rows.
 
-import { closeSync, openSync, readSync } from 'node:fs';
+import { readInPieces } from '../common/readInPieces.js';
 import { parseDecimal } from '../common/decimal.js';
 import { StopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
@@ -169,26 +169,6 @@ export function parseRidership(text: string, feed: Feed, { file, warnings }: { f
 /** Reads and parses a ridership file, 1 MiB at a time. */
 export function loadRidership(path: string, feed: Feed, { warnings }: { warnings: WarningSink }): Ridership {
   const r = new RidershipReader(feed, path, warnings);
-  let fd: number;
-  try {
-    fd = openSync(path, 'r');
-  } catch (e) {
-    throw new StopspanError('bad-ridership', `cannot read ridership file: ${(e as Error).message}`, { file: path });
-  }
-  try {
-    const buf = Buffer.alloc(1 << 20);
-    for (;;) {
-      let n: number;
-      try {
-        n = readSync(fd, buf, 0, buf.length, null);
-      } catch (e) {
-        throw new StopspanError('bad-ridership', `cannot read ridership file: ${(e as Error).message}`, { file: path });
-      }
-      if (n === 0) break;
-      r.parser.push(buf.subarray(0, n));
-    }
-  } finally {
-    closeSync(fd);
-  }
+  readInPieces(path, (piece) => r.parser.push(piece), 'bad-ridership', 'ridership file');
   return r.finish();
 }
