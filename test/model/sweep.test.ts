@@ -9,6 +9,7 @@ import { assumedDemand } from '../../src/model/demand.js';
 import { MAX_WINDOW_STOPS, optimiseStops, optimiseStopsAt } from '../../src/model/optimiser.js';
 // @ts-expect-error: a plain ES module of the generators, without type declarations
 import { prng } from '../../scripts/lib/seeded.mjs';
+import { growthRatio } from '../helpers/growth.js';
 
 const SEED = process.env.STOPSPAN_FUZZ_SEED !== undefined ? Number(process.env.STOPSPAN_FUZZ_SEED) : 20261203;
 console.log(`test/model/sweep.test.ts: seed ${SEED} (replay with STOPSPAN_FUZZ_SEED=${SEED})`);
@@ -171,15 +172,12 @@ describe('forward optimiser', () => {
       return new Corridor({ posM, boardPerDay: d.boardPerDay, alightPerDay: d.alightPerDay, tripsPerDay: 60, catchmentHalfMaxM: 400 });
     };
     const s: CostSettings = { walkSpeedMps: 1.3, walkWeight: 2, lostTimePerStopS: 20, stoppingModel: 'poisson' };
-    const time = (n: number) => {
+    const optimise = (n: number) => {
       const c = make(n);
-      const t0 = performance.now();
-      optimiseStops(c, s, { maxGapM: 800 });
-      return performance.now() - t0;
+      return () => optimiseStops(c, s, { maxGapM: 800 });
     };
-    time(500); // warm the code up
-    const small = Math.min(time(1_000), time(1_000));
-    const large = Math.min(time(8_000), time(8_000));
-    expect(large / small).toBeLessThan(8 * 2.5); // linear within noise (the cube of the stops would be 512 times)
+    // 8 000 stops against eight runs of 1 000: near 1 when linear, 8 when quadratic, 64 with the cube
+    const { ratio, text } = growthRatio(optimise(1_000), optimise(8_000), 8);
+    expect(ratio, text).toBeLessThan(4);
   });
 });
