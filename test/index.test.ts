@@ -73,7 +73,11 @@ describe('the public API', () => {
       types: string;
       exports: Record<string, string>;
       files: string[];
+      license: string;
     };
+    // the licence package.json names is the one the LICENSE file grants (SPDX identifier MIT)
+    expect(pkg.license).toBe('MIT');
+    expect(readFileSync(join(ROOT, 'LICENSE'), 'utf8')).toMatch(/^MIT License\n[\s\S]*Permission is hereby granted, free of charge/);
     expect(pkg.exports['.']).toBe(`./${pkg.main}`);
     expect(pkg.main).toBe('dist/index.js'); // tsc's output of src/index.ts (tsconfig.json: rootDir src, outDir dist)
     expect(pkg.types).toBe('dist/index.d.ts');
