@@ -52,14 +52,42 @@ export function errorDocument(e: unknown, exitCode: number): Record<string, unkn
   return errorJsonDocument(error, exitCode);
 }
 
-/** A progress callback that draws one updating line on a TTY and nothing otherwise (or when quiet). */
-export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefined; done: () => void } {
-  const tty = process.stderr.isTTY === true;
-  if (quiet || !tty) return { onProgress: undefined, done: () => {} };
+/** Where progress is drawn: stderr, or a stand-in in tests. */
+export interface ProgressStream {
+  isTTY?: boolean;
+  columns?: number;
+  write(text: string): unknown;
+}
+
+/**
+ * Whether a terminal takes cursor and erase codes: not one that says it cannot (TERM=dumb), and not
+ * when the user asks for plain output (NO_COLOR set and not empty, common practice for command-line tools).
+ */
+export function terminalTakesEscapes(env: Readonly<Record<string, string | undefined>>): boolean {
+  return env.TERM !== 'dumb' && !env.NO_COLOR;
+}
+
+/**
+ * A progress callback for a person watching stderr: one line redrawn in place on a terminal that takes
+ * escape codes, a plain line per stage on one that does not (TERM=dumb, NO_COLOR), nothing when stderr is
+ * not a terminal (a log file or a pipe) or when quiet.
+ */
+export function makeProgress(
+  quiet: boolean,
+  stream: ProgressStream = process.stderr,
+  env: Readonly<Record<string, string | undefined>> = process.env,
+): { onProgress: OnProgress | undefined; done: () => void } {
+  if (quiet || stream.isTTY !== true) return { onProgress: undefined, done: () => {} };
+  const redraw = terminalTakesEscapes(env);
   let last = 0;
   let lastStage = '';
   const draw = (ev: ProgressEvent) => {
     const now = Date.now();
+    if (!redraw) {
+      if (ev.stage !== lastStage) stream.write(`${terminalText(ev.stage)}\n`); // one line a stage, no figures rewritten
+      lastStage = ev.stage;
+      return;
+    }
     if (ev.stage === lastStage && now - last < 100) return;
     last = now;
     lastStage = ev.stage;
@@ -69,9 +97,9 @@ export function makeProgress(quiet: boolean): { onProgress: OnProgress | undefin
       const t = ev.total ? (ev.unit === 'bytes' ? ` / ${(ev.total / 1e6).toFixed(1)} MB` : ` / ${groupedFixed(ev.total)}`) : '';
       text += `: ${d}${t}${ev.unit && ev.unit !== 'bytes' ? ' ' + ev.unit : ''}`;
     }
-    process.stderr.write(`\r\x1b[2K${text.slice(0, Math.max(20, (process.stderr.columns || 80) - 1))}`);
+    stream.write(`\r\x1b[2K${text.slice(0, Math.max(20, (stream.columns || 80) - 1))}`);
   };
-  return { onProgress: draw, done: () => process.stderr.write('\r\x1b[2K') };
+  return { onProgress: draw, done: () => (redraw ? stream.write('\r\x1b[2K') : undefined) };
 }
 
 /** Parses a comma-separated list option. */
