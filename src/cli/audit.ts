@@ -34,7 +34,7 @@ interface AuditOpts {
   units: string;
   force?: boolean;
   history?: string;
-  json?: boolean;
+  json?: boolean | string;
   quiet?: boolean;
   verbose?: boolean;
   [k: string]: unknown;
@@ -80,8 +80,8 @@ export function registerAudit(program: Command): void {
     .option('--force', 'replace the output folder if it exists')
     .option('--history <file.sqlite>', 'append this run to a history database')
     .option(
-      '--json',
-      'print summary.json (schema/summary.schema.json) on stdout instead of the text summary; the reports are still written',
+      '--json [detail]',
+      'print summary.json (schema/summary.schema.json) on stdout instead of the text summary; --json=full adds every row of patterns.csv, stops.csv and candidates.csv; the reports are still written',
     )
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors');
@@ -90,6 +90,8 @@ export function registerAudit(program: Command): void {
     await runAction(
       Boolean(opts.verbose),
       async () => {
+        if (typeof opts.json === 'string' && opts.json !== 'full')
+          throw new StopspanError('bad-option', `invalid option --json: expected nothing or =full, got ${opts.json}`, { value: opts.json });
         const formats = checkFormats(opts.format);
         // the GeoPackage's SQLite binding is optional: without it the run stops here, before the feed is read
         if (formats.includes('gpkg')) (await import('../report/gpkg.js')).loadGeoPackageSqlite();
@@ -135,7 +137,8 @@ export function registerAudit(program: Command): void {
           if (history && db) history.recordRun(db, history.auditRunRow(result));
           progress.done();
           if (opts.json) {
-            process.stdout.write((await report).summaryJson(result));
+            const { fullJson, summaryJson } = await report;
+            process.stdout.write(opts.json === 'full' ? fullJson(result) : summaryJson(result));
             return EXIT.clean;
           }
           const h = result.headline;

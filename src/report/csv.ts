@@ -82,6 +82,21 @@ export function renderCsv<T>(columns: CsvColumn<T>[], rows: readonly T[]): strin
   return out.join(CSV_EOL) + CSV_EOL;
 }
 
+/**
+ * A row as a JSON object with the CSV file's column names: numbers rounded as the cell is (null where the
+ * cell is blank), a boolean number column as 0 or 1, text raw (a JSON reader runs no formulas, so no guard).
+ */
+export function rowObject<T>(columns: readonly CsvColumn<T>[], row: T): Record<string, string | number | null> {
+  const out: Record<string, string | number | null> = {};
+  for (const col of columns) {
+    const v = col.get(row);
+    if (col.kind === 'number')
+      out[col.name] = typeof v === 'number' ? cellNumber(v, col.digits) : typeof v === 'boolean' ? Number(v) : null;
+    else out[col.name] = v === null || v === undefined ? '' : String(v);
+  }
+  return out;
+}
+
 const text = <T>(name: string, get: (r: T) => Cell): CsvColumn<T> => ({ name, kind: 'text', get });
 const num = <T>(name: string, get: (r: T) => Cell, digits?: number): CsvColumn<T> => ({ name, kind: 'number', get, digits });
 const feet = (m: number | null): number | null => (m === null ? null : metresToFeet(m));

@@ -6,7 +6,7 @@
 // "crs" member (section 4).
 
 import type { AuditResult, PatternResult, StopResult } from '../audit/types.js';
-import { candidateColumns, cellNumber } from './csv.js';
+import { candidateColumns, cellNumber, rowObject } from './csv.js';
 
 export type Position = [number, number];
 
@@ -190,13 +190,7 @@ export function* candidateFeatures(result: AuditResult): Generator<Feature<Point
   const columns = candidateColumns(result.demandSource).filter((c) => c.name !== 'stop_lat' && c.name !== 'stop_lon');
   for (const c of result.candidates) {
     if (!validPosition(c.lon, c.lat)) continue;
-    const properties: Feature<Point>['properties'] = {};
-    for (const col of columns) {
-      const v = col.get(c);
-      properties[col.name] =
-        col.kind === 'number' ? (typeof v === 'number' ? cellNumber(v, col.digits) : null) : v === null ? '' : String(v);
-    }
-    yield { type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties };
+    yield { type: 'Feature', geometry: { type: 'Point', coordinates: [round6(c.lon), round6(c.lat)] }, properties: rowObject(columns, c) };
   }
 }
 

@@ -6,6 +6,7 @@
 import type { AuditResult } from '../audit/types.js';
 import { CAUTIONS } from './cautions.js';
 import { snakeKeys } from '../common/snakeKeys.js';
+import { candidateColumns, PATTERN_COLUMNS, rowObject, STOP_COLUMNS } from './csv.js';
 
 export const SUMMARY_SCHEMA_VERSION = 1;
 export const TOP_CANDIDATES_IN_SUMMARY = 10;
@@ -159,4 +160,22 @@ function observedSection(result: AuditResult): Record<string, unknown> | null {
 /** The text of summary.json (two-space indentation, final newline). */
 export function summaryJson(result: AuditResult): string {
   return JSON.stringify(summaryObject(result), null, 2) + '\n';
+}
+
+/** The rows audit --json=full adds to summary.json, each with the columns of its CSV file (metres). */
+export function fullRows(result: AuditResult): { patterns: object[]; stops: object[]; candidates: object[] } {
+  return {
+    patterns: result.patterns.map((p) => rowObject(PATTERN_COLUMNS, p)),
+    stops: result.stops.map((s) => rowObject(STOP_COLUMNS, s)),
+    candidates: result.candidates.map((c) => rowObject(candidateColumns(result.demandSource), c)),
+  };
+}
+
+/**
+ * audit --json=full: summary.json and, after it, every row of patterns.csv, stops.csv and candidates.csv
+ * as objects under `patterns`, `stops` and `candidates` (the CSV column names and rounding, a blank number
+ * null), so a script reads the whole audit from one document.
+ */
+export function fullJson(result: AuditResult): string {
+  return JSON.stringify({ ...summaryObject(result), ...fullRows(result) }, null, 2) + '\n';
 }

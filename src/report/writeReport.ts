@@ -7,9 +7,9 @@ import { candidatesCsv, patternsCsv, stopsCsv } from './csv.js';
 import { candidatesGeoJson, patternsGeoJson, stopPointsGeoJson, stopsGeoJson } from './geojson.js';
 import { geoPackageFile, GPKG_FILE, loadGeoPackageSqlite } from './gpkg.js';
 import { indexHtml } from './html/indexHtml.js';
-import { summaryJson } from './summaryJson.js';
+import { fullJson, summaryJson } from './summaryJson.js';
 
-export { summaryJson };
+export { fullJson, summaryJson };
 import { checkUnits, type Units } from './units.js';
 import { writeFolder, type FileWriter } from './writeFolder.js';
 

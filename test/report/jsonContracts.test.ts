@@ -7,6 +7,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
+import { parse } from 'csv-parse/sync';
 import { afterAll, describe, expect, it } from 'vitest';
 import { ROOT, runCli } from '../helpers/cli.js';
 import { snakeKeys, snakeKey as snakeName } from '../../src/common/snakeKeys.js';
@@ -74,6 +75,42 @@ describe('JSON documents against their schemas', () => {
     const doc = JSON.parse(r.stdout);
     expectValid('summary', doc);
     expect(doc).toEqual(JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8')));
+  });
+
+  it('audit --json=full adds every row of the three CSV files, as csv-parse reads them, and nothing else changes', async () => {
+    const out = join(dir, 'audit-full');
+    const r = await runCli(['audit', DEMO, '--json=full', '--out', out, '--format', 'csv,json']);
+    expect(r.code).toBe(0);
+    const doc = JSON.parse(r.stdout) as Record<string, Record<string, unknown>[]>;
+    expectValid('summary', doc);
+    const { patterns, stops, candidates, ...summary } = doc;
+    expect(summary).toEqual(JSON.parse(readFileSync(join(out, 'summary.json'), 'utf8')));
+    // each CSV read by csv-parse (an outside RFC 4180 reader): same columns in the same order, same values
+    for (const [file, rows] of [
+      ['patterns.csv', patterns],
+      ['stops.csv', stops],
+      ['candidates.csv', candidates],
+    ] as const) {
+      const table = parse(readFileSync(join(out, file), 'utf8'), { columns: true }) as Record<string, string>[];
+      expect(rows.length, file).toBe(table.length);
+      expect(rows.length, file).toBeGreaterThan(0);
+      table.forEach((row, i) => {
+        expect(Object.keys(rows[i]), file).toEqual(Object.keys(row));
+        for (const [k, cell] of Object.entries(row)) {
+          const v = rows[i][k];
+          if (typeof v === 'number') expect(Number(cell), `${file} ${k}`).toBe(v);
+          else if (v === null) expect(cell, `${file} ${k}`).toBe('');
+          else expect(cell.replace(/^'(?=[=+\-@\t\r])/, ''), `${file} ${k}`).toBe(v); // a guarded text cell
+        }
+      });
+    }
+  });
+
+  it('audit --json with another detail than full is refused with one line', async () => {
+    const r = await runCli(['audit', DEMO, '--json=rows', '--out', join(dir, 'never')]);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim().split('\n')).toEqual(['error: invalid option --json: expected nothing or =full, got rows']);
+    expect(existsSync(join(dir, 'never'))).toBe(false);
   });
 
   it('audit --out - is refused with one line and creates nothing', async () => {
