@@ -26,7 +26,7 @@ import type { Feed } from '../gtfs/types.js';
 import { haversineM } from '../network/geodesy.js';
 import { WALK_RADIUS_M, WALK_REACH_M } from '../model/walkReach.js';
 import { PointGrid } from '../landuse/pointGrid.js';
-import { stationNote, type StationPoint } from './contextStations.js';
+import { stationNote, type StationPoint } from '../network/contextStations.js';
 
 export { WALK_RADIUS_M, WALK_DETOUR, WALK_REACH_M } from '../model/walkReach.js';
 /** Scheduled speed over a gap above which it is not a street a local bus stops on, m/s (50 km/h) [D]. */

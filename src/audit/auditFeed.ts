@@ -9,7 +9,7 @@ import type { AuditResult } from './types.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
-import { contextStops } from './contextStations.js';
+import { contextStops } from '../network/contextStations.js';
 import { normalizeParams, type ParamsInput } from '../model/params.js';
 import type { LandUseColumn } from '../landuse/readLandUse.js';
 import { readLandUseAside } from '../landuse/readLandUseAside.js';

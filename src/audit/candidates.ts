@@ -8,7 +8,7 @@ import type { Feed } from '../gtfs/types.js';
 import type { Candidate, ReviewGap } from './types.js';
 import type { AdditionEffect, PatternAnalysis, RemovalEffect } from './verdicts.js';
 import { additionEvidence, buildStopIndex } from './additionEvidence.js';
-import type { StationPoint } from './contextStations.js';
+import type { StationPoint } from '../network/contextStations.js';
 
 export interface CandidateOptions {
   maxGapM: number;

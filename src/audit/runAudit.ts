@@ -24,7 +24,7 @@ import { analysePattern, patternParts, type PatternAnalysis } from './verdicts.j
 import { LOCAL_MIN_TRIP_SHARE, LOCAL_NEAR_M } from './localCover.js';
 import { TRUNK_WINDOW } from './transfers.js';
 import { EXPRESS_STRETCH_M } from './expressStretch.js';
-import { CONTEXT_STATION_RADIUS_M, type StationPoint } from './contextStations.js';
+import { CONTEXT_STATION_RADIUS_M, type StationPoint } from '../network/contextStations.js';
 import { speedFamily } from '../gtfs/routeTypes.js';
 import { optimiserPlan } from './plan.js';
 import { PROGRAMME_WORK_LIMIT, programmeCandidates, programmeWork } from './programme.js';

@@ -77,7 +77,7 @@ export interface CheckOptions {
   severities?: Partial<Record<FindingCode, Severity>>; // overrides of the table's defaults
   /** How the patterns' date was chosen (chooseAnalysisDate); default: the patterns' own date, as asked for. */
   analysis?: AnalysisDay;
-  /** The context feeds read for the patterns' date and the served stops near their stations (contextStops in src/audit/contextStations.ts). */
+  /** The context feeds read for the patterns' date and the served stops near their stations (contextStops in src/network/contextStations.ts). */
   context?: { feeds: { label: string; stations: number; servicesOnDate: number | null }[]; near: ReadonlyMap<number, string> };
 }
 

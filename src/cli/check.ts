@@ -123,7 +123,7 @@ export function registerCheck(program: Command): void {
             // context feeds (--context), read on the analysis date as the audit reads them
             let context;
             if (o.context?.length) {
-              const { contextStops } = await import('../audit/contextStations.js');
+              const { contextStops } = await import('../network/contextStations.js');
               const { near, feeds } = await contextStops(loaded.feed, loaded.patterns, o.context);
               context = { near, feeds };
             }

@@ -7,7 +7,7 @@ import type { Command } from 'commander';
 import { loadParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import { parseLandUseWeights, type LandUseLayer } from '../landuse/readLandUse.js';
-import type { ContextStops } from '../audit/contextStations.js';
+import type { ContextStops } from '../network/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
@@ -94,7 +94,7 @@ export function registerCompare(program: Command): void {
           ] = await Promise.all([
             import('../compare/compare.js'),
             import('../audit/runAudit.js'),
-            import('../audit/contextStations.js'),
+            import('../network/contextStations.js'),
             import('../report/compareRender.js'),
             import('../report/writeFolder.js'),
             import('../landuse/readLandUseAside.js'),

@@ -7,7 +7,7 @@ import { terminalText } from '../common/terminalText.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import { isoToGtfsDate } from '../gtfs/calendar.js';
 import { buildPatterns } from '../network/buildPatterns.js';
-import { contextStops } from '../audit/contextStations.js';
+import { contextStops } from '../network/contextStations.js';
 import {
   evaluateScenario,
   loadScenarioFile,

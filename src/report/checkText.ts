@@ -2,7 +2,7 @@
 
 import { terminalText as oneLine } from '../common/terminalText.js';
 import type { CheckReport } from '../check/check.js';
-import { CONTEXT_STATION_RADIUS_M } from '../audit/contextStations.js';
+import { CONTEXT_STATION_RADIUS_M } from '../network/contextStations.js';
 
 export function checkText(report: CheckReport): string {
   const lines: string[] = [];

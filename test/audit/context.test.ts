@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { readContextFeed } from '../../src/gtfs/readContext.js';
-import { stopsNearStations, CONTEXT_STATION_RADIUS_M } from '../../src/audit/contextStations.js';
+import { stopsNearStations, CONTEXT_STATION_RADIUS_M } from '../../src/network/contextStations.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { haversineM } from '../../src/network/geodesy.js';

@@ -7,7 +7,7 @@ import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { contextStops } from '../../src/audit/contextStations.js';
+import { contextStops } from '../../src/network/contextStations.js';
 import { runAudit } from '../../src/audit/runAudit.js';
 import { additionEvidence, buildStopIndex, WALK_REACH_M } from '../../src/audit/additionEvidence.js';
 import { haversineM } from '../../src/network/geodesy.js';

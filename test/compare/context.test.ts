@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { compareFeeds } from '../../src/compare/compare.js';
-import { contextStops } from '../../src/audit/contextStations.js';
+import { contextStops } from '../../src/network/contextStations.js';
 import { comparisonText } from '../../src/report/compareRender.js';
 import { buildFeed, street } from '../helpers/buildFeed.js';
 import { ROOT, runCli } from '../helpers/cli.js';

@@ -6,7 +6,7 @@ import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { contextStops } from '../../src/audit/contextStations.js';
+import { contextStops } from '../../src/network/contextStations.js';
 import { evaluateScenario } from '../../src/whatif/whatif.js';
 import { whatifText } from '../../src/report/whatifText.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';

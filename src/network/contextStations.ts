@@ -6,10 +6,10 @@
 // context feeds and matches them to its stops; the stations themselves are also evidence for additions.
 
 import type { Feed } from '../gtfs/types.js';
-import type { PatternSet } from '../network/types.js';
+import type { PatternSet } from './types.js';
 import { readContextFeeds, type ContextFeed } from '../gtfs/readContext.js';
 import { WarningSink } from '../common/warnings.js';
-import { haversineM } from '../network/geodesy.js';
+import { haversineM } from './geodesy.js';
 
 /** A stop within this distance of a context station is a transfer point to it. */
 export const CONTEXT_STATION_RADIUS_M = 150;
