@@ -6,7 +6,7 @@ import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import type { AuditResult } from './types.js';
-import { readFeed } from '../gtfs/readFeed.js';
+import { loadDayNetwork } from '../network/loadNetwork.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
 import { contextStops } from '../network/contextStations.js';
@@ -59,24 +59,17 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
   const landUseRead = landUsePath !== undefined ? readLandUseAside(landUsePath, { columns: landUseColumns }) : undefined;
   landUseRead?.catch(() => undefined); // a failure surfaces at the await below
-  // The later stages load while the feed is read, not before: the module loader reads each file through
-  // the thread pool, and that waiting then overlaps the reading instead of delaying its start.
-  const stages = Promise.all([import('../network/buildPatterns.js'), import('./runAudit.js')]);
+  // the model loads while the feed is read, not before: the module loader reads each file through the
+  // thread pool, and that waiting then overlaps the reading instead of delaying its start
+  const stages = import('./runAudit.js');
   stages.catch(() => undefined); // a failure to load surfaces at the await below
   // the whole feed is read and modelled whatever is reported: transfers, trunks and locals are other
   // routes' stops, so a route's figures must not depend on which others were asked for
-  const feed = await readFeed(source, { date: date ?? 'auto', onProgress });
+  const { feed, patterns } = await loadDayNetwork(source, { date, onProgress });
   const reportRoutes = selectedRoutes(feed, { routes, excludeRoutes, routeTypes });
-  const [{ buildPatterns }, { runAudit }] = await stages;
-  const patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress });
-  if (patterns.patterns.length === 0 || (reportRoutes !== null && !patterns.patterns.some((p) => reportRoutes.has(p.routeId)))) {
-    throw new StopspanError(
-      'empty-feed',
-      `no route patterns run on ${patterns.date}${reportRoutes !== null ? ' for the routes asked for' : ''}`,
-      {
-        file: 'trips.txt',
-      },
-    );
+  const { runAudit } = await stages;
+  if (reportRoutes !== null && !patterns.patterns.some((p) => reportRoutes.has(p.routeId))) {
+    throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date} for the routes asked for`, { file: 'trips.txt' });
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
   const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);

@@ -4,9 +4,8 @@
 import { parseLandUseWeights } from '../landuse/readLandUse.js';
 import { readLandUseAside } from '../landuse/readLandUseAside.js';
 import { terminalText } from '../common/terminalText.js';
-import { readFeed } from '../gtfs/readFeed.js';
 import { isoToGtfsDate } from '../gtfs/calendar.js';
-import { buildPatterns } from '../network/buildPatterns.js';
+import { loadDayNetwork } from '../network/loadNetwork.js';
 import { contextStops } from '../network/contextStations.js';
 import {
   evaluateScenario,
@@ -140,11 +139,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
         // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
         const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
         landUseRead?.catch(() => undefined); // a failure surfaces at the await below
-        feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
-        patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
-        if (patterns.patterns.length === 0) {
-          throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
-        }
+        ({ feed, patterns } = await loadDayNetwork(feedArg, { date: opts.date, onProgress: progress.onProgress }));
         // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
         const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
         const observed = opts.observed
