@@ -190,20 +190,34 @@ function newStopTable(): StopTable {
 /** The candidates on each pattern: [candidate's position, the stop removed or the stop before the added one (-1: not found)]. */
 function candidatesOnPatterns(result: AuditResult, orderedStops: StopResult[][], patternPos: Map<string, number>): [number, number][][] {
   const candsOn: [number, number][][] = result.patterns.map(() => []);
+  // each pattern's places by stop id, built when a candidate first names the pattern: a scan of the
+  // pattern per candidate made a pattern of thousands of close stops quadratic in them
+  const placesOf = new Map<number, Map<string, number[]>>();
+  const places = (pi: number): Map<string, number[]> => {
+    let at = placesOf.get(pi);
+    if (!at) {
+      at = new Map();
+      orderedStops[pi].forEach((s, i) => {
+        const list = at!.get(s.stopId);
+        if (list) list.push(i);
+        else at!.set(s.stopId, [i]);
+      });
+      placesOf.set(pi, at);
+    }
+    return at;
+  };
   result.candidates.forEach((c, ci) => {
     for (const id of new Set(c.patternIds)) {
       const pi = patternPos.get(id);
       if (pi === undefined) continue;
       const stops = orderedStops[pi];
+      const at = places(pi).get(c.action === 'remove' ? c.stopId : c.fromStopId) ?? [];
       if (c.action === 'remove') {
-        let found = false;
-        stops.forEach((s, i) => {
-          if (s.stopId === c.stopId) (candsOn[pi].push([ci, i]), (found = true));
-        });
-        if (!found) candsOn[pi].push([ci, -1]);
+        for (const i of at) candsOn[pi].push([ci, i]);
+        if (at.length === 0) candsOn[pi].push([ci, -1]);
       } else {
-        const i = stops.findIndex((s, k) => s.stopId === c.fromStopId && stops[k + 1]?.stopId === c.toStopId);
-        candsOn[pi].push([ci, i]);
+        // the first place where the gap's two stops follow each other
+        candsOn[pi].push([ci, at.find((i) => stops[i + 1]?.stopId === c.toStopId) ?? -1]);
       }
     }
   });
