@@ -28,10 +28,11 @@ import { checkOutFolder, writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
+import { feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 import { loadParams } from '../model/params.js';
 
 /** The options of `stopspan whatif` as commander hands them over (src/cli/whatif.ts declares them). */
-export interface WhatifOpts {
+export interface WhatifOpts extends FeedFetchCliOptions {
   remove?: string[];
   add?: string[];
   move?: string[];
@@ -121,6 +122,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
     Boolean(opts.verbose),
     async () => {
       const scenario = scenarioOf(opts);
+      const fetch = feedFetchOptions(opts);
       const units = checkUnits(opts.units ?? 'metric');
       if (opts.date !== undefined) isoToGtfsDate(opts.date, '--date');
       const params = loadParams(opts.params, paramOverrides(opts));
@@ -140,13 +142,13 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
         // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
         const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
         landUseRead?.catch(() => undefined); // a failure surfaces at the await below
-        feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress });
+        feed = await readFeed(feedArg, { date: opts.date ?? 'auto', onProgress: progress.onProgress, fetch });
         patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress: progress.onProgress });
         if (patterns.patterns.length === 0) {
           throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date}`, { file: 'trips.txt' });
         }
         // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
-        const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
+        const stations = (await contextStops(feed, patterns, opts.context ?? [], fetch)).near;
         const observed = opts.observed
           ? await (
               await import('../realtime/calibrate.js')
