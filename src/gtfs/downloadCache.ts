@@ -206,6 +206,7 @@ export async function trim(root: string, limits: Required<Omit<CacheOptions, 'di
     if (!e.isDirectory() || !ENTRY_NAME.test(e.name)) continue;
     const dir = join(root, e.name);
     try {
+      if (!isEntryShaped(await readdir(dir))) continue; // not this module's: neither counted nor removed
       const st = await lstat(dir);
       const body = await lstat(join(dir, BODY)).catch(() => null);
       entries.push({ name: e.name, used: st.mtimeMs, bytes: body?.isFile() ? body.size : 0 });
@@ -228,11 +229,15 @@ export async function trim(root: string, limits: Required<Omit<CacheOptions, 'di
   return removed;
 }
 
+/** Whether a folder's names are an entry's: its two files, or one of them (an entry half removed by hand). */
+function isEntryShaped(names: string[]): boolean {
+  return names.length > 0 && names.every((n) => n === BODY || n === META);
+}
+
 /** Removes an entry folder only when it holds nothing but an entry's two files. */
 async function removeEntry(dir: string): Promise<boolean> {
   try {
-    const names = await readdir(dir);
-    if (!names.every((n) => n === BODY || n === META)) return false;
+    if (!isEntryShaped(await readdir(dir))) return false;
     await rm(dir, { recursive: true, force: true });
     return true;
   } catch {
