@@ -351,7 +351,9 @@ function tunnel(mod: typeof http, tls: typeof import('node:tls'), proxy: Proxy, 
       );
     if (head.length > 0) socket.unshift(head);
     const host = target.hostname.replace(/^\[(.*)\]$/, '$1');
-    const secure = track(tls.connect({ socket, ...(isIP(host) === 0 ? { servername: host } : {}), ...(job.ca ? { ca: job.ca } : {}) }));
+    const secure = track(
+      tls.connect({ socket, host, ...(isIP(host) === 0 ? { servername: host } : {}), ...(job.ca ? { ca: job.ca } : {}) }),
+    );
     secure.on('error', (err) => failWith(err.message));
     const req = track(
       mod.request({

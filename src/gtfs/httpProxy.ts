@@ -59,7 +59,7 @@ export function bypassed(target: URL, noProxy: string): boolean {
     if (only !== undefined && only !== port) continue;
     const domain = name.replace(/^\*?\./, '');
     if (domain === '') continue;
-    if (host === domain || (isIP(domain) === 0 && host.endsWith(`.${domain}`))) return true;
+    if (host === domain || (isIP(host) === 0 && host.endsWith(`.${domain}`))) return true;
   }
   return false;
 }

@@ -41,7 +41,7 @@ export function checkHeader(name: string, value: string): [string, string] {
   if (!TOKEN.test(name)) throw badHeader('expected NAME:VALUE with a name of letters, digits and -', name.slice(0, 40));
   const lower = name.toLowerCase();
   if (RESERVED.has(lower)) throw badHeader(`the ${lower} header is set by the download itself`, name);
-  const v = value.trim();
+  const v = value.replace(/^[ \t]+|[ \t]+$/g, ''); // spaces and tabs around it only: a line break is refused below
   if (!FIELD_VALUE.test(v)) throw badHeader(`the value of ${name} has a line break or control character`, name);
   if (name.length + v.length > MAX_HEADER_CHARS) throw badHeader(`the ${name} header is longer than ${MAX_HEADER_CHARS} characters`, name);
   return [lower, v];
