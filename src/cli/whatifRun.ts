@@ -121,8 +121,8 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
   await runAction(
     Boolean(opts.verbose),
     async () => {
-      const scenario = scenarioOf(opts);
       const fetch = feedFetchOptions(opts);
+      const scenario = scenarioOf(opts);
       const units = checkUnits(opts.units ?? 'metric');
       if (opts.date !== undefined) isoToGtfsDate(opts.date, '--date');
       const params = loadParams(opts.params, paramOverrides(opts));

@@ -266,7 +266,7 @@ async function request(target: URL, extra: RequestHeaders, job: Fetch): Promise<
   try {
     proxy = proxyFor(target, job.env);
   } catch (e) {
-    fail(job.shown, (e as Error).message.replace(/^cannot /, 'cannot download the feed: cannot '));
+    fail(job.shown, (e as Error).message); // "cannot use the proxy in NAME: ..."
   }
   const headers: RequestHeaders = { 'user-agent': 'stopspan', accept: 'application/zip, */*', ...extra };
   const auth = basicAuth(target);
