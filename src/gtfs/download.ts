@@ -69,7 +69,7 @@ export function isUrl(source: string): boolean {
   return /^https?:\/\//i.test(source);
 }
 
-interface Fetch {
+interface DownloadJob {
   url: string;
   shown: string;
   limits: Required<DownloadLimits>;
@@ -102,7 +102,7 @@ export async function downloadFeed(url: string, options: DownloadOptions = {}): 
     await rm(dir, { recursive: true, force: true });
     forget();
   };
-  const job: Fetch = { url, shown: shownUrl(url), limits: lim, deadline: Date.now() + timeoutMs, headers, env, ca, onProgress };
+  const job: DownloadJob = { url, shown: shownUrl(url), limits: lim, deadline: Date.now() + timeoutMs, headers, env, ca, onProgress };
   try {
     const entry = store ? await readEntry(store.dir, url) : null;
     const got = await fetchTo(job, path, validators(entry));
@@ -162,7 +162,7 @@ interface Fetched {
 }
 
 /** Fetches the feed into path, following redirects; a 304 (only when `conditional` was sent) saves nothing. */
-async function fetchTo(job: Fetch, path: string, conditional: Record<string, string>): Promise<Fetched> {
+async function fetchTo(job: DownloadJob, path: string, conditional: Record<string, string>): Promise<Fetched> {
   const { url, shown, limits, deadline } = job;
   const first = new URL(url);
   let current = first;
@@ -250,7 +250,7 @@ interface Attempt {
   /** The request target without credentials. */
   plain: URL;
   headers: RequestHeaders;
-  job: Fetch;
+  job: DownloadJob;
   /** Registers something to destroy if the attempt fails or times out. */
   track: <T extends { destroy(): unknown }>(x: T) => T;
   settle: Settle;
@@ -261,7 +261,7 @@ interface Attempt {
  * Sends a GET for target, directly or through the proxy the environment names, and resolves with the
  * response head before the deadline. The URL's own user name and password go as Authorization.
  */
-async function request(target: URL, extra: RequestHeaders, job: Fetch): Promise<http.IncomingMessage> {
+async function request(target: URL, extra: RequestHeaders, job: DownloadJob): Promise<http.IncomingMessage> {
   let proxy: Proxy | null;
   try {
     proxy = proxyFor(target, job.env);
