@@ -104,7 +104,8 @@ export async function downloadFeed(url: string, options: DownloadOptions = {}): 
   };
   const job: DownloadJob = { url, shown: shownUrl(url), limits: lim, deadline: Date.now() + timeoutMs, headers, env, ca, onProgress };
   try {
-    const entry = store ? await readEntry(store.dir, url) : null;
+    const kept = store ? await readEntry(store.dir, url) : null;
+    const entry = kept && kept.meta.bytes <= maxBytes ? kept : null; // a copy over today's cap is not reused
     const got = await fetchTo(job, path, validators(entry));
     if (got.notModified && entry) {
       try {
@@ -166,8 +167,10 @@ async function fetchTo(job: DownloadJob, path: string, conditional: Record<strin
   const { url, shown, limits, deadline } = job;
   const first = new URL(url);
   let current = first;
+  let trusted = true; // once a redirect has left the user's host, the user's headers stay behind for good
   for (let hop = 0; ; hop++) {
-    const headers = { ...(sameTrust(first, current) ? job.headers : {}), ...conditional };
+    trusted &&= sameTrust(first, current);
+    const headers = { ...(trusted ? job.headers : {}), ...conditional };
     const res = await request(current, headers, job);
     const status = res.statusCode ?? 0;
     if (status === 304 && Object.keys(conditional).length > 0) {

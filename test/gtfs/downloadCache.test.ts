@@ -13,6 +13,7 @@ import { downloadFeed, type DownloadOptions } from '../../src/gtfs/download.js';
 import { cacheFolder, entryKey } from '../../src/gtfs/downloadCache.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { zipBytes } from '../helpers/zip.js';
+import { rejected } from '../helpers/errors.js';
 
 let server: http.Server;
 let base = '';
@@ -140,6 +141,13 @@ describe('the download cache', () => {
     expect((await fetchOnce(`${base}/etag.zip`)).fromCache).toBe(true);
     rmSync(join(entry, 'entry.json'));
     expect((await fetchOnce(`${base}/etag.zip`)).fromCache).toBe(false);
+  });
+
+  it('does not reuse a kept copy larger than the cap of this download', async () => {
+    await fetchOnce(`${base}/etag.zip`);
+    const e = await rejected(downloadFeed(`${base}/etag.zip`, { cache: { dir }, limits: { maxBytes: feedA.length - 1 } }));
+    expect(e.message).toContain('exceeds the cap');
+    expect(requests[1]?.ifNoneMatch).toBeUndefined();
   });
 
   it('neither reads nor writes the cache when it is turned off', async () => {

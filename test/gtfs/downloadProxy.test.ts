@@ -52,6 +52,7 @@ function listen(server: net.Server, host = '127.0.0.1'): Promise<number> {
 function originHandler(req: http.IncomingMessage, res: http.ServerResponse): void {
   seenByOrigin.push({ url: req.url ?? '', headers: req.headers });
   if (req.url === '/away') return void res.writeHead(302, { location: `${other}/feed.zip` }).end();
+  if (req.url === '/away-and-back') return void res.writeHead(302, { location: `${other}/back` }).end();
   if (req.url === '/here') return void res.writeHead(302, { location: '/feed.zip' }).end();
   res.writeHead(200, { 'content-type': 'application/zip', 'content-length': feed.length });
   res.end(feed);
@@ -131,6 +132,7 @@ beforeAll(async () => {
   other = `http://127.0.0.2:${await listen(
     http.createServer((req, res) => {
       seenByOther.push(req.headers);
+      if (req.url === '/back') return void res.writeHead(302, { location: `${origin}/feed.zip` }).end();
       res.writeHead(200, { 'content-type': 'application/zip', 'content-length': feed.length });
       res.end(feed);
     }),
@@ -268,6 +270,15 @@ describe('the user headers', () => {
     expect(seenByOther).toHaveLength(1);
     expect(seenByOther[0]?.['x-api-key']).toBeUndefined();
     expect(seenByOther[0]?.authorization).toBeUndefined();
+  });
+
+  it('stay behind for good once a redirect has left the host, even when a later one comes back', async () => {
+    await body(`${origin}/away-and-back`, { headers: { 'X-Api-Key': SECRET } });
+    expect(seenByOrigin.map((s) => [s.url, s.headers['x-api-key']])).toEqual([
+      ['/away-and-back', SECRET],
+      ['/feed.zip', undefined],
+    ]);
+    expect(seenByOther[0]?.['x-api-key']).toBeUndefined();
   });
 
   it('go through the proxy with an http URL, and are refused when malformed without their value printed', async () => {
