@@ -17,6 +17,7 @@ import { requireCjs } from '../common/requireCjs.js';
 import type { OnProgress } from '../common/progress.js';
 import type { WarningSink } from '../common/warnings.js';
 import { downloadFeed, isUrl, type DownloadLimits, type FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 
 const yauzl = requireCjs('yauzl') as typeof Yauzl;
 
@@ -87,7 +88,7 @@ export async function openFeed(
   if (isUrl(source)) {
     const dl = await downloadFeed(source, { ...fetch, limits: download, onProgress, warnings });
     try {
-      const zip = await openZip(dl.path, source, lim, warnings);
+      const zip = await openZip(dl.path, shownUrl(source), lim, warnings);
       const close = zip.close;
       zip.close = async () => {
         await close();

@@ -9,6 +9,7 @@ import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import { openFeed, type FeedArchive } from './archive.js';
 import type { FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 import { readCsv } from './csv.js';
 import type { CsvRow } from './csvCore.js';
 import { coordinateFault } from './coordinateFault.js';
@@ -142,7 +143,7 @@ export async function readContextFeed(
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
       if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);
     }
-    return { source, label, stations, servicesOnDate };
+    return { source: shownUrl(source), label, stations, servicesOnDate };
   } catch (e) {
     if (isStopspanError(e)) {
       const ctx = e.context;

@@ -14,6 +14,7 @@ import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
 import { readCsv, type CsvGroupKey } from './csv.js';
 import type { CsvRow } from './csvCore.js';
 import type { DownloadLimits, FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
@@ -80,7 +81,8 @@ export async function readFeed(
   const archive = await openFeed(source, { limits: archiveLimits, download, fetch, warnings, onProgress });
   const early = new Map<string, Promise<Readable>>();
   try {
-    return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings, early });
+    // a URL's user name and password are not kept: the source is printed, written in reports and histories
+    return await readArchive(archive, shownUrl(source), { date, routes, onProgress, maxRecordChars, warnings, early });
   } finally {
     // a table opened early and never read (the reading stopped at an error before it) is let go
     for (const p of early.values())

@@ -84,8 +84,9 @@ export function sameTrust(from: URL, to: URL): boolean {
   return !(from.protocol === 'https:' && to.protocol !== 'https:');
 }
 
-/** The URL without its user name and password, to show in messages or keep on disk. */
+/** An http(s) URL without its user name and password, to show in messages or keep on disk; a path is left as it is. */
 export function shownUrl(url: string): string {
+  if (!/^https?:\/\//i.test(url)) return url;
   try {
     const u = new URL(url);
     if (!u.username && !u.password) return url;
