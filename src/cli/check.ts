@@ -61,38 +61,36 @@ export function thresholdsFromCli(
 
 export function registerCheck(program: Command): void {
   const codes = FINDING_CODES.map((c) => `  ${c.padEnd(20)} ${FINDINGS[c].severity.padEnd(8)} ${FINDINGS[c].explanation}`).join('\n');
-  addFeedOptions(
-    program
-      .command('check')
-      .description('check a feed for nightly jobs: list its findings, exit 1 when one is at or above --fail-on')
-      .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
-      .option('--json', 'print the report as JSON on stdout')
-      .option('--fail-on <severity>', 'exit 1 when a finding at or above this severity exists: error, warning, info or never', 'error')
-      .option(
-        '--date <YYYY-MM-DD>',
-        'analysis date for the pattern checks (default: the run date, or the first day with service in the week after it); nothing running that day exits 2',
-      )
-      .option('--today <YYYY-MM-DD>', 'the run date: its service is checked and service-ending-soon counts from it (default: today, UTC)')
-      .option('--history <file.sqlite>', 'record this run in a history database (created on first use)')
-      .option('--max-examples <n>', 'examples kept per finding', '5')
-      .option('--twin-stop-m <m>', 'consecutive stops closer than this are twins (default 5)')
-      .option('--off-path-m <m>', 'a stop farther than this from its shape is off the path (default 100)')
-      .option('--outlier-km <km>', 'stops farther than this (at least) from the median stop are outliers (default 100)')
-      .option('--service-min-days <days>', 'service must run at least this many days after --today (default 7)')
-      .option(
-        '--speed <family=min:max>',
-        'scheduled speed bounds in km/h per family (bus, tram, metro, rail, ferry, cable, other); repeatable',
-        listOption,
-        [],
-      )
-      .option(
-        '--context <feed>',
-        'another feed (zip, folder or URL; repeatable): an unreadable one exits 2; reports its stations and service on the date, and the stops served within 150 m of one',
-        (v: string, prev: string[] = []) => prev.concat(v),
-      )
-      .option('-q, --quiet', 'no progress on stderr')
-      .option('--verbose', 'stack traces for internal errors'),
-  )
+  const cmd = program
+    .command('check')
+    .description('check a feed for nightly jobs: list its findings, exit 1 when one is at or above --fail-on')
+    .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
+    .option('--json', 'print the report as JSON on stdout')
+    .option('--fail-on <severity>', 'exit 1 when a finding at or above this severity exists: error, warning, info or never', 'error')
+    .option(
+      '--date <YYYY-MM-DD>',
+      'analysis date for the pattern checks (default: the run date, or the first day with service in the week after it); nothing running that day exits 2',
+    )
+    .option('--today <YYYY-MM-DD>', 'the run date: its service is checked and service-ending-soon counts from it (default: today, UTC)')
+    .option('--history <file.sqlite>', 'record this run in a history database (created on first use)')
+    .option('--max-examples <n>', 'examples kept per finding', '5')
+    .option('--twin-stop-m <m>', 'consecutive stops closer than this are twins (default 5)')
+    .option('--off-path-m <m>', 'a stop farther than this from its shape is off the path (default 100)')
+    .option('--outlier-km <km>', 'stops farther than this (at least) from the median stop are outliers (default 100)')
+    .option('--service-min-days <days>', 'service must run at least this many days after --today (default 7)')
+    .option(
+      '--speed <family=min:max>',
+      'scheduled speed bounds in km/h per family (bus, tram, metro, rail, ferry, cable, other); repeatable',
+      listOption,
+      [],
+    )
+    .option(
+      '--context <feed>',
+      'another feed (zip, folder or URL; repeatable): an unreadable one exits 2; reports its stations and service on the date, and the stops served within 150 m of one',
+      (v: string, prev: string[] = []) => prev.concat(v),
+    )
+    .option('-q, --quiet', 'no progress on stderr')
+    .option('--verbose', 'stack traces for internal errors')
     .addHelpText(
       'after',
       `\nFindings (code, default severity, meaning):\n${codes}\n\nThe pattern checks run on --date, else on the run date (--today), else on the first day with service in the ${NEXT_SERVICE_WINDOW_DAYS} days after it; none at all is the no-service finding.\n\nExit codes: 0 clean, 1 a finding at or above --fail-on, 2 unreadable input or bad usage (with --json, an error document on stdout too), 3 internal error.`,
@@ -153,4 +151,5 @@ export function registerCheck(program: Command): void {
         { json: o.json === true },
       ),
     );
+  addFeedOptions(cmd);
 }

@@ -13,8 +13,8 @@ export interface FeedFetchCliOptions {
 
 const collect = (value: string, previous: string[] = []): string[] => previous.concat(value);
 
-export function addFeedOptions(cmd: Command): Command {
-  return cmd
+export function addFeedOptions(cmd: Command): void {
+  cmd
     .option(
       '--header <NAME:VALUE>',
       'a request header sent when the feed is downloaded from a URL, e.g. an API key (repeatable; only to that host)',
