@@ -11,6 +11,8 @@ export { WARNINGS, type WarningCode, type WarningEntry } from './common/warningC
 
 // the feed, its patterns and observed data: the stages a program may call one by one
 export { readFeed, type ReadFeedOptions } from './gtfs/readFeed.js';
+export type { DownloadLimits, FetchOptions } from './gtfs/download.js';
+export type { CacheOptions } from './gtfs/downloadCache.js';
 export { tripProfiles, type StopTimesStore, type TripProfile } from './gtfs/stopTimesStore.js';
 export type {
   Agency,

@@ -7,6 +7,7 @@ import type { PatternSet } from '../network/types.js';
 import type { ObservedData } from '../realtime/types.js';
 import type { AuditResult } from './types.js';
 import { loadDayNetwork } from '../network/loadNetwork.js';
+import type { FetchOptions } from '../gtfs/download.js';
 import { StopspanError } from '../common/errors.js';
 import { selectedRoutes } from './routeSelection.js';
 import { contextStops } from '../network/contextStations.js';
@@ -27,6 +28,8 @@ export interface AuditFeedOptions {
   landUse?: string; // path of a land-use layer (CSV points or GeoJSON)
   landUseColumns?: LandUseColumn[] | null; // its numeric columns and weights (default population and jobs, 1 each)
   onProgress?: OnProgress;
+  /** Headers, cache and proxy settings of a download, for a feed given as a URL (context feeds get no headers). */
+  fetch?: FetchOptions;
 }
 
 export interface AuditFeedOutput {
@@ -50,6 +53,7 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
     context = [],
     landUse: landUsePath,
     landUseColumns = null,
+    fetch,
   } = options;
   if (date !== undefined && !/^\d{4}-\d{2}-\d{2}$/.test(date)) {
     throw new StopspanError('bad-option', 'invalid option --date: expected YYYY-MM-DD', { value: date });
@@ -65,14 +69,14 @@ export async function auditFeed(source: string, options: AuditFeedOptions = {}):
   stages.catch(() => undefined); // a failure to load surfaces at the await below
   // the whole feed is read and modelled whatever is reported: transfers, trunks and locals are other
   // routes' stops, so a route's figures must not depend on which others were asked for
-  const { feed, patterns } = await loadDayNetwork(source, { date, onProgress });
+  const { feed, patterns } = await loadDayNetwork(source, { date, onProgress, fetch });
   const reportRoutes = selectedRoutes(feed, { routes, excludeRoutes, routeTypes });
   const { runAudit } = await stages;
   if (reportRoutes !== null && !patterns.patterns.some((p) => reportRoutes.has(p.routeId))) {
     throw new StopspanError('empty-feed', `no route patterns run on ${patterns.date} for the routes asked for`, { file: 'trips.txt' });
   }
   // context feeds: their stations only (no stop_times), each stop near one kept as a transfer point
-  const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context);
+  const { near: stations, stations: contextStations } = await contextStops(feed, patterns, context, fetch);
   const landUse = await landUseRead;
   // the realtime reader (and its protobuf library) loads only when an archive is given
   const observed = observedPath

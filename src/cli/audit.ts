@@ -10,6 +10,7 @@ import { StopspanError } from '../common/errors.js';
 import { groupedFixed } from '../report/numberText.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
+import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 import { parseLandUseWeights } from '../landuse/readLandUse.js';
 
 const FORMATS = ['html', 'csv', 'geojson', 'json', 'gpkg'] as const;
@@ -17,7 +18,7 @@ type Format = (typeof FORMATS)[number];
 /** Without --format: all but gpkg, which needs the optional SQLite binding. */
 const DEFAULT_FORMATS: Format[] = ['html', 'csv', 'geojson', 'json'];
 
-interface AuditOpts {
+interface AuditOpts extends FeedFetchCliOptions {
   date?: string;
   out?: string;
   routes?: string[];
@@ -86,6 +87,7 @@ export function registerAudit(program: Command): void {
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors');
   addParamOptions(cmd);
+  addFeedOptions(cmd);
   cmd.action(async (feedArg: string, opts: AuditOpts) => {
     await runAction(
       Boolean(opts.verbose),
@@ -93,6 +95,7 @@ export function registerAudit(program: Command): void {
         if (typeof opts.json === 'string' && opts.json !== 'full')
           throw new StopspanError('bad-option', `invalid option --json: expected nothing or =full, got ${opts.json}`, { value: opts.json });
         const formats = checkFormats(opts.format);
+        const fetch = feedFetchOptions(opts);
         // the GeoPackage's SQLite binding is optional: without it the run stops here, before the feed is read
         if (formats.includes('gpkg')) (await import('../report/gpkg.js')).loadGeoPackageSqlite();
         if (opts.units !== 'metric' && opts.units !== 'imperial') {
@@ -130,6 +133,7 @@ export function registerAudit(program: Command): void {
             keep: opts.keep,
             context: opts.context,
             onProgress: progress.onProgress,
+            fetch,
           });
           progress.onProgress?.({ stage: 'writing reports' });
           const { writeReport } = await report;

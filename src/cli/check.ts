@@ -9,6 +9,7 @@ import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
 import { checkDocument } from '../report/jsonDocuments.js';
 import { EXIT, listOption, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
+import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 export type FailOn = Severity | 'never';
 const FAIL_ON: FailOn[] = ['error', 'warning', 'info', 'never'];
@@ -19,7 +20,7 @@ export function checkExitCode(report: Pick<CheckReport, 'findings'>, failOn: Fai
   return report.findings.some((f) => f.count > 0 && SEVERITY_RANK[f.severity] >= SEVERITY_RANK[failOn]) ? EXIT.found : EXIT.clean;
 }
 
-interface CheckCliOptions {
+interface CheckCliOptions extends FeedFetchCliOptions {
   json?: boolean;
   failOn: string;
   date?: string;
@@ -60,7 +61,7 @@ export function thresholdsFromCli(
 
 export function registerCheck(program: Command): void {
   const codes = FINDING_CODES.map((c) => `  ${c.padEnd(20)} ${FINDINGS[c].severity.padEnd(8)} ${FINDINGS[c].explanation}`).join('\n');
-  program
+  const cmd = program
     .command('check')
     .description('check a feed for nightly jobs: list its findings, exit 1 when one is at or above --fail-on')
     .argument('<feed>', 'GTFS feed: zip, folder or http(s) URL')
@@ -105,6 +106,7 @@ export function registerCheck(program: Command): void {
           }
           const maxExamples = numberOption('--max-examples', o.maxExamples, 0)!;
           const thresholds = thresholdsFromCli(o);
+          const fetch = feedFetchOptions(o);
           // the checks load when the command runs, not at every start-up of the CLI
           const [{ checkFeed }, { checkText }] = await Promise.all([import('../check/check.js'), import('../report/checkText.js')]);
           const today = o.today ?? new Date().toISOString().slice(0, 10);
@@ -116,7 +118,7 @@ export function registerCheck(program: Command): void {
           try {
             const progress = makeProgress(o.quiet === true || o.json === true);
             try {
-              loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress });
+              loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress, fetch });
             } finally {
               progress.done();
             }
@@ -124,7 +126,7 @@ export function registerCheck(program: Command): void {
             let context;
             if (o.context?.length) {
               const { contextStops } = await import('../network/contextStations.js');
-              const { near, feeds } = await contextStops(loaded.feed, loaded.patterns, o.context);
+              const { near, feeds } = await contextStops(loaded.feed, loaded.patterns, o.context, fetch);
               context = { near, feeds };
             }
             report = checkFeed(loaded.feed, loaded.patterns, {
@@ -149,4 +151,5 @@ export function registerCheck(program: Command): void {
         { json: o.json === true },
       ),
     );
+  addFeedOptions(cmd);
 }

@@ -12,6 +12,7 @@ import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { loadFeed, numberOption } from './feedInput.js';
+import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 /**
  * The exit code of a comparison: 1 when some route lost more than tripLossPct percent of its trips a day
@@ -22,7 +23,7 @@ export function compareExitCode(c: Pick<Comparison, 'trips'>, tripLossPct: numbe
   return c.trips.byRoute.some((r) => r.changePct !== null && -r.changePct > tripLossPct) ? EXIT.found : EXIT.clean;
 }
 
-interface CompareCliOptions {
+interface CompareCliOptions extends FeedFetchCliOptions {
   json?: boolean;
   failOnTripLoss?: string;
   out?: string;
@@ -40,7 +41,7 @@ interface CompareCliOptions {
 }
 
 export function registerCompare(program: Command): void {
-  program
+  const cmd = program
     .command('compare')
     .description('compare two versions of a feed: stops, patterns, trips and spacing before and after')
     .argument('<old>', 'the older feed: zip, folder or http(s) URL')
@@ -78,6 +79,7 @@ export function registerCompare(program: Command): void {
         async () => {
           const moveThresholdM = numberOption('--move-threshold', o.moveThreshold, 0);
           const tripLossPct = numberOption('--fail-on-trip-loss', o.failOnTripLoss, 0);
+          const fetch = feedFetchOptions(o);
           if (o.landUseWeights !== undefined && o.landUse === undefined)
             throw new StopspanError('bad-option', 'option --land-use-weights needs --land-use', { value: o.landUseWeights });
           if (o.landUse !== undefined && !o.audit)
@@ -117,9 +119,9 @@ export function registerCompare(program: Command): void {
           let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
           let newContext: ContextStops = oldContext;
           try {
-            a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
+            a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
             // context feeds (--context), read for each version on its own date as the audit reads them
-            oldContext = await contextStops(a.feed, a.patterns, context);
+            oldContext = await contextStops(a.feed, a.patterns, context, fetch);
             // the older feed is audited, then cut to what the comparison reads, before the newer one is read
             // (only what the comparison reads of the older audit is kept while the newer feed is read and audited)
             landUse = await landUseRead;
@@ -135,8 +137,8 @@ export function registerCompare(program: Command): void {
               );
             const oldPatterns = comparedPatterns(a.patterns);
             a = { ...a, feed: comparedPart(a.feed, oldPatterns), patterns: oldPatterns };
-            b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true });
-            newContext = await contextStops(b.feed, b.patterns, context);
+            b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
+            newContext = await contextStops(b.feed, b.patterns, context, fetch);
           } finally {
             progress.done();
           }
@@ -182,4 +184,5 @@ export function registerCompare(program: Command): void {
         { json: o.json === true },
       ),
     );
+  addFeedOptions(cmd);
 }

@@ -5,6 +5,7 @@ import { parseDecimal } from '../common/decimal.js';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import type { Feed } from '../gtfs/types.js';
+import type { FetchOptions } from '../gtfs/download.js';
 import { chooseAnalysisDate, isoToGtfsDate, type AnalysisDay } from '../gtfs/calendar.js';
 import type { PatternSet } from '../network/types.js';
 
@@ -25,9 +26,9 @@ export interface LoadedFeed {
  */
 export async function loadFeed(
   source: string,
-  options: { date?: string; today?: string; onProgress?: OnProgress; dayOnly?: boolean } = {},
+  options: { date?: string; today?: string; onProgress?: OnProgress; dayOnly?: boolean; fetch?: FetchOptions } = {},
 ): Promise<LoadedFeed> {
-  const { date: asked, today, onProgress, dayOnly = false } = options;
+  const { date: asked, today, onProgress, dayOnly = false, fetch } = options;
   if (asked !== undefined) isoToGtfsDate(asked, '--date');
   if (today !== undefined) isoToGtfsDate(today, '--today');
   // loaded here, not with the module: the commands that import this one register at every start-up
@@ -41,7 +42,7 @@ export async function loadFeed(
     // and keeps that day's trips only: a whole city's other days are a hundred megabytes held for nothing
     let day: Feed | undefined;
     try {
-      day = await readFeed(source, { date: asked ?? 'auto', onProgress });
+      day = await readFeed(source, { date: asked ?? 'auto', onProgress, fetch });
     } catch (e) {
       if (!(isStopspanError(e) && e.code === 'empty-feed')) throw e;
     }
@@ -62,7 +63,7 @@ export async function loadFeed(
     }
     // nothing to analyse (no day qualifies, or no pattern on it): read it whole, as below, for the same answer
   }
-  const feed = await readFeed(source, { date: 'all', onProgress });
+  const feed = await readFeed(source, { date: 'all', onProgress, fetch });
   // trip runs per service, frequencies expanded: the count the audit's default date uses too
   const runs = tripRunsPerDay(feed.frequencies);
   const runsPerService = new Map<string, number>();

@@ -5,6 +5,7 @@
 import type { Command } from 'commander';
 import { listOption } from './shared.js';
 import { addParamOptions } from './paramOptions.js';
+import { addFeedOptions } from './feedOptions.js';
 import type { WhatifOpts } from './whatifRun.js';
 
 const collect = (value: string, previous: string[] = []): string[] => previous.concat(value);
@@ -50,6 +51,7 @@ export function registerWhatif(program: Command): void {
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors');
   addParamOptions(cmd);
+  addFeedOptions(cmd);
   cmd.action(async (feedArg: string, opts: WhatifOpts) => {
     // the work loads only when the command runs, not at every start-up of the CLI
     const { runWhatif } = await import('./whatifRun.js');

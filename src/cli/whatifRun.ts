@@ -27,10 +27,11 @@ import { checkOutFolder, writeFolder } from '../report/writeFolder.js';
 import { version } from '../version.js';
 import { EXIT, makeProgress, runAction } from './shared.js';
 import { paramOverrides } from './paramOptions.js';
+import { feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 import { loadParams } from '../model/params.js';
 
 /** The options of `stopspan whatif` as commander hands them over (src/cli/whatif.ts declares them). */
-export interface WhatifOpts {
+export interface WhatifOpts extends FeedFetchCliOptions {
   remove?: string[];
   add?: string[];
   move?: string[];
@@ -119,6 +120,7 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
   await runAction(
     Boolean(opts.verbose),
     async () => {
+      const fetch = feedFetchOptions(opts);
       const scenario = scenarioOf(opts);
       const units = checkUnits(opts.units ?? 'metric');
       if (opts.date !== undefined) isoToGtfsDate(opts.date, '--date');
@@ -139,9 +141,9 @@ export async function runWhatif(feedArg: string, opts: WhatifOpts): Promise<void
         // the land-use layer is read on a worker thread while the feed is read (readLandUseAside.ts)
         const landUseRead = opts.landUse !== undefined ? readLandUseAside(opts.landUse, { columns: landUseColumns }) : undefined;
         landUseRead?.catch(() => undefined); // a failure surfaces at the await below
-        ({ feed, patterns } = await loadDayNetwork(feedArg, { date: opts.date, onProgress: progress.onProgress }));
+        ({ feed, patterns } = await loadDayNetwork(feedArg, { date: opts.date, onProgress: progress.onProgress, fetch }));
         // context feeds (--context): read and matched to the stops as the audit does, so a change beside a station says so
-        const stations = (await contextStops(feed, patterns, opts.context ?? [])).near;
+        const stations = (await contextStops(feed, patterns, opts.context ?? [], fetch)).near;
         const observed = opts.observed
           ? await (
               await import('../realtime/calibrate.js')

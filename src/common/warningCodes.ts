@@ -10,6 +10,11 @@ export interface WarningEntry {
 }
 
 export const WARNINGS = {
+  'download-cache-unusable': {
+    title: 'Download cache not used',
+    explanation: 'the download cache folder could not be written, so the feed was downloaded without keeping a copy',
+    check: false,
+  },
   'unsafe-zip-path': {
     title: 'Unsafe path in the zip',
     explanation: 'zip entries with an absolute or ../ path were ignored',

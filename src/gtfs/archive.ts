@@ -16,7 +16,8 @@ import { StopspanError } from '../common/errors.js';
 import { requireCjs } from '../common/requireCjs.js';
 import type { OnProgress } from '../common/progress.js';
 import type { WarningSink } from '../common/warnings.js';
-import { downloadFeed, isUrl, type DownloadLimits } from './download.js';
+import { downloadFeed, isUrl, type DownloadLimits, type FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 
 const yauzl = requireCjs('yauzl') as typeof Yauzl;
 
@@ -66,6 +67,8 @@ export interface FeedArchive {
 export interface OpenFeedOptions {
   limits?: ArchiveLimits;
   download?: DownloadLimits;
+  /** Headers, cache and proxy settings of a download (see FetchOptions). */
+  fetch?: FetchOptions;
   warnings?: WarningSink;
   onProgress?: OnProgress;
 }
@@ -73,7 +76,7 @@ export interface OpenFeedOptions {
 /** Opens a .zip path, a folder or an http(s) URL. Throws 'feed-unreadable', 'feed-too-large' or 'download-failed'. */
 export async function openFeed(
   source: string,
-  { limits = {}, download, warnings, onProgress }: OpenFeedOptions = {},
+  { limits = {}, download, fetch, warnings, onProgress }: OpenFeedOptions = {},
 ): Promise<FeedArchive> {
   const lim = { ...DEFAULT_ARCHIVE_LIMITS, ...limits };
   for (const [k, v] of Object.entries(lim)) {
@@ -83,9 +86,9 @@ export async function openFeed(
   if (typeof source !== 'string' || source === '')
     throw new StopspanError('bad-option', 'invalid option source: expected a path or URL', { value: String(source) });
   if (isUrl(source)) {
-    const dl = await downloadFeed(source, { limits: download, onProgress });
+    const dl = await downloadFeed(source, { ...fetch, limits: download, onProgress, warnings });
     try {
-      const zip = await openZip(dl.path, source, lim, warnings);
+      const zip = await openZip(dl.path, shownUrl(source), lim, warnings);
       const close = zip.close;
       zip.close = async () => {
         await close();

@@ -8,6 +8,8 @@ import path from 'node:path';
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { WarningSink } from '../common/warnings.js';
 import { openFeed, type FeedArchive } from './archive.js';
+import type { FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 import { readCsv } from './csv.js';
 import type { CsvRow } from './csvCore.js';
 import { coordinateFault } from './coordinateFault.js';
@@ -84,11 +86,11 @@ async function readTable(
  */
 export async function readContextFeed(
   source: string,
-  { date, warnings, label = contextLabel(source) }: { date?: string; warnings: WarningSink; label?: string },
+  { date, warnings, label = contextLabel(source), fetch }: { date?: string; warnings: WarningSink; label?: string; fetch?: FetchOptions },
 ): Promise<ContextFeed> {
   let archive: FeedArchive | null = null;
   try {
-    archive = await openFeed(source, { warnings });
+    archive = await openFeed(source, { warnings, fetch });
     if (!archive.has('stops.txt')) throw new StopspanError('missing-table', 'stops.txt is missing', { file: 'stops.txt' });
     const stations: ContextStation[] = [];
     await readTable(
@@ -141,7 +143,7 @@ export async function readContextFeed(
       servicesOnDate = servicesOn({ calendar, calendarDates }, date).size;
       if (servicesOnDate === 0) warnings.add('context-no-service', `${label} on ${date}`);
     }
-    return { source, label, stations, servicesOnDate };
+    return { source: shownUrl(source), label, stations, servicesOnDate };
   } catch (e) {
     if (isStopspanError(e)) {
       const ctx = e.context;
@@ -162,7 +164,7 @@ export async function readContextFeed(
  */
 export async function readContextFeeds(
   sources: readonly string[],
-  { date, warnings }: { date?: string; warnings: WarningSink },
+  { date, warnings, fetch }: { date?: string; warnings: WarningSink; fetch?: FetchOptions },
 ): Promise<ContextFeed[]> {
   const contexts: ContextFeed[] = [];
   const labels = new Set<string>();
@@ -170,7 +172,7 @@ export async function readContextFeeds(
     let label = contextLabel(source);
     for (let k = 2; labels.has(label); k++) label = `${contextLabel(source)}-${k}`;
     labels.add(label);
-    contexts.push(await readContextFeed(source, { date, warnings, label }));
+    contexts.push(await readContextFeed(source, { date, warnings, label, fetch }));
   }
   return contexts;
 }

@@ -13,7 +13,8 @@ import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
 import { readCsv, type CsvGroupKey } from './csv.js';
 import type { CsvRow } from './csvCore.js';
-import type { DownloadLimits } from './download.js';
+import type { DownloadLimits, FetchOptions } from './download.js';
+import { shownUrl } from './requestHeaders.js';
 import { tripRunsPerDay } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
@@ -40,6 +41,8 @@ export interface ReadFeedOptions {
   onProgress?: OnProgress;
   limits?: ArchiveLimits & { maxRecordChars?: number };
   download?: DownloadLimits;
+  /** Headers, cache and proxy settings of a download (see FetchOptions). */
+  fetch?: FetchOptions;
   /** Where warnings are counted (a fresh sink by default); Feed.warnings lists them either way. */
   warnings?: WarningSink;
 }
@@ -63,7 +66,7 @@ export const MAX_TRIPS = 500_000;
 /** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
 export async function readFeed(
   source: string,
-  { date = 'auto', routes, onProgress, limits = {}, download, warnings = new WarningSink() }: ReadFeedOptions = {},
+  { date = 'auto', routes, onProgress, limits = {}, download, fetch, warnings = new WarningSink() }: ReadFeedOptions = {},
 ): Promise<Feed> {
   if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
     throw new StopspanError('bad-option', `invalid option date: expected 'auto', 'all' or YYYY-MM-DD, got ${String(date)}`, {
@@ -75,10 +78,11 @@ export async function readFeed(
     throw new StopspanError('bad-option', 'invalid option routes: expected a list of route ids', { value: String(routes) });
   }
   const { maxRecordChars, ...archiveLimits } = limits;
-  const archive = await openFeed(source, { limits: archiveLimits, download, warnings, onProgress });
+  const archive = await openFeed(source, { limits: archiveLimits, download, fetch, warnings, onProgress });
   const early = new Map<string, Promise<Readable>>();
   try {
-    return await readArchive(archive, source, { date, routes, onProgress, maxRecordChars, warnings, early });
+    // a URL's user name and password are not kept: the source is printed, written in reports and histories
+    return await readArchive(archive, shownUrl(source), { date, routes, onProgress, maxRecordChars, warnings, early });
   } finally {
     // a table opened early and never read (the reading stopped at an error before it) is let go
     for (const p of early.values())

@@ -8,6 +8,7 @@
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from './types.js';
 import { readContextFeeds, type ContextFeed } from '../gtfs/readContext.js';
+import type { FetchOptions } from '../gtfs/download.js';
 import { WarningSink } from '../common/warnings.js';
 import { haversineM } from './geodesy.js';
 
@@ -94,10 +95,20 @@ export interface ContextStops {
  * the served stops near their stations and the stations themselves: how every command that takes --context
  * gets them (audit, whatif, check, compare), so they all read the same stations by the same rule.
  */
-export async function contextStops(feed: Feed, patterns: PatternSet, sources: readonly string[]): Promise<ContextStops> {
+export async function contextStops(
+  feed: Feed,
+  patterns: PatternSet,
+  sources: readonly string[],
+  fetch: FetchOptions = {},
+): Promise<ContextStops> {
   if (sources.length === 0) return { near: new Map(), stations: [], feeds: [] };
   const warnings = new WarningSink();
-  const contexts = await readContextFeeds(sources, { date: feed.date ?? (patterns.date || undefined), warnings });
+  // the user's extra headers (an API key for the feed's host) are not sent to the context feeds' hosts
+  const contexts = await readContextFeeds(sources, {
+    date: feed.date ?? (patterns.date || undefined),
+    warnings,
+    fetch: { ...fetch, headers: undefined },
+  });
   feed.warnings.push(...warnings.list());
   return {
     near: stopsNearStations(feed, patterns, contexts),

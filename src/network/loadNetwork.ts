@@ -6,6 +6,7 @@
 
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
+import type { FetchOptions } from '../gtfs/download.js';
 import { readFeed } from '../gtfs/readFeed.js';
 import type { Feed } from '../gtfs/types.js';
 import type { PatternSet } from './types.js';
@@ -16,11 +17,14 @@ export interface DayNetwork {
 }
 
 /** Reads the feed's trips of one day (`date`, YYYY-MM-DD, else the busiest weekday) and builds their patterns. */
-export async function loadDayNetwork(source: string, options: { date?: string; onProgress?: OnProgress } = {}): Promise<DayNetwork> {
-  const { date, onProgress } = options;
+export async function loadDayNetwork(
+  source: string,
+  options: { date?: string; onProgress?: OnProgress; fetch?: FetchOptions } = {},
+): Promise<DayNetwork> {
+  const { date, onProgress, fetch } = options;
   const building = import('./buildPatterns.js');
   building.catch(() => undefined); // a failure to load surfaces at the await below
-  const feed = await readFeed(source, { date: date ?? 'auto', onProgress });
+  const feed = await readFeed(source, { date: date ?? 'auto', onProgress, fetch });
   const { buildPatterns } = await building;
   const patterns = buildPatterns(feed, { date: feed.date ?? undefined, onProgress });
   if (patterns.patterns.length === 0) {

@@ -15,10 +15,12 @@ let server: http.Server;
 let base = '';
 let zipBytes: Buffer;
 const hanging: http.ServerResponse[] = [];
+const authorizations: (string | undefined)[] = [];
 
 beforeAll(async () => {
   zipBytes = readFileSync(await zipFolder(BASIC));
   server = http.createServer((req, res) => {
+    authorizations.push(req.headers.authorization);
     const url = new URL(req.url ?? '/', 'http://x');
     const hop = Number(url.searchParams.get('hop') ?? 0);
     switch (url.pathname) {
@@ -120,6 +122,15 @@ describe('downloadFeed', () => {
     const e = await rejected(downloadFeed(`${base}/missing.zip`));
     expect(e.code).toBe('download-failed');
     expect(e.message).toContain('HTTP status 404');
+  });
+
+  it('keeps a user name and password in the URL out of messages and the feed source, and sends them as Authorization', async () => {
+    const withCredentials = base.replace('//', '//planner:s3cr3t-pw@');
+    const e = await rejected(downloadFeed(`${withCredentials}/page.html`, { cache: false }));
+    expect(e.oneLine()).toBe(`${base}/page.html: cannot download the feed: the body is not a zip archive (text/html)`);
+    const feed = await readFeed(`${withCredentials}/feed.zip`, { fetch: { cache: false } });
+    expect(feed.source).toBe(`${base}/feed.zip`);
+    expect(authorizations.at(-1)).toBe(`Basic ${Buffer.from('planner:s3cr3t-pw').toString('base64')}`);
   });
 
   it('leaves no temporary files behind, whether it succeeds or fails', async () => {
