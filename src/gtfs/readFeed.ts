@@ -8,6 +8,7 @@
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
+import { ownCopy } from '../common/ownCopy.js';
 import type { Readable } from 'node:stream';
 import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
@@ -205,11 +206,6 @@ const STOP_TIMES_READ_AHEAD = 32 << 20;
 function settled<T>(p: Promise<T>): Promise<T> {
   p.catch(() => {});
   return p;
-}
-
-/** s as a string of its own, not a slice keeping a larger one alive. */
-function flatCopy(s: string): string {
-  return s.length === 0 ? '' : Buffer.from(s, 'utf8').toString('utf8');
 }
 
 function coord(file: string, row: CsvRow, i: number, column: string, limit: number): number {
@@ -449,7 +445,7 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
   const shared = (v: string): string => {
     const have = strings.get(v);
     if (have !== undefined) return have;
-    const own = flatCopy(v);
+    const own = ownCopy(v);
     strings.set(own, own);
     return own;
   };
@@ -466,7 +462,8 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
   };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
-    const id = need('trips.txt', row, c.trip_id, 'trip_id');
+    // a trip_id is kept (every trip's, for 'all'): its own copy, not a view holding the chunk of trips.txt
+    const id = ownCopy(need('trips.txt', row, c.trip_id, 'trip_id'));
     // a route_id is checked when it changes; an unknown one is not kept as the row before's
     const routeBefore = lastRoute.v;
     const routeId = sharedField(row, c.route_id, lastRoute);
