@@ -13,9 +13,6 @@ import { medianGapM, passengerStopsServed } from '../network/patternFigures.js';
 import { runsOfFrequency } from '../gtfs/frequencies.js';
 import { haversineM } from '../network/geodesy.js';
 
-/** Kept here as well: the library exported it from this module first. */
-export { ownCopy };
-
 export interface StopBrief {
   stopId: string;
   name: string;
