@@ -10,7 +10,7 @@ export { WarningSink, warningText, type FeedWarning } from './common/warnings.js
 export { WARNINGS, type WarningCode, type WarningEntry } from './common/warningCodes.js';
 
 // the feed, its patterns and observed data: the stages a program may call one by one
-export { readFeed, type ReadFeedOptions } from './gtfs/readFeed.js';
+export { readFeed, type HoldDayTables, type ReadFeedOptions, type TripRowsSink } from './gtfs/readFeed.js';
 export type { DownloadLimits, FetchOptions } from './gtfs/download.js';
 export type { CacheOptions } from './gtfs/downloadCache.js';
 export { tripProfiles, type StopTimesStore, type TripProfile } from './gtfs/stopTimesStore.js';
@@ -91,7 +91,7 @@ export {
 } from './model/scenario.js';
 
 // feed checks for nightly jobs
-export { checkFeed, type CheckOptions, type CheckReport, type Finding, type FindingExample } from './check/check.js';
+export { checkFeed, TripFindings, type CheckOptions, type CheckReport, type Finding, type FindingExample } from './check/check.js';
 export {
   DEFAULT_THRESHOLDS,
   FINDINGS,

@@ -22,6 +22,7 @@ const PUBLIC_NAMES = [
   'REPORT_FORMATS',
   'SUMMARY_SCHEMA_VERSION',
   'StopspanError',
+  'TripFindings',
   'VERDICTS',
   'WARNINGS',
   'WarningSink',

@@ -3,7 +3,8 @@
 
 import { haversineM } from '../network/geodesy.js';
 import { coordinateFault } from '../gtfs/coordinateFault.js';
-import type { Feed, Stop } from '../gtfs/types.js';
+import type { Feed, Stop, Trip, TripStopTimes } from '../gtfs/types.js';
+import type { TripRowsSink } from '../gtfs/readFeed.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import { cruiseSpeedBoundsMps, estimateCruiseSpeed } from '../model/cruiseSpeed.js';
 import { defaultParams } from '../model/params.js';
@@ -79,6 +80,12 @@ export interface CheckOptions {
   analysis?: AnalysisDay;
   /** The context feeds read for the patterns' date and the served stops near their stations (contextStops in src/network/contextStations.ts). */
   context?: { feeds: { label: string; stations: number; servicesOnDate: number | null }[]; near: ReadonlyMap<number, string> };
+  /**
+   * The per-trip findings gathered while the feed was read (a TripFindings given to readFeed as tripRows,
+   * with the same maxExamples); without it they are gathered from feed.stopTimes, which then must hold
+   * every trip (a feed read with holdDay does not).
+   */
+  tripFindings?: TripFindings;
 }
 
 /** Runs every check. Pure: the same feed, patterns and options give the same report. */
@@ -105,13 +112,19 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     }
   }
   const t = normaliseThresholds(thresholdOptions);
+  const perTrip = options.tripFindings ?? tripFindingsOf(feed, maxExamples);
+  if (perTrip.maxExamples !== maxExamples) {
+    throw new StopspanError('bad-option', `invalid option tripFindings: gathered for ${perTrip.maxExamples} examples, not ${maxExamples}`, {
+      value: String(perTrip.maxExamples),
+    });
+  }
 
   const tally = new Map<FindingCode, { count: number; examples: FindingExample[] }>();
   for (const code of FINDING_CODES) tally.set(code, { count: 0, examples: [] });
-  const add = (code: FindingCode, example: FindingExample, n = 1): void => {
+  const add = (code: FindingCode, example: FindingExample | null, n = 1): void => {
     const e = tally.get(code)!;
     e.count += n;
-    if (e.examples.length < maxExamples) e.examples.push(example);
+    if (example && e.examples.length < maxExamples) e.examples.push(example);
   };
 
   if (patterns.patterns.length === 0) {
@@ -123,7 +136,8 @@ export function checkFeed(feed: Feed, patterns: PatternSet, options: CheckOption
     });
   }
   checkPatternGeometry(feed, patterns, t, add);
-  checkTrips(feed, add);
+  perTrip.addTo(add);
+  checkShapes(feed, add);
   checkSpeeds(feed, patterns, t, add);
   checkCoordinates(feed, t, add);
   const serviceEnd = lastServiceDate(feed);
@@ -189,7 +203,8 @@ function networkFigures(set: PatternSet): CheckReport['network'] {
   };
 }
 
-type Add = (code: FindingCode, example: FindingExample, n?: number) => void;
+/** Counts n of a finding (1 by default) and keeps its example, if any, while fewer than maxExamples are kept. */
+type Add = (code: FindingCode, example: FindingExample | null, n?: number) => void;
 
 const fmt = (x: number, digits = 1): string => (Number.isFinite(x) ? x.toFixed(digits) : String(x));
 
@@ -229,41 +244,125 @@ function checkPatternGeometry(feed: Feed, patterns: PatternSet, t: CheckThreshol
   }
 }
 
-/** pathless-trip, distance-backtrack (trips and shapes) and time-backtrack, once per trip or shape. */
-function checkTrips(feed: Feed, add: Add): void {
-  for (const [tripId, st] of feed.stopTimes) {
-    const trip = feed.trips.get(tripId);
-    if (trip && trip.shapeId === '') {
-      add('pathless-trip', { file: 'trips.txt', ids: { trip_id: tripId }, detail: `trip ${tripId} has no shape_id` });
-    }
-    const back = firstBacktrack(st.shapeDist, DIST_TOLERANCE);
-    if (back >= 0) {
-      add('distance-backtrack', {
+/** The findings drawn from one trip's rows alone, in the order they are counted. */
+const TRIP_CODES = ['pathless-trip', 'distance-backtrack', 'time-backtrack'] as const;
+type TripCode = (typeof TRIP_CODES)[number];
+
+/**
+ * pathless-trip, distance-backtrack and time-backtrack of one trip (at most one of each), from its rows
+ * alone: trip is its trips.txt record, if there is one.
+ */
+export function tripFindings(tripId: string, trip: Trip | undefined, st: TripStopTimes): { code: TripCode; example: FindingExample }[] {
+  const found: { code: TripCode; example: FindingExample }[] = [];
+  if (trip && trip.shapeId === '') {
+    found.push({
+      code: 'pathless-trip',
+      example: { file: 'trips.txt', ids: { trip_id: tripId }, detail: `trip ${tripId} has no shape_id` },
+    });
+  }
+  const back = firstBacktrack(st.shapeDist, DIST_TOLERANCE);
+  if (back >= 0) {
+    found.push({
+      code: 'distance-backtrack',
+      example: {
         file: 'stop_times.txt',
         ids: { trip_id: tripId, stop_sequence: String(st.seq[back]) },
         detail: `trip ${tripId}: shape_dist_traveled falls from ${lastFiniteBefore(st.shapeDist, back)} to ${st.shapeDist[back]} at stop_sequence ${st.seq[back]}`,
-      });
-    }
-    let prevS = -1;
-    for (let i = 0; i < st.arrS.length; i++) {
-      const a = st.arrS[i];
-      const dep = st.depS[i];
-      const first = a >= 0 ? a : dep;
-      let bad = '';
-      if (a >= 0 && dep >= 0 && dep < a) bad = `departure ${clock(dep)} before arrival ${clock(a)}`;
-      else if (first >= 0 && prevS >= 0 && first < prevS) bad = `${clock(first)} after ${clock(prevS)} at the previous stop`;
-      if (bad) {
-        add('time-backtrack', {
-          file: 'stop_times.txt',
-          ids: { trip_id: tripId, stop_sequence: String(st.seq[i]) },
-          detail: `trip ${tripId} at stop_sequence ${st.seq[i]}: ${bad}`,
-        });
-        break;
-      }
-      const last = dep >= 0 ? dep : a;
-      if (last >= 0) prevS = last;
+      },
+    });
+  }
+  const time = timeBacktrack(st);
+  if (time) {
+    found.push({
+      code: 'time-backtrack',
+      example: {
+        file: 'stop_times.txt',
+        ids: { trip_id: tripId, stop_sequence: String(st.seq[time.at]) },
+        detail: `trip ${tripId} at stop_sequence ${st.seq[time.at]}: ${time.bad}`,
+      },
+    });
+  }
+  return found;
+}
+
+/** The first stop where a trip's time runs backwards (departure before arrival, or before the stop before), and how. */
+function timeBacktrack(st: TripStopTimes): { at: number; bad: string } | null {
+  let prevS = -1;
+  for (let i = 0; i < st.arrS.length; i++) {
+    const a = st.arrS[i];
+    const dep = st.depS[i];
+    const first = a >= 0 ? a : dep;
+    if (a >= 0 && dep >= 0 && dep < a) return { at: i, bad: `departure ${clock(dep)} before arrival ${clock(a)}` };
+    if (first >= 0 && prevS >= 0 && first < prevS) return { at: i, bad: `${clock(first)} after ${clock(prevS)} at the previous stop` };
+    const last = dep >= 0 ? dep : a;
+    if (last >= 0) prevS = last;
+  }
+  return null;
+}
+
+/**
+ * The per-trip findings of a feed, gathered a trip at a time in any order (as readFeed shows them to its
+ * tripRows): exact counts, and per finding the examples of the first maxExamples trips by their place k
+ * among the feed's trips, so the report is the same whatever order the trips come in; never more.
+ */
+export class TripFindings implements TripRowsSink {
+  private readonly gathered = new Map<TripCode, { count: number; examples: { k: number; example: FindingExample }[] }>();
+
+  constructor(readonly maxExamples = 5) {
+    this.restart();
+  }
+
+  rows(k: number, trip: Trip, rows: TripStopTimes): void {
+    this.add(k, trip.id, trip, rows);
+  }
+
+  /** Trip tripId, at place k, with these rows. */
+  add(k: number, tripId: string, trip: Trip | undefined, rows: TripStopTimes): void {
+    for (const { code, example } of tripFindings(tripId, trip, rows)) {
+      const g = this.gathered.get(code)!;
+      g.count++;
+      const ex = g.examples;
+      if (ex.length === this.maxExamples && (ex.length === 0 || ex[ex.length - 1].k < k)) continue;
+      let at = ex.length;
+      while (at > 0 && ex[at - 1].k > k) at--;
+      ex.splice(at, 0, { k, example });
+      if (ex.length > this.maxExamples) ex.pop();
     }
   }
+
+  restart(): void {
+    for (const code of TRIP_CODES) this.gathered.set(code, { count: 0, examples: [] });
+  }
+
+  /** Counts the gathered findings, examples in order of place. */
+  addTo(add: Add): void {
+    for (const code of TRIP_CODES) {
+      const { count, examples } = this.gathered.get(code)!;
+      for (const { example } of examples) add(code, example);
+      if (count > examples.length) add(code, null, count - examples.length);
+    }
+  }
+}
+
+/** The per-trip findings of every trip in feed.stopTimes, in its order. */
+function tripFindingsOf(feed: Feed, maxExamples: number): TripFindings {
+  if (feed.held !== undefined) {
+    throw new StopspanError(
+      'bad-option',
+      `invalid option tripFindings: the feed holds the trips of ${feed.held} only, so they must be given`,
+      {
+        value: feed.held,
+      },
+    );
+  }
+  const found = new TripFindings(maxExamples);
+  let k = 0;
+  for (const [tripId, st] of feed.stopTimes) found.add(k++, tripId, feed.trips.get(tripId), st);
+  return found;
+}
+
+/** distance-backtrack of shapes, once per shape. */
+function checkShapes(feed: Feed, add: Add): void {
   for (const shape of feed.shapes.values()) {
     const back = firstBacktrack(shape.dist, DIST_TOLERANCE);
     if (back >= 0) {

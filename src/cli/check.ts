@@ -108,17 +108,22 @@ export function registerCheck(program: Command): void {
           const thresholds = thresholdsFromCli(o);
           const fetch = feedFetchOptions(o);
           // the checks load when the command runs, not at every start-up of the CLI
-          const [{ checkFeed }, { checkText }] = await Promise.all([import('../check/check.js'), import('../report/checkText.js')]);
+          const [{ checkFeed, TripFindings }, { checkText }] = await Promise.all([
+            import('../check/check.js'),
+            import('../report/checkText.js'),
+          ]);
           const today = o.today ?? new Date().toISOString().slice(0, 10);
           // the history is opened (and checked to be this tool's) before the feed is read: a bad one fails at once
           const history = o.history ? await import('../history/index.js') : undefined; // only when asked for
           const db = history && o.history ? history.openHistory(o.history) : undefined;
           let report;
           let loaded;
+          // the per-trip findings are gathered as stop_times is read, so only the analysis date's trips are held
+          const tripFindings = new TripFindings(Math.floor(maxExamples));
           try {
             const progress = makeProgress(o.quiet === true || o.json === true);
             try {
-              loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress, fetch });
+              loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress, fetch, tripRows: tripFindings });
             } finally {
               progress.done();
             }
@@ -135,6 +140,7 @@ export function registerCheck(program: Command): void {
               maxExamples: Math.floor(maxExamples),
               analysis: loaded.analysis,
               context,
+              tripFindings,
             });
             if (history && db) history.recordRun(db, history.checkRunRow(report));
           } finally {

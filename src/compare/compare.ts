@@ -4,6 +4,7 @@
 // with the audit's figures and candidates when both audits are given; with a land-use layer audited on both
 // sides, the people within a walk of a stop served before and after (coverage).
 
+import { ownCopy } from '../common/ownCopy.js';
 import type { Feed, Stop, TripStopTimes } from '../gtfs/types.js';
 import type { Pattern, PatternSet } from '../network/types.js';
 import type { AuditResult, Candidate, LandUseSummary } from '../audit/types.js';
@@ -469,15 +470,6 @@ export function comparedPatterns(set: PatternSet): PatternSet {
     scheduledDwellS: [],
   }));
   return { date: set.date, patterns, routesAtStop: new Map() };
-}
-
-/**
- * A string equal to s that holds its own characters. V8 cuts a substring of 13 or more characters as a
- * view into the string it came from: a copy is made by slicing a one-character-longer string that the
- * engine first makes whole (its own characters; the view is then into that copy alone).
- */
-export function ownCopy(s: string): string {
-  return s.length < 13 ? s : (' ' + s).slice(1);
 }
 
 /** Departures from the first stop of each trip of a pattern, seconds, sorted; a trip with frequencies.txt rows departs at each run's start. */

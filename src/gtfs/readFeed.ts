@@ -8,6 +8,7 @@
 import { StopspanError } from '../common/errors.js';
 import type { OnProgress } from '../common/progress.js';
 import { WarningSink } from '../common/warnings.js';
+import { ownCopy } from '../common/ownCopy.js';
 import type { Readable } from 'node:stream';
 import { openFeed, type ArchiveLimits, type FeedArchive } from './archive.js';
 import { defaultAnalysisDate, isoToGtfsDate, servicesOn } from './calendar.js';
@@ -16,10 +17,10 @@ import type { CsvRow } from './csvCore.js';
 import type { DownloadLimits, FetchOptions } from './download.js';
 import { shownUrl } from './requestHeaders.js';
 import { tripRunsPerDay } from './frequencies.js';
-import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip } from './types.js';
+import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
 import { missingColumn } from './missingColumn.js';
-import { StopTimesStore, TripFolder } from './stopTimesStore.js';
+import { NotGroupedByTrip, StopTimesStore, TripFolder, type TripFolderOptions } from './stopTimesStore.js';
 import {
   badField as bad,
   checkDate,
@@ -45,6 +46,32 @@ export interface ReadFeedOptions {
   fetch?: FetchOptions;
   /** Where warnings are counted (a fresh sink by default); Feed.warnings lists them either way. */
   warnings?: WarningSink;
+  /**
+   * With date 'all': every trip is read (and shown to tripRows), but only the trips running on this day
+   * are held in Feed.stopTimes (Feed.held names it); Feed.trips still lists every trip with rows. Given as
+   * a date, or chosen from the calendar and the trips before stop_times.txt is read; null holds every trip.
+   */
+  holdDay?: string | ((tables: HoldDayTables) => string | null);
+  /** Sees every kept trip's rows once (see TripRowsSink). */
+  tripRows?: TripRowsSink;
+}
+
+/** What a holdDay chooser sees: the calendar, and trip runs per service_id (frequencies expanded) of every trip in trips.txt. */
+export interface HoldDayTables {
+  calendar: CalendarRow[];
+  calendarDates: CalendarDate[];
+  runsPerService: Map<string, number>;
+}
+
+/**
+ * Where each kept trip's stop_times rows are shown as they are read, whether the trip is held or not:
+ * rows(k, trip, rows) once per trip that has rows, k its place among the kept trips (trips.txt order), in
+ * the order the table gives them, the rows valid during the call only. When the table turns out not to be
+ * grouped by trip, restart() is called and every trip is shown again, in order, from a second reading.
+ */
+export interface TripRowsSink {
+  rows(k: number, trip: Trip, rows: TripStopTimes): void;
+  restart(): void;
 }
 
 const REQUIRED_TABLES = ['agency.txt', 'routes.txt', 'trips.txt', 'stop_times.txt', 'stops.txt'];
@@ -66,7 +93,17 @@ export const MAX_TRIPS = 500_000;
 /** Reads the feed at source (a .zip path, a folder of .txt files or an http(s) URL). */
 export async function readFeed(
   source: string,
-  { date = 'auto', routes, onProgress, limits = {}, download, fetch, warnings = new WarningSink() }: ReadFeedOptions = {},
+  {
+    date = 'auto',
+    routes,
+    onProgress,
+    limits = {},
+    download,
+    fetch,
+    warnings = new WarningSink(),
+    holdDay,
+    tripRows,
+  }: ReadFeedOptions = {},
 ): Promise<Feed> {
   if (typeof date !== 'string' || (date !== 'auto' && date !== 'all' && !/^\d{4}-\d{2}-\d{2}$/.test(date))) {
     throw new StopspanError('bad-option', `invalid option date: expected 'auto', 'all' or YYYY-MM-DD, got ${String(date)}`, {
@@ -74,6 +111,10 @@ export async function readFeed(
     });
   }
   if (date !== 'auto' && date !== 'all') isoToGtfsDate(date);
+  if (holdDay !== undefined && date !== 'all') {
+    throw new StopspanError('bad-option', "invalid option holdDay: it goes with date 'all'", { value: String(date) });
+  }
+  if (typeof holdDay === 'string') isoToGtfsDate(holdDay, 'holdDay');
   if (routes !== undefined && (!Array.isArray(routes) || routes.some((r) => typeof r !== 'string'))) {
     throw new StopspanError('bad-option', 'invalid option routes: expected a list of route ids', { value: String(routes) });
   }
@@ -82,7 +123,7 @@ export async function readFeed(
   const early = new Map<string, Promise<Readable>>();
   try {
     // a URL's user name and password are not kept: the source is printed, written in reports and histories
-    return await readArchive(archive, shownUrl(source), { date, routes, onProgress, maxRecordChars, warnings, early });
+    return await readArchive(archive, shownUrl(source), { date, routes, onProgress, maxRecordChars, warnings, early, holdDay, tripRows });
   } finally {
     // a table opened early and never read (the reading stopped at an error before it) is let go
     for (const p of early.values())
@@ -181,11 +222,6 @@ function settled<T>(p: Promise<T>): Promise<T> {
   return p;
 }
 
-/** s as a string of its own, not a slice keeping a larger one alive. */
-function flatCopy(s: string): string {
-  return s.length === 0 ? '' : Buffer.from(s, 'utf8').toString('utf8');
-}
-
 function coord(file: string, row: CsvRow, i: number, column: string, limit: number): number {
   const v = fieldNumber(row, i);
   if (v === null || Math.abs(v) > limit) bad(file, row, i, column, `a coordinate within ±${limit}`);
@@ -218,6 +254,8 @@ async function readArchive(
     maxRecordChars,
     warnings,
     early,
+    holdDay,
+    tripRows,
   }: {
     date: string;
     routes?: string[];
@@ -225,6 +263,8 @@ async function readArchive(
     maxRecordChars?: number;
     warnings: WarningSink;
     early: Map<string, Promise<Readable>>;
+    holdDay?: ReadFeedOptions['holdDay'];
+    tripRows?: TripRowsSink;
   },
 ): Promise<Feed> {
   checkTables(archive);
@@ -247,15 +287,19 @@ async function readArchive(
   const { analysisDate, kept } = tripsKept(tripCols, candidates, date, { calendar, calendarDates }, frequencies);
   warnBlankFields(kept, tripCols, candidates, { calendar, calendarDates }, warnings);
 
-  const stopTimes = await readStopTimes(ctx, kept, stops, stopIndex);
+  const day = heldDay(holdDay, tripCols, candidates, { calendar, calendarDates }, frequencies);
+  const hold = day === null ? undefined : holdMask(kept, { calendar, calendarDates }, day);
+  const { stopTimes, hadRows, held } = await readStopTimes(ctx, kept, stops, stopIndex, { hold, sink: tripRows });
   const trips = new Map<string, Trip>();
-  for (const t of kept) if (stopTimes.has(t.id)) trips.set(t.id, t);
+  kept.forEach((t, k) => {
+    if (hadRows(k)) trips.set(t.id, t);
+  });
   if (trips.size === 0) throw new StopspanError('empty-feed', 'no kept trip has any stop_times rows', { file: 'stop_times.txt' });
   const shapes = await readShapes(ctx, trips);
 
   onProgress?.({ stage: 'hash feed' });
   const contentHash = await hashing;
-  return {
+  const feed: Feed = {
     source,
     date: analysisDate,
     contentHash,
@@ -273,6 +317,8 @@ async function readArchive(
     warnings: warnings.list(),
     rowCounts: ctx.rowCounts,
   };
+  if (held && day !== null) feed.held = day;
+  return feed;
 }
 
 /** The required tables, and a calendar of either kind, are in the archive. */
@@ -413,7 +459,7 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
   const shared = (v: string): string => {
     const have = strings.get(v);
     if (have !== undefined) return have;
-    const own = flatCopy(v);
+    const own = ownCopy(v);
     strings.set(own, own);
     return own;
   };
@@ -430,7 +476,8 @@ async function readTrips(ctx: Ctx, routes: Map<string, Route>): Promise<TripColu
   };
   let unknownRoute = 0;
   await table(ctx, 'trips.txt', ['route_id', 'service_id', 'trip_id'], ['direction_id', 'trip_headsign', 'shape_id'], (row, c) => {
-    const id = need('trips.txt', row, c.trip_id, 'trip_id');
+    // a trip_id is kept (every trip's, for 'all'): its own copy, not a view holding the chunk of trips.txt
+    const id = ownCopy(need('trips.txt', row, c.trip_id, 'trip_id'));
     // a route_id is checked when it changes; an unknown one is not kept as the row before's
     const routeBefore = lastRoute.v;
     const routeId = sharedField(row, c.route_id, lastRoute);
@@ -575,12 +622,75 @@ function warnBlankFields(
   if (noShape > 0) warnings.add('trip-without-shape', kept.find((t) => t.shapeId === '')!.id, noShape);
 }
 
-/** stop_times.txt, kept trips only, each trip folded into a shared profile as its run of rows ends. */
-async function readStopTimes(ctx: Ctx, kept: Trip[], stops: Stop[], stopIndex: Map<string, number>): Promise<StopTimesStore> {
+/** The day whose trips are held (holdDay, asked or chosen from the small tables), or null to hold every trip. */
+function heldDay(
+  holdDay: ReadFeedOptions['holdDay'],
+  { tripId, tripService }: TripColumns,
+  candidates: number[],
+  calendars: Calendars,
+  frequencies: Frequency[],
+): string | null {
+  if (typeof holdDay !== 'function') return holdDay ?? null;
+  const freq = tripRunsPerDay(frequencies);
+  const runsPerService = new Map<string, number>();
+  for (const k of candidates)
+    runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
+  const day = holdDay({ ...calendars, runsPerService });
+  if (day !== null) isoToGtfsDate(day, 'holdDay');
+  return day;
+}
+
+/** 1 for each kept trip whose service runs on day, else 0. */
+function holdMask(kept: Trip[], calendars: Calendars, day: string): Uint8Array {
+  const on = servicesOn(calendars, day);
+  const hold = new Uint8Array(kept.length);
+  kept.forEach((t, k) => {
+    if (on.has(t.serviceId)) hold[k] = 1;
+  });
+  return hold;
+}
+
+/**
+ * stop_times.txt, kept trips only, each trip shown to the sink and folded into a shared profile (if held)
+ * as its run of rows ends. A table not grouped by trip is read again, holding every trip, and its trips
+ * are shown to the sink afterwards; `held` then says the hold was given up.
+ */
+async function readStopTimes(
+  ctx: Ctx,
+  kept: Trip[],
+  stops: Stop[],
+  stopIndex: Map<string, number>,
+  { hold, sink }: { hold?: Uint8Array; sink?: TripRowsSink },
+): Promise<{ stopTimes: StopTimesStore; hadRows: (k: number) => boolean; held: boolean }> {
+  const onTrip = sink && ((k: number, rows: TripStopTimes) => sink.rows(k, kept[k], rows));
+  try {
+    return { ...(await readStopTimesOnce(ctx, kept, stops, stopIndex, { hold, onTrip })), held: hold !== undefined };
+  } catch (e) {
+    if (!(e instanceof NotGroupedByTrip)) throw e;
+  }
+  sink?.restart();
+  const whole = await readStopTimesOnce(ctx, kept, stops, stopIndex, {});
+  if (sink) {
+    kept.forEach((t, k) => {
+      const rows = whole.stopTimes.get(t.id);
+      if (rows) sink.rows(k, t, rows);
+    });
+  }
+  return { ...whole, held: false };
+}
+
+/** One reading of stop_times.txt into a TripFolder. */
+async function readStopTimesOnce(
+  ctx: Ctx,
+  kept: Trip[],
+  stops: Stop[],
+  stopIndex: Map<string, number>,
+  folding: TripFolderOptions,
+): Promise<{ stopTimes: StopTimesStore; hadRows: (k: number) => boolean }> {
   const { warnings } = ctx;
   const tripIdx = new Map<string, number>();
   kept.forEach((t, k) => tripIdx.set(t.id, k));
-  const folder = new TripFolder(kept.length);
+  const folder = new TripFolder(kept.length, folding);
   const F = 'stop_times.txt';
   const station = new Uint8Array(stops.length);
   for (let k = 0; k < stops.length; k++) if (stops[k].locationType === 1) station[k] = 1;
@@ -604,23 +714,17 @@ async function readStopTimes(ctx: Ctx, kept: Trip[], stops: Stop[], stopIndex: M
     folder.interner.profiles,
   );
   warnTripTimes(folder, reader, kept.length, warnings);
-  return stopTimes;
+  return { stopTimes, hadRows: (k) => folder.hadRows(k) };
 }
 
-/** Trips whose stop_times repeat a stop_sequence, lack a time at an end, or have no rows, counted. */
+/** Trips whose stop_times repeat a stop_sequence, lack a time at an end, or have no rows, counted (held or not). */
 function warnTripTimes(folder: TripFolder, reader: StopTimesRowReader, tripCount: number, warnings: WarningSink): void {
   const F = 'stop_times.txt';
   let noTimes = 0;
   let noRows = 0;
   for (let k = 0; k < tripCount; k++) {
-    const id = folder.profileOfTrip[k];
-    if (id < 0) {
-      noRows++;
-      continue;
-    }
-    // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
-    const p = folder.interner.profiles[id];
-    if (p.arrRel[0] < 0 || p.depRel[p.depRel.length - 1] < 0) noTimes++;
+    if (!folder.hadRows(k)) noRows++;
+    else if (folder.endUntimed(k)) noTimes++;
   }
   const repeated = folder.repeated + reader.repeated;
   if (repeated > 0) warnings.add('repeated-stop-sequence', F, repeated);

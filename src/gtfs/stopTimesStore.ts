@@ -258,12 +258,39 @@ export function tripProfiles(stopTimes: ReadonlyMap<string, TripStopTimes>): Pic
   };
 }
 
+/** Seen by a TripFolder's hook: trip t's rows, sorted and without repeats, valid during the call only. */
+export type TripRowsHook = (t: number, rows: TripStopTimes) => void;
+
+/** What a TripFolder does besides holding: a hook on every trip's rows, and which trips to hold. */
+export interface TripFolderOptions {
+  /** Called once per trip that has rows, with all of them, when its run ends. */
+  onTrip?: TripRowsHook;
+  /** Trips t with hold[t] === 0 run the hook and are counted, but are not held; every trip is held without it. */
+  hold?: Uint8Array;
+}
+
+/**
+ * Thrown by a TripFolder with a hook or a hold mask when a trip's rows come back after another trip's:
+ * the rows of a trip not held cannot be gathered again, and the hook has seen part of a trip. The reader
+ * then reads the table again without either (see readStopTimes in readFeed.ts).
+ */
+export class NotGroupedByTrip extends Error {
+  constructor() {
+    super('stop_times.txt is not grouped by trip');
+  }
+}
+
+/** Per-trip flags of a TripFolder. */
+const HAD_ROWS = 1;
+const END_UNTIMED = 2;
+
 /**
  * Where stop_times rows go while read: the rows of the trip being read are kept until its run ends, then
- * sorted, cleared of repeated stop_sequence values and folded into a profile. When a trip's rows come
- * back after another trip's (a table not grouped by trip), the folding stops: that trip's rows so far and
- * every later row are held whole and grouped at the end, as the reader did before it folded, so such a
- * table costs memory by its rows again.
+ * sorted, cleared of repeated stop_sequence values, shown to the hook, and folded into a profile if the
+ * trip is held. When a trip's rows come back after another trip's (a table not grouped by trip), the
+ * folding stops: that trip's rows so far and every later row are held whole and grouped at the end, as the
+ * reader did before it folded, so such a table costs memory by its rows again (with a hook or a hold mask,
+ * NotGroupedByTrip is thrown instead).
  */
 export class TripFolder implements StopTimesSink {
   readonly interner = new ProfileInterner();
@@ -274,10 +301,30 @@ export class TripFolder implements StopTimesSink {
   private readonly scratch = new RowColumns();
   private cur = -1;
   private spill: RowColumns | null = null;
+  /** HAD_ROWS and END_UNTIMED per trip, held or not. */
+  private readonly flags: Uint8Array;
+  private readonly onTrip?: TripRowsHook;
+  private readonly hold?: Uint8Array;
 
-  constructor(private readonly trips: number) {
+  constructor(
+    private readonly trips: number,
+    { onTrip, hold }: TripFolderOptions = {},
+  ) {
     this.profileOfTrip = new Int32Array(trips).fill(-1);
     this.baseOfTrip = new Int32Array(trips);
+    this.flags = new Uint8Array(trips);
+    this.onTrip = onTrip;
+    this.hold = hold;
+  }
+
+  /** Whether trip t had any rows (held or not). */
+  hadRows(t: number): boolean {
+    return (this.flags[t] & HAD_ROWS) !== 0;
+  }
+
+  /** Whether trip t lacks a time at its first or last stop. */
+  endUntimed(t: number): boolean {
+    return (this.flags[t] & END_UNTIMED) !== 0;
   }
 
   /** Whether the table turned out not grouped by trip. */
@@ -287,6 +334,7 @@ export class TripFolder implements StopTimesSink {
     if (t !== this.cur) {
       this.fold();
       this.cur = t;
+      if (this.hadRows(t) && (this.onTrip || this.hold)) throw new NotGroupedByTrip();
       if (this.profileOfTrip[t] >= 0) {
         // this trip's rows came before: from here on, hold rows whole (its own earlier ones first)
         this.spill ??= new RowColumns();
@@ -334,9 +382,15 @@ export class TripFolder implements StopTimesSink {
         column: 'trip_id',
       });
     }
-    const { profileId, baseS } = this.interner.intern(s, 0, s.used);
-    this.profileOfTrip[t] = profileId;
-    this.baseOfTrip[t] = baseS;
+    const m = s.used;
+    // [GTFS Schedule reference: arrival and departure times are required at the first and last stop]
+    this.flags[t] = HAD_ROWS | (s.arr[0] < 0 || s.dep[m - 1] < 0 ? END_UNTIMED : 0);
+    this.onTrip?.(t, rowsOf(s, m));
+    if (!this.hold || this.hold[t] === 1) {
+      const { profileId, baseS } = this.interner.intern(s, 0, m);
+      this.profileOfTrip[t] = profileId;
+      this.baseOfTrip[t] = baseS;
+    }
     s.used = 0;
   }
 
@@ -357,4 +411,17 @@ export class TripFolder implements StopTimesSink {
       );
     this.profileOfTrip[t] = -1;
   }
+}
+
+/** The first m rows of s as a trip's rows: views, not copies. */
+function rowsOf(s: RowColumns, m: number): TripStopTimes {
+  return {
+    stopIdx: s.stop.subarray(0, m),
+    seq: s.seq.subarray(0, m),
+    arrS: s.arr.subarray(0, m),
+    depS: s.dep.subarray(0, m),
+    shapeDist: s.dist.subarray(0, m),
+    timepoint: s.tp.subarray(0, m),
+    noService: s.ns.subarray(0, m),
+  };
 }

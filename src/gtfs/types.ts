@@ -97,6 +97,11 @@ export interface Feed {
    * of rows once (see stopTimesStore.ts); any Map of TripStopTimes does as well.
    */
   stopTimes: ReadonlyMap<string, TripStopTimes>;
+  /**
+   * Set when stopTimes holds only the trips running on this date (YYYY-MM-DD), as readFeed's holdDay
+   * asks; patterns can then be built for this date only. Absent: every trip in trips is held.
+   */
+  held?: string;
   shapes: Map<string, Shape>;
   calendar: CalendarRow[];
   calendarDates: CalendarDate[];

@@ -93,6 +93,15 @@ export function buildPatterns(feed: Feed, options: BuildPatternsOptions = {}): P
       value: date,
     });
   }
+  if (feed.held !== undefined && feed.held !== date) {
+    throw new StopspanError(
+      'bad-option',
+      `invalid option date: expected the day the feed's stop_times were held for (${feed.held}), got ${date}`,
+      {
+        value: date,
+      },
+    );
+  }
   const routeSet = routes !== undefined ? routeIdsOf(feed, routes) : null;
   if (!(pathToleranceM >= 0))
     throw new StopspanError('bad-option', `invalid option pathToleranceM: expected a number >= 0, got ${pathToleranceM}`);

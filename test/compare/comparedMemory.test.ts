@@ -6,7 +6,8 @@ import { existsSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { setFlagsFromString } from 'node:v8';
 import { runInNewContext } from 'node:vm';
-import { comparedPart, comparedPatterns, compareFeeds, ownCopy } from '../../src/compare/compare.js';
+import { comparedPart, comparedPatterns, compareFeeds } from '../../src/compare/compare.js';
+import { ownCopy } from '../../src/common/ownCopy.js';
 import { loadFeed } from '../../src/cli/feedInput.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from '../helpers/buildFeed.js';
 

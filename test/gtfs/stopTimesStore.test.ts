@@ -6,7 +6,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { readCsv } from '../../src/gtfs/csv.js';
-import { PROFILE_CAPS, StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
+import { NotGroupedByTrip, PROFILE_CAPS, StopTimesStore, TripFolder, tripProfiles } from '../../src/gtfs/stopTimesStore.js';
 import {
   MAX_STOPS_PER_TRIP,
   STOP_TIMES_OPTIONAL,
@@ -89,6 +89,49 @@ describe('the folded stop_times store', () => {
       }),
       { numRuns: 400, seed: 20261202 },
     );
+  });
+
+  it("shows every trip's rows to the hook once, sorted and without repeats, and holds only the trips asked for", () => {
+    fc.assert(
+      fc.property(
+        fc.array(rowArb, { maxLength: 80 }),
+        fc.array(fc.integer({ min: 0, max: 1 }), { minLength: 6, maxLength: 6 }),
+        (raw, mask) => {
+          const rows = [...raw].sort((a, b) => a.t - b.t);
+          const seen = new Map<string, Omit<Row, 't'>[]>();
+          const folder = new TripFolder(6, {
+            hold: Uint8Array.from(mask),
+            onTrip: (t, st) => {
+              expect(seen.has(`T${t}`)).toBe(false);
+              seen.set(`T${t}`, plain(st));
+            },
+          });
+          for (const r of rows) folder.push(r.t, r.stop, r.seq, r.arr, r.dep, r.dist, r.tp, r.ns);
+          folder.finish();
+          const want = reference(rows, 6);
+          expect(folder.repeated).toBe(want.dropped);
+          expect(Object.fromEntries(seen)).toEqual(
+            Object.fromEntries([...want.byTrip].map(([id, m]) => [id, m.map(({ t: _t, ...r }) => r)])),
+          );
+          for (let t = 0; t < 6; t++) {
+            expect(folder.hadRows(t)).toBe(want.byTrip.has(`T${t}`));
+            expect(folder.profileOfTrip[t] >= 0).toBe(want.byTrip.has(`T${t}`) && mask[t] === 1);
+            const mine = want.byTrip.get(`T${t}`);
+            expect(folder.endUntimed(t)).toBe(mine !== undefined && (mine[0].arr < 0 || mine[mine.length - 1].dep < 0));
+          }
+        },
+      ),
+      { numRuns: 300, seed: 20261204 },
+    );
+  });
+
+  it('refuses rows of a trip that come back, with a hook or a hold mask, as it cannot gather them again', () => {
+    for (const options of [{ onTrip: () => {} }, { hold: new Uint8Array([1, 0]) }]) {
+      const folder = new TripFolder(2, options);
+      folder.push(0, 0, 1, 0, 0, NaN, 1, 0);
+      folder.push(1, 0, 1, 0, 0, NaN, 1, 0);
+      expect(() => folder.push(0, 1, 2, 60, 60, NaN, 1, 0)).toThrow(NotGroupedByTrip);
+    }
   });
 
   it('holds trips that differ only by a time shift as one profile, and tells different ones apart', () => {
