@@ -1,10 +1,12 @@
 // The command line's engine tuning (src/cli/engineTuning.ts): a larger V8 interrupt budget and a smaller
 // heap growth, unless node was given its own. Checked against V8 itself: its --trace-opt log counts the
-// functions it optimised, and the kernel's peak resident set (getrusage) measures the heap growth.
+// functions it optimised, and the largest heap a process keeps measures the heap growth.
 
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { CLI_HEAP_GROWING_PERCENT, CLI_INTERRUPT_BUDGET, engineFlagGiven, interruptBudgetGiven } from '../../src/cli/engineTuning.js';
 import { ROOT, runCli } from '../helpers/cli.js';
@@ -46,34 +48,36 @@ describe('engine tuning of the command line', () => {
     expect(CLI_HEAP_GROWING_PERCENT).toBeLessThan(100);
   });
 
-  const MANHATTAN = join(ROOT, '../shared/feeds/nyct-bus-manhattan.zip');
-  it.skipIf(!existsSync(MANHATTAN))(
-    "keeps the audit's peak memory on a real feed below V8's own heap growth",
-    async () => {
-      const out = mkdtempSync(join(tmpdir(), 'stopspan-engine-'));
-      dirs.push(out);
-      // the kernel's peak resident set of the process, written as it exits
-      const preload = join(out, 'peak.mjs');
-      writeFileSync(
-        preload,
-        "import { writeFileSync } from 'node:fs';\nprocess.on('exit', () => writeFileSync(process.env.PEAK_FILE, String(process.resourceUsage().maxRSS)));\n",
-      );
-      const peakKb = async (tag: string, nodeArgs: string[]): Promise<number> => {
-        process.env.PEAK_FILE = join(out, `${tag}.kb`);
-        const r = await runCli(['audit', MANHATTAN, '--out', join(out, tag), '-q'], { nodeArgs: ['--import', preload, ...nodeArgs] });
-        expect(r.code, r.stderr).toBe(0);
-        return Number(readFileSync(join(out, `${tag}.kb`), 'utf8'));
-      };
-      try {
-        const tuned = await peakKb('tuned', []);
-        // 0 is V8's own rule (grow by up to four times what survived), left as given
-        const v8Default = await peakKb('default', ['--heap-growing-percent=0']);
-        // measured: about 170 MB against 189 MB; the live heap is the same, only the garbage held differs
-        expect(tuned).toBeLessThan(v8Default * 0.95);
-      } finally {
-        delete process.env.PEAK_FILE;
-      }
-    },
-    120_000,
-  );
+  // A workload that holds about 60 MB and turns 300 MB into old garbage, in a process of its own: the
+  // largest heap V8 keeps is a property of its collector, the same from run to run (measured: 152 MB with
+  // the tuning, 318 MB with V8's own rule). On a real audit the effect is smaller and noisier (Manhattan's
+  // buses about 170 MB against 185, the merged city network 367 against 617 MiB: README, Speed and memory),
+  // so the mechanism is checked here and the figures in the benchmark.
+  it("holds the heap near what is live, where V8's own rule lets it grow to twice as much", () => {
+    const dir = mkdtempSync(join(tmpdir(), 'stopspan-engine-'));
+    dirs.push(dir);
+    const script = join(dir, 'churn.mjs');
+    writeFileSync(
+      script,
+      [
+        `if (process.env.TUNE) await import(${JSON.stringify(pathToFileURL(join(ROOT, 'dist/cli/engineTuning.js')).href)});`,
+        'const live = [];',
+        'for (let i = 0; i < 60; i++) live.push(new Array(131072).fill(i));',
+        'let peak = 0;',
+        'for (let i = 0; i < 600; i++) {',
+        '  new Array(131072).fill(i); // young garbage',
+        '  if (i % 2 === 0) live[i % 60] = new Array(131072).fill(i); // the piece it replaces is old garbage',
+        '  peak = Math.max(peak, process.memoryUsage().heapTotal);',
+        '}',
+        'console.log(peak);',
+      ].join('\n'),
+    );
+    const peak = (env: Record<string, string>, args: string[] = []): number =>
+      Number(execFileSync(process.execPath, [...args, script], { env: { ...process.env, ...env }, encoding: 'utf8' }));
+    const tuned = peak({ TUNE: '1' });
+    const v8Rule = peak({}, ['--heap-growing-percent=0']); // 0 is V8's own rule, as node leaves it
+    const left = peak({ TUNE: '1' }, ['--heap-growing-percent=0']); // a growth given to node is left as given
+    expect(tuned).toBeLessThan(v8Rule * 0.7);
+    expect(left).toBeGreaterThan(v8Rule * 0.9);
+  });
 });
