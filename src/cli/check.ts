@@ -7,8 +7,7 @@ import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily
 import { StopspanError } from '../common/errors.js';
 import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
 import { checkDocument } from '../report/jsonDocuments.js';
-import { EXIT, listOption, makeProgress, runAction } from './shared.js';
-import { loadFeed, numberOption } from './feedInput.js';
+import { EXIT, listOption, makeProgress, runAction, numberOption } from './shared.js';
 import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 export type FailOn = Severity | 'never';
@@ -108,9 +107,10 @@ export function registerCheck(program: Command): void {
           const thresholds = thresholdsFromCli(o);
           const fetch = feedFetchOptions(o);
           // the checks load when the command runs, not at every start-up of the CLI
-          const [{ checkFeed, TripFindings }, { checkText }] = await Promise.all([
+          const [{ checkFeed, TripFindings }, { checkText }, { loadNetwork }] = await Promise.all([
             import('../check/check.js'),
             import('../report/checkText.js'),
+            import('../network/loadNetwork.js'),
           ]);
           const today = o.today ?? new Date().toISOString().slice(0, 10);
           // the history is opened (and checked to be this tool's) before the feed is read: a bad one fails at once
@@ -123,7 +123,7 @@ export function registerCheck(program: Command): void {
           try {
             const progress = makeProgress(o.quiet === true || o.json === true);
             try {
-              loaded = await loadFeed(source, { date: o.date, today, onProgress: progress.onProgress, fetch, tripRows: tripFindings });
+              loaded = await loadNetwork(source, { date: o.date, today, onProgress: progress.onProgress, fetch, tripRows: tripFindings });
             } finally {
               progress.done();
             }

@@ -10,8 +10,7 @@ import { parseLandUseWeights, type LandUseLayer } from '../landuse/readLandUse.j
 import type { ContextStops } from '../network/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
-import { EXIT, makeProgress, runAction } from './shared.js';
-import { loadFeed, numberOption } from './feedInput.js';
+import { EXIT, makeProgress, runAction, numberOption } from './shared.js';
 import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 /**
@@ -93,6 +92,7 @@ export function registerCompare(program: Command): void {
             { comparisonHtml, comparisonText, comparisonTripsCsv },
             { checkOutFolder, writeFolder },
             { readLandUseAside },
+            { loadNetwork },
           ] = await Promise.all([
             import('../compare/compare.js'),
             import('../audit/runAudit.js'),
@@ -100,6 +100,7 @@ export function registerCompare(program: Command): void {
             import('../report/compareRender.js'),
             import('../report/writeFolder.js'),
             import('../landuse/readLandUseAside.js'),
+            import('../network/loadNetwork.js'),
           ]);
           const outOptions = {
             force: o.force === true,
@@ -119,7 +120,7 @@ export function registerCompare(program: Command): void {
           let oldContext: ContextStops = { near: new Map(), stations: [], feeds: [] };
           let newContext: ContextStops = oldContext;
           try {
-            a = await loadFeed(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
+            a = await loadNetwork(oldSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
             // context feeds (--context), read for each version on its own date as the audit reads them
             oldContext = await contextStops(a.feed, a.patterns, context, fetch);
             // the older feed is audited, then cut to what the comparison reads, before the newer one is read
@@ -137,7 +138,7 @@ export function registerCompare(program: Command): void {
               );
             const oldPatterns = comparedPatterns(a.patterns);
             a = { ...a, feed: comparedPart(a.feed, oldPatterns), patterns: oldPatterns };
-            b = await loadFeed(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
+            b = await loadNetwork(newSource, { date: o.date, onProgress: progress.onProgress, dayOnly: true, fetch });
             newContext = await contextStops(b.feed, b.patterns, context, fetch);
           } finally {
             progress.done();

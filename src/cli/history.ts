@@ -5,8 +5,7 @@ import { terminalText } from '../common/terminalText.js';
 import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
 import { StopspanError } from '../common/errors.js';
-import { EXIT, runAction } from './shared.js';
-import { numberOption } from './feedInput.js';
+import { EXIT, numberOption, runAction } from './shared.js';
 import { historyDocument } from '../report/jsonDocuments.js';
 
 interface HistoryCliOptions {

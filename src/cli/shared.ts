@@ -1,7 +1,8 @@
 // What every command shares: the exit-code contract, the one error handler at the boundary, and the
 // progress drawer (stderr, only when a person is watching).
 
-import { isStopspanError } from '../common/errors.js';
+import { parseDecimal } from '../common/decimal.js';
+import { StopspanError, isStopspanError } from '../common/errors.js';
 import { errorJsonDocument } from '../report/jsonDocuments.js';
 import { terminalText } from '../common/terminalText.js';
 import { groupedFixed } from '../report/numberText.js';
@@ -110,4 +111,14 @@ export function listOption(value: string, previous: string[] = []): string[] {
       .map((s) => s.trim())
       .filter(Boolean),
   );
+}
+
+/** Parses a numeric option value, or throws bad-option naming the option. */
+export function numberOption(name: string, raw: string | undefined, min = 0): number | undefined {
+  if (raw === undefined) return undefined;
+  const v = parseDecimal(raw);
+  if (v === null || v < min) {
+    throw new StopspanError('bad-option', `invalid option ${name}: expected a number >= ${min}, got ${raw}`, { value: raw });
+  }
+  return v;
 }

@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { checkFeed, TripFindings } from '../../src/check/check.js';
-import { loadFeed } from '../../src/cli/feedInput.js';
+import { loadNetwork } from '../../src/network/loadNetwork.js';
 import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
 import { isStopspanError } from '../../src/common/errors.js';
@@ -125,11 +125,11 @@ describe('a check of a feed held for one day', () => {
   });
 });
 
-describe('loadFeed with tripRows', () => {
+describe('loadNetwork with tripRows', () => {
   async function both(dir: string, options: { date?: string; today?: string }) {
     const found = new TripFindings(3);
-    const held = await loadFeed(dir, { ...options, tripRows: found });
-    const whole = await loadFeed(dir, options);
+    const held = await loadNetwork(dir, { ...options, tripRows: found });
+    const whole = await loadNetwork(dir, options);
     const opts = { today: TODAY, maxExamples: 3, analysis: whole.analysis };
     expect(held.analysis).toEqual(whole.analysis);
     expect(checkFeed(held.feed, held.patterns, { ...opts, tripFindings: found })).toEqual(checkFeed(whole.feed, whole.patterns, opts));
@@ -164,7 +164,7 @@ describe('loadFeed with tripRows', () => {
 
   it('fails as the whole read does when nothing runs on --date', async () => {
     const dir = makeFeed('trips');
-    const e = await loadFeed(dir, { date: '2025-01-01', tripRows: new TripFindings() }).catch((x: unknown) => x);
+    const e = await loadNetwork(dir, { date: '2025-01-01', tripRows: new TripFindings() }).catch((x: unknown) => x);
     expect(isStopspanError(e) && e.code).toBe('empty-feed');
   });
 });

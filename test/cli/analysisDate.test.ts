@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { ROOT, runCli } from '../helpers/cli.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
-import { loadFeed } from '../../src/cli/feedInput.js';
+import { loadNetwork } from '../../src/network/loadNetwork.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'stopspan-date-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -40,13 +40,13 @@ describe('the default analysis date', () => {
   it('is the same for the audit and for check/compare: the weekday with the most runs, frequencies expanded', async () => {
     const feed = splitFeed();
     const audit = await readFeed(feed, { date: 'auto' });
-    const loaded = await loadFeed(feed);
+    const loaded = await loadNetwork(feed);
     expect(audit.date).toBe('2026-10-13'); // Tuesday: 6 runs against Monday's 2 [D]
     expect(loaded.date).toBe(audit.date);
     expect(loaded.analysis.basis).toBe('busiest-weekday');
     expect(loaded.patterns.patterns[0].tripsPerDay).toBe(6);
     // compare's day-only read: the same day and reason, the patterns, and Tuesday's trip alone held
-    const day = await loadFeed(feed, { dayOnly: true });
+    const day = await loadNetwork(feed, { dayOnly: true });
     expect(day.analysis).toEqual(loaded.analysis);
     expect(day.patterns.patterns).toEqual(loaded.patterns.patterns);
     expect([...day.feed.trips.keys()]).toEqual(['T3']);

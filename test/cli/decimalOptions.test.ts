@@ -3,7 +3,7 @@
 // read it as 16, which is why Number() is not used on them).
 
 import { describe, expect, it } from 'vitest';
-import { numberOption } from '../../src/cli/feedInput.js';
+import { numberOption } from '../../src/cli/shared.js';
 import { paramOverrides } from '../../src/cli/paramOptions.js';
 import { parseScenario } from '../../src/whatif/whatif.js';
 import { normalizeParams } from '../../src/model/params.js';

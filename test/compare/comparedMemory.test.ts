@@ -8,7 +8,7 @@ import { setFlagsFromString } from 'node:v8';
 import { runInNewContext } from 'node:vm';
 import { comparedPart, comparedPatterns, compareFeeds } from '../../src/compare/compare.js';
 import { ownCopy } from '../../src/common/ownCopy.js';
-import { loadFeed } from '../../src/cli/feedInput.js';
+import { loadNetwork } from '../../src/network/loadNetwork.js';
 import { buildFeed, cleanSpec, street, type FeedSpec } from '../helpers/buildFeed.js';
 
 const FEEDS = process.env.STOPSPAN_FEEDS ?? resolve(__dirname, '../../../shared/feeds');
@@ -92,7 +92,7 @@ describe('comparedPatterns with comparedPart', () => {
 
 describe.skipIf(!existsSync(BUS))('the older feed as compare holds it, on the Manhattan bus feed', () => {
   it('reads the day alone with the same date and patterns, and the cut part lets the whole feed go', async () => {
-    const all = await loadFeed(BUS);
+    const all = await loadNetwork(BUS);
     // the feeds' README: 37 872 trips in trips.txt [real feed fact]
     expect(all.feed.trips.size).toBe(37872);
     // a route's trips halved in the newer version
@@ -114,7 +114,7 @@ describe.skipIf(!existsSync(BUS))('the older feed as compare holds it, on the Ma
 
     // read and cut in a function of its own, as the command does, so nothing but its answer stays
     const older = async () => {
-      const day = await loadFeed(BUS, { dayOnly: true });
+      const day = await loadNetwork(BUS, { dayOnly: true });
       const patterns = comparedPatterns(day.patterns);
       return {
         day: { date: day.date, analysis: day.analysis, patterns: day.patterns, trips: day.feed.trips.size },
