@@ -1,7 +1,6 @@
 // The whole audit on a hand-made Vellmoor network: every field filled, verdicts and candidates consistent
 // with the model, the walking policy respected, sensitivity and observed data honoured.
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { StopspanError } from '../../src/common/errors.js';
@@ -13,6 +12,7 @@ import { checkFeed } from '../../src/check/check.js';
 import { brakingAcceleratingS } from '../../src/model/lostTime.js';
 import type { ObservedPattern } from '../../src/realtime/types.js';
 import type { ModelParams } from '../../src/model/params.js';
+import { tempDir } from '../helpers/tempDir.js';
 
 // stops about 110 m apart over 6 km (mean trip 2 km): the square-root optimum at 25 mph is about 184 m
 const closeSpacing = Array.from({ length: 56 }, (_, j) => j * 110 + (j % 3 === 0 ? 0 : 8));
@@ -152,7 +152,7 @@ describe('runAudit', () => {
   });
 
   it('takes demand from a ridership file and marks it observed', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'stopspan-audit-'));
+    const dir = tempDir('stopspan-audit-');
     const file = join(dir, 'ridership.csv');
     const rows = closeSpacing.map((_, j) => `v1-${j},V1,${j < closeSpacing.length - 1 ? 30 : 0},${j > 0 ? 30 : 0}`);
     writeFileSync(file, 'stop_id,route_id,boardings,alightings\n' + rows.join('\n') + '\n');
@@ -175,7 +175,7 @@ describe('runAudit', () => {
   });
 
   it('chooses the stopping model per pattern by the data it has when stopping_model is auto (the default)', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'stopspan-audit-'));
+    const dir = tempDir('stopspan-audit-');
     const file = join(dir, 'ridership.csv');
     const rows = closeSpacing.map((_, j) => `v1-${j},V1,${j < closeSpacing.length - 1 ? 30 : 0},${j > 0 ? 30 : 0}`);
     writeFileSync(file, 'stop_id,route_id,boardings,alightings\n' + rows.join('\n') + '\n');

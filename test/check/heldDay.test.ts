@@ -2,8 +2,7 @@
 // TripFindings as they are read) must give the report of the whole read, whatever the order of the rows in
 // stop_times.txt: examples in trips.txt order, exact counts, and the held trips only the day's.
 
-import { mkdtempSync, readFileSync, writeFileSync, cpSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync, cpSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { checkFeed, TripFindings } from '../../src/check/check.js';
@@ -11,6 +10,7 @@ import { loadNetwork } from '../../src/network/loadNetwork.js';
 import { readFeed } from '../../src/gtfs/index.js';
 import { buildPatterns } from '../../src/network/index.js';
 import { isStopspanError } from '../../src/common/errors.js';
+import { tempDir } from '../helpers/tempDir.js';
 
 const CLEAN = resolve(import.meta.dirname, '../../fixtures/check/clean');
 const TODAY = '2026-10-14'; // a Wednesday
@@ -33,7 +33,7 @@ type Order = 'trips' | 'reversed' | 'scattered';
  * order, reversed, or with their rows interleaved (not grouped by trip).
  */
 function makeFeed(order: Order): string {
-  const dir = mkdtempSync(join(tmpdir(), 'stopspan-held-'));
+  const dir = tempDir('stopspan-held-');
   cpSync(CLEAN, dir, { recursive: true });
   const route = readFileSync(join(CLEAN, 'trips.txt'), 'utf8').split('\n')[1].split(',')[0];
   const trips = ['route_id,service_id,trip_id,trip_headsign,direction_id,shape_id'];

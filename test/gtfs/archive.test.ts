@@ -4,7 +4,6 @@
 import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { crc32 } from 'node:zlib';
 import { createHash } from 'node:crypto';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { writeZip, zipBytes, zipDirectory } from '../helpers/zip.js';
@@ -13,6 +12,7 @@ import { fileSha256, openFeed } from '../../src/gtfs/archive.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
 import { rejected } from '../helpers/errors.js';
+import { tempDir } from '../helpers/tempDir.js';
 
 afterAll(cleanupCopies);
 
@@ -22,7 +22,7 @@ async function drain(stream: AsyncIterable<Buffer>): Promise<number> {
   return n;
 }
 
-const tmp = mkdtempSync(join(tmpdir(), 'stopspan-archive-test-'));
+const tmp = tempDir('stopspan-archive-test-');
 
 /** Replaces every occurrence of a byte string (same length) in a file. */
 function patchBytes(path: string, from: string, to: string): void {
@@ -286,7 +286,7 @@ describe('openFeed on zips that lie or are damaged', () => {
 
 describe('the hash of a feed file', () => {
   it('is SHA-256, the same whether the file is hashed whole or streamed', async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'stopspan-hash-'));
+    const dir = tempDir('stopspan-hash-');
     const abc = join(dir, 'abc.bin');
     writeFileSync(abc, 'abc');
     // FIPS 180-2, appendix B.1: SHA-256("abc")

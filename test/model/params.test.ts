@@ -1,10 +1,10 @@
 // Parameter normalisation: defaults with sources, user values, and the errors that name the parameter.
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { defaultParams, loadParams, loadParamsFile, normalizeParams, paramsReport, PARAM_NAMES } from '../../src/model/params.js';
 import { thrown } from '../helpers/errors.js';
+import { tempDir } from '../helpers/tempDir.js';
 
 describe('normalizeParams', () => {
   it('fills every name of the design notes with its default', () => {
@@ -87,7 +87,7 @@ describe('normalizeParams', () => {
 });
 
 describe('loadParamsFile', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'stopspan-params-'));
+  const dir = tempDir('stopspan-params-');
   it('reads a JSON file and names the file in errors', () => {
     const ok = join(dir, 'ok.json');
     writeFileSync(ok, '\uFEFF{"walk_weight": 1.5, "max_gap_m": 600}');
@@ -105,7 +105,7 @@ describe('loadParamsFile', () => {
 });
 
 describe('loadParams', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'stopspan-params-'));
+  const dir = tempDir('stopspan-params-');
   it('puts single values on top of the file, numbers given as text read as numbers, both reported as set', () => {
     const file = join(dir, 'base.json');
     writeFileSync(file, '{"walk_weight": 1.5, "max_gap_m": 600}');
