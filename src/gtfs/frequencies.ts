@@ -29,6 +29,20 @@ export function tripRunsPerDay(frequencies: Frequency[]): Map<string, TripRuns> 
   return out;
 }
 
+/**
+ * Trip runs a day per service_id, frequencies expanded (a trip without frequencies.txt rows runs once):
+ * what the analysis date's rule weighs. `eachTrip` calls `visit` with every trip to count.
+ */
+export function runsPerService(
+  frequencies: Frequency[],
+  eachTrip: (visit: (tripId: string, serviceId: string) => void) => void,
+): Map<string, number> {
+  const runs = tripRunsPerDay(frequencies);
+  const out = new Map<string, number>();
+  eachTrip((tripId, serviceId) => out.set(serviceId, (out.get(serviceId) ?? 0) + (runs.get(tripId)?.count ?? 1)));
+  return out;
+}
+
 /** The runs on date (YYYY-MM-DD) of every trip whose service runs that day, frequencies expanded. */
 export function tripInstancesOnDate(
   feed: Pick<Feed, 'trips' | 'calendar' | 'calendarDates' | 'frequencies'>,

@@ -16,7 +16,7 @@ import { readCsv, type CsvGroupKey } from './csv.js';
 import type { CsvRow } from './csvCore.js';
 import type { DownloadLimits, FetchOptions } from './download.js';
 import { shownUrl } from './requestHeaders.js';
-import { tripRunsPerDay } from './frequencies.js';
+import { runsPerService } from './frequencies.js';
 import type { Agency, CalendarDate, CalendarRow, Feed, FeedInfo, Frequency, Route, Shape, Stop, Trip, TripStopTimes } from './types.js';
 import { FloatColumn, groupAndSort, IntColumn } from './columns.js';
 import { missingColumn } from './missingColumn.js';
@@ -580,18 +580,14 @@ function tripsKept(
   { calendar, calendarDates }: Calendars,
   frequencies: Frequency[],
 ): { analysisDate: string | null; kept: Trip[] } {
-  const { tripId, tripService } = tripCols;
+  const { tripService } = tripCols;
   let analysisDate: string | null = null;
   let kept: Trip[];
   if (date === 'all') {
     kept = candidates.map((k) => tripAt(tripCols, k));
   } else {
     if (date === 'auto') {
-      const freq = tripRunsPerDay(frequencies);
-      const runsPerService = new Map<string, number>();
-      for (const k of candidates)
-        runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
-      analysisDate = defaultAnalysisDate({ calendar, calendarDates }, runsPerService);
+      analysisDate = defaultAnalysisDate({ calendar, calendarDates }, candidateRuns(tripCols, candidates, frequencies));
       if (!analysisDate)
         throw new StopspanError('empty-feed', 'no Monday-Friday date in the service range has any trip', { file: 'calendar.txt' });
     } else {
@@ -622,20 +618,23 @@ function warnBlankFields(
   if (noShape > 0) warnings.add('trip-without-shape', kept.find((t) => t.shapeId === '')!.id, noShape);
 }
 
+/** Trip runs a day per service_id of the candidate trips (trips.txt rows), frequencies expanded. */
+function candidateRuns({ tripId, tripService }: TripColumns, candidates: number[], frequencies: Frequency[]): Map<string, number> {
+  return runsPerService(frequencies, (visit) => {
+    for (const k of candidates) visit(tripId[k], tripService[k]);
+  });
+}
+
 /** The day whose trips are held (holdDay, asked or chosen from the small tables), or null to hold every trip. */
 function heldDay(
   holdDay: ReadFeedOptions['holdDay'],
-  { tripId, tripService }: TripColumns,
+  tripCols: TripColumns,
   candidates: number[],
   calendars: Calendars,
   frequencies: Frequency[],
 ): string | null {
   if (typeof holdDay !== 'function') return holdDay ?? null;
-  const freq = tripRunsPerDay(frequencies);
-  const runsPerService = new Map<string, number>();
-  for (const k of candidates)
-    runsPerService.set(tripService[k], (runsPerService.get(tripService[k]) ?? 0) + (freq.get(tripId[k])?.count ?? 1));
-  const day = holdDay({ ...calendars, runsPerService });
+  const day = holdDay({ ...calendars, runsPerService: candidateRuns(tripCols, candidates, frequencies) });
   if (day !== null) isoToGtfsDate(day, 'holdDay');
   return day;
 }

@@ -8,7 +8,7 @@
 import { StopspanError, isStopspanError } from '../common/errors.js';
 import type { HoldDayTables, TripRowsSink } from '../gtfs/readFeed.js';
 import { chooseAnalysisDate, isoToGtfsDate, type AnalysisDay } from '../gtfs/calendar.js';
-import { tripRunsPerDay } from '../gtfs/frequencies.js';
+import { runsPerService } from '../gtfs/frequencies.js';
 import type { OnProgress } from '../common/progress.js';
 import type { FetchOptions } from '../gtfs/download.js';
 import { readFeed } from '../gtfs/readFeed.js';
@@ -69,7 +69,7 @@ export async function loadNetwork(
   const { date: asked, today, onProgress, dayOnly = false, fetch, tripRows } = options;
   if (asked !== undefined) isoToGtfsDate(asked, '--date');
   if (today !== undefined) isoToGtfsDate(today, '--today');
-  const { buildPatterns } = await loadBuilder();
+  const building = loadBuilder();
   if (dayOnly && today === undefined) {
     // the reader picks the date by the same rule (the busiest Monday-Friday date, or the one asked for)
     // and keeps that day's trips only: a whole city's other days are a hundred megabytes held for nothing
@@ -81,12 +81,9 @@ export async function loadNetwork(
     }
     if (day?.date) {
       // the kept trips run on the date, so it stays the busiest of its weekdays: the same date and reason
-      const runs = tripRunsPerDay(day.frequencies);
-      const runsPerService = new Map<string, number>();
-      for (const t of day.trips.values())
-        runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
-      const analysis = chooseAnalysisDate(day, runsPerService, { date: asked });
+      const analysis = chooseAnalysisDate(day, feedRuns(day), { date: asked });
       if (analysis.date === day.date) {
+        const { buildPatterns } = await building;
         try {
           return { feed: day, patterns: buildPatterns(day, { date: day.date, onProgress }), date: day.date, analysis };
         } catch (e) {
@@ -100,17 +97,13 @@ export async function loadNetwork(
   // with tripRows, the trips of the date the rule picks from trips.txt are held, the rest only shown
   const holdDay = tripRows && ((tables: HoldDayTables) => dateChosen(tables, asked, today));
   let feed = await readFeed(source, { date: 'all', onProgress, fetch, holdDay, tripRows });
-  // trip runs per service, frequencies expanded: the count the audit's default date uses too
-  const runs = tripRunsPerDay(feed.frequencies);
-  const runsPerService = new Map<string, number>();
-  for (const t of feed.trips.values())
-    runsPerService.set(t.serviceId, (runsPerService.get(t.serviceId) ?? 0) + (runs.get(t.id)?.count ?? 1));
-  const analysis = chooseAnalysisDate(feed, runsPerService, { date: asked, today });
+  const analysis = chooseAnalysisDate(feed, feedRuns(feed), { date: asked, today });
   if (feed.held !== undefined && feed.held !== analysis.date) {
     // trips without stop_times tipped the choice: read again holding every trip (the same trips, so the same date)
     tripRows?.restart();
     feed = await readFeed(source, { date: 'all', onProgress, fetch, tripRows });
   }
+  const { buildPatterns } = await building;
   const date = analysis.date;
   const empty: PatternSet = { date: date ?? '', patterns: [], routesAtStop: new Map() };
   if (date === null) return { feed, patterns: empty, date, analysis };
@@ -130,6 +123,13 @@ function dateChosen(tables: HoldDayTables, asked: string | undefined, today: str
     if (isStopspanError(e)) return null;
     throw e;
   }
+}
+
+/** Trip runs a day per service_id of the feed's trips, frequencies expanded. */
+function feedRuns(feed: Feed): Map<string, number> {
+  return runsPerService(feed.frequencies, (visit) => {
+    for (const t of feed.trips.values()) visit(t.id, t.serviceId);
+  });
 }
 
 /** The pattern builder's module, loaded when first needed (a failure to load surfaces where it is awaited). */
