@@ -8,7 +8,7 @@ import { auditFeed } from '../audit/auditFeed.js';
 import { loadParams } from '../model/params.js';
 import { StopspanError } from '../common/errors.js';
 import { groupedFixed } from '../report/numberText.js';
-import { EXIT, listOption, makeProgress, runAction } from './shared.js';
+import { EXIT, listOption, makeProgress, runAction, repeatedOption } from './shared.js';
 import { paramOverrides, addParamOptions } from './paramOptions.js';
 import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 import { parseLandUseWeights } from '../landuse/readLandUse.js';
@@ -73,7 +73,7 @@ export function registerAudit(program: Command): void {
     .option(
       '--context <feed>',
       'another feed (zip, folder or URL; repeatable) whose stations make bus stops within 150 m transfer points',
-      (v: string, prev: string[] = []) => prev.concat(v),
+      repeatedOption,
     )
     .option('--keep <stop_ids>', 'stops the optimiser must keep (comma-separated)', listOption)
     .option('--format <list>', `outputs to write: ${FORMATS.join(',')} (default: ${DEFAULT_FORMATS.join(',')})`, listOption)

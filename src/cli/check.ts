@@ -7,7 +7,7 @@ import { FINDINGS, FINDING_CODES, SEVERITY_RANK, type Severity, type SpeedFamily
 import { StopspanError } from '../common/errors.js';
 import { NEXT_SERVICE_WINDOW_DAYS } from '../gtfs/calendar.js';
 import { checkDocument } from '../report/jsonDocuments.js';
-import { EXIT, listOption, makeProgress, runAction, numberOption } from './shared.js';
+import { EXIT, listOption, makeProgress, runAction, numberOption, repeatedOption } from './shared.js';
 import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 export type FailOn = Severity | 'never';
@@ -86,7 +86,7 @@ export function registerCheck(program: Command): void {
     .option(
       '--context <feed>',
       'another feed (zip, folder or URL; repeatable): an unreadable one exits 2; reports its stations and service on the date, and the stops served within 150 m of one',
-      (v: string, prev: string[] = []) => prev.concat(v),
+      repeatedOption,
     )
     .option('-q, --quiet', 'no progress on stderr')
     .option('--verbose', 'stack traces for internal errors')

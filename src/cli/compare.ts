@@ -10,7 +10,7 @@ import { parseLandUseWeights, type LandUseLayer } from '../landuse/readLandUse.j
 import type { ContextStops } from '../network/contextStations.js';
 import type { AuditBrief, Comparison } from '../compare/compare.js';
 import { compareDocument } from '../report/jsonDocuments.js';
-import { EXIT, makeProgress, runAction, numberOption } from './shared.js';
+import { EXIT, makeProgress, runAction, numberOption, repeatedOption } from './shared.js';
 import { addFeedOptions, feedFetchOptions, type FeedFetchCliOptions } from './feedOptions.js';
 
 /**
@@ -58,7 +58,7 @@ export function registerCompare(program: Command): void {
     .option(
       '--context <feed>',
       'another feed (zip, folder or URL; repeatable) whose stations within 150 m keep stops as transfer points in both audits; lists the stops that lost or gained such a link',
-      (v: string, prev: string[] = []) => prev.concat(v),
+      repeatedOption,
     )
     .option(
       '--land-use <file>',

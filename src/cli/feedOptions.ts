@@ -5,20 +5,19 @@
 import type { Command } from 'commander';
 import type { FetchOptions } from '../gtfs/download.js';
 import { parseHeaderOptions } from '../gtfs/requestHeaders.js';
+import { repeatedOption } from './shared.js';
 
 export interface FeedFetchCliOptions {
   header?: string[];
   cache?: boolean;
 }
 
-const collect = (value: string, previous: string[] = []): string[] => previous.concat(value);
-
 export function addFeedOptions(cmd: Command): void {
   cmd
     .option(
       '--header <NAME:VALUE>',
       'a request header sent when the feed is downloaded from a URL, e.g. an API key (repeatable; only to that host)',
-      collect,
+      repeatedOption,
     )
     .option('--no-cache', 'download the feed whole, without using or filling the download cache');
 }

@@ -113,6 +113,11 @@ export function listOption(value: string, previous: string[] = []): string[] {
   );
 }
 
+/** Collects a repeatable option's values in the order given. */
+export function repeatedOption(value: string, previous: string[] = []): string[] {
+  return previous.concat(value);
+}
+
 /** Parses a numeric option value, or throws bad-option naming the option. */
 export function numberOption(name: string, raw: string | undefined, min = 0): number | undefined {
   if (raw === undefined) return undefined;

@@ -3,12 +3,10 @@
 // The scenario is checked whole before the feed is read, so nothing is computed from half of it.
 
 import type { Command } from 'commander';
-import { listOption } from './shared.js';
+import { listOption, repeatedOption } from './shared.js';
 import { addParamOptions } from './paramOptions.js';
 import { addFeedOptions } from './feedOptions.js';
 import type { WhatifOpts } from './whatifRun.js';
-
-const collect = (value: string, previous: string[] = []): string[] => previous.concat(value);
 
 export function registerWhatif(program: Command): void {
   const cmd = program
@@ -16,12 +14,12 @@ export function registerWhatif(program: Command): void {
     .description('weigh a proposal (remove, add or move stops): walking, riding, run time, gaps, in passenger-minutes per day')
     .argument('<feed>', 'GTFS feed: a .zip file, a folder of .txt files, or an http(s) URL')
     .option('--remove <stops>', 'stops to remove, by stop_id or name (comma-separated; repeatable)', listOption)
-    .option('--add <lat,lon[:route]>', 'a stop to add at these coordinates, optionally on one route only (repeatable)', collect)
-    .option('--move <stop:lat,lon>', 'a stop to move to these coordinates (repeatable)', collect)
+    .option('--add <lat,lon[:route]>', 'a stop to add at these coordinates, optionally on one route only (repeatable)', repeatedOption)
+    .option('--move <stop:lat,lon>', 'a stop to move to these coordinates (repeatable)', repeatedOption)
     .option(
       '--route <route>',
       'with --remove or --move by name: only the stop of that name on this route (route_id or short name; repeatable)',
-      collect,
+      repeatedOption,
     )
     .option('--direction <0|1>', 'with --remove or --move by name: only the stop on this direction_id')
     .option('--headsign <text>', 'with --remove or --move by name: only the stop on patterns with this headsign')
@@ -41,7 +39,7 @@ export function registerWhatif(program: Command): void {
     .option(
       '--context <feed>',
       'another feed (zip, folder or URL; repeatable) whose stations within 150 m of a changed stop are named in the result',
-      collect,
+      repeatedOption,
     )
     .option('--params <file.json>', 'model parameters (every key optional; see README)')
     .option('--json', 'print the result as one JSON document on stdout')
