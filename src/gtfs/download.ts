@@ -16,8 +16,17 @@ import { StopspanError } from '../common/errors.js';
 import { staleRunFolders, undoOnInterrupt } from '../common/interrupts.js';
 import type { OnProgress } from '../common/progress.js';
 import type { WarningSink } from '../common/warnings.js';
-import { DEFAULT_CACHE_LIMITS, cacheFolder, copyOut, readEntry, storeEntry, validators, type CacheOptions } from './downloadCache.js';
-import { proxyFor, type Proxy, type ProxyEnv } from './httpProxy.js';
+import {
+  DEFAULT_CACHE_LIMITS,
+  ZIP_HEAD,
+  cacheFolder,
+  copyOut,
+  readEntry,
+  storeEntry,
+  validators,
+  type CacheOptions,
+} from './downloadCache.js';
+import { proxyFor, unbracketed, type Proxy, type ProxyEnv } from './httpProxy.js';
 import { basicAuth, checkHeaders, sameTrust, shownUrl, type RequestHeaders } from './requestHeaders.js';
 
 export interface DownloadLimits {
@@ -63,8 +72,6 @@ export const DEFAULT_DOWNLOAD_LIMITS: Required<DownloadLimits> = {
   maxBytes: 1024 * 1024 * 1024,
 };
 
-const ZIP_SIGNATURE = Buffer.from([0x50, 0x4b, 0x03, 0x04]);
-
 export function isUrl(source: string): boolean {
   return /^https?:\/\//i.test(source);
 }
@@ -106,7 +113,7 @@ export async function downloadFeed(url: string, options: DownloadOptions = {}): 
   try {
     const kept = store ? await readEntry(store.dir, url) : null;
     const entry = kept && kept.meta.bytes <= maxBytes ? kept : null; // a copy over today's cap is not reused
-    const got = await fetchTo(job, path, validators(entry));
+    let got = await fetchTo(job, path, validators(entry));
     if (got.notModified && entry) {
       try {
         await copyOut(entry, path);
@@ -114,9 +121,7 @@ export async function downloadFeed(url: string, options: DownloadOptions = {}): 
       } catch {
         // the kept copy went away or changed meanwhile: fetch the feed whole
         await rm(path, { force: true });
-        const again = await fetchTo(job, path, {});
-        if (store) await keep(store, url, path, again, warnings);
-        return { path, bytes: again.bytes, fromCache: false, cleanup };
+        got = await fetchTo(job, path, {});
       }
     }
     if (store) await keep(store, url, path, got, warnings);
@@ -353,7 +358,7 @@ function tunnel(mod: typeof http, tls: typeof import('node:tls'), proxy: Proxy, 
           : `the proxy refused the tunnel (HTTP status ${res.statusCode ?? 0})`,
       );
     if (head.length > 0) socket.unshift(head);
-    const host = target.hostname.replace(/^\[(.*)\]$/, '$1');
+    const host = unbracketed(target.hostname);
     const secure = track(
       tls.connect({ socket, host, ...(isIP(host) === 0 ? { servername: host } : {}), ...(job.ca ? { ca: job.ca } : {}) }),
     );
@@ -421,7 +426,7 @@ function saveBody(
         );
       if (head.length < 4) {
         head = Buffer.concat([head, chunk.subarray(0, 4 - head.length)]);
-        if (head.length >= 4 && !head.equals(ZIP_SIGNATURE)) {
+        if (head.length >= 4 && !head.equals(ZIP_HEAD)) {
           const type = String(res.headers['content-type'] ?? 'unknown type');
           return finish(
             new StopspanError('download-failed', `cannot download the feed: the body is not a zip archive (${type})`, { file: url }),

@@ -45,7 +45,8 @@ const META = 'entry.json';
 const ENTRY_NAME = /^[0-9a-f]{64}$/;
 const WORK_NAME = /^\.(tmp|old)-(\d+)-[0-9a-f]{12}$/;
 const MAX_META_BYTES = 64 * 1024;
-const ZIP_HEAD = Buffer.from([0x50, 0x4b, 0x03, 0x04]);
+/** A zip archive's first four bytes (a local file header's signature); download.ts checks a body by them too. */
+export const ZIP_HEAD = Buffer.from([0x50, 0x4b, 0x03, 0x04]);
 const ZIP_END = Buffer.from([0x50, 0x4b, 0x05, 0x06]);
 /** The end-of-central-directory record is in the last 22 bytes, or up to a 65 535-byte comment before them. */
 const ZIP_TAIL_BYTES = 22 + 65_535;
@@ -122,11 +123,7 @@ export function validators(entry: CacheEntry | null): Record<string, string> {
 
 /** Puts a copy of the entry's body at dest (a hard link when the folders share a file system) and marks it used. */
 export async function copyOut(entry: CacheEntry, dest: string): Promise<void> {
-  try {
-    await link(entry.body, dest);
-  } catch {
-    await copyFile(entry.body, dest);
-  }
+  await linkOrCopy(entry.body, dest);
   if (!(await soundZip(dest, entry.meta.bytes))) throw new Error('the kept copy changed while it was read');
   const now = new Date();
   await utimes(entry.dir, now, now).catch(() => undefined);
@@ -151,11 +148,7 @@ export async function storeEntry(
   const forget = undoOnInterrupt(() => rmSync(work, { recursive: true, force: true }));
   try {
     await mkdir(work, { mode: 0o700 });
-    try {
-      await link(bodyPath, join(work, BODY));
-    } catch {
-      await copyFile(bodyPath, join(work, BODY));
-    }
+    await linkOrCopy(bodyPath, join(work, BODY));
     const full: EntryMeta = { url: shownUrl(url), ...meta, savedAt: new Date().toISOString() };
     await writeFile(join(work, META), JSON.stringify(full, null, 2) + '\n', { mode: 0o600 });
     await putInPlace(root, work, key);
@@ -164,6 +157,15 @@ export async function storeEntry(
     forget();
   }
   await trim(root, limits, key);
+}
+
+/** A hard link to the file when both folders share a file system, else a copy. */
+async function linkOrCopy(from: string, to: string): Promise<void> {
+  try {
+    await link(from, to);
+  } catch {
+    await copyFile(from, to);
+  }
 }
 
 function workName(kind: 'tmp' | 'old'): string {

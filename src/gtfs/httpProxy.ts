@@ -39,7 +39,7 @@ export function parseProxy(raw: string, name: string): Proxy {
     throw new StopspanError('download-failed', `cannot use the proxy in ${name}: only http:// proxies are supported`, {
       value: u.protocol,
     });
-  const host = u.hostname.replace(/^\[(.*)\]$/, '$1');
+  const host = unbracketed(u.hostname);
   const port = u.port === '' ? 80 : Number(u.port);
   return { host, port, shown: `${u.hostname}:${port}`, authorization: basicAuth(u) };
 }
@@ -64,8 +64,13 @@ export function bypassed(target: URL, noProxy: string): boolean {
   return false;
 }
 
+/** A URL's hostname as a socket takes it: an IPv6 address without its brackets. */
+export function unbracketed(hostname: string): string {
+  return hostname.replace(/^\[(.*)\]$/, '$1');
+}
+
 function bare(hostname: string): string {
-  return hostname.toLowerCase().replace(/^\[(.*)\]$/, '$1');
+  return unbracketed(hostname.toLowerCase());
 }
 
 function splitPort(entry: string): { name: string; port?: number } {
