@@ -164,10 +164,11 @@ export function summaryJson(result: AuditResult): string {
 
 /** The rows audit --json=full adds to summary.json, each with the columns of its CSV file (metres). */
 export function fullRows(result: AuditResult): { patterns: object[]; stops: object[]; candidates: object[] } {
+  const candidateCols = candidateColumns(result.demandSource);
   return {
     patterns: result.patterns.map((p) => rowObject(PATTERN_COLUMNS, p)),
     stops: result.stops.map((s) => rowObject(STOP_COLUMNS, s)),
-    candidates: result.candidates.map((c) => rowObject(candidateColumns(result.demandSource), c)),
+    candidates: result.candidates.map((c) => rowObject(candidateCols, c)),
   };
 }
 
