@@ -3,7 +3,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer, type Server } from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { ROOT, runCli } from '../helpers/cli.js';
@@ -11,6 +10,7 @@ import { checkExitCode } from '../../src/cli/check.js';
 import { compareExitCode } from '../../src/cli/compare.js';
 import { cpSync } from 'node:fs';
 import type { Finding } from '../../src/check/check.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 const FIX = join(ROOT, 'fixtures/check');
 const TODAY = '2026-10-14';
@@ -123,8 +123,7 @@ describe('stopspan check', () => {
         res.end();
       }
     });
-    await new Promise<void>((ok) => server.listen(0, '127.0.0.1', ok));
-    const port = (server.address() as AddressInfo).port;
+    const port = new URL(await listenLoopback(server)).port;
     try {
       const notFound = await cli(['check', `http://127.0.0.1:${port}/missing.zip`]);
       expect(notFound.code).toBe(2);

@@ -5,12 +5,12 @@
 
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCli } from '../helpers/cli.js';
 import { BASIC, cleanupCopies, zipFolder } from '../gtfs/feedCopy.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 const SECRET = 'k3y-cli-7f1c-not-for-print';
 let feed: Buffer;
@@ -31,7 +31,7 @@ function serve(host: string, name: string): Promise<string> {
     res.end(feed);
   });
   servers.push(server);
-  return new Promise((resolve) => server.listen(0, host, () => resolve(`http://${host}:${(server.address() as AddressInfo).port}`)));
+  return listenLoopback(server, host);
 }
 
 beforeAll(async () => {

@@ -5,13 +5,13 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { copyFileSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { CLI, ROOT } from '../helpers/cli.js';
 import { REPORT_MARKER, writeFolder } from '../../src/report/writeFolder.js';
 import { runInterruptUndo } from '../../src/common/interrupts.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 const DEMO = join(ROOT, 'fixtures/demo/demo-feed.zip');
 const roots: string[] = [];
@@ -134,8 +134,7 @@ describe('an interrupt while a feed downloads', () => {
       res.write(zip.subarray(0, 65_536));
       open.push(res);
     });
-    await new Promise<void>((ok) => server.listen(0, '127.0.0.1', ok));
-    url = `http://127.0.0.1:${(server.address() as AddressInfo).port}/gtfs.zip`;
+    url = `${await listenLoopback(server)}/gtfs.zip`;
   });
   afterAll(async () => {
     open.forEach((r) => r.destroy());

@@ -3,13 +3,13 @@
 
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { downloadFeed } from '../../src/gtfs/download.js';
 import { readFeed } from '../../src/gtfs/readFeed.js';
 import { BASIC, cleanupCopies, zipFolder } from './feedCopy.js';
 import { rejected } from '../helpers/errors.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 let server: http.Server;
 let base = '';
@@ -58,8 +58,7 @@ beforeAll(async () => {
         res.writeHead(404).end('not here');
     }
   });
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
-  base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  base = await listenLoopback(server);
 });
 
 afterAll(async () => {

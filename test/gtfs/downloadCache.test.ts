@@ -5,7 +5,6 @@
 
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, truncateSync, utimesSync, writeFileSync } from 'node:fs';
 import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -14,6 +13,7 @@ import { cacheFolder, entryKey } from '../../src/gtfs/downloadCache.js';
 import { WarningSink } from '../../src/common/warnings.js';
 import { zipBytes } from '../helpers/zip.js';
 import { rejected } from '../helpers/errors.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 let server: http.Server;
 let base = '';
@@ -57,8 +57,7 @@ beforeAll(async () => {
         res.writeHead(404).end();
     }
   });
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
-  base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  base = await listenLoopback(server);
 });
 
 afterAll(async () => {

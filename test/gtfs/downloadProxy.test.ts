@@ -8,7 +8,7 @@ import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import http from 'node:http';
 import https from 'node:https';
-import net, { type AddressInfo } from 'node:net';
+import net from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -17,6 +17,7 @@ import { bypassed, parseProxy } from '../../src/gtfs/httpProxy.js';
 import { parseHeaderOptions, sameTrust } from '../../src/gtfs/requestHeaders.js';
 import { rejected, thrown } from '../helpers/errors.js';
 import { zipBytes } from '../helpers/zip.js';
+import { listenLoopback } from '../helpers/loopback.js';
 
 const SECRET = 'k3y-7f1c-not-for-print';
 let feed: Buffer;
@@ -43,10 +44,7 @@ function listen(server: net.Server, host = '127.0.0.1'): Promise<number> {
     sockets.add(s);
     s.on('close', () => sockets.delete(s));
   });
-  return new Promise((resolve, reject) => {
-    server.once('error', reject);
-    server.listen(0, host, () => resolve((server.address() as AddressInfo).port));
-  });
+  return listenLoopback(server, host).then((base) => Number(new URL(base).port));
 }
 
 function originHandler(req: http.IncomingMessage, res: http.ServerResponse): void {
